@@ -1,0 +1,8 @@
+// Registry of CLI commands. Each command lives in its own file and exports a CliCommand.
+export type CliCommand = {
+  summary: string;
+  /** Runs the command with its arguments; returns the process exit code. */
+  run: (args: string[]) => Promise<number>;
+};
+
+export const commands: Record<string, CliCommand> = {};
