@@ -1,0 +1,12 @@
+import { requirePageUser } from '@/lib/auth/session';
+import { AppNav } from '@/components/layout/app-nav';
+
+export default async function SignedInLayout({ children }: { children: React.ReactNode }) {
+  const user = await requirePageUser();
+  return (
+    <>
+      <AppNav user={user} />
+      <main className="mx-auto w-full max-w-7xl flex-1 px-4 py-6">{children}</main>
+    </>
+  );
+}

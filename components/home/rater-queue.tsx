@@ -1,0 +1,58 @@
+import Link from 'next/link';
+import type { QueueItem } from '@/lib/db/queries/queue';
+import { Panel } from '@/components/ui/panel';
+import { bidsName } from '@/lib/bids';
+
+function RunRow({ item }: { item: QueueItem }) {
+  const pct = item.total ? Math.round((100 * item.labelled) / item.total) : 0;
+  return (
+    <li className="flex items-center gap-4 py-2" data-testid="queue-item">
+      <div className="min-w-0 flex-1">
+        <p className="truncate font-mono text-sm">{bidsName(item)}</p>
+        <p className="text-xs text-ink-faint">{item.studyName}</p>
+      </div>
+      <div className="w-40">
+        <div className="h-1.5 rounded bg-ground-sunken" aria-hidden>
+          <div className="h-1.5 rounded bg-lumen" style={{ width: `${pct}%` }} />
+        </div>
+        <p className="mt-1 text-xs text-ink-muted">
+          {item.labelled} / {item.total} labelled
+        </p>
+      </div>
+      <p className="w-28 text-xs text-ink-muted">{item.dueAt ? `due ${item.dueAt.toISOString().slice(0, 10)}` : 'no due date'}</p>
+      <Link href={`/runs/${item.runId}/rate`} className="rounded bg-lumen px-3 py-1 text-sm font-medium text-ground hover:bg-lumen-strong">
+        {item.labelled > 0 ? 'Continue' : 'Start'}
+      </Link>
+    </li>
+  );
+}
+
+export function RaterQueue({ items }: { items: QueueItem[] }) {
+  const open = items.filter((i) => !i.submittedAt);
+  const done = items.filter((i) => i.submittedAt);
+  return (
+    <div className="flex flex-col gap-6">
+      <Panel title="My queue">
+        {open.length === 0 ? (
+          <p className="text-sm text-ink-muted" data-testid="queue-empty">
+            Nothing is waiting for you. New runs appear here when a study lead assigns them.
+          </p>
+        ) : (
+          <ul className="divide-y divide-line">{open.map((i) => <RunRow key={i.runId} item={i} />)}</ul>
+        )}
+      </Panel>
+      {done.length ? (
+        <Panel title="Submitted">
+          <ul className="divide-y divide-line text-sm">
+            {done.map((i) => (
+              <li key={i.runId} className="flex justify-between py-2">
+                <span className="font-mono">{bidsName(i)}</span>
+                <span className="text-ink-muted">submitted {i.submittedAt?.toISOString().replace('T', ' ').slice(0, 16)} UTC</span>
+              </li>
+            ))}
+          </ul>
+        </Panel>
+      ) : null}
+    </div>
+  );
+}

@@ -1,0 +1,66 @@
+import type { Role } from './roles';
+
+/**
+ * The one permission matrix. Every route handler and server action names one of these actions;
+ * row scoping (which study, which run) is done in the queries on top of this.
+ */
+export const ACTIONS = [
+  'account.read',
+  'account.update',
+  'tokens.manage',
+  'studies.read',
+  'studies.create',
+  'studies.update',
+  'runs.read',
+  'runs.upload',
+  'runs.manage',
+  'jobs.read',
+  'votes.write',
+  'decisions.reconcile',
+  'agreement.read',
+  'releases.read',
+  'releases.create',
+  'exports.download',
+  'denoise.request',
+  'users.read',
+  'users.manage',
+  'invitations.create',
+  'audit.read',
+  'storage.read',
+  'mailbox.read',
+] as const;
+export type Action = (typeof ACTIONS)[number];
+
+const everyone: Action[] = ['account.read', 'account.update'];
+const reader: Action[] = [
+  ...everyone,
+  'tokens.manage',
+  'studies.read',
+  'runs.read',
+  'jobs.read',
+  'agreement.read',
+  'releases.read',
+  'exports.download',
+];
+
+export const PERMISSIONS: Record<Role, ReadonlySet<Action>> = {
+  admin: new Set<Action>(ACTIONS),
+  lead: new Set<Action>([
+    ...reader,
+    'studies.create',
+    'studies.update',
+    'runs.upload',
+    'runs.manage',
+    'decisions.reconcile',
+    'releases.create',
+    'denoise.request',
+    'invitations.create',
+    'users.read',
+  ]),
+  rater: new Set<Action>([...everyone, 'studies.read', 'runs.read', 'votes.write']),
+  observer: new Set<Action>(reader),
+};
+
+export function can(role: Role, action: Action): boolean {
+  return PERMISSIONS[role]?.has(action) ?? false;
+}

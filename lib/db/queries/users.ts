@@ -1,0 +1,61 @@
+import 'server-only';
+import { db } from '@/lib/db/knex';
+import type { Role } from '@/lib/auth/roles';
+
+export type UserRow = {
+  id: number;
+  email: string;
+  name: string;
+  role: Role;
+  active: boolean;
+  lastSignInAt: Date | null;
+  createdAt: Date;
+};
+
+const publicColumns = [
+  'id',
+  'email',
+  'name',
+  'role',
+  'active',
+  'last_sign_in_at as lastSignInAt',
+  'created_at as createdAt',
+] as const;
+
+function normalise(row: Record<string, unknown> | undefined): UserRow | null {
+  if (!row) return null;
+  return { ...(row as unknown as UserRow), active: Boolean(row.active) };
+}
+
+/** A user without the password hash, or null. */
+export async function findUserById({ id }: { id: number }): Promise<UserRow | null> {
+  return normalise(await db('users').select(publicColumns).where({ id }).first());
+}
+
+/** The user and the password hash, for sign-in and password change only. */
+export async function findCredentialsByEmail({ email }: { email: string }) {
+  const row = await db('users')
+    .select([...publicColumns, 'password_hash as passwordHash'])
+    .where({ email: email.trim().toLowerCase() })
+    .first();
+  if (!row) return null;
+  return { user: normalise(row) as UserRow, passwordHash: row.passwordHash as string | null };
+}
+
+export async function findPasswordHash({ id }: { id: number }): Promise<string | null> {
+  const row = await db('users').select('password_hash as passwordHash').where({ id }).first();
+  return (row?.passwordHash as string | undefined) ?? null;
+}
+
+export async function recordSignIn({ id }: { id: number }): Promise<void> {
+  await db('users').where({ id }).update({ last_sign_in_at: db.fn.now(3) });
+}
+
+export async function updatePasswordHash({ id, passwordHash }: { id: number; passwordHash: string }) {
+  await db('users').where({ id }).update({ password_hash: passwordHash, updated_at: db.fn.now(3) });
+}
+
+export async function listUsers(): Promise<UserRow[]> {
+  const rows = await db('users').select(publicColumns).orderBy('name');
+  return rows.map((r) => normalise(r) as UserRow);
+}

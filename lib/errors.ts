@@ -1,0 +1,80 @@
+import { ZodError } from 'zod';
+
+export type AppErrorCode =
+  | 'bad_request'
+  | 'validation'
+  | 'unauthenticated'
+  | 'forbidden'
+  | 'not_found'
+  | 'conflict'
+  | 'too_large'
+  | 'too_many_requests'
+  | 'unavailable'
+  | 'internal';
+
+const STATUS: Record<AppErrorCode, number> = {
+  bad_request: 400,
+  validation: 422,
+  unauthenticated: 401,
+  forbidden: 403,
+  not_found: 404,
+  conflict: 409,
+  too_large: 413,
+  too_many_requests: 429,
+  unavailable: 503,
+  internal: 500,
+};
+
+/** The one error type every route handler and server action answers with. */
+export class AppError extends Error {
+  readonly code: AppErrorCode;
+  readonly fields?: Record<string, string[]>;
+
+  constructor(code: AppErrorCode, message: string, fields?: Record<string, string[]>) {
+    super(message);
+    this.name = 'AppError';
+    this.code = code;
+    this.fields = fields;
+  }
+
+  get status(): number {
+    return STATUS[this.code];
+  }
+
+  toJSON() {
+    return { error: { code: this.code, message: this.message, ...(this.fields ? { fields: this.fields } : {}) } };
+  }
+
+  toResponse(): Response {
+    return Response.json(this.toJSON(), { status: this.status });
+  }
+
+  static fromZod(err: ZodError, what = 'The request'): AppError {
+    const fields: Record<string, string[]> = {};
+    for (const issue of err.issues) {
+      const key = issue.path.length ? issue.path.join('.') : '_';
+      (fields[key] ??= []).push(issue.message);
+    }
+    const first = err.issues[0];
+    const where = first?.path.length ? ` (${first.path.join('.')})` : '';
+    return new AppError('validation', `${what} is not valid${where}: ${first?.message ?? 'check the fields'}.`, fields);
+  }
+}
+
+export const unauthenticated = () => new AppError('unauthenticated', 'Sign in to continue.');
+export const forbidden = (what = 'this') =>
+  new AppError('forbidden', `Your role does not allow ${what}. Ask a study lead or the facility admin if you need it.`);
+export const notFound = (what = 'The item') => new AppError('not_found', `${what} was not found.`);
+
+/** Turns any thrown value into a safe response: AppErrors as they are, anything else logged and generic. */
+export function errorResponse(err: unknown, context: string): Response {
+  if (err instanceof AppError) return err.toResponse();
+  if (err instanceof ZodError) return AppError.fromZod(err).toResponse();
+  const code = (err as { code?: string })?.code;
+  if (code === 'ECONNREFUSED' || code === 'PROTOCOL_CONNECTION_LOST' || code === 'ER_ACCESS_DENIED_ERROR') {
+    console.error(`[${context}] database unavailable:`, err);
+    return new AppError('unavailable', 'The database is not reachable right now. Try again in a moment.').toResponse();
+  }
+  console.error(`[${context}] unexpected error:`, err);
+  return new AppError('internal', 'Something went wrong on the server. The error was logged; try again.').toResponse();
+}
