@@ -107,7 +107,7 @@ export function connectionOptions(s: DbSettings = resolveDbSettings()) {
     user: s.user,
     password: s.password,
     database: s.database,
-    charset: 'utf8mb4_unicode_ci',
+    charset: 'utf8mb4', // knex also uses this as the default charset of tables it creates
     timezone: 'Z', // DATETIME values are UTC on the wire both ways
     decimalNumbers: true,
     supportBigNumbers: true,
