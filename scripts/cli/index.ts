@@ -1,8 +1,11 @@
 // Registry of CLI commands. Each command lives in its own file and exports a CliCommand.
+import { header } from './header';
 export type CliCommand = {
   summary: string;
   /** Runs the command with its arguments; returns the process exit code. */
   run: (args: string[]) => Promise<number>;
 };
 
-export const commands: Record<string, CliCommand> = {};
+export const commands: Record<string, CliCommand> = {
+  header,
+};
