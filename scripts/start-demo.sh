@@ -1,0 +1,48 @@
+#!/usr/bin/env bash
+# npm run start:demo – the whole product with its demo data on http://localhost:3000.
+# Installs what is missing, starts MariaDB, migrates, seeds the demo accounts and study, builds the
+# app, and serves it together with the background worker and the local mail catcher. Ctrl-C stops all.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+source scripts/lib/ensure-system.sh
+
+PORT="${PORT:-3000}"
+ensure_debian_packages
+ensure_node_modules
+mkdir -p .data
+bash scripts/db.sh start
+
+if [ ! -s .data/nextauth-secret ]; then
+  node -e "console.log(require('node:crypto').randomBytes(32).toString('hex'))" > .data/nextauth-secret
+fi
+export NEXTAUTH_SECRET="${NEXTAUTH_SECRET:-$(cat .data/nextauth-secret)}"
+export NEXTAUTH_URL="${NEXTAUTH_URL:-http://localhost:$PORT}"
+
+echo "migrating the database"
+node --import tsx node_modules/knex/bin/cli.js --knexfile knexfile.ts migrate:latest
+echo "seeding the demo (Fernhollow Imaging Core)"
+node --import tsx scripts/seed-demo.ts
+
+if [ "${QUORUM_SKIP_BUILD:-0}" != 1 ] || [ ! -f .next/BUILD_ID ]; then
+  echo "building the app (about a minute)"
+  npx next build > .data/build.log 2>&1 || { tail -30 .data/build.log; echo "the build failed; see .data/build.log"; exit 1; }
+fi
+
+pids=()
+stop_all() {
+  for pid in "${pids[@]}"; do kill "$pid" 2>/dev/null || true; done
+  wait 2>/dev/null || true
+}
+trap stop_all EXIT INT TERM
+
+for helper in scripts/mail-server.ts scripts/worker.ts; do
+  if [ -f "$helper" ]; then
+    node --import tsx "$helper" &
+    pids+=($!)
+  fi
+done
+
+echo "Quorum is starting on http://localhost:$PORT — sign in as lead@fernhollow.example / quorum-demo"
+npx next start -p "$PORT" &
+pids+=($!)
+wait -n "${pids[@]}"

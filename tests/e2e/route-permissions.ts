@@ -1,0 +1,27 @@
+// Every route handler in app/api with the roles allowed to call it. tests/e2e/permissions.spec.ts
+// fails when a route file or method exists that is not listed here: add new routes to this table.
+export type Role = 'admin' | 'lead' | 'rater' | 'observer';
+export type RouteCase = {
+  file: string; // relative to app/api
+  method: 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
+  url: string; // a sample address for the walk
+  allowed: Role[] | 'public' | 'skip';
+};
+
+const ALL: Role[] = ['admin', 'lead', 'rater', 'observer'];
+
+export const ROUTES: RouteCase[] = [
+  { file: 'health/route.ts', method: 'GET', url: '/api/health', allowed: 'public' },
+  { file: 'me/route.ts', method: 'GET', url: '/api/me', allowed: ALL },
+  { file: 'account/password/route.ts', method: 'POST', url: '/api/account/password', allowed: ALL },
+  { file: 'admin/users/route.ts', method: 'GET', url: '/api/admin/users', allowed: ['admin'] },
+  // next-auth's own endpoints and the JSON 404 for unknown addresses are not permission-checked routes.
+  { file: 'auth/[...nextauth]/route.ts', method: 'GET', url: '/api/auth/session', allowed: 'skip' },
+  { file: 'auth/[...nextauth]/route.ts', method: 'POST', url: '/api/auth/signout', allowed: 'skip' },
+  ...(['GET', 'POST', 'PUT', 'PATCH', 'DELETE'] as const).map((method) => ({
+    file: '[...unknown]/route.ts',
+    method,
+    url: '/api/no-such-route',
+    allowed: 'skip' as const,
+  })),
+];
