@@ -9,15 +9,19 @@
 #   bash scripts/db.sh url      print the development DATABASE_URL
 #   bash scripts/db.sh shell    a root client on the socket (for poking around)
 #
-# Environment: QUORUM_DB_PORT (default 3366). DATABASE_URL set means "use that existing server":
+# Environment: QUORUM_DB_PORT (default 3366); QUORUM_DB_DATA (default <repo>/.data: data dir, socket,
+# pid, log — tests use it for a throw-away second instance). DATABASE_URL set means "use that existing server":
 # start/stop/status only say so, reset refuses, url prints it.
 set -euo pipefail
 
 ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
-DATA="$ROOT/.data"
+DATA="${QUORUM_DB_DATA:-$ROOT/.data}"
+mkdir -p "$DATA"
+DATA="$(cd "$DATA" && pwd)"
 DATADIR="$DATA/mariadb"
 PID_FILE="$DATA/mariadb.pid"
 LOG_FILE="$DATA/mariadb.log"
+PORT_FILE="$DATA/mariadb.port" # the port the running server listens on
 PORT="${QUORUM_DB_PORT:-3366}"
 SOCK="$DATA/mariadb.sock"
 # A unix socket path is limited to ~107 bytes; fall back to /tmp for deeply nested checkouts.
@@ -140,6 +144,11 @@ cmd_start() {
   ensure_installed
   local pid
   if pid="$(running_pid)"; then
+    local actual
+    actual="$(cat "$PORT_FILE" 2>/dev/null || echo "$PORT")"
+    if [ "$actual" != "$PORT" ]; then
+      die "already running (pid $pid) on 127.0.0.1:$actual, not on the requested port $PORT: stop it first (npm run db stop)"
+    fi
     ensure_databases
     say "already running (pid $pid) on 127.0.0.1:$PORT"
     return 0
@@ -152,6 +161,7 @@ cmd_start() {
   if port_taken; then die "$(port_message)" 2; fi
   init_datadir
   rm -f "$SOCK" "$SOCK.lock"
+  printf '%s\n' "$PORT" >"$PORT_FILE"
   : >"$LOG_FILE.start"
   # setsid: the server must outlive the shell (and test runner) that started it.
   local launcher=()
@@ -202,7 +212,7 @@ cmd_status() {
   if [ -n "${DATABASE_URL:-}" ]; then external_note status; return 0; fi
   local pid
   if pid="$(running_pid)"; then
-    say "running (pid $pid) on 127.0.0.1:$PORT; socket $SOCK; data $DATADIR"
+    say "running (pid $pid) on 127.0.0.1:$(cat "$PORT_FILE" 2>/dev/null || echo "$PORT"); socket $SOCK; data $DATADIR"
     return 0
   fi
   say "not running (port $PORT; data $DATADIR)"
