@@ -77,29 +77,30 @@ export function imageFromBytes(header: NiftiHeader, bytes: Uint8Array, opts: Dec
   const swap = header.littleEndian !== NATIVE_LE && bpv > 1;
   const base = bytes.byteOffset + header.voxOffset;
   const direct = !swap && base % bpv === 0;
-  // Scratch buffer for one volume when a direct typed view is impossible (misaligned or swapped).
-  let scratch: Uint8Array | null = null;
-  let scratchView: NumericArray | null = null;
-  let scratchT = -1;
+  // Scratch buffers (one per slot) for volumes a direct typed view cannot cover (misaligned or swapped).
+  const scratch: { bytes: Uint8Array; view: NumericArray; t: number }[] = [];
 
-  /** Native-order typed view of the raw values of volume t. */
-  const volumeView = (t: number): NumericArray => {
+  /** Native-order typed view of the raw values of volume t; `slot` picks the scratch buffer. */
+  const volumeView = (t: number, slot = 0): NumericArray => {
     if (direct) return new ctor(bytes.buffer as ArrayBuffer, base + t * volBytes, voxelsPerVolume);
-    if (!scratch) {
-      scratch = new Uint8Array(volBytes);
-      scratchView = new ctor(scratch.buffer as ArrayBuffer, 0, voxelsPerVolume);
+    let s = scratch[slot];
+    if (!s) {
+      const b = new Uint8Array(volBytes);
+      s = scratch[slot] = { bytes: b, view: new ctor(b.buffer as ArrayBuffer, 0, voxelsPerVolume), t: -1 };
     }
-    if (scratchT !== t) {
+    if (s.t !== t) {
       const src = bytes.subarray(header.voxOffset + t * volBytes, header.voxOffset + (t + 1) * volBytes);
-      if (!swap) {
-        scratch.set(src);
-      } else {
-        for (let i = 0; i < volBytes; i += bpv) for (let k = 0; k < bpv; k++) scratch[i + k] = src[i + bpv - 1 - k];
-      }
-      scratchT = t;
+      const dst = s.bytes;
+      if (!swap) dst.set(src);
+      else if (bpv === 2) for (let i = 0; i < volBytes; i += 2) { dst[i] = src[i + 1]; dst[i + 1] = src[i]; }
+      else if (bpv === 4) for (let i = 0; i < volBytes; i += 4) { dst[i] = src[i + 3]; dst[i + 1] = src[i + 2]; dst[i + 2] = src[i + 1]; dst[i + 3] = src[i]; }
+      else for (let i = 0; i < volBytes; i += bpv) for (let k = 0; k < bpv; k++) dst[i + k] = src[i + bpv - 1 - k];
+      s.t = t;
     }
-    return scratchView!;
+    return s.view;
   };
+  // Volumes per block in readVoxelSeries: each voxel's row then gets a run of contiguous writes.
+  const block = Math.max(1, Math.min(16, Math.floor(64 * 1024 * 1024 / Math.max(1, volBytes))));
 
   const slope = header.sclSlope;
   const inter = header.sclInter;
@@ -132,11 +133,18 @@ export function imageFromBytes(header: NiftiHeader, bytes: Uint8Array, opts: Dec
         const idx = indices[v];
         if (!(idx >= 0 && idx < voxelsPerVolume)) throw new NiftiError('bad_input', `Voxel index ${idx} (position ${v}) is outside the volume of ${voxelsPerVolume} voxels.`);
       }
-      for (let t = tStart; t < nt; t++) {
-        const src = volumeView(t);
-        const col = t - tStart;
-        if (identity) for (let v = 0; v < n; v++) dst[v * T + col] = src[indices[v]];
-        else for (let v = 0; v < n; v++) dst[v * T + col] = src[indices[v]] * slope + inter;
+      // Blocks of volumes: for each voxel write `nb` neighbouring time points (cache-friendly rows).
+      for (let t0 = tStart; t0 < nt; t0 += block) {
+        const nb = Math.min(block, nt - t0);
+        const views: NumericArray[] = [];
+        for (let b = 0; b < nb; b++) views.push(volumeView(t0 + b, b));
+        const col = t0 - tStart;
+        for (let v = 0; v < n; v++) {
+          const idx = indices[v];
+          const o = v * T + col;
+          if (identity) for (let b = 0; b < nb; b++) dst[o + b] = views[b][idx];
+          else for (let b = 0; b < nb; b++) dst[o + b] = views[b][idx] * slope + inter;
+        }
       }
       return dst;
     },
