@@ -7,6 +7,7 @@ import { describe, expect, it } from 'vitest';
 import {
   affineMaxDiff,
   decodeNifti,
+  encodeNifti1,
   diagonalAffine,
   parseNiftiHeader,
   readNiftiFile,
@@ -123,6 +124,25 @@ describe('readVoxelSeries', () => {
     for (let t = 0; t < a.nt; t++) expect(b.readVolume(t)).toEqual(a.readVolume(t));
     const idx = Uint32Array.from([1, 2, 30]);
     expect(b.readVoxelSeries(idx, 0)).toEqual(a.readVoxelSeries(idx, 0));
+  });
+
+  it('runs longer than one 16-volume block: series equal volumes (aligned and misaligned buffers)', () => {
+    const dims = [7, 6, 5, 37];
+    const V = 7 * 6 * 5;
+    const data = Int16Array.from({ length: V * 37 }, (_, i) => ((i * 7919) % 20000) - 10000);
+    const bytes = encodeNifti1({ dims, datatype: 'int16', data, sclSlope: 0.5, sclInter: 2 });
+    const shifted = new Uint8Array(bytes.length + 1).subarray(1);
+    shifted.set(bytes);
+    const idx = Int32Array.from({ length: 50 }, (_, v) => (v * 37) % V);
+    for (const img of [decodeNifti(bytes), decodeNifti(shifted)]) {
+      for (const tStart of [0, 3, 36]) {
+        const T = 37 - tStart;
+        const s = img.readVoxelSeries(idx, tStart);
+        for (let v = 0; v < idx.length; v++) {
+          for (let t = tStart; t < 37; t++) expect(s[v * T + t - tStart]).toBe(data[t * V + idx[v]] * 0.5 + 2);
+        }
+      }
+    }
   });
 
   it('fills a caller-supplied output array and refuses one too short', () => {
