@@ -1,0 +1,231 @@
+// decomposeRun: mask → voxel × time matrix → temporal PCA (+ dimensionality) → whitening →
+// spatial FastICA → oriented, ordered, z-scored components (DESIGN.md §4).
+import { autoBrainMask } from './brain-mask';
+import { temporalCovariance } from './covariance';
+import { buildDataMatrix, meanImage, type RunImage } from './data-matrix';
+import { chooseDimension, type DimMethod, type DimensionChoice } from './dimensionality';
+import { DecompositionError } from './errors';
+import { fastIca, type Contrast } from './fastica';
+import { KernelPool, sharedFloat32, splitRange } from './worker-pool';
+import { orientComponents } from './orient';
+import { temporalPca } from './pca';
+import { estimateSmoothness, type SmoothnessEstimate } from './smoothness';
+import { whiten } from './whitening';
+
+export interface DecomposeInput {
+  image: RunImage;
+  /** Full-volume mask (x fastest, non-zero = in); default: automatic brain mask of the mean image. */
+  mask?: Uint8Array;
+  /** Motion parameters, passed through for component features (not used by the decomposition). */
+  motion?: unknown;
+}
+
+export interface DecomposeOptions {
+  components?: 'auto' | number;
+  dimMethod?: DimMethod;
+  seed?: number;
+  /** Initial volumes to drop (default 0). */
+  drop?: number;
+  /** Remove a least-squares line from each voxel's time series (default false). */
+  detrend?: boolean;
+  /** Divide each voxel's time series by its temporal SD (default true). */
+  varianceNorm?: boolean;
+  contrast?: Contrast;
+  tol?: number;
+  maxIter?: number;
+  /** Worker threads for the voxel-sized kernels (default: available cores; 1 = this thread). */
+  threads?: number;
+}
+
+export type ProgressCallback = (stage: string, percent: number) => void;
+
+export interface DecompositionResult {
+  /** Number of components. */
+  k: number;
+  /** z-scored spatial maps, component-major Float32Array k × V (V in-mask voxels, maskIndices order). */
+  maps: Float32Array;
+  /** Time courses (mixing matrix), T × k row-major Float64Array: row t = volume drop + t. */
+  timecourses: Float64Array;
+  /** Acquisition time of each kept volume's start, seconds: (drop + t)·TR. */
+  timeSeconds: Float64Array;
+  /** All eigenvalues of the T × T temporal covariance, descending (preprocessed data units²). */
+  eigenvalues: Float64Array;
+  /** Fraction of total variance explained by each component (component order). */
+  explainedVariance: Float64Array;
+  /** Fraction of total variance kept by the k-dimensional PCA subspace. */
+  pcaVarianceKept: number;
+  dimMethod: string;
+  dimension: DimensionChoice;
+  smoothness: SmoothnessEstimate;
+  iterations: number;
+  converged: boolean;
+  /** Seed of the FastICA start actually used; requestedSeed is what was asked for. */
+  seed: number;
+  requestedSeed: number;
+  icaAttempts: number;
+  contrast: Contrast;
+  tol: number;
+  maxIter: number;
+  voxelsInMask: number;
+  nonFiniteVoxels: number;
+  zeroVarianceVoxels: number;
+  /** In-mask voxel → full-volume linear index (x fastest). */
+  maskIndices: Int32Array;
+  /** Final mask as a full volume (1 = used voxel). */
+  mask: Uint8Array;
+  /** Temporal mean of the kept volumes, full volume (input units). */
+  meanImage: Float32Array;
+  dims: [number, number, number];
+  timepoints: number;
+  droppedVolumes: number;
+  trSeconds: number;
+  detrended: boolean;
+  varianceNormalised: boolean;
+  threads: number;
+  /** Wall-clock seconds per stage and 'total'. */
+  seconds: Record<string, number>;
+}
+
+const MIN_TIMEPOINTS = 10;
+
+/** Runs the whole decomposition of one run. See DecompositionResult for layouts and units. */
+export async function decomposeRun(input: DecomposeInput, options: DecomposeOptions = {}, onProgress?: ProgressCallback): Promise<DecompositionResult> {
+  const t0 = performance.now();
+  const seconds: Record<string, number> = {};
+  let mark = t0;
+  const stage = (name: string, percent: number) => {
+    const now = performance.now();
+    seconds[name] = (now - mark) / 1000;
+    mark = now;
+    onProgress?.(name, percent);
+  };
+  const { image } = input;
+  const drop = options.drop ?? 0;
+  const detrend = options.detrend ?? false;
+  const varianceNorm = options.varianceNorm ?? true;
+  const components = options.components ?? 'auto';
+  const dimMethod = options.dimMethod ?? 'laplace';
+  const requestedSeed = options.seed ?? 1;
+  const contrast = options.contrast ?? 'logcosh';
+  const tol = options.tol ?? 1e-4;
+  const maxIter = options.maxIter ?? 200;
+  if (!Number.isInteger(drop) || drop < 0) throw new DecompositionError('bad_option', `drop must be a non-negative integer; got ${drop}.`);
+  if (!Number.isInteger(requestedSeed) || requestedSeed < 0) throw new DecompositionError('bad_option', `seed must be a non-negative integer; got ${requestedSeed}.`);
+  const T = image.nt - drop;
+  if (T < MIN_TIMEPOINTS) {
+    throw new DecompositionError('too_few_volumes', `The run has ${image.nt} volumes; after dropping ${drop} only ${T} remain, and at least ${MIN_TIMEPOINTS} are needed.`);
+  }
+  const tr = image.header.trSeconds;
+  if (tr === null || !(tr > 0)) throw new DecompositionError('bad_input', 'The run has no positive repetition time (pixdim[4]); fix the header before decomposing.');
+  const dims: [number, number, number] = [image.nx, image.ny, image.nz];
+  const nVox = image.voxelsPerVolume;
+
+  const { mean, nonFinite } = meanImage(image, drop);
+  stage('mean', 5);
+  let mask: Uint8Array;
+  if (input.mask) {
+    if (input.mask.length !== nVox) {
+      throw new DecompositionError('grid_mismatch', `The mask has ${input.mask.length} voxels but the run's volumes have ${nVox} (${dims.join(' × ')}); use a mask on the run's grid.`);
+    }
+    mask = input.mask;
+  } else {
+    mask = autoBrainMask(mean, dims);
+  }
+  let inMask = 0, nonFiniteVoxels = 0;
+  for (let i = 0; i < nVox; i++) {
+    if (!mask[i]) continue;
+    inMask++;
+    if (nonFinite[i]) nonFiniteVoxels++;
+  }
+  if (inMask === 0) throw new DecompositionError('empty_mask', 'The mask is empty; supply a mask with brain voxels or let the automatic mask run on the mean image.');
+  const candidates = new Int32Array(inMask - nonFiniteVoxels);
+  for (let i = 0, j = 0; i < nVox; i++) if (mask[i] && !nonFinite[i]) candidates[j++] = i;
+  stage('mask', 10);
+
+  const dm = buildDataMatrix(image, candidates, drop, { detrend, varianceNorm });
+  const { x, V, maskIndices } = dm;
+  if (V <= T) {
+    throw new DecompositionError('empty_mask', `Only ${V} usable in-mask voxels for ${T} time points; spatial ICA needs more voxels than volumes.`);
+  }
+  stage('matrix', 25);
+
+  const pool = new KernelPool(options.threads);
+  try {
+    const smoothness = estimateSmoothness(x, T, V, maskIndices, dims);
+    stage('smoothness', 28);
+    const cov = await temporalCovariance(x, T, V, pool);
+    stage('covariance', 45);
+    const pca = temporalPca(cov.cov, T);
+    stage('pca', 50);
+    const dimension = chooseDimension(pca.eigenvalues, {
+      components,
+      method: dimMethod,
+      effectiveSamples: smoothness.effectiveSamples,
+    });
+    const k = dimension.k;
+    stage('dimensionality', 52);
+    const wh = await whiten(x, T, V, pca.vectors, pca.eigenvalues, cov.spatialMean, k, pool);
+    stage('whitening', 60);
+    const ica = await fastIca(wh.z, k, V, pool, { contrast, tol, maxIter, seed: requestedSeed });
+    stage('ica', 90);
+    const s = sharedFloat32(k * V);
+    const wShared = ica.w;
+    await pool.run('unmixChunk', splitRange(V, pool.threads), (r) => [wh.z, k, V, wShared, r[0], r[1], s]);
+    // A = dewhitening · Wᵀ (T × k): x − μ1ᵀ ≈ A·S since S = W·Z and W is orthogonal.
+    const a = new Float64Array(T * k);
+    for (let t = 0; t < T; t++) {
+      for (let i = 0; i < k; i++) {
+        let acc = 0;
+        for (let j = 0; j < k; j++) acc += wh.dewhitening[t * k + j]! * ica.w[i * k + j]!;
+        a[t * k + i] = acc;
+      }
+    }
+    const oriented = orientComponents(s, a, k, V, T, cov.totalSumSquares);
+    let kept = 0, total = 0;
+    for (let i = 0; i < T; i++) {
+      total += pca.eigenvalues[i]!;
+      if (i < k) kept += pca.eigenvalues[i]!;
+    }
+    const finalMask = new Uint8Array(nVox);
+    for (let j = 0; j < V; j++) finalMask[maskIndices[j]!] = 1;
+    const timeSeconds = Float64Array.from({ length: T }, (_, t) => (drop + t) * tr);
+    stage('orient', 100);
+    seconds.total = (performance.now() - t0) / 1000;
+    return {
+      k,
+      maps: oriented.maps,
+      timecourses: oriented.timecourses,
+      timeSeconds,
+      eigenvalues: pca.eigenvalues,
+      explainedVariance: oriented.explainedVariance,
+      pcaVarianceKept: total > 0 ? kept / total : 0,
+      dimMethod: dimension.method,
+      dimension,
+      smoothness,
+      iterations: ica.iterations,
+      converged: ica.converged,
+      seed: ica.seed,
+      requestedSeed,
+      icaAttempts: ica.attempts,
+      contrast,
+      tol,
+      maxIter,
+      voxelsInMask: V,
+      nonFiniteVoxels,
+      zeroVarianceVoxels: dm.zeroVarianceVoxels,
+      maskIndices,
+      mask: finalMask,
+      meanImage: mean,
+      dims,
+      timepoints: T,
+      droppedVolumes: drop,
+      trSeconds: tr,
+      detrended: detrend,
+      varianceNormalised: varianceNorm,
+      threads: pool.threads,
+      seconds,
+    };
+  } finally {
+    await pool.close();
+  }
+}
