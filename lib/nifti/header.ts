@@ -202,6 +202,7 @@ export function parseNiftiHeader(input: Uint8Array): NiftiHeader {
 
   const spaceUnits = SPACE_UNITS[xyztUnits & 0x07] ?? 'unknown';
   const time = TIME_UNITS[xyztUnits & 0x38] ?? TIME_UNITS[0];
+  // Unknown time units: pixdim[4] taken as seconds (common practice, no source).
   const tFactor = (xyztUnits & 0x38) === 0 ? 1 : time.seconds;
   const trSeconds = rank >= 4 && tFactor !== null && pixdim[4] > 0 && Number.isFinite(pixdim[4]) ? pixdim[4] * tFactor : null;
 

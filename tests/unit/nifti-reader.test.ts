@@ -90,6 +90,16 @@ describe(`reader vs nibabel (${ref.library})`, () => {
     expect(parseNiftiHeader(load('units-us.nii')).trSeconds).toBeCloseTo(1.5, 12);
   });
 
+  it('TR with unknown time units is taken as seconds (common practice, no source); Hz gives no TR', () => {
+    const base = { dims: [2, 2, 2, 3], pixdim: [1, 1, 1, 2.5], datatype: 'uint8' as const, data: new Uint8Array(24) };
+    const unknown = parseNiftiHeader(encodeNifti1({ ...base, xyztUnits: 2 }));
+    expect(unknown.timeUnits).toBe('unknown');
+    expect(unknown.trSeconds).toBe(2.5);
+    const hz = parseNiftiHeader(encodeNifti1({ ...base, xyztUnits: 2 | 32 })); // NIFTI_UNITS_HZ = 32 (nifti1.h, from memory)
+    expect(hz.timeUnits).toBe('hz');
+    expect(hz.trSeconds).toBeNull();
+  });
+
   it('NaN and ±Inf voxels are returned as they are', () => {
     const v = decodeNifti(load('nonfinite.nii')).readVolume(0);
     expect(Number.isNaN(v[2])).toBe(true);
