@@ -83,8 +83,11 @@ export function newItemSums(k: number): ItemSums {
   };
 }
 
-/** Fills `out` with the sums over items idx[0..len) (repeats count again). Allocation-free. */
-export function accumulateItemSums(t: ItemTerms, idx: Int32Array, len: number, out: ItemSums): ItemSums {
+/**
+ * Fills `out` with the sums over items idx[0..len) (repeats count again). Allocation-free.
+ * With `specific` false the specific-agreement sums are left at 0 (the bootstrap does not need them).
+ */
+export function accumulateItemSums(t: ItemTerms, idx: Int32Array, len: number, out: ItemSums, specific = true): ItemSums {
   const { k, votes, counts, agree, occ, share, fleissVotes } = t;
   out.valueCount.fill(0);
   out.fleissCount.fill(0);
@@ -113,9 +116,14 @@ export function accumulateItemSums(t: ItemTerms, idx: Int32Array, len: number, o
       const x = counts[base + c];
       out.valueCount[c] += x;
       out.shareSum[c] += share[base + c];
-      out.specificNum[c] += x * (x - 1);
-      out.specificDen[c] += x * (m - 1);
       if (isFleiss) out.fleissCount[c] += x;
+    }
+    if (specific) {
+      for (let c = 0; c < k; c++) {
+        const x = counts[base + c];
+        out.specificNum[c] += x * (x - 1);
+        out.specificDen[c] += x * (m - 1);
+      }
     }
   }
   out.pairable = pairable;
@@ -131,4 +139,84 @@ export function sumsFor(table: RatingsTable, sel?: ItemSelection): { terms: Item
   const terms = itemTerms(table);
   const idx = selectedItems(table, sel);
   return { terms, sums: accumulateItemSums(terms, idx, idx.length, newItemSums(terms.k)) };
+}
+
+/**
+ * Groups items by their count vector (n_i1 … n_ik): every per-item term depends on it alone, and a
+ * study has few distinct vectors (with 3 raters and 3 categories at most 20). `patterns` holds one
+ * representative per vector and `patternOf[i]` the pattern of item i, so a bootstrap resample
+ * reduces to a histogram of patterns (see accumulateWeightedItemSums).
+ */
+export function compressItems(t: ItemTerms): { patterns: ItemTerms; patternOf: Int32Array } {
+  const { n, k } = t;
+  const patternOf = new Int32Array(n);
+  const index = new Map<string, number>();
+  const reps: number[] = [];
+  for (let i = 0; i < n; i++) {
+    let key = '';
+    for (let c = 0; c < k; c++) key += `${t.counts[i * k + c]},`;
+    let p = index.get(key);
+    if (p === undefined) {
+      p = reps.length;
+      index.set(key, p);
+      reps.push(i);
+    }
+    patternOf[i] = p;
+  }
+  const P = reps.length;
+  const pick = (src: Float64Array, stride: number) => {
+    const out = new Float64Array(P * stride);
+    reps.forEach((i, p) => out.set(src.subarray(i * stride, i * stride + stride), p * stride));
+    return out;
+  };
+  const patterns: ItemTerms = {
+    n: P, k,
+    votes: Int32Array.from(reps.map((i) => t.votes[i])),
+    counts: pick(t.counts, k),
+    agree: pick(t.agree, 1),
+    occ: pick(t.occ, 1),
+    share: pick(t.share, k),
+    fleissVotes: t.fleissVotes,
+  };
+  return { patterns, patternOf };
+}
+
+/** Like accumulateItemSums, with item i counted weight[i] times (weights ≥ 0). Allocation-free. */
+export function accumulateWeightedItemSums(t: ItemTerms, weight: Float64Array, out: ItemSums, specific = true): ItemSums {
+  const { n, k, votes, counts, agree, occ, share, fleissVotes } = t;
+  out.valueCount.fill(0);
+  out.fleissCount.fill(0);
+  out.shareSum.fill(0);
+  out.specificNum.fill(0);
+  out.specificDen.fill(0);
+  let pairable = 0, agreeSum = 0, occSum = 0, fleissItems = 0, fleissAgreeSum = 0;
+  for (let i = 0; i < n; i++) {
+    const w = weight[i];
+    const m = votes[i];
+    if (w === 0 || m < 2) continue;
+    pairable += w;
+    agreeSum += w * agree[i];
+    occSum += w * occ[i];
+    const isFleiss = m === fleissVotes;
+    if (isFleiss) {
+      fleissItems += w;
+      fleissAgreeSum += w * agree[i];
+    }
+    for (let c = 0; c < k; c++) {
+      const x = counts[i * k + c];
+      out.valueCount[c] += w * x;
+      out.shareSum[c] += w * share[i * k + c];
+      if (isFleiss) out.fleissCount[c] += w * x;
+      if (specific) {
+        out.specificNum[c] += w * x * (x - 1);
+        out.specificDen[c] += w * x * (m - 1);
+      }
+    }
+  }
+  out.pairable = pairable;
+  out.agreeSum = agreeSum;
+  out.occSum = occSum;
+  out.fleissItems = fleissItems;
+  out.fleissAgreeSum = fleissAgreeSum;
+  return out;
 }

@@ -5,7 +5,7 @@ import { detectionFromFlat, encodeReference, fillConfusion, toRows } from './con
 import { AgreementError } from './errors';
 import { fleissKappaFromSums } from './fleiss-kappa';
 import { gwetAC1FromSums } from './gwet-ac1';
-import { accumulateItemSums, itemTerms, newItemSums } from './item-sums';
+import { accumulateItemSums, accumulateWeightedItemSums, compressItems, itemTerms, newItemSums } from './item-sums';
 import { krippendorffAlphaFromSums } from './krippendorff-alpha';
 import { pabakFromSums } from './pabak';
 import { percentAgreementFromSums, specificAgreementFromSums } from './percent-agreement';
@@ -96,9 +96,14 @@ export function studyAgreement(input: StudyAgreementInput): StudyAgreement {
 
   let cis: (ConfidenceInterval | null)[] = [null, null, null, null, null];
   if (input.bootstrap !== false) {
+    // A resample is a histogram over the few distinct per-item count vectors (compressItems).
+    const { patterns, patternOf } = compressItems(terms);
+    const weight = new Float64Array(patterns.n);
     const scratch = newItemSums(k);
     cis = bootstrapVector(n, 5, (idx, len, out) => {
-      accumulateItemSums(terms, idx, len, scratch);
+      weight.fill(0);
+      for (let s = 0; s < len; s++) weight[patternOf[idx[s]]] += 1;
+      accumulateWeightedItemSums(patterns, weight, scratch, false);
       const pa = scratch.pairable >= 2 ? scratch.agreeSum / scratch.pairable : NaN;
       out[0] = pa;
       out[1] = fleissKappaFromSums(scratch, terms.fleissVotes).value ?? NaN;
