@@ -84,9 +84,12 @@ export function unreachableMessage(s: Pick<DbSettings, 'host' | 'port' | 'extern
 /**
  * mysql2 typeCast: TINYINT(1) (knex `boolean`) comes back as a JS boolean (null stays null);
  * every other column is left to mysql2 (wider TINYINTs such as a vote's confidence stay numbers,
- * BLOBs are Buffers, DATETIME(3) are Dates read as UTC). JSON columns are NOT cast here: MariaDB's
- * JSON is LONGTEXT with a json_valid CHECK, and the wire protocol does not mark it as JSON, so it
- * arrives as a string — read it with `parseJson` from '@/lib/db/knex'.
+ * BLOBs are Buffers, DATETIME(3) are Dates read as UTC, DECIMALs are numbers).
+ * JSON: MariaDB's JSON is LONGTEXT with a json_valid CHECK, but MariaDB 10.5+ marks such columns
+ * (and JSON-valued expressions) with the extended format "json", and mysql2 3.x parses them, so
+ * they arrive as objects/arrays. Where a string can still turn up (GROUP_CONCAT, plain TEXT
+ * holding JSON, another driver setting) read it with `parseJson` from '@/lib/db/knex', which
+ * passes parsed values through. Writes must be strings: `toJson(value)`.
  */
 export function typeCast(
   field: { type: string; length: number; string(): string | null },

@@ -4,8 +4,9 @@
  *
  * Conventions (MariaDB, not Postgres): no `.returning()` — read the inserted id back
  * (`const [id] = await db('users').insert(row)`); booleans are TINYINT(1) and arrive as JS
- * booleans (see typeCast in ./config); JSON columns arrive as strings — use `parseJson`;
- * DATETIME(3) columns are UTC and arrive as Date objects.
+ * booleans (see typeCast in ./config); JSON columns arrive parsed (mysql2 reads MariaDB's "json"
+ * column format) — still read them through `parseJson`, which also accepts strings, and write
+ * them with `toJson`; DATETIME(3) columns are UTC and arrive as Date objects.
  */
 import knex, { type Knex } from 'knex';
 import {
@@ -66,8 +67,9 @@ export async function checkDatabase(conn: Knex = db, settings: DbSettings = reso
 }
 
 /**
- * Parses a JSON column. MariaDB stores JSON as LONGTEXT, so mysql2 returns a string (or a Buffer
- * for binary collations); already-parsed values pass through; SQL NULL gives `fallback`.
+ * Reads a JSON value: values mysql2 already parsed pass through; strings (JSON held in TEXT,
+ * GROUP_CONCAT, drivers without MariaDB's format metadata) and Buffers are parsed;
+ * SQL NULL gives `fallback`.
  */
 export function parseJson<T = unknown>(value: unknown, fallback: T | null = null): T | null {
   if (value === null || value === undefined) return fallback;
