@@ -6,8 +6,8 @@ import { sizeSpec } from './sizes';
 import { buildSources, MAP_FLOOR } from './sources';
 import type { Phantom, PhantomOptions } from './types';
 
-/** Thermal-noise SD after smoothing, as a fraction of the grey-matter baseline (≈ tSNR 80). */
-export const THERMAL_NOISE_FRACTION = 0.012;
+/** Thermal-noise SD after smoothing, as a fraction of the grey-matter baseline (tSNR ≈ 120). */
+export const THERMAL_NOISE_FRACTION = 0.008;
 /** Mild separable smoothing kernel applied to the thermal noise along each axis. */
 const KERNEL: [number, number, number] = [0.15, 0.7, 0.15];
 const TABLE_SIZE = 8192;

@@ -7,6 +7,20 @@ import { childSeed, createRng, type Rng } from './random';
 import { bandLimitedNoise, scale, sliceDropout, zscore } from './time-courses';
 import type { PhantomSource } from './types';
 
+/**
+ * Source amplitudes: SD of each time course as a fraction of the local baseline at map weight 1
+ * (the slice entry is the dropout depth). Chosen so spatial ICA recovers every source at these
+ * sizes while thermal noise (generate.ts) stays at a realistic level.
+ */
+export const AMPLITUDE = {
+  network: [0.03, 0.04] as [number, number],
+  rim: 0.035,
+  pulsation: 0.045,
+  vascular: 0.04,
+  whiteMatter: 0.02,
+  sliceDropout: 0.08,
+};
+
 /** Maps are zeroed below this |weight| so they are sparse (heavy-tailed, as spatial ICA needs). */
 export const MAP_FLOOR = 0.01;
 
@@ -100,9 +114,9 @@ export interface BuildSourcesInput {
 
 /**
  * Builds every truth source for one run. Time courses are fractional signal changes (see
- * PhantomSource): networks 0.01–0.09 Hz (1/f-like), amplitude 2–3 %; rim from the motion (3 %);
- * ventricular pulsation narrow-band at a per-run 0.20–0.24 Hz (4 %); sagittal-sinus strip broadband
- * 0.05–0.2 Hz (3.5 %); white-matter drift below 0.02 Hz (1.5 %); one slice with periodic 8 % dropouts.
+ * PhantomSource; amplitudes in AMPLITUDE): networks 0.01–0.09 Hz (1/f-like); rim from the motion;
+ * ventricular pulsation narrow-band at a per-run 0.20–0.24 Hz; sagittal-sinus strip broadband
+ * 0.05–0.2 Hz; white-matter drift below 0.02 Hz plus a linear trend; one slice with periodic dropouts.
  */
 export function buildSources(input: BuildSourcesInput): PhantomSource[] {
   const { head, nt, trSeconds, motion, motionScale, seed } = input;
@@ -121,7 +135,7 @@ export function buildSources(input: BuildSourcesInput): PhantomSource[] {
     });
     const sigma = net.sigmaMm * s * rng.uniform(0.9, 1.1);
     const map = normaliseMap(blobMap(head, g, centres, sigma));
-    const tc = scale(bandLimitedNoise(nt, trSeconds, 0.01, 0.09, rng, 1), rng.uniform(0.02, 0.03));
+    const tc = scale(bandLimitedNoise(nt, trSeconds, 0.01, 0.09, rng, 1), rng.uniform(...AMPLITUDE.network));
     sources.push({ name: net.name, kind: 'signal', map, timecourse: tc });
   }
 
@@ -139,7 +153,7 @@ export function buildSources(input: BuildSourcesInput): PhantomSource[] {
           const az = Math.atan2(g.ys[j], g.xs[i]);
           map[idx] = Math.exp(-d / (0.7 * meanVoxel)) * (0.75 + 0.25 * Math.cos(2 * az + phase));
         }
-    sources.push({ name: 'motion rim', kind: 'noise', noiseKind: 'motion', map: normaliseMap(map), timecourse: rimTimecourse(motion, 0.03, motionScale, rng) });
+    sources.push({ name: 'motion rim', kind: 'noise', noiseKind: 'motion', map: normaliseMap(map), timecourse: rimTimecourse(motion, AMPLITUDE.rim, motionScale, rng) });
   }
 
   {
@@ -147,7 +161,7 @@ export function buildSources(input: BuildSourcesInput): PhantomSource[] {
     const map = new Float32Array(nv);
     for (let i = 0; i < nv; i++) if (head.tissue[i] === TISSUE.csf) map[i] = 1;
     const f = rng.uniform(0.2, 0.24);
-    const tc = scale(bandLimitedNoise(nt, trSeconds, f - 0.008, f + 0.008, rng), 0.04);
+    const tc = scale(bandLimitedNoise(nt, trSeconds, f - 0.008, f + 0.008, rng), AMPLITUDE.pulsation);
     sources.push({ name: 'ventricular pulsation', kind: 'noise', noiseKind: 'pulsation', map, timecourse: tc });
   }
 
@@ -165,7 +179,7 @@ export function buildSources(input: BuildSourcesInput): PhantomSource[] {
           if (d > 1.2 * meanVoxel) continue;
           map[idx] = Math.exp(-d / meanVoxel) * (1 - (0.5 * Math.abs(g.xs[i])) / halfWidth);
         }
-    const tc = scale(bandLimitedNoise(nt, trSeconds, 0.05, 0.2, rng), 0.035);
+    const tc = scale(bandLimitedNoise(nt, trSeconds, 0.05, 0.2, rng), AMPLITUDE.vascular);
     sources.push({ name: 'sagittal sinus', kind: 'noise', noiseKind: 'vascular', map: normaliseMap(map), timecourse: tc });
   }
 
@@ -186,7 +200,7 @@ export function buildSources(input: BuildSourcesInput): PhantomSource[] {
     const slow = bandLimitedNoise(nt, trSeconds, 0.002, 0.02, rng, 1);
     const sign = rng.next() < 0.5 ? -1 : 1;
     for (let t = 0; t < nt; t++) slow[t] += (sign * (t - (nt - 1) / 2)) / Math.max(1, nt / 3.5);
-    sources.push({ name: 'white-matter drift', kind: 'noise', noiseKind: 'white-matter', map: normaliseMap(map), timecourse: scale(zscore(slow), 0.015) });
+    sources.push({ name: 'white-matter drift', kind: 'noise', noiseKind: 'white-matter', map: normaliseMap(map), timecourse: scale(zscore(slow), AMPLITUDE.whiteMatter) });
   }
 
   {
@@ -200,7 +214,7 @@ export function buildSources(input: BuildSourcesInput): PhantomSource[] {
         if (head.brainMask[idx]) map[idx] = 1;
       }
     const period = 7 + rng.int(6);
-    sources.push({ name: `slice ${zSlice} dropout`, kind: 'noise', noiseKind: 'scanner', map, timecourse: scale(sliceDropout(nt, period, rng), 0.08) });
+    sources.push({ name: `slice ${zSlice} dropout`, kind: 'noise', noiseKind: 'scanner', map, timecourse: scale(sliceDropout(nt, period, rng), AMPLITUDE.sliceDropout) });
   }
   return sources;
 }
