@@ -1,0 +1,45 @@
+import type { Knex } from 'knex';
+import { parseJson } from '@/lib/db/knex';
+import { decideByRule, type ConsensusRule } from './rules';
+
+/**
+ * Recomputes the automatic decision of one component from its votes, inside the caller's
+ * transaction (call it in the same transaction as the vote change). A lead's decision
+ * (reconciled / override) is never replaced by this; everything else follows the study's rule.
+ * Expected raters = the run's assignments (or the protocol's raters per run when none exist).
+ */
+export async function recomputeDecision(trx: Knex.Transaction | Knex, { componentId }: { componentId: number }): Promise<void> {
+  const ctx = await trx('components as c')
+    .join('decompositions as d', 'd.id', 'c.decomposition_id')
+    .join('runs as r', 'r.id', 'd.run_id')
+    .join('studies as s', 's.id', 'r.study_id')
+    .where('c.id', componentId)
+    .first('r.id as runId', 's.consensus_rule as rule', 's.raters_per_run as ratersPerRun', 's.noise_kinds as noiseKinds');
+  if (!ctx) return;
+  const existing = await trx('decisions').where({ component_id: componentId }).forUpdate().first('id', 'method');
+  if (existing && (existing.method === 'reconciled' || existing.method === 'override')) return;
+
+  const [{ assigned }] = await trx('assignments').where({ run_id: ctx.runId }).count({ assigned: '*' });
+  const expected = Number(assigned) || Number(ctx.ratersPerRun);
+  const votes = await trx('votes').where({ component_id: componentId }).select('label', 'noise_kind as noiseKind');
+  const decision = decideByRule(ctx.rule as ConsensusRule, votes, expected, parseJson<string[]>(ctx.noiseKinds, []) ?? []);
+  const row = {
+    label: decision.label,
+    noise_kind: decision.noiseKind,
+    method: decision.method,
+    decided_by: null,
+    reason: null,
+    decided_at: decision.method === 'pending' ? null : trx.fn.now(3),
+  };
+  if (existing) await trx('decisions').where({ id: existing.id }).update(row);
+  else await trx('decisions').insert({ component_id: componentId, run_id: ctx.runId, ...row });
+}
+
+/** Recomputes every component of a run (after assignments change). */
+export async function recomputeRunDecisions(trx: Knex.Transaction | Knex, { runId }: { runId: number }): Promise<void> {
+  const rows = await trx('components as c')
+    .join('decompositions as d', 'd.id', 'c.decomposition_id')
+    .where({ 'd.run_id': runId, 'd.is_current': true })
+    .select('c.id');
+  for (const { id } of rows) await recomputeDecision(trx, { componentId: id });
+}
