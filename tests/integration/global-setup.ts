@@ -44,7 +44,7 @@ export async function recreateDatabase(settings: DbSettings, name: string): Prom
 }
 
 export default async function setup(project: TestProject): Promise<void> {
-  const env = { ...process.env, NODE_ENV: 'test' };
+  const env = { ...process.env, NODE_ENV: 'test' } as NodeJS.ProcessEnv & Record<string, string | undefined>;
   if (!env.DATABASE_URL) {
     execFileSync('bash', [path.join(root, 'scripts/db.sh'), 'start'], { cwd: root, env, stdio: ['ignore', 'pipe', 'inherit'] });
   }
