@@ -1,5 +1,6 @@
 // Registry of CLI commands. Each command lives in its own file and exports a CliCommand.
 import { header } from './header';
+import { agreement } from './agreement';
 export type CliCommand = {
   summary: string;
   /** Runs the command with its arguments; returns the process exit code. */
@@ -8,4 +9,5 @@ export type CliCommand = {
 
 export const commands: Record<string, CliCommand> = {
   header,
+  agreement,
 };
