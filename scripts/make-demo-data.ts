@@ -2,7 +2,7 @@
 // (invented) Fernhollow Imaging Core as BIDS-named phantom runs with motion files and ground truth.
 //
 //   npm run -s demo-data -- --out DIR [--size small|tiny|S|M|L] [--runs 12] [--seed 1]
-//                           [--datatype int16|float32] [--with-broken]
+//                           [--datatype int16|float32] [--with-broken] [--fixture]
 //
 // Per run (all in DIR, flat, so they can be dragged into the upload area together):
 //   <base>_bold.nii.gz                      4D phantom, NIfTI-1 gz (int16, scl_slope 1 by default)
@@ -12,6 +12,8 @@
 //   <base>_desc-truth_maps.nii.gz           the true maps, one volume per source in that order
 // With --with-broken, also sub-12_ses-1_task-rest_bold.nii.gz: a real run whose gzip stream is cut
 // half way through the voxel data (an interrupted copy), for the refused upload in the walkthrough.
+// With --fixture, writes only one run named phantom-<size>-seed<seed> with exactly --seed (no study
+// files): that is how tests/fixtures/phantom/ is made (--size tiny --seed 1).
 // Prints a JSON summary (files, bytes, seconds) on stdout.
 import { mkdir, writeFile, stat } from 'node:fs/promises';
 import path from 'node:path';
@@ -95,6 +97,7 @@ async function main(): Promise<number> {
       seed: { type: 'string', default: '1' },
       datatype: { type: 'string', default: 'int16' },
       'with-broken': { type: 'boolean', default: false },
+      fixture: { type: 'boolean', default: false },
     },
   });
   const fail = (msg: string): number => {
@@ -123,7 +126,8 @@ async function main(): Promise<number> {
   };
   const putText = (name: string, text: string) => put(name, (p) => writeFile(p, text));
 
-  await putText(
+  const fixture = values.fixture === true;
+  if (!fixture) await putText(
     'dataset_description.json',
     JSON.stringify(
       { Name: `${STUDY} (synthetic)`, BIDSVersion: '1.9.0', DatasetType: 'raw', Authors: [FACILITY], GeneratedBy: [{ Name: 'Quorum demo-data generator' }], HowToAcknowledge: CAUTION },
@@ -134,10 +138,11 @@ async function main(): Promise<number> {
 
   let dims: number[] = [];
   let trSeconds = 0;
-  for (const [i, r] of runNames(nRuns).entries()) {
+  const plan = fixture
+    ? [{ base: `phantom-${size}-seed${seed}`, runSeed: seed }]
+    : runNames(nRuns).map((r, i) => ({ base: baseName(r), runSeed: seed * 1000 + i + 1 }));
+  for (const { base, runSeed } of plan) {
     const t0 = performance.now();
-    const runSeed = seed * 1000 + i + 1;
-    const base = baseName(r);
     const p = generatePhantom({ size, seed: runSeed });
     dims = [...p.dims];
     trSeconds = p.trSeconds;
@@ -152,7 +157,7 @@ async function main(): Promise<number> {
   }
 
   let broken: { file: string; fullBytes: number; keptBytes: number } | undefined;
-  if (values['with-broken']) {
+  if (values['with-broken'] && !fixture) {
     const p = generatePhantom({ size, seed: seed * 1000 + 12 });
     const gz = gzipSync(encodeNifti1(phantomToNiftiInput(p, { datatype })), { level: 6 });
     const kept = Math.floor(gz.length / 2);
