@@ -22,3 +22,4 @@ export {
 export { createPrng, type Prng } from './prng';
 export { landisKochBand, type AgreementBand } from './bands';
 export { studyAgreement, type StudyAgreement, type StudyAgreementInput, type StudyItem, type StatWithCI } from './study';
+export { parseRatingsText, parseDelimited, detectFormat, type RatingsFileFormat } from './ratings-file';

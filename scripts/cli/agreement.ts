@@ -3,10 +3,11 @@
 import { readFile } from 'node:fs/promises';
 import { parseArgs } from 'node:util';
 import {
-  AgreementError, bootstrapTableStat, cohenKappa, DEFAULT_RESAMPLES, DEFAULT_SEED, ratingsTableFromVotes, studyAgreement,
+  AgreementError, bootstrapTableStat, cohenKappa, DEFAULT_RESAMPLES, DEFAULT_SEED, detectFormat, parseRatingsText,
+  ratingsTableFromVotes, studyAgreement,
   type StatResult,
 } from '@/lib/agreement';
-import { detectFormat, parseRatingsText } from '@/lib/agreement/ratings-file';
+
 import type { CliCommand } from './index';
 
 const USAGE = 'usage: quorum agreement FILE [--bootstrap N (default 1000, 0 = no intervals)] [--seed S (default 1)] [--categories signal,noise,uncertain]';
