@@ -7,7 +7,6 @@ import {
   ratingsTableFromVotes, studyAgreement,
   type StatResult,
 } from '@/lib/agreement';
-
 import type { CliCommand } from './index';
 
 const USAGE = 'usage: quorum agreement FILE [--bootstrap N (default 1000, 0 = no intervals)] [--seed S (default 1)] [--categories signal,noise,uncertain]';
