@@ -133,6 +133,14 @@ FLUSH PRIVILEGES;
 SQL
 }
 
+# Serialise start/stop/reset: two concurrent starts must not launch two servers on one datadir.
+take_lock() {
+  if command -v flock >/dev/null 2>&1; then
+    exec 9>"$DATA/db.lock"
+    flock -w 120 9 || die "another db.sh is still busy (lock $DATA/db.lock)"
+  fi
+}
+
 external_note() {
   local safe
   safe="$(printf '%s' "$DATABASE_URL" | sed -E 's#(://[^:/@]+):[^@]*@#\1:***@#')"
@@ -170,7 +178,7 @@ cmd_start() {
     --bind-address=127.0.0.1 --socket="$SOCK" --pid-file="$PID_FILE" --log-error="$LOG_FILE" \
     --skip-name-resolve --character-set-server=utf8mb4 --collation-server=utf8mb4_unicode_ci \
     --default-time-zone=+00:00 \
-    </dev/null >>"$LOG_FILE.start" 2>&1 &
+    </dev/null >>"$LOG_FILE.start" 2>&1 9>&- &
   local child=$!
   local i
   for i in $(seq 1 300); do # up to 30 s
@@ -242,10 +250,10 @@ cmd_shell() {
 }
 
 case "${1:-}" in
-  start) cmd_start ;;
-  stop) cmd_stop ;;
+  start) take_lock; cmd_start ;;
+  stop) take_lock; cmd_stop ;;
   status) cmd_status ;;
-  reset) cmd_reset ;;
+  reset) take_lock; cmd_reset ;;
   url) cmd_url ;;
   shell) shift; cmd_shell "$@" ;;
   *)
