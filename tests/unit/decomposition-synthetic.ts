@@ -28,7 +28,7 @@ export function imageFromArray(data: Float32Array, dims: [number, number, number
 }
 
 /**
- * k sparse blob sources (Gaussian blobs with random centres, non-Gaussian spatial distribution),
+ * k sparse blob sources (Gaussian blobs, centres spread along x, non-Gaussian spatial distribution),
  * random smooth-ish time courses, baseline 100, white noise of SD `noise`.
  */
 export function syntheticRun(opts: { dims?: [number, number, number]; T?: number; k?: number; noise?: number; seed?: number } = {}): SyntheticRun {
@@ -43,8 +43,9 @@ export function syntheticRun(opts: { dims?: [number, number, number]; T?: number
   const maps: Float64Array[] = [];
   const tcs: Float64Array[] = [];
   for (let s = 0; s < k; s++) {
-    const cx = u() * nx, cy = u() * ny, cz = u() * nz;
-    const r = 1.5 + u() * 2;
+    // Centres spread along x so the blobs barely overlap (spatially independent sources).
+    const cx = ((s + 0.3 + 0.4 * u()) / k) * nx, cy = (0.25 + 0.5 * u()) * ny, cz = (0.25 + 0.5 * u()) * nz;
+    const r = 0.8 + u() * 0.7;
     const m = new Float64Array(n);
     for (let z = 0; z < nz; z++) for (let y = 0; y < ny; y++) for (let x = 0; x < nx; x++) {
       const d2 = (x - cx) ** 2 + (y - cy) ** 2 + ((z - cz) * 1.5) ** 2;
