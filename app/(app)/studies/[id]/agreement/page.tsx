@@ -1,0 +1,148 @@
+import type { Metadata } from 'next';
+import Link from 'next/link';
+import { notFound } from 'next/navigation';
+import { requirePageUser } from '@/lib/auth/session';
+import { findStudyAccess, leadsStudy } from '@/lib/db/queries/study-access';
+import { loadStudyRatings } from '@/lib/db/queries/agreement';
+import { buildAgreementReport } from '@/lib/reports/agreement-report';
+import { Panel } from '@/components/ui/panel';
+import { Headline } from '@/components/agreement/headline';
+import { PairMatrix } from '@/components/agreement/pair-matrix';
+import { NoiseRateChart, RunHistogram, WeeklyChart } from '@/components/agreement/agreement-charts';
+import { formatStat } from '@/components/agreement/format';
+
+export const metadata: Metadata = { title: 'Agreement' };
+
+const BINS = [-1, 0, 0.2, 0.4, 0.6, 0.8, 1.0001];
+
+export default async function AgreementPage({ params }: { params: Promise<{ id: string }> }) {
+  const user = await requirePageUser('agreement.read');
+  const studyId = Number((await params).id);
+  const access = Number.isInteger(studyId) ? await findStudyAccess({ user, studyId }) : null;
+  if (!access) notFound();
+  const report = buildAgreementReport(await loadStudyRatings({ studyId }));
+  const names = new Map(report.raters.map((r) => [String(r.id), r.name]));
+  const nameOf = (id: string) => names.get(id) ?? `rater ${id}`;
+  const s = report.summary;
+  const histogram = BINS.slice(0, -1).map((lo, i) => ({
+    bin: i === 0 ? '< 0' : `${lo.toFixed(1)}–${Math.min(1, BINS[i + 1]).toFixed(1)}`,
+    runs: report.runs.filter((r) => r.krippendorffAlpha.value != null && r.krippendorffAlpha.value >= lo && r.krippendorffAlpha.value < BINS[i + 1]).length,
+  }));
+
+  return (
+    <div className="flex flex-col gap-6">
+      <header className="flex flex-wrap items-end justify-between gap-3">
+        <div>
+          <p className="text-sm text-ink-muted">
+            <Link href={`/studies/${studyId}`} className="hover:text-ink">
+              {access.name}
+            </Link>
+          </p>
+          <h1 className="text-xl font-semibold" data-testid="agreement-heading">
+            Agreement
+          </h1>
+        </div>
+        <div className="flex gap-3 text-sm">
+          <a href={`/api/studies/${studyId}/agreement?format=csv`} className="rounded border border-line-strong px-3 py-1 hover:bg-ground-raised" data-testid="agreement-csv">
+            Numbers as CSV
+          </a>
+          <Link href={`/studies/${studyId}/report`} className="rounded border border-line-strong px-3 py-1 hover:bg-ground-raised">
+            Printable report
+          </Link>
+        </div>
+      </header>
+
+      <Panel title="Decisions">
+        <p className="text-sm" data-testid="decision-counts">
+          {report.decisions.total} components: {report.decisions.unanimous} unanimous, {report.decisions.majority} by majority,{' '}
+          {report.decisions.reconciled + report.decisions.override} decided by a lead,{' '}
+          <span className={report.decisions.pending ? 'text-verdict-uncertain' : ''}>{report.decisions.pending} waiting</span>
+          {report.decisions.pending && leadsStudy(access) ? (
+            <>
+              {' '}
+              — <Link href={`/studies/${studyId}/reconcile`} className="text-lumen hover:text-lumen-strong">reconcile them</Link>
+            </>
+          ) : null}
+          .
+        </p>
+      </Panel>
+
+      {!s ? (
+        <Panel title="Not yet">
+          <p className="text-sm text-ink-muted" data-testid="agreement-unavailable">
+            {report.unavailable}
+          </p>
+        </Panel>
+      ) : (
+        <>
+          <Headline stats={s.overall} />
+          <p className="text-xs text-ink-faint">
+            Over {s.items} components and {s.raters.length} raters; votes count once a rater has submitted the run. Intervals: percentile
+            bootstrap over components, 1000 resamples, seed 1. Bands after Landis &amp; Koch (1977), upper bounds inclusive. Signal/noise labels
+            are imbalanced, so read κ beside PABAK and AC1.
+          </p>
+          <div className="grid gap-6 lg:grid-cols-2">
+            <Panel title="Rater pairs (Cohen's κ)">
+              <PairMatrix pairs={s.pairs} raters={s.raters} nameOf={nameOf} />
+            </Panel>
+            <Panel title="Each rater against the decisions">
+              <table className="mb-3 w-full text-sm" data-testid="vs-decision">
+                <thead className="text-xs text-ink-faint">
+                  <tr>
+                    <th className="text-left font-medium">Rater</th>
+                    <th className="font-medium">κ</th>
+                    <th className="font-medium">noise sensitivity</th>
+                    <th className="font-medium">specificity</th>
+                    <th className="font-medium">noise rate</th>
+                  </tr>
+                </thead>
+                <tbody className="font-mono">
+                  {s.vsDecision.map((r) => (
+                    <tr key={r.rater}>
+                      <td className="font-sans">{nameOf(r.rater)}</td>
+                      <td className="text-center">{formatStat(r.cohenKappa, 2)}</td>
+                      <td className="text-center">{formatStat(r.sensitivity, 2)}</td>
+                      <td className="text-center">{formatStat(r.specificity, 2)}</td>
+                      <td className="text-center">{formatStat(r.noiseRate, 2)}</td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+              <NoiseRateChart data={s.vsDecision.map((r) => ({ name: nameOf(r.rater), noiseRate: r.noiseRate.value, kappa: r.cohenKappa.value }))} />
+            </Panel>
+            <Panel title="Agreement per run (α)">
+              <RunHistogram data={histogram} />
+              <table className="mt-3 w-full text-sm" data-testid="run-agreement">
+                <tbody>
+                  {report.runs.map((r) => (
+                    <tr key={r.runId}>
+                      <td className="font-mono">{r.name}</td>
+                      <td className="text-right font-mono">{formatStat(r.krippendorffAlpha, 2)}</td>
+                      <td className="text-right text-ink-faint">{r.items} components</td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </Panel>
+            <Panel title="Over time (by week of the last vote)">
+              <WeeklyChart data={report.weeks.map((w) => ({ week: w.week, alpha: w.krippendorffAlpha.value, percent: w.percentAgreement.value, items: w.items }))} />
+            </Panel>
+            <Panel title="By decided noise kind (percent agreement)">
+              <table className="w-full text-sm">
+                <tbody>
+                  {report.byNoiseKind.map((k) => (
+                    <tr key={k.noiseKind}>
+                      <td>{k.noiseKind}</td>
+                      <td className="text-right font-mono">{formatStat(k.percentAgreement, 2)}</td>
+                      <td className="text-right text-ink-faint">{k.items} components</td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </Panel>
+          </div>
+        </>
+      )}
+    </div>
+  );
+}

@@ -1,0 +1,67 @@
+import 'server-only';
+import { db, parseJson } from '@/lib/db/knex';
+
+export type VoteRecord = {
+  componentId: number;
+  runId: number;
+  raterId: number;
+  raterName: string;
+  label: string;
+  noiseKind: string | null;
+  updatedAt: Date;
+};
+
+export type DecisionRecord = { componentId: number; runId: number; label: string | null; noiseKind: string | null; method: string };
+
+/**
+ * The votes of a study that count for agreement: votes on the current decomposition of each run,
+ * from raters who have submitted that run (work in progress does not move the numbers), and the
+ * decisions of those components. Optionally limited to some runs (a run release).
+ */
+export async function loadStudyRatings({ studyId, runIds }: { studyId: number; runIds?: number[] }) {
+  const study = await db('studies').where({ id: studyId }).first('label_set as labelSet', 'noise_kinds as noiseKinds', 'name');
+  const scope = <T extends { whereIn: (c: string, v: number[]) => T }>(q: T) => (runIds ? q.whereIn('r.id', runIds) : q);
+  const votes: VoteRecord[] = await scope(
+    db('votes as v')
+      .join('components as c', 'c.id', 'v.component_id')
+      .join('decompositions as d', 'd.id', 'c.decomposition_id')
+      .join('runs as r', 'r.id', 'd.run_id')
+      .join('assignments as a', function () {
+        this.on('a.run_id', 'r.id').andOn('a.rater_id', 'v.rater_id');
+      })
+      .join('users as u', 'u.id', 'v.rater_id')
+      .where({ 'r.study_id': studyId, 'd.is_current': true })
+      .whereNotNull('a.submitted_at'),
+  ).select(
+    'v.component_id as componentId',
+    'r.id as runId',
+    'v.rater_id as raterId',
+    'u.name as raterName',
+    'v.label',
+    'v.noise_kind as noiseKind',
+    'v.updated_at as updatedAt',
+  );
+  const decisions: DecisionRecord[] = await scope(
+    db('decisions as x')
+      .join('components as c', 'c.id', 'x.component_id')
+      .join('decompositions as d', 'd.id', 'c.decomposition_id')
+      .join('runs as r', 'r.id', 'd.run_id')
+      .where({ 'r.study_id': studyId, 'd.is_current': true }),
+  ).select('x.component_id as componentId', 'r.id as runId', 'x.label', 'x.noise_kind as noiseKind', 'x.method');
+  const runs = await scope(db('runs as r').where('r.study_id', studyId)).select(
+    'r.id',
+    'r.sub',
+    'r.ses',
+    'r.task',
+    'r.acq',
+    'r.run_label as runLabel',
+  );
+  return {
+    studyName: study?.name as string,
+    categories: parseJson<string[]>(study?.labelSet, ['signal', 'noise', 'uncertain']) ?? [],
+    noiseKinds: parseJson<string[]>(study?.noiseKinds, []) ?? [],
+    votes,
+    decisions,
+    runs,
+  };
+}
