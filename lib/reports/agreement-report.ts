@@ -1,4 +1,4 @@
-import { studyAgreement, type StudyAgreement, type StatResult } from '@/lib/agreement';
+import { AgreementError, studyAgreement, type StudyAgreement, type StatResult } from '@/lib/agreement';
 import { bidsName, type BidsEntities } from '@/lib/bids';
 
 export type RatingsInput = {
@@ -63,18 +63,30 @@ export function buildAgreementReport(input: RatingsInput, opts: { resamples?: nu
   if (raters.length < 2 || items.length < 2) {
     return { ...empty, unavailable: 'Agreement needs at least two raters who have submitted the same runs.' };
   }
-  const summary = studyAgreement({
-    categories: input.categories,
-    items,
-    bootstrap: { resamples: opts.resamples ?? 1000, seed: opts.seed ?? 1 },
-  });
+  let summary: StudyAgreement;
+  try {
+    summary = studyAgreement({
+      categories: input.categories,
+      items,
+      bootstrap: { resamples: opts.resamples ?? 1000, seed: opts.seed ?? 1 },
+    });
+  } catch (err) {
+    if (!(err instanceof AgreementError)) throw err;
+    return { ...empty, unavailable: `Agreement cannot be computed yet: ${err.message}.` };
+  }
   const runName = new Map(input.runs.map((r) => [String(r.id), bidsName(r)]));
   const runs = summary.runs.map((r) => ({ ...r, runId: Number(r.runId), name: runName.get(r.runId) ?? `run ${r.runId}` }));
 
   const subset = (keep: (id: number) => boolean) => {
     const chosen = items.filter((it) => keep(Number(it.id)));
-    const s = studyAgreement({ categories: input.categories, items: chosen, bootstrap: false });
-    return { items: chosen.length, krippendorffAlpha: s.overall.krippendorffAlpha, percentAgreement: s.overall.percentAgreement };
+    try {
+      const s = studyAgreement({ categories: input.categories, items: chosen, bootstrap: false });
+      return { items: chosen.length, krippendorffAlpha: s.overall.krippendorffAlpha, percentAgreement: s.overall.percentAgreement };
+    } catch (err) {
+      if (!(err instanceof AgreementError)) throw err;
+      const none: StatResult = { value: null, reason: err.message, n: chosen.length };
+      return { items: chosen.length, krippendorffAlpha: none, percentAgreement: none };
+    }
   };
   const weekOf = new Map([...byComponent.entries()].map(([id, it]) => [id, isoWeek(it.last)]));
   const weeks = [...new Set(weekOf.values())].sort().map((week) => {
