@@ -1,0 +1,244 @@
+/**
+ * Job kind `decompose` (payload { runId, decompositionOptions? }): reads the run's NIfTI (and its
+ * mask and motion table) from storage, decomposes it under the study's protocol, writes the
+ * outputs to a fresh storage directory and — in one transaction that also completes the job —
+ * replaces the run's current decomposition, inserts its components, sets the run ready and
+ * assigns raters. A retried or duplicated attempt therefore never leaves two sets of components.
+ * Progress stages: reading, masking, pca, ica, features, writing.
+ */
+import { readFile } from 'node:fs/promises';
+import type { Knex } from 'knex';
+import { dropInitialVolumes, parseMotionFile, type MotionOrder, type MotionParams } from '@/lib/decomposition/motion';
+import { decomposeRun, type DecomposeOptions } from '@/lib/decomposition/pipeline';
+import { readNiftiFile, type NiftiImage } from '@/lib/nifti';
+import { assignRaters, type AssignRatersResult } from '@/lib/runs/assign-raters';
+import {
+  componentRows,
+  decompositionSummary,
+  storeDecomposition,
+  writeDecompositionFiles,
+} from '@/lib/runs/ingest-decomposition';
+import { pathFor, removeKey } from '@/lib/storage';
+import { JobError, PermanentJobError } from '../errors';
+import { decomposePayloadSchema, type DecomposePayload } from '../payloads';
+import { enqueueJob } from '../queue';
+import { defineJobKind } from '../types';
+
+/** Which of our stages an engine stage (reported when it has finished) leads into. */
+const NEXT_STAGE: Record<string, string> = {
+  mean: 'masking',
+  mask: 'pca',
+  matrix: 'pca',
+  smoothness: 'pca',
+  covariance: 'pca',
+  pca: 'pca',
+  dimensionality: 'pca',
+  whitening: 'ica',
+  ica: 'ica',
+  orient: 'features',
+};
+
+interface ProtocolRow {
+  drop_volumes: number;
+  dim_method: 'laplace' | 'aic' | 'mdl' | 'fixed' | 'variance';
+  fixed_components: number | null;
+  variance_fraction: number | null;
+  variance_norm: boolean;
+  detrend: boolean;
+}
+
+/** The engine's options from the study protocol with the payload's overrides on top. */
+export function decomposeOptionsFor(protocol: ProtocolRow, o: DecomposePayload['decompositionOptions'] = {}): DecomposeOptions {
+  const opts: DecomposeOptions = {
+    drop: o.drop ?? Number(protocol.drop_volumes ?? 0),
+    detrend: o.detrend ?? Boolean(protocol.detrend),
+    varianceNorm: o.varianceNorm ?? Boolean(protocol.variance_norm),
+    seed: o.seed ?? 1,
+    contrast: o.contrast ?? 'logcosh',
+    tol: o.tol ?? 1e-4,
+    maxIter: o.maxIter ?? 200,
+  };
+  if (o.components !== undefined || o.dimMethod !== undefined || o.varianceFraction !== undefined) {
+    opts.components = o.components ?? 'auto';
+    opts.dimMethod = o.varianceFraction !== undefined ? { variance: o.varianceFraction } : (o.dimMethod ?? 'laplace');
+  } else if (protocol.dim_method === 'fixed') {
+    if (!protocol.fixed_components) throw new PermanentJobError('The study protocol asks for a fixed number of components but gives none; set it in the protocol.');
+    opts.components = Number(protocol.fixed_components);
+    opts.dimMethod = 'laplace';
+  } else if (protocol.dim_method === 'variance') {
+    const f = Number(protocol.variance_fraction);
+    if (!(f > 0 && f < 1)) throw new PermanentJobError('The study protocol asks for a variance fraction but gives none between 0 and 1; set it in the protocol.');
+    opts.components = 'auto';
+    opts.dimMethod = { variance: f };
+  } else {
+    opts.components = 'auto';
+    opts.dimMethod = protocol.dim_method;
+  }
+  const threads = Number(process.env.QUORUM_DECOMPOSE_THREADS);
+  if (Number.isInteger(threads) && threads > 0) opts.threads = threads;
+  return opts;
+}
+
+/** runs.motion_order ("rot-first", "trans-first" or a column list such as "rx,ry,rz,tx,ty,tz"). */
+export function motionOrderOf(value: string | null): MotionOrder {
+  const v = (value ?? 'rot-first').trim().toLowerCase();
+  if (v === 'rot-first' || v === 'trans-first') return v;
+  if (/^r/.test(v)) return 'rot-first';
+  if (/^t/.test(v)) return 'trans-first';
+  throw new PermanentJobError(`The run's motion column order "${value}" is not understood; use rx,ry,rz,tx,ty,tz or tx,ty,tz,rx,ry,rz.`);
+}
+
+async function readStored<T>(what: string, key: string, read: (path: string) => Promise<T>): Promise<T> {
+  let path: string;
+  try {
+    path = pathFor(key);
+  } catch (err) {
+    throw new PermanentJobError(`The ${what} has an invalid storage key; upload it again.`, { cause: err });
+  }
+  try {
+    return await read(path);
+  } catch (err) {
+    const code = (err as { code?: string }).code;
+    if (code === 'ENOENT') throw new JobError(`The ${what} is missing from storage; upload it again.`, { cause: err });
+    if (code === 'EACCES' || code === 'EPERM') throw new JobError(`The ${what} cannot be read (permission denied on the storage).`, { cause: err });
+    if (err instanceof Error && err.name === 'NiftiError') throw new JobError(`The ${what} cannot be read: ${err.message}`, { cause: err });
+    throw err;
+  }
+}
+
+export const decomposeKind = defineJobKind({
+  kind: 'decompose',
+  payloadSchema: decomposePayloadSchema,
+  async run(ctx) {
+    const { db, payload } = ctx;
+    const runId = payload.runId;
+    const run = await db('runs')
+      .select('id', 'study_id', 'file_key', 'mask_key', 'motion_key', 'motion_order', 'motion_rotation_units', 'status')
+      .where({ id: runId })
+      .first();
+    if (!run) throw new PermanentJobError(`Run ${runId} no longer exists.`);
+    const protocol = (await db('studies')
+      .select('drop_volumes', 'dim_method', 'fixed_components', 'variance_fraction', 'variance_norm', 'detrend')
+      .where({ id: run.study_id })
+      .first()) as ProtocolRow | undefined;
+    if (!protocol) throw new PermanentJobError(`The study of run ${runId} no longer exists.`);
+    const options = decomposeOptionsFor(protocol, payload.decompositionOptions);
+
+    await ctx.progress('reading', 1);
+    await db('runs').where({ id: runId }).update({ status: 'processing', status_message: null });
+    const image: NiftiImage = await readStored("run's file", run.file_key, (p) => readNiftiFile(p));
+    ctx.throwIfStopped();
+    let mask: Uint8Array | undefined;
+    if (run.mask_key) {
+      const m = await readStored("run's mask", run.mask_key, (p) => readNiftiFile(p));
+      if (m.voxelsPerVolume !== image.voxelsPerVolume) {
+        throw new PermanentJobError(`The mask has ${m.nx} × ${m.ny} × ${m.nz} voxels but the run has ${image.nx} × ${image.ny} × ${image.nz}; upload a mask on the run's grid.`);
+      }
+      const vol = m.readVolume(0);
+      mask = new Uint8Array(vol.length);
+      for (let i = 0; i < vol.length; i++) mask[i] = vol[i] !== 0 && Number.isFinite(vol[i]) ? 1 : 0;
+    }
+    let motion: MotionParams | undefined;
+    if (run.motion_key) {
+      const text = await readStored("run's motion table", run.motion_key, (p) => readFile(p, 'utf8'));
+      try {
+        const full = parseMotionFile(text, {
+          order: motionOrderOf(run.motion_order),
+          rotationUnits: run.motion_rotation_units ?? 'radians',
+          expectedRows: image.nt,
+        });
+        motion = dropInitialVolumes(full, options.drop ?? 0);
+      } catch (err) {
+        if (err instanceof Error && err.name === 'MotionFileError') throw new PermanentJobError(err.message, { cause: err });
+        throw err;
+      }
+    }
+    await ctx.progress('masking', 5);
+
+    const started = Date.now();
+    const result = await decomposeRun({ image, mask, motion }, options, (stage, pct) =>
+      ctx.progressSync(NEXT_STAGE[stage] ?? stage, 5 + pct * 0.75),
+    );
+    ctx.throwIfStopped();
+    await ctx.progress('features', 82);
+    const components = componentRows(result, motion);
+    await ctx.progress('writing', 90);
+    const files = await writeDecompositionFiles(result, image.header);
+    const parameters = {
+      engine: 'quorum-decomposition',
+      mask: mask ? 'uploaded' : 'automatic',
+      dropVolumes: result.droppedVolumes,
+      detrend: result.detrended,
+      varianceNorm: result.varianceNormalised,
+      components: options.components,
+      dimMethod: options.dimMethod,
+      dimMethodUsed: result.dimMethod,
+      seed: result.requestedSeed,
+      seedUsed: result.seed,
+      contrast: result.contrast,
+      tol: result.tol,
+      maxIter: result.maxIter,
+      threads: result.threads,
+      trSeconds: result.trSeconds,
+      motion: motion ? { order: motionOrderOf(run.motion_order), rotationUnits: run.motion_rotation_units ?? 'radians' } : null,
+      overrides: payload.decompositionOptions ?? null,
+      jobId: ctx.job.id,
+      attempt: ctx.job.attempts,
+    };
+    try {
+      const stored = await ctx.commit(
+        async (trx) => {
+          const decompositionId = await storeDecomposition(trx, {
+            runId,
+            parameters,
+            summary: decompositionSummary(result),
+            files,
+            components,
+          });
+          const assignment: AssignRatersResult = await assignRaters(trx, { runId });
+          return { decompositionId, assignment };
+        },
+        (v) => ({ decompositionId: v.decompositionId, k: result.k, raters: v.assignment.raterIds, assignment: v.assignment.outcome }),
+      );
+      ctx.logger.info(
+        `run ${runId}: ${result.k} components in ${((Date.now() - started) / 1000).toFixed(1)} s (decomposition ${stored.decompositionId}, ${stored.assignment.outcome})`,
+      );
+      return stored;
+    } catch (err) {
+      await removeKey(files.dirKey).catch(() => undefined);
+      throw err;
+    }
+  },
+});
+
+/**
+ * For route handlers: queues a decomposition of a run and sets the run's status to queued, in one
+ * transaction. When a decompose job for the run is already queued or running, returns that job's
+ * id instead of adding another.
+ */
+export async function enqueueDecomposition(
+  db: Knex,
+  opts: { runId: number; createdBy?: number | null; decompositionOptions?: DecomposePayload['decompositionOptions']; priority?: number; maxAttempts?: number },
+): Promise<{ jobId: number; existing: boolean }> {
+  return db.transaction(async (trx) => {
+    const run = await trx('runs').select('id', 'study_id').where({ id: opts.runId }).forUpdate().first();
+    if (!run) throw new PermanentJobError(`Run ${opts.runId} does not exist.`);
+    const active = await trx('jobs')
+      .select('id')
+      .where({ run_id: opts.runId, kind: 'decompose' })
+      .whereIn('status', ['queued', 'running'])
+      .first();
+    if (active) return { jobId: Number(active.id), existing: true };
+    const jobId = await enqueueJob(trx, {
+      kind: 'decompose',
+      payload: { runId: opts.runId, ...(opts.decompositionOptions ? { decompositionOptions: opts.decompositionOptions } : {}) },
+      runId: opts.runId,
+      studyId: Number(run.study_id),
+      createdBy: opts.createdBy ?? null,
+      priority: opts.priority,
+      maxAttempts: opts.maxAttempts,
+    });
+    await trx('runs').where({ id: opts.runId }).update({ status: 'queued', status_message: null });
+    return { jobId, existing: false };
+  });
+}

@@ -1,0 +1,7 @@
+// The registry of job kinds the worker can run. Add a kind here and its payload schema in ../payloads.ts.
+import type { JobKind } from '../types';
+import { decomposeKind } from './decompose';
+
+export const jobKinds: Readonly<Record<string, JobKind>> = {
+  [decomposeKind.kind]: decomposeKind as unknown as JobKind,
+};

@@ -1,0 +1,170 @@
+/**
+ * The worker loop (scripts/worker.ts is its command line): claim a due job, run it under a
+ * renewed lease, repeat; poll when idle; re-queue expired leases of dead workers now and then.
+ * Stateless — any number of workers on any machines share one database and one storage root.
+ */
+import { hostname } from 'node:os';
+import { randomBytes } from 'node:crypto';
+import type { Knex } from 'knex';
+import { claimJob, releaseJob, requeueExpiredLeases, type Job } from './queue';
+import { readableMessage, runClaimedJob, type RunOutcome } from './runner';
+import type { JobKind, JobLogger } from './types';
+
+export interface WorkerOptions {
+  db: Knex;
+  kinds: Readonly<Record<string, JobKind>>;
+  workerId?: string;
+  /** Lease length (ms); renewed every lease/3. Default 30 000. */
+  leaseMs?: number;
+  /** Idle poll interval (ms). Default 500. */
+  pollMs?: number;
+  /** How often to re-queue expired leases (ms). Default: the lease length. */
+  sweepMs?: number;
+  retryBaseMs?: number;
+  /** Exit when no job of these kinds is queued or running any more (tests, batch). */
+  once?: boolean;
+  logger?: JobLogger;
+  /** Called for every job start and end (one line each). */
+  onLine?: (line: string) => void;
+}
+
+export function defaultWorkerId(): string {
+  return `${hostname()}:${process.pid}:${randomBytes(3).toString('hex')}`;
+}
+
+const consoleLogger: JobLogger = {
+  info: (m) => console.log(m),
+  warn: (m) => console.warn(m),
+  error: (m) => console.error(m),
+};
+
+export interface WorkerHandle {
+  workerId: string;
+  /** Resolves when the loop has ended. */
+  done: Promise<{ processed: number }>;
+  /**
+   * Stops the loop: a running job is released back to the queue (its attempt not counted) and
+   * the kind is told to stop. Resolves when released; the loop ends when the kind returns.
+   */
+  stop(): Promise<void>;
+  current(): Job | null;
+}
+
+function sleep(ms: number, signal: AbortSignal): Promise<void> {
+  return new Promise((resolve) => {
+    if (signal.aborted) return resolve();
+    const t = setTimeout(done, ms);
+    function done() {
+      clearTimeout(t);
+      signal.removeEventListener('abort', done);
+      resolve();
+    }
+    signal.addEventListener('abort', done, { once: true });
+  });
+}
+
+/** Starts the loop and returns a handle (the loop runs until stop() or, with once, an empty queue). */
+export function startWorker(opts: WorkerOptions): WorkerHandle {
+  const db = opts.db;
+  const workerId = opts.workerId ?? defaultWorkerId();
+  const leaseMs = opts.leaseMs ?? 30_000;
+  const pollMs = opts.pollMs ?? 500;
+  const sweepMs = opts.sweepMs ?? leaseMs;
+  const logger = opts.logger ?? consoleLogger;
+  const line = opts.onLine ?? ((l: string) => logger.info(l));
+  const kindNames = Object.keys(opts.kinds);
+  const stopping = new AbortController();
+  const jobStop = { controller: new AbortController() };
+  let current: Job | null = null;
+
+  const sweep = async () => {
+    try {
+      const { requeued, failed } = await requeueExpiredLeases(db);
+      if (requeued.length) line(`worker ${workerId}: re-queued job ${requeued.join(', ')} (lease expired)`);
+      if (failed.length) line(`worker ${workerId}: job ${failed.join(', ')} failed (lease expired, no attempts left)`);
+    } catch (err) {
+      logger.warn(`worker ${workerId}: lease sweep failed: ${readableMessage(err)}`);
+    }
+  };
+
+  const pending = async (): Promise<number> => {
+    const row = await db('jobs').whereIn('status', ['queued', 'running']).whereIn('kind', kindNames).count({ n: '*' }).first();
+    return Number(row?.n ?? 0);
+  };
+
+  const loop = async () => {
+    let processed = 0;
+    let lastSweep = 0;
+    while (!stopping.signal.aborted) {
+      if (Date.now() - lastSweep >= sweepMs) {
+        lastSweep = Date.now();
+        await sweep();
+      }
+      let job: Job | null = null;
+      try {
+        job = await claimJob(db, { workerId, kinds: kindNames, leaseMs });
+      } catch (err) {
+        logger.error(`worker ${workerId}: cannot claim a job: ${readableMessage(err)}`);
+        await sleep(Math.max(pollMs, 2_000), stopping.signal);
+        continue;
+      }
+      if (!job) {
+        if (opts.once && (await pending()) === 0) break;
+        await sleep(pollMs, stopping.signal);
+        continue;
+      }
+      current = job;
+      jobStop.controller = new AbortController();
+      const t0 = Date.now();
+      line(`job ${job.id} ${job.kind} started (attempt ${job.attempts}/${job.maxAttempts}${job.runId ? `, run ${job.runId}` : ''}) by ${workerId}`);
+      let outcome: RunOutcome | 'error';
+      try {
+        outcome = await runClaimedJob(db, job, {
+          workerId,
+          leaseMs,
+          kinds: opts.kinds,
+          logger,
+          retryBaseMs: opts.retryBaseMs,
+          stopSignal: jobStop.controller.signal,
+        });
+      } catch (err) {
+        // the database went away while recording the outcome: the lease will expire and another
+        // worker (or this one) takes the job again
+        logger.error(`job ${job.id}: could not record the outcome: ${readableMessage(err)}`);
+        outcome = 'error';
+      }
+      const secs = ((Date.now() - t0) / 1000).toFixed(1);
+      const words: Record<RunOutcome | 'error', string> = {
+        succeeded: 'succeeded',
+        retry: 'failed; queued for retry',
+        failed: 'failed (no attempts left)',
+        cancelled: 'stopped (cancelled)',
+        lost: 'stopped (lease lost or released)',
+        error: 'ended with an unrecorded outcome',
+      };
+      line(`job ${job.id} ${job.kind} ${words[outcome]} after ${secs} s`);
+      current = null;
+      processed++;
+    }
+    return { processed };
+  };
+
+  const done = loop();
+  return {
+    workerId,
+    done,
+    current: () => current,
+    async stop() {
+      stopping.abort();
+      const job = current;
+      if (job) {
+        try {
+          if (await releaseJob(db, job.id, workerId)) line(`job ${job.id} ${job.kind} released back to the queue`);
+        } catch (err) {
+          logger.error(`job ${job.id}: could not release: ${readableMessage(err)}`);
+        }
+        jobStop.controller.abort();
+      }
+    },
+  };
+}

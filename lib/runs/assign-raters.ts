@@ -1,0 +1,61 @@
+/**
+ * Automatic rater assignment for a run from its study's protocol (raters_per_run), balancing open
+ * work: the study's active rater members with the fewest open (unsubmitted) assignments in any
+ * study come first, ties by user id. Framework-free (takes a Knex or a transaction) so the worker
+ * and route handlers share it; a people/notifications module may wrap it (e.g. to send mail for
+ * the `created` assignments).
+ */
+import type { Knex } from 'knex';
+
+export interface AssignRatersResult {
+  /** 'assigned', or why nothing was done. */
+  outcome: 'assigned' | 'already_assigned' | 'no_raters' | 'run_not_found';
+  /** Rater user ids given an assignment now, in the order chosen. */
+  raterIds: number[];
+  /** raters_per_run of the study. */
+  wanted: number;
+  /** How many more raters the protocol asks for than the study has (0 when enough). */
+  short: number;
+}
+
+export async function assignRaters(
+  db: Knex,
+  { runId, assignedBy = null }: { runId: number; assignedBy?: number | null },
+): Promise<AssignRatersResult> {
+  const run = await db('runs as r')
+    .join('studies as s', 's.id', 'r.study_id')
+    .select('r.id', 'r.study_id', 's.raters_per_run')
+    .where('r.id', runId)
+    .first();
+  if (!run) return { outcome: 'run_not_found', raterIds: [], wanted: 0, short: 0 };
+  const wanted = Number(run.raters_per_run);
+  const existing = await db('assignments').where({ run_id: runId }).count({ n: '*' }).first();
+  if (Number(existing?.n ?? 0) > 0) return { outcome: 'already_assigned', raterIds: [], wanted, short: 0 };
+
+  // Locking the study's rater memberships serialises concurrent assignment within one study, so
+  // two runs finishing together see each other's new assignments when balancing.
+  const members = await db('study_members as m')
+    .join('users as u', 'u.id', 'm.user_id')
+    .select('m.user_id')
+    .where({ 'm.study_id': run.study_id, 'm.study_role': 'rater', 'u.active': true })
+    .orderBy('m.user_id')
+    .forUpdate();
+  if (members.length === 0) return { outcome: 'no_raters', raterIds: [], wanted, short: wanted };
+  const ids = members.map((m: { user_id: number }) => Number(m.user_id));
+  const open = await db('assignments')
+    .select('rater_id')
+    .count({ n: '*' })
+    .whereIn('rater_id', ids)
+    .whereNull('submitted_at')
+    .groupBy('rater_id');
+  const openBy = new Map<number, number>(
+    (open as Array<{ rater_id: number; n: number | string }>).map((o) => [Number(o.rater_id), Number(o.n)]),
+  );
+  const chosen = ids
+    .map((id) => ({ id, open: openBy.get(id) ?? 0 }))
+    .sort((a, b) => a.open - b.open || a.id - b.id)
+    .slice(0, wanted)
+    .map((r) => r.id);
+  await db('assignments').insert(chosen.map((raterId) => ({ run_id: runId, rater_id: raterId, assigned_by: assignedBy })));
+  return { outcome: 'assigned', raterIds: chosen, wanted, short: Math.max(0, wanted - chosen.length) };
+}

@@ -1,0 +1,184 @@
+/**
+ * Storing a finished decomposition of a run: the NIfTI outputs in a fresh storage directory, then
+ * the decomposition row and its component rows in the caller's transaction.
+ */
+import type { Knex } from 'knex';
+import { float32ToBlob, toJson } from '@/lib/db/knex';
+import { computeComponentFeatures, type ComponentFeatures } from '@/lib/decomposition/features';
+import type { MotionParams } from '@/lib/decomposition/motion';
+import type { DecompositionResult } from '@/lib/decomposition/pipeline';
+import { powerSpectrum } from '@/lib/decomposition/spectrum';
+import { writeNiftiFile, type NiftiHeader } from '@/lib/nifti';
+import { childKey, ensureDirFor, newKey, pathFor, removeKey } from '@/lib/storage';
+
+export interface ComponentRow {
+  /** 1..k by variance explained. */
+  idx: number;
+  varianceExplained: number;
+  features: ComponentFeatures;
+  /** Length T (kept volumes). */
+  timecourse: Float32Array;
+  /** Welch power, (units of the time course)² / Hz. */
+  spectrum: Float32Array;
+  /** Hz. */
+  frequencies: Float32Array;
+}
+
+/**
+ * Per component: its time course (column c of the T × k mixing matrix), Welch power spectrum and
+ * rater features. `motion` must already have the dropped initial volumes removed (length T).
+ */
+export function componentRows(result: DecompositionResult, motion?: MotionParams): ComponentRow[] {
+  const { k, timepoints: T, voxelsInMask: V } = result;
+  const rows: ComponentRow[] = [];
+  for (let c = 0; c < k; c++) {
+    const tc = new Float64Array(T);
+    for (let t = 0; t < T; t++) tc[t] = result.timecourses[t * k + c]!;
+    const spectrum = powerSpectrum(tc, result.trSeconds);
+    const features = computeComponentFeatures({
+      map: result.maps.subarray(c * V, (c + 1) * V),
+      maskIndices: result.maskIndices,
+      dims: result.dims,
+      timecourse: tc,
+      trSeconds: result.trSeconds,
+      motion,
+      spectrum,
+    });
+    rows.push({
+      idx: c + 1,
+      varianceExplained: result.explainedVariance[c]!,
+      features,
+      timecourse: Float32Array.from(tc),
+      spectrum: Float32Array.from(spectrum.power),
+      frequencies: Float32Array.from(spectrum.frequencies),
+    });
+  }
+  return rows;
+}
+
+export interface DecompositionFiles {
+  /** The fresh directory (remove it with removeKey if the database write fails). */
+  dirKey: string;
+  componentsKey: string;
+  meanKey: string;
+  maskKey: string;
+}
+
+/**
+ * Writes the outputs into a new directory `decompositions/<yyyy-mm>/<uuid>/`: components.nii.gz
+ * (4D float32 z-maps, volume c = component c + 1, 0 outside the mask), mean.nii.gz (float32) and
+ * mask.nii.gz (uint8), all on the run's grid and affine. On error the directory is removed.
+ */
+export async function writeDecompositionFiles(result: DecompositionResult, header: Pick<NiftiHeader, 'pixdim' | 'affine'>): Promise<DecompositionFiles> {
+  const dirKey = newKey('decompositions');
+  const files: DecompositionFiles = {
+    dirKey,
+    componentsKey: childKey(dirKey, 'components.nii.gz'),
+    meanKey: childKey(dirKey, 'mean.nii.gz'),
+    maskKey: childKey(dirKey, 'mask.nii.gz'),
+  };
+  const [nx, ny, nz] = result.dims;
+  const nVox = nx * ny * nz;
+  const V = result.voxelsInMask;
+  const voxel = [1, 2, 3].map((i) => header.pixdim[i] ?? 1);
+  const affine = header.affine.map((r) => [...r]);
+  try {
+    await ensureDirFor(files.componentsKey);
+    const maps = new Float32Array(nVox * result.k);
+    for (let c = 0; c < result.k; c++) {
+      const off = c * nVox;
+      for (let j = 0; j < V; j++) maps[off + result.maskIndices[j]!] = result.maps[c * V + j]!;
+    }
+    await writeNiftiFile(pathFor(files.componentsKey), {
+      dims: [nx, ny, nz, result.k],
+      pixdim: [...voxel, 1],
+      affine,
+      datatype: 'float32',
+      data: maps,
+      xyztUnits: 2,
+      intentCode: 5, // NIFTI_INTENT_ZSCORE
+      description: 'Quorum component z-maps',
+    });
+    await writeNiftiFile(pathFor(files.meanKey), {
+      dims: [nx, ny, nz], pixdim: voxel, affine, datatype: 'float32', data: result.meanImage, xyztUnits: 2,
+      description: 'Quorum mean image of kept volumes',
+    });
+    await writeNiftiFile(pathFor(files.maskKey), {
+      dims: [nx, ny, nz], pixdim: voxel, affine, datatype: 'uint8', data: result.mask, xyztUnits: 2,
+      description: 'Quorum decomposition mask',
+    });
+  } catch (err) {
+    await removeKey(dirKey).catch(() => undefined);
+    throw err;
+  }
+  return files;
+}
+
+/** The summary JSON of a decomposition (everything the engine reports except voxel-sized arrays). */
+export function decompositionSummary(result: DecompositionResult): Record<string, unknown> {
+  return {
+    k: result.k,
+    dimension: result.dimension,
+    dimMethod: result.dimMethod,
+    eigenvalues: Array.from(result.eigenvalues),
+    explainedVariance: Array.from(result.explainedVariance),
+    pcaVarianceKept: result.pcaVarianceKept,
+    smoothness: result.smoothness,
+    iterations: result.iterations,
+    converged: result.converged,
+    seed: result.seed,
+    requestedSeed: result.requestedSeed,
+    icaAttempts: result.icaAttempts,
+    voxelsInMask: result.voxelsInMask,
+    nonFiniteVoxels: result.nonFiniteVoxels,
+    zeroVarianceVoxels: result.zeroVarianceVoxels,
+    dims: result.dims,
+    timepoints: result.timepoints,
+    droppedVolumes: result.droppedVolumes,
+    trSeconds: result.trSeconds,
+    detrended: result.detrended,
+    varianceNormalised: result.varianceNormalised,
+    threads: result.threads,
+    seconds: result.seconds,
+  };
+}
+
+/**
+ * In the caller's transaction: marks the run's earlier decompositions not current, inserts the new
+ * decomposition and its k component rows, and sets the run ready. Returns the decomposition id.
+ */
+export async function storeDecomposition(
+  trx: Knex.Transaction,
+  d: {
+    runId: number;
+    parameters: Record<string, unknown>;
+    summary: Record<string, unknown>;
+    files: DecompositionFiles;
+    components: ComponentRow[];
+  },
+): Promise<number> {
+  await trx('decompositions').where({ run_id: d.runId, is_current: true }).update({ is_current: false });
+  const [id] = await trx('decompositions').insert({
+    run_id: d.runId,
+    parameters: toJson(d.parameters),
+    summary: toJson(d.summary),
+    components_key: d.files.componentsKey,
+    mean_key: d.files.meanKey,
+    mask_key: d.files.maskKey,
+    k: d.components.length,
+    is_current: true,
+  });
+  const decompositionId = Number(id);
+  const rows = d.components.map((c) => ({
+    decomposition_id: decompositionId,
+    idx: c.idx,
+    variance_explained: c.varianceExplained,
+    features: toJson(c.features),
+    timecourse: float32ToBlob(c.timecourse),
+    spectrum: float32ToBlob(c.spectrum),
+    frequencies: float32ToBlob(c.frequencies),
+  }));
+  for (let i = 0; i < rows.length; i += 50) await trx('components').insert(rows.slice(i, i + 50));
+  await trx('runs').where({ id: d.runId }).update({ status: 'ready', status_message: null });
+  return decompositionId;
+}
