@@ -59,12 +59,6 @@ describe('generatePhantom (tiny)', () => {
     for (const a of [...p.motion.translations, ...p.motion.rotations]) expect(a.length).toBe(nt);
   });
 
-  it('generates in well under a second', () => {
-    const t0 = performance.now();
-    generatePhantom({ size: 'tiny', seed: 5 });
-    expect(performance.now() - t0).toBeLessThan(1000);
-  });
-
   it('is deterministic under a seed, and different seeds differ', () => {
     const again = generatePhantom({ size: 'tiny', seed: 1 });
     expect(Buffer.from(again.data.buffer).equals(Buffer.from(p.data.buffer))).toBe(true);
