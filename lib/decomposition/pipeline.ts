@@ -7,6 +7,7 @@ import { chooseDimension, type DimMethod, type DimensionChoice } from './dimensi
 import { DecompositionError } from './errors';
 import { fastIca, type Contrast } from './fastica';
 import { KernelPool, sharedFloat32, splitRange } from './worker-pool';
+import type { MotionParams } from './motion';
 import { orientComponents } from './orient';
 import { temporalPca } from './pca';
 import { estimateSmoothness, type SmoothnessEstimate } from './smoothness';
@@ -16,8 +17,8 @@ export interface DecomposeInput {
   image: RunImage;
   /** Full-volume mask (x fastest, non-zero = in); default: automatic brain mask of the mean image. */
   mask?: Uint8Array;
-  /** Motion parameters, passed through for component features (not used by the decomposition). */
-  motion?: unknown;
+  /** Motion parameters of all nt volumes, for component features (not used by the decomposition). */
+  motion?: MotionParams;
 }
 
 export interface DecomposeOptions {

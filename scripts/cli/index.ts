@@ -1,6 +1,7 @@
 // Registry of CLI commands. Each command lives in its own file and exports a CliCommand.
 import { header } from './header';
 import { agreement } from './agreement';
+import { decompose } from './decompose';
 export type CliCommand = {
   summary: string;
   /** Runs the command with its arguments; returns the process exit code. */
@@ -10,4 +11,5 @@ export type CliCommand = {
 export const commands: Record<string, CliCommand> = {
   header,
   agreement,
+  decompose,
 };

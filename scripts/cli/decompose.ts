@@ -1,0 +1,132 @@
+// `quorum decompose FILE --out DIR [...]` – PCA + spatial FastICA of one run; writes z-maps, mean,
+// mask, time courses, spectra, features and summary.json into DIR and prints the summary as JSON.
+import { mkdir, readFile, writeFile } from 'node:fs/promises';
+import path from 'node:path';
+import { parseArgs } from 'node:util';
+import { assertFourD, assertSameGrid, readNiftiFile, writeNiftiFile } from '@/lib/nifti';
+import {
+  componentFeatures, componentSpectra, decomposeRun, decompositionSummary, featuresTsv, mapsVolume, spectraTsv, timecoursesTsv,
+  type DimMethod,
+} from '@/lib/decomposition';
+import type { Contrast } from '@/lib/decomposition/fastica';
+import { parseMotionFile, type MotionOrder } from '@/lib/decomposition/motion';
+import type { CliCommand } from './index';
+
+const USAGE =
+  'usage: quorum decompose FILE --out DIR [--mask FILE] [--components auto|N] [--dim-method laplace|aic|mdl|variance:F] ' +
+  '[--seed N] [--drop N] [--no-variance-norm] [--detrend] [--contrast logcosh|exp|cube] [--threads N] ' +
+  '[--motion FILE [--motion-order trans-first|rot-first] [--motion-units radians|degrees]]';
+
+class UsageError extends Error {}
+
+function integer(name: string, text: string | undefined, min: number): number | undefined {
+  if (text === undefined) return undefined;
+  if (!/^\d+$/.test(text) || Number(text) < min) throw new UsageError(`--${name} must be a whole number ≥ ${min}; got "${text}".`);
+  return Number(text);
+}
+
+function dimMethodOf(text: string | undefined): DimMethod | undefined {
+  if (text === undefined) return undefined;
+  if (text === 'laplace' || text === 'aic' || text === 'mdl') return text;
+  const m = /^variance:(\d*\.?\d+)$/.exec(text);
+  if (m && Number(m[1]) > 0 && Number(m[1]) <= 1) return { variance: Number(m[1]) };
+  throw new UsageError(`--dim-method must be laplace, aic, mdl or variance:F with 0 < F ≤ 1; got "${text}".`);
+}
+
+export const decompose: CliCommand = {
+  summary: 'PCA + spatial FastICA of a 4D run: z-maps, mean, mask, time courses, spectra, features, summary',
+  async run(args) {
+    try {
+      const { values, positionals } = parseArgs({
+        args,
+        allowPositionals: true,
+        options: {
+          out: { type: 'string' },
+          mask: { type: 'string' },
+          components: { type: 'string' },
+          'dim-method': { type: 'string' },
+          seed: { type: 'string' },
+          drop: { type: 'string' },
+          'no-variance-norm': { type: 'boolean', default: false },
+          detrend: { type: 'boolean', default: false },
+          contrast: { type: 'string' },
+          threads: { type: 'string' },
+          motion: { type: 'string' },
+          'motion-order': { type: 'string', default: 'trans-first' },
+          'motion-units': { type: 'string', default: 'radians' },
+        },
+      });
+      const file = positionals[0];
+      if (!file || positionals.length > 1 || !values.out) throw new UsageError(USAGE);
+      const components: 'auto' | number | undefined = values.components === undefined || values.components === 'auto' ? 'auto' : integer('components', values.components, 1);
+      const contrast = values.contrast as Contrast | undefined;
+      if (contrast !== undefined && !['logcosh', 'exp', 'cube'].includes(contrast)) throw new UsageError(`--contrast must be logcosh, exp or cube; got "${contrast}".`);
+      const options = {
+        components,
+        dimMethod: dimMethodOf(values['dim-method']),
+        seed: integer('seed', values.seed, 0),
+        drop: integer('drop', values.drop, 0),
+        varianceNorm: !values['no-variance-norm'],
+        detrend: values.detrend,
+        contrast,
+        threads: integer('threads', values.threads, 1),
+      };
+
+      const image = await readNiftiFile(file);
+      assertFourD(image.header, 2);
+      let mask: Uint8Array | undefined;
+      if (values.mask) {
+        const m = await readNiftiFile(values.mask);
+        assertSameGrid(image.header, m.header);
+        const vol = m.readVolume(0);
+        mask = new Uint8Array(vol.length);
+        for (let i = 0; i < vol.length; i++) mask[i] = vol[i]! > 0 ? 1 : 0;
+      }
+      const motion = values.motion
+        ? parseMotionFile(await readFile(values.motion, 'utf8'), {
+            order: values['motion-order'] as MotionOrder,
+            rotationUnits: values['motion-units'] as 'radians' | 'degrees',
+            expectedRows: image.nt,
+          })
+        : undefined;
+
+      const r = await decomposeRun({ image, mask, motion }, options);
+      const t0 = performance.now();
+      const out = values.out;
+      await mkdir(out, { recursive: true });
+      const h = image.header;
+      const voxel = [h.pixdim[1] ?? 1, h.pixdim[2] ?? 1, h.pixdim[3] ?? 1];
+      const [nx, ny, nz] = r.dims;
+      await writeNiftiFile(path.join(out, 'components.nii.gz'), {
+        dims: [nx, ny, nz, r.k], pixdim: [...voxel, 1], affine: h.affine, datatype: 'float32', data: mapsVolume(r),
+        xyztUnits: h.xyztUnits, description: 'Quorum component z-maps',
+      });
+      await writeNiftiFile(path.join(out, 'mean.nii.gz'), {
+        dims: [nx, ny, nz], pixdim: voxel, affine: h.affine, datatype: 'float32', data: r.meanImage, xyztUnits: h.xyztUnits & 7,
+        description: 'Quorum temporal mean',
+      });
+      await writeNiftiFile(path.join(out, 'mask.nii.gz'), {
+        dims: [nx, ny, nz], pixdim: voxel, affine: h.affine, datatype: 'uint8', data: r.mask, xyztUnits: h.xyztUnits & 7,
+        description: 'Quorum decomposition mask',
+      });
+      await writeFile(path.join(out, 'timecourses.tsv'), timecoursesTsv(r));
+      const spectra = componentSpectra(r);
+      await writeFile(path.join(out, 'spectra.tsv'), spectraTsv(spectra));
+      await writeFile(path.join(out, 'features.tsv'), featuresTsv(r, componentFeatures(r, motion, spectra)));
+      const summary = {
+        input: path.resolve(file),
+        ...decompositionSummary(r),
+        motionGiven: motion !== undefined,
+      };
+      summary.seconds = { ...summary.seconds, write: Number(((performance.now() - t0) / 1000).toFixed(3)) };
+      const json = JSON.stringify(summary, null, 2);
+      await writeFile(path.join(out, 'summary.json'), json + '\n');
+      process.stdout.write(json + '\n');
+      return 0;
+    } catch (err) {
+      const msg = err instanceof Error ? err.message : String(err);
+      process.stderr.write(`quorum decompose: ${msg.replace(/\s*\n\s*/g, ' ')}\n`);
+      return 1;
+    }
+  },
+};
