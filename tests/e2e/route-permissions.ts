@@ -16,6 +16,8 @@ export const ROUTES: RouteCase[] = [
   { file: 'account/password/route.ts', method: 'POST', url: '/api/account/password', allowed: ALL },
   { file: 'admin/users/route.ts', method: 'GET', url: '/api/admin/users', allowed: ['admin'] },
   { file: 'studies/[id]/agreement/route.ts', method: 'GET', url: '/api/studies/1/agreement', allowed: ['admin', 'lead', 'observer'] },
+  { file: 'studies/[id]/reconcile/route.ts', method: 'GET', url: '/api/studies/1/reconcile', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/decisions/route.ts', method: 'POST', url: '/api/studies/1/decisions', allowed: ['admin', 'lead'] },
   // next-auth's own endpoints and the JSON 404 for unknown addresses are not permission-checked routes.
   { file: 'auth/[...nextauth]/route.ts', method: 'GET', url: '/api/auth/session', allowed: 'skip' },
   { file: 'auth/[...nextauth]/route.ts', method: 'POST', url: '/api/auth/signout', allowed: 'skip' },

@@ -1,0 +1,117 @@
+import 'server-only';
+import { db, parseJson } from '@/lib/db/knex';
+import { recordAudit } from './audit';
+import { AppError } from '@/lib/errors';
+import type { LeadDecisionInput } from '@/lib/consensus/schema';
+
+export type ReconcileVote = { raterId: number; raterName: string; label: string; noiseKind: string | null; confidence: number | null; note: string | null };
+export type ReconcileItem = {
+  componentId: number;
+  idx: number;
+  k: number;
+  runId: number;
+  run: { sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null };
+  decision: { label: string | null; noiseKind: string | null; method: string; reason: string | null; decidedBy: string | null };
+  votes: ReconcileVote[];
+};
+
+/**
+ * The lead's reconcile queue for a study: components of current decompositions whose decision is
+ * pending after every assigned rater has submitted (or all decided components with include='all',
+ * for overrides), optionally for one run or for components any rater called a given noise kind.
+ */
+export async function listReconcileItems({ studyId, runId, noiseKind, include }: { studyId: number; runId?: number; noiseKind?: string; include: 'pending' | 'all' }): Promise<ReconcileItem[]> {
+  const q = db('decisions as x')
+    .join('components as c', 'c.id', 'x.component_id')
+    .join('decompositions as d', 'd.id', 'c.decomposition_id')
+    .join('runs as r', 'r.id', 'd.run_id')
+    .leftJoin('users as u', 'u.id', 'x.decided_by')
+    .where({ 'r.study_id': studyId, 'd.is_current': true })
+    // only runs whose assigned raters have all submitted
+    .whereNotExists(db('assignments as a').whereRaw('a.run_id = r.id').whereNull('a.submitted_at'))
+    .select(
+      'c.id as componentId',
+      'c.idx',
+      'd.k',
+      'r.id as runId',
+      'r.sub',
+      'r.ses',
+      'r.task',
+      'r.acq',
+      'r.run_label as runLabel',
+      'x.label',
+      'x.noise_kind as noiseKind',
+      'x.method',
+      'x.reason',
+      'u.name as decidedBy',
+    )
+    .orderBy([{ column: 'r.id' }, { column: 'c.idx' }]);
+  if (include === 'pending') q.where('x.method', 'pending');
+  if (runId) q.where('r.id', runId);
+  if (noiseKind) q.whereExists(db('votes as vk').whereRaw('vk.component_id = c.id').where('vk.noise_kind', noiseKind));
+  const rows = await q.limit(500);
+  if (!rows.length) return [];
+  const votes = await db('votes as v')
+    .join('users as u', 'u.id', 'v.rater_id')
+    .whereIn('v.component_id', rows.map((r) => r.componentId))
+    .select('v.component_id as componentId', 'v.rater_id as raterId', 'u.name as raterName', 'v.label', 'v.noise_kind as noiseKind', 'v.confidence', 'v.note')
+    .orderBy('u.name');
+  const byComponent = new Map<number, ReconcileVote[]>();
+  for (const v of votes) {
+    const list = byComponent.get(v.componentId) ?? [];
+    list.push({ raterId: v.raterId, raterName: v.raterName, label: v.label, noiseKind: v.noiseKind, confidence: v.confidence, note: v.note });
+    byComponent.set(v.componentId, list);
+  }
+  return rows.map((r) => ({
+    componentId: r.componentId,
+    idx: r.idx,
+    k: r.k,
+    runId: r.runId,
+    run: { sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, runLabel: r.runLabel },
+    decision: { label: r.label, noiseKind: r.noiseKind, method: r.method, reason: r.reason, decidedBy: r.decidedBy },
+    votes: byComponent.get(r.componentId) ?? [],
+  }));
+}
+
+/**
+ * Records a lead's decision on a component of their study (reconciled when it was pending, an
+ * override of an automatic decision otherwise), with the reason, in one transaction with its audit
+ * entry. Releases keep the decisions they froze; a change after a release needs a new release.
+ */
+export async function recordLeadDecision({ studyId, leadId, input }: { studyId: number; leadId: number; input: LeadDecisionInput }) {
+  return db.transaction(async (trx) => {
+    const ctx = await trx('components as c')
+      .join('decompositions as d', 'd.id', 'c.decomposition_id')
+      .join('runs as r', 'r.id', 'd.run_id')
+      .join('studies as s', 's.id', 'r.study_id')
+      .where({ 'c.id': input.componentId, 'r.study_id': studyId, 'd.is_current': true })
+      .first('r.id as runId', 'c.idx', 's.label_set as labelSet', 's.noise_kinds as noiseKinds');
+    if (!ctx) throw new AppError('not_found', 'That component is not part of this study (or its decomposition was replaced).');
+    const labels = parseJson<string[]>(ctx.labelSet, []) ?? [];
+    const kinds = parseJson<string[]>(ctx.noiseKinds, []) ?? [];
+    if (!labels.includes(input.label)) {
+      throw new AppError('validation', `"${input.label}" is not one of this study's labels (${labels.join(', ')}).`, { label: ['Choose one of the study’s labels.'] });
+    }
+    const noiseKind = input.label === 'noise' ? input.noiseKind ?? null : null;
+    if (noiseKind && !kinds.includes(noiseKind)) {
+      throw new AppError('validation', `"${noiseKind}" is not one of this study's noise kinds.`, { noiseKind: ['Choose one of the study’s noise kinds.'] });
+    }
+    const existing = await trx('decisions').where({ component_id: input.componentId }).forUpdate().first('id', 'method', 'label', 'noise_kind as noiseKind');
+    const method = !existing || existing.method === 'pending' ? 'reconciled' : existing.method === 'reconciled' ? 'reconciled' : 'override';
+    const row = { label: input.label, noise_kind: noiseKind, method, decided_by: leadId, reason: input.reason, decided_at: trx.fn.now(3) };
+    if (existing) await trx('decisions').where({ id: existing.id }).update(row);
+    else await trx('decisions').insert({ component_id: input.componentId, run_id: ctx.runId, ...row });
+    await recordAudit(
+      {
+        actorId: leadId,
+        action: method === 'override' ? 'decision.override' : 'decision.reconcile',
+        targetType: 'component',
+        targetId: input.componentId,
+        studyId,
+        detail: { runId: ctx.runId, index: ctx.idx, before: existing ? { label: existing.label, noiseKind: existing.noiseKind, method: existing.method } : null, label: input.label, noiseKind, reason: input.reason },
+      },
+      trx,
+    );
+    return { componentId: input.componentId, method, label: input.label, noiseKind };
+  });
+}
