@@ -1,0 +1,196 @@
+import 'server-only';
+import type { Knex } from 'knex';
+import { readFile } from 'node:fs/promises';
+import { blobToFloat32, db, parseJson } from '@/lib/db/knex';
+import { AppError } from '@/lib/errors';
+import { bidsName } from '@/lib/bids';
+import { pathFor } from '@/lib/storage';
+import { dropInitialVolumes, framewiseDisplacement, parseMotionFile } from '@/lib/decomposition/motion';
+import { recordAudit } from './audit';
+import type { ComponentsPayload, DeskComponent } from '@/lib/desk/types';
+
+type Caller = { id: number };
+
+/** The same refusal for "no such run" and "not yours", so a rater cannot probe other runs. */
+export const notAssigned = (runId: number) =>
+  new AppError('not_found', `Run ${runId} is not among the runs assigned to you. Open it from your queue on the home page.`);
+
+/**
+ * The caller's assignment on a ready run with its study's protocol, or a 404. Every desk query
+ * starts here: the rater reaches a run only through an assignment row with their id.
+ */
+export async function findAssignedRun(
+  { user, runId, forUpdate = false }: { user: Caller; runId: number; forUpdate?: boolean },
+  trx: Knex | Knex.Transaction = db,
+) {
+  const q = trx('assignments as a')
+    .join('runs as r', 'r.id', 'a.run_id')
+    .join('studies as s', 's.id', 'r.study_id')
+    .join('decompositions as d', function () {
+      this.on('d.run_id', 'r.id').andOn('d.is_current', trx.raw('1'));
+    })
+    .where({ 'a.run_id': runId, 'a.rater_id': user.id, 'r.status': 'ready' })
+    .first(
+      'a.id as assignmentId',
+      'a.submitted_at as submittedAt',
+      'a.started_at as startedAt',
+      'a.last_component_idx as lastComponentIdx',
+      'r.id as runId',
+      'r.sub',
+      'r.ses',
+      'r.task',
+      'r.acq',
+      'r.run_label as runLabel',
+      'r.tr_seconds as trSeconds',
+      'r.volumes',
+      'r.motion_key as motionKey',
+      'r.motion_order as motionOrder',
+      'r.motion_rotation_units as motionRotationUnits',
+      's.id as studyId',
+      's.name as studyName',
+      's.label_set as labelSet',
+      's.noise_kinds as noiseKinds',
+      's.show_votes_after_submit as showVotesAfterSubmit',
+      'd.id as decompositionId',
+      'd.k',
+      'd.parameters',
+      'd.summary',
+      'd.components_key as componentsKey',
+      'd.mean_key as meanKey',
+      'd.mask_key as maskKey',
+    );
+  if (forUpdate) q.forUpdate();
+  const row = await q;
+  if (!row) throw notAssigned(runId);
+  const parameters = parseJson<Record<string, unknown>>(row.parameters, {}) ?? {};
+  const summary = parseJson<Record<string, unknown>>(row.summary, {}) ?? {};
+  const dropped = Number(parameters.drop ?? summary.droppedVolumes ?? 0) || 0;
+  return {
+    ...row,
+    showVotesAfterSubmit: Boolean(row.showVotesAfterSubmit),
+    labelSet: parseJson<string[]>(row.labelSet, []) ?? [],
+    noiseKinds: parseJson<string[]>(row.noiseKinds, []) ?? [],
+    droppedVolumes: dropped,
+    k: Number(row.k),
+  };
+}
+export type AssignedRun = Awaited<ReturnType<typeof findAssignedRun>>;
+
+/** True once a release (of the run, or of the study with this run in it) exists. */
+export async function isRunReleased({ runId }: { runId: number }, trx: Knex | Knex.Transaction = db): Promise<boolean> {
+  const hit = await trx('releases')
+    .where('run_id', runId)
+    .orWhereExists(trx('release_decisions').whereRaw('release_decisions.release_id = releases.id').andWhere('release_decisions.run_id', runId))
+    .first('id');
+  return Boolean(hit);
+}
+
+const round = (v: number) => (Number.isFinite(v) ? Number(v.toPrecision(6)) : 0);
+const toList = (blob: Buffer | null) => Array.from(blobToFloat32(blob) ?? [], round);
+
+async function readFramewiseDisplacement(run: AssignedRun): Promise<number[] | null> {
+  if (!run.motionKey) return null;
+  try {
+    const text = await readFile(pathFor(run.motionKey), 'utf8');
+    const order = String(run.motionOrder ?? '').trim().toLowerCase().startsWith('r') ? 'rot-first' : 'trans-first';
+    const motion = parseMotionFile(text, { order, rotationUnits: run.motionRotationUnits === 'degrees' ? 'degrees' : 'radians' });
+    const kept = run.droppedVolumes > 0 ? dropInitialVolumes(motion, run.droppedVolumes) : motion;
+    return Array.from(framewiseDisplacement(kept), round);
+  } catch (err) {
+    console.error(`[desk] motion parameters of run ${run.runId} unreadable:`, (err as Error).message);
+    return null;
+  }
+}
+
+/**
+ * GET /api/runs/:id/components — the run and its current decomposition's components, for the
+ * assigned rater. Carries no votes, tallies or decisions of anyone.
+ */
+export async function loadDeskComponents({ user, runId }: { user: Caller; runId: number }): Promise<ComponentsPayload> {
+  const run = await findAssignedRun({ user, runId });
+  const rows = await db('components')
+    .where({ decomposition_id: run.decompositionId })
+    .orderBy('idx')
+    .select('id', 'idx', 'variance_explained as varianceExplained', 'features', 'timecourse', 'spectrum', 'frequencies');
+  const components: DeskComponent[] = rows.map((r) => ({
+    id: r.id,
+    idx: r.idx,
+    varianceExplained: Number(r.varianceExplained),
+    features: parseJson<Record<string, number | null>>(r.features, {}) ?? {},
+    timecourse: toList(r.timecourse),
+    spectrum: toList(r.spectrum),
+    frequencies: toList(r.frequencies),
+  }));
+  return {
+    run: {
+      runId: run.runId,
+      decompositionId: run.decompositionId,
+      name: bidsName(run),
+      studyId: run.studyId,
+      studyName: run.studyName,
+      trSeconds: Number(run.trSeconds),
+      droppedVolumes: run.droppedVolumes,
+      k: components.length,
+      labelSet: run.labelSet,
+      noiseKinds: run.noiseKinds,
+      framewiseDisplacement: await readFramewiseDisplacement(run),
+      lastComponentIdx: run.lastComponentIdx == null ? null : Number(run.lastComponentIdx),
+    },
+    components,
+  };
+}
+
+/** The storage key of one of the run's decomposition files, for the assigned rater. */
+export async function findRunFileKey({ user, runId, file }: { user: Caller; runId: number; file: 'components.nii.gz' | 'mean.nii.gz' | 'mask.nii.gz' }) {
+  const run = await findAssignedRun({ user, runId });
+  const key = file === 'components.nii.gz' ? run.componentsKey : file === 'mean.nii.gz' ? run.meanKey : run.maskKey;
+  if (!key) throw new AppError('not_found', `Run ${runId} has no ${file} yet; its decomposition did not write it.`);
+  return { key: key as string, decompositionId: run.decompositionId as number };
+}
+
+/** PUT /api/runs/:id/desk — remembers where the rater is (reopens there next time). */
+export async function saveDeskPosition({ user, runId, componentIdx }: { user: Caller; runId: number; componentIdx: number }) {
+  const run = await findAssignedRun({ user, runId });
+  if (componentIdx > run.k) {
+    throw new AppError('validation', `Run ${runId} has ${run.k} components; component ${componentIdx} does not exist.`, {
+      componentIdx: [`must be between 1 and ${run.k}`],
+    });
+  }
+  await db('assignments')
+    .where({ id: run.assignmentId })
+    .update({ last_component_idx: componentIdx, started_at: db.raw('COALESCE(started_at, CURRENT_TIMESTAMP(3))') });
+  return { componentIdx };
+}
+
+/**
+ * POST /api/runs/:id/submit — marks the rater's work on the run as done. Every component of the
+ * current decomposition must carry the rater's vote. Submitting twice answers the first time.
+ */
+export async function submitRun({ user, runId, ip }: { user: Caller; runId: number; ip?: string | null }) {
+  return db.transaction(async (trx) => {
+    const run = await findAssignedRun({ user, runId, forUpdate: true }, trx);
+    if (run.submittedAt) return { submittedAt: new Date(run.submittedAt).toISOString(), already: true };
+    const missing = await trx('components as c')
+      .leftJoin('votes as v', function () {
+        this.on('v.component_id', 'c.id').andOn('v.rater_id', trx.raw('?', [user.id]));
+      })
+      .where('c.decomposition_id', run.decompositionId)
+      .whereNull('v.id')
+      .orderBy('c.idx')
+      .pluck('c.idx');
+    if (missing.length) {
+      const list = missing.length > 12 ? `${missing.slice(0, 12).join(', ')} …` : missing.join(', ');
+      throw new AppError(
+        'conflict',
+        `${missing.length} of ${run.k} components are not labelled yet (${list}). Label every component before submitting.`,
+      );
+    }
+    const now = new Date();
+    await trx('assignments').where({ id: run.assignmentId }).update({ submitted_at: now });
+    await recordAudit(
+      { actorId: user.id, action: 'run.submit', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { components: run.k }, ip },
+      trx,
+    );
+    return { submittedAt: now.toISOString(), already: false };
+  });
+}

@@ -1,0 +1,187 @@
+import 'server-only';
+import { db } from '@/lib/db/knex';
+import { AppError } from '@/lib/errors';
+import { recomputeDecision } from '@/lib/consensus/recompute';
+import type { MyVote, OtherVote, SaveVoteResult, VoteFields, VotesPayload } from '@/lib/desk/types';
+import type { VoteChange } from '@/lib/desk/schemas';
+import { findAssignedRun, isRunReleased } from './desk';
+import { recordAudit } from './audit';
+
+type Caller = { id: number };
+
+const NOISE = 'noise';
+
+type VoteRow = { id: number; componentId: number; label: string; noiseKind: string | null; confidence: number | null; note: string | null; version: number; updatedAt: Date };
+
+const voteColumns = [
+  'v.id',
+  'v.component_id as componentId',
+  'v.label',
+  'v.noise_kind as noiseKind',
+  'v.confidence',
+  'v.note',
+  'v.version',
+  'v.updated_at as updatedAt',
+] as const;
+
+function toMyVote(r: VoteRow): MyVote {
+  return {
+    componentId: r.componentId,
+    label: r.label,
+    noiseKind: r.noiseKind,
+    confidence: r.confidence == null ? null : Number(r.confidence),
+    note: r.note,
+    version: Number(r.version),
+    updatedAt: new Date(r.updatedAt).toISOString(),
+  };
+}
+
+/**
+ * GET /api/runs/:id/votes — the caller's own votes on the run, the assignment's status, and the
+ * other raters' votes ONLY when the caller has submitted the run and the study shows them.
+ * Before submission the query for other raters' votes is never run.
+ */
+export async function listVotesForRater({ user, runId }: { user: Caller; runId: number }): Promise<VotesPayload> {
+  const run = await findAssignedRun({ user, runId });
+  const mine = await db('votes as v')
+    .join('components as c', 'c.id', 'v.component_id')
+    .where({ 'v.run_id': runId, 'v.rater_id': user.id, 'c.decomposition_id': run.decompositionId })
+    .orderBy('c.idx')
+    .select(voteColumns);
+  const released = await isRunReleased({ runId });
+  let others: OtherVote[] | null = null;
+  let othersHidden: VotesPayload['status']['othersHidden'] = 'not_submitted';
+  if (run.submittedAt) {
+    othersHidden = run.showVotesAfterSubmit ? null : 'study_hides';
+    if (run.showVotesAfterSubmit) {
+      const rows = await db('votes as v')
+        .join('components as c', 'c.id', 'v.component_id')
+        .join('users as u', 'u.id', 'v.rater_id')
+        .where({ 'v.run_id': runId, 'c.decomposition_id': run.decompositionId })
+        .whereNot('v.rater_id', user.id)
+        .orderBy(['c.idx', 'u.name'])
+        .select('v.component_id as componentId', 'u.name as raterName', 'v.label', 'v.noise_kind as noiseKind', 'v.confidence', 'v.note');
+      others = rows.map((r) => ({ ...r, confidence: r.confidence == null ? null : Number(r.confidence) }));
+    }
+  }
+  return {
+    status: { submittedAt: run.submittedAt ? new Date(run.submittedAt).toISOString() : null, released, othersHidden },
+    mine: mine.map(toMyVote),
+    others,
+  };
+}
+
+/**
+ * PUT /api/runs/:id/votes/:componentId — records the caller's vote on one component, in one
+ * transaction with the decision recompute and the audit entry.
+ * - The run must be assigned to the caller and not released; the component must belong to the
+ *   run's current decomposition; label and noise kind must be in the study's sets.
+ * - Optimistic concurrency: `baseVersion` is the version the browser last saw. When it differs
+ *   (another tab or a retried request changed the vote meanwhile) the sent fields are merged into
+ *   the stored vote — last write per field wins — and the merge is audited.
+ * - A noise kind is kept only while the label is "noise".
+ * - Repeating a change that is already stored changes nothing (safe to retry).
+ * - Changes after submission are allowed until release, and audited as such.
+ */
+export async function saveVote({
+  user,
+  runId,
+  componentId,
+  change,
+  ip,
+}: {
+  user: Caller;
+  runId: number;
+  componentId: number;
+  change: VoteChange;
+  ip?: string | null;
+}): Promise<SaveVoteResult> {
+  return db.transaction(async (trx) => {
+    // Locking the assignment serialises every vote write of this rater on this run.
+    const run = await findAssignedRun({ user, runId, forUpdate: true }, trx);
+    const component = await trx('components').where({ id: componentId, decomposition_id: run.decompositionId }).first('id', 'idx');
+    if (!component) {
+      throw new AppError('not_found', `Component ${componentId} is not a component of run ${runId}. Vote on the components shown on this run's desk.`);
+    }
+    if (await isRunReleased({ runId }, trx)) {
+      throw new AppError('conflict', `Run ${runId} has been released; its votes are frozen. Ask the study lead if a label must change.`);
+    }
+    const fields: Record<string, string[]> = {};
+    if (change.label !== undefined && !run.labelSet.includes(change.label)) {
+      fields.label = [`must be one of ${run.labelSet.join(', ')}`];
+    }
+    if (change.noiseKind != null && !run.noiseKinds.includes(change.noiseKind)) {
+      fields.noiseKind = [`must be one of ${run.noiseKinds.join(', ')}`];
+    }
+    if (change.noiseKind != null && change.label !== undefined && change.label !== NOISE) {
+      fields.noiseKind = [`a noise kind goes with the label "${NOISE}", not "${change.label}"`];
+    }
+    if (Object.keys(fields).length) {
+      const [field, [msg]] = Object.entries(fields)[0];
+      throw new AppError('validation', `The vote is not valid (${field}): ${msg}.`, fields);
+    }
+
+    const existing = (await trx('votes as v').where({ 'v.component_id': componentId, 'v.rater_id': user.id }).forUpdate().first(voteColumns)) as
+      | VoteRow
+      | undefined;
+    const before: VoteFields | null = existing
+      ? { label: existing.label, noiseKind: existing.noiseKind, confidence: existing.confidence == null ? null : Number(existing.confidence), note: existing.note }
+      : null;
+    const label = change.label ?? before?.label;
+    if (!label) {
+      throw new AppError('validation', 'The vote is not valid (label): choose signal, noise or uncertain before a noise kind, confidence or note.', {
+        label: ['choose a label first'],
+      });
+    }
+    let noiseKind = change.noiseKind !== undefined ? change.noiseKind : (before?.noiseKind ?? null);
+    if (noiseKind != null && change.noiseKind != null && change.label === undefined && label !== NOISE) {
+      // A kind on its own turns the vote into "noise" of that kind.
+      throw new AppError('validation', `The vote is not valid (noiseKind): the vote is "${label}"; set the label to "${NOISE}" with the kind.`, {
+        noiseKind: ['set the label to noise with the kind'],
+      });
+    }
+    if (label !== NOISE) noiseKind = null;
+    const after: VoteFields = {
+      label,
+      noiseKind,
+      confidence: change.confidence !== undefined ? change.confidence : (before?.confidence ?? null),
+      note: change.note !== undefined ? (change.note?.trim() ? change.note : null) : (before?.note ?? null),
+    };
+    const changes: Record<string, [unknown, unknown]> = {};
+    for (const key of ['label', 'noiseKind', 'confidence', 'note'] as const) {
+      if ((before?.[key] ?? null) !== after[key]) changes[key] = [before?.[key] ?? null, after[key]];
+    }
+    const merged = Boolean(existing) && change.baseVersion !== Number(existing!.version);
+    if (existing && Object.keys(changes).length === 0) {
+      return { vote: toMyVote(existing), merged: false, changed: false };
+    }
+    const row = { label: after.label, noise_kind: after.noiseKind, confidence: after.confidence, note: after.note };
+    if (existing) {
+      await trx('votes').where({ id: existing.id }).update({ ...row, version: trx.raw('version + 1') });
+    } else {
+      await trx('votes').insert({ component_id: componentId, run_id: runId, rater_id: user.id, ...row, version: 1 });
+      await trx('assignments').where({ id: run.assignmentId }).update({ started_at: trx.raw('COALESCE(started_at, CURRENT_TIMESTAMP(3))') });
+    }
+    await recomputeDecision(trx, { componentId });
+    await recordAudit(
+      {
+        actorId: user.id,
+        action: existing ? 'vote.change' : 'vote.cast',
+        targetType: 'component',
+        targetId: componentId,
+        studyId: run.studyId,
+        detail: {
+          runId,
+          componentIdx: component.idx,
+          changes,
+          afterSubmit: Boolean(run.submittedAt),
+          ...(merged ? { merged: true, baseVersion: change.baseVersion, storedVersion: Number(existing!.version) } : {}),
+        },
+        ip,
+      },
+      trx,
+    );
+    const saved = (await trx('votes as v').where({ 'v.component_id': componentId, 'v.rater_id': user.id }).first(voteColumns)) as VoteRow;
+    return { vote: toMyVote(saved), merged, changed: true };
+  });
+}

@@ -1,0 +1,69 @@
+/**
+ * Shapes the rating desk exchanges with the server (JSON). Shared by the route handlers, the
+ * server page and the client hooks. Nothing here ever carries another rater's vote before the
+ * rater has submitted the run: other raters' votes live only in VotesPayload.others, which the
+ * server fills only after submission (and only when the study shows them).
+ */
+
+/** One component as the desk draws it. Arrays are plain numbers (float32 precision). */
+export type DeskComponent = {
+  id: number;
+  /** 1..k by variance explained. */
+  idx: number;
+  /** Fraction 0..1 of the run's variance. */
+  varianceExplained: number;
+  features: Record<string, number | null>;
+  /** One value per kept volume (after the dropped initial volumes). */
+  timecourse: number[];
+  /** Power per frequency bin. */
+  spectrum: number[];
+  /** Hz, same length as spectrum. */
+  frequencies: number[];
+};
+
+/** The run as the desk needs it; static for one decomposition (cached for the whole session). */
+export type DeskRun = {
+  runId: number;
+  decompositionId: number;
+  name: string;
+  studyId: number;
+  studyName: string;
+  trSeconds: number;
+  droppedVolumes: number;
+  k: number;
+  labelSet: string[];
+  noiseKinds: string[];
+  /** Framewise displacement (mm) per kept volume, when the run has motion parameters. */
+  framewiseDisplacement: number[] | null;
+  /** Where the rater stopped (1-based component number), or null before the first visit. */
+  lastComponentIdx: number | null;
+};
+
+export type ComponentsPayload = { run: DeskRun; components: DeskComponent[] };
+
+/** The fields a rater sets on a vote. */
+export type VoteFields = {
+  label: string;
+  noiseKind: string | null;
+  confidence: number | null;
+  note: string | null;
+};
+
+/** The rater's own vote as the server holds it. */
+export type MyVote = VoteFields & { componentId: number; version: number; updatedAt: string };
+
+/** Another rater's vote — sent only after this rater has submitted the run. */
+export type OtherVote = Omit<VoteFields, 'note'> & { componentId: number; raterName: string; note: string | null };
+
+export type AssignmentStatus = {
+  submittedAt: string | null;
+  /** True once a release contains the run: votes are frozen. */
+  released: boolean;
+  /** Why others' votes are not shown: 'not_submitted' (blinding) or 'study_hides'; null when shown. */
+  othersHidden: 'not_submitted' | 'study_hides' | null;
+};
+
+export type VotesPayload = { status: AssignmentStatus; mine: MyVote[]; others: OtherVote[] | null };
+
+/** Answer to PUT /api/runs/:id/votes/:componentId. */
+export type SaveVoteResult = { vote: MyVote; merged: boolean; changed: boolean };
