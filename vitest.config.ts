@@ -1,7 +1,11 @@
 import { defineConfig } from 'vitest/config';
 import path from 'node:path';
 
-const alias = { '@': path.resolve(__dirname) };
+// 'server-only' throws outside React's server build; tests import server modules directly.
+const alias = {
+  '@': path.resolve(__dirname),
+  'server-only': path.resolve(__dirname, 'node_modules/server-only/empty.js'),
+};
 
 export default defineConfig({
   resolve: { alias },
@@ -28,7 +32,6 @@ export default defineConfig({
           testTimeout: 120_000,
           hookTimeout: 120_000,
           execArgv: ['--import', 'tsx'],
-          server: { deps: { inline: ['server-only'] } },
         },
       },
     ],
