@@ -3,13 +3,13 @@
 import { mkdir, readFile, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import { parseArgs } from 'node:util';
-import { assertFourD, assertSameGrid, readNiftiFile, writeNiftiFile } from '@/lib/nifti';
+import { assertFourD, assertSameGrid, readNiftiFile, writeNiftiFile, type NiftiHeader } from '@/lib/nifti';
 import {
   componentFeatures, componentSpectra, decomposeRun, decompositionSummary, featuresTsv, mapsVolume, spectraTsv, timecoursesTsv,
-  type DimMethod,
+  type DecompositionResult, type DimMethod,
 } from '@/lib/decomposition';
 import type { Contrast } from '@/lib/decomposition/fastica';
-import { parseMotionFile, type MotionOrder } from '@/lib/decomposition/motion';
+import { parseMotionFile, type MotionOrder, type MotionParams } from '@/lib/decomposition/motion';
 import type { CliCommand } from './index';
 
 const USAGE =
@@ -31,6 +31,33 @@ function dimMethodOf(text: string | undefined): DimMethod | undefined {
   const m = /^variance:(\d*\.?\d+)$/.exec(text);
   if (m && Number(m[1]) > 0 && Number(m[1]) <= 1) return { variance: Number(m[1]) };
   throw new UsageError(`--dim-method must be laplace, aic, mdl or variance:F with 0 < F ≤ 1; got "${text}".`);
+}
+
+/**
+ * Writes a decomposition's files into dir: components.nii.gz (4D float32 z-maps on the run's grid
+ * and affine, 0 outside the mask), mean.nii.gz, mask.nii.gz (uint8), timecourses.tsv, spectra.tsv
+ * and features.tsv. summary.json is written by the caller.
+ */
+export async function writeDecompositionOutputs(out: string, h: NiftiHeader, r: DecompositionResult, motion?: MotionParams): Promise<void> {
+  await mkdir(out, { recursive: true });
+  const voxel = [h.pixdim[1] ?? 1, h.pixdim[2] ?? 1, h.pixdim[3] ?? 1];
+  const [nx, ny, nz] = r.dims;
+  await writeNiftiFile(path.join(out, 'components.nii.gz'), {
+    dims: [nx, ny, nz, r.k], pixdim: [...voxel, 1], affine: h.affine, datatype: 'float32', data: mapsVolume(r),
+    xyztUnits: h.xyztUnits, description: 'Quorum component z-maps',
+  });
+  await writeNiftiFile(path.join(out, 'mean.nii.gz'), {
+    dims: [nx, ny, nz], pixdim: voxel, affine: h.affine, datatype: 'float32', data: r.meanImage, xyztUnits: h.xyztUnits & 7,
+    description: 'Quorum temporal mean',
+  });
+  await writeNiftiFile(path.join(out, 'mask.nii.gz'), {
+    dims: [nx, ny, nz], pixdim: voxel, affine: h.affine, datatype: 'uint8', data: r.mask, xyztUnits: h.xyztUnits & 7,
+    description: 'Quorum decomposition mask',
+  });
+  await writeFile(path.join(out, 'timecourses.tsv'), timecoursesTsv(r));
+  const spectra = componentSpectra(r);
+  await writeFile(path.join(out, 'spectra.tsv'), spectraTsv(spectra));
+  await writeFile(path.join(out, 'features.tsv'), featuresTsv(r, componentFeatures(r, motion, spectra)));
 }
 
 export const decompose: CliCommand = {
@@ -72,6 +99,7 @@ export const decompose: CliCommand = {
         threads: integer('threads', values.threads, 1),
       };
 
+      const tRead = performance.now();
       const image = await readNiftiFile(file);
       assertFourD(image.header, 2);
       let mask: Uint8Array | undefined;
@@ -90,37 +118,24 @@ export const decompose: CliCommand = {
           })
         : undefined;
 
+      const readSeconds = (performance.now() - tRead) / 1000;
       const r = await decomposeRun({ image, mask, motion }, options);
       const t0 = performance.now();
-      const out = values.out;
-      await mkdir(out, { recursive: true });
-      const h = image.header;
-      const voxel = [h.pixdim[1] ?? 1, h.pixdim[2] ?? 1, h.pixdim[3] ?? 1];
-      const [nx, ny, nz] = r.dims;
-      await writeNiftiFile(path.join(out, 'components.nii.gz'), {
-        dims: [nx, ny, nz, r.k], pixdim: [...voxel, 1], affine: h.affine, datatype: 'float32', data: mapsVolume(r),
-        xyztUnits: h.xyztUnits, description: 'Quorum component z-maps',
-      });
-      await writeNiftiFile(path.join(out, 'mean.nii.gz'), {
-        dims: [nx, ny, nz], pixdim: voxel, affine: h.affine, datatype: 'float32', data: r.meanImage, xyztUnits: h.xyztUnits & 7,
-        description: 'Quorum temporal mean',
-      });
-      await writeNiftiFile(path.join(out, 'mask.nii.gz'), {
-        dims: [nx, ny, nz], pixdim: voxel, affine: h.affine, datatype: 'uint8', data: r.mask, xyztUnits: h.xyztUnits & 7,
-        description: 'Quorum decomposition mask',
-      });
-      await writeFile(path.join(out, 'timecourses.tsv'), timecoursesTsv(r));
-      const spectra = componentSpectra(r);
-      await writeFile(path.join(out, 'spectra.tsv'), spectraTsv(spectra));
-      await writeFile(path.join(out, 'features.tsv'), featuresTsv(r, componentFeatures(r, motion, spectra)));
+      await writeDecompositionOutputs(values.out, image.header, r, motion);
       const summary = {
         input: path.resolve(file),
         ...decompositionSummary(r),
         motionGiven: motion !== undefined,
       };
-      summary.seconds = { ...summary.seconds, write: Number(((performance.now() - t0) / 1000).toFixed(3)) };
+      const writeSeconds = (performance.now() - t0) / 1000;
+      summary.seconds = {
+        read: Number(readSeconds.toFixed(3)),
+        ...summary.seconds,
+        write: Number(writeSeconds.toFixed(3)),
+        endToEnd: Number((readSeconds + r.seconds.total! + writeSeconds).toFixed(3)),
+      };
       const json = JSON.stringify(summary, null, 2);
-      await writeFile(path.join(out, 'summary.json'), json + '\n');
+      await writeFile(path.join(values.out, 'summary.json'), json + '\n');
       process.stdout.write(json + '\n');
       return 0;
     } catch (err) {
