@@ -3,8 +3,8 @@ import path from 'node:path';
 
 // 'server-only' throws outside React's server build; tests import server modules directly.
 const alias = {
-  '@': path.resolve(__dirname),
-  'server-only': path.resolve(__dirname, 'node_modules/server-only/empty.js'),
+  '@': path.resolve(import.meta.dirname),
+  'server-only': path.resolve(import.meta.dirname, 'node_modules/server-only/empty.js'),
 };
 
 export default defineConfig({
