@@ -1,6 +1,11 @@
 import 'server-only';
 import { db } from '@/lib/db/knex';
 import type { UserRow } from './users';
+import type { Knex } from 'knex';
+import { parseJson, toJson } from '@/lib/db/knex';
+import { recordAudit } from './audit';
+import type { StudyRole, ConsensusRule, DimMethod, NoiseKindKey } from '@/lib/studies/labels';
+import type { StudyValues, StudyUpdate } from '@/lib/studies/schema';
 
 export type StudySummary = {
   id: number;
@@ -35,4 +40,160 @@ export async function listStudiesForUser({ user }: { user: Pick<UserRow, 'id' | 
   if (user.role !== 'admin') query.whereNotNull('m.user_id');
   const rows = await query;
   return rows.map((r) => ({ ...r, runs: Number(r.runs), readyRuns: Number(r.readyRuns ?? 0) }));
+}
+
+// ——— one study: protocol, access, create and update ———
+
+
+/** A study's protocol as the app uses it (camelCase, booleans, parsed JSON). */
+export type StudyDetail = {
+  id: number;
+  name: string;
+  description: string;
+  ratersPerRun: number;
+  consensusRule: ConsensusRule;
+  allowUncertain: boolean;
+  labelSet: string[];
+  noiseKinds: NoiseKindKey[];
+  blinding: boolean;
+  showVotesAfterSubmit: boolean;
+  dropVolumes: number;
+  dimMethod: DimMethod;
+  fixedComponents: number | null;
+  varianceFraction: number | null;
+  varianceNorm: boolean;
+  detrend: boolean;
+  createdBy: number;
+  createdAt: Date;
+};
+
+/** What a user may do in one study: `canManage` (upload, change, run actions), `seesAllRuns` (else only assigned runs). */
+export type StudyAccess = {
+  study: StudyDetail;
+  studyRole: StudyRole | null;
+  canManage: boolean;
+  seesAllRuns: boolean;
+};
+
+const studyColumns = [
+  's.id',
+  's.name',
+  's.description',
+  's.raters_per_run',
+  's.consensus_rule',
+  's.label_set',
+  's.noise_kinds',
+  's.blinding',
+  's.show_votes_after_submit',
+  's.drop_volumes',
+  's.dim_method',
+  's.fixed_components',
+  's.variance_fraction',
+  's.variance_norm',
+  's.detrend',
+  's.created_by',
+  's.created_at',
+] as const;
+
+function toStudy(r: Record<string, unknown>): StudyDetail {
+  const labelSet = parseJson<string[]>(r.label_set, []) ?? [];
+  return {
+    id: Number(r.id),
+    name: String(r.name),
+    description: (r.description as string | null) ?? '',
+    ratersPerRun: Number(r.raters_per_run),
+    consensusRule: r.consensus_rule as ConsensusRule,
+    allowUncertain: labelSet.includes('uncertain'),
+    labelSet,
+    noiseKinds: (parseJson<NoiseKindKey[]>(r.noise_kinds, []) ?? []) as NoiseKindKey[],
+    blinding: Boolean(r.blinding),
+    showVotesAfterSubmit: Boolean(r.show_votes_after_submit),
+    dropVolumes: Number(r.drop_volumes),
+    dimMethod: r.dim_method as DimMethod,
+    fixedComponents: r.fixed_components == null ? null : Number(r.fixed_components),
+    varianceFraction: r.variance_fraction == null ? null : Number(r.variance_fraction),
+    varianceNorm: Boolean(r.variance_norm),
+    detrend: Boolean(r.detrend),
+    createdBy: Number(r.created_by),
+    createdAt: r.created_at as Date,
+  };
+}
+
+/**
+ * The study with the user's access to it, or null when the user may not see it (not a member and
+ * not an admin). The membership condition is in the WHERE clause.
+ */
+export async function findStudyForUser({ user, studyId }: { user: Pick<UserRow, 'id' | 'role'>; studyId: number }): Promise<StudyAccess | null> {
+  const query = db('studies as s')
+    .leftJoin('study_members as m', function () {
+      this.on('m.study_id', 's.id').andOn('m.user_id', db.raw('?', [user.id]));
+    })
+    .where('s.id', studyId)
+    .andWhere('s.archived', false)
+    .first([...studyColumns, 'm.study_role as study_role_of_user']);
+  if (user.role !== 'admin') query.whereNotNull('m.user_id');
+  const row = await query;
+  if (!row) return null;
+  const studyRole = (row.study_role_of_user as StudyRole | null) ?? null;
+  const admin = user.role === 'admin';
+  return {
+    study: toStudy(row),
+    studyRole,
+    canManage: admin || (studyRole === 'lead' && user.role === 'lead'),
+    seesAllRuns: admin || studyRole === 'lead' || studyRole === 'observer',
+  };
+}
+
+/** The study when the user may manage it (an admin, or a lead member with the lead role), else null. */
+export async function findManagedStudy({ user, studyId }: { user: Pick<UserRow, 'id' | 'role'>; studyId: number }): Promise<StudyDetail | null> {
+  const query = db('studies as s').where('s.id', studyId).andWhere('s.archived', false).first(studyColumns);
+  if (user.role !== 'admin') {
+    if (user.role !== 'lead') return null;
+    query.whereExists(
+      db('study_members as m').whereRaw('m.study_id = s.id').andWhere({ 'm.user_id': user.id, 'm.study_role': 'lead' }).select(db.raw('1')),
+    );
+  }
+  const row = await query;
+  return row ? toStudy(row) : null;
+}
+
+function protocolRow(v: Partial<StudyValues>): Record<string, unknown> {
+  const row: Record<string, unknown> = {};
+  if (v.name !== undefined) row.name = v.name;
+  if (v.description !== undefined) row.description = v.description || null;
+  if (v.ratersPerRun !== undefined) row.raters_per_run = v.ratersPerRun;
+  if (v.consensusRule !== undefined) row.consensus_rule = v.consensusRule;
+  if (v.allowUncertain !== undefined) row.label_set = toJson(v.allowUncertain ? ['signal', 'noise', 'uncertain'] : ['signal', 'noise']);
+  if (v.noiseKinds !== undefined) row.noise_kinds = toJson(v.noiseKinds);
+  if (v.blinding !== undefined) row.blinding = v.blinding;
+  if (v.showVotesAfterSubmit !== undefined) row.show_votes_after_submit = v.showVotesAfterSubmit;
+  if (v.dropVolumes !== undefined) row.drop_volumes = v.dropVolumes;
+  if (v.dimMethod !== undefined) {
+    row.dim_method = v.dimMethod;
+    row.fixed_components = v.dimMethod === 'fixed' ? (v.fixedComponents ?? null) : null;
+    row.variance_fraction = v.dimMethod === 'variance' ? (v.varianceFraction ?? null) : null;
+  }
+  if (v.varianceNorm !== undefined) row.variance_norm = v.varianceNorm;
+  if (v.detrend !== undefined) row.detrend = v.detrend;
+  return row;
+}
+
+/** Creates a study; its creator becomes its lead member. Audited. */
+export async function createStudy({ user, values }: { user: Pick<UserRow, 'id'>; values: StudyValues }): Promise<number> {
+  return db.transaction(async (trx: Knex.Transaction) => {
+    const [id] = await trx('studies').insert({ ...protocolRow(values), created_by: user.id });
+    await trx('study_members').insert({ study_id: id, user_id: user.id, study_role: 'lead', added_by: user.id });
+    await recordAudit({ actorId: user.id, action: 'study.create', targetType: 'study', targetId: id, studyId: id, detail: { name: values.name } }, trx);
+    return Number(id);
+  });
+}
+
+/** Changes a study's protocol (the caller has checked it may manage the study). Audited with the changed fields. */
+export async function updateStudy({ user, studyId, values }: { user: Pick<UserRow, 'id'>; studyId: number; values: StudyUpdate }): Promise<void> {
+  const row = protocolRow(values);
+  if (Object.keys(row).length === 0) return;
+  await db.transaction(async (trx: Knex.Transaction) => {
+    await trx('studies').where({ id: studyId }).update(row);
+    await recordAudit({ actorId: user.id, action: 'study.update', targetType: 'study', targetId: studyId, studyId, detail: { changed: Object.keys(values) } }, trx);
+  });
 }

@@ -1,0 +1,62 @@
+/** The product's protocol vocabulary: keys stored in the database and the plain labels people see. */
+
+export const LABEL_KEYS = ['signal', 'noise', 'uncertain'] as const;
+export type LabelKey = (typeof LABEL_KEYS)[number];
+
+export const LABEL_NAMES: Record<LabelKey, string> = {
+  signal: 'Signal',
+  noise: 'Noise',
+  uncertain: 'Uncertain',
+};
+
+export const NOISE_KIND_KEYS = [
+  'motion',
+  'pulsation',
+  'vascular',
+  'csf',
+  'white-matter',
+  'susceptibility',
+  'scanner',
+  'other',
+] as const;
+export type NoiseKindKey = (typeof NOISE_KIND_KEYS)[number];
+
+export const NOISE_KIND_NAMES: Record<NoiseKindKey, string> = {
+  motion: 'Head motion',
+  pulsation: 'Physiological pulsation',
+  vascular: 'Vascular (draining veins)',
+  csf: 'CSF flow',
+  'white-matter': 'White matter',
+  susceptibility: 'Susceptibility',
+  scanner: 'Scanner artefact',
+  other: 'Other',
+};
+
+export const CONSENSUS_RULES = ['unanimous', 'majority', 'lead'] as const;
+export type ConsensusRule = (typeof CONSENSUS_RULES)[number];
+
+export const CONSENSUS_NAMES: Record<ConsensusRule, string> = {
+  unanimous: 'Unanimous only (any disagreement goes to a lead)',
+  majority: 'Strict majority (ties go to a lead)',
+  lead: 'A lead decides every disagreement',
+};
+
+export const DIM_METHODS = ['laplace', 'aic', 'mdl', 'fixed', 'variance'] as const;
+export type DimMethod = (typeof DIM_METHODS)[number];
+
+export const DIM_METHOD_NAMES: Record<DimMethod, string> = {
+  laplace: 'Automatic (Laplace evidence)',
+  aic: 'AIC',
+  mdl: 'MDL',
+  fixed: 'Fixed number of components',
+  variance: 'Fraction of variance explained',
+};
+
+export const STUDY_ROLES = ['lead', 'rater', 'observer'] as const;
+export type StudyRole = (typeof STUDY_ROLES)[number];
+
+export const STUDY_ROLE_NAMES: Record<StudyRole, string> = {
+  lead: 'Lead',
+  rater: 'Rater',
+  observer: 'Observer',
+};
