@@ -1,5 +1,5 @@
 import { handler } from '@/lib/api/handler';
-import { listUsers } from '@/lib/db/queries/users';
+import { listPeople } from '@/lib/db/queries/people';
 
-// GET /api/admin/users – every account with role, status and last sign-in (facility admin)
-export const GET = handler({ permission: 'users.manage' }, async () => ({ users: await listUsers() }));
+// GET /api/admin/users – every account with role, status, last sign-in and study memberships (facility admin)
+export const GET = handler({ permission: 'users.manage' }, async () => ({ users: await listPeople() }));

@@ -1,0 +1,23 @@
+import { handler } from '@/lib/api/handler';
+import { acceptSchema } from '../schema';
+import { acceptInvitation } from '@/lib/db/queries/invitations';
+import { hashPassword } from '@/lib/auth/password';
+import { lockedFor, recordFailure } from '@/lib/auth/throttle';
+import { clientAddress } from '@/lib/auth/tokens';
+import { AppError } from '@/lib/errors';
+
+// POST /api/invitations/accept – the invitee chooses a name and password; the link then stops working
+export const POST = handler({ permission: 'public', body: acceptSchema, what: 'The account' }, async ({ req, body }) => {
+  const ip = clientAddress(req);
+  const key = `invite:link:${ip}` as const;
+  const wait = await lockedFor(key);
+  if (wait > 0) throw new AppError('too_many_requests', `Too many attempts with invalid links. Try again in ${Math.ceil(wait / 60000)} minutes.`);
+  const passwordHash = await hashPassword(body.password);
+  try {
+    const { email } = await acceptInvitation({ token: body.token, name: body.name, passwordHash, ip });
+    return { ok: true, email };
+  } catch (err) {
+    if (err instanceof AppError && err.code === 'not_found') await recordFailure(key);
+    throw err;
+  }
+});
