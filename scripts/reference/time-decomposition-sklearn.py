@@ -1,0 +1,45 @@
+#!/usr/bin/python3
+"""Times scikit-learn on the same decomposition as `quorum decompose` (for the benchmark only).
+
+Reads a 4D NIfTI and a mask with nibabel, demeans and variance-normalises each in-mask voxel,
+estimates the dimension with PCA(n_components='mle') (full SVD) and runs
+FastICA(n_components=K, whiten='unit-variance', fun='logcosh') with voxels as samples (spatial ICA).
+Prints one JSON line of seconds per step. Debian python3-sklearn 1.2.1, python3-nibabel 5.0.0.
+Usage: /usr/bin/python3 scripts/reference/time-decomposition-sklearn.py DATA MASK K
+"""
+import json
+import sys
+import time
+
+import nibabel as nib
+import numpy as np
+import sklearn
+from sklearn.decomposition import PCA, FastICA
+
+
+def main():
+    data_path, mask_path, k = sys.argv[1], sys.argv[2], int(sys.argv[3])
+    t0 = time.perf_counter()
+    img = nib.load(data_path)
+    data = np.asarray(img.dataobj, dtype=np.float32)
+    mask = np.asarray(nib.load(mask_path).dataobj) > 0
+    t1 = time.perf_counter()
+    x = data[mask].astype(np.float64)  # V x T
+    del data
+    x -= x.mean(axis=1, keepdims=True)
+    x /= x.std(axis=1, keepdims=True)
+    t2 = time.perf_counter()
+    mle = PCA(n_components="mle", svd_solver="full").fit(x).n_components_
+    t3 = time.perf_counter()
+    ica = FastICA(n_components=k, whiten="unit-variance", fun="logcosh", max_iter=200, tol=1e-4, random_state=0)
+    ica.fit_transform(x)
+    t4 = time.perf_counter()
+    print(json.dumps({
+        "library": f"scikit-learn {sklearn.__version__}, numpy {np.__version__}, nibabel {nib.__version__}",
+        "read": t1 - t0, "preprocess": t2 - t1, "pcaMle": t3 - t2, "fastica": t4 - t3, "total": t4 - t0,
+        "mleComponents": int(mle), "icaIterations": int(ica.n_iter_),
+    }))
+
+
+if __name__ == "__main__":
+    main()
