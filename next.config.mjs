@@ -18,6 +18,8 @@ const csp = [
 ].join('; ');
 
 const nextConfig = {
+  // A separate build folder lets parallel checkouts or test runs build without clobbering each other.
+  distDir: process.env.QUORUM_NEXT_DIST || '.next',
   reactStrictMode: true,
   poweredByHeader: false,
   serverExternalPackages: ['knex', 'mysql2', 'bcryptjs', 'nodemailer', 'smtp-server', 'mailparser', 'archiver'],

@@ -14,5 +14,5 @@ node --import tsx scripts/reset-database.ts "$QUORUM_DB_NAME"
 node --import tsx node_modules/knex/bin/cli.js --knexfile knexfile.ts migrate:latest >/dev/null
 node --import tsx scripts/seed-demo.ts >/dev/null
 rm -rf "$QUORUM_UPLOADS_DIR" && mkdir -p "$QUORUM_UPLOADS_DIR"
-[ -f .next/BUILD_ID ] || npx next build
+[ -f "${QUORUM_NEXT_DIST:-.next}/BUILD_ID" ] || npx next build
 exec npx next start -p "$PORT" -H 127.0.0.1
