@@ -14,7 +14,8 @@ export type StorageArea = 'runs' | 'masks' | 'motion' | 'decompositions' | 'rele
 const KEY = /^(runs|masks|motion|decompositions|releases|denoised|tmp)\/[0-9]{4}-[0-9]{2}\/[A-Za-z0-9-]+(?:\/[A-Za-z0-9._-]+)?(?:\.[a-z0-9.]+)?$/;
 
 export function storageRoot(): string {
-  return path.resolve(process.env.QUORUM_UPLOADS_DIR ?? path.join(process.cwd(), 'uploads'));
+  // The root is chosen at run time; tell the bundler not to trace the whole project from here.
+  return path.resolve(/*turbopackIgnore: true*/ process.env.QUORUM_UPLOADS_DIR ?? path.join(process.cwd(), 'uploads'));
 }
 
 /** A fresh storage key such as `runs/2026-12/6f1c…e2.nii.gz`. */
