@@ -2,16 +2,16 @@
 // idempotent re-runs, a lost lease, failures) and with worker processes (two workers, SIGKILL
 // mid-job, cancellation, SIGTERM release).
 import { existsSync } from 'node:fs';
-import { truncate, rm, stat } from 'node:fs/promises';
+import { rm, stat, truncate, writeFile } from 'node:fs/promises';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { blobToFloat32, closeDb, db, parseJson } from '@/lib/db/knex';
 import { cancelJob, claimJob, getJob, latestJobForRun, requeueExpiredLeases } from '@/lib/jobs';
 import { jobKinds } from '@/lib/jobs/kinds';
 import { enqueueDecomposition } from '@/lib/jobs/kinds/decompose';
 import { runClaimedJob } from '@/lib/jobs/runner';
-import { readNiftiFile } from '@/lib/nifti';
+import { readNiftiFile, writeNiftiFile } from '@/lib/nifti';
 import { assignRaters } from '@/lib/runs/assign-raters';
-import { pathFor } from '@/lib/storage';
+import { ensureDirFor, newKey, pathFor } from '@/lib/storage';
 import { createPhantomRun, createRun, useTempUploads, writePhantomRunFile } from './helpers/factories';
 import { spawnWorker, waitFor } from './helpers/worker-process';
 
@@ -91,6 +91,52 @@ describe('decompose in process', () => {
     const assignments = await db('assignments').where({ run_id: runId }).orderBy('rater_id');
     expect(assignments.map((a) => a.rater_id)).toEqual(raterIds.slice(0, 2));
     expect(await latestJobForRun(db, { runId })).toMatchObject({ id: jobId, status: 'succeeded', percent: 100 });
+  });
+
+  it('uses the uploaded mask, the motion table (degrees, translations first) and the protocol drop', async () => {
+    const { runId, file } = await createPhantomRun(db, { drop_volumes: 4, dim_method: 'fixed', fixed_components: 5 });
+    const p = file.phantom;
+    const maskKey = newKey('masks', '.nii.gz');
+    await writeNiftiFile(await ensureDirFor(maskKey), {
+      dims: p.dims.slice(0, 3), pixdim: p.voxelSize, affine: p.affine, datatype: 'uint8', data: p.truth.brainMask,
+    });
+    const motionKey = newKey('motion', '.tsv');
+    const rows = Array.from({ length: p.dims[3] }, (_, t) =>
+      [...p.motion.translations.map((c) => c[t]!), ...p.motion.rotations.map((c) => (c[t]! * 180) / Math.PI)].join('\t'),
+    );
+    await writeFile(await ensureDirFor(motionKey), `# tx ty tz rx ry rz\n${rows.join('\n')}\n`);
+    await db('runs').where({ id: runId }).update({ mask_key: maskKey, motion_key: motionKey, motion_order: 'tx,ty,tz,rx,ry,rz', motion_rotation_units: 'degrees' });
+    await enqueueDecomposition(db, { runId });
+    expect(await runNext()).toBe('succeeded');
+    const [d] = await currentDecompositions(runId);
+    expect(d.k).toBe(5);
+    expect(parseJson(d.parameters)).toMatchObject({ mask: 'uploaded', dropVolumes: 4, components: 5, motion: { order: 'trans-first', rotationUnits: 'degrees' } });
+    const summary = parseJson<Record<string, number>>(d.summary)!;
+    expect(summary.timepoints).toBe(p.dims[3] - 4);
+    let brain = 0;
+    for (const v of p.truth.brainMask) if (v) brain++;
+    expect(summary.voxelsInMask).toBeLessThanOrEqual(brain);
+    expect(summary.voxelsInMask).toBeGreaterThan(brain * 0.9);
+    const comps = await db('components').where({ decomposition_id: d.id }).orderBy('idx');
+    for (const c of comps) {
+      expect(blobToFloat32(c.timecourse)!.length).toBe(p.dims[3] - 4);
+      const f = parseJson<Record<string, number | null>>(c.features)!;
+      expect(f.motionCorrelation).toBeGreaterThanOrEqual(0);
+      expect(f.meanFramewiseDisplacement).toBeGreaterThan(0);
+    }
+  });
+
+  it('a motion table with the wrong number of rows fails at once with the parser\'s message', async () => {
+    const { runId } = await createPhantomRun(db);
+    const motionKey = newKey('motion', '.txt');
+    await writeFile(await ensureDirFor(motionKey), '0 0 0 0 0 0\n0 0 0 0 0 0\n');
+    await db('runs').where({ id: runId }).update({ motion_key: motionKey, motion_order: 'rx,ry,rz,tx,ty,tz', motion_rotation_units: 'radians' });
+    const { jobId } = await enqueueDecomposition(db, { runId });
+    expect(await runNext()).toBe('failed');
+    const job = await getJob(db, jobId);
+    expect(job!.attempts).toBe(1);
+    expect(job!.message).toMatch(/motion/i);
+    expect((await db('runs').where({ id: runId }).first()).status_message).toBe(job!.message);
   });
 
   it('a second decomposition replaces the current one and keeps the assignments', async () => {
