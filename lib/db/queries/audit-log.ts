@@ -51,9 +51,17 @@ function normalise(r: Record<string, unknown>): AuditRow {
 }
 
 /** One page of the audit log, newest first, with the total count for the filter. */
-export async function queryAuditLog({ filter, page, pageSize }: { filter: AuditFilter; page: number; pageSize: number }) {
+export async function queryAuditLog({
+  filter,
+  page,
+  pageSize,
+}: {
+  filter: AuditFilter;
+  page: number;
+  pageSize: number;
+}): Promise<{ entries: AuditRow[]; total: number; page: number; pageSize: number }> {
   const [{ total }] = await filtered(filter).count({ total: 'a.id' });
-  const rows = await filtered(filter)
+  const rows: Record<string, unknown>[] = await filtered(filter)
     .select(columns)
     .orderBy('a.id', 'desc')
     .limit(pageSize)
