@@ -1,5 +1,5 @@
 // `quorum decompose` on a small phantom file: every output file, its grid and its columns.
-import { mkdtemp, readFile, rm } from 'node:fs/promises';
+import { mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, describe, expect, it, vi } from 'vitest';
@@ -59,6 +59,30 @@ describe('quorum decompose', () => {
     const features = (await readFile(path.join(out, 'features.tsv'), 'utf8')).trim().split('\n');
     expect(features.length).toBe(7);
     expect((await readNiftiFile(path.join(out, 'mean.nii.gz'))).header.dims).toEqual(p.dims.slice(0, 3));
+  });
+
+  it('uses a motion table for the motion features', async () => {
+    const dir = await mkdtemp(path.join(tmpdir(), 'quorum-decompose-'));
+    dirs.push(dir);
+    const p = generatePhantom({ size: 'tiny', seed: 2 });
+    const file = path.join(dir, 'run.nii.gz');
+    await writeNiftiFile(file, phantomToNiftiInput(p, { datatype: 'int16' }));
+    const rows = Array.from({ length: p.dims[3] }, (_, t) =>
+      [...p.motion.translations.map((c) => c[t]!), ...p.motion.rotations.map((c) => c[t]!)].join(' '));
+    await writeFile(path.join(dir, 'motion.txt'), rows.join('\n') + '\n');
+    const out = path.join(dir, 'out');
+    const res = await runCli([file, '--out', out, '--components', '4', '--drop', '3', '--threads', '1',
+      '--motion', path.join(dir, 'motion.txt'), '--motion-order', 'trans-first', '--motion-units', 'radians']);
+    expect(res.stderr).toBe('');
+    expect(JSON.parse(res.stdout).motionGiven).toBe(true);
+    const lines = (await readFile(path.join(out, 'features.tsv'), 'utf8')).trim().split('\n').map((l) => l.split('\t'));
+    const col = lines[0]!.indexOf('motionCorrelation');
+    expect(col).toBeGreaterThan(0);
+    for (const row of lines.slice(1)) expect(Number(row[col])).toBeGreaterThanOrEqual(0);
+    // A table with the wrong number of rows is refused.
+    await writeFile(path.join(dir, 'short.txt'), rows.slice(1).join('\n') + '\n');
+    const bad = await runCli([file, '--out', out, '--motion', path.join(dir, 'short.txt')]);
+    expect(bad.code).toBe(1);
   });
 
   it('answers bad arguments and missing files with one line on stderr and exit 1', async () => {
