@@ -15,4 +15,9 @@ node --import tsx node_modules/knex/bin/cli.js --knexfile knexfile.ts migrate:la
 node --import tsx scripts/seed-demo.ts >/dev/null
 rm -rf "$QUORUM_UPLOADS_DIR" && mkdir -p "$QUORUM_UPLOADS_DIR"
 [ -f "${QUORUM_NEXT_DIST:-.next}/BUILD_ID" ] || npx next build
+# local fake mail server (scripts/mail-server.ts): the tests read its store with lib/mail/mailbox.ts;
+# it stops when the server started by the exec below ends
+export QUORUM_MAIL_PORT="${QUORUM_MAIL_PORT:-2526}" SMTP_HOST=127.0.0.1 SMTP_PORT="${QUORUM_MAIL_PORT:-2526}"
+export QUORUM_MAIL_DIR="${QUORUM_MAIL_DIR:-$PWD/.data/mail/$QUORUM_DB_NAME}" QUORUM_DEV_MAILBOX=1
+rm -rf "$QUORUM_MAIL_DIR" && node --import tsx scripts/mail-server.ts --exit-with-parent &
 exec npx next start -p "$PORT" -H 127.0.0.1

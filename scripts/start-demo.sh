@@ -35,6 +35,8 @@ stop_all() {
 }
 trap stop_all EXIT INT TERM
 
+# the local fake mail server catches every e-mail; read them at /dev/mailbox (signed in as the admin)
+export SMTP_HOST="${SMTP_HOST:-127.0.0.1}" SMTP_PORT="${SMTP_PORT:-${QUORUM_MAIL_PORT:-2525}}" QUORUM_DEV_MAILBOX="${QUORUM_DEV_MAILBOX:-1}"
 for helper in scripts/mail-server.ts scripts/worker.ts; do
   if [ -f "$helper" ]; then
     node --import tsx "$helper" &
