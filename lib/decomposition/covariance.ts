@@ -1,5 +1,5 @@
 // Temporal (T × T) covariance of the voxel × time data, computed across worker threads.
-import { KernelPool, sharedFloat64, splitRange } from './worker-pool';
+import { KernelPool, sharedFloat64 } from './worker-pool';
 
 export interface TemporalCovariance {
   /** T × T covariance, row-major Float64Array: C[a,b] = Σ_v (x[a,v] − μ_a)(x[b,v] − μ_b) / (V − 1). */
@@ -17,7 +17,7 @@ export interface TemporalCovariance {
  * x: time-major Float32Array T × V (SharedArrayBuffer-backed for parallel runs). Units: data units².
  */
 export async function temporalCovariance(x: Float32Array, T: number, V: number, pool: KernelPool): Promise<TemporalCovariance> {
-  const parts = splitRange(V, pool.threads);
+  const parts = pool.partition(V);
   const outs = parts.map(() => sharedFloat64(T * T));
   await pool.run('gramChunk', parts, (r, i) => [x, T, V, r[0], r[1], outs[i]]);
   const gram = new Float64Array(T * T);

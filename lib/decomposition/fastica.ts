@@ -2,7 +2,7 @@
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { DecompositionError } from './errors';
 import { gaussianSource } from './random';
-import { KernelPool, sharedFloat64, splitRange } from './worker-pool';
+import { KernelPool, sharedFloat64 } from './worker-pool';
 
 export type Contrast = 'logcosh' | 'exp' | 'cube';
 const CONTRAST_CODE: Record<Contrast, number> = { logcosh: 0, exp: 1, cube: 2 };
@@ -87,7 +87,7 @@ export async function fastIca(z: Float32Array, k: number, V: number, pool: Kerne
   if (!(tol > 0)) throw new DecompositionError('bad_option', `tol must be positive; got ${tol}.`);
   if (!(Number.isInteger(maxIter) && maxIter >= 1)) throw new DecompositionError('bad_option', `maxIter must be a positive integer; got ${maxIter}.`);
 
-  const parts = splitRange(V, pool.threads);
+  const parts = pool.partition(V);
   const Gs = parts.map(() => sharedFloat64(k * k));
   const gps = parts.map(() => sharedFloat64(k));
   let last: FastIcaResult | null = null;

@@ -6,7 +6,7 @@ import { buildDataMatrix, meanImage, type RunImage } from './data-matrix';
 import { chooseDimension, type DimMethod, type DimensionChoice } from './dimensionality';
 import { DecompositionError } from './errors';
 import { fastIca, type Contrast } from './fastica';
-import { KernelPool, sharedFloat32, splitRange } from './worker-pool';
+import { KernelPool, sharedFloat32 } from './worker-pool';
 import type { MotionParams } from './motion';
 import { orientComponents } from './orient';
 import { temporalPca } from './pca';
@@ -171,7 +171,7 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
     stage('ica', 90);
     const s = sharedFloat32(k * V);
     const wShared = ica.w;
-    await pool.run('unmixChunk', splitRange(V, pool.threads), (r) => [wh.z, k, V, wShared, r[0], r[1], s]);
+    await pool.run('unmixChunk', pool.partition(V), (r) => [wh.z, k, V, wShared, r[0], r[1], s]);
     // A = dewhitening · Wᵀ (T × k): x − μ1ᵀ ≈ A·S since S = W·Z and W is orthogonal.
     const a = new Float64Array(T * k);
     for (let t = 0; t < T; t++) {

@@ -1,5 +1,5 @@
 // PCA reduction and whitening of the voxel × time data to k × V (spatial ICA input).
-import { KernelPool, sharedFloat32, splitRange } from './worker-pool';
+import { KernelPool, sharedFloat32 } from './worker-pool';
 
 export interface Whitened {
   /** Whitened data, component-major Float32Array k × V (SharedArrayBuffer-backed): Z·Zᵀ/V = I. */
@@ -37,7 +37,7 @@ export async function whiten(
     c[i] = ci;
   }
   const z = sharedFloat32(k * V);
-  const parts = splitRange(V, pool.threads);
+  const parts = pool.partition(V);
   await pool.run('projectChunk', parts, (r) => [x, T, V, p, c, k, r[0], r[1], z]);
   return { z, k, V, whitening: p, dewhitening: dw };
 }

@@ -1,8 +1,9 @@
 // A small pool of node:worker_threads that run the kernels of kernels.ts over voxel ranges of
 // SharedArrayBuffer-backed arrays (no copies of voxel-sized data). The worker source is built from
 // the kernels' own source text, so it needs no loader for TypeScript and runs the same code as the
-// main thread. If workers cannot start, the same partition runs on the calling thread, so results
-// depend only on the number of partitions, never on scheduling.
+// main thread. Work is always cut into the same PARTITIONS voxel ranges whatever the thread count
+// (partial sums are added in range order), so results are bit-identical on 1, 2 … 16 threads and
+// when workers cannot start and the ranges run on the calling thread.
 import { Worker } from 'node:worker_threads';
 import { availableParallelism } from 'node:os';
 import { gramChunk, icaChunk, projectChunk, unmixChunk } from './kernels';
@@ -48,6 +49,9 @@ export function splitRange(n: number, parts: number): Array<[number, number]> {
   return out;
 }
 
+/** Number of voxel ranges every parallel kernel call is cut into (independent of thread count). */
+export const PARTITIONS = 16;
+
 export class KernelPool {
   readonly threads: number;
   private workers: Worker[] = [];
@@ -82,6 +86,11 @@ export class KernelPool {
         this.workers = [];
       }
     }
+  }
+
+  /** The fixed voxel ranges of [0, n) that kernels run over (see PARTITIONS). */
+  partition(n: number): Array<[number, number]> {
+    return splitRange(n, PARTITIONS);
   }
 
   /** True when work runs on worker threads (false: on the calling thread). */

@@ -10,8 +10,8 @@ const nVox = 14 * 14 * 6;
 const fullMask = new Uint8Array(nVox).fill(1);
 
 describe('decomposeRun', () => {
-  it('is deterministic: same seed → identical maps and time courses (also across thread counts for the partition)', async () => {
-    const a = await decomposeRun({ image: run.image, mask: fullMask }, { seed: 42, threads: 2 });
+  it('is deterministic: same seed → identical maps and time courses, on 1 or 2 threads', async () => {
+    const a = await decomposeRun({ image: run.image, mask: fullMask }, { seed: 42, threads: 1 });
     const b = await decomposeRun({ image: run.image, mask: fullMask }, { seed: 42, threads: 2 });
     expect(a.seed).toBe(42);
     expect(Buffer.from(a.maps.buffer, a.maps.byteOffset, a.maps.byteLength).equals(Buffer.from(b.maps.buffer, b.maps.byteOffset, b.maps.byteLength))).toBe(true);
