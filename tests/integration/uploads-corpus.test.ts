@@ -20,7 +20,7 @@ const FIXTURES = path.resolve('tests/fixtures/uploads');
 const fixture = (name: string) => readFileSync(path.join(FIXTURES, name));
 
 /** A request body as the browser sends it: the bytes in chunks, with or without Content-Length. */
-export function rawBody(bytes: Uint8Array, opts: { chunk?: number; length?: boolean; failAfter?: number } = {}): RawBody {
+function rawBody(bytes: Uint8Array, opts: { chunk?: number; length?: boolean; failAfter?: number } = {}): RawBody {
   const chunk = opts.chunk ?? 64;
   let offset = 0;
   const body = new ReadableStream<Uint8Array>({
