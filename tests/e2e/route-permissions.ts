@@ -48,6 +48,13 @@ export const ROUTES: RouteCase[] = [
   { file: 'runs/[id]/retry/route.ts', method: 'POST', url: '/api/runs/999999/retry', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/cancel/route.ts', method: 'POST', url: '/api/runs/999999/cancel', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/progress/route.ts', method: 'GET', url: '/api/runs/999999/progress', allowed: ALL },
+  // rating desk (votes.write: raters, and the admin, who holds every action; rows scoped to the caller's assignments)
+  { file: 'runs/[id]/components/route.ts', method: 'GET', url: '/api/runs/999999/components', allowed: ['admin', 'rater'] },
+  { file: 'runs/[id]/votes/route.ts', method: 'GET', url: '/api/runs/999999/votes', allowed: ['admin', 'rater'] },
+  { file: 'runs/[id]/votes/[componentId]/route.ts', method: 'PUT', url: '/api/runs/999999/votes/1', allowed: ['admin', 'rater'] },
+  { file: 'runs/[id]/submit/route.ts', method: 'POST', url: '/api/runs/999999/submit', allowed: ['admin', 'rater'] },
+  { file: 'runs/[id]/desk/route.ts', method: 'PUT', url: '/api/runs/999999/desk', allowed: ['admin', 'rater'] },
+  { file: 'runs/[id]/files/[file]/route.ts', method: 'GET', url: '/api/runs/999999/files/components.nii.gz', allowed: ['admin', 'rater'] },
   // next-auth's own endpoints and the JSON 404 for unknown addresses are not permission-checked routes.
   { file: 'auth/[...nextauth]/route.ts', method: 'GET', url: '/api/auth/session', allowed: 'skip' },
   { file: 'auth/[...nextauth]/route.ts', method: 'POST', url: '/api/auth/signout', allowed: 'skip' },

@@ -1,0 +1,390 @@
+'use client';
+import Link from 'next/link';
+import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import { useQueryClient } from '@tanstack/react-query';
+import { postJson, putJson } from '@/lib/api/client';
+import { commandFor } from '@/lib/desk/keys';
+import { useRunComponents } from '@/lib/desk/use-run-components';
+import { useVotes, votesKey } from '@/lib/desk/use-vote';
+import type { ComponentsPayload, VoteFields, VotesPayload } from '@/lib/desk/types';
+import { VolumeViewer, type ViewerLayout, type ViewerLocation } from '@/components/viewer';
+import { DUSK_CSS, EMBER_CSS } from '@/components/viewer/colormaps';
+import { TimecourseChart } from '@/components/charts/timecourse-chart';
+import { SpectrumChart } from '@/components/charts/spectrum-chart';
+import { MotionChart } from '@/components/charts/motion-chart';
+import { FeaturePanel } from '@/components/desk/feature-panel';
+import { HelpOverlay } from '@/components/desk/help-overlay';
+import { ComponentStrip } from '@/components/desk/component-strip';
+import { VerdictPanel } from '@/components/desk/verdict-panel';
+import { OthersVotes } from '@/components/desk/others-votes';
+import { Notice } from '@/components/ui/notice';
+
+declare global {
+  interface Window {
+    /** Key press → new component drawn, in ms (read by the browser test). */
+    __deskTimings?: number[];
+  }
+}
+
+const PREFS = 'quorum.desk.prefs.v1';
+type Prefs = { threshold: number; layout: ViewerLayout; autoAdvance: boolean };
+const DEFAULT_PREFS: Prefs = { threshold: 2.5, layout: 'multiplanar', autoAdvance: false };
+
+function loadPrefs(): Prefs {
+  try {
+    return { ...DEFAULT_PREFS, ...(JSON.parse(localStorage.getItem(PREFS) ?? '{}') as Partial<Prefs>) };
+  } catch {
+    return DEFAULT_PREFS;
+  }
+}
+
+export function RateClient({
+  runId,
+  userId,
+  initialComponents,
+  initialVotes,
+}: {
+  runId: number;
+  userId: number;
+  initialComponents: ComponentsPayload;
+  initialVotes: VotesPayload;
+}) {
+  const queryClient = useQueryClient();
+  const { data: payload } = useRunComponents(runId, initialComponents);
+  const { run, components } = payload ?? initialComponents;
+  const { votes, status, others, setVote, sync, clearRefusal } = useVotes({ runId, userId, initialData: initialVotes });
+
+  const ids = useMemo(() => components.map((c) => c.id), [components]);
+  const firstUnlabelled = useCallback(
+    (from = 0) => {
+      for (let i = 0; i < ids.length; i++) {
+        const j = (from + i) % ids.length;
+        if (!votes.get(ids[j])?.label) return j;
+      }
+      return -1;
+    },
+    [ids, votes],
+  );
+  const [index, setIndex] = useState(() => {
+    const last = run.lastComponentIdx;
+    if (last && last >= 1 && last <= components.length) return last - 1;
+    const labelled = new Set(initialVotes.mine.map((v) => v.componentId));
+    const i = components.findIndex((c) => !labelled.has(c.id));
+    return i < 0 ? 0 : i;
+  });
+  const [prefs, setPrefs] = useState<Prefs>(DEFAULT_PREFS);
+  useEffect(() => setPrefs(loadPrefs()), []);
+  useEffect(() => {
+    try {
+      localStorage.setItem(PREFS, JSON.stringify(prefs));
+    } catch {
+      /* private mode */
+    }
+  }, [prefs]);
+  const [help, setHelp] = useState(false);
+  const [location, setLocation] = useState<ViewerLocation | null>(null);
+  const [viewerError, setViewerError] = useState<string | null>(null);
+  const [submitState, setSubmitState] = useState<{ busy: boolean; message: string | null }>({ busy: false, message: null });
+  const noteRef = useRef<HTMLTextAreaElement>(null);
+  const navStart = useRef<{ frame: number; t: number } | null>(null);
+
+  const component = components[index];
+  const vote = votes.get(component.id);
+  const labelledCount = ids.filter((id) => votes.get(id)?.label).length;
+  const released = Boolean(status?.released);
+  const submitted = Boolean(status?.submittedAt);
+
+  // remember where the rater is (reopens here), debounced
+  useEffect(() => {
+    const t = setTimeout(() => void putJson(`/api/runs/${runId}/desk`, { componentIdx: index + 1 }), 400);
+    return () => clearTimeout(t);
+  }, [index, runId]);
+
+  const goTo = useCallback(
+    (next: number) => {
+      if (next < 0 || next >= ids.length) return;
+      performance.mark('desk:nav');
+      navStart.current = { frame: next, t: performance.now() };
+      setIndex(next);
+    },
+    [ids.length],
+  );
+
+  const onDrawn = useCallback((frame: number) => {
+    const start = navStart.current;
+    if (!start || start.frame !== frame) return;
+    navStart.current = null;
+    const ms = performance.now() - start.t;
+    performance.measure('desk:next', 'desk:nav');
+    (window.__deskTimings ??= []).push(ms);
+  }, []);
+
+  const change = useCallback(
+    (fields: Partial<VoteFields>, advance = false) => {
+      if (released) return;
+      setVote(component.id, fields);
+      if (advance && prefs.autoAdvance && index < ids.length - 1) goTo(index + 1);
+    },
+    [released, setVote, component.id, prefs.autoAdvance, index, ids.length, goTo],
+  );
+
+  const submit = useCallback(async () => {
+    if (submitted || submitState.busy) return;
+    if (labelledCount < ids.length) {
+      setSubmitState({ busy: false, message: `${ids.length - labelledCount} components are not labelled yet. Enter jumps to the next one.` });
+      return;
+    }
+    if (sync.unsaved > 0) {
+      setSubmitState({ busy: false, message: 'Some votes are not saved yet; submit again once they are.' });
+      return;
+    }
+    setSubmitState({ busy: true, message: null });
+    const res = await postJson<{ submittedAt: string }>(`/api/runs/${runId}/submit`, {});
+    setSubmitState({ busy: false, message: res.ok ? null : res.message });
+    if (res.ok) await queryClient.invalidateQueries({ queryKey: votesKey(runId) });
+  }, [submitted, submitState.busy, labelledCount, ids.length, sync.unsaved, runId, queryClient]);
+
+  useEffect(() => {
+    const onKey = (e: KeyboardEvent) => {
+      const target = e.target as HTMLElement | null;
+      if (target && (target.tagName === 'TEXTAREA' || target.tagName === 'INPUT' || target.isContentEditable)) return;
+      const cmd = commandFor(e, run.labelSet);
+      if (!cmd) return;
+      if (help && cmd.type !== 'help' && cmd.type !== 'close') return;
+      e.preventDefault();
+      switch (cmd.type) {
+        case 'label':
+          change(cmd.label === 'noise' ? { label: cmd.label } : { label: cmd.label, noiseKind: null }, cmd.label !== 'noise');
+          break;
+        case 'kind': {
+          const kind = run.noiseKinds[cmd.index];
+          if (kind) change({ label: 'noise', noiseKind: kind }, true);
+          break;
+        }
+        case 'confidence':
+          if (vote?.label) change({ confidence: cmd.value });
+          break;
+        case 'next':
+          goTo(index + 1);
+          break;
+        case 'previous':
+          goTo(index - 1);
+          break;
+        case 'nextUnlabelled': {
+          const j = firstUnlabelled(index + 1);
+          if (j >= 0 && j !== index) goTo(j);
+          break;
+        }
+        case 'note':
+          noteRef.current?.focus();
+          break;
+        case 'thresholdDown':
+          setPrefs((p) => ({ ...p, threshold: Math.max(1, Math.round((p.threshold - 0.5) * 10) / 10) }));
+          break;
+        case 'thresholdUp':
+          setPrefs((p) => ({ ...p, threshold: Math.min(12, Math.round((p.threshold + 0.5) * 10) / 10) }));
+          break;
+        case 'layout':
+          setPrefs((p) => ({ ...p, layout: p.layout === 'mosaic' ? 'multiplanar' : 'mosaic' }));
+          break;
+        case 'autoAdvance':
+          setPrefs((p) => ({ ...p, autoAdvance: !p.autoAdvance }));
+          break;
+        case 'help':
+          setHelp((h) => !h);
+          break;
+        case 'close':
+          setHelp(false);
+          clearRefusal();
+          break;
+        case 'submit':
+          void submit();
+          break;
+      }
+    };
+    window.addEventListener('keydown', onKey);
+    return () => window.removeEventListener('keydown', onKey);
+  }, [run.labelSet, run.noiseKinds, help, change, vote?.label, goTo, index, firstUnlabelled, submit, clearRefusal]);
+
+  const peak = Number(component.features.peakZ ?? 0);
+  const maxZ = Math.max(prefs.threshold + 2, Math.min(peak || 8, 15));
+  const files = `/api/runs/${runId}/files`;
+  const othersHere = others?.filter((o) => o.componentId === component.id) ?? null;
+  const pct = ids.length ? (100 * labelledCount) / ids.length : 0;
+
+  return (
+    <div className="flex flex-col gap-3" data-testid="rating-desk">
+      <header className="flex flex-wrap items-center gap-x-4 gap-y-2">
+        <div className="min-w-0">
+          <h1 className="truncate font-mono text-sm font-semibold" data-testid="desk-run-name">
+            {run.name}
+          </h1>
+          <p className="text-xs text-ink-faint">{run.studyName}</p>
+        </div>
+        <p className="font-mono text-sm" data-testid="desk-position" aria-live="polite">
+          Component <span className="text-ink">{component.idx}</span> of {ids.length}
+        </p>
+        <div className="flex min-w-48 flex-1 items-center gap-2">
+          <div
+            className="h-1.5 flex-1 rounded bg-ground-sunken"
+            role="progressbar"
+            aria-label="Components labelled"
+            aria-valuemin={0}
+            aria-valuemax={ids.length}
+            aria-valuenow={labelledCount}
+            data-testid="desk-progress"
+          >
+            <div className="h-1.5 rounded bg-lumen transition-[width]" style={{ width: `${pct}%` }} />
+          </div>
+          <span className="font-mono text-xs text-ink-muted" data-testid="desk-progress-text">
+            {labelledCount}/{ids.length}
+          </span>
+        </div>
+        <p
+          className={`text-xs ${sync.phase === 'retrying' ? 'text-alarm' : 'text-ink-muted'}`}
+          data-testid="sync-status"
+          data-phase={sync.phase}
+          role="status"
+        >
+          {sync.unsaved === 0 ? 'All votes saved' : sync.phase === 'retrying' ? `${sync.unsaved} unsaved, retrying` : `Saving ${sync.unsaved}…`}
+        </p>
+        <button type="button" onClick={() => setHelp(true)} className="rounded border border-line-strong px-2 py-1 text-xs text-ink-muted hover:text-ink" data-testid="help-button">
+          Keys <kbd className="font-mono">?</kbd>
+        </button>
+        {submitted ? (
+          <span className="text-xs text-ink-muted" data-testid="submitted-note">
+            Submitted {status?.submittedAt?.replace('T', ' ').slice(0, 16)} UTC{released ? ' · released, votes frozen' : ' · changes are still possible until release'}
+          </span>
+        ) : (
+          <button
+            type="button"
+            onClick={() => void submit()}
+            disabled={submitState.busy}
+            data-testid="submit-run"
+            className={`rounded px-3 py-1 text-sm font-medium ${labelledCount === ids.length ? 'bg-lumen text-ground hover:bg-lumen-strong' : 'border border-line-strong text-ink-muted'}`}
+          >
+            Submit run <kbd className="ml-1 font-mono text-[10px] opacity-70">Ctrl+Enter</kbd>
+          </button>
+        )}
+      </header>
+
+      {sync.refusal ? (
+        <Notice kind="error" testId="vote-refusal">
+          {sync.refusal}
+        </Notice>
+      ) : null}
+      {submitState.message ? (
+        <Notice kind="error" testId="submit-message">
+          {submitState.message}
+        </Notice>
+      ) : null}
+      {viewerError ? (
+        <Notice kind="error" testId="viewer-error">
+          {viewerError}
+        </Notice>
+      ) : null}
+
+      <ComponentStrip ids={ids} current={index} votes={votes} onPick={goTo} />
+
+      <div className="grid gap-3 lg:grid-cols-[minmax(0,1fr)_20rem]">
+        <div className="flex min-w-0 flex-col gap-2">
+          <div className="relative h-[26rem] overflow-hidden rounded border border-line bg-ground-sunken">
+            <VolumeViewer
+              meanUrl={`${files}/mean.nii.gz?d=${run.decompositionId}`}
+              componentsUrl={`${files}/components.nii.gz?d=${run.decompositionId}`}
+              frame={index}
+              threshold={prefs.threshold}
+              maxZ={maxZ}
+              layout={prefs.layout}
+              onLocation={setLocation}
+              onDrawn={onDrawn}
+              onError={setViewerError}
+            />
+          </div>
+          <div className="flex flex-wrap items-center gap-x-4 gap-y-1 text-xs text-ink-muted">
+            <label className="flex items-center gap-2">
+              |z| ≥
+              <input
+                type="range"
+                min={1}
+                max={12}
+                step={0.1}
+                value={prefs.threshold}
+                onChange={(e) => setPrefs((p) => ({ ...p, threshold: Number(e.target.value) }))}
+                aria-label="|z| threshold"
+                data-testid="threshold"
+                className="w-28 accent-lumen"
+              />
+              <span className="w-8 font-mono text-ink" data-testid="threshold-value">
+                {prefs.threshold.toFixed(1)}
+              </span>
+            </label>
+            <span className="flex items-center gap-1" aria-hidden>
+              <span className="h-2 w-12 rounded-sm" style={{ background: DUSK_CSS }} />
+              <span className="font-mono">−z · +z</span>
+              <span className="h-2 w-12 rounded-sm" style={{ background: EMBER_CSS }} />
+            </span>
+            <div role="group" aria-label="Layout" className="flex overflow-hidden rounded border border-line-strong">
+              {(['multiplanar', 'mosaic'] as const).map((l) => (
+                <button
+                  key={l}
+                  type="button"
+                  aria-pressed={prefs.layout === l}
+                  onClick={() => setPrefs((p) => ({ ...p, layout: l }))}
+                  data-testid={`layout-${l}`}
+                  className={`px-2 py-0.5 ${prefs.layout === l ? 'bg-ground-raised text-ink' : 'text-ink-muted'}`}
+                >
+                  {l === 'multiplanar' ? 'Three planes' : 'Mosaic'}
+                </button>
+              ))}
+            </div>
+            <label className="flex items-center gap-1">
+              <input type="checkbox" checked={prefs.autoAdvance} onChange={() => setPrefs((p) => ({ ...p, autoAdvance: !p.autoAdvance }))} className="accent-lumen" />
+              auto-advance (A)
+            </label>
+            <span className="ml-auto font-mono" data-testid="crosshair-readout">
+              {location
+                ? `${location.mm.map((v) => v.toFixed(0)).join(', ')} mm · z ${location.z == null ? '—' : location.z.toFixed(2)}`
+                : 'click the map to read z'}
+            </span>
+          </div>
+          <div className="grid gap-2 md:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]">
+            <figure className="rounded border border-line bg-ground-raised px-2 pt-1">
+              <figcaption className="text-[11px] uppercase tracking-wider text-ink-faint">Time course · s</figcaption>
+              <TimecourseChart values={component.timecourse} trSeconds={run.trSeconds} droppedVolumes={run.droppedVolumes} />
+              {run.framewiseDisplacement ? (
+                <>
+                  <p className="text-[11px] uppercase tracking-wider text-ink-faint">Framewise displacement · mm</p>
+                  <MotionChart fd={run.framewiseDisplacement} trSeconds={run.trSeconds} droppedVolumes={run.droppedVolumes} />
+                </>
+              ) : null}
+            </figure>
+            <figure className="rounded border border-line bg-ground-raised px-2 pt-1">
+              <figcaption className="text-[11px] uppercase tracking-wider text-ink-faint">
+                Power spectrum · Hz (to {(1 / (2 * run.trSeconds)).toFixed(2)} Hz; line at 0.1 Hz)
+              </figcaption>
+              <SpectrumChart frequencies={component.frequencies} power={component.spectrum} trSeconds={run.trSeconds} />
+            </figure>
+          </div>
+        </div>
+        <aside className="flex flex-col gap-3" aria-label="Vote and features">
+          <VerdictPanel
+            ref={noteRef}
+            vote={vote}
+            labelSet={run.labelSet}
+            noiseKinds={run.noiseKinds}
+            disabled={released}
+            onChange={(f) => change(f)}
+            onNoteDone={() => noteRef.current?.blur()}
+          />
+          {othersHere ? <OthersVotes votes={othersHere} /> : null}
+          <FeaturePanel component={component} k={ids.length} />
+          <Link href="/" className="text-xs text-ink-muted hover:text-ink">
+            ← Back to my queue
+          </Link>
+        </aside>
+      </div>
+      {help ? <HelpOverlay labelSet={run.labelSet} noiseKinds={run.noiseKinds} onClose={() => setHelp(false)} /> : null}
+    </div>
+  );
+}
