@@ -20,4 +20,5 @@ rm -rf "$QUORUM_UPLOADS_DIR" && mkdir -p "$QUORUM_UPLOADS_DIR"
 export QUORUM_MAIL_PORT="${QUORUM_MAIL_PORT:-2526}" SMTP_HOST=127.0.0.1 SMTP_PORT="${QUORUM_MAIL_PORT:-2526}"
 export QUORUM_MAIL_DIR="${QUORUM_MAIL_DIR:-$PWD/.data/mail/$QUORUM_DB_NAME}" QUORUM_DEV_MAILBOX=1
 rm -rf "$QUORUM_MAIL_DIR" && node --import tsx scripts/mail-server.ts --exit-with-parent &
+node --import tsx scripts/worker.ts &
 exec npx next start -p "$PORT" -H 127.0.0.1
