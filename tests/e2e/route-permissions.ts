@@ -30,6 +30,8 @@ export const ROUTES: RouteCase[] = [
   { file: 'studies/[id]/agreement/route.ts', method: 'GET', url: '/api/studies/1/agreement', allowed: ['admin', 'lead', 'observer'] },
   { file: 'studies/[id]/reconcile/route.ts', method: 'GET', url: '/api/studies/1/reconcile', allowed: ['admin', 'lead'] },
   { file: 'studies/[id]/decisions/route.ts', method: 'POST', url: '/api/studies/1/decisions', allowed: ['admin', 'lead'] },
+  { file: 'reconcile/runs/[runId]/components/route.ts', method: 'GET', url: '/api/reconcile/runs/999999/components', allowed: ['admin', 'lead'] },
+  { file: 'reconcile/runs/[runId]/files/[file]/route.ts', method: 'GET', url: '/api/reconcile/runs/999999/files/mean.nii.gz', allowed: ['admin', 'lead'] },
   // studies, members, runs and uploads (mutations use study/run 999999 so the walk changes nothing)
   { file: 'studies/route.ts', method: 'GET', url: '/api/studies', allowed: ALL },
   { file: 'studies/route.ts', method: 'POST', url: '/api/studies', allowed: ['admin', 'lead'] },

@@ -1,0 +1,74 @@
+import 'server-only';
+import { blobToFloat32, db, parseJson } from '@/lib/db/knex';
+import { bidsName } from '@/lib/bids';
+import { AppError } from '@/lib/errors';
+import type { DeskComponent, DeskRun } from '@/lib/desk/types';
+import type { UserRow } from './users';
+import { findStudyAccess, leadsStudy } from './study-access';
+
+const round = (v: number) => (Number.isFinite(v) ? Number(v.toPrecision(6)) : 0);
+const toList = (blob: Buffer | null) => Array.from(blobToFloat32(blob) ?? [], round);
+
+/**
+ * A run's current decomposition as a study lead reviews it in Reconcile: the same shapes the
+ * rating desk draws (maps, time courses, spectra, features), reached through leading the study
+ * instead of an assignment. 404 when the run is not in a study the caller leads.
+ */
+export async function loadRunForReview({ user, runId }: { user: Pick<UserRow, 'id' | 'role'>; runId: number }) {
+  const run = await db('runs as r')
+    .join('studies as s', 's.id', 'r.study_id')
+    .join('decompositions as d', function () {
+      this.on('d.run_id', 'r.id').andOn('d.is_current', db.raw('1'));
+    })
+    .where('r.id', runId)
+    .first(
+      'r.id as runId',
+      'r.study_id as studyId',
+      's.name as studyName',
+      'r.sub',
+      'r.ses',
+      'r.task',
+      'r.acq',
+      'r.run_label as runLabel',
+      'r.tr_seconds as trSeconds',
+      's.label_set as labelSet',
+      's.noise_kinds as noiseKinds',
+      'd.id as decompositionId',
+      'd.parameters',
+      'd.components_key as componentsKey',
+      'd.mean_key as meanKey',
+      'd.mask_key as maskKey',
+    );
+  const access = run ? await findStudyAccess({ user, studyId: run.studyId }) : null;
+  if (!run || !leadsStudy(access)) throw new AppError('not_found', `Run ${runId} is not in a study you lead.`);
+  const parameters = parseJson<Record<string, unknown>>(run.parameters, {}) ?? {};
+  const rows = await db('components')
+    .where({ decomposition_id: run.decompositionId })
+    .orderBy('idx')
+    .select('id', 'idx', 'variance_explained as varianceExplained', 'features', 'timecourse', 'spectrum', 'frequencies');
+  const components: DeskComponent[] = rows.map((r) => ({
+    id: r.id,
+    idx: r.idx,
+    varianceExplained: Number(r.varianceExplained),
+    features: parseJson<Record<string, number | null>>(r.features, {}) ?? {},
+    timecourse: toList(r.timecourse),
+    spectrum: toList(r.spectrum),
+    frequencies: toList(r.frequencies),
+  }));
+  const deskRun: DeskRun = {
+    runId: run.runId,
+    decompositionId: run.decompositionId,
+    name: bidsName(run),
+    studyId: run.studyId,
+    studyName: run.studyName,
+    trSeconds: Number(run.trSeconds),
+    droppedVolumes: Number(parameters.drop ?? 0) || 0,
+    k: components.length,
+    labelSet: parseJson<string[]>(run.labelSet, []) ?? [],
+    noiseKinds: parseJson<string[]>(run.noiseKinds, []) ?? [],
+    framewiseDisplacement: null,
+    lastComponentIdx: null,
+  };
+  const files = { 'components.nii.gz': run.componentsKey, 'mean.nii.gz': run.meanKey, 'mask.nii.gz': run.maskKey } as Record<string, string | null>;
+  return { run: deskRun, components, files };
+}
