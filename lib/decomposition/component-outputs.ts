@@ -75,6 +75,8 @@ export function decompositionSummary(r: DecompositionResult) {
     explainedVariance: Array.from(r.explainedVariance, round),
     pcaVarianceKept: round(r.pcaVarianceKept),
     iterations: r.iterations,
+    warmStartIterations: r.warmStartIterations,
+    warmStartVoxels: r.warmStartVoxels,
     converged: r.converged,
     seed: r.seed,
     requestedSeed: r.requestedSeed,
