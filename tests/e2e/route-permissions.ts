@@ -57,6 +57,24 @@ export const ROUTES: RouteCase[] = [
   { file: 'runs/[id]/submit/route.ts', method: 'POST', url: '/api/runs/999999/submit', allowed: ['admin', 'rater'] },
   { file: 'runs/[id]/desk/route.ts', method: 'PUT', url: '/api/runs/999999/desk', allowed: ['admin', 'rater'] },
   { file: 'runs/[id]/files/[file]/route.ts', method: 'GET', url: '/api/runs/999999/files/components.nii.gz', allowed: ['admin', 'rater'] },
+  // releases and exports (addresses of rows that do not exist: allowed roles get 404, never a write)
+  { file: 'studies/[id]/releases/route.ts', method: 'GET', url: '/api/studies/999999/releases', allowed: ['admin', 'lead', 'observer'] },
+  { file: 'studies/[id]/releases/route.ts', method: 'POST', url: '/api/studies/999999/releases', allowed: ['admin', 'lead'] },
+  { file: 'releases/[releaseId]/route.ts', method: 'GET', url: '/api/releases/999999', allowed: ['admin', 'lead', 'observer'] },
+  { file: 'releases/[releaseId]/archive/route.ts', method: 'GET', url: '/api/releases/999999/archive', allowed: ['admin', 'lead', 'observer'] },
+  { file: 'releases/[releaseId]/files/[name]/route.ts', method: 'GET', url: '/api/releases/999999/files/manifest.json', allowed: ['admin', 'lead', 'observer'] },
+  { file: 'runs/[id]/denoise/route.ts', method: 'GET', url: '/api/runs/999999/denoise', allowed: ['admin', 'lead', 'observer'] },
+  { file: 'runs/[id]/denoise/route.ts', method: 'POST', url: '/api/runs/999999/denoise', allowed: ['admin', 'lead'] },
+  { file: 'runs/[id]/denoise/[jobId]/route.ts', method: 'GET', url: '/api/runs/999999/denoise/1', allowed: ['admin', 'lead', 'observer'] },
+  { file: 'account/tokens/route.ts', method: 'GET', url: '/api/account/tokens', allowed: ['admin', 'lead', 'observer'] },
+  { file: 'account/tokens/route.ts', method: 'POST', url: '/api/account/tokens', allowed: ['admin', 'lead', 'observer'] },
+  { file: 'account/tokens/[tokenId]/route.ts', method: 'DELETE', url: '/api/account/tokens/999999', allowed: ['admin', 'lead', 'observer'] },
+  // the pipeline API authenticates Bearer tokens, not sessions (a session alone gets 401; writes 405):
+  // tested in tests/integration/tokens-api.test.ts
+  ...(['GET', 'POST', 'PUT', 'PATCH', 'DELETE'] as const).flatMap((method) => [
+    { file: 'v1/studies/[id]/releases/latest/runs/route.ts', method, url: '/api/v1/studies/1/releases/latest/runs', allowed: 'skip' as const },
+    { file: 'v1/releases/[releaseId]/files/[name]/route.ts', method, url: '/api/v1/releases/1/files/manifest.json', allowed: 'skip' as const },
+  ]),
   // next-auth's own endpoints and the JSON 404 for unknown addresses are not permission-checked routes.
   { file: 'auth/[...nextauth]/route.ts', method: 'GET', url: '/api/auth/session', allowed: 'skip' },
   { file: 'auth/[...nextauth]/route.ts', method: 'POST', url: '/api/auth/signout', allowed: 'skip' },

@@ -1,7 +1,9 @@
 // The registry of job kinds the worker can run. Add a kind here and its payload schema in ../payloads.ts.
 import type { JobKind } from '../types';
 import { decomposeKind } from './decompose';
+import { denoiseKind } from './denoise';
 
 export const jobKinds: Readonly<Record<string, JobKind>> = {
   [decomposeKind.kind]: decomposeKind as unknown as JobKind,
+  [denoiseKind.kind]: denoiseKind as unknown as JobKind,
 };

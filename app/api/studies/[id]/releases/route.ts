@@ -1,0 +1,28 @@
+import { z } from 'zod';
+import { handler } from '@/lib/api/handler';
+import { findStudyAccess } from '@/lib/db/queries/study-access';
+import { listReleases, releaseReadiness } from '@/lib/db/queries/releases';
+import { createRelease, publicManifest, refusalOf } from '@/lib/releases/create-release';
+import { notFound } from '@/lib/errors';
+import { createReleaseSchema } from './schema';
+
+const params = z.object({ id: z.coerce.number().int().positive() });
+
+// GET /api/studies/:id/releases – the study's releases (newest first) and whether it can be released now
+export const GET = handler({ permission: 'releases.read', params, what: 'The releases request' }, async ({ user, params }) => {
+  const access = await findStudyAccess({ user, studyId: params.id });
+  if (!access) throw notFound('The study');
+  const readiness = await releaseReadiness({ studyId: params.id });
+  const releases = await listReleases({ studyId: params.id });
+  return {
+    study: { id: access.studyId, name: access.name },
+    readiness: { ...readiness, refusal: refusalOf(readiness, params.id) },
+    releases: releases.map((r) => ({ ...r, manifest: r.manifest ? publicManifest(r.manifest) : null })),
+  };
+});
+
+// POST /api/studies/:id/releases – a lead releases the study (or one run with {runId}); 409 with the reason when decisions are incomplete
+export const POST = handler({ permission: 'releases.create', params, body: createReleaseSchema, what: 'The release' }, async ({ user, params, body, req }) => {
+  const created = await createRelease({ user, studyId: params.id, runId: body.runId ?? null, notes: body.notes || null, ip: req.headers.get('x-forwarded-for') });
+  return Response.json({ releaseId: created.releaseId, version: created.version, files: created.manifest.files.length }, { status: 201 });
+});

@@ -1,0 +1,7 @@
+import { z } from 'zod';
+
+export const createReleaseSchema = z.object({
+  /** Release one run instead of the whole study. */
+  runId: z.coerce.number().int().positive().optional(),
+  notes: z.string().trim().max(2000).optional(),
+});

@@ -1,0 +1,77 @@
+import 'server-only';
+import { db, parseJson, toJson } from '@/lib/db/knex';
+import { denoisePayloadSchema, type DenoisePayload, type DenoiseResult } from '@/lib/denoise/payload';
+
+export type DenoiseJob = {
+  jobId: number;
+  runId: number;
+  status: string;
+  stage: string | null;
+  percent: number | null;
+  message: string | null;
+  payload: DenoisePayload | null;
+  result: DenoiseResult | null;
+  createdAt: Date;
+};
+
+/**
+ * Queues a denoise job for a run (an identical queued or running request returns that job).
+ * The row is written here rather than through lib/jobs' enqueueJob because the jobs helper's
+ * payload registry (lib/jobs/payloads.ts) does not list `denoise` yet; the payload is validated
+ * with the same schema the worker's kind uses, and the worker validates it again when it claims.
+ */
+export async function enqueueDenoise({ payload, studyId, createdBy }: { payload: DenoisePayload; studyId: number; createdBy: number }): Promise<{ jobId: number; existing: boolean }> {
+  const data = denoisePayloadSchema.parse(payload);
+  return db.transaction(async (trx) => {
+    await trx('runs').where({ id: data.runId }).forUpdate().first('id');
+    const active = await trx('jobs').where({ run_id: data.runId, kind: 'denoise' }).whereIn('status', ['queued', 'running']).select('id', 'payload');
+    const same = active.find((j: { payload: unknown }) => JSON.stringify(parseJson(j.payload)) === JSON.stringify(data));
+    if (same) return { jobId: Number(same.id), existing: true };
+    const [id] = await trx('jobs').insert({
+      kind: 'denoise',
+      payload: toJson(data),
+      status: 'queued',
+      priority: 0,
+      max_attempts: 3,
+      run_id: data.runId,
+      study_id: studyId,
+      created_by: createdBy,
+      run_after: trx.raw('NOW(3)'),
+    });
+    return { jobId: Number(id), existing: false };
+  });
+}
+
+const COLUMNS = ['id', 'run_id', 'status', 'stage', 'percent', 'message', 'payload', 'result', 'created_at'];
+function toDenoiseJob(r: Record<string, unknown>): DenoiseJob {
+  return {
+    jobId: Number(r.id),
+    runId: Number(r.run_id),
+    status: String(r.status),
+    stage: (r.stage as string) ?? null,
+    percent: r.percent == null ? null : Number(r.percent),
+    message: (r.message as string) ?? null,
+    payload: parseJson<DenoisePayload>(r.payload, null),
+    result: parseJson<DenoiseResult>(r.result, null),
+    createdAt: r.created_at as Date,
+  };
+}
+
+/** Denoise jobs of some runs, newest first. */
+export async function listDenoiseJobs({ runIds }: { runIds: number[] }): Promise<DenoiseJob[]> {
+  if (!runIds.length) return [];
+  const rows = await db('jobs').where({ kind: 'denoise' }).whereIn('run_id', runIds).orderBy('id', 'desc').limit(500).select(COLUMNS);
+  return rows.map(toDenoiseJob);
+}
+
+/** One denoise job of a run, or null. */
+export async function findDenoiseJob({ runId, jobId }: { runId: number; jobId: number }): Promise<DenoiseJob | null> {
+  const row = await db('jobs').where({ id: jobId, run_id: runId, kind: 'denoise' }).first(COLUMNS);
+  return row ? toDenoiseJob(row) : null;
+}
+
+/** The study of a run (for scoping), or null. */
+export async function runStudy({ runId }: { runId: number }): Promise<{ studyId: number; runId: number } | null> {
+  const r = await db('runs').where({ id: runId }).first('id', 'study_id');
+  return r ? { studyId: Number(r.study_id), runId: Number(r.id) } : null;
+}

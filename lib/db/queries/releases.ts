@@ -1,0 +1,229 @@
+import 'server-only';
+import type { Knex } from 'knex';
+import { blobToFloat32, db, parseJson } from '@/lib/db/knex';
+
+export type ReleaseScope = { studyId: number; runId?: number | null };
+
+/** Runs a release of this scope covers: the study's non-calibration runs (or the one run) with a current decomposition. */
+function scopedRuns(q: Knex, s: ReleaseScope) {
+  const base = q('runs as r')
+    .join('decompositions as d', function () {
+      this.on('d.run_id', 'r.id').andOn('d.is_current', q.raw('1'));
+    })
+    .where('r.study_id', s.studyId)
+    .where('r.is_calibration', false);
+  return s.runId ? base.where('r.id', s.runId) : base;
+}
+
+export type Readiness = {
+  runs: number;
+  components: number;
+  pending: number;
+  /** Components with no decision row at all (no votes yet). */
+  undecided: number;
+  /** Runs of the study that are not ready (still decomposing, failed): not part of a study release. */
+  notReady: { runId: number; status: string }[];
+};
+
+/** Whether every component in the scope has a final decision (none pending, none missing). */
+export async function releaseReadiness(s: ReleaseScope, q: Knex | Knex.Transaction = db): Promise<Readiness> {
+  const row = await scopedRuns(q as Knex, s)
+    .join('components as c', 'c.decomposition_id', 'd.id')
+    .leftJoin('decisions as x', 'x.component_id', 'c.id')
+    .first(
+      q.raw('COUNT(DISTINCT r.id) as runs'),
+      q.raw('COUNT(c.id) as components'),
+      q.raw("SUM(CASE WHEN x.id IS NOT NULL AND (x.method = 'pending' OR x.label IS NULL) THEN 1 ELSE 0 END) as pending"),
+      q.raw('SUM(CASE WHEN x.id IS NULL THEN 1 ELSE 0 END) as undecided'),
+    );
+  const notReadyQ = q('runs').where({ study_id: s.studyId, is_calibration: false }).whereNot('status', 'ready').select('id as runId', 'status');
+  const notReady = s.runId ? (await notReadyQ.where('id', s.runId)) : await notReadyQ;
+  return {
+    runs: Number(row?.runs ?? 0),
+    components: Number(row?.components ?? 0),
+    pending: Number(row?.pending ?? 0),
+    undecided: Number(row?.undecided ?? 0),
+    notReady: notReady.map((r: { runId: number; status: string }) => ({ runId: Number(r.runId), status: r.status })),
+  };
+}
+
+export type ExportRun = {
+  runId: number;
+  sub: string;
+  ses: string | null;
+  task: string | null;
+  acq: string | null;
+  runLabel: string | null;
+  trSeconds: number | null;
+  motionKey: string | null;
+  decompositionId: number;
+  parameters: Record<string, unknown>;
+  summary: Record<string, unknown>;
+  componentsKey: string | null;
+  maskKey: string | null;
+  k: number;
+  components: {
+    componentId: number;
+    idx: number;
+    varianceExplained: number;
+    features: Record<string, number | null>;
+    timecourse: Float32Array | null;
+    label: string | null;
+    noiseKind: string | null;
+    method: string;
+    reason: string | null;
+    votes: { raterId: number; label: string; noiseKind: string | null }[];
+  }[];
+};
+
+/** Everything the export files of the scope need, read in the caller's transaction (the frozen snapshot). */
+export async function loadExportRuns(s: ReleaseScope, q: Knex | Knex.Transaction = db): Promise<ExportRun[]> {
+  const runs = await scopedRuns(q as Knex, s)
+    .orderBy(['r.sub', 'r.ses', 'r.task', 'r.run_label', 'r.id'])
+    .select(
+      'r.id as runId', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel', 'r.tr_seconds as trSeconds', 'r.motion_key as motionKey',
+      'd.id as decompositionId', 'd.parameters', 'd.summary', 'd.components_key as componentsKey', 'd.mask_key as maskKey', 'd.k',
+    );
+  if (!runs.length) return [];
+  const decIds = runs.map((r: { decompositionId: number }) => r.decompositionId);
+  const comps = await q('components as c')
+    .leftJoin('decisions as x', 'x.component_id', 'c.id')
+    .whereIn('c.decomposition_id', decIds)
+    .orderBy(['c.decomposition_id', 'c.idx'])
+    .select('c.id as componentId', 'c.decomposition_id as decompositionId', 'c.idx', 'c.variance_explained as varianceExplained', 'c.features', 'c.timecourse',
+      'x.label', 'x.noise_kind as noiseKind', 'x.method', 'x.reason');
+  const votes = await q('votes as v')
+    .join('components as c', 'c.id', 'v.component_id')
+    .join('assignments as a', function () {
+      this.on('a.run_id', 'v.run_id').andOn('a.rater_id', 'v.rater_id');
+    })
+    .whereIn('c.decomposition_id', decIds)
+    .whereNotNull('a.submitted_at')
+    .select('v.component_id as componentId', 'v.rater_id as raterId', 'v.label', 'v.noise_kind as noiseKind');
+  const votesOf = new Map<number, ExportRun['components'][number]['votes']>();
+  for (const v of votes) {
+    const list = votesOf.get(v.componentId) ?? [];
+    list.push({ raterId: Number(v.raterId), label: v.label, noiseKind: v.noiseKind ?? null });
+    votesOf.set(v.componentId, list);
+  }
+  return runs.map((r: Record<string, unknown>) => ({
+    runId: Number(r.runId),
+    sub: String(r.sub),
+    ses: (r.ses as string) ?? null,
+    task: (r.task as string) ?? null,
+    acq: (r.acq as string) ?? null,
+    runLabel: (r.runLabel as string) ?? null,
+    trSeconds: r.trSeconds == null ? null : Number(r.trSeconds),
+    motionKey: (r.motionKey as string) ?? null,
+    decompositionId: Number(r.decompositionId),
+    parameters: parseJson<Record<string, unknown>>(r.parameters, {}) ?? {},
+    summary: parseJson<Record<string, unknown>>(r.summary, {}) ?? {},
+    componentsKey: (r.componentsKey as string) ?? null,
+    maskKey: (r.maskKey as string) ?? null,
+    k: Number(r.k),
+    components: comps
+      .filter((c: { decompositionId: number }) => Number(c.decompositionId) === Number(r.decompositionId))
+      .map((c: Record<string, unknown>) => ({
+        componentId: Number(c.componentId),
+        idx: Number(c.idx),
+        varianceExplained: Number(c.varianceExplained),
+        features: parseJson<Record<string, number | null>>(c.features, {}) ?? {},
+        timecourse: blobToFloat32(c.timecourse as Buffer | null),
+        label: (c.label as string) ?? null,
+        noiseKind: (c.noiseKind as string) ?? null,
+        method: (c.method as string) ?? 'pending',
+        reason: (c.reason as string) ?? null,
+        votes: votesOf.get(Number(c.componentId)) ?? [],
+      })),
+  }));
+}
+
+export type ReleaseRow = {
+  id: number;
+  studyId: number;
+  runId: number | null;
+  version: number;
+  releasedBy: number;
+  releasedByName: string;
+  releasedAt: Date;
+  notes: string | null;
+  manifest: ReleaseManifest | null;
+};
+
+export type ManifestFile = { path: string; name: string; sha256: string; bytes: number; runId: number | null; key: string };
+export type ManifestRun = {
+  runId: number;
+  stem: string;
+  entities: { sub: string; ses: string | null; task: string | null; acq: string | null; run: string | null };
+  k: number;
+  timepoints: number;
+  trSeconds: number | null;
+  decompositionId: number;
+  parameters: Record<string, unknown>;
+  noise: number[];
+  counts: Record<string, number>;
+};
+export type ReleaseManifest = {
+  format: 'quorum-release/1';
+  study: { id: number; name: string };
+  release: { id: number; version: number; scope: 'study' | 'run'; runId: number | null; releasedAt: string; releasedBy: { id: number; name: string }; notes: string | null };
+  software: { name: 'Quorum'; version: string };
+  cautions: readonly string[];
+  protocol: Record<string, unknown>;
+  uncertainInExport: 'keep' | 'remove';
+  raters: { code: string; name: string }[];
+  runs: ManifestRun[];
+  excludedRuns: { runId: number; status: string }[];
+  files: ManifestFile[];
+};
+
+const RELEASE_COLUMNS = ['rl.id', 'rl.study_id as studyId', 'rl.run_id as runId', 'rl.version', 'rl.released_by as releasedBy', 'u.name as releasedByName', 'rl.released_at as releasedAt', 'rl.notes', 'rl.manifest'];
+
+function toRelease(r: Record<string, unknown>): ReleaseRow {
+  return {
+    id: Number(r.id),
+    studyId: Number(r.studyId),
+    runId: r.runId == null ? null : Number(r.runId),
+    version: Number(r.version),
+    releasedBy: Number(r.releasedBy),
+    releasedByName: String(r.releasedByName ?? ''),
+    releasedAt: r.releasedAt as Date,
+    notes: (r.notes as string) ?? null,
+    manifest: parseJson<ReleaseManifest>(r.manifest, null),
+  };
+}
+
+/** Releases of a study, newest first (scope the study with findStudyAccess first). */
+export async function listReleases({ studyId }: { studyId: number }): Promise<ReleaseRow[]> {
+  const rows = await db('releases as rl').join('users as u', 'u.id', 'rl.released_by').where('rl.study_id', studyId).orderBy('rl.id', 'desc').select(RELEASE_COLUMNS);
+  return rows.map(toRelease);
+}
+
+/** One release, or null. */
+export async function findRelease({ releaseId }: { releaseId: number }): Promise<ReleaseRow | null> {
+  const row = await db('releases as rl').join('users as u', 'u.id', 'rl.released_by').where('rl.id', releaseId).first(RELEASE_COLUMNS);
+  return row ? toRelease(row) : null;
+}
+
+/** The latest study-wide release of a study, or null. */
+export async function latestStudyRelease({ studyId }: { studyId: number }): Promise<ReleaseRow | null> {
+  const row = await db('releases as rl').join('users as u', 'u.id', 'rl.released_by').where('rl.study_id', studyId).whereNull('rl.run_id').whereNotNull('rl.manifest').orderBy('rl.version', 'desc').first(RELEASE_COLUMNS);
+  return row ? toRelease(row) : null;
+}
+
+/** The frozen decisions of a release. */
+export async function releaseDecisions({ releaseId }: { releaseId: number }) {
+  return db('release_decisions').where({ release_id: releaseId }).orderBy(['run_id', 'idx']).select('component_id as componentId', 'run_id as runId', 'idx', 'label', 'noise_kind as noiseKind', 'method');
+}
+
+/** Components whose current decision differs from the latest release of the same scope (0 when none). */
+export async function changedSinceRelease({ releaseId }: { releaseId: number }): Promise<number> {
+  const row = await db('release_decisions as rd')
+    .leftJoin('decisions as x', 'x.component_id', 'rd.component_id')
+    .where('rd.release_id', releaseId)
+    .where(function () {
+      this.whereNull('x.id').orWhereRaw('NOT (x.label <=> rd.label)').orWhereRaw('NOT (x.noise_kind <=> rd.noise_kind)');
+    })
+    .first(db.raw('COUNT(*) as n'));
+  return Number(row?.n ?? 0);
+}

@@ -1,0 +1,90 @@
+/**
+ * Job kind `denoise` (payload { runId, releaseId?, mode, includeMotion }): reads the run's NIfTI,
+ * the component time courses of the released (or current) decomposition and the noise list of the
+ * release (or of the current decisions under the study's uncertain_in_export), regresses the noise
+ * components out volume by volume (lib/denoise) and writes a float32 .nii.gz under denoised/.
+ * The file is written first, then the job completes with its key and checksum in one commit; a
+ * lost lease removes the file again. Progress stages: reading, fitting, writing.
+ */
+import { readFile } from 'node:fs/promises';
+import { blobToFloat32, parseJson } from '@/lib/db/knex';
+import { bidsName } from '@/lib/bids';
+import { dropInitialVolumes, parseMotionFile } from '@/lib/decomposition/motion';
+import { denoiseImage } from '@/lib/denoise/denoise-image';
+import { denoisePayloadSchema, type DenoiseResult } from '@/lib/denoise/payload';
+import { noiseList, type UncertainPolicy } from '@/lib/exports/noise-list';
+import { readNiftiFile } from '@/lib/nifti';
+import { ensureDirFor, newKey, pathFor, removeKey } from '@/lib/storage';
+import { PermanentJobError } from '../errors';
+import { defineJobKind } from '../types';
+import { motionOrderOf } from './decompose';
+
+export const denoiseKind = defineJobKind({
+  kind: 'denoise',
+  payloadSchema: denoisePayloadSchema,
+  async run(ctx) {
+    const { db, payload } = ctx;
+    const run = await db('runs').where({ id: payload.runId }).first('id', 'study_id', 'sub', 'ses', 'task', 'acq', 'run_label', 'file_key', 'motion_key', 'motion_order', 'motion_rotation_units');
+    if (!run) throw new PermanentJobError(`Run ${payload.runId} no longer exists.`);
+    let decompositionId: number;
+    let noise: number[];
+    if (payload.releaseId) {
+      const rel = await db('releases').where({ id: payload.releaseId, study_id: run.study_id }).first('manifest');
+      const entry = parseJson<{ runs: { runId: number; decompositionId: number; noise: number[] }[] }>(rel?.manifest, null)?.runs.find((r) => r.runId === run.id);
+      if (!entry) throw new PermanentJobError(`Release ${payload.releaseId} does not contain run ${run.id}.`);
+      decompositionId = entry.decompositionId;
+      noise = entry.noise;
+    } else {
+      const d = await db('decompositions').where({ run_id: run.id, is_current: true }).first('id');
+      if (!d) throw new PermanentJobError(`Run ${run.id} has no decomposition to denoise with.`);
+      decompositionId = Number(d.id);
+      const study = await db('studies').where({ id: run.study_id }).first('uncertain_in_export');
+      const decisions = await db('components as c').leftJoin('decisions as x', 'x.component_id', 'c.id').where('c.decomposition_id', decompositionId).select('c.idx', 'x.label');
+      noise = noiseList(decisions.map((r: { idx: number; label: string | null }) => ({ idx: Number(r.idx), label: r.label })), (study?.uncertain_in_export ?? 'keep') as UncertainPolicy);
+    }
+    const dec = await db('decompositions').where({ id: decompositionId }).first('id', 'parameters', 'summary', 'mask_key', 'k');
+    if (!dec) throw new PermanentJobError(`Decomposition ${decompositionId} no longer exists.`);
+    const summary = parseJson<Record<string, unknown>>(dec.summary, {}) ?? {};
+    const parameters = parseJson<Record<string, unknown>>(dec.parameters, {}) ?? {};
+    const drop = Number(summary.droppedVolumes ?? parameters.dropVolumes ?? parameters.drop ?? 0);
+    const comps = await db('components').where({ decomposition_id: decompositionId }).orderBy('idx').select('idx', 'timecourse');
+    const k = comps.length;
+    const courses = comps.map((c: { timecourse: Buffer | null }) => blobToFloat32(c.timecourse));
+    if (courses.some((c) => !c)) throw new PermanentJobError('A component has no stored time course; decompose the run again.');
+    const T = courses[0]!.length;
+    const tcs = new Float32Array(T * k);
+    for (let c = 0; c < k; c++) for (let t = 0; t < T; t++) tcs[t * k + c] = courses[c]![t]!;
+
+    await ctx.progress('reading', 2);
+    const image = await readNiftiFile(pathFor(run.file_key));
+    let mask: Uint8Array | undefined;
+    if (dec.mask_key) {
+      const m = (await readNiftiFile(pathFor(dec.mask_key))).readVolume(0);
+      mask = new Uint8Array(m.length);
+      for (let i = 0; i < m.length; i++) mask[i] = m[i]! > 0 ? 1 : 0;
+    }
+    let motion;
+    if (payload.includeMotion) {
+      if (!run.motion_key) throw new PermanentJobError('The run has no motion parameters; request denoising without motion regressors or upload them.');
+      const full = parseMotionFile(await readFile(pathFor(run.motion_key), 'utf8'), { order: motionOrderOf(run.motion_order), rotationUnits: run.motion_rotation_units ?? 'radians', expectedRows: image.nt });
+      motion = dropInitialVolumes(full, drop);
+    }
+    ctx.throwIfStopped();
+    const key = newKey('denoised', '.nii.gz');
+    const stem = bidsName({ sub: run.sub, ses: run.ses, task: run.task, acq: run.acq, runLabel: run.run_label });
+    const name = `${stem}_desc-denoised${payload.mode}_bold.nii.gz`;
+    try {
+      const out = await denoiseImage({
+        image, drop, timecourses: tcs, k, noise, mode: payload.mode, motion, mask, outPath: await ensureDirFor(key),
+        onProgress: (pct) => ctx.progressSync(pct < 50 ? 'fitting' : 'writing', 5 + pct * 0.9),
+      });
+      const result: DenoiseResult = { key, name, sha256: out.sha256, bytes: out.bytes, mode: payload.mode, includeMotion: payload.includeMotion, noise, releaseId: payload.releaseId ?? null, volumes: out.volumes };
+      await ctx.commit(async () => result, (v) => v);
+      ctx.logger.info(`run ${run.id}: denoised (${payload.mode}, ${noise.length} of ${k} components${motion ? ' + motion' : ''}) → ${key}`);
+      return result;
+    } catch (err) {
+      await removeKey(key).catch(() => undefined);
+      throw err;
+    }
+  },
+});

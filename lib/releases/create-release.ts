@@ -1,0 +1,232 @@
+import 'server-only';
+/**
+ * Releasing a study (or one run): checks that every component in scope has a final decision,
+ * then in one transaction (the study row locked, so versions never collide) freezes the decisions
+ * into release_decisions under the next version number, writes the release's text files to a fresh
+ * storage directory hashing each one, hashes the component-map NIfTI it will ship, stores the
+ * manifest and appends the audit entry. Old releases stay as they were.
+ */
+import { createHash } from 'node:crypto';
+import { writeFile } from 'node:fs/promises';
+import type { Knex } from 'knex';
+import { db, toJson } from '@/lib/db/knex';
+import { bidsName } from '@/lib/bids';
+import { AppError, forbidden, notFound } from '@/lib/errors';
+import type { UserRow } from '@/lib/db/queries/users';
+import { findStudyAccess, leadsStudy } from '@/lib/db/queries/study-access';
+import { recordAudit } from '@/lib/db/queries/audit';
+import { loadStudyRatings } from '@/lib/db/queries/agreement';
+import {
+  loadExportRuns, releaseReadiness, type ExportRun, type ManifestFile, type ManifestRun, type ReleaseManifest, type Readiness,
+} from '@/lib/db/queries/releases';
+import { buildAgreementReport } from '@/lib/reports/agreement-report';
+import { agreementReportCsv } from '@/lib/reports/agreement-csv';
+import { methodsMarkdown, type MethodsInput } from '@/lib/reports/methods-paragraph';
+import { CAUTIONS, EXPORT_CAUTION } from '@/lib/exports/cautions';
+import { noiseList, type UncertainPolicy } from '@/lib/exports/noise-list';
+import { FEATURE_COLUMNS, featureColumnName, featureColumns, mapFileName, runExportFiles, type TextFile } from '@/lib/exports/run-files';
+import { toTsv } from '@/lib/exports/tsv';
+import { childKey, ensureDirFor, newKey, readStream, removeKey } from '@/lib/storage';
+import { SOFTWARE_VERSION } from './version';
+
+export const BOOTSTRAP = { resamples: 1000, seed: 1 } as const;
+
+/** Why a scope cannot be released yet, in words a lead can act on (null when it can). */
+export function refusalOf(r: Readiness, studyId: number): string | null {
+  if (r.runs === 0) return 'There is nothing to release: no run in scope has a finished decomposition.';
+  const waiting = r.pending + r.undecided;
+  if (waiting > 0) {
+    return (
+      `${waiting} of ${r.components} components have no final decision yet (${r.pending} pending, ${r.undecided} without votes). ` +
+      `Decide them in Reconcile (/studies/${studyId}/reconcile) or wait for the raters, then release.`
+    );
+  }
+  return null;
+}
+
+const sha256 = (text: string | Buffer) => createHash('sha256').update(text).digest('hex');
+
+async function hashKey(key: string): Promise<{ sha256: string; bytes: number }> {
+  const h = createHash('sha256');
+  let bytes = 0;
+  for await (const chunk of readStream(key)) {
+    h.update(chunk as Buffer);
+    bytes += (chunk as Buffer).length;
+  }
+  return { sha256: h.digest('hex'), bytes };
+}
+
+const median = (xs: number[]) => {
+  const s = [...xs].sort((a, b) => a - b);
+  return s.length ? (s.length % 2 ? s[(s.length - 1) / 2]! : (s[s.length / 2 - 1]! + s[s.length / 2]!) / 2) : 0;
+};
+const uniq = <T,>(xs: T[]) => [...new Set(xs.filter((x) => x !== undefined && x !== null))] as T[];
+
+/** The methods paragraph input from the frozen runs and the report. */
+export function methodsInputOf(runs: ExportRun[], study: Record<string, unknown>, report: ReturnType<typeof buildAgreementReport>): MethodsInput {
+  const p = runs.map((r) => r.parameters);
+  const num = (v: unknown) => (typeof v === 'number' ? v : null);
+  const voteCounts = runs.flatMap((r) => r.components.map((c) => c.votes.length));
+  return {
+    software: SOFTWARE_VERSION,
+    runs: runs.length,
+    components: runs.reduce((a, r) => a + r.components.length, 0),
+    k: { min: Math.min(...runs.map((r) => r.k)), max: Math.max(...runs.map((r) => r.k)), median: median(runs.map((r) => r.k)) },
+    decomposition: {
+      dimMethods: uniq(p.map((x) => String(x.dimMethodUsed ?? x.dimMethod ?? study.dim_method ?? 'laplace')).map((x) => (x.startsWith('{') || x.includes('variance') ? 'variance' : x))),
+      contrasts: uniq(p.map((x) => String(x.contrast ?? 'logcosh'))),
+      tolerance: num(p[0]?.tol) ?? 1e-4,
+      maxIter: num(p[0]?.maxIter) ?? 200,
+      dropVolumes: uniq(runs.map((r) => Number(r.summary.droppedVolumes ?? r.parameters.dropVolumes ?? r.parameters.drop ?? study.drop_volumes ?? 0))),
+      varianceNorm: p[0]?.varianceNorm == null ? Boolean(study.variance_norm) : Boolean(p[0].varianceNorm),
+      detrend: p[0]?.detrend == null ? Boolean(study.detrend) : Boolean(p[0].detrend),
+      masks: uniq(p.map((x) => (x.mask === 'uploaded' ? 'uploaded' : 'automatic'))),
+    },
+    ratersPerRun: Number(study.raters_per_run ?? 2),
+    votesPerComponent: { min: Math.min(...voteCounts), max: Math.max(...voteCounts), mean: voteCounts.reduce((a, b) => a + b, 0) / Math.max(1, voteCounts.length) },
+    consensusRule: (study.consensus_rule as MethodsInput['consensusRule']) ?? 'majority',
+    labelSet: (typeof study.label_set === 'string' ? JSON.parse(study.label_set) : study.label_set) as string[],
+    uncertainInExport: (study.uncertain_in_export as UncertainPolicy) ?? 'keep',
+    report,
+    bootstrap: { ...BOOTSTRAP },
+  };
+}
+
+export type CreatedRelease = { releaseId: number; version: number; manifest: ReleaseManifest };
+
+export async function createRelease({ user, studyId, runId = null, notes = null, ip = null }: { user: Pick<UserRow, 'id' | 'role' | 'name'>; studyId: number; runId?: number | null; notes?: string | null; ip?: string | null }): Promise<CreatedRelease> {
+  const access = await findStudyAccess({ user, studyId });
+  if (!access) throw notFound('The study');
+  if (!leadsStudy(access)) throw forbidden('releasing this study (only its leads may)');
+  if (runId != null) {
+    const run = await db('runs').where({ id: runId, study_id: studyId }).first('id');
+    if (!run) throw notFound('The run');
+  }
+  const refusal = refusalOf(await releaseReadiness({ studyId, runId }), studyId);
+  if (refusal) throw new AppError('conflict', refusal);
+
+  const dirKey = newKey('releases');
+  try {
+    return await db.transaction(async (trx) => {
+      const study = await trx('studies').where({ id: studyId }).forUpdate().first();
+      const readiness = await releaseReadiness({ studyId, runId }, trx);
+      const again = refusalOf(readiness, studyId);
+      if (again) throw new AppError('conflict', again);
+      const last = await trx('releases').where({ study_id: studyId, run_key: runId ?? 0 }).max('version as v').first();
+      const version = Number(last?.v ?? 0) + 1;
+      const [id] = await trx('releases').insert({ study_id: studyId, run_id: runId, version, released_by: user.id, notes });
+      const releaseId = Number(id);
+      const released = await trx('releases').where({ id: releaseId }).first('released_at');
+      const runs = await loadExportRuns({ studyId, runId }, trx);
+      const rows = runs.flatMap((r) => r.components.map((c) => ({ release_id: releaseId, component_id: c.componentId, run_id: r.runId, idx: c.idx, label: c.label!, noise_kind: c.noiseKind, method: c.method as never })));
+      for (let i = 0; i < rows.length; i += 200) await trx('release_decisions').insert(rows.slice(i, i + 200));
+      const manifest = await writeReleaseFiles(trx, { dirKey, study, runs, releaseId, version, releasedAt: (released.released_at as Date).toISOString(), user, runId, notes, excluded: runId ? [] : readiness.notReady });
+      await trx('releases').where({ id: releaseId }).update({ manifest: toJson(manifest) });
+      await recordAudit(
+        {
+          actorId: user.id,
+          action: 'release.create',
+          targetType: 'release',
+          targetId: releaseId,
+          studyId,
+          ip,
+          detail: { version, runId, runs: runs.length, components: rows.length, files: manifest.files.length, noise: manifest.runs.reduce((a, r) => a + r.noise.length, 0) },
+        },
+        trx,
+      );
+      return { releaseId, version, manifest };
+    });
+  } catch (err) {
+    await removeKey(dirKey).catch(() => undefined);
+    throw err;
+  }
+}
+
+async function writeReleaseFiles(
+  trx: Knex.Transaction,
+  o: { dirKey: string; study: Record<string, unknown>; runs: ExportRun[]; releaseId: number; version: number; releasedAt: string; user: Pick<UserRow, 'id' | 'name'>; runId: number | null; notes: string | null; excluded: { runId: number; status: string }[] },
+): Promise<ReleaseManifest> {
+  const studyId = Number(o.study.id);
+  const labelSet = (typeof o.study.label_set === 'string' ? JSON.parse(o.study.label_set as string) : o.study.label_set) as string[];
+  const policy = (o.study.uncertain_in_export as UncertainPolicy) ?? 'keep';
+  const stamp = { studyId, releaseId: o.releaseId, version: o.version, releasedAt: o.releasedAt, software: SOFTWARE_VERSION };
+  const raterIds = [...new Set(o.runs.flatMap((r) => r.components.flatMap((c) => c.votes.map((v) => v.raterId))))].sort((a, b) => a - b);
+  const names = new Map<number, string>((await trx('users').whereIn('id', raterIds).select('id', 'name')).map((u: { id: number; name: string }) => [Number(u.id), u.name]));
+  const codeOf = new Map(raterIds.map((id, i) => [id, `R${i + 1}`]));
+  const files: ManifestFile[] = [];
+
+  const put = async (dir: string, f: TextFile, runId: number | null) => {
+    const key = childKey(o.dirKey, f.name);
+    await writeFile(await ensureDirFor(key), f.content);
+    files.push({ path: dir ? `${dir}/${f.name}` : f.name, name: f.name, sha256: sha256(f.content), bytes: Buffer.byteLength(f.content), runId, key });
+  };
+
+  const manifestRuns: ManifestRun[] = [];
+  const training: (string | number | null)[][] = [];
+  const featureKeys = Object.keys(FEATURE_COLUMNS);
+  for (const r of o.runs) {
+    const entities = { sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, run: r.runLabel };
+    const stem = bidsName({ sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, runLabel: r.runLabel });
+    const dir = [`sub-${r.sub}`, r.ses ? `ses-${r.ses}` : null].filter(Boolean).join('/');
+    const comps = r.components.map((c) => ({ ...c, votes: c.votes.map((v) => ({ raterCode: codeOf.get(v.raterId)!, label: v.label, noiseKind: v.noiseKind })) }));
+    for (const f of runExportFiles({ stem, entities, trSeconds: r.trSeconds, labelSet, uncertainInExport: policy, components: comps, release: stamp })) await put(dir, f, r.runId);
+    if (r.componentsKey) {
+      const h = await hashKey(r.componentsKey);
+      files.push({ path: `${dir}/${mapFileName(stem)}`, name: mapFileName(stem), ...h, runId: r.runId, key: r.componentsKey });
+    }
+    const counts: Record<string, number> = {};
+    for (const c of r.components) counts[c.label ?? 'none'] = (counts[c.label ?? 'none'] ?? 0) + 1;
+    manifestRuns.push({
+      runId: r.runId, stem, entities, k: r.k, timepoints: r.components[0]?.timecourse?.length ?? 0, trSeconds: r.trSeconds, decompositionId: r.decompositionId,
+      parameters: r.parameters, noise: noiseList(r.components, policy), counts,
+    });
+    for (const c of r.components) training.push([r.sub, r.ses, r.task, r.acq, r.runLabel, c.idx, ...featureKeys.map((k) => c.features[k] ?? null), c.varianceExplained, c.label, c.noiseKind, c.method]);
+  }
+
+  // study-level files
+  const prefix = `study-${studyId}`;
+  const sidecarMeta = { GeneratedBy: { Name: 'Quorum', Version: SOFTWARE_VERSION }, Release: { StudyId: studyId, ReleaseId: o.releaseId, Version: o.version, ReleasedAt: o.releasedAt }, Caution: EXPORT_CAUTION };
+  const js = (v: unknown) => JSON.stringify(v, null, 2) + '\n';
+  await put('', { name: `${prefix}_desc-raters_table.tsv`, content: toTsv(['rater', 'name', 'votes'], raterIds.map((id) => [codeOf.get(id)!, names.get(id) ?? `user ${id}`, o.runs.reduce((a, r) => a + r.components.reduce((b, c) => b + c.votes.filter((v) => v.raterId === id).length, 0), 0)])) }, null);
+  await put('', { name: `${prefix}_desc-raters_table.json`, content: js({ rater: { Description: 'Rater code used in the rater_labels column of the desc-verdicts tables.' }, name: { Description: 'The rater\'s name in Quorum.' }, votes: { Description: 'Submitted votes of the rater in this release.' }, Description: 'The raters whose submitted votes are in this release.', ...sidecarMeta }) }, null);
+  const entityCols = ['sub', 'ses', 'task', 'acq', 'run'];
+  await put('', { name: `${prefix}_desc-trainingset_features.tsv`, content: toTsv([...entityCols, 'component', ...featureKeys.map(featureColumnName), 'variance_explained', 'label', 'noise_kind', 'decided_by'], training) }, null);
+  await put('', {
+    name: `${prefix}_desc-trainingset_features.json`,
+    content: js({
+      ...Object.fromEntries(entityCols.map((e) => [e, { Description: `BIDS "${e}" entity of the run (label without the "${e}-" prefix; n/a when absent).` }])),
+      ...featureColumns(labelSet),
+      Description: 'Every released component of the study with its features and decision, one row per component: a training table for automatic classifiers.',
+      ...sidecarMeta,
+    }),
+  }, null);
+
+  const ratings = await loadStudyRatings({ studyId, runIds: o.runs.map((r) => r.runId) });
+  const report = buildAgreementReport(ratings, BOOTSTRAP);
+  const nameOf = (id: string) => `${codeOf.get(Number(id)) ?? id} (${names.get(Number(id)) ?? 'rater'})`;
+  await put('', { name: `${prefix}_desc-agreement_report.json`, content: js({ Description: 'Inter-rater agreement of the released runs (statistics with percentile-bootstrap 95% CIs over components).', bootstrap: BOOTSTRAP, raterCodes: Object.fromEntries(raterIds.map((id) => [String(id), codeOf.get(id)])), report, ...sidecarMeta }) }, null);
+  await put('', { name: `${prefix}_desc-agreement_report.csv`, content: agreementReportCsv(report, nameOf) }, null);
+  await put('', { name: `${prefix}_desc-methods_report.md`, content: methodsMarkdown(methodsInputOf(o.runs, o.study, report)) }, null);
+
+  return {
+    format: 'quorum-release/1',
+    study: { id: studyId, name: String(o.study.name) },
+    release: { id: o.releaseId, version: o.version, scope: o.runId ? 'run' : 'study', runId: o.runId, releasedAt: o.releasedAt, releasedBy: { id: o.user.id, name: o.user.name }, notes: o.notes },
+    software: { name: 'Quorum', version: SOFTWARE_VERSION },
+    cautions: CAUTIONS,
+    protocol: {
+      ratersPerRun: o.study.raters_per_run, consensusRule: o.study.consensus_rule, labelSet, blinding: Boolean(o.study.blinding), dropVolumes: o.study.drop_volumes,
+      dimMethod: o.study.dim_method, fixedComponents: o.study.fixed_components, varianceFraction: o.study.variance_fraction, varianceNorm: Boolean(o.study.variance_norm), detrend: Boolean(o.study.detrend),
+    },
+    uncertainInExport: policy,
+    raters: raterIds.map((id) => ({ code: codeOf.get(id)!, name: names.get(id) ?? `user ${id}` })),
+    runs: manifestRuns,
+    excludedRuns: o.excluded,
+    files,
+  };
+}
+
+/** The manifest as shipped and served: storage keys removed. */
+export function publicManifest(m: ReleaseManifest) {
+  return { ...m, files: m.files.map(({ key: _key, ...f }) => f) };
+}
