@@ -49,10 +49,14 @@ export interface DataMatrix {
  * Builds the preprocessed time-major matrix of the given voxels: x[t, v] = value of voxel v in
  * volume drop + t, minus its temporal mean, minus a least-squares line in t when `detrend`,
  * divided by its temporal SD (1/T) when `varianceNorm`. Voxels with SD ≤ 1e-6 × (|mean| + 1e-12)
- * or exactly 0 are dropped (compacted in place). Float32 storage, float64 accumulation.
+ * or exactly 0 are dropped (compacted in place), and so are voxels with any non-finite value (their
+ * SD is NaN). With meanAccumulator, the same pass also sums every full volume (finite values) and
+ * flags non-finite voxels, so a run with a given mask is read once. Float32 storage, float64
+ * accumulation.
  */
 export function buildDataMatrix(
-  image: RunImage, indices: Int32Array, drop: number, opts: { detrend: boolean; varianceNorm: boolean },
+  image: RunImage, indices: Int32Array, drop: number,
+  opts: { detrend: boolean; varianceNorm: boolean; meanAccumulator?: { sum: Float64Array; nonFinite: Uint8Array } },
 ): DataMatrix {
   const T = image.nt - drop;
   let V = indices.length;
@@ -63,6 +67,14 @@ export function buildDataMatrix(
     image.readVolume(drop + t, buf);
     const off = t * V;
     for (let j = 0; j < V; j++) x[off + j] = buf[indices[j]!]!;
+    const acc = opts.meanAccumulator;
+    if (acc) {
+      for (let i = 0; i < buf.length; i++) {
+        const v = buf[i]!;
+        if (Number.isFinite(v)) acc.sum[i] += v;
+        else acc.nonFinite[i] = 1;
+      }
+    }
   }
   const mean = new Float64Array(V);
   for (let t = 0; t < T; t++) {

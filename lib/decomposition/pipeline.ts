@@ -2,7 +2,7 @@
 // spatial FastICA → oriented, ordered, z-scored components (DESIGN.md §4).
 import { autoBrainMask } from './brain-mask';
 import { temporalCovariance } from './covariance';
-import { buildDataMatrix, meanImage, type RunImage } from './data-matrix';
+import { buildDataMatrix, meanImage, type DataMatrix, type RunImage } from './data-matrix';
 import { chooseDimension, type DimMethod, type DimensionChoice } from './dimensionality';
 import { DecompositionError } from './errors';
 import { fastIca, type Contrast } from './fastica';
@@ -127,29 +127,46 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
   const dims: [number, number, number] = [image.nx, image.ny, image.nz];
   const nVox = image.voxelsPerVolume;
 
-  const { mean, nonFinite } = meanImage(image, drop);
-  stage('mean', 5);
+  let mean: Float32Array;
   let mask: Uint8Array;
+  let inMask = 0, nonFiniteVoxels = 0;
+  let dm: DataMatrix;
   if (input.mask) {
+    // One pass: extract the mask's voxels and accumulate the mean image together.
     if (input.mask.length !== nVox) {
       throw new DecompositionError('grid_mismatch', `The mask has ${input.mask.length} voxels but the run's volumes have ${nVox} (${dims.join(' × ')}); use a mask on the run's grid.`);
     }
     mask = input.mask;
+    for (let i = 0; i < nVox; i++) if (mask[i]) inMask++;
+    if (inMask === 0) throw new DecompositionError('empty_mask', 'The mask is empty; supply a mask with brain voxels or let the automatic mask run on the mean image.');
+    const candidates = new Int32Array(inMask);
+    for (let i = 0, j = 0; i < nVox; i++) if (mask[i]) candidates[j++] = i;
+    const acc = { sum: new Float64Array(nVox), nonFinite: new Uint8Array(nVox) };
+    stage('mask', 5);
+    dm = buildDataMatrix(image, candidates, drop, { detrend, varianceNorm, meanAccumulator: acc });
+    mean = new Float32Array(nVox);
+    for (let i = 0; i < nVox; i++) {
+      mean[i] = acc.nonFinite[i] ? 0 : acc.sum[i]! / T;
+      if (mask[i] && acc.nonFinite[i]) nonFiniteVoxels++;
+    }
+    // Non-finite voxels were dropped with the constant ones; count them apart.
+    dm = { ...dm, zeroVarianceVoxels: dm.zeroVarianceVoxels - nonFiniteVoxels };
   } else {
+    const m = meanImage(image, drop);
+    mean = m.mean;
+    stage('mean', 5);
     mask = autoBrainMask(mean, dims);
+    for (let i = 0; i < nVox; i++) {
+      if (!mask[i]) continue;
+      inMask++;
+      if (m.nonFinite[i]) nonFiniteVoxels++;
+    }
+    if (inMask === 0) throw new DecompositionError('empty_mask', 'The automatic brain mask is empty; check the data or supply a mask.');
+    const candidates = new Int32Array(inMask - nonFiniteVoxels);
+    for (let i = 0, j = 0; i < nVox; i++) if (mask[i] && !m.nonFinite[i]) candidates[j++] = i;
+    stage('mask', 10);
+    dm = buildDataMatrix(image, candidates, drop, { detrend, varianceNorm });
   }
-  let inMask = 0, nonFiniteVoxels = 0;
-  for (let i = 0; i < nVox; i++) {
-    if (!mask[i]) continue;
-    inMask++;
-    if (nonFinite[i]) nonFiniteVoxels++;
-  }
-  if (inMask === 0) throw new DecompositionError('empty_mask', 'The mask is empty; supply a mask with brain voxels or let the automatic mask run on the mean image.');
-  const candidates = new Int32Array(inMask - nonFiniteVoxels);
-  for (let i = 0, j = 0; i < nVox; i++) if (mask[i] && !nonFinite[i]) candidates[j++] = i;
-  stage('mask', 10);
-
-  const dm = buildDataMatrix(image, candidates, drop, { detrend, varianceNorm });
   const { x, V, maskIndices } = dm;
   if (V <= T) {
     throw new DecompositionError('empty_mask', `Only ${V} usable in-mask voxels for ${T} time points; spatial ICA needs more voxels than volumes.`);
