@@ -95,7 +95,17 @@ export interface DecompositionResult {
 
 const MIN_TIMEPOINTS = 10;
 
-/** Runs the whole decomposition of one run. See DecompositionResult for layouts and units. */
+/**
+ * Decomposes one run (DESIGN.md §4): mask (given, else automatic from the mean image; non-finite
+ * and constant voxels dropped and counted) → drop initial volumes → time-major voxel × time matrix
+ * (Float32Array T × V, float64 accumulation) demeaned per voxel, optionally detrended, variance-
+ * normalised by default → T × T covariance with voxels as samples (worker threads) → eigen-
+ * decomposition → number of components from the eigenvalues (default Minka's Laplace evidence with
+ * N = effectiveSamples = V / Π FWHM, the smoothness-corrected sample count of smoothness.ts, since
+ * neighbouring voxels are not independent and the plain N = V overshoots) → PCA whitening →
+ * symmetric FastICA (seeded, retried with the next seed on non-convergence) → maps oriented to a
+ * positive heavy tail, ordered by variance explained, z-scored. See DecompositionResult for layouts.
+ */
 export async function decomposeRun(input: DecomposeInput, options: DecomposeOptions = {}, onProgress?: ProgressCallback): Promise<DecompositionResult> {
   const t0 = performance.now();
   const seconds: Record<string, number> = {};
