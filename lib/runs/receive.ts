@@ -57,9 +57,27 @@ export function asRefusal(err: unknown): unknown {
   return err;
 }
 
+/**
+ * Writes a chunk, waiting only when the stream asks for it (backpressure): resolves at once while
+ * the stream's buffer has room, else on 'drain'; rejects when the stream fails or closes.
+ */
 function writeChunk(w: Writable, chunk: Uint8Array): Promise<void> {
+  if (w.destroyed || w.errored) return Promise.reject(w.errored ?? new Error('the stream is closed'));
+  if (w.write(chunk)) return Promise.resolve();
   return new Promise((resolve, reject) => {
-    w.write(chunk, (err) => (err ? reject(err) : resolve()));
+    const done = (err?: Error | null) => {
+      w.off('drain', onDrain);
+      w.off('error', onError);
+      w.off('close', onClose);
+      if (err) reject(err);
+      else resolve();
+    };
+    const onDrain = () => done();
+    const onError = (err: Error) => done(err);
+    const onClose = () => done(w.errored ?? new Error('the stream closed'));
+    w.on('drain', onDrain);
+    w.on('error', onError);
+    w.on('close', onClose);
   });
 }
 
@@ -88,6 +106,10 @@ export async function receiveNifti(body: ReadableStream<Uint8Array> | null, opts
 
   const tempFile = await tempPath('.part');
   let out: WriteStream | null = createWriteStream(tempFile);
+  let diskError: Error | null = null;
+  out.on('error', (err) => {
+    diskError ??= err; // surfaced after the loop; the listener keeps an 'error' event from crashing the process
+  });
   const hash = createHash('sha256');
   let total = 0;
   let gzip: boolean | null = null;
@@ -187,6 +209,7 @@ export async function receiveNifti(body: ReadableStream<Uint8Array> | null, opts
       tryHeader(true);
     }
     if (failure) throw failure;
+    if (diskError) throw diskError;
     const h = header as NiftiHeader | null;
     if (!h) throw new AppError('validation', 'The file holds no readable NIfTI header. Upload a .nii or .nii.gz image.');
     const expected = h.voxOffset + imageSizes(h).dataBytes;

@@ -156,6 +156,8 @@ describe('the bad-upload corpus', () => {
 
   it('refuses an exact duplicate in the same study, naming the existing run', async () => {
     await refused(upload('good-run.nii.gz'), 409, /already in the study as run #\d+ sub-07_ses-2_task-rest_run-1 \(uploaded as sub-07_ses-2_task-rest_run-1_bold\.nii\.gz\)/);
+    // the same bytes one at a time (gzip detection and header across chunk borders) and without Content-Length
+    await refused(upload('good-run.nii.gz', 'copy.nii.gz', { chunk: 1, length: false }), 409, /already in the study as run #\d+/);
     await nothingLeft();
   });
 
