@@ -45,6 +45,7 @@ function ProgressCell({ run }: { run: RunListItem }) {
         <div className="h-1.5 w-full overflow-hidden rounded bg-ground-sunken" role="progressbar" aria-label={`Decomposition of ${bidsName(run)}`} aria-valuemin={0} aria-valuemax={100} aria-valuenow={Math.round(pct)}>
           <div className="h-full bg-lumen transition-all" style={{ width: `${pct}%` }} />
         </div>
+        {run.job?.message ? <p className="max-w-60 text-xs text-ink-faint" data-testid="run-job-message">{run.job.message}</p> : null}
       </div>
     );
   }
