@@ -20,7 +20,7 @@ export type StoredMail = {
 export async function listMail({ dir = mailDir() }: { dir?: string } = {}): Promise<StoredMail[]> {
   let names: string[];
   try {
-    names = (await readdir(dir)).filter((n) => n.endsWith('.json'));
+    names = (await readdir(/*turbopackIgnore: true*/ dir)).filter((n) => n.endsWith('.json'));
   } catch (err) {
     if ((err as NodeJS.ErrnoException).code === 'ENOENT') return [];
     throw err;
@@ -28,7 +28,7 @@ export async function listMail({ dir = mailDir() }: { dir?: string } = {}): Prom
   const out: StoredMail[] = [];
   for (const name of names) {
     try {
-      const mail = JSON.parse(await readFile(path.join(dir, name), 'utf8')) as StoredMail;
+      const mail = JSON.parse(await readFile(path.join(/*turbopackIgnore: true*/ dir, name), 'utf8')) as StoredMail;
       out.push({ ...mail, id: name.replace(/\.json$/, '') });
     } catch {
       // a file being written right now: skip it, it shows up on the next read

@@ -2,9 +2,9 @@ import { after } from 'next/server';
 import { handler } from '@/lib/api/handler';
 import { inviteSchema } from './schema';
 import { accountExists, leadsStudy } from '@/lib/db/queries/people';
-import { createInvitation, listInvitations } from '@/lib/db/queries/invitations';
+import { createInvitation, listInvitations, countAttempts } from '@/lib/db/queries/invitations';
 import { recordAudit } from '@/lib/db/queries/audit';
-import { lockedFor, recordFailure } from '@/lib/auth/throttle';
+import { lockedFor } from '@/lib/auth/throttle';
 import { clientAddress } from '@/lib/auth/tokens';
 import { deliverMail } from '@/lib/mail/deliver';
 import { facilityName, publicBaseUrl } from '@/lib/mail/config';
@@ -40,7 +40,7 @@ export const POST = handler({ permission: 'invitations.create', body: inviteSche
   const key = `invite:email:${body.email}` as const;
   const wait = await lockedFor(key);
   if (wait > 0) throw new AppError('too_many_requests', `Too many invitations to this address. Try again in ${Math.ceil(wait / 60000)} minutes.`);
-  await recordFailure(key);
+  await countAttempts([key]);
 
   const base = publicBaseUrl(req.url);
   const facility = facilityName();

@@ -2,8 +2,8 @@ import { after } from 'next/server';
 import { handler } from '@/lib/api/handler';
 import { RESET_SENT_MESSAGE, resetRequestSchema } from './schema';
 import { findAccountForReset } from '@/lib/db/queries/people';
-import { createPasswordReset } from '@/lib/db/queries/invitations';
-import { lockedFor, recordFailure } from '@/lib/auth/throttle';
+import { createPasswordReset, countAttempts } from '@/lib/db/queries/invitations';
+import { lockedFor } from '@/lib/auth/throttle';
 import { clientAddress } from '@/lib/auth/tokens';
 import { deliverMail } from '@/lib/mail/deliver';
 import { facilityName, publicBaseUrl } from '@/lib/mail/config';
@@ -17,7 +17,7 @@ export const POST = handler({ permission: 'public', body: resetRequestSchema, wh
   const keys = [`reset:ip:${ip}`, `reset:email:${body.email}`] as const;
   const wait = Math.max(...(await Promise.all(keys.map(lockedFor))));
   if (wait > 0) throw new AppError('too_many_requests', `Too many reset requests. Try again in ${Math.ceil(wait / 60000)} minutes.`);
-  await Promise.all(keys.map(recordFailure));
+  await countAttempts(keys);
   const base = publicBaseUrl(req.url);
   const facility = facilityName();
   after(async () => {

@@ -1,8 +1,8 @@
 import { handler } from '@/lib/api/handler';
 import { acceptSchema } from '../schema';
-import { acceptInvitation } from '@/lib/db/queries/invitations';
+import { acceptInvitation, countAttempts } from '@/lib/db/queries/invitations';
 import { hashPassword } from '@/lib/auth/password';
-import { lockedFor, recordFailure } from '@/lib/auth/throttle';
+import { lockedFor } from '@/lib/auth/throttle';
 import { clientAddress } from '@/lib/auth/tokens';
 import { AppError } from '@/lib/errors';
 
@@ -17,7 +17,7 @@ export const POST = handler({ permission: 'public', body: acceptSchema, what: 'T
     const { email } = await acceptInvitation({ token: body.token, name: body.name, passwordHash, ip });
     return { ok: true, email };
   } catch (err) {
-    if (err instanceof AppError && err.code === 'not_found') await recordFailure(key);
+    if (err instanceof AppError && err.code === 'not_found') await countAttempts([key]);
     throw err;
   }
 });

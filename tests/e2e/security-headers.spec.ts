@@ -1,0 +1,82 @@
+import { expect, test, type APIResponse } from '@playwright/test';
+import { DEMO } from './pages/sign-in-page';
+import { unique } from './pages/people';
+
+function expectSecurityHeaders(res: APIResponse, where: string) {
+  const h = res.headers();
+  const csp = h['content-security-policy'] ?? '';
+  expect(csp, `${where}: CSP`).toContain("default-src 'self'");
+  expect(csp, `${where}: CSP`).toContain("frame-ancestors 'none'");
+  expect(csp, `${where}: CSP`).toContain("object-src 'none'");
+  expect(csp, `${where}: CSP allows the viewer's blob workers`).toContain("worker-src 'self' blob:");
+  expect(csp, `${where}: no eval in production`).not.toContain('unsafe-eval');
+  expect(h['referrer-policy'], where).toBe('strict-origin-when-cross-origin');
+  expect(h['x-content-type-options'], where).toBe('nosniff');
+  expect(h['x-frame-options'], where).toBe('DENY');
+  expect(h['x-powered-by'], where).toBeUndefined();
+}
+
+test('a page and API responses carry the security headers', async ({ page, request }) => {
+  const doc = await page.goto('/sign-in');
+  expect(doc).not.toBeNull();
+  const pageHeaders = await doc!.allHeaders();
+  expect(pageHeaders['content-security-policy']).toContain("frame-ancestors 'none'");
+  expectSecurityHeaders(await request.get('/sign-in'), 'GET /sign-in');
+  expectSecurityHeaders(await request.get('/api/health'), 'GET /api/health');
+  expectSecurityHeaders(await request.get('/api/admin/users'), 'GET /api/admin/users (401)');
+});
+
+test('a reset request answers the same for a known and an unknown address, in similar time', async ({ request }) => {
+  const ask = async (email: string) => {
+    const started = performance.now();
+    const res = await request.post('/api/password-reset', { data: { email }, headers: { 'x-forwarded-for': unique('ip').ip } });
+    return { status: res.status(), body: await res.text(), ms: performance.now() - started };
+  };
+  const known: number[] = [];
+  const unknown: number[] = [];
+  let first: { status: number; body: string } | null = null;
+  for (let i = 0; i < 4; i++) {
+    const a = await ask(DEMO.rater.replace('rater1', 'rater3'));
+    const b = await ask(unique('nobody').email);
+    expect(a.status).toBe(200);
+    expect(b).toMatchObject({ status: a.status, body: a.body });
+    first ??= a;
+    known.push(a.ms);
+    unknown.push(b.ms);
+  }
+  const median = (xs: number[]) => [...xs].sort((x, y) => x - y)[Math.floor(xs.length / 2)];
+  expect(Math.abs(median(known) - median(unknown))).toBeLessThan(150);
+});
+
+test('reset requests and guessed invitation links are throttled per client address', async ({ request }) => {
+  const { ip, email } = unique('flood');
+  const statuses: number[] = [];
+  for (let i = 0; i < 6; i++) {
+    statuses.push((await request.post('/api/password-reset', { data: { email }, headers: { 'x-forwarded-for': ip } })).status());
+  }
+  expect(statuses).toEqual([200, 200, 200, 200, 200, 429]);
+
+  const guesser = unique('guess').ip;
+  const guesses: number[] = [];
+  for (let i = 0; i < 6; i++) {
+    const res = await request.post('/api/invitations/accept', {
+      data: { token: `guess-${i}`, name: 'Guess', password: 'guessing-password', confirmPassword: 'guessing-password' },
+      headers: { 'x-forwarded-for': guesser },
+    });
+    guesses.push(res.status());
+  }
+  expect(guesses).toEqual([404, 404, 404, 404, 404, 429]);
+});
+
+test('an invitation to an address that already has an account answers like any other', async ({ request, baseURL }) => {
+  const ctx = request;
+  const csrf = await (await ctx.get('/api/auth/csrf')).json();
+  await ctx.post('/api/auth/callback/credentials', { form: { csrfToken: csrf.csrfToken, email: DEMO.admin, password: 'quorum-demo', json: 'true' }, headers: { 'x-forwarded-for': unique('ip').ip } });
+  expect((await ctx.get('/api/me')).status(), baseURL).toBe(200);
+  const existing = await ctx.post('/api/invitations', { data: { email: DEMO.rater, role: 'rater' } });
+  const fresh = await ctx.post('/api/invitations', { data: { email: unique('fresh').email, role: 'rater' } });
+  expect(existing.status()).toBe(200);
+  expect(fresh.status()).toBe(200);
+  const norm = async (r: APIResponse) => (await r.json()).message.replace(/\S+@fernhollow\.example/, '<address>');
+  expect(await norm(existing)).toBe(await norm(fresh));
+});
