@@ -2,6 +2,7 @@
 import { header } from './header';
 import { agreement } from './agreement';
 import { decompose } from './decompose';
+import { denoise } from './denoise';
 export type CliCommand = {
   summary: string;
   /** Runs the command with its arguments; returns the process exit code. */
@@ -12,4 +13,5 @@ export const commands: Record<string, CliCommand> = {
   header,
   agreement,
   decompose,
+  denoise,
 };
