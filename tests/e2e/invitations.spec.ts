@@ -1,6 +1,6 @@
 import { expect, test } from '@playwright/test';
 import type { Knex } from 'knex';
-import { DEMO, SignInPage } from './pages/sign-in-page';
+import { apiSignIn, DEMO, SignInPage } from './pages/sign-in-page';
 import { AcceptInvitationPage, createAccount, e2eDb, InvitationsPage, mailWithLink, PasswordResetPage, storeLink, unique } from './pages/people';
 
 // One made-up client address per run, so these tests never meet the sign-in or reset throttles of other files.
@@ -112,4 +112,28 @@ test('a password reset by e-mail works once, and the old password stops working'
 
   await page.goto(link);
   await expect(page.getByTestId('link-refused-message')).toContainText('This link has already been used');
+});
+
+test('a study lead invites raters and observers to their own studies only', async ({ playwright, baseURL }) => {
+  const study = await db('studies').where({ slug: 'evening-light-sleep-rest' }).first('id');
+  const asLead = async (email: string) => {
+    const ctx = await playwright.request.newContext({ baseURL, extraHTTPHeaders: { 'x-forwarded-for': client.ip } });
+    await apiSignIn(ctx, email);
+    return ctx;
+  };
+  const lead = await asLead(DEMO.lead);
+  const ok = await lead.post('/api/invitations', { data: { email: unique('lead-pick').email, role: 'rater', studyId: study.id, studyRole: 'rater' } });
+  expect(ok.status()).toBe(200);
+  const admin = await lead.post('/api/invitations', { data: { email: unique('too-high').email, role: 'admin' } });
+  expect(admin.status()).toBe(403);
+  expect((await admin.json()).error.message).toContain('raters and observers');
+  const list = await (await lead.get('/api/invitations')).json();
+  expect(list.invitations.every((i: { inviterName: string }) => i.inviterName === 'Priya Nandakumar')).toBe(true);
+  await lead.dispose();
+
+  const other = await asLead('lead2@fernhollow.example');
+  const foreign = await other.post('/api/invitations', { data: { email: unique('foreign').email, role: 'rater', studyId: study.id, studyRole: 'rater' } });
+  expect(foreign.status()).toBe(403);
+  expect((await foreign.json()).error.message).toContain('studies you lead');
+  await other.dispose();
 });
