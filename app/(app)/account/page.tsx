@@ -3,6 +3,8 @@ import { requirePageUser } from '@/lib/auth/session';
 import { ROLE_LABELS } from '@/lib/auth/roles';
 import { Panel } from '@/components/ui/panel';
 import { ChangePasswordForm } from './change-password-client';
+import { can } from '@/lib/auth/permissions';
+import { AccessTokens } from './tokens/tokens-client';
 
 export const metadata: Metadata = { title: 'Account' };
 
@@ -24,6 +26,11 @@ export default async function AccountPage() {
       <Panel title="Change password">
         <ChangePasswordForm />
       </Panel>
+      {can(user.role, 'tokens.manage') ? (
+        <Panel title="Access tokens for pipelines">
+          <AccessTokens />
+        </Panel>
+      ) : null}
     </div>
   );
 }
