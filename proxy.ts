@@ -15,5 +15,5 @@ export function proxy(request: NextRequest) {
 
 export const config = {
   // Pages only: API routes answer 401 themselves; sign-in, invitations and static files stay open.
-  matcher: ['/((?!api|_next|sign-in|invitations|reset-password|forbidden|favicon.ico|fonts).*)'],
+  matcher: ['/((?!api|_next|sign-in|invitations|reset-password|forgot-password|forbidden|favicon.ico|fonts).*)'],
 };

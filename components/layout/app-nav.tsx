@@ -3,11 +3,13 @@ import type { UserRow } from '@/lib/db/queries/users';
 import { can, type Action } from '@/lib/auth/permissions';
 import { ROLE_LABELS } from '@/lib/auth/roles';
 import { SignOutButton } from './sign-out-button';
+import { mailboxEnabled } from '@/lib/mail/config';
 
 const LINKS: { href: string; label: string; needs: Action }[] = [
   { href: '/', label: 'Home', needs: 'account.read' },
   { href: '/studies', label: 'Studies', needs: 'studies.read' },
   { href: '/admin', label: 'Facility', needs: 'users.manage' },
+  { href: '/admin/invitations', label: 'Invitations', needs: 'invitations.create' },
 ];
 
 export function AppNav({ user }: { user: UserRow }) {
@@ -22,6 +24,11 @@ export function AppNav({ user }: { user: UserRow }) {
             {l.label}
           </Link>
         ))}
+        {mailboxEnabled() && can(user.role, 'mailbox.read') ? (
+          <Link href="/dev/mailbox" className="rounded px-2 py-1 text-sm text-ink-faint hover:bg-ground hover:text-ink">
+            Mailbox (dev)
+          </Link>
+        ) : null}
       </nav>
       <div className="ml-auto flex items-center gap-3 text-sm">
         <Link href="/account" className="text-ink-muted hover:text-ink" data-testid="account-link">

@@ -5,6 +5,7 @@ import { hashPassword, verifyPassword } from './password';
 import { signInSchema } from './schemas';
 import { clearFailures, lockedFor, recordFailure, type ThrottleKey } from './throttle';
 import { authSecret } from './secret';
+import { clientAddress } from './client-address';
 import { findCredentialsByEmail, recordSignIn } from '@/lib/db/queries/users';
 import { recordAudit } from '@/lib/db/queries/audit';
 
@@ -14,13 +15,11 @@ export const SIGN_IN_WRONG = 'E-mail or password is wrong.';
 let dummyHash: Promise<string> | undefined;
 const getDummyHash = () => (dummyHash ??= hashPassword('no-such-account-placeholder'));
 
-function clientAddress(headers: Record<string, unknown> | undefined): string {
-  const forwarded = String(headers?.['x-forwarded-for'] ?? '').split(',')[0]?.trim();
-  return forwarded || String(headers?.['x-real-ip'] ?? 'local');
-}
-
 export const authOptions: NextAuthOptions = {
-  secret: authSecret(),
+  // read at request time, not at import: the build has no secret, a running server must
+  get secret() {
+    return authSecret();
+  },
   session: { strategy: 'jwt', maxAge: 12 * 60 * 60 },
   pages: { signIn: '/sign-in', error: '/sign-in' },
   providers: [
@@ -31,7 +30,7 @@ export const authOptions: NextAuthOptions = {
         const parsed = signInSchema.safeParse(credentials ?? {});
         if (!parsed.success) throw new Error(SIGN_IN_WRONG);
         const { email, password } = parsed.data;
-        const keys: ThrottleKey[] = [`ip:${clientAddress(req?.headers)}`, `account:${email}`];
+        const keys: ThrottleKey[] = [`ip:${clientAddress(req?.headers as Record<string, unknown> | undefined)}`, `account:${email}`];
         const waits = await Promise.all(keys.map(lockedFor));
         const wait = Math.max(...waits);
         if (wait > 0) {
@@ -40,7 +39,7 @@ export const authOptions: NextAuthOptions = {
         const found = await findCredentialsByEmail({ email });
         const ok = await verifyPassword(password, found?.passwordHash ?? (await getDummyHash()));
         if (!found || !ok || !found.user.active) {
-          await Promise.all(keys.map(recordFailure));
+          for (const key of keys) await recordFailure(key);
           throw new Error(SIGN_IN_WRONG);
         }
         await Promise.all(keys.map(clearFailures));

@@ -15,19 +15,27 @@ export async function lockedFor(key: ThrottleKey): Promise<number> {
   return Math.max(0, until - Date.now());
 }
 
-/** Counts one failure for the key; locks it once MAX_FAILURES fall inside the window. */
+/**
+ * Counts one failure for the key; locks it once MAX_FAILURES fall inside the window. One atomic
+ * upsert (no read-then-write), so concurrent failures neither lose counts nor deadlock. In
+ * MariaDB's ON DUPLICATE KEY UPDATE the assignments run left to right and see earlier ones.
+ */
 export async function recordFailure(key: ThrottleKey): Promise<void> {
-  const now = new Date();
-  await db.transaction(async (trx) => {
-    const row = await trx('sign_in_throttles').where({ key }).forUpdate().first();
-    const windowStart = row?.window_start ? new Date(row.window_start) : null;
-    const fresh = !windowStart || now.getTime() - windowStart.getTime() > WINDOW_MS;
-    const failures = fresh ? 1 : Number(row.failures) + 1;
-    const lockedUntil = failures >= MAX_FAILURES ? new Date(now.getTime() + LOCK_MS) : null;
-    const values = { failures, window_start: fresh ? now : windowStart, locked_until: lockedUntil };
-    if (row) await trx('sign_in_throttles').where({ key }).update(values);
-    else await trx('sign_in_throttles').insert({ key, ...values });
-  });
+  const windowSec = WINDOW_MS / 1000;
+  const lockSec = LOCK_MS / 1000;
+  await db.raw(
+    `INSERT INTO sign_in_throttles (\`key\`, failures, window_start, locked_until) VALUES (?, 1, NOW(3), NULL)
+     ON DUPLICATE KEY UPDATE
+       failures = IF(window_start < NOW(3) - INTERVAL ? SECOND, 1, failures + 1),
+       locked_until = IF(failures >= ?, NOW(3) + INTERVAL ? SECOND, locked_until),
+       window_start = IF(failures = 1, NOW(3), window_start)`,
+    [key, windowSec, MAX_FAILURES, lockSec],
+  );
+}
+
+/** Counts one attempt against each key (invitation and reset endpoints count every attempt). */
+export async function countAttempts(keys: readonly ThrottleKey[]): Promise<void> {
+  for (const key of keys) await recordFailure(key);
 }
 
 export async function clearFailures(key: ThrottleKey): Promise<void> {

@@ -77,8 +77,3 @@ export function linkRefusal({
   }
 }
 
-/** The caller's address for throttling, by the same rule as sign-in (first X-Forwarded-For, else X-Real-IP). */
-export function clientAddress(req: Request): string {
-  const forwarded = (req.headers.get('x-forwarded-for') ?? '').split(',')[0]?.trim();
-  return forwarded || req.headers.get('x-real-ip') || 'local';
-}

@@ -1,5 +1,6 @@
 'use client';
 
+import Link from 'next/link';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
@@ -45,6 +46,9 @@ export function SignInForm() {
       <Button type="submit" disabled={formState.isSubmitting} data-testid="sign-in-submit">
         {formState.isSubmitting ? 'Signing in…' : 'Sign in'}
       </Button>
+      <Link href="/forgot-password" className="text-center text-sm text-ink-muted hover:text-ink" data-testid="forgot-password-link">
+        Forgot your password?
+      </Link>
     </form>
   );
 }

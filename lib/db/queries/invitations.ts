@@ -5,7 +5,7 @@ import { recordAudit } from '@/lib/db/queries/audit';
 import { hashToken, inviteTtlMs, linkRefusal, linkState, newToken, RESET_TTL_MS, type LinkState } from '@/lib/auth/tokens';
 import type { Role } from '@/lib/auth/roles';
 import { AppError } from '@/lib/errors';
-import { recordFailure, type ThrottleKey } from '@/lib/auth/throttle';
+
 
 export type StudyRole = 'lead' | 'rater' | 'observer';
 
@@ -237,20 +237,3 @@ export async function revokeInvitation({ id, actorId, now = new Date() }: { id: 
   });
 }
 
-/**
- * Counts one attempt against throttle keys, one key after the other (two concurrent first
- * inserts into sign_in_throttles can deadlock on InnoDB gap locks), retrying a deadlock twice.
- */
-export async function countAttempts(keys: readonly ThrottleKey[]): Promise<void> {
-  for (const key of keys) {
-    for (let attempt = 1; ; attempt++) {
-      try {
-        await recordFailure(key);
-        break;
-      } catch (err) {
-        if ((err as { code?: string }).code !== 'ER_LOCK_DEADLOCK' || attempt >= 3) throw err;
-        await new Promise((r) => setTimeout(r, 20 * attempt));
-      }
-    }
-  }
-}

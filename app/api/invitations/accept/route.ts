@@ -1,9 +1,9 @@
 import { handler } from '@/lib/api/handler';
 import { acceptSchema } from '../schema';
-import { acceptInvitation, countAttempts } from '@/lib/db/queries/invitations';
+import { acceptInvitation } from '@/lib/db/queries/invitations';
 import { hashPassword } from '@/lib/auth/password';
-import { lockedFor } from '@/lib/auth/throttle';
-import { clientAddress } from '@/lib/auth/tokens';
+import { countAttempts, lockedFor } from '@/lib/auth/throttle';
+import { clientAddress } from '@/lib/auth/client-address';
 import { AppError } from '@/lib/errors';
 
 // POST /api/invitations/accept – the invitee chooses a name and password; the link then stops working

@@ -1,9 +1,9 @@
 import { handler } from '@/lib/api/handler';
 import { resetCompleteSchema } from '../schema';
-import { completePasswordReset, countAttempts } from '@/lib/db/queries/invitations';
+import { completePasswordReset } from '@/lib/db/queries/invitations';
 import { hashPassword } from '@/lib/auth/password';
-import { lockedFor } from '@/lib/auth/throttle';
-import { clientAddress } from '@/lib/auth/tokens';
+import { countAttempts, lockedFor } from '@/lib/auth/throttle';
+import { clientAddress } from '@/lib/auth/client-address';
 import { AppError } from '@/lib/errors';
 
 // POST /api/password-reset/complete – set a new password through a reset link (works once, for one hour)

@@ -1,7 +1,7 @@
 import { handler } from '@/lib/api/handler';
 import { accessChangeSchema, userIdParams } from '../../schema';
 import { updateAccess } from '@/lib/db/queries/people';
-import { clientAddress } from '@/lib/auth/tokens';
+import { clientAddress } from '@/lib/auth/client-address';
 
 // PATCH /api/admin/users/:id – change a person's role or (de)activate them; the last active admin stays (409)
 export const PATCH = handler(

@@ -1,7 +1,7 @@
 import { handler } from '@/lib/api/handler';
 import { voteChangeSchema, voteParamsSchema } from '@/lib/desk/schemas';
 import { saveVote } from '@/lib/db/queries/votes';
-import { clientIp } from '@/lib/desk/request';
+import { auditAddress as clientIp } from '@/lib/auth/client-address';
 
 // PUT /api/runs/:id/votes/:componentId – record the caller's vote (fields merged, version-checked)
 export const PUT = handler(
