@@ -3,7 +3,7 @@ import type { UserRow } from '@/lib/db/queries/users';
 import { can, type Action } from '@/lib/auth/permissions';
 import { ROLE_LABELS } from '@/lib/auth/roles';
 import { SignOutButton } from './sign-out-button';
-import { mailboxEnabled } from '@/lib/mail/config';
+import { devMailboxEnabled } from '@/lib/mail/config';
 
 const LINKS: { href: string; label: string; needs: Action }[] = [
   { href: '/', label: 'Home', needs: 'account.read' },
@@ -24,7 +24,7 @@ export function AppNav({ user }: { user: UserRow }) {
             {l.label}
           </Link>
         ))}
-        {mailboxEnabled() && can(user.role, 'mailbox.read') ? (
+        {devMailboxEnabled() && can(user.role, 'mailbox.read') ? (
           <Link href="/dev/mailbox" className="rounded px-2 py-1 text-sm text-ink-faint hover:bg-ground hover:text-ink">
             Mailbox (dev)
           </Link>
