@@ -19,6 +19,14 @@ rm -rf "$QUORUM_UPLOADS_DIR" && mkdir -p "$QUORUM_UPLOADS_DIR"
 # it stops when the server started by the exec below ends
 export QUORUM_MAIL_PORT="${QUORUM_MAIL_PORT:-2526}" SMTP_HOST=127.0.0.1 SMTP_PORT="${QUORUM_MAIL_PORT:-2526}"
 export QUORUM_MAIL_DIR="${QUORUM_MAIL_DIR:-$PWD/.data/mail/$QUORUM_DB_NAME}" QUORUM_DEV_MAILBOX=1
-rm -rf "$QUORUM_MAIL_DIR" && node --import tsx scripts/mail-server.ts --exit-with-parent &
+rm -rf "$QUORUM_MAIL_DIR"
+# the mail catcher, the worker and the app run together; stopping this script stops all three
+pids=()
+trap 'kill "${pids[@]}" 2>/dev/null; wait' EXIT INT TERM
+node --import tsx scripts/mail-server.ts --exit-with-parent &
+pids+=($!)
 node --import tsx scripts/worker.ts &
-exec npx next start -p "$PORT" -H 127.0.0.1
+pids+=($!)
+node_modules/.bin/next start -p "$PORT" -H 127.0.0.1 &
+pids+=($!)
+wait -n "${pids[@]}"

@@ -22,6 +22,8 @@ echo "migrating the database"
 node --import tsx node_modules/knex/bin/cli.js --knexfile knexfile.ts migrate:latest
 echo "seeding the demo (Fernhollow Imaging Core)"
 node --import tsx scripts/seed-demo.ts
+echo "importing the demo runs (synthetic, from our phantom) into the demo study"
+node --conditions=react-server --import tsx scripts/import-demo-runs.ts
 
 if [ "${QUORUM_SKIP_BUILD:-0}" != 1 ] || [ ! -f .next/BUILD_ID ]; then
   echo "building the app (about a minute)"
@@ -37,14 +39,12 @@ trap stop_all EXIT INT TERM
 
 # the local fake mail server catches every e-mail; read them at /dev/mailbox (signed in as the admin)
 export SMTP_HOST="${SMTP_HOST:-127.0.0.1}" SMTP_PORT="${SMTP_PORT:-${QUORUM_MAIL_PORT:-2525}}" QUORUM_DEV_MAILBOX="${QUORUM_DEV_MAILBOX:-1}"
-for helper in scripts/mail-server.ts scripts/worker.ts; do
-  if [ -f "$helper" ]; then
-    node --import tsx "$helper" &
-    pids+=($!)
-  fi
-done
+node --import tsx scripts/mail-server.ts &
+pids+=($!)
+node --import tsx scripts/worker.ts &
+pids+=($!)
 
 echo "Quorum is starting on http://localhost:$PORT — sign in as lead@fernhollow.example / quorum-demo"
-npx next start -p "$PORT" &
+node_modules/.bin/next start -p "$PORT" &
 pids+=($!)
 wait -n "${pids[@]}"
