@@ -65,6 +65,15 @@ test('a lead releases the study, downloads the ZIP with a verified manifest, and
   for (const f of manifest.files) expect(createHash('sha256').update(readFileSync(path.join(root, f.path))).digest('hex'), f.path).toBe(f.sha256);
   expect(readFileSync(path.join(root, 'sub-walk01/ses-1/sub-walk01_ses-1_task-rest_desc-noiselist_components.txt'), 'utf8')).toBe('3,6\n');
 
+  // denoised data from the worker (partial regression by default); the link appears when done
+  await page.locator('[data-testid^="denoise-request-"]').first().click();
+  const link = page.locator('[data-testid^="denoise-download-"]').first();
+  await expect(link).toBeVisible({ timeout: 45_000 });
+  await expect(link).toContainText('sub-walk01_ses-1_task-rest_desc-denoisedpartial_bold.nii.gz');
+  const [denoised] = await Promise.all([page.waitForEvent('download'), link.click()]);
+  await denoised.saveAs(path.join(dir, 'denoised.nii.gz'));
+  expect(readFileSync(path.join(dir, 'denoised.nii.gz')).subarray(0, 2)).toEqual(Buffer.from([0x1f, 0x8b]));
+
   await releases.openReport();
   await expect(page.getByTestId('report-runs')).toHaveText('1');
   await expect(page.getByTestId('methods-paragraph')).toContainText('symmetric FastICA');
