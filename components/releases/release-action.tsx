@@ -7,16 +7,19 @@ import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/notice';
 
 /** The lead's "Release" action: releases the study (or one run) and shows the server's refusal when decisions are incomplete. */
-export function ReleaseAction({ studyId, refusal, pending }: { studyId: number; refusal: string | null; pending: number }) {
+export type ReleasableRun = { runId: number; name: string; components: number; waiting: number };
+
+export function ReleaseAction({ studyId, refusal, pending, runs }: { studyId: number; refusal: string | null; pending: number; runs: ReleasableRun[] }) {
   const router = useRouter();
   const [notes, setNotes] = useState('');
+  const [runId, setRunId] = useState('');
   const [busy, setBusy] = useState(false);
   const [message, setMessage] = useState<{ kind: 'error' | 'ok'; text: string } | null>(null);
 
   async function release() {
     setBusy(true);
     setMessage(null);
-    const res = await postJson<{ releaseId: number; version: number; files: number }>(`/api/studies/${studyId}/releases`, notes ? { notes } : {});
+    const res = await postJson<{ releaseId: number; version: number; files: number }>(`/api/studies/${studyId}/releases`, { ...(notes ? { notes } : {}), ...(runId ? { runId: Number(runId) } : {}) });
     setBusy(false);
     if (!res.ok) return setMessage({ kind: 'error', text: res.message });
     setMessage({ kind: 'ok', text: `Released as version ${res.data.version} with ${res.data.files} files.` });
@@ -26,7 +29,7 @@ export function ReleaseAction({ studyId, refusal, pending }: { studyId: number; 
 
   return (
     <div className="flex flex-col gap-3">
-      {refusal ? (
+      {refusal && !runId ? (
         <Notice kind="info" testId="release-refusal">
           {refusal}{' '}
           {pending > 0 ? (
@@ -36,13 +39,24 @@ export function ReleaseAction({ studyId, refusal, pending }: { studyId: number; 
           ) : null}
         </Notice>
       ) : null}
+      <label className="flex flex-col gap-1 text-sm" htmlFor="release-scope">
+        <span className="text-ink-muted">What to release</span>
+        <select id="release-scope" value={runId} onChange={(e) => setRunId(e.target.value)} className="rounded border border-line-strong bg-ground-sunken px-2 py-1" data-testid="release-scope">
+          <option value="">The whole study</option>
+          {runs.map((r) => (
+            <option key={r.runId} value={r.runId}>
+              {r.name} only ({r.waiting ? `${r.waiting} of ${r.components} waiting` : `${r.components} components decided`})
+            </option>
+          ))}
+        </select>
+      </label>
       <label className="flex flex-col gap-1 text-sm" htmlFor="release-notes">
         <span className="text-ink-muted">Notes for this release (optional)</span>
         <input id="release-notes" value={notes} onChange={(e) => setNotes(e.target.value)} maxLength={2000} className="rounded border border-line-strong bg-ground-sunken px-2 py-1" />
       </label>
       <div>
         <Button onClick={release} disabled={busy} data-testid="release-button">
-          {busy ? 'Releasing…' : 'Release the study'}
+          {busy ? 'Releasing…' : runId ? 'Release this run' : 'Release the study'}
         </Button>
       </div>
       {message ? <Notice kind={message.kind} testId="release-message">{message.text}</Notice> : null}

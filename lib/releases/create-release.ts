@@ -118,6 +118,13 @@ export async function createRelease({ user, studyId, runId = null, notes = null,
       const releaseId = Number(id);
       const released = await trx('releases').where({ id: releaseId }).first('released_at');
       const runs = await loadExportRuns({ studyId, runId }, trx);
+      const seen = new Map<string, number>();
+      for (const r of runs) {
+        const stem = bidsName({ sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, runLabel: r.runLabel });
+        const other = seen.get(stem);
+        if (other !== undefined) throw new AppError('conflict', `Runs ${other} and ${r.runId} have the same BIDS entities (${stem}), so their files would share names; correct the labels of one of them on the study page, then release.`);
+        seen.set(stem, r.runId);
+      }
       const rows = runs.flatMap((r) => r.components.map((c) => ({ release_id: releaseId, component_id: c.componentId, run_id: r.runId, idx: c.idx, label: c.label!, noise_kind: c.noiseKind, method: c.method as never })));
       for (let i = 0; i < rows.length; i += 200) await trx('release_decisions').insert(rows.slice(i, i + 200));
       const manifest = await writeReleaseFiles(trx, { dirKey, study, runs, releaseId, version, releasedAt: (released.released_at as Date).toISOString(), user, runId, notes, excluded: runId ? [] : readiness.notReady });

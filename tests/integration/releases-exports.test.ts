@@ -408,3 +408,15 @@ describe('pipeline API with personal access tokens', () => {
     expect((await revoked.json()).error.message).toMatch(/revoked/);
   });
 });
+
+describe('runs whose files would share names', () => {
+  it('refuses a release when two runs have the same BIDS entities, naming both', async () => {
+    const twin = await createReadyRun(db, { studyId, createdBy: u('lead'), raterIds: [u('rater1')], size: 'tiny', seed: 31, sub: 'rel01', components: 4 });
+    for (const componentId of twin.componentIds) await db('decisions').insert({ component_id: componentId, run_id: twin.runId, label: 'signal', method: 'unanimous' });
+    actAs(u('lead'));
+    const res = await release();
+    expect(res.status).toBe(409);
+    expect(res.json.error.message).toContain(`Runs ${runs[0]!.runId} and ${twin.runId} have the same BIDS entities (sub-rel01_ses-1_task-rest)`);
+    expect(await db('releases').where({ study_id: studyId, run_key: 0 }).max('version as v').first()).toMatchObject({ v: 2 });
+  });
+});

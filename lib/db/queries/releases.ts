@@ -47,6 +47,18 @@ export async function releaseReadiness(s: ReleaseScope, q: Knex | Knex.Transacti
   };
 }
 
+/** Per run of the study (non-calibration, with a current decomposition): components and how many still wait. */
+export async function runReadiness({ studyId }: { studyId: number }): Promise<{ runId: number; sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null; components: number; waiting: number }[]> {
+  const rows = await scopedRuns(db, { studyId })
+    .join('components as c', 'c.decomposition_id', 'd.id')
+    .leftJoin('decisions as x', 'x.component_id', 'c.id')
+    .groupBy('r.id', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label')
+    .orderBy(['r.sub', 'r.ses', 'r.task', 'r.run_label', 'r.id'])
+    .select('r.id as runId', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel', db.raw('COUNT(c.id) as components'),
+      db.raw("SUM(CASE WHEN x.id IS NULL OR x.method = 'pending' OR x.label IS NULL THEN 1 ELSE 0 END) as waiting"));
+  return rows.map((r: Record<string, unknown>) => ({ runId: Number(r.runId), sub: String(r.sub), ses: (r.ses as string) ?? null, task: (r.task as string) ?? null, acq: (r.acq as string) ?? null, runLabel: (r.runLabel as string) ?? null, components: Number(r.components), waiting: Number(r.waiting) }));
+}
+
 export type ExportRun = {
   runId: number;
   sub: string;
