@@ -89,7 +89,7 @@ export type ExportRun = {
 };
 
 /** Everything the export files of the scope need, read in the caller's transaction (the frozen snapshot). */
-export async function loadExportRuns(s: ReleaseScope, q: Knex | Knex.Transaction = db): Promise<ExportRun[]> {
+export async function loadExportRuns(s: ReleaseScope, q: Knex | Knex.Transaction = db, opts: { timecourses?: boolean } = {}): Promise<ExportRun[]> {
   const runs = await scopedRuns(q as Knex, s)
     .orderBy(['r.sub', 'r.ses', 'r.task', 'r.run_label', 'r.id'])
     .select(
@@ -102,7 +102,7 @@ export async function loadExportRuns(s: ReleaseScope, q: Knex | Knex.Transaction
     .leftJoin('decisions as x', 'x.component_id', 'c.id')
     .whereIn('c.decomposition_id', decIds)
     .orderBy(['c.decomposition_id', 'c.idx'])
-    .select('c.id as componentId', 'c.decomposition_id as decompositionId', 'c.idx', 'c.variance_explained as varianceExplained', 'c.features', 'c.timecourse',
+    .select('c.id as componentId', 'c.decomposition_id as decompositionId', 'c.idx', 'c.variance_explained as varianceExplained', 'c.features', ...(opts.timecourses === false ? [] : ['c.timecourse']),
       'x.label', 'x.noise_kind as noiseKind', 'x.method', 'x.reason');
   const votes = await q('votes as v')
     .join('components as c', 'c.id', 'v.component_id')
@@ -140,7 +140,7 @@ export async function loadExportRuns(s: ReleaseScope, q: Knex | Knex.Transaction
         idx: Number(c.idx),
         varianceExplained: Number(c.varianceExplained),
         features: parseJson<Record<string, number | null>>(c.features, {}) ?? {},
-        timecourse: blobToFloat32(c.timecourse as Buffer | null),
+        timecourse: opts.timecourses === false ? null : blobToFloat32(c.timecourse as Buffer | null),
         label: (c.label as string) ?? null,
         noiseKind: (c.noiseKind as string) ?? null,
         method: (c.method as string) ?? 'pending',

@@ -50,7 +50,7 @@ export default async function ReportPage({ params, searchParams }: { params: Pro
     const md = file ? await readFile(pathFor(file.key), 'utf8').catch(() => '') : '';
     methods = md.split('\n').filter((l) => l && !l.startsWith('#') && !l.startsWith('- ')).join(' ');
   } else {
-    const runs = await loadExportRuns({ studyId });
+    const runs = await loadExportRuns({ studyId }, db, { timecourses: false });
     methods = runs.length ? methodsParagraph(methodsInputOf(runs, study, report)) : 'No run has a finished decomposition yet.';
   }
   const names = new Map(report.raters.map((r) => [String(r.id), r.name]));
