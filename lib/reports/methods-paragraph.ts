@@ -46,7 +46,7 @@ const RULE: Record<string, string> = {
 };
 
 const f2 = (x: number) => x.toFixed(2);
-const list = (xs: string[]) => (xs.length <= 1 ? xs.join('') : `${xs.slice(0, -1).join(', ')} and ${xs[xs.length - 1]}`);
+const list = (xs: string[], and = 'and') => (xs.length <= 1 ? xs.join('') : `${xs.slice(0, -1).join(', ')} ${and} ${xs[xs.length - 1]}`);
 const range = (a: number, b: number) => (a === b ? String(a) : `${a}–${b}`);
 
 function stat(name: string, s: { value: number | null; ci?: { lower: number | null; upper: number | null } | null } | undefined): string | null {
@@ -71,7 +71,7 @@ export function methodsParagraph(m: MethodsInput): string {
   );
   const v = m.votesPerComponent;
   parts.push(
-    `Trained raters labelled every component as ${list(m.labelSet)} from its spatial map, time course, power spectrum and features, blind to each other's labels until they had submitted a run; ` +
+    `Trained raters labelled every component as ${list(m.labelSet, 'or')} from its spatial map, time course, power spectrum and features, blind to each other's labels until they had submitted a run; ` +
       `the protocol asked for ${m.ratersPerRun} raters per run, and components received ${range(v.min, v.max)} submitted votes (mean ${f2(v.mean)}) from ${m.report.raters.length} raters in all. ` +
       `Under the consensus rule, ${RULE[m.consensusRule]}.`,
   );
@@ -96,7 +96,7 @@ export function methodsParagraph(m: MethodsInput): string {
   const c = m.report.decisions;
   const lead = c.reconciled + c.override;
   parts.push(
-    `Of ${c.total} decisions, ${c.unanimous} were unanimous, ${c.majority} were reached by majority and ${lead} (${c.total ? f2((100 * lead) / c.total) : '0.00'} %) were resolved by the study lead, who recorded a reason for each. ` +
+    `Of ${c.total} decisions, ${c.unanimous} were unanimous, ${c.majority} were reached by majority and ${lead} (${c.total ? f2((100 * lead) / c.total) : '0.00'} %) were resolved by the study lead with a recorded reason. ` +
       `Components decided noise${m.uncertainInExport === 'remove' ? ' or uncertain' : ''} were listed for removal${m.uncertainInExport === 'keep' ? '; uncertain components were kept' : ''}.`,
   );
   return parts.join(' ');
