@@ -1,7 +1,10 @@
 /**
  * Automatic rater assignment for a run from its study's protocol (raters_per_run), balancing open
  * work: the study's active rater members with the fewest open (unsubmitted) assignments in any
- * study come first, ties by user id. Framework-free (takes a Knex or a transaction) so the worker
+ * study come first, ties by user id. When the study certifies raters (rater_certifications has
+ * rows for it), raters who passed come before the others, who are used only to fill the protocol's
+ * count. Greedy choice of the least-loaded keeps every rater's open count within one of the others'
+ * while nobody submits (tests/integration/assignments-balance.test.ts). Framework-free (takes a Knex or a transaction) so the worker
  * and route handlers share it; a people/notifications module may wrap it (e.g. to send mail for
  * the `created` assignments).
  */
@@ -51,9 +54,12 @@ export async function assignRaters(
   const openBy = new Map<number, number>(
     (open as Array<{ rater_id: number; n: number | string }>).map((o) => [Number(o.rater_id), Number(o.n)]),
   );
+  const certs = (await db('rater_certifications').where({ study_id: run.study_id }).select('user_id', 'passed')) as Array<{ user_id: number; passed: number | boolean }>;
+  const certified = new Set(certs.filter((c) => Boolean(c.passed)).map((c) => Number(c.user_id)));
+  const rank = (id: number) => (certs.length === 0 || certified.has(id) ? 0 : 1);
   const chosen = ids
-    .map((id) => ({ id, open: openBy.get(id) ?? 0 }))
-    .sort((a, b) => a.open - b.open || a.id - b.id)
+    .map((id) => ({ id, open: openBy.get(id) ?? 0, rank: rank(id) }))
+    .sort((a, b) => a.rank - b.rank || a.open - b.open || a.id - b.id)
     .slice(0, wanted)
     .map((r) => r.id);
   await db('assignments').insert(chosen.map((raterId) => ({ run_id: runId, rater_id: raterId, assigned_by: assignedBy })));

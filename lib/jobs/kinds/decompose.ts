@@ -12,6 +12,7 @@ import { dropInitialVolumes, parseMotionFile, type MotionOrder, type MotionParam
 import { decomposeRun, type DecomposeOptions } from '@/lib/decomposition/pipeline';
 import { readNiftiFile, type NiftiImage } from '@/lib/nifti';
 import { assignRaters, type AssignRatersResult } from '@/lib/runs/assign-raters';
+import { afterAssignmentsCreated } from '@/lib/notifications/queue';
 import {
   componentRows,
   decompositionSummary,
@@ -196,6 +197,7 @@ export const decomposeKind = defineJobKind({
             components,
           });
           const assignment: AssignRatersResult = await assignRaters(trx, { runId });
+          if (assignment.raterIds.length) await afterAssignmentsCreated(trx, { studyId: Number(run.study_id) });
           return { decompositionId, assignment };
         },
         (v) => ({ decompositionId: v.decompositionId, k: result.k, raters: v.assignment.raterIds, assignment: v.assignment.outcome }),

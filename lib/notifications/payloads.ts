@@ -1,0 +1,19 @@
+/**
+ * Payloads of the notification job kinds (zod only). They are written to the jobs table by
+ * ./queue.ts, not through lib/jobs' enqueueJob, because the shared payload registry
+ * (lib/jobs/payloads.ts) does not list these kinds; the worker validates them with the same
+ * schemas when it claims a job.
+ */
+import { z } from 'zod';
+
+export const NOTIFY_ASSIGNMENTS = 'notify-assignments';
+export const NOTIFY_VOTES_COMPLETE = 'notify-votes-complete';
+export const NOTIFY_OVERDUE = 'notify-overdue';
+export type NotifyKind = typeof NOTIFY_ASSIGNMENTS | typeof NOTIFY_VOTES_COMPLETE | typeof NOTIFY_OVERDUE;
+
+/** notify-assignments: no parameters — it collects every assignment not yet notified. */
+export const notifyAssignmentsPayloadSchema = z.object({}).strict();
+/** notify-votes-complete: no parameters — it finds every run whose assigned raters all submitted. */
+export const notifyVotesCompletePayloadSchema = z.object({}).strict();
+/** notify-overdue: `repeat` false for a one-off summary (the daily job re-queues itself). */
+export const notifyOverduePayloadSchema = z.object({ repeat: z.boolean().default(true) }).strict();
