@@ -18,8 +18,8 @@ export type VolumeViewerProps = {
   maxZ: number;
   layout: ViewerLayout;
   onLocation?: (loc: ViewerLocation) => void;
-  /** Called after the frame has been drawn and painted (for the desk's timing marks). */
-  onDrawn?: (frame: number) => void;
+  /** Called when the frame's draw calls are issued, and again once the browser painted it (timing marks). */
+  onDrawn?: (frame: number, phase: 'issued' | 'painted') => void;
   onError?: (message: string) => void;
 };
 
@@ -68,6 +68,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
       loadingText: 'loading maps…',
     });
     nvRef.current = nv;
+    (window as unknown as { __quorumViewer?: Niivue }).__quorumViewer = nv; // for the browser tests' timing breakdown
     (async () => {
       await nv.attachToCanvas(canvas);
       nv.addColormap('quorum-ember', EMBER);
@@ -142,7 +143,8 @@ export default function VolumeViewer(props: VolumeViewerProps) {
     nv.setFrame4D(nv.volumes[1].id, props.frame);
     nv.drawScene();
     const frame = props.frame;
-    afterPaint(() => latest.current.onDrawn?.(frame));
+    latest.current.onDrawn?.(frame, 'issued');
+    afterPaint(() => latest.current.onDrawn?.(frame, 'painted'));
   }, [props.frame, ready]);
 
   return (

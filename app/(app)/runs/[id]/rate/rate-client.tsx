@@ -21,8 +21,10 @@ import { Notice } from '@/components/ui/notice';
 
 declare global {
   interface Window {
-    /** Key press → new component drawn, in ms (read by the browser test). */
+    /** Key press → new component painted (map, time course, spectrum), ms (read by the browser test). */
     __deskTimings?: number[];
+    /** Key press → React committed and the viewer issued its draw calls, ms. */
+    __deskTimingsIssued?: number[];
   }
 }
 
@@ -110,11 +112,15 @@ export function RateClient({
     [ids.length],
   );
 
-  const onDrawn = useCallback((frame: number) => {
+  const onDrawn = useCallback((frame: number, phase: 'issued' | 'painted') => {
     const start = navStart.current;
     if (!start || start.frame !== frame) return;
-    navStart.current = null;
     const ms = performance.now() - start.t;
+    if (phase === 'issued') {
+      (window.__deskTimingsIssued ??= []).push(ms);
+      return;
+    }
+    navStart.current = null;
     performance.measure('desk:next', 'desk:nav');
     (window.__deskTimings ??= []).push(ms);
   }, []);

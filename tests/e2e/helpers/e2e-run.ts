@@ -1,0 +1,54 @@
+import { execFileSync } from 'node:child_process';
+import path from 'node:path';
+import type { Page } from '@playwright/test';
+
+export type E2eRun = { runId: number; decompositionId: number; componentIds: number[]; k: number };
+
+/**
+ * Creates a ready run in the browser tests' database (quorum_e2e) with its files under the e2e
+ * server's uploads folder, assigned to the given demo raters (the way the worker leaves a run).
+ */
+export function createE2eRun(opts: { raters?: string[]; size?: 'tiny' | 'small'; seed?: number } = {}): E2eRun {
+  const root = process.cwd();
+  const out = execFileSync('node', ['--import', 'tsx', 'tests/e2e/helpers/create-ready-run.ts', JSON.stringify(opts)], {
+    cwd: root,
+    env: {
+      ...process.env,
+      QUORUM_DB_NAME: process.env.QUORUM_DB_NAME ?? 'quorum_e2e',
+      QUORUM_UPLOADS_DIR: process.env.QUORUM_UPLOADS_DIR ?? path.join(root, '.data/e2e-uploads'),
+    },
+    encoding: 'utf8',
+    timeout: 120_000,
+  });
+  return JSON.parse(out.trim().split('\n').pop()!) as E2eRun;
+}
+
+/** Distinct colours in a screenshot of an element (decoded in the page: no image package needed). */
+export async function distinctColours(page: Page, selector: string): Promise<number> {
+  const png = await page.locator(selector).screenshot();
+  return page.evaluate(async (b64) => {
+    const blob = await (await fetch(`data:image/png;base64,${b64}`)).blob();
+    const bmp = await createImageBitmap(blob);
+    const c = document.createElement('canvas');
+    c.width = bmp.width;
+    c.height = bmp.height;
+    const ctx = c.getContext('2d')!;
+    ctx.drawImage(bmp, 0, 0);
+    const d = ctx.getImageData(0, 0, c.width, c.height).data;
+    const seen = new Set<number>();
+    for (let i = 0; i < d.length; i += 4) seen.add((d[i] << 16) | (d[i + 1] << 8) | d[i + 2]);
+    return seen.size;
+  }, png.toString('base64'));
+}
+
+/** Every JSON value anywhere inside `value` whose key is `key`. */
+export function findKey(value: unknown, key: string, out: unknown[] = []): unknown[] {
+  if (Array.isArray(value)) value.forEach((v) => findKey(v, key, out));
+  else if (value && typeof value === 'object') {
+    for (const [k, v] of Object.entries(value)) {
+      if (k === key) out.push(v);
+      findKey(v, key, out);
+    }
+  }
+  return out;
+}
