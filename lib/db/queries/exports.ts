@@ -75,3 +75,9 @@ export async function runStudy({ runId }: { runId: number }): Promise<{ studyId:
   const r = await db('runs').where({ id: runId }).first('id', 'study_id');
   return r ? { studyId: Number(r.study_id), runId: Number(r.id) } : null;
 }
+
+/** Whether the run has a motion table (needed for motion regressors). */
+export async function runHasMotion({ runId }: { runId: number }): Promise<boolean> {
+  const r = await db('runs').where({ id: runId }).first('motion_key');
+  return !!r?.motion_key;
+}

@@ -65,6 +65,8 @@ export default async function ReportPage({ params, searchParams }: { params: Pro
         <div>
           <p className="text-sm text-ink-muted no-print">
             <Link href={`/studies/${studyId}/agreement`} className="hover:text-ink">{access.name} · agreement</Link>
+            {' · '}
+            <Link href={`/studies/${studyId}/releases`} className="hover:text-ink" data-testid="releases-link">releases</Link>
           </p>
           <h1 className="text-xl font-semibold" data-testid="report-heading">
             Agreement report — {access.name}

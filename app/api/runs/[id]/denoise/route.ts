@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { handler } from '@/lib/api/handler';
 import { findStudyAccess, leadsStudy } from '@/lib/db/queries/study-access';
 import { findRelease, releaseReadiness } from '@/lib/db/queries/releases';
-import { enqueueDenoise, listDenoiseJobs, runStudy } from '@/lib/db/queries/exports';
+import { enqueueDenoise, listDenoiseJobs, runHasMotion, runStudy } from '@/lib/db/queries/exports';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { AppError, forbidden, notFound } from '@/lib/errors';
 
@@ -43,6 +43,9 @@ export const POST = handler({ permission: 'denoise.request', params, body, what:
   } else {
     const r = await releaseReadiness({ studyId: run.studyId, runId: run.runId });
     if (r.pending + r.undecided > 0 || r.runs === 0) throw new AppError('conflict', `Run ${run.runId} has ${r.pending + r.undecided} components without a final decision; decide them first or denoise from a release.`);
+  }
+  if (body.includeMotion && !(await runHasMotion({ runId: run.runId }))) {
+    throw new AppError('validation', 'This run has no motion parameters, so they cannot be added as regressors; untick "motion" or attach a motion table to the run.', { includeMotion: ['the run has no motion parameters'] });
   }
   const { jobId, existing } = await enqueueDenoise({
     payload: { runId: run.runId, ...(body.releaseId ? { releaseId: body.releaseId } : {}), mode: body.mode, includeMotion: body.includeMotion },
