@@ -341,6 +341,46 @@ describe('a study release', () => {
   });
 });
 
+describe('denoise, full regression with motion regressors', () => {
+  it('leaves a residual orthogonal to every removed noise course and motion parameter', async () => {
+    const run = runs[1]!;
+    const rel = (await db('releases').where({ study_id: studyId, run_key: 0 }).orderBy('version', 'desc').first('id', 'manifest'));
+    const manifest = typeof rel.manifest === 'string' ? JSON.parse(rel.manifest) : rel.manifest;
+    const noise = manifest.runs.find((r: any) => r.runId === run.runId).noise as number[];
+    actAs(u('lead'));
+    const req = await callRoute(denoiseRoute.POST, { method: 'POST', url: `/api/runs/${run.runId}/denoise`, params: { id: String(run.runId) }, body: { releaseId: rel.id, mode: 'full', includeMotion: true } });
+    expect(req.status, JSON.stringify(req.json)).toBe(202);
+    const logger = { info: () => {}, warn: () => {}, error: (m: string) => console.error(m) };
+    const job = await claimJob(db, { workerId: 'test-worker', kinds: ['denoise'], leaseMs: 60_000 });
+    expect(await runClaimedJob(db, job!, { workerId: 'test-worker', leaseMs: 60_000, kinds: jobKinds, logger })).toBe('succeeded');
+    const done = (await db('jobs').where({ id: req.json.jobId }).first('result')).result;
+    const result = typeof done === 'string' ? JSON.parse(done) : done;
+    expect(result).toMatchObject({ mode: 'full', includeMotion: true, noise });
+    const out = decodeNifti(await readFile(pathFor(result.key)));
+    const comps = await db('components').where({ decomposition_id: run.decompositionId }).orderBy('idx').select('timecourse');
+    const courses = comps.map((c: any) => blobToFloat32(c.timecourse)!);
+    const T = courses[0]!.length;
+    expect(out.nt).toBe(T);
+    const { parseMotionFile, dropInitialVolumes } = await import('@/lib/decomposition/motion');
+    const motionKey = (await db('runs').where({ id: run.runId }).first('motion_key')).motion_key;
+    const motion = dropInitialVolumes(parseMotionFile(await readFile(pathFor(motionKey), 'utf8'), { order: 'trans-first', rotationUnits: 'radians', expectedRows: T + 2 }), 2);
+    const regressors = [...noise.map((n) => courses[n - 1]!), ...motion.translations, ...motion.rotations];
+    const mask = decodeNifti(await readFile(pathFor((await db('decompositions').where({ id: run.decompositionId }).first('mask_key')).mask_key))).readVolume(0);
+    const voxels = [...mask.keys()].filter((i) => mask[i]! > 0).filter((_, n) => n % 53 === 0);
+    const vol = new Float32Array(out.voxelsPerVolume);
+    const series = voxels.map(() => new Float64Array(T));
+    for (let t = 0; t < T; t++) { out.readVolume(t, vol); voxels.forEach((v, i) => (series[i]![t] = vol[v]!)); }
+    const corr = (a: ArrayLike<number>, b: ArrayLike<number>) => {
+      let ma = 0, mb = 0; for (let t = 0; t < T; t++) { ma += a[t]!; mb += b[t]!; } ma /= T; mb /= T;
+      let ab = 0, aa = 0, bb = 0; for (let t = 0; t < T; t++) { const x = a[t]! - ma, y = b[t]! - mb; ab += x * y; aa += x * x; bb += y * y; }
+      return aa && bb ? ab / Math.sqrt(aa * bb) : 0;
+    };
+    let worst = 0;
+    for (const s of series) for (const r of regressors) worst = Math.max(worst, Math.abs(corr(s, r)));
+    expect(worst).toBeLessThan(1e-3);
+  });
+});
+
 describe('pipeline API with personal access tokens', () => {
   let token: string;
   let tokenId: number;
