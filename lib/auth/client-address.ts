@@ -28,3 +28,14 @@ export function auditAddress(source: Request | HeaderSource): string | null {
   const a = clientAddress(source);
   return a === 'direct' ? null : a;
 }
+
+/**
+ * A per-address throttle key such as `reset:ip:203.0.113.9`, or null when the address is not
+ * known: a key shared by every caller would let one person lock everyone out, so without a
+ * trusted proxy only the per-account and per-e-mail keys throttle (one-time links carry 256
+ * random bits and cannot be guessed anyway).
+ */
+export function addressKey<P extends string>(prefix: P, source: Request | HeaderSource): `${P}:${string}` | null {
+  const a = clientAddress(source);
+  return a === 'direct' ? null : `${prefix}:${a}`;
+}

@@ -5,7 +5,7 @@ import { hashPassword, verifyPassword } from './password';
 import { signInSchema } from './schemas';
 import { clearFailures, lockedFor, recordFailure, type ThrottleKey } from './throttle';
 import { authSecret } from './secret';
-import { clientAddress } from './client-address';
+import { addressKey } from './client-address';
 import { findCredentialsByEmail, recordSignIn } from '@/lib/db/queries/users';
 import { recordAudit } from '@/lib/db/queries/audit';
 
@@ -30,7 +30,8 @@ export const authOptions: NextAuthOptions = {
         const parsed = signInSchema.safeParse(credentials ?? {});
         if (!parsed.success) throw new Error(SIGN_IN_WRONG);
         const { email, password } = parsed.data;
-        const keys: ThrottleKey[] = [`ip:${clientAddress(req?.headers as Record<string, unknown> | undefined)}`, `account:${email}`];
+        const ipKey = addressKey('ip', req?.headers as Record<string, unknown> | undefined);
+        const keys: ThrottleKey[] = ipKey ? [ipKey, `account:${email}`] : [`account:${email}`];
         const waits = await Promise.all(keys.map(lockedFor));
         const wait = Math.max(...waits);
         if (wait > 0) {

@@ -6,7 +6,7 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { db, closeDb } from '@/lib/db/knex';
 import { clearFailures, lockedFor, MAX_FAILURES, recordFailure } from '@/lib/auth/throttle';
-import { clientAddress } from '@/lib/auth/client-address';
+import { addressKey, clientAddress } from '@/lib/auth/client-address';
 import { uniqueSuffix } from './helpers/factories';
 
 afterAll(closeDb);
@@ -46,8 +46,11 @@ describe('clientAddress', () => {
   it('ignores forwarding headers unless the proxy is trusted', () => {
     delete process.env.QUORUM_TRUST_PROXY;
     expect(clientAddress(req)).toBe('direct');
+    // no shared key for unknown callers: one person must not lock everyone out
+    expect(addressKey('ip', req)).toBeNull();
     process.env.QUORUM_TRUST_PROXY = '1';
     expect(clientAddress(req)).toBe('203.0.113.9');
+    expect(addressKey('reset:ip', req)).toBe('reset:ip:203.0.113.9');
     delete process.env.QUORUM_TRUST_PROXY;
   });
 });

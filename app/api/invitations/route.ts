@@ -5,7 +5,7 @@ import { accountExists, leadsStudy } from '@/lib/db/queries/people';
 import { createInvitation, listInvitations } from '@/lib/db/queries/invitations';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { countAttempts, lockedFor } from '@/lib/auth/throttle';
-import { clientAddress } from '@/lib/auth/client-address';
+import { auditAddress } from '@/lib/auth/client-address';
 import { deliverMail } from '@/lib/mail/deliver';
 import { facilityName, publicBaseUrl } from '@/lib/mail/config';
 import { invitationMail } from '@/lib/mail/templates/invitation';
@@ -44,7 +44,7 @@ export const POST = handler({ permission: 'invitations.create', body: inviteSche
 
   const base = publicBaseUrl(req.url);
   const facility = facilityName();
-  const ip = clientAddress(req);
+  const ip = auditAddress(req);
   after(async () => {
     try {
       if (await accountExists({ email: body.email })) {

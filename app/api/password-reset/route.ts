@@ -4,7 +4,7 @@ import { RESET_SENT_MESSAGE, resetRequestSchema } from './schema';
 import { findAccountForReset } from '@/lib/db/queries/people';
 import { createPasswordReset } from '@/lib/db/queries/invitations';
 import { countAttempts, lockedFor } from '@/lib/auth/throttle';
-import { clientAddress } from '@/lib/auth/client-address';
+import { addressKey, auditAddress } from '@/lib/auth/client-address';
 import { deliverMail } from '@/lib/mail/deliver';
 import { facilityName, publicBaseUrl } from '@/lib/mail/config';
 import { passwordResetMail } from '@/lib/mail/templates/password-reset';
@@ -13,8 +13,8 @@ import { AppError } from '@/lib/errors';
 // POST /api/password-reset – ask for a reset link. Same answer, and the same work before it, for
 // every address: the lookup and the e-mail happen after the response.
 export const POST = handler({ permission: 'public', body: resetRequestSchema, what: 'The reset request' }, async ({ req, body }) => {
-  const ip = clientAddress(req);
-  const keys = [`reset:ip:${ip}`, `reset:email:${body.email}`] as const;
+  const ip = auditAddress(req);
+  const keys = [addressKey('reset:ip', req), `reset:email:${body.email}` as const].filter((k) => k !== null);
   const wait = Math.max(...(await Promise.all(keys.map(lockedFor))));
   if (wait > 0) throw new AppError('too_many_requests', `Too many reset requests. Try again in ${Math.ceil(wait / 60000)} minutes.`);
   await countAttempts(keys);

@@ -1,0 +1,101 @@
+/**
+ * Reconcile as a study lead does it: two raters disagree on a demo run (through the desk API),
+ * both submit, the lead finds the disagreement in Reconcile, looks at the component, decides
+ * with a reason; the decision and its audit entry exist and the agreement page shows the run.
+ * Observers read the agreement page but cannot reach Reconcile or decide; raters neither.
+ */
+import { execFileSync } from 'node:child_process';
+import { expect, request as pwRequest, test, type APIRequestContext } from '@playwright/test';
+import { apiSignIn, DEMO, SignInPage } from './pages/sign-in-page';
+import { createE2eRun, type E2eRun } from './helpers/e2e-run';
+
+const A = 'rater3@fernhollow.example';
+const B = 'rater4@fernhollow.example';
+let run: E2eRun;
+let studyId: number;
+
+function sql(query: string): string {
+  // read-only look into the browser tests' database, through the project's own knex settings
+  return execFileSync('node', ['--import', 'tsx', '-e', `
+    import('./lib/db/knex.ts').then(async ({ createDb }) => {
+      const db = createDb();
+      const [rows] = await db.raw(${JSON.stringify(query)});
+      process.stdout.write(JSON.stringify(rows));
+      await db.destroy();
+    });`], { env: { ...process.env, QUORUM_DB_NAME: process.env.QUORUM_DB_NAME ?? 'quorum_e2e' }, encoding: 'utf8' });
+}
+
+async function rateAndSubmit(ctx: APIRequestContext, labelFor: (i: number) => string) {
+  for (const [i, id] of run.componentIds.entries()) {
+    const label = labelFor(i);
+    const res = await ctx.put(`/api/runs/${run.runId}/votes/${id}`, { data: { label, noiseKind: label === 'noise' ? 'motion' : null, baseVersion: 0 } });
+    expect(res.status(), await res.text()).toBe(200);
+  }
+  expect((await ctx.post(`/api/runs/${run.runId}/submit`, { data: {} })).status()).toBe(200);
+}
+
+test.beforeAll(async ({ baseURL }) => {
+  run = createE2eRun({ raters: [A, B], size: 'tiny', seed: 33 });
+  studyId = JSON.parse(sql(`SELECT study_id AS s FROM runs WHERE id = ${run.runId}`))[0].s;
+  const a = await pwRequest.newContext({ baseURL });
+  const b = await pwRequest.newContext({ baseURL });
+  await apiSignIn(a, A);
+  await apiSignIn(b, B);
+  // they agree on every component but the first, where one says noise and the other signal
+  await rateAndSubmit(a, (i) => (i === 0 ? 'noise' : 'signal'));
+  await rateAndSubmit(b, () => 'signal');
+  await a.dispose();
+  await b.dispose();
+});
+
+test('a lead reconciles a disagreement with a reason, and the agreement page shows the run', async ({ page }) => {
+  const signIn = new SignInPage(page);
+  await signIn.open();
+  await signIn.signIn(DEMO.lead);
+  await expect(page.getByTestId('home-heading')).toBeVisible();
+  await page.goto(`/studies/${studyId}/reconcile`);
+  await expect(page.getByTestId('reconcile-heading')).toBeVisible();
+  const entry = page.getByTestId('reconcile-list').getByRole('button', { name: new RegExp(`component 1 of ${run.k}`) });
+  await expect(entry).toBeVisible();
+  await entry.click();
+  await expect(page.getByTestId('reconcile-votes')).toContainText('Noise');
+  await expect(page.getByTestId('reconcile-votes')).toContainText('Signal');
+  await expect(page.getByTestId('timecourse-chart')).toBeVisible();
+
+  // the reason is required
+  await page.getByTestId('decide-noise').click();
+  await page.getByTestId('decide-submit').click();
+  await expect(page.getByTestId('decision-error')).toContainText('reason');
+
+  await page.getByTestId('decide-kind').selectOption('motion');
+  await page.getByTestId('decide-reason').fill('Rim pattern and spikes matching the motion trace');
+  await page.getByTestId('decide-submit').click();
+  await expect(page.getByText(/Component 1 of .*: Noise \(decided by a lead\)/)).toBeVisible();
+
+  const componentId = run.componentIds[0];
+  const decision = JSON.parse(sql(`SELECT label, noise_kind, method, reason FROM decisions WHERE component_id = ${componentId}`))[0];
+  expect(decision).toEqual({ label: 'noise', noise_kind: 'motion', method: 'reconciled', reason: 'Rim pattern and spikes matching the motion trace' });
+  const audit = JSON.parse(sql(`SELECT a.action, u.email FROM audit_log a JOIN users u ON u.id = a.actor_id WHERE a.target_type = 'component' AND a.target_id = '${componentId}' AND a.action LIKE 'decision.%'`));
+  expect(audit).toEqual([{ action: 'decision.reconcile', email: DEMO.lead }]);
+
+  await page.goto(`/studies/${studyId}/agreement`);
+  await expect(page.getByTestId('agreement-heading')).toBeVisible();
+  await expect(page.getByTestId('run-agreement')).toContainText('task-rest');
+  await expect(page.getByTestId('stat-percentAgreement')).toBeVisible();
+});
+
+test('observers read agreement but cannot reconcile; raters reach neither', async ({ baseURL }) => {
+  const observer = await pwRequest.newContext({ baseURL });
+  await apiSignIn(observer, DEMO.observer);
+  expect((await observer.get(`/api/studies/${studyId}/agreement`)).status()).toBe(200);
+  expect((await observer.get(`/api/studies/${studyId}/reconcile`)).status()).toBe(403);
+  const decide = await observer.post(`/api/studies/${studyId}/decisions`, { data: { componentId: run.componentIds[0], label: 'signal', reason: 'trying' } });
+  expect(decide.status()).toBe(403);
+  const rater = await pwRequest.newContext({ baseURL });
+  await apiSignIn(rater, A);
+  expect((await rater.get(`/api/studies/${studyId}/reconcile`)).status()).toBe(403);
+  expect((await rater.get(`/api/studies/${studyId}/agreement`)).status()).toBe(403);
+  expect((await rater.get(`/api/reconcile/runs/${run.runId}/components`)).status()).toBe(403);
+  await observer.dispose();
+  await rater.dispose();
+});
