@@ -50,6 +50,14 @@ export const ROUTES: RouteCase[] = [
   { file: 'runs/[id]/retry/route.ts', method: 'POST', url: '/api/runs/999999/retry', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/cancel/route.ts', method: 'POST', url: '/api/runs/999999/cancel', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/progress/route.ts', method: 'GET', url: '/api/runs/999999/progress', allowed: ALL },
+  // assignments and overdue work (runs.manage: leads of the study and admins; rows of study/run 999999 do not exist)
+  { file: 'studies/[id]/assignments/route.ts', method: 'GET', url: '/api/studies/999999/assignments', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/assignments/route.ts', method: 'PATCH', url: '/api/studies/999999/assignments', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/overdue/route.ts', method: 'GET', url: '/api/studies/999999/overdue', allowed: ['admin', 'lead'] },
+  { file: 'runs/[id]/assignments/route.ts', method: 'POST', url: '/api/runs/999999/assignments', allowed: ['admin', 'lead'] },
+  { file: 'runs/[id]/assignments/route.ts', method: 'PATCH', url: '/api/runs/999999/assignments', allowed: ['admin', 'lead'] },
+  { file: 'runs/[id]/assignments/[raterId]/route.ts', method: 'PATCH', url: '/api/runs/999999/assignments/999999', allowed: ['admin', 'lead'] },
+  { file: 'runs/[id]/assignments/[raterId]/route.ts', method: 'DELETE', url: '/api/runs/999999/assignments/999999', allowed: ['admin', 'lead'] },
   // rating desk (votes.write: raters, and the admin, who holds every action; rows scoped to the caller's assignments)
   { file: 'runs/[id]/components/route.ts', method: 'GET', url: '/api/runs/999999/components', allowed: ['admin', 'rater'] },
   { file: 'runs/[id]/votes/route.ts', method: 'GET', url: '/api/runs/999999/votes', allowed: ['admin', 'rater'] },

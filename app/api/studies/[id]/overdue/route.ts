@@ -1,0 +1,11 @@
+import { handler } from '@/lib/api/handler';
+import { studyParamsSchema } from '@/lib/assignments/schema';
+import { db } from '@/lib/db/knex';
+import { requireLedStudy } from '@/lib/db/queries/assignments';
+import { listOverdue } from '@/lib/notifications/overdue';
+
+// GET /api/studies/:id/overdue – assignments of the study past their due date and not submitted (leads of the study, admins)
+export const GET = handler({ permission: 'runs.manage', params: studyParamsSchema }, async ({ user, params }) => {
+  await requireLedStudy({ user, studyId: params.id });
+  return { overdue: await listOverdue(db, { studyId: params.id }) };
+});
