@@ -6,20 +6,8 @@
  * stage + percent, and re-queue running jobs whose lease expired (jobs_lease_index).
  */
 import type { Knex } from 'knex';
+import { createdAt, tableDefaults, updatedAt } from '../schema-helpers';
 
-function tableDefaults(t: Knex.CreateTableBuilder) {
-  t.engine('InnoDB');
-  t.charset('utf8mb4');
-  t.collate('utf8mb4_unicode_ci');
-}
-function createdAt(knex: Knex, t: Knex.CreateTableBuilder) {
-  t.datetime('created_at', { precision: 3 }).notNullable().defaultTo(knex.raw('CURRENT_TIMESTAMP(3)'));
-}
-function updatedAt(knex: Knex, t: Knex.CreateTableBuilder) {
-  t.datetime('updated_at', { precision: 3 })
-    .notNullable()
-    .defaultTo(knex.raw('CURRENT_TIMESTAMP(3) ON UPDATE CURRENT_TIMESTAMP(3)'));
-}
 
 export async function up(knex: Knex): Promise<void> {
   await knex.schema.createTable('jobs', (t) => {
