@@ -15,7 +15,7 @@ import { ReleasesPage } from './pages/releases-page';
 let studyId: number;
 
 /** A fresh study with one tiny ready run, votes from two submitted raters and complete decisions. */
-function createDecidedStudy(): number {
+function createDecidedStudy(pendingFirst = false): number {
   const out = execFileSync('node', ['--import', 'tsx', '-e', `
     Promise.all([import('./lib/db/knex.ts'), import('./tests/e2e/helpers/ready-run.ts')]).then(async ([{ createDb }, { createReadyRun }]) => {
       const db = createDb();
@@ -27,7 +27,8 @@ function createDecidedStudy(): number {
       for (const [n, componentId] of run.componentIds.entries()) {
         const label = n % 3 === 2 ? 'noise' : 'signal';
         for (const r of ['rater1', 'rater2']) await db('votes').insert({ component_id: componentId, run_id: run.runId, rater_id: ids[r], label, noise_kind: label === 'noise' ? 'motion' : null });
-        await db('decisions').insert({ component_id: componentId, run_id: run.runId, label, noise_kind: label === 'noise' ? 'motion' : null, method: 'unanimous' });
+        const pending = ${pendingFirst} && n === 0;
+        await db('decisions').insert({ component_id: componentId, run_id: run.runId, label: pending ? null : label, noise_kind: label === 'noise' ? 'motion' : null, method: pending ? 'pending' : 'unanimous' });
       }
       await db('assignments').where({ run_id: run.runId }).update({ submitted_at: db.fn.now() });
       process.stdout.write(JSON.stringify({ studyId }));
@@ -93,4 +94,20 @@ test('an observer sees the release and its checksums but no Release action', asy
   await releases.open(studyId);
   await expect(page.getByTestId('release-entry').first()).toBeVisible();
   await expect(releases.releaseButton()).toHaveCount(0);
+});
+
+test('a lead is told why a study with a pending decision cannot be released, with a way to Reconcile', async ({ page }) => {
+  const pendingStudy = createDecidedStudy(true);
+  const signIn = new SignInPage(page);
+  await signIn.open();
+  await signIn.signIn(DEMO.lead);
+  await expect(page.getByTestId('home-heading')).toBeVisible();
+  const releases = new ReleasesPage(page);
+  await releases.open(pendingStudy);
+  const refusal = page.getByTestId('release-refusal');
+  await expect(refusal).toContainText('1 of 6 components have no final decision yet (1 pending');
+  await expect(refusal.getByRole('link', { name: 'Open Reconcile' })).toHaveAttribute('href', `/studies/${pendingStudy}/reconcile`);
+  await releases.releaseButton().click();
+  await expect(page.getByTestId('release-message')).toContainText('no final decision yet');
+  await expect(page.getByTestId('no-releases')).toBeVisible();
 });
