@@ -31,7 +31,7 @@ async function readyRun(studyId: number, createdBy: number): Promise<number> {
 
 async function openCounts(raterIds: number[]): Promise<number[]> {
   const rows = await db('assignments').whereIn('rater_id', raterIds).whereNull('submitted_at').groupBy('rater_id').select('rater_id').count({ n: '*' });
-  const by = new Map(rows.map((r) => [Number(r.rater_id), Number(r.n)]));
+  const by = new Map((rows as Array<{ rater_id: number; n: number | string }>).map((r) => [Number(r.rater_id), Number(r.n)]));
   return raterIds.map((id) => by.get(id) ?? 0);
 }
 
