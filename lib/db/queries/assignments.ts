@@ -172,7 +172,7 @@ export async function addRaterToRun({ user, runId, raterId, dueAt, ip }: { user:
 
 /** What removing a rater with votes does, shown with the confirmation and in the refusal. */
 export function removalConsequence(name: string, votes: number): string {
-  return `${name} has ${votes} vote${votes === 1 ? '' : 's'} on this run. Removing them keeps the votes in the database (and in the audit log), but they no longer count: not for agreement, not in the expected number of votes; the run's decisions are recomputed without them.`;
+  return `${name} has ${votes} vote${votes === 1 ? '' : 's'} on this run. Removing them keeps the votes in the database and in the audit log, but they no longer count for agreement or in the run's expected number of votes; the run's decisions are recomputed.`;
 }
 
 async function removeInTrx(trx: Knex.Transaction, { run, raterId, confirm }: { run: { id: number; name: string }; raterId: number; confirm: boolean }) {

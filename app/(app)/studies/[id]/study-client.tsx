@@ -1,5 +1,6 @@
 'use client';
 
+import Link from 'next/link';
 import { useStudyRuns, type StudyRunsData } from '@/components/runs/use-study-runs';
 import { RunsTable } from '@/components/runs/runs-table';
 import { UploadArea } from '@/components/runs/upload-area';
@@ -20,6 +21,7 @@ export function StudyClient({ studyId, initial, canManage, maxBytes }: { studyId
       ) : null}
       <Panel title="Runs">
         {error ? <Notice kind="error">The runs could not be refreshed: {error.message}</Notice> : null}
+        {canManage ? <Link href={`/studies/${studyId}/assignments`} className="mb-3 inline-block text-sm text-lumen hover:underline" data-testid="study-assignments-link">Assignments and due dates</Link> : null}
         <RunsTable studyId={studyId} runs={data.runs} canManage={canManage} />
       </Panel>
     </div>

@@ -1,0 +1,35 @@
+import type { Metadata } from 'next';
+import Link from 'next/link';
+import { notFound, redirect } from 'next/navigation';
+import { requirePageUser } from '@/lib/auth/session';
+import { listStudyAssignments } from '@/lib/db/queries/assignments';
+import { findStudyAccess, leadsStudy } from '@/lib/db/queries/study-access';
+import { AssignmentsTable } from '@/components/assignments/assignments-table';
+import { Panel } from '@/components/ui/panel';
+
+export const metadata: Metadata = { title: 'Assignments' };
+
+export default async function AssignmentsPage({ params }: { params: Promise<{ id: string }> }) {
+  const user = await requirePageUser('runs.manage');
+  const id = Number((await params).id);
+  if (!Number.isInteger(id) || id <= 0) notFound();
+  const access = await findStudyAccess({ user, studyId: id });
+  if (!access) notFound();
+  if (!leadsStudy(access)) redirect(`/forbidden?need=${encodeURIComponent('runs.manage')}`);
+  const initial = await listStudyAssignments({ user, studyId: id });
+  return (
+    <div className="flex flex-col gap-6">
+      <div>
+        <p className="text-xs text-ink-faint"><Link href={`/studies/${id}`} className="hover:underline">{access.name}</Link></p>
+        <h1 className="text-xl font-semibold">Assignments</h1>
+        <p className="max-w-3xl text-sm text-ink-muted">
+          Raters are assigned automatically when a run is ready, balancing open work. Here you add, remove or hand over raters and set due dates.
+          Each rater gets one e-mail per batch listing the runs newly assigned to them; you get an e-mail when a run&apos;s votes are complete, and a daily summary of overdue work.
+        </p>
+      </div>
+      <Panel title="Runs and raters">
+        <AssignmentsTable studyId={id} initial={JSON.parse(JSON.stringify(initial))} />
+      </Panel>
+    </div>
+  );
+}
