@@ -21,7 +21,7 @@ export function FeaturePanel({ component, k }: { component: DeskComponent; k: nu
             <div key={key} className="group grid grid-cols-[1fr_auto] gap-x-3 px-3 py-1" title={hint.hint}>
               <dt className="truncate text-xs text-ink-muted">{hint.label}</dt>
               <dd className="text-right font-mono text-xs tabular-nums text-ink">{hint.format(value)}</dd>
-              <p className="col-span-2 hidden text-[11px] leading-snug text-ink-faint group-hover:block group-focus-within:block">{hint.hint}</p>
+              <p className="col-span-2 hidden text-[11px] leading-snug text-ink-muted group-hover:block group-focus-within:block">{hint.hint}</p>
             </div>
           );
         })}

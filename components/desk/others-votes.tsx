@@ -9,7 +9,7 @@ export function OthersVotes({ votes }: { votes: OtherVote[] }) {
         Other raters
       </h2>
       {votes.length === 0 ? (
-        <p className="text-xs text-ink-faint">No other rater has voted on this component yet.</p>
+        <p className="text-xs text-ink-muted">No other rater has voted on this component yet.</p>
       ) : (
         <ul className="space-y-1 text-xs">
           {votes.map((v) => (

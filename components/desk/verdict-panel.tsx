@@ -52,13 +52,13 @@ export const VerdictPanel = forwardRef<HTMLTextAreaElement, Props>(function Verd
               onClick={() => onChange(l === 'noise' ? { label: l } : { label: l, noiseKind: null })}
               className={`rounded border px-2 py-1.5 text-sm font-medium transition-colors disabled:opacity-50 ${on ? (ON[l] ?? 'bg-ink text-ground') : `${TONE[l] ?? 'border-line-strong text-ink'} hover:bg-ground-sunken`}`}
             >
-              {labelName(l)} {keys[l] ? <kbd className="ml-1 font-mono text-[10px] opacity-70">{keys[l].toUpperCase()}</kbd> : null}
+              {labelName(l)} {keys[l] ? <kbd className="ml-1 font-mono text-[10px]">{keys[l].toUpperCase()}</kbd> : null}
             </button>
           );
         })}
       </div>
       <div className="mt-3" role="group" aria-label="Noise kind">
-        <p className="mb-1 text-[11px] uppercase tracking-wider text-ink-faint">Noise kind</p>
+        <p className="mb-1 text-[11px] uppercase tracking-wider text-ink-muted">Noise kind</p>
         <div className="grid grid-cols-2 gap-1">
           {noiseKinds.map((k, i) => {
             const on = vote?.label === 'noise' && vote?.noiseKind === k;
@@ -72,7 +72,7 @@ export const VerdictPanel = forwardRef<HTMLTextAreaElement, Props>(function Verd
                 onClick={() => onChange({ label: 'noise', noiseKind: k })}
                 className={`flex items-center gap-1.5 rounded border px-2 py-1 text-left text-xs disabled:opacity-50 ${on ? 'border-verdict-noise bg-verdict-noise/15 text-ink' : 'border-line text-ink-muted hover:bg-ground-sunken'}`}
               >
-                <kbd className="font-mono text-[10px] text-ink-faint">{i + 1}</kbd>
+                <kbd className="font-mono text-[10px] text-ink-muted">{i + 1}</kbd>
                 <span className="truncate">{noiseKindName(k)}</span>
               </button>
             );
@@ -80,7 +80,7 @@ export const VerdictPanel = forwardRef<HTMLTextAreaElement, Props>(function Verd
         </div>
       </div>
       <div className="mt-3 flex items-center gap-2" role="group" aria-label="Confidence">
-        <p className="text-[11px] uppercase tracking-wider text-ink-faint">Confidence</p>
+        <p className="text-[11px] uppercase tracking-wider text-ink-muted">Confidence</p>
         {[1, 2, 3, 4, 5].map((c) => (
           <button
             key={c}
@@ -96,7 +96,7 @@ export const VerdictPanel = forwardRef<HTMLTextAreaElement, Props>(function Verd
           </button>
         ))}
       </div>
-      <label className="mt-3 block text-[11px] uppercase tracking-wider text-ink-faint" htmlFor="vote-note">
+      <label className="mt-3 block text-[11px] uppercase tracking-wider text-ink-muted" htmlFor="vote-note">
         Note <span className="normal-case tracking-normal">(E)</span>
       </label>
       <textarea

@@ -9,7 +9,7 @@ function RunRow({ item }: { item: QueueItem }) {
     <li className="flex items-center gap-4 py-2" data-testid="queue-item">
       <div className="min-w-0 flex-1">
         <p className="truncate font-mono text-sm">{bidsName(item)}</p>
-        <p className="text-xs text-ink-faint">{item.studyName}</p>
+        <p className="text-xs text-ink-muted">{item.studyName}</p>
       </div>
       <div className="w-40">
         <div className="h-1.5 rounded bg-ground-sunken" aria-hidden>

@@ -225,7 +225,7 @@ export function RateClient({
           <h1 className="truncate font-mono text-sm font-semibold" data-testid="desk-run-name">
             {run.name}
           </h1>
-          <p className="text-xs text-ink-faint">{run.studyName}</p>
+          <p className="text-xs text-ink-muted">{run.studyName}</p>
         </div>
         <p className="font-mono text-sm" data-testid="desk-position" aria-live="polite">
           Component <span className="text-ink">{component.idx}</span> of {ids.length}
@@ -269,7 +269,7 @@ export function RateClient({
             data-testid="submit-run"
             className={`rounded px-3 py-1 text-sm font-medium ${labelledCount === ids.length ? 'bg-lumen text-ground hover:bg-lumen-strong' : 'border border-line-strong text-ink-muted'}`}
           >
-            Submit run <kbd className="ml-1 font-mono text-[10px] opacity-70">Ctrl+Enter</kbd>
+            Submit run <kbd className="ml-1 font-mono text-[10px]">Ctrl+Enter</kbd>
           </button>
         )}
       </header>
@@ -356,17 +356,17 @@ export function RateClient({
           </div>
           <div className="grid gap-2 md:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]">
             <figure className="rounded border border-line bg-ground-raised px-2 pt-1">
-              <figcaption className="text-[11px] uppercase tracking-wider text-ink-faint">Time course · s</figcaption>
+              <figcaption className="text-[11px] uppercase tracking-wider text-ink-muted">Time course · s</figcaption>
               <TimecourseChart values={component.timecourse} trSeconds={run.trSeconds} droppedVolumes={run.droppedVolumes} />
               {run.framewiseDisplacement ? (
                 <>
-                  <p className="text-[11px] uppercase tracking-wider text-ink-faint">Framewise displacement · mm</p>
+                  <p className="text-[11px] uppercase tracking-wider text-ink-muted">Framewise displacement · mm</p>
                   <MotionChart fd={run.framewiseDisplacement} trSeconds={run.trSeconds} droppedVolumes={run.droppedVolumes} />
                 </>
               ) : null}
             </figure>
             <figure className="rounded border border-line bg-ground-raised px-2 pt-1">
-              <figcaption className="text-[11px] uppercase tracking-wider text-ink-faint">
+              <figcaption className="text-[11px] uppercase tracking-wider text-ink-muted">
                 Power spectrum · Hz (to {(1 / (2 * run.trSeconds)).toFixed(2)} Hz; line at 0.1 Hz)
               </figcaption>
               <SpectrumChart frequencies={component.frequencies} power={component.spectrum} trSeconds={run.trSeconds} />
