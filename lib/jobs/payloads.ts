@@ -3,6 +3,7 @@
  * without loading the worker's code). The worker validates again when it claims a job.
  */
 import { z } from 'zod';
+import { denoisePayloadSchema } from '@/lib/denoise/payload';
 
 /** Overrides of the study protocol for one decomposition (all optional). */
 export const decompositionOptionsSchema = z
@@ -35,6 +36,7 @@ export type DecomposePayload = z.infer<typeof decomposePayloadSchema>;
 /** kind → payload schema. A kind that is not listed here cannot be enqueued. */
 export const jobPayloadSchemas = {
   decompose: decomposePayloadSchema,
+  denoise: denoisePayloadSchema,
 } as const;
 
 export type JobKindName = keyof typeof jobPayloadSchemas;

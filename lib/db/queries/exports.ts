@@ -1,6 +1,7 @@
 import 'server-only';
-import { db, parseJson, toJson } from '@/lib/db/knex';
+import { db, parseJson } from '@/lib/db/knex';
 import { denoisePayloadSchema, type DenoisePayload, type DenoiseResult } from '@/lib/denoise/payload';
+import { enqueueJob } from '@/lib/jobs/queue';
 
 export type DenoiseJob = {
   jobId: number;
@@ -27,17 +28,7 @@ export async function enqueueDenoise({ payload, studyId, createdBy }: { payload:
     const active = await trx('jobs').where({ run_id: data.runId, kind: 'denoise' }).whereIn('status', ['queued', 'running']).select('id', 'payload');
     const same = active.find((j: { payload: unknown }) => JSON.stringify(parseJson(j.payload)) === JSON.stringify(data));
     if (same) return { jobId: Number(same.id), existing: true };
-    const [id] = await trx('jobs').insert({
-      kind: 'denoise',
-      payload: toJson(data),
-      status: 'queued',
-      priority: 0,
-      max_attempts: 3,
-      run_id: data.runId,
-      study_id: studyId,
-      created_by: createdBy,
-      run_after: trx.raw('NOW(3)'),
-    });
+    const id = await enqueueJob(trx, { kind: 'denoise', payload: data, runId: data.runId, studyId, createdBy });
     return { jobId: Number(id), existing: false };
   });
 }
