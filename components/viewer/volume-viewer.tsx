@@ -140,8 +140,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
   useEffect(() => {
     const nv = nvRef.current;
     if (!nv || !ready || nv.volumes.length < 2) return;
-    nv.setFrame4D(nv.volumes[1].id, props.frame);
-    nv.drawScene();
+    nv.setFrame4D(nv.volumes[1].id, props.frame); // re-blends the layers and draws the scene
     const frame = props.frame;
     latest.current.onDrawn?.(frame, 'issued');
     afterPaint(() => latest.current.onDrawn?.(frame, 'painted'));

@@ -51,6 +51,22 @@ test('a rater labels a whole run by keyboard, reloads, submits; the next rater s
   console.log(`viewer canvas: ${colours} distinct colours`);
   expect(colours, 'the viewer draws the mean image and the map').toBeGreaterThan(64);
 
+  // click the map: the crosshair moves and the voxel's mm coordinates and z are read out
+  const box = (await page.getByTestId('viewer-canvas').boundingBox())!;
+  await page.mouse.click(box.x + box.width * 0.2, box.y + box.height * 0.3);
+  await expect(page.getByTestId('crosshair-readout')).toHaveText(/^-?\d+, -?\d+, -?\d+ mm · z (-?\d+\.\d\d|—)$/);
+  // threshold and layout keys; the mosaic draws too
+  await desk.press(']');
+  await expect(page.getByTestId('threshold-value')).toHaveText('3.0');
+  await desk.press('[');
+  await expect(page.getByTestId('threshold-value')).toHaveText('2.5');
+  await desk.press('l');
+  await expect(page.getByTestId('layout-mosaic')).toHaveAttribute('aria-pressed', 'true');
+  await page.waitForTimeout(300);
+  expect(await distinctColours(page, '[data-testid="viewer-canvas"]'), 'the mosaic draws').toBeGreaterThan(64);
+  await desk.press('l');
+  await expect(page.getByTestId('layout-multiplanar')).toHaveAttribute('aria-pressed', 'true');
+
   // keyboard only: signal, noise of kind 1 (motion), uncertain … each followed by → to move on
   const plan = Array.from({ length: run.k }, (_, i) => (['s', '1', 'u'] as const)[i % 3]);
   const expected = plan.map((k) => (k === 's' ? 'signal' : k === '1' ? 'noise' : 'uncertain'));
