@@ -35,6 +35,7 @@ export function isoWeek(d: Date): string {
  * the study statistics with bootstrap CIs (lib/agreement), per run, by week of the last vote on a
  * component, and by the decided noise kind. Raters are keyed by their account id; names are added.
  */
+/** `resamples: 0` skips the bootstrap (no intervals), for quick per-run figures. */
 export function buildAgreementReport(input: RatingsInput, opts: { resamples?: number; seed?: number } = {}): AgreementReport {
   const byComponent = new Map<number, { runId: number; votes: Record<string, string>; last: Date }>();
   const raterNames = new Map<number, { name: string; votes: number }>();
@@ -68,7 +69,7 @@ export function buildAgreementReport(input: RatingsInput, opts: { resamples?: nu
     summary = studyAgreement({
       categories: input.categories,
       items,
-      bootstrap: { resamples: opts.resamples ?? 1000, seed: opts.seed ?? 1 },
+      bootstrap: opts.resamples === 0 ? false : { resamples: opts.resamples ?? 1000, seed: opts.seed ?? 1 },
     });
   } catch (err) {
     if (!(err instanceof AgreementError)) throw err;

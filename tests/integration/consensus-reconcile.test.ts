@@ -11,6 +11,7 @@ import { recomputeDecision } from '@/lib/consensus/recompute';
 import { listReconcileItems, recordLeadDecision } from '@/lib/db/queries/reconcile';
 import { loadStudyRatings } from '@/lib/db/queries/agreement';
 import { buildAgreementReport } from '@/lib/reports/agreement-report';
+import { listRunsForStudy } from '@/lib/db/queries/runs';
 import { createRun, createStudyWithRaters } from './helpers/factories';
 
 let studyId: number;
@@ -120,5 +121,15 @@ describe('agreement report from the database', () => {
     expect(report.decisions).toMatchObject({ total: 4, pending: 0, override: 1, reconciled: 1, majority: 2 });
     expect(report.summary?.overall.percentAgreement.value).toBeGreaterThan(0);
     expect(report.summary?.overall.percentAgreement.value).toBeLessThan(1);
+  });
+});
+
+describe('per-run agreement in the runs table', () => {
+  it('is shown to the lead and never to a rater (blinding)', async () => {
+    const [asLead] = await listRunsForStudy({ user: { id: leadId, role: 'lead' }, studyId });
+    expect(asLead.agreement).not.toBeNull();
+    const [asRater] = await listRunsForStudy({ user: { id: raters[0], role: 'rater' }, studyId });
+    expect(asRater.id).toBe(runId);
+    expect(asRater.agreement).toBeNull();
   });
 });

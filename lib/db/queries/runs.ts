@@ -2,6 +2,8 @@ import 'server-only';
 import type { Knex } from 'knex';
 import { db, parseJson } from '@/lib/db/knex';
 import type { UserRow } from './users';
+import { runAgreements } from './agreement';
+import { findStudyAccess } from './study-access';
 
 export type RunStatus = 'uploaded' | 'queued' | 'processing' | 'ready' | 'failed' | 'cancelled';
 export type JobStatus = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
@@ -147,6 +149,10 @@ export async function listRunsForStudy({ user, studyId, runId }: Scoped & { stud
     .orderBy([{ column: 'r.sub' }, { column: 'r.ses' }, { column: 'r.task' }, { column: 'r.run_label' }, { column: 'r.id' }]);
   if (runId !== undefined) query.andWhere('r.id', runId);
   const rows = await scopeRuns(query, user);
+  // per-run agreement only for those who see every run (never a rater: blinding)
+  const access = await findStudyAccess({ user, studyId });
+  const seesAll = !!access && (access.isAdmin || access.studyRole === 'lead' || access.studyRole === 'observer');
+  const agreement = seesAll ? await runAgreements({ studyId, runIds: rows.map((r: { id: number }) => Number(r.id)) }) : new Map<number, number | null>();
   return rows.map(
     (r: Record<string, unknown>): RunListItem => ({
       id: Number(r.id),
@@ -178,7 +184,7 @@ export async function listRunsForStudy({ user, studyId, runId }: Scoped & { stud
       components: r.components == null ? null : Number(r.components),
       assigned: Number(r.assigned),
       submitted: Number(r.submitted),
-      agreement: null,
+      agreement: agreement.get(Number(r.id)) ?? null,
     }),
   );
 }

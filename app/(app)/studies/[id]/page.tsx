@@ -33,7 +33,17 @@ export default async function StudyPage({ params }: { params: Promise<{ id: stri
           </p>
         </div>
         <nav className="flex gap-2 text-sm" aria-label="Study">
+          {access.canManage ? (
+            <Link href={`/studies/${id}/reconcile`} className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised" data-testid="study-reconcile-link">
+              Reconcile{progress.openDisagreements ? ` (${progress.openDisagreements})` : ''}
+            </Link>
+          ) : null}
           {access.seesAllRuns ? <Link href={`/studies/${id}/agreement`} className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised">Agreement</Link> : null}
+          {access.seesAllRuns ? (
+            <Link href={`/studies/${id}/releases`} className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised" data-testid="study-releases-link">
+              Releases
+            </Link>
+          ) : null}
           <Link href={`/studies/${id}/settings`} className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised" data-testid="study-settings-link">
             {access.canManage ? 'Protocol and members' : 'Protocol'}
           </Link>
