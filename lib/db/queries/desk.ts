@@ -62,9 +62,7 @@ export async function findAssignedRun(
   if (forUpdate) q.forUpdate();
   const row = await q;
   if (!row) throw notAssigned(runId);
-  const parameters = parseJson<Record<string, unknown>>(row.parameters, {}) ?? {};
-  const summary = parseJson<Record<string, unknown>>(row.summary, {}) ?? {};
-  const dropped = Number(parameters.drop ?? summary.droppedVolumes ?? 0) || 0;
+  const dropped = droppedVolumesOf(row);
   return {
     ...row,
     showVotesAfterSubmit: Boolean(row.showVotesAfterSubmit),
@@ -88,6 +86,30 @@ export async function isRunReleased({ runId }: { runId: number }, trx: Knex | Kn
 const round = (v: number) => (Number.isFinite(v) ? Number(v.toPrecision(6)) : 0);
 const toList = (blob: Buffer | null) => Array.from(blobToFloat32(blob) ?? [], round);
 
+/** Initial volumes the decomposition dropped (its parameters, else its summary). */
+export function droppedVolumesOf(d: { parameters: unknown; summary: unknown }): number {
+  const parameters = parseJson<Record<string, unknown>>(d.parameters, {}) ?? {};
+  const summary = parseJson<Record<string, unknown>>(d.summary, {}) ?? {};
+  return Number(parameters.drop ?? summary.droppedVolumes ?? 0) || 0;
+}
+
+/** The components of one decomposition as the desk and Reconcile draw them (1..k). */
+export async function componentsOfDecomposition({ decompositionId }: { decompositionId: number }): Promise<DeskComponent[]> {
+  const rows = await db('components')
+    .where({ decomposition_id: decompositionId })
+    .orderBy('idx')
+    .select('id', 'idx', 'variance_explained as varianceExplained', 'features', 'timecourse', 'spectrum', 'frequencies');
+  return rows.map((r) => ({
+    id: r.id,
+    idx: r.idx,
+    varianceExplained: Number(r.varianceExplained),
+    features: parseJson<Record<string, number | null>>(r.features, {}) ?? {},
+    timecourse: toList(r.timecourse),
+    spectrum: toList(r.spectrum),
+    frequencies: toList(r.frequencies),
+  }));
+}
+
 async function readFramewiseDisplacement(run: AssignedRun): Promise<number[] | null> {
   if (!run.motionKey) return null;
   try {
@@ -108,19 +130,7 @@ async function readFramewiseDisplacement(run: AssignedRun): Promise<number[] | n
  */
 export async function loadDeskComponents({ user, runId }: { user: Caller; runId: number }): Promise<ComponentsPayload> {
   const run = await findAssignedRun({ user, runId });
-  const rows = await db('components')
-    .where({ decomposition_id: run.decompositionId })
-    .orderBy('idx')
-    .select('id', 'idx', 'variance_explained as varianceExplained', 'features', 'timecourse', 'spectrum', 'frequencies');
-  const components: DeskComponent[] = rows.map((r) => ({
-    id: r.id,
-    idx: r.idx,
-    varianceExplained: Number(r.varianceExplained),
-    features: parseJson<Record<string, number | null>>(r.features, {}) ?? {},
-    timecourse: toList(r.timecourse),
-    spectrum: toList(r.spectrum),
-    frequencies: toList(r.frequencies),
-  }));
+  const components = await componentsOfDecomposition({ decompositionId: run.decompositionId });
   return {
     run: {
       runId: run.runId,

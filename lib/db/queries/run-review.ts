@@ -1,13 +1,12 @@
 import 'server-only';
-import { blobToFloat32, db, parseJson } from '@/lib/db/knex';
+import { db, parseJson } from '@/lib/db/knex';
+import { componentsOfDecomposition, droppedVolumesOf } from './desk';
 import { bidsName } from '@/lib/bids';
 import { AppError } from '@/lib/errors';
-import type { DeskComponent, DeskRun } from '@/lib/desk/types';
+import type { DeskRun } from '@/lib/desk/types';
 import type { UserRow } from './users';
 import { findStudyAccess, leadsStudy } from './study-access';
 
-const round = (v: number) => (Number.isFinite(v) ? Number(v.toPrecision(6)) : 0);
-const toList = (blob: Buffer | null) => Array.from(blobToFloat32(blob) ?? [], round);
 
 /**
  * A run's current decomposition as a study lead reviews it in Reconcile: the same shapes the
@@ -35,26 +34,14 @@ export async function loadRunForReview({ user, runId }: { user: Pick<UserRow, 'i
       's.noise_kinds as noiseKinds',
       'd.id as decompositionId',
       'd.parameters',
+      'd.summary',
       'd.components_key as componentsKey',
       'd.mean_key as meanKey',
       'd.mask_key as maskKey',
     );
   const access = run ? await findStudyAccess({ user, studyId: run.studyId }) : null;
   if (!run || !leadsStudy(access)) throw new AppError('not_found', `Run ${runId} is not in a study you lead.`);
-  const parameters = parseJson<Record<string, unknown>>(run.parameters, {}) ?? {};
-  const rows = await db('components')
-    .where({ decomposition_id: run.decompositionId })
-    .orderBy('idx')
-    .select('id', 'idx', 'variance_explained as varianceExplained', 'features', 'timecourse', 'spectrum', 'frequencies');
-  const components: DeskComponent[] = rows.map((r) => ({
-    id: r.id,
-    idx: r.idx,
-    varianceExplained: Number(r.varianceExplained),
-    features: parseJson<Record<string, number | null>>(r.features, {}) ?? {},
-    timecourse: toList(r.timecourse),
-    spectrum: toList(r.spectrum),
-    frequencies: toList(r.frequencies),
-  }));
+  const components = await componentsOfDecomposition({ decompositionId: run.decompositionId });
   const deskRun: DeskRun = {
     runId: run.runId,
     decompositionId: run.decompositionId,
@@ -62,7 +49,7 @@ export async function loadRunForReview({ user, runId }: { user: Pick<UserRow, 'i
     studyId: run.studyId,
     studyName: run.studyName,
     trSeconds: Number(run.trSeconds),
-    droppedVolumes: Number(parameters.drop ?? 0) || 0,
+    droppedVolumes: droppedVolumesOf(run),
     k: components.length,
     labelSet: parseJson<string[]>(run.labelSet, []) ?? [],
     noiseKinds: parseJson<string[]>(run.noiseKinds, []) ?? [],

@@ -54,7 +54,8 @@ export default async function AgreementPage({ params }: { params: Promise<{ id: 
 
       <Panel title="Decisions">
         <p className="text-sm" data-testid="decision-counts">
-          {report.decisions.total} components: {report.decisions.unanimous} unanimous, {report.decisions.majority} by majority,{' '}
+          {report.decisions.total === 0 ? 'No component has votes yet. ' : null}
+          {report.decisions.total} components with votes: {report.decisions.unanimous} unanimous, {report.decisions.majority} by majority,{' '}
           {report.decisions.reconciled + report.decisions.override} decided by a lead,{' '}
           <span className={report.decisions.pending ? 'text-verdict-uncertain' : ''}>{report.decisions.pending} waiting</span>
           {report.decisions.pending && leadsStudy(access) ? (
