@@ -17,7 +17,7 @@ function RaterCell({ run, cell, raters, onAsk, onDue, busy }: { run: AssignmentR
   const state = cell.submittedAt ? 'submitted' : cell.overdue ? 'overdue' : cell.labelled ? 'in progress' : 'not started';
   return (
     <li className="flex flex-wrap items-center gap-2 rounded border border-line px-2 py-1" data-testid={`assignment-${run.runId}-${cell.raterId}`}>
-      <span className="font-medium">{cell.raterName}</span>
+      <span className="font-medium" data-testid="assignment-rater">{cell.raterName}</span>
       <span className="text-xs tabular-nums text-ink-muted" data-testid="assignment-progress">{cell.labelled}/{run.total} labelled</span>
       <span className={`text-xs ${cell.submittedAt ? 'text-lumen-strong' : cell.overdue ? 'text-alarm' : 'text-ink-faint'}`} data-testid="assignment-state">{state}</span>
       {cell.notifiedAt ? null : <span className="text-xs text-ink-faint" title="The e-mail listing this run goes out with the next batch">e-mail pending</span>}
