@@ -29,14 +29,14 @@ export const SpectrumChart = memo(function SpectrumChart({
             dataKey="f"
             type="number"
             domain={[0, nyquist]}
-            ticks={[0, 0.1, nyquist / 2, nyquist].filter((t, i, a) => a.indexOf(t) === i).sort((a, b) => a - b)}
+            ticks={[0, nyquist / 2, nyquist]}
             tick={CHART.tick}
             stroke={CHART.axis}
             tickFormatter={(f: number) => f.toFixed(2)}
             unit=" Hz"
           />
           <YAxis tick={CHART.tick} stroke={CHART.axis} width={44} tickFormatter={(v: number) => (v >= 100 ? v.toExponential(0) : v.toFixed(1))} />
-          <ReferenceLine x={0.1} stroke={CHART.reference} strokeDasharray="3 3" />
+          <ReferenceLine x={0.1} stroke={CHART.reference} strokeDasharray="3 3" label={{ value: '0.1 Hz', position: 'insideTopRight', fill: CHART.reference, fontSize: 10 }} />
           <Line dataKey="p" stroke={CHART.trace} strokeWidth={1.25} dot={false} isAnimationActive={false} />
         </LineChart>
       </ResponsiveContainer>

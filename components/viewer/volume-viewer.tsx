@@ -57,8 +57,9 @@ export default function VolumeViewer(props: VolumeViewerProps) {
     let cancelled = false;
     const nv = new Niivue({
       backColor: [0.039, 0.047, 0.063, 1],
-      crosshairColor: [0.31, 0.72, 0.69, 0.9],
+      crosshairColor: [0.31, 0.72, 0.69, 0.75],
       crosshairWidth: 1,
+      crosshairWidthUnit: 'mm', // a thin line whatever the voxel size
       show3Dcrosshair: false,
       isColorbar: false,
       multiplanarShowRender: SHOW_RENDER.NEVER,

@@ -57,9 +57,9 @@ test('a rater labels a whole run by keyboard, reloads, submits; the next rater s
   await expect(page.getByTestId('crosshair-readout')).toHaveText(/^-?\d+, -?\d+, -?\d+ mm · z (-?\d+\.\d\d|—)$/);
   // threshold and layout keys; the mosaic draws too
   await desk.press(']');
-  await expect(page.getByTestId('threshold-value')).toHaveText('3.0');
-  await desk.press('[');
   await expect(page.getByTestId('threshold-value')).toHaveText('2.5');
+  await desk.press('[');
+  await expect(page.getByTestId('threshold-value')).toHaveText('2.0');
   await desk.press('l');
   await expect(page.getByTestId('layout-mosaic')).toHaveAttribute('aria-pressed', 'true');
   await page.waitForTimeout(300);

@@ -30,7 +30,7 @@ declare global {
 
 const PREFS = 'quorum.desk.prefs.v1';
 type Prefs = { threshold: number; layout: ViewerLayout; autoAdvance: boolean };
-const DEFAULT_PREFS: Prefs = { threshold: 2.5, layout: 'multiplanar', autoAdvance: false };
+const DEFAULT_PREFS: Prefs = { threshold: 2.0, layout: 'multiplanar', autoAdvance: false };
 
 function loadPrefs(): Prefs {
   try {
