@@ -3,6 +3,7 @@ import { header } from './header';
 import { agreement } from './agreement';
 import { decompose } from './decompose';
 import { denoise } from './denoise';
+import { importRun } from './import';
 export type CliCommand = {
   summary: string;
   /** Runs the command with its arguments; returns the process exit code. */
@@ -14,4 +15,5 @@ export const commands: Record<string, CliCommand> = {
   agreement,
   decompose,
   denoise,
+  import: importRun,
 };
