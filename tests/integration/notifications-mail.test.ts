@@ -100,11 +100,17 @@ async function runDue(kind: string): Promise<string[]> {
   }
 }
 
-/** Waits until `n` messages in all have arrived (the server writes each as it receives it). */
+/** Messages to this file's people (other test files' assignments in the same database may be mailed too). */
+async function mine(): Promise<StoredMail[]> {
+  const ours = new Set([...emails.values()].map((e) => e.toLowerCase()));
+  return (await listMail({ dir })).filter((m) => m.to.some((t) => ours.has(t.toLowerCase())));
+}
+
+/** Waits until `n` messages to this file's people have arrived (the server writes each as it receives it). */
 async function mailCount(n: number): Promise<StoredMail[]> {
   const deadline = Date.now() + 10_000;
   for (;;) {
-    const all = await listMail({ dir });
+    const all = await mine();
     if (all.length >= n || Date.now() > deadline) return all;
     await new Promise((r) => setTimeout(r, 100));
   }
@@ -140,11 +146,11 @@ describe('assignment e-mails', () => {
     // nothing new: a second job sends nothing
     await db('jobs').insert({ kind: NOTIFY_ASSIGNMENTS, payload: '{}', status: 'queued', max_attempts: 1 });
     expect(await runDue(NOTIFY_ASSIGNMENTS)).toEqual(['succeeded']);
-    expect(await listMail({ dir })).toHaveLength(3);
+    expect(await mine()).toHaveLength(3);
   });
 
   it('a later assignment makes a new batch that lists only the new run', async () => {
-    const before = (await listMail({ dir })).length;
+    const before = (await mine()).length;
     const run = await runBecomesReady();
     expect(await runDue(NOTIFY_ASSIGNMENTS)).toEqual(['succeeded']);
     const all = await mailCount(before + 2);
@@ -163,7 +169,7 @@ describe('the lead', () => {
     await runDue(NOTIFY_ASSIGNMENTS);
     const raters = (await db('assignments').where({ run_id: run.runId }).pluck('rater_id')).map(Number);
     await db('decisions').insert(run.componentIds.map((c, i) => ({ component_id: c, run_id: run.runId, method: i === 0 ? 'unanimous' : 'pending', label: i === 0 ? 'signal' : null })));
-    const before = (await listMail({ dir })).length;
+    const before = (await mine()).length;
 
     // one rater submitted: not complete yet
     await db('assignments').where({ run_id: run.runId, rater_id: raters[0] }).update({ submitted_at: db.fn.now(3) });
@@ -192,7 +198,7 @@ describe('the lead', () => {
   it('gets the daily overdue summary, and the job queues itself for the next day', async () => {
     const open = await db('assignments as a').join('runs as r', 'r.id', 'a.run_id').where('r.study_id', s.studyId).whereNull('a.submitted_at').first('a.id', 'a.rater_id', 'a.run_id');
     await db('assignments').where({ id: open.id }).update({ due_at: new Date(Date.now() - 86_400_000) });
-    const before = (await listMail({ dir })).length;
+    const before = (await mine()).length;
     expect(await runDue(NOTIFY_OVERDUE)).toEqual(['succeeded']);
     await mailCount(before + 1);
     const [summary] = await mailTo({ to: emails.get(s.leadId)!, dir });
