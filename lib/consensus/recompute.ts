@@ -6,7 +6,8 @@ import { decideByRule, type ConsensusRule } from './rules';
  * Recomputes the automatic decision of one component from its votes, inside the caller's
  * transaction (call it in the same transaction as the vote change). A lead's decision
  * (reconciled / override) is never replaced by this; everything else follows the study's rule.
- * Expected raters = the run's assignments (or the protocol's raters per run when none exist).
+ * Expected raters = the run's assignments (or the protocol's raters per run when none exist); only
+ * assigned raters' votes count.
  */
 export async function recomputeDecision(trx: Knex.Transaction | Knex, { componentId }: { componentId: number }): Promise<void> {
   const ctx = await trx('components as c')
@@ -21,7 +22,14 @@ export async function recomputeDecision(trx: Knex.Transaction | Knex, { componen
 
   const [{ assigned }] = await trx('assignments').where({ run_id: ctx.runId }).count({ assigned: '*' });
   const expected = Number(assigned) || Number(ctx.ratersPerRun);
-  const votes = await trx('votes').where({ component_id: componentId }).select('label', 'noise_kind as noiseKind');
+  // only the votes of raters assigned to the run count (a rater removed from the run keeps their
+  // votes in the database, but they no longer decide)
+  const votes = await trx('votes as v')
+    .join('assignments as a', function () {
+      this.on('a.run_id', 'v.run_id').andOn('a.rater_id', 'v.rater_id');
+    })
+    .where('v.component_id', componentId)
+    .select('v.label', 'v.noise_kind as noiseKind');
   const decision = decideByRule(ctx.rule as ConsensusRule, votes, expected, parseJson<string[]>(ctx.noiseKinds, []) ?? []);
   const row = {
     label: decision.label,

@@ -4,6 +4,11 @@
  */
 import { z } from 'zod';
 import { denoisePayloadSchema } from '@/lib/denoise/payload';
+import {
+  notifyAssignmentsPayloadSchema,
+  notifyOverduePayloadSchema,
+  notifyVotesCompletePayloadSchema,
+} from '@/lib/notifications/payloads';
 
 /** Overrides of the study protocol for one decomposition (all optional). */
 export const decompositionOptionsSchema = z
@@ -37,6 +42,9 @@ export type DecomposePayload = z.infer<typeof decomposePayloadSchema>;
 export const jobPayloadSchemas = {
   decompose: decomposePayloadSchema,
   denoise: denoisePayloadSchema,
+  'notify-assignments': notifyAssignmentsPayloadSchema,
+  'notify-votes-complete': notifyVotesCompletePayloadSchema,
+  'notify-overdue': notifyOverduePayloadSchema,
 } as const;
 
 export type JobKindName = keyof typeof jobPayloadSchemas;

@@ -1,8 +1,6 @@
 /**
- * Payloads of the notification job kinds (zod only). They are written to the jobs table by
- * ./queue.ts, not through lib/jobs' enqueueJob, because the shared payload registry
- * (lib/jobs/payloads.ts) does not list these kinds; the worker validates them with the same
- * schemas when it claims a job.
+ * Payloads of the notification job kinds (zod only), registered in lib/jobs/payloads.ts: queued
+ * through enqueueJob by ./queue.ts and validated again by the worker when it claims a job.
  */
 import { z } from 'zod';
 

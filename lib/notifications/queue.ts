@@ -4,7 +4,7 @@
  * kind is already queued, so many assignments made within the batch window share one job.
  */
 import type { Knex } from 'knex';
-import { toJson } from '@/lib/db/knex';
+import { enqueueJob } from '@/lib/jobs/queue';
 import { notificationsEnabled, notifyBatchMs, overdueHourUtc, msUntilNextHourUtc } from './config';
 import { NOTIFY_ASSIGNMENTS, NOTIFY_OVERDUE, NOTIFY_VOTES_COMPLETE, type NotifyKind } from './payloads';
 
@@ -21,7 +21,6 @@ export async function ensureNotifyJob(
   { kind, delayMs, payload = {}, studyId = null, sooner = false }: { kind: NotifyKind; delayMs: number; payload?: Record<string, unknown>; studyId?: number | null; sooner?: boolean },
 ): Promise<{ jobId: number; existing: boolean } | null> {
   if (!notificationsEnabled()) return null;
-  const due = db.raw('DATE_ADD(NOW(3), INTERVAL ? MICROSECOND)', [Math.max(0, delayMs) * 1000]);
   const queued = await db('jobs').where({ kind, status: 'queued' }).orderBy('id').first('id');
   if (queued) {
     if (sooner) {
@@ -31,15 +30,7 @@ export async function ensureNotifyJob(
     }
     return { jobId: Number(queued.id), existing: true };
   }
-  const [id] = await db('jobs').insert({
-    kind,
-    payload: toJson(payload),
-    status: 'queued',
-    priority: PRIORITY,
-    max_attempts: 3,
-    study_id: studyId,
-    run_after: due,
-  });
+  const id = await enqueueJob(db, { kind, payload: payload as never, priority: PRIORITY, studyId, delayMs: Math.max(0, delayMs) }); // payload checked by the kind's schema
   return { jobId: Number(id), existing: false };
 }
 

@@ -7,7 +7,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { randomBytes } from 'node:crypto';
 import { db, closeDb, toJson } from '@/lib/db/knex';
-import { recomputeDecision } from '@/lib/consensus/recompute';
+import { recomputeDecision, recomputeRunDecisions } from '@/lib/consensus/recompute';
 import { listReconcileItems, recordLeadDecision } from '@/lib/db/queries/reconcile';
 import { loadStudyRatings } from '@/lib/db/queries/agreement';
 import { buildAgreementReport } from '@/lib/reports/agreement-report';
@@ -131,5 +131,15 @@ describe('per-run agreement in the runs table', () => {
     const [asRater] = await listRunsForStudy({ user: { id: raters[0], role: 'rater' }, studyId });
     expect(asRater.id).toBe(runId);
     expect(asRater.agreement).toBeNull();
+  });
+});
+
+describe('a rater removed from the run', () => {
+  it('keeps their votes in the database, but they no longer decide', async () => {
+    // component 1: noise, noise, signal → majority noise; without the third rater: unanimous noise
+    await db('assignments').where({ run_id: runId, rater_id: raters[2] }).delete();
+    await db.transaction((trx) => recomputeRunDecisions(trx, { runId }));
+    expect(await decisionOf(components[0])).toMatchObject({ method: 'unanimous', label: 'noise' });
+    expect(await db('votes').where({ rater_id: raters[2], run_id: runId }).count({ n: '*' }).first()).toMatchObject({ n: 4 });
   });
 });

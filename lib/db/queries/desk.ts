@@ -7,6 +7,7 @@ import { bidsName } from '@/lib/bids';
 import { pathFor } from '@/lib/storage';
 import { dropInitialVolumes, framewiseDisplacement, parseMotionFile } from '@/lib/decomposition/motion';
 import { recordAudit } from './audit';
+import { queueVotesCompleteCheck } from '@/lib/notifications/queue';
 import type { ComponentsPayload, DeskComponent } from '@/lib/desk/types';
 
 type Caller = { id: number };
@@ -197,6 +198,7 @@ export async function submitRun({ user, runId, ip }: { user: Caller; runId: numb
     }
     const now = new Date();
     await trx('assignments').where({ id: run.assignmentId }).update({ submitted_at: now });
+    await queueVotesCompleteCheck(trx); // the lead hears promptly when the last rater submits
     await recordAudit(
       { actorId: user.id, action: 'run.submit', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { components: run.k }, ip },
       trx,

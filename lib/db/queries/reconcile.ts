@@ -53,6 +53,9 @@ export async function listReconcileItems({ studyId, runId, noiseKind, include }:
   if (!rows.length) return [];
   const votes = await db('votes as v')
     .join('users as u', 'u.id', 'v.rater_id')
+    .join('assignments as a', function () {
+      this.on('a.run_id', 'v.run_id').andOn('a.rater_id', 'v.rater_id');
+    })
     .whereIn('v.component_id', rows.map((r) => r.componentId))
     .select('v.component_id as componentId', 'v.rater_id as raterId', 'u.name as raterName', 'v.label', 'v.noise_kind as noiseKind', 'v.confidence', 'v.note')
     .orderBy('u.name');

@@ -1,22 +1,21 @@
 /**
  * Test helper: creates a run that is ready for rating, the way the worker's `decompose` job does —
- * a synthetic phantom run is decomposed with lib/decomposition's decomposeRun, its component z-maps
- * (4D float32 gz), mean image and mask are written under the storage root, and rows go into runs,
- * decompositions, components (features + float32 blobs) and assignments (one per rater).
+ * a synthetic phantom run is decomposed with lib/decomposition's decomposeRun and stored with the
+ * worker's own code (lib/runs/ingest-decomposition: files, decomposition and component rows), then
+ * assigned to the given raters (instead of the automatic assignment).
  * Used by the integration tests (imported) and the browser tests (through create-ready-run.ts).
  * It writes with its own knex instance so it runs outside Next.js.
  */
 import { mkdir, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { Knex } from 'knex';
-import { float32ToBlob, toJson } from '@/lib/db/knex';
+import { toJson } from '@/lib/db/knex';
 import { decomposeRun } from '@/lib/decomposition/pipeline';
-import { powerSpectrum } from '@/lib/decomposition/spectrum';
-import { computeComponentFeatures } from '@/lib/decomposition/features';
+import { componentRows, decompositionSummary, storeDecomposition, writeDecompositionFiles } from '@/lib/runs/ingest-decomposition';
 import { dropInitialVolumes, type MotionParams } from '@/lib/decomposition/motion';
 import { generatePhantom, phantomToNiftiInput, type PhantomSize } from '@/lib/phantom';
 import { decodeNifti, encodeNifti1 } from '@/lib/nifti';
-import { childKey, newKey, pathFor } from '@/lib/storage';
+import { newKey, pathFor } from '@/lib/storage';
 
 export type ReadyRunOptions = {
   studyId: number;
@@ -63,20 +62,9 @@ export async function createReadyRun(db: Knex, opts: ReadyRunOptions): Promise<R
     for (let t = 0; t < nt; t++) lines.push(cols.map((c) => c[t].toFixed(7)).join('\t'));
     await writeKey(motionKey, new TextEncoder().encode(lines.join('\n') + '\n'));
   }
-  const dirKey = newKey('decompositions');
-  const nVox = nx * ny * nz;
-  const maps4d = new Float32Array(nVox * result.k);
-  for (let c = 0; c < result.k; c++) {
-    for (let j = 0; j < result.maskIndices.length; j++) maps4d[c * nVox + result.maskIndices[j]] = result.maps[c * result.maskIndices.length + j];
-  }
-  const common = { pixdim: [...p.voxelSize], affine: p.affine.map((r) => [...r]), xyztUnits: 2 };
-  const componentsKey = childKey(dirKey, 'components.nii.gz');
-  const meanKey = childKey(dirKey, 'mean.nii.gz');
-  const maskKey = childKey(dirKey, 'mask.nii.gz');
-  const { gzipSync } = await import('node:zlib');
-  await writeKey(componentsKey, gzipSync(encodeNifti1({ ...common, dims: [nx, ny, nz, result.k], pixdim: [...p.voxelSize, 1], datatype: 'float32', data: maps4d, description: 'component z-maps' })));
-  await writeKey(meanKey, gzipSync(encodeNifti1({ ...common, dims: [nx, ny, nz], datatype: 'float32', data: result.meanImage, description: 'mean image' })));
-  await writeKey(maskKey, gzipSync(encodeNifti1({ ...common, dims: [nx, ny, nz], datatype: 'uint8', data: result.mask, description: 'mask' })));
+  // the decomposition's files and rows exactly as the worker's decompose job writes them
+  const files = await writeDecompositionFiles(result, image.header);
+  const rows = componentRows(result, motion);
 
   return db.transaction(async (trx) => {
     const [runId] = await trx('runs').insert({
@@ -99,35 +87,14 @@ export async function createReadyRun(db: Knex, opts: ReadyRunOptions): Promise<R
       status: 'ready',
       created_by: opts.createdBy,
     });
-    const [decompositionId] = await trx('decompositions').insert({
-      run_id: runId,
-      parameters: toJson({ drop, detrend: false, varianceNorm: true, dimMethod: result.dimMethod, seed: result.seed, contrast: result.contrast }),
-      summary: toJson({ k: result.k, converged: result.converged, iterations: result.iterations, droppedVolumes: drop }),
-      components_key: componentsKey,
-      mean_key: meanKey,
-      mask_key: maskKey,
-      k: result.k,
-      is_current: true,
+    const decompositionId = await storeDecomposition(trx, {
+      runId,
+      parameters: { engine: 'quorum-decomposition', dropVolumes: drop, varianceNorm: true, dimMethodUsed: result.dimMethod, seedUsed: result.seed, contrast: result.contrast },
+      summary: decompositionSummary(result),
+      files,
+      components: rows,
     });
-    const T = result.timepoints;
-    const componentIds: number[] = [];
-    for (let c = 0; c < result.k; c++) {
-      const tc = new Float64Array(T);
-      for (let t = 0; t < T; t++) tc[t] = result.timecourses[t * result.k + c];
-      const spectrum = powerSpectrum(tc, result.trSeconds);
-      const map = result.maps.subarray(c * result.maskIndices.length, (c + 1) * result.maskIndices.length);
-      const features = computeComponentFeatures({ map, maskIndices: result.maskIndices, dims: result.dims, timecourse: tc, trSeconds: result.trSeconds, motion, spectrum });
-      const [id] = await trx('components').insert({
-        decomposition_id: decompositionId,
-        idx: c + 1,
-        variance_explained: result.explainedVariance[c],
-        features: toJson(features),
-        timecourse: float32ToBlob(Float32Array.from(tc)),
-        spectrum: float32ToBlob(Float32Array.from(spectrum.power)),
-        frequencies: float32ToBlob(Float32Array.from(spectrum.frequencies)),
-      });
-      componentIds.push(id);
-    }
+    const componentIds: number[] = await trx('components').where({ decomposition_id: decompositionId }).orderBy('idx').pluck('id');
     for (const raterId of opts.raterIds) {
       await trx('assignments').insert({ run_id: runId, rater_id: raterId, assigned_by: opts.createdBy });
     }
