@@ -2,7 +2,7 @@
 
 import { Bar, BarChart, CartesianGrid, Line, LineChart, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
 
-const AXIS = { stroke: '#6b7583', fontSize: 11 };
+const AXIS = { stroke: '#6b7583', fill: '#9aa4b2', fontSize: 11 };
 const GRID = '#262d37';
 const ACCENT = '#4fb8b0';
 const tooltipStyle = { background: '#151a21', border: '1px solid #36404d', color: '#e4e8ee', fontSize: 12 };

@@ -98,3 +98,30 @@ export function subscribeOutbox(listener: () => void): () => void {
     window.removeEventListener('storage', onStorage);
   };
 }
+
+const PREFIX = 'quorum.desk.outbox.';
+
+/** Vote changes of any run still waiting in this browser (for the sign-out warning). */
+export function pendingChangesInBrowser(): number {
+  const s = storage();
+  if (!s) return 0;
+  let n = 0;
+  for (let i = 0; i < s.length; i++) {
+    const key = s.key(i);
+    if (key?.startsWith(PREFIX)) n += Object.keys(readOutbox(key)).length;
+  }
+  return n;
+}
+
+/** Forgets every outbox in this browser (at sign-out: the next person must not inherit them). */
+export function clearOutboxes(): void {
+  const s = storage();
+  if (!s) return;
+  const keys: string[] = [];
+  for (let i = 0; i < s.length; i++) {
+    const key = s.key(i);
+    if (key?.startsWith(PREFIX)) keys.push(key);
+  }
+  for (const key of keys) s.removeItem(key);
+  for (const listener of listeners) listener();
+}
