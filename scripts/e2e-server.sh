@@ -8,6 +8,9 @@ export QUORUM_DB_NAME="${QUORUM_DB_NAME:-quorum_e2e}"
 export NEXTAUTH_URL="http://localhost:$PORT"
 export NEXTAUTH_SECRET="${NEXTAUTH_SECRET:-e2e-only-secret-$(date +%s)}"
 export QUORUM_UPLOADS_DIR="${QUORUM_UPLOADS_DIR:-$PWD/.data/e2e-uploads}"
+# the browser tests play a deployment behind the facility's own proxy (per-address throttles are
+# exercised through X-Forwarded-For) and batch notification e-mails over 2 s instead of a minute
+export QUORUM_TRUST_PROXY="${QUORUM_TRUST_PROXY:-1}" QUORUM_NOTIFY_BATCH_MS="${QUORUM_NOTIFY_BATCH_MS:-2000}"
 
 bash scripts/db.sh start >/dev/null
 node --import tsx scripts/reset-database.ts "$QUORUM_DB_NAME"
