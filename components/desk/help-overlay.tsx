@@ -1,7 +1,7 @@
 'use client';
 import { useEffect, useRef } from 'react';
 import { helpRows } from '@/lib/desk/keys';
-import { labelName, noiseKindName } from '@/lib/desk/labels';
+import { labelName, noiseKindName } from '@/lib/studies/labels';
 
 /** The keyboard help (?), a modal dialog generated from the desk's key map. */
 export function HelpOverlay({ labelSet, noiseKinds, onClose }: { labelSet: string[]; noiseKinds: string[]; onClose: () => void }) {

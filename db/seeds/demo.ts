@@ -8,6 +8,7 @@
  */
 import type { Knex } from 'knex';
 import { hashPassword } from '@/lib/auth/password';
+import { LABEL_KEYS, NOISE_KIND_KEYS } from '@/lib/studies/labels';
 
 export const DEMO_PASSWORD = 'quorum-demo';
 export const DEMO_STUDY_SLUG = 'evening-light-sleep-rest';
@@ -26,19 +27,9 @@ export const DEMO_USERS: ReadonlyArray<{ email: string; name: string; role: Role
   { email: 'observer@fernhollow.example', name: 'Rafael Oyelaran', role: 'observer', studyRole: 'observer' },
 ];
 
-/** Keys stored in studies.noise_kinds; the UI maps them to labels. */
-export const DEMO_NOISE_KINDS = [
-  'motion',
-  'pulsation',
-  'vascular',
-  'csf',
-  'white-matter',
-  'susceptibility',
-  'scanner',
-  'other',
-] as const;
-
-export const DEMO_LABEL_SET = ['signal', 'noise', 'uncertain'] as const;
+/** Keys stored in studies.noise_kinds and label_set (lib/studies/labels.ts names them). */
+export const DEMO_NOISE_KINDS = NOISE_KIND_KEYS;
+export const DEMO_LABEL_SET = LABEL_KEYS;
 
 export interface DemoSeedResult {
   /** user id by e-mail */

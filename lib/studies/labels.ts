@@ -22,15 +22,20 @@ export const NOISE_KIND_KEYS = [
 export type NoiseKindKey = (typeof NOISE_KIND_KEYS)[number];
 
 export const NOISE_KIND_NAMES: Record<NoiseKindKey, string> = {
-  motion: 'Head motion',
+  motion: 'Motion',
   pulsation: 'Physiological pulsation',
-  vascular: 'Vascular (draining veins)',
-  csf: 'CSF flow',
+  vascular: 'Vascular',
+  csf: 'CSF',
   'white-matter': 'White matter',
   susceptibility: 'Susceptibility',
   scanner: 'Scanner artefact',
   other: 'Other',
 };
+
+/** Display name of a label key (a study may store keys of its own: shown as they are). */
+export const labelName = (key: string) => (LABEL_NAMES as Record<string, string>)[key] ?? key;
+/** Display name of a noise-kind key. */
+export const noiseKindName = (key: string) => (NOISE_KIND_NAMES as Record<string, string>)[key] ?? key;
 
 export const CONSENSUS_RULES = ['unanimous', 'majority', 'lead'] as const;
 export type ConsensusRule = (typeof CONSENSUS_RULES)[number];

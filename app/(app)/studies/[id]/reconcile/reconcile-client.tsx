@@ -4,7 +4,7 @@ import { useEffect, useMemo, useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { postJson } from '@/lib/api/client';
 import { bidsName } from '@/lib/bids';
-import { labelName, noiseKindName } from '@/lib/desk/labels';
+import { labelName, noiseKindName } from '@/lib/studies/labels';
 import type { ReconcileItem } from '@/lib/db/queries/reconcile';
 import { VolumeViewer } from '@/components/viewer';
 import { TimecourseChart } from '@/components/charts/timecourse-chart';
