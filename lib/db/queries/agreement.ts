@@ -17,7 +17,8 @@ export type DecisionRecord = { componentId: number; runId: number; label: string
 /**
  * The votes of a study that count for agreement: votes on the current decomposition of each run,
  * from raters who have submitted that run (work in progress does not move the numbers), and the
- * decisions of those components. Optionally limited to some runs (a run release).
+ * decisions of those components. Calibration runs (certifying new raters) do not count.
+ * Optionally limited to some runs (a run release).
  */
 export async function loadStudyRatings({ studyId, runIds }: { studyId: number; runIds?: number[] }) {
   const study = await db('studies').where({ id: studyId }).first('label_set as labelSet', 'noise_kinds as noiseKinds', 'name');
@@ -31,7 +32,7 @@ export async function loadStudyRatings({ studyId, runIds }: { studyId: number; r
         this.on('a.run_id', 'r.id').andOn('a.rater_id', 'v.rater_id');
       })
       .join('users as u', 'u.id', 'v.rater_id')
-      .where({ 'r.study_id': studyId, 'd.is_current': true })
+      .where({ 'r.study_id': studyId, 'd.is_current': true, 'r.is_calibration': false })
       .whereNotNull('a.submitted_at'),
   ).select(
     'v.component_id as componentId',
@@ -47,7 +48,7 @@ export async function loadStudyRatings({ studyId, runIds }: { studyId: number; r
       .join('components as c', 'c.id', 'x.component_id')
       .join('decompositions as d', 'd.id', 'c.decomposition_id')
       .join('runs as r', 'r.id', 'd.run_id')
-      .where({ 'r.study_id': studyId, 'd.is_current': true }),
+      .where({ 'r.study_id': studyId, 'd.is_current': true, 'r.is_calibration': false }),
   ).select('x.component_id as componentId', 'r.id as runId', 'x.label', 'x.noise_kind as noiseKind', 'x.method');
   const runs = await scope(db('runs as r').where('r.study_id', studyId)).select(
     'r.id',
