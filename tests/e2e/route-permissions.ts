@@ -30,6 +30,13 @@ export const ROUTES: RouteCase[] = [
   { file: 'studies/[id]/agreement/route.ts', method: 'GET', url: '/api/studies/1/agreement', allowed: ['admin', 'lead', 'observer'] },
   { file: 'studies/[id]/reconcile/route.ts', method: 'GET', url: '/api/studies/1/reconcile', allowed: ['admin', 'lead'] },
   { file: 'studies/[id]/decisions/route.ts', method: 'POST', url: '/api/studies/1/decisions', allowed: ['admin', 'lead'] },
+  // calibration set: leads of the study (and admins) mark runs, set references, assign and certify; a rater reads their own score
+  { file: 'studies/[id]/calibration/route.ts', method: 'GET', url: '/api/studies/1/calibration', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/calibration/runs/route.ts', method: 'POST', url: '/api/studies/999999/calibration/runs', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/calibration/runs/[runId]/references/route.ts', method: 'POST', url: '/api/studies/999999/calibration/runs/999999/references', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/calibration/runs/[runId]/raters/route.ts', method: 'POST', url: '/api/studies/999999/calibration/runs/999999/raters', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/calibration/certifications/route.ts', method: 'POST', url: '/api/studies/999999/calibration/certifications', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/calibration/me/route.ts', method: 'GET', url: '/api/studies/1/calibration/me', allowed: ['admin', 'rater'] },
   { file: 'reconcile/runs/[runId]/components/route.ts', method: 'GET', url: '/api/reconcile/runs/999999/components', allowed: ['admin', 'lead'] },
   { file: 'reconcile/runs/[runId]/files/[file]/route.ts', method: 'GET', url: '/api/reconcile/runs/999999/files/mean.nii.gz', allowed: ['admin', 'lead'] },
   // studies, members, runs and uploads (mutations use study/run 999999 so the walk changes nothing)

@@ -1,0 +1,36 @@
+/**
+ * Zod schemas of the calibration set: route addresses and the lead's actions (mark a run, set or
+ * adopt reference labels, assign a rater, certify), shared by the calibration page and the route
+ * handlers under app/api/studies/:id/calibration.
+ */
+import { z } from 'zod';
+
+const id = (what: string) => z.coerce.number({ message: `Choose ${what}.` }).int({ message: `Choose ${what}.` }).positive({ message: `Choose ${what}.` });
+
+/** /api/studies/:id/calibration… */
+export const studyParamsSchema = z.object({ id: id('a study') });
+/** /api/studies/:id/calibration/runs/:runId/… */
+export const calibrationRunParamsSchema = studyParamsSchema.extend({ runId: id('a run') });
+
+/** POST /api/studies/:id/calibration/runs — mark a ready run of the study as a calibration run. */
+export const markRunSchema = z.object({ runId: id('a run') }).strict();
+
+/** POST …/runs/:runId/references — adopt the run's decisions as reference, or set one component's reference label. */
+export const adoptReferencesSchema = z.object({ adopt: z.literal(true) }).strict();
+export const setReferenceSchema = z
+  .object({
+    componentId: id('a component'),
+    label: z.string().trim().min(1, { message: 'Choose a label.' }).max(32),
+    noiseKind: z.string().trim().max(32).nullable().optional().transform((v) => v || null),
+  })
+  .strict();
+export const referenceSchema = z.union([adoptReferencesSchema, setReferenceSchema]);
+
+/** POST …/runs/:runId/raters — give a rater an assignment on the calibration run (rated in the normal desk). */
+export const assignCalibrationSchema = z.object({ raterId: id('a rater') }).strict();
+
+/** POST /api/studies/:id/calibration/certifications — the lead's verdict on a rater (scores stored with it). */
+export const certifySchema = z.object({ userId: id('a rater'), passed: z.boolean({ message: 'Say whether the rater passed.' }) }).strict();
+
+export type ReferenceInput = z.input<typeof referenceSchema>;
+export type CertifyInput = z.input<typeof certifySchema>;
