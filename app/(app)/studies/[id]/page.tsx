@@ -38,6 +38,11 @@ export default async function StudyPage({ params }: { params: Promise<{ id: stri
               Reconcile{progress.openDisagreements ? ` (${progress.openDisagreements})` : ''}
             </Link>
           ) : null}
+          {access.canManage ? (
+            <Link href={`/studies/${id}/calibration`} className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised" data-testid="study-calibration-link">
+              Calibration
+            </Link>
+          ) : null}
           {access.seesAllRuns ? <Link href={`/studies/${id}/agreement`} className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised">Agreement</Link> : null}
           {access.seesAllRuns ? (
             <Link href={`/studies/${id}/releases`} className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised" data-testid="study-releases-link">

@@ -1,0 +1,59 @@
+'use client';
+
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import type { StatResult } from '@/lib/agreement';
+import { getJson, postJson } from '@/lib/api/client';
+
+/** What GET /api/studies/:id/calibration returns (dates as ISO strings, as JSON carries them). */
+export type CalibrationScoreView = {
+  n: number;
+  percentAgreement: StatResult;
+  cohenKappa: StatResult;
+  gwetAC1: StatResult;
+  noise: { sensitivity: StatResult; specificity: StatResult };
+};
+export type CalibrationAssignmentView = { raterId: number; raterName: string; labelled: number; submittedAt: string | null };
+export type CalibrationRunView = { runId: number; runName: string; status: string; total: number; referenced: number; pending: number; assignments: CalibrationAssignmentView[] };
+export type CalibrationRaterView = {
+  id: number;
+  name: string;
+  active: boolean;
+  submittedRuns: number;
+  score: CalibrationScoreView;
+  certification: { passed: boolean; certifiedAt: string | null } | null;
+};
+export type CalibrationView = {
+  studyName: string;
+  runs: CalibrationRunView[];
+  candidates: Array<{ runId: number; runName: string }>;
+  raters: CalibrationRaterView[];
+};
+
+export const calibrationKey = (studyId: number) => ['study-calibration', studyId] as const;
+
+export function useCalibration(studyId: number, initialData: CalibrationView) {
+  return useQuery({
+    queryKey: calibrationKey(studyId),
+    initialData,
+    staleTime: 5_000,
+    refetchInterval: 30_000,
+    queryFn: async () => {
+      const r = await getJson<CalibrationView>(`/api/studies/${studyId}/calibration`);
+      if (!r.ok) throw new Error(r.message);
+      return r.data;
+    },
+  });
+}
+
+/** One POST under /api/studies/:id/calibration that refreshes the page's data when done; throws with the server's message. */
+export function useCalibrationAction(studyId: number) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: async ({ path, body }: { path: string; body: unknown }) => {
+      const r = await postJson(`/api/studies/${studyId}/calibration${path}`, body);
+      if (!r.ok) throw new Error(r.message);
+      return r.data;
+    },
+    onSettled: () => qc.invalidateQueries({ queryKey: calibrationKey(studyId) }),
+  });
+}
