@@ -26,7 +26,7 @@ export async function listReconcileItems({ studyId, runId, noiseKind, include }:
     .join('decompositions as d', 'd.id', 'c.decomposition_id')
     .join('runs as r', 'r.id', 'd.run_id')
     .leftJoin('users as u', 'u.id', 'x.decided_by')
-    .where({ 'r.study_id': studyId, 'd.is_current': true })
+    .where({ 'r.study_id': studyId, 'd.is_current': true, 'r.is_calibration': false }) // calibration runs certify raters; their references are set apart
     // only runs whose assigned raters have all submitted
     .whereNotExists(db('assignments as a').whereRaw('a.run_id = r.id').whereNull('a.submitted_at'))
     .select(
