@@ -1,7 +1,7 @@
 // Per-component outputs of a decomposition: power spectra, rater features, the JSON summary and
 // TSV tables (timecourses, spectra, features).
 import { computeComponentFeatures, type ComponentFeatures } from './features';
-import { dropInitialVolumes, type MotionParams } from './motion';
+import type { MotionParams } from './motion';
 import type { DecompositionResult } from './pipeline';
 import { powerSpectrum } from './spectrum';
 
@@ -25,14 +25,15 @@ export function componentSpectra(r: DecompositionResult): { frequencies: Float64
 }
 
 /**
- * Rater features of every component (features.ts). motion: the run's table for all nt volumes;
- * the dropped initial volumes are removed here so it lines up with the time courses.
+ * Rater features of every component (features.ts). motion: the run's table for the kept volumes
+ * (dropped initial volumes already removed, see dropInitialVolumes), so it lines up with the time
+ * courses.
  */
 export function componentFeatures(
   r: DecompositionResult, motion?: MotionParams,
   spectra = componentSpectra(r),
 ): ComponentFeatures[] {
-  const m = motion && r.droppedVolumes > 0 ? dropInitialVolumes(motion, r.droppedVolumes) : motion;
+  const m = motion;
   const V = r.voxelsInMask;
   const out: ComponentFeatures[] = [];
   for (let c = 0; c < r.k; c++) {

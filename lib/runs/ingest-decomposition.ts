@@ -4,10 +4,10 @@
  */
 import type { Knex } from 'knex';
 import { float32ToBlob, toJson } from '@/lib/db/knex';
-import { computeComponentFeatures, type ComponentFeatures } from '@/lib/decomposition/features';
+import type { ComponentFeatures } from '@/lib/decomposition/features';
+import { componentFeatures, componentSpectra, componentTimecourse } from '@/lib/decomposition/component-outputs';
 import type { MotionParams } from '@/lib/decomposition/motion';
 import type { DecompositionResult } from '@/lib/decomposition/pipeline';
-import { powerSpectrum } from '@/lib/decomposition/spectrum';
 import { writeNiftiFile, type NiftiHeader } from '@/lib/nifti';
 import { childKey, ensureDirFor, newKey, pathFor, removeKey } from '@/lib/storage';
 
@@ -26,34 +26,20 @@ export interface ComponentRow {
 
 /**
  * Per component: its time course (column c of the T × k mixing matrix), Welch power spectrum and
- * rater features. `motion` must already have the dropped initial volumes removed (length T).
+ * rater features, computed by lib/decomposition's component outputs (the same as the CLI writes).
+ * `motion` must already have the dropped initial volumes removed (length T).
  */
 export function componentRows(result: DecompositionResult, motion?: MotionParams): ComponentRow[] {
-  const { k, timepoints: T, voxelsInMask: V } = result;
-  const rows: ComponentRow[] = [];
-  for (let c = 0; c < k; c++) {
-    const tc = new Float64Array(T);
-    for (let t = 0; t < T; t++) tc[t] = result.timecourses[t * k + c]!;
-    const spectrum = powerSpectrum(tc, result.trSeconds);
-    const features = computeComponentFeatures({
-      map: result.maps.subarray(c * V, (c + 1) * V),
-      maskIndices: result.maskIndices,
-      dims: result.dims,
-      timecourse: tc,
-      trSeconds: result.trSeconds,
-      motion,
-      spectrum,
-    });
-    rows.push({
-      idx: c + 1,
-      varianceExplained: result.explainedVariance[c]!,
-      features,
-      timecourse: Float32Array.from(tc),
-      spectrum: Float32Array.from(spectrum.power),
-      frequencies: Float32Array.from(spectrum.frequencies),
-    });
-  }
-  return rows;
+  const spectra = componentSpectra(result);
+  const features = componentFeatures(result, motion, spectra);
+  return features.map((f, c) => ({
+    idx: c + 1,
+    varianceExplained: result.explainedVariance[c]!,
+    features: f,
+    timecourse: Float32Array.from(componentTimecourse(result, c)),
+    spectrum: Float32Array.from(spectra.power[c]!),
+    frequencies: Float32Array.from(spectra.frequencies),
+  }));
 }
 
 export interface DecompositionFiles {
@@ -114,34 +100,8 @@ export async function writeDecompositionFiles(result: DecompositionResult, heade
   return files;
 }
 
-/** The summary JSON of a decomposition (everything the engine reports except voxel-sized arrays). */
-export function decompositionSummary(result: DecompositionResult): Record<string, unknown> {
-  return {
-    k: result.k,
-    dimension: result.dimension,
-    dimMethod: result.dimMethod,
-    eigenvalues: Array.from(result.eigenvalues),
-    explainedVariance: Array.from(result.explainedVariance),
-    pcaVarianceKept: result.pcaVarianceKept,
-    smoothness: result.smoothness,
-    iterations: result.iterations,
-    converged: result.converged,
-    seed: result.seed,
-    requestedSeed: result.requestedSeed,
-    icaAttempts: result.icaAttempts,
-    voxelsInMask: result.voxelsInMask,
-    nonFiniteVoxels: result.nonFiniteVoxels,
-    zeroVarianceVoxels: result.zeroVarianceVoxels,
-    dims: result.dims,
-    timepoints: result.timepoints,
-    droppedVolumes: result.droppedVolumes,
-    trSeconds: result.trSeconds,
-    detrended: result.detrended,
-    varianceNormalised: result.varianceNormalised,
-    threads: result.threads,
-    seconds: result.seconds,
-  };
-}
+/** The summary JSON of a decomposition: the same record the CLI writes as summary.json. */
+export { decompositionSummary } from '@/lib/decomposition/component-outputs';
 
 /**
  * In the caller's transaction: marks the run's earlier decompositions not current, inserts the new

@@ -9,7 +9,7 @@ import {
   type DecompositionResult, type DimMethod,
 } from '@/lib/decomposition';
 import type { Contrast } from '@/lib/decomposition/fastica';
-import { parseMotionFile, type MotionOrder, type MotionParams } from '@/lib/decomposition/motion';
+import { dropInitialVolumes, parseMotionFile, type MotionOrder, type MotionParams } from '@/lib/decomposition/motion';
 import type { CliCommand } from './index';
 
 const USAGE =
@@ -57,7 +57,9 @@ export async function writeDecompositionOutputs(out: string, h: NiftiHeader, r: 
   await writeFile(path.join(out, 'timecourses.tsv'), timecoursesTsv(r));
   const spectra = componentSpectra(r);
   await writeFile(path.join(out, 'spectra.tsv'), spectraTsv(spectra));
-  await writeFile(path.join(out, 'features.tsv'), featuresTsv(r, componentFeatures(r, motion, spectra)));
+  // the run's motion table covers every volume; the features see the kept ones
+  const kept = motion && r.droppedVolumes > 0 ? dropInitialVolumes(motion, r.droppedVolumes) : motion;
+  await writeFile(path.join(out, 'features.tsv'), featuresTsv(r, componentFeatures(r, kept, spectra)));
 }
 
 export const decompose: CliCommand = {

@@ -62,7 +62,7 @@ describe('decompose in process', () => {
     const params = parseJson<Record<string, unknown>>(d.parameters)!;
     expect(params).toMatchObject({ mask: 'automatic', dropVolumes: 0, varianceNorm: true, detrend: false, dimMethod: 'laplace', seed: 1, contrast: 'logcosh' });
     const summary = parseJson<Record<string, unknown>>(d.summary)!;
-    expect(summary).toMatchObject({ k: d.k, timepoints: 80 });
+    expect(summary).toMatchObject({ components: d.k, timepoints: 80 });
 
     const comps = await db('components').where({ decomposition_id: d.id }).orderBy('idx');
     expect(comps.map((c) => c.idx)).toEqual(Array.from({ length: d.k }, (_, i) => i + 1));
