@@ -4,26 +4,16 @@
  * with a reason; the decision and its audit entry exist and the agreement page shows the run.
  * Observers read the agreement page but cannot reach Reconcile or decide; raters neither.
  */
-import { execFileSync } from 'node:child_process';
 import { expect, request as pwRequest, test, type APIRequestContext } from '@playwright/test';
 import { apiSignIn, DEMO, SignInPage } from './pages/sign-in-page';
 import { createE2eRun, type E2eRun } from './helpers/e2e-run';
+import { sql } from './helpers/e2e-db';
 
 const A = 'rater3@fernhollow.example';
 const B = 'rater4@fernhollow.example';
 let run: E2eRun;
 let studyId: number;
 
-function sql(query: string): string {
-  // read-only look into the browser tests' database, through the project's own knex settings
-  return execFileSync('node', ['--import', 'tsx', '-e', `
-    import('./lib/db/knex.ts').then(async ({ createDb }) => {
-      const db = createDb();
-      const [rows] = await db.raw(${JSON.stringify(query)});
-      process.stdout.write(JSON.stringify(rows));
-      await db.destroy();
-    });`], { env: { ...process.env, QUORUM_DB_NAME: process.env.QUORUM_DB_NAME ?? 'quorum_e2e' }, encoding: 'utf8' });
-}
 
 async function rateAndSubmit(ctx: APIRequestContext, labelFor: (i: number) => string) {
   for (const [i, id] of run.componentIds.entries()) {
@@ -36,7 +26,7 @@ async function rateAndSubmit(ctx: APIRequestContext, labelFor: (i: number) => st
 
 test.beforeAll(async ({ baseURL }) => {
   run = createE2eRun({ raters: [A, B], size: 'tiny', seed: 33 });
-  studyId = JSON.parse(sql(`SELECT study_id AS s FROM runs WHERE id = ${run.runId}`))[0].s;
+  studyId = Number(sql<{ s: number }>(`SELECT study_id AS s FROM runs WHERE id = ${run.runId}`)[0].s);
   const a = await pwRequest.newContext({ baseURL });
   const b = await pwRequest.newContext({ baseURL });
   await apiSignIn(a, A);
@@ -73,9 +63,9 @@ test('a lead reconciles a disagreement with a reason, and the agreement page sho
   await expect(page.getByText(/Component 1 of .*: Noise \(decided by a lead\)/)).toBeVisible();
 
   const componentId = run.componentIds[0];
-  const decision = JSON.parse(sql(`SELECT label, noise_kind, method, reason FROM decisions WHERE component_id = ${componentId}`))[0];
+  const decision = sql(`SELECT label, noise_kind, method, reason FROM decisions WHERE component_id = ${componentId}`)[0];
   expect(decision).toEqual({ label: 'noise', noise_kind: 'motion', method: 'reconciled', reason: 'Rim pattern and spikes matching the motion trace' });
-  const audit = JSON.parse(sql(`SELECT a.action, u.email FROM audit_log a JOIN users u ON u.id = a.actor_id WHERE a.target_type = 'component' AND a.target_id = '${componentId}' AND a.action LIKE 'decision.%'`));
+  const audit = sql(`SELECT a.action, u.email FROM audit_log a JOIN users u ON u.id = a.actor_id WHERE a.target_type = 'component' AND a.target_id = '${componentId}' AND a.action LIKE 'decision.%'`);
   expect(audit).toEqual([{ action: 'decision.reconcile', email: DEMO.lead }]);
 
   await page.goto(`/studies/${studyId}/agreement`);
