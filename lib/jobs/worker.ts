@@ -113,6 +113,11 @@ export function startWorker(opts: WorkerOptions): WorkerHandle {
         await sleep(pollMs, stopping.signal);
         continue;
       }
+      if (stopping.signal.aborted) {
+        // the stop came while the claim was on its way back: give the job back untouched
+        if (await releaseJob(db, job.id, workerId).catch(() => false)) line(`job ${job.id} ${job.kind} released back to the queue`);
+        break;
+      }
       current = job;
       jobStop.controller = new AbortController();
       const t0 = Date.now();
