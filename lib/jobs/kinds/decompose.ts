@@ -126,7 +126,11 @@ export const decomposeKind = defineJobKind({
     const options = decomposeOptionsFor(protocol, payload.decompositionOptions);
 
     await ctx.progress('reading', 1);
-    await db('runs').where({ id: runId }).update({ status: 'processing', status_message: null });
+    // only while this worker still holds the job: a worker that is stopping may have released it
+    await db('runs')
+      .where({ id: runId })
+      .whereExists(db('jobs').where({ id: ctx.job.id, status: 'running', lease_owner: ctx.workerId }).select(db.raw('1')))
+      .update({ status: 'processing', status_message: null });
     const image: NiftiImage = await readStored("run's file", run.file_key, (p) => readNiftiFile(p));
     ctx.throwIfStopped();
     let mask: Uint8Array | undefined;
