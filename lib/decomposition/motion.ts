@@ -47,11 +47,16 @@ export function parseMotionFile(
   }
   const rows: number[][] = [];
   const lines = text.replace(/^\uFEFF/, '').split(/\r\n|\r|\n/);
+  let first = true;
   for (let li = 0; li < lines.length; li++) {
     const line = lines[li].trim();
     if (line === '' || line.startsWith('#')) continue;
     const lineNo = li + 1;
     const cells = line.split(/[\s,]+/).filter((c) => c !== '');
+    // a first line of column names (e.g. "tx_mm ty_mm tz_mm rx_rad ry_rad rz_rad", as TSV tables carry) is a header
+    const isHeader = first && cells.every((c) => !Number.isFinite(Number(c)) && /^[A-Za-z_][A-Za-z0-9_.()-]*$/.test(c));
+    first = false;
+    if (isHeader) continue;
     if (cells.length !== 6) {
       throw new MotionFileError(
         'column_count',
@@ -64,7 +69,7 @@ export function parseMotionFile(
       if (!Number.isFinite(v)) {
         throw new MotionFileError(
           'not_numeric',
-          `Motion file line ${lineNo}, column ${ci + 1}: '${cell}' is not a number; the file must hold only numbers (a header line may start with '#').`,
+          `Motion file line ${lineNo}, column ${ci + 1}: '${cell}' is not a number; the file must hold only numbers (a first line of column names and lines starting with '#' are skipped).`,
           lineNo,
         );
       }

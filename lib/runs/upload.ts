@@ -209,16 +209,6 @@ async function readSmallText(raw: RawBody, maxBytes: number): Promise<string> {
   return buf.toString('utf8');
 }
 
-/** Drops one leading line of column names (e.g. "tx_mm ty_mm …"), which parseMotionFile would refuse as not numeric. */
-export function stripColumnHeader(text: string): string {
-  const lines = text.replace(/^\uFEFF/, '').split(/\r\n|\r|\n/);
-  const first = lines.findIndex((l) => l.trim() !== '' && !l.trim().startsWith('#'));
-  if (first < 0) return text;
-  const cells = lines[first].trim().split(/[\s,]+/);
-  if (cells.every((c) => !Number.isFinite(Number(c)) && /^[A-Za-z_][A-Za-z0-9_.()-]*$/.test(c))) lines[first] = `# ${lines[first]}`;
-  return lines.join('\n');
-}
-
 /** PUT /api/runs/:id/motion — a T × 6 motion table with the stated column order and rotation units. */
 export async function attachMotion({
   user,
@@ -233,7 +223,7 @@ export async function attachMotion({
 }): Promise<{ motionName: string; rows: number }> {
   const run = await runForChange(user, runId);
   assertAttachable(run, 'motion file');
-  const text = stripColumnHeader(await readSmallText(raw, MAX_MOTION_BYTES));
+  const text = await readSmallText(raw, MAX_MOTION_BYTES);
   try {
     parseMotionFile(text, { order: query.order, rotationUnits: query.units, expectedRows: run.volumes ?? undefined });
   } catch (err) {

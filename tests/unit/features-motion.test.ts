@@ -121,3 +121,16 @@ describe('framewiseDisplacement (Power et al. 2012, NeuroImage 59:2142; rotation
     expect(() => framewiseDisplacement(bad)).toThrow(/different lengths/);
   });
 });
+
+describe('parseMotionFile: a line of column names', () => {
+  // common practice, no source: motion tables written as TSV carry a header row of column names
+  it('skips a first line of column names and still refuses names further down', () => {
+    const header = 'tx_mm\tty_mm\ttz_mm\trx_rad\try_rad\trz_rad\n';
+    const m = parseMotionFile(`${header}1 2 3 0.1 0.2 0.3\n4 5 6 0.4 0.5 0.6\n`, { order: 'trans-first', rotationUnits: 'radians', expectedRows: 2 });
+    expect(Array.from(m.translations[0])).toEqual([1, 4]);
+    expect(Array.from(m.rotations[2])).toEqual([0.3, 0.6]);
+    const e = catchError(() => parseMotionFile(`1 2 3 0.1 0.2 0.3\n${header}`, { order: 'trans-first', rotationUnits: 'radians' }));
+    expect(e.code).toBe('not_numeric');
+    expect(e.line).toBe(2);
+  });
+});
