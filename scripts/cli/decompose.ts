@@ -9,13 +9,14 @@ import {
   type DecompositionResult, type DimMethod,
 } from '@/lib/decomposition';
 import type { Contrast } from '@/lib/decomposition/fastica';
-import { dropInitialVolumes, parseMotionFile, type MotionOrder, type MotionParams } from '@/lib/decomposition/motion';
+import { dropInitialVolumes, type MotionParams } from '@/lib/decomposition/motion';
+import { MOTION_USAGE, motionOptions, readMotionOption } from './motion-options';
 import type { CliCommand } from './index';
 
 const USAGE =
   'usage: quorum decompose FILE --out DIR [--mask FILE] [--components auto|N] [--dim-method laplace|aic|mdl|variance:F] ' +
   '[--seed N] [--drop N] [--no-variance-norm] [--detrend] [--contrast logcosh|exp|cube] [--threads N] ' +
-  '[--motion FILE [--motion-order trans-first|rot-first] [--motion-units radians|degrees]]';
+  MOTION_USAGE;
 
 class UsageError extends Error {}
 
@@ -80,9 +81,7 @@ export const decompose: CliCommand = {
           detrend: { type: 'boolean', default: false },
           contrast: { type: 'string' },
           threads: { type: 'string' },
-          motion: { type: 'string' },
-          'motion-order': { type: 'string', default: 'trans-first' },
-          'motion-units': { type: 'string', default: 'radians' },
+          ...motionOptions,
         },
       });
       const file = positionals[0];
@@ -112,13 +111,7 @@ export const decompose: CliCommand = {
         mask = new Uint8Array(vol.length);
         for (let i = 0; i < vol.length; i++) mask[i] = vol[i]! > 0 ? 1 : 0;
       }
-      const motion = values.motion
-        ? parseMotionFile(await readFile(values.motion, 'utf8'), {
-            order: values['motion-order'] as MotionOrder,
-            rotationUnits: values['motion-units'] as 'radians' | 'degrees',
-            expectedRows: image.nt,
-          })
-        : undefined;
+      const motion = await readMotionOption(values, image.nt);
 
       const readSeconds = (performance.now() - tRead) / 1000;
       const r = await decomposeRun({ image, mask, motion }, options);

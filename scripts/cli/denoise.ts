@@ -5,14 +5,15 @@ import { readFile } from 'node:fs/promises';
 import path from 'node:path';
 import { parseArgs } from 'node:util';
 import { readNiftiFile } from '@/lib/nifti';
-import { dropInitialVolumes, parseMotionFile, type MotionOrder } from '@/lib/decomposition/motion';
+import { dropInitialVolumes } from '@/lib/decomposition/motion';
+import { MOTION_USAGE, motionOptions, readMotionOption } from './motion-options';
 import { denoiseImage } from '@/lib/denoise/denoise-image';
 import { parseTsv } from '@/lib/exports/tsv';
 import type { CliCommand } from './index';
 
 const USAGE =
   'usage: quorum denoise FILE --from DIR --noise 1,4,7 [--mode partial|full] [--drop N] ' +
-  '[--motion FILE [--motion-order trans-first|rot-first] [--motion-units radians|degrees]] --out FILE.nii.gz';
+  `${MOTION_USAGE} --out FILE.nii.gz`;
 
 class UsageError extends Error {}
 
@@ -29,9 +30,7 @@ export const denoise: CliCommand = {
           mode: { type: 'string', default: 'partial' },
           drop: { type: 'string' },
           out: { type: 'string' },
-          motion: { type: 'string' },
-          'motion-order': { type: 'string', default: 'trans-first' },
-          'motion-units': { type: 'string', default: 'radians' },
+          ...motionOptions,
         },
       });
       const file = positionals[0];
@@ -61,12 +60,8 @@ export const denoise: CliCommand = {
       const maskVol = (await readNiftiFile(path.join(values.from, 'mask.nii.gz'))).readVolume(0);
       if (maskVol.length !== image.voxelsPerVolume) throw new UsageError(`The mask in ${values.from} has ${maskVol.length} voxels per volume; ${file} has ${image.voxelsPerVolume}. Use the directory made from this run.`);
       const mask = Uint8Array.from(maskVol, (v) => (v > 0 ? 1 : 0));
-      const motion = values.motion
-        ? dropInitialVolumes(
-            parseMotionFile(await readFile(values.motion, 'utf8'), { order: values['motion-order'] as MotionOrder, rotationUnits: values['motion-units'] as 'radians' | 'degrees', expectedRows: image.nt }),
-            drop,
-          )
-        : undefined;
+      const full = await readMotionOption(values, image.nt);
+      const motion = full ? dropInitialVolumes(full, drop) : undefined;
       const t0 = performance.now();
       const r = await denoiseImage({ image, drop, timecourses: tcs, k, noise, mode: values.mode, motion, mask, outPath: values.out });
       process.stdout.write(

@@ -7,10 +7,11 @@ import { createReadStream, statSync } from 'node:fs';
 import path from 'node:path';
 import { Readable } from 'node:stream';
 import type { CliCommand } from './index';
+import { MOTION_USAGE, motionFormat, motionOptions } from './motion-options';
 
 const USAGE =
   'usage: quorum import FILE --from DIR --study ID --as EMAIL [--sub S --ses S --task T --acq A --run R] ' +
-  '[--motion FILE --motion-order trans-first|rot-first --motion-units radians|degrees]';
+  MOTION_USAGE;
 
 const raw = (file: string) => ({ body: Readable.toWeb(createReadStream(file)) as ReadableStream<Uint8Array>, contentLength: statSync(file).size });
 
@@ -29,9 +30,7 @@ export const importRun: CliCommand = {
         task: { type: 'string' },
         acq: { type: 'string' },
         run: { type: 'string' },
-        motion: { type: 'string' },
-        'motion-order': { type: 'string', default: 'trans-first' },
-        'motion-units': { type: 'string', default: 'radians' },
+        ...motionOptions,
       },
     });
     const file = positionals[0];
@@ -53,7 +52,7 @@ export const importRun: CliCommand = {
         entities: { sub: values.sub, ses: values.ses, task: values.task, acq: values.acq, run: values.run },
         dir: path.resolve(values.from),
         motion: values.motion
-          ? { name: path.basename(values.motion), open: () => raw(values.motion!), order: values['motion-order'] as 'trans-first' | 'rot-first', units: values['motion-units'] as 'radians' | 'degrees' }
+          ? { name: path.basename(values.motion), open: () => raw(values.motion!), order: motionFormat(values).order, units: motionFormat(values).rotationUnits }
           : undefined,
       });
       process.stdout.write(JSON.stringify(result, null, 2) + '\n');
