@@ -7,8 +7,8 @@ import { loadStudyRatings } from '@/lib/db/queries/agreement';
 import { buildAgreementReport } from '@/lib/reports/agreement-report';
 import { Panel } from '@/components/ui/panel';
 import { Headline } from '@/components/agreement/headline';
-import { PairMatrix } from '@/components/agreement/pair-matrix';
-import { NoiseRateChart, RunHistogram, WeeklyChart } from '@/components/agreement/agreement-charts';
+import { RunHistogram } from '@/components/agreement/agreement-charts';
+import { RaterPairsPanel, RatersVsDecisionsPanel, RunsTable, WeeklyPanel } from '@/components/agreement/agreement-panels';
 import { formatStat } from '@/components/agreement/format';
 
 export const metadata: Metadata = { title: 'Agreement' };
@@ -83,51 +83,13 @@ export default async function AgreementPage({ params }: { params: Promise<{ id: 
             are imbalanced, so read κ beside PABAK and AC1.
           </p>
           <div className="grid gap-6 lg:grid-cols-2">
-            <Panel title="Rater pairs (Cohen's κ)">
-              <PairMatrix pairs={s.pairs} raters={s.raters} nameOf={nameOf} />
-            </Panel>
-            <Panel title="Each rater against the decisions">
-              <table className="mb-3 w-full text-sm" data-testid="vs-decision">
-                <thead className="text-xs text-ink-faint">
-                  <tr>
-                    <th className="text-left font-medium">Rater</th>
-                    <th className="font-medium">κ</th>
-                    <th className="font-medium">noise sensitivity</th>
-                    <th className="font-medium">specificity</th>
-                    <th className="font-medium">noise rate</th>
-                  </tr>
-                </thead>
-                <tbody className="font-mono">
-                  {s.vsDecision.map((r) => (
-                    <tr key={r.rater}>
-                      <td className="font-sans">{nameOf(r.rater)}</td>
-                      <td className="text-center">{formatStat(r.cohenKappa, 2)}</td>
-                      <td className="text-center">{formatStat(r.sensitivity, 2)}</td>
-                      <td className="text-center">{formatStat(r.specificity, 2)}</td>
-                      <td className="text-center">{formatStat(r.noiseRate, 2)}</td>
-                    </tr>
-                  ))}
-                </tbody>
-              </table>
-              <NoiseRateChart data={s.vsDecision.map((r) => ({ name: nameOf(r.rater), noiseRate: r.noiseRate.value, kappa: r.cohenKappa.value }))} />
-            </Panel>
+            <RaterPairsPanel summary={s} nameOf={nameOf} />
+            <RatersVsDecisionsPanel summary={s} nameOf={nameOf} detailed />
             <Panel title="Agreement per run (α)">
               <RunHistogram data={histogram} />
-              <table className="mt-3 w-full text-sm" data-testid="run-agreement">
-                <tbody>
-                  {report.runs.map((r) => (
-                    <tr key={r.runId}>
-                      <td className="font-mono">{r.name}</td>
-                      <td className="text-right font-mono">{formatStat(r.krippendorffAlpha, 2)}</td>
-                      <td className="text-right text-ink-faint">{r.items} components</td>
-                    </tr>
-                  ))}
-                </tbody>
-              </table>
+              <RunsTable runs={report.runs} />
             </Panel>
-            <Panel title="Over time (by week of the last vote)">
-              <WeeklyChart data={report.weeks.map((w) => ({ week: w.week, alpha: w.krippendorffAlpha.value, percent: w.percentAgreement.value, items: w.items }))} />
-            </Panel>
+            <WeeklyPanel weeks={report.weeks} />
             <Panel title="By decided noise kind (percent agreement)">
               <table className="w-full text-sm">
                 <tbody>

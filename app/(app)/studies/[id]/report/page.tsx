@@ -14,9 +14,7 @@ import { CAUTIONS } from '@/lib/exports/cautions';
 import { pathFor } from '@/lib/storage';
 import { Panel } from '@/components/ui/panel';
 import { Headline } from '@/components/agreement/headline';
-import { PairMatrix } from '@/components/agreement/pair-matrix';
-import { NoiseRateChart, WeeklyChart } from '@/components/agreement/agreement-charts';
-import { formatStat } from '@/components/agreement/format';
+import { RaterPairsPanel, RatersVsDecisionsPanel, RunsTable, WeeklyPanel } from '@/components/agreement/agreement-panels';
 import { PrintButton } from '@/components/releases/print-button';
 
 export const metadata: Metadata = { title: 'Agreement report' };
@@ -110,33 +108,11 @@ export default async function ReportPage({ params, searchParams }: { params: Pro
             {s.items} components, {s.raters.length} raters. 95% percentile-bootstrap intervals over components ({BOOTSTRAP.resamples} resamples, seed {BOOTSTRAP.seed}); bands after Landis &amp; Koch (1977).
           </p>
           <div className="grid gap-6 lg:grid-cols-2 print:grid-cols-2">
-            <Panel title="Rater pairs (Cohen's κ)">
-              <PairMatrix pairs={s.pairs} raters={s.raters} nameOf={nameOf} />
-            </Panel>
-            <Panel title="Each rater against the decisions">
-              <table className="mb-3 w-full text-sm">
-                <thead className="text-xs text-ink-faint">
-                  <tr><th className="text-left font-medium">Rater</th><th className="font-medium">κ</th><th className="font-medium">noise rate</th></tr>
-                </thead>
-                <tbody className="font-mono">
-                  {s.vsDecision.map((r) => (
-                    <tr key={r.rater}><td className="font-sans">{nameOf(r.rater)}</td><td className="text-center">{formatStat(r.cohenKappa, 2)}</td><td className="text-center">{formatStat(r.noiseRate, 2)}</td></tr>
-                  ))}
-                </tbody>
-              </table>
-              <NoiseRateChart data={s.vsDecision.map((r) => ({ name: nameOf(r.rater), noiseRate: r.noiseRate.value, kappa: r.cohenKappa.value }))} />
-            </Panel>
-            <Panel title="Over time (week of the last vote)">
-              <WeeklyChart data={report.weeks.map((w) => ({ week: w.week, alpha: w.krippendorffAlpha.value, percent: w.percentAgreement.value, items: w.items }))} />
-            </Panel>
+            <RaterPairsPanel summary={s} nameOf={nameOf} />
+            <RatersVsDecisionsPanel summary={s} nameOf={nameOf} />
+            <WeeklyPanel weeks={report.weeks} />
             <Panel title="Per run (Krippendorff's α)">
-              <table className="w-full text-sm">
-                <tbody>
-                  {report.runs.map((r) => (
-                    <tr key={r.runId}><td className="font-mono">{r.name}</td><td className="text-right font-mono">{formatStat(r.krippendorffAlpha, 2)}</td><td className="text-right text-ink-faint">{r.items}</td></tr>
-                  ))}
-                </tbody>
-              </table>
+              <RunsTable runs={report.runs} />
             </Panel>
           </div>
         </>
