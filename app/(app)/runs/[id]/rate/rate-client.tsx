@@ -2,10 +2,11 @@
 import Link from 'next/link';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
-import { postJson, putJson } from '@/lib/api/client';
+import { postJson } from '@/lib/api/client';
 import { commandFor } from '@/lib/desk/keys';
 import { useRunComponents } from '@/lib/desk/use-run-components';
 import { useVotes, votesKey } from '@/lib/desk/use-vote';
+import { useDeskPosition } from '@/lib/desk/use-desk-position';
 import type { ComponentsPayload, VoteFields, VotesPayload } from '@/lib/desk/types';
 import { VolumeViewer, type ViewerLayout, type ViewerLocation } from '@/components/viewer';
 import { DUSK_CSS, EMBER_CSS } from '@/components/viewer/colormaps';
@@ -96,20 +97,22 @@ export function RateClient({
   const released = Boolean(status?.released);
   const submitted = Boolean(status?.submittedAt);
 
-  // remember where the rater is (reopens here), debounced
+  // remember where the rater is (reopens here, also after a reload that outran the server)
+  const { remember, pendingIdx } = useDeskPosition(runId, userId, components.length);
   useEffect(() => {
-    const t = setTimeout(() => void putJson(`/api/runs/${runId}/desk`, { componentIdx: index + 1 }), 400);
-    return () => clearTimeout(t);
-  }, [index, runId]);
+    const pending = pendingIdx();
+    if (pending !== null) setIndex(pending - 1);
+  }, [pendingIdx]);
 
   const goTo = useCallback(
     (next: number) => {
       if (next < 0 || next >= ids.length) return;
       performance.mark('desk:nav');
       navStart.current = { frame: next, t: performance.now() };
+      remember(next + 1);
       setIndex(next);
     },
-    [ids.length],
+    [ids.length, remember],
   );
 
   const onDrawn = useCallback((frame: number, phase: 'issued' | 'painted') => {
