@@ -9,8 +9,9 @@ import {
 } from '@/lib/agreement';
 import type { CliCommand } from './index';
 
-const USAGE = 'usage: quorum agreement FILE [--bootstrap N (default 1000, 0 = no intervals)] [--seed S (default 1)] [--categories signal,noise,uncertain]';
-/** Quorum's label set; other labels found in the file are appended in order of first appearance. */
+const USAGE =
+  'usage: quorum agreement FILE [--bootstrap N (default 1000, 0 = no intervals)] [--seed S (default 1)] [--categories a,b,c (categories no vote uses, counted too)]';
+/** Quorum's label set, for the order of the categories found in the file. */
 const DEFAULT_CATEGORIES = ['signal', 'noise', 'uncertain'];
 
 function integerOption(raw: string | undefined, name: string, fallback: number, min: number): number {
@@ -24,7 +25,15 @@ function integerOption(raw: string | undefined, name: string, fallback: number, 
 export async function agreementReport(file: string, opts: { bootstrap: number; seed: number; categories?: string[] }) {
   const text = await readFile(file, 'utf8');
   const { votes, labels } = parseRatingsText(text, detectFormat(file, text));
-  const categories = opts.categories ?? [...DEFAULT_CATEGORIES, ...labels.filter((l) => !DEFAULT_CATEGORIES.includes(l))];
+  // The categories are those present in the file (Quorum's label order first, then others in order of
+  // first appearance), plus any declared with --categories that no vote uses. Counting categories no
+  // one could choose would change PABAK and AC1 (both depend on the number of categories).
+  const present = [...DEFAULT_CATEGORIES.filter((c) => labels.includes(c)), ...labels.filter((l) => !DEFAULT_CATEGORIES.includes(l))];
+  const declared = opts.categories ?? [];
+  const categories = [...present, ...declared.filter((c) => !present.includes(c))];
+  if (categories.length < 2) {
+    throw new AgreementError('bad_input', `the file uses one label only (${categories[0] ?? 'none'}); agreement needs at least two categories — declare the others with --categories`);
+  }
   const table = ratingsTableFromVotes({ categories, votes });
   const byItem = new Map<string, Record<string, string | null>>();
   for (const v of votes) {
@@ -51,6 +60,8 @@ export async function agreementReport(file: string, opts: { bootstrap: number; s
     raters: study.raters,
     excludedRaters: study.excludedRaters,
     categories,
+    categoriesInFile: present,
+    categoriesDeclaredUnused: categories.filter((c) => !present.includes(c)),
     percentAgreement: o.percentAgreement,
     fleissKappa: o.fleissKappa,
     krippendorffAlpha: o.krippendorffAlpha,

@@ -74,6 +74,41 @@ describe('quorum agreement FILE', () => {
     expect(r.bootstrap).toBeNull();
   });
 
+  it('counts only the categories the file uses: a yes/no file is scored with two categories', async () => {
+    // 10 items, 2 raters: both yes ×6, both no ×2, one disagreement each way → p_o = 0.8.
+    const dir = mkdtempSync(path.join(tmpdir(), 'quorum-agreement-'));
+    const file = path.join(dir, 'yes-no.tsv');
+    const pairs = [...Array(6).fill(['yes', 'yes']), ['no', 'no'], ['no', 'no'], ['yes', 'no'], ['no', 'yes']] as [string, string][];
+    writeFileSync(file, 'item\trater\tlabel\n' + pairs.map(([a, b], i) => `i${i}\tann\t${a}\ni${i}\tbo\t${b}\n`).join(''));
+    const r = JSON.parse((await runCli([file, '--bootstrap', '0'])).out);
+    expect(r.categories).toEqual(['yes', 'no']);
+    expect(r.categoriesInFile).toEqual(['yes', 'no']);
+    expect(r.categoriesDeclaredUnused).toEqual([]);
+    expect(r.percentAgreement.value).toBeCloseTo(0.8, 12);
+    // PABAK with two categories = 2·p_o − 1 (Byrt, Bishop & Carlin 1993, J Clin Epidemiol 46:423)
+    expect(r.pabak.value).toBeCloseTo(0.6, 12);
+    // AC1 with two categories: π = mean share of "yes" = 0.7, p_e = 2π(1 − π) = 0.42,
+    // AC1 = (0.8 − 0.42) / (1 − 0.42) (Gwet 2008, Br J Math Stat Psychol 61:29; hand-computed)
+    expect(r.gwetAC1.value).toBeCloseTo(0.38 / 0.58, 12);
+    // κ does not depend on unused categories: p_e = 0.7·0.7 + 0.3·0.3 = 0.58 (Cohen 1960)
+    expect(r.cohenKappa['ann|bo'].value).toBeCloseTo((0.8 - 0.58) / (1 - 0.58), 12);
+
+    // a declared category no vote uses is counted, and said: PABAK with k = 3 is (3·0.8 − 1)/2
+    const d = JSON.parse((await runCli([file, '--bootstrap', '0', '--categories', 'yes,maybe'])).out);
+    expect(d.categories).toEqual(['yes', 'no', 'maybe']);
+    expect(d.categoriesDeclaredUnused).toEqual(['maybe']);
+    expect(d.pabak.value).toBeCloseTo(0.7, 12);
+  });
+
+  it('a file with one label only is refused with what to do', async () => {
+    const dir = mkdtempSync(path.join(tmpdir(), 'quorum-agreement-'));
+    const file = path.join(dir, 'one.tsv');
+    writeFileSync(file, 'item\trater\tlabel\nc1\tana\tnoise\nc1\tben\tnoise\n');
+    const { code, err } = await runCli([file]);
+    expect(code).toBe(1);
+    expect(err).toMatch(/one label only \(noise\).*--categories/);
+  });
+
   it('a missing column or an unreadable file → one line on stderr, exit 1', async () => {
     const dir = mkdtempSync(path.join(tmpdir(), 'quorum-agreement-'));
     const bad = path.join(dir, 'bad.tsv');
