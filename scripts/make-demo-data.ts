@@ -88,22 +88,37 @@ const MOTION_SIDECAR = {
 
 const CAUTION = 'Synthetic data invented for a demonstration; not from any person. Research software, not for clinical use.';
 
+const USAGE =
+  'usage: npm run -s demo-data -- --out DIR [--size tiny|small|S|M|L] [--runs 12] [--seed 1] [--datatype int16|float32] [--with-broken] [--fixture]';
+
 async function main(): Promise<number> {
-  const { values } = parseArgs({
-    options: {
-      out: { type: 'string' },
-      size: { type: 'string', default: 'small' },
-      runs: { type: 'string', default: '12' },
-      seed: { type: 'string', default: '1' },
-      datatype: { type: 'string', default: 'int16' },
-      'with-broken': { type: 'boolean', default: false },
-      fixture: { type: 'boolean', default: false },
-    },
-  });
+  const args = process.argv.slice(2);
+  if (args.includes('--help') || args.includes('-h')) {
+    process.stdout.write(`synthetic BIDS-named phantom runs with motion tables and ground truth\n${USAGE}\n`);
+    return 0;
+  }
   const fail = (msg: string): number => {
-    process.stderr.write(`make-demo-data: ${msg}\n`);
+    process.stderr.write(`make-demo-data: ${msg}\n${USAGE}\n`);
     return 2;
   };
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args,
+      options: {
+        out: { type: 'string' },
+        size: { type: 'string', default: 'small' },
+        runs: { type: 'string', default: '12' },
+        seed: { type: 'string', default: '1' },
+        datatype: { type: 'string', default: 'int16' },
+        'with-broken': { type: 'boolean', default: false },
+        fixture: { type: 'boolean', default: false },
+      },
+    });
+  } catch (err) {
+    return fail(err instanceof Error ? err.message.split('.')[0]! + '.' : String(err));
+  }
+  const { values } = parsed;
   if (!values.out) return fail('give --out DIR (the folder to write the runs into).');
   const size = values.size as PhantomSize;
   if (!SIZES.includes(size)) return fail(`--size must be one of ${SIZES.join(', ')}; got "${values.size}".`);

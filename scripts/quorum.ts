@@ -4,7 +4,19 @@ import { commands } from './cli/index';
 
 async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;
+  const wantsHelp = (args: string[]) => args.includes('--help') || args.includes('-h');
   const command = name ? commands[name] : undefined;
+  if (command && wantsHelp(rest)) {
+    process.stdout.write(`${command.summary}\n${command.usage}\n`);
+    return 0;
+  }
+  if (!name || name === 'help' || wantsHelp([name])) {
+    const list = Object.entries(commands)
+      .map(([n, c]) => `  ${n.padEnd(10)} ${c.summary}`)
+      .join('\n');
+    process.stdout.write(`usage: quorum <command> [args]   (quorum <command> --help for its options)\n${list}\n`);
+    return name ? 0 : 2;
+  }
   if (!command) {
     const list = Object.entries(commands)
       .map(([n, c]) => `  ${n.padEnd(10)} ${c.summary}`)

@@ -75,6 +75,7 @@ export async function agreementReport(file: string, opts: { bootstrap: number; s
 
 export const agreement: CliCommand = {
   summary: 'inter-rater agreement of a CSV/TSV of votes (item, rater, label) as JSON',
+  usage: USAGE,
   async run(args) {
     try {
       const { values, positionals } = parseArgs({

@@ -65,6 +65,7 @@ export async function writeDecompositionOutputs(out: string, h: NiftiHeader, r: 
 
 export const decompose: CliCommand = {
   summary: 'PCA + spatial FastICA of a 4D run: z-maps, mean, mask, time courses, spectra, features, summary',
+  usage: USAGE,
   async run(args) {
     try {
       const { values, positionals } = parseArgs({

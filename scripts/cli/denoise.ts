@@ -19,6 +19,7 @@ class UsageError extends Error {}
 
 export const denoise: CliCommand = {
   summary: 'regress noise components out of a run (partial or full) using a decompose output directory',
+  usage: USAGE,
   async run(args) {
     try {
       const { values, positionals } = parseArgs({

@@ -45,6 +45,7 @@ export function valueSummary(img: NiftiImage): { min: number | null; max: number
 
 export const header: CliCommand = {
   summary: 'print a NIfTI file header as JSON (--summary adds min/max/mean of the values)',
+  usage: USAGE,
   async run(args) {
     try {
       const { values, positionals } = parseArgs({ args, options: { summary: { type: 'boolean', default: false } }, allowPositionals: true });

@@ -17,6 +17,7 @@ const raw = (file: string) => ({ body: Readable.toWeb(createReadStream(file)) as
 
 export const importRun: CliCommand = {
   summary: 'register a run with its decompose output folder (from a cluster) in a study',
+  usage: USAGE,
   async run(args) {
     const { values, positionals } = parseArgs({
       args,

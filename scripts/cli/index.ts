@@ -6,6 +6,8 @@ import { denoise } from './denoise';
 import { importRun } from './import';
 export type CliCommand = {
   summary: string;
+  /** The command's usage line(s), printed for --help. */
+  usage: string;
   /** Runs the command with its arguments; returns the process exit code. */
   run: (args: string[]) => Promise<number>;
 };
