@@ -296,7 +296,9 @@ describe('a study release', () => {
     const logger = { info: () => {}, warn: () => {}, error: (m: string) => console.error(m) };
     const job = await claimJob(db, { workerId: 'test-worker', kinds: ['denoise'], leaseMs: 60_000 });
     expect(job?.id).toBe(req.json.jobId);
-    expect(await runClaimedJob(db, job!, { workerId: 'test-worker', leaseMs: 60_000, kinds: jobKinds, logger })).toBe('succeeded');
+    const outcome = await runClaimedJob(db, job!, { workerId: 'test-worker', leaseMs: 60_000, kinds: jobKinds, logger });
+    const row = await db('jobs').where({ id: job!.id }).first('message', 'error');
+    expect(outcome, `the job's message: ${row?.message}\n${row?.error}`).toBe('succeeded');
 
     const list = await callRoute(denoiseRoute.GET, { url: `/api/runs/${run.runId}/denoise`, params: { id: String(run.runId) } });
     const done = list.json.jobs[0];
@@ -352,7 +354,10 @@ describe('denoise, full regression with motion regressors', () => {
     expect(req.status, JSON.stringify(req.json)).toBe(202);
     const logger = { info: () => {}, warn: () => {}, error: (m: string) => console.error(m) };
     const job = await claimJob(db, { workerId: 'test-worker', kinds: ['denoise'], leaseMs: 60_000 });
-    expect(await runClaimedJob(db, job!, { workerId: 'test-worker', leaseMs: 60_000, kinds: jobKinds, logger })).toBe('succeeded');
+    expect(job?.id).toBe(req.json.jobId);
+    const outcome = await runClaimedJob(db, job!, { workerId: 'test-worker', leaseMs: 60_000, kinds: jobKinds, logger });
+    const row = await db('jobs').where({ id: job!.id }).first('message', 'error');
+    expect(outcome, `the job's message: ${row?.message}\n${row?.error}`).toBe('succeeded');
     const done = (await db('jobs').where({ id: req.json.jobId }).first('result')).result;
     const result = typeof done === 'string' ? JSON.parse(done) : done;
     expect(result).toMatchObject({ mode: 'full', includeMotion: true, noise });
