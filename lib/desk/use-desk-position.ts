@@ -4,8 +4,16 @@ import { putJson } from '@/lib/api/client';
 
 /** How long after the last move the position is sent (ms); a page that goes away sends it at once. */
 const SEND_AFTER_MS = 400;
+/**
+ * How long an acknowledged position still wins over the one the server rendered (ms). A reload can
+ * be rendered from the database while the acknowledgement of the last move is still on its way, so
+ * for a short while this browser's own record is the better one; after it, the server's (which may
+ * come from another device) is.
+ */
+const TRUST_ACKNOWLEDGED_MS = 120_000;
 
-type Pending = { componentIdx: number; at: number };
+/** A position this browser recorded; ackedAt (this browser's clock) once the server confirmed it. */
+type Pending = { componentIdx: number; at: number; ackedAt?: number };
 
 const keyFor = (userId: number, runId: number) => `quorum.desk.position.v1.${userId}.${runId}`;
 
@@ -31,10 +39,10 @@ function writePending(key: string, value: Pending | null) {
  * Remembers which component (1-based) a rater is on, so the desk reopens there (WALKTHROUGH:
  * "she closes the tab mid-run and continues the next day where she stopped"). Each move is kept in
  * localStorage at once, synchronously with the key press, and sent to `PUT /api/runs/:id/desk`
- * shortly after; the local copy is dropped only once the server has acknowledged that same
- * position. A page that goes away (reload, closed tab, hidden) sends the pending position with a
- * keepalive request. `pendingIdx()` gives the position the server may not have yet, for the desk
- * to reopen at after a reload that outran the request.
+ * shortly after; a page that goes away (reload, closed tab, hidden) sends an unacknowledged
+ * position with a keepalive request. `pendingIdx()` gives this browser's own record — unacknowledged,
+ * or acknowledged within TRUST_ACKNOWLEDGED_MS — for the desk to reopen at when a reload outran
+ * the request or its acknowledgement; otherwise the server's position stands.
  */
 export function useDeskPosition(runId: number, userId: number, componentCount: number) {
   const key = keyFor(userId, runId);
@@ -44,8 +52,10 @@ export function useDeskPosition(runId: number, userId: number, componentCount: n
     async (componentIdx: number) => {
       const res = await putJson(`/api/runs/${runId}/desk`, { componentIdx });
       // Acknowledged, or refused for good (4xx: the run changed or is no longer assigned): forget it.
-      const final = res.ok || (res.status >= 400 && res.status < 500);
-      if (final && readPending(key)?.componentIdx === componentIdx) writePending(key, null);
+      const current = readPending(key);
+      if (current?.componentIdx !== componentIdx) return;
+      if (res.ok) writePending(key, { ...current, ackedAt: Date.now() });
+      else if (res.status >= 400 && res.status < 500) writePending(key, null);
     },
     [key, runId],
   );
@@ -62,16 +72,18 @@ export function useDeskPosition(runId: number, userId: number, componentCount: n
 
   const pendingIdx = useCallback((): number | null => {
     const p = readPending(key);
-    return p && p.componentIdx <= componentCount ? p.componentIdx : null;
+    if (!p || p.componentIdx > componentCount) return null;
+    if (p.ackedAt !== undefined && Date.now() - p.ackedAt > TRUST_ACKNOWLEDGED_MS) return null;
+    return p.componentIdx;
   }, [key, componentCount]);
 
   useEffect(() => {
     // A position not yet acknowledged (from a page that went away too fast) is sent now.
     const p = readPending(key);
-    if (p) void send(p.componentIdx);
+    if (p && p.ackedAt === undefined) void send(p.componentIdx);
     const flush = () => {
       const pending = readPending(key);
-      if (!pending) return;
+      if (!pending || pending.ackedAt !== undefined) return;
       if (timer.current) clearTimeout(timer.current);
       try {
         void fetch(`/api/runs/${runId}/desk`, {
