@@ -3,7 +3,7 @@ import type { StudyAgreement } from '@/lib/agreement';
 import { Panel } from '@/components/ui/panel';
 import { PairMatrix } from './pair-matrix';
 import { NoiseRateChart, WeeklyChart } from './agreement-charts';
-import { formatStat } from './format';
+import { countOf, formatStat } from './format';
 
 type NameOf = (raterId: string) => string;
 
@@ -64,7 +64,9 @@ export function RunsTable({ runs }: { runs: AgreementReport['runs'] }) {
           <tr key={r.runId}>
             <td className="font-mono">{r.name}</td>
             <td className="text-right font-mono">{formatStat(r.krippendorffAlpha, 2)}</td>
-            <td className="text-right text-ink-faint">{r.items} components</td>
+            <td className="text-right text-ink-faint">
+              {countOf(r.items, 'component')}
+            </td>
           </tr>
         ))}
       </tbody>

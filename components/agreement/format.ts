@@ -16,3 +16,8 @@ export function heat(value: number | null): string {
   const a = Math.max(0, Math.min(1, value));
   return `rgba(79, 184, 176, ${0.1 + 0.75 * a})`;
 }
+
+/** "1 component", "3 components": a count with its noun (regular English plural). */
+export function countOf(n: number, noun: string): string {
+  return `${n} ${n === 1 ? noun : `${noun}s`}`;
+}

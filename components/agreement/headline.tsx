@@ -1,5 +1,5 @@
 import type { StatWithCI } from '@/lib/agreement';
-import { formatCI, formatStat } from './format';
+import { countOf, formatCI, formatStat } from './format';
 
 const NAMES = {
   krippendorffAlpha: "Krippendorff's α",
@@ -22,7 +22,7 @@ export function Headline({ stats }: { stats: Record<keyof typeof NAMES, StatWith
             </p>
             <p className="text-xs text-ink-faint">{s.value == null ? s.reason : formatCI(s.ci)}</p>
             {s.band ? <p className="mt-1 text-xs text-lumen-strong">{s.band}</p> : null}
-            <p className="text-xs text-ink-faint">{s.n} components</p>
+            <p className="text-xs text-ink-faint">{countOf(s.n, 'component')}</p>
           </div>
         );
       })}

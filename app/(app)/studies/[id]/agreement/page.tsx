@@ -9,7 +9,7 @@ import { Panel } from '@/components/ui/panel';
 import { Headline } from '@/components/agreement/headline';
 import { RunHistogram } from '@/components/agreement/agreement-charts';
 import { RaterPairsPanel, RatersVsDecisionsPanel, RunsTable, WeeklyPanel } from '@/components/agreement/agreement-panels';
-import { formatStat } from '@/components/agreement/format';
+import { countOf, formatStat } from '@/components/agreement/format';
 
 export const metadata: Metadata = { title: 'Agreement' };
 
@@ -97,7 +97,7 @@ export default async function AgreementPage({ params }: { params: Promise<{ id: 
                     <tr key={k.noiseKind}>
                       <td>{k.noiseKind}</td>
                       <td className="text-right font-mono">{formatStat(k.percentAgreement, 2)}</td>
-                      <td className="text-right text-ink-faint">{k.items} components</td>
+                      <td className="text-right text-ink-faint">{countOf(k.items, 'component')}</td>
                     </tr>
                   ))}
                 </tbody>
