@@ -16,7 +16,7 @@ export async function compileKernels() {
   let binary = null;
   const stderr = [];
   const { error } = await asc.main(
-    [source, '--outFile', 'kernels.wasm', '-O3', '--noAssert', '--runtime', 'stub', '--enable', 'simd', '--initialMemory', '2'],
+    [source, '--outFile', 'kernels.wasm', '-O3', '--noAssert', '--runtime', 'stub', '--enable', 'simd,relaxed-simd', '--initialMemory', '2'],
     {
       readFile: (name, baseDir) => {
         try { return readFileSync(path.resolve(root, baseDir, name), 'utf8'); } catch { return null; }

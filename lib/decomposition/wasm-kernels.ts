@@ -80,16 +80,22 @@ export function wasmIcaChunk(
   const nBlocks = Math.ceil(n / NB);
   const stride = nBlocks * NB;
   const kp = (k + 3) & ~3;
-  const zp = 65536, wp = zp + kp * stride * 4, Gp = wp + kp * kp * 4, gpp = Gp + kp * kp * 8, yp = gpp + kp * 8;
-  const { f32, f64 } = wasmMemory(ex, kp * stride * 4 + kp * kp * 4 + kp * kp * 8 + kp * 8 + kp * NB * 4);
+  const zp = 65536, wp = zp + kp * stride * 4, Gp = wp + kp * kp * 16, gpp = Gp + kp * kp * 8, yp = gpp + kp * 8;
+  const { f32, f64 } = wasmMemory(ex, kp * stride * 4 + kp * kp * 16 + kp * kp * 8 + kp * 8 + kp * NB * 4);
   const zo = zp / 4, wo = wp / 4, Go = Gp / 8, gpo = gpp / 8;
   for (let i = 0; i < k; i++) {
     f32.set(z.subarray(i * V + v0, i * V + v1), zo + i * stride);
     f32.fill(0, zo + i * stride + n, zo + (i + 1) * stride);
   }
   f32.fill(0, zo + k * stride, zo + kp * stride);
-  f32.fill(0, wo, wo + kp * kp);
-  for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) f32[wo + i * kp + j] = w[i * k + j]!;
+  // W pre-broadcast: entry (i, j) as 4 equal float32 at wo + 4·(i·kp + j).
+  f32.fill(0, wo, wo + 4 * kp * kp);
+  for (let i = 0; i < k; i++) {
+    for (let j = 0; j < k; j++) {
+      const v = w[i * k + j]!, o = wo + 4 * (i * kp + j);
+      f32[o] = v; f32[o + 1] = v; f32[o + 2] = v; f32[o + 3] = v;
+    }
+  }
   f64.fill(0, Go, gpo + kp);
   ex.ica(zp, kp, stride, nBlocks, wp, contrast, alpha, Gp, gpp, yp);
   // Padded voxels have y = 0 exactly; remove their g'(0) (α for log-cosh, 1 for exp, 0 for cube).
@@ -101,23 +107,29 @@ export function wasmIcaChunk(
   }
 }
 
-/** unmixChunk of kernels.ts on WebAssembly (float32, W rounded to float32). */
+/** unmixChunk of kernels.ts on WebAssembly (float32, W rounded to float32, fused multiply-adds). */
 export function wasmUnmixChunk(ex: KernelExports, z: Float32Array, k: number, V: number, w: Float64Array, v0: number, v1: number, s: Float32Array): void {
   const NB = 128;
   const n = v1 - v0;
   const nBlocks = Math.ceil(n / NB);
   const stride = nBlocks * NB;
   const kp = (k + 3) & ~3;
-  const zp = 65536, wp = zp + kp * stride * 4, sp = wp + kp * kp * 4;
-  const { f32 } = wasmMemory(ex, 2 * kp * stride * 4 + kp * kp * 4);
+  const zp = 65536, wp = zp + kp * stride * 4, sp = wp + kp * kp * 16;
+  const { f32 } = wasmMemory(ex, 2 * kp * stride * 4 + kp * kp * 16);
   const zo = zp / 4, wo = wp / 4, so = sp / 4;
   for (let i = 0; i < k; i++) {
     f32.set(z.subarray(i * V + v0, i * V + v1), zo + i * stride);
     f32.fill(0, zo + i * stride + n, zo + (i + 1) * stride);
   }
   f32.fill(0, zo + k * stride, zo + kp * stride);
-  f32.fill(0, wo, wo + kp * kp);
-  for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) f32[wo + i * kp + j] = w[i * k + j]!;
+  // W pre-broadcast: entry (i, j) as 4 equal float32 at wo + 4·(i·kp + j).
+  f32.fill(0, wo, wo + 4 * kp * kp);
+  for (let i = 0; i < k; i++) {
+    for (let j = 0; j < k; j++) {
+      const v = w[i * k + j]!, o = wo + 4 * (i * kp + j);
+      f32[o] = v; f32[o + 1] = v; f32[o + 2] = v; f32[o + 3] = v;
+    }
+  }
   ex.unmix(zp, kp, stride, nBlocks, wp, sp);
   for (let i = 0; i < k; i++) s.set(f32.subarray(so + i * stride, so + i * stride + n), i * V + v0);
 }

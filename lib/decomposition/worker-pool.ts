@@ -7,6 +7,7 @@
 // (partial sums are added in range order), so results are bit-identical on 1, 2 … 16 threads and
 // when workers cannot start and the ranges run on the calling thread.
 import { readFileSync } from 'node:fs';
+import { setFlagsFromString } from 'node:v8';
 import { Worker } from 'node:worker_threads';
 import { availableParallelism } from 'node:os';
 import { gramChunk, icaChunk, projectChunk, unmixChunk } from './kernels';
@@ -26,8 +27,16 @@ let wasmModule: WebAssembly.Module | null | undefined;
 /** The compiled kernels.wasm (once per process); null when it cannot be read or compiled. */
 export function kernelModule(): WebAssembly.Module | null {
   if (wasmModule === undefined) {
+    wasmModule = null;
     try {
-      wasmModule = new WebAssembly.Module(readFileSync(new URL('./wasm/kernels.wasm', import.meta.url)));
+      const bytes = readFileSync(new URL('./wasm/kernels.wasm', import.meta.url));
+      try {
+        wasmModule = new WebAssembly.Module(bytes);
+      } catch {
+        // Node 20's V8 has relaxed SIMD (fused multiply-add) behind a flag; Node ≥ 22 ships it.
+        setFlagsFromString('--experimental-wasm-relaxed-simd');
+        wasmModule = new WebAssembly.Module(bytes);
+      }
     } catch {
       wasmModule = null;
     }

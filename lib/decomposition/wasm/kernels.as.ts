@@ -3,6 +3,9 @@
 // Every function works on raw pointers into this module's own linear memory; the JavaScript side
 // (wasm-kernels.ts) copies a voxel range in, calls one function, and copies the result out. No
 // allocation, no runtime: memory from byte 65536 upwards belongs to the caller.
+// Multiply-adds use relaxed SIMD (relaxed_madd: one fused multiply-add where the CPU has FMA, as
+// x86-64 with FMA3 does; mul + add elsewhere), so the last bits of a result can differ between
+// CPU kinds but never between runs or thread counts on one machine.
 // Layouts: row-major, rows padded by the caller (voxel rows to a multiple of NB = 128, row counts
 // to a multiple of 4) with zeros, so no function needs a remainder loop.
 
@@ -32,10 +35,10 @@ export function gram(x: usize, Tp: i32, n: i32, out: usize): void {
           const o = <usize>v << 3;
           const x0 = v128.load(ra + o), x1 = v128.load(ra + rs + o), x2 = v128.load(ra + 2 * rs + o), x3 = v128.load(ra + 3 * rs + o);
           const y0 = v128.load(rb + o), y1 = v128.load(rb + rs + o);
-          s00 = f64x2.add(s00, f64x2.mul(x0, y0)); s01 = f64x2.add(s01, f64x2.mul(x0, y1));
-          s10 = f64x2.add(s10, f64x2.mul(x1, y0)); s11 = f64x2.add(s11, f64x2.mul(x1, y1));
-          s20 = f64x2.add(s20, f64x2.mul(x2, y0)); s21 = f64x2.add(s21, f64x2.mul(x2, y1));
-          s30 = f64x2.add(s30, f64x2.mul(x3, y0)); s31 = f64x2.add(s31, f64x2.mul(x3, y1));
+          s00 = f64x2.relaxed_madd(x0, y0, s00); s01 = f64x2.relaxed_madd(x0, y1, s01);
+          s10 = f64x2.relaxed_madd(x1, y0, s10); s11 = f64x2.relaxed_madd(x1, y1, s11);
+          s20 = f64x2.relaxed_madd(x2, y0, s20); s21 = f64x2.relaxed_madd(x2, y1, s21);
+          s30 = f64x2.relaxed_madd(x3, y0, s30); s31 = f64x2.relaxed_madd(x3, y1, s31);
         }
         let o = out + ((<usize>a * Tp + b) << 3);
         const os = <usize>Tp << 3;
@@ -73,10 +76,10 @@ export function project(x: usize, T: i32, n: i32, p: usize, c: usize, kp: i32, z
         const to = <usize>t << 3;
         const q0 = f64x2.splat(load<f64>(p0 + to)), q1 = f64x2.splat(load<f64>(p0 + ps + to));
         const q2 = f64x2.splat(load<f64>(p0 + 2 * ps + to)), q3 = f64x2.splat(load<f64>(p0 + 3 * ps + to));
-        a00 = f64x2.add(a00, f64x2.mul(q0, x0)); a01 = f64x2.add(a01, f64x2.mul(q0, x1));
-        a10 = f64x2.add(a10, f64x2.mul(q1, x0)); a11 = f64x2.add(a11, f64x2.mul(q1, x1));
-        a20 = f64x2.add(a20, f64x2.mul(q2, x0)); a21 = f64x2.add(a21, f64x2.mul(q2, x1));
-        a30 = f64x2.add(a30, f64x2.mul(q3, x0)); a31 = f64x2.add(a31, f64x2.mul(q3, x1));
+        a00 = f64x2.relaxed_madd(q0, x0, a00); a01 = f64x2.relaxed_madd(q0, x1, a01);
+        a10 = f64x2.relaxed_madd(q1, x0, a10); a11 = f64x2.relaxed_madd(q1, x1, a11);
+        a20 = f64x2.relaxed_madd(q2, x0, a20); a21 = f64x2.relaxed_madd(q2, x1, a21);
+        a30 = f64x2.relaxed_madd(q3, x0, a30); a31 = f64x2.relaxed_madd(q3, x1, a31);
         xo += rs;
       }
       const zo = z + ((<usize>i * n + v) << 3);
@@ -90,15 +93,16 @@ export function project(x: usize, T: i32, n: i32, p: usize, c: usize, kp: i32, z
 
 /**
  * y = W·z for one block of NB voxels, float32: y[i, b] = Σ_j w[i, j]·z[j, off + b].
- * z: f32 kp × stride; w: f32 kp × kp; y: f32 kp × ys (row stride ys, written at column yo).
+ * z: f32 kp × stride; w: kp × kp entries, each a v128 of 4 equal f32 (pre-broadcast by the caller);
+ * y: f32 kp × ys (row stride ys, written at column yo).
  * 4 rows × 8 voxels register tile.
  */
 // @ts-ignore: decorator
 @inline function mulBlock(z: usize, stride: i32, off: i32, w: usize, kp: i32, y: usize, ys: i32, yo: i32): void {
   const zs = <usize>stride << 2;
-  const ws = <usize>kp << 2;
+  const ws = <usize>kp << 4;
   for (let i = 0; i < kp; i += 4) {
-    const w0 = w + ((<usize>i * kp) << 2);
+    const w0 = w + ((<usize>i * kp) << 4);
     for (let b = 0; b < NB; b += 8) {
       let a00 = f32x4.splat(0), a01 = f32x4.splat(0), a10 = f32x4.splat(0), a11 = f32x4.splat(0);
       let a20 = f32x4.splat(0), a21 = f32x4.splat(0), a30 = f32x4.splat(0), a31 = f32x4.splat(0);
@@ -106,14 +110,14 @@ export function project(x: usize, T: i32, n: i32, p: usize, c: usize, kp: i32, z
       let wo = w0;
       for (let j = 0; j < kp; j++) {
         const z0 = v128.load(zo), z1 = v128.load(zo, 16);
-        const q0 = f32x4.splat(load<f32>(wo)), q1 = f32x4.splat(load<f32>(wo + ws));
-        const q2 = f32x4.splat(load<f32>(wo + 2 * ws)), q3 = f32x4.splat(load<f32>(wo + 3 * ws));
-        a00 = f32x4.add(a00, f32x4.mul(q0, z0)); a01 = f32x4.add(a01, f32x4.mul(q0, z1));
-        a10 = f32x4.add(a10, f32x4.mul(q1, z0)); a11 = f32x4.add(a11, f32x4.mul(q1, z1));
-        a20 = f32x4.add(a20, f32x4.mul(q2, z0)); a21 = f32x4.add(a21, f32x4.mul(q2, z1));
-        a30 = f32x4.add(a30, f32x4.mul(q3, z0)); a31 = f32x4.add(a31, f32x4.mul(q3, z1));
+        const q0 = v128.load(wo), q1 = v128.load(wo + ws);
+        const q2 = v128.load(wo + 2 * ws), q3 = v128.load(wo + 3 * ws);
+        a00 = f32x4.relaxed_madd(q0, z0, a00); a01 = f32x4.relaxed_madd(q0, z1, a01);
+        a10 = f32x4.relaxed_madd(q1, z0, a10); a11 = f32x4.relaxed_madd(q1, z1, a11);
+        a20 = f32x4.relaxed_madd(q2, z0, a20); a21 = f32x4.relaxed_madd(q2, z1, a21);
+        a30 = f32x4.relaxed_madd(q3, z0, a30); a31 = f32x4.relaxed_madd(q3, z1, a31);
         zo += zs;
-        wo += 4;
+        wo += 16;
       }
       const yrs = <usize>ys << 2;
       const o = y + ((<usize>i * ys + yo + b) << 2);
@@ -162,7 +166,7 @@ export function tanhInPlace(p: usize, n: i32): void {
  * symmetric approach): with y = W·z, G[i, j] += Σ_v g(y_i[v])·z_j[v] and gp[i] += Σ_v g'(y_i[v]).
  * contrast 0 = log-cosh (g = tanh(αu), g' = α(1 − g²), fast tanh4), 1 = exp (g = u·e^{−u²/2},
  * g' = (1 − u²)e^{−u²/2}), 2 = cube (g = u³, g' = 3u²).
- * z: f32 kp × stride (stride = nBlocks·NB, zero-padded); w: f32 kp × kp; G: f64 kp × kp; gp: f64 kp;
+ * z: f32 kp × stride (stride = nBlocks·NB, zero-padded); w: pre-broadcast kp × kp (see mulBlock); G: f64 kp × kp; gp: f64 kp;
  * y: f32 scratch kp × NB. Sums over a block's NB voxels are float32 (per lane), added to G and gp
  * in float64. Padded voxels (y = 0) add g'(0) to gp; the caller subtracts it.
  */
@@ -200,7 +204,7 @@ export function ica(z: usize, kp: i32, stride: i32, nBlocks: i32, w: usize, cont
           const u = v128.load(yo + (<usize>b << 2));
           const u2 = f32x4.mul(u, u);
           v128.store(yo + (<usize>b << 2), f32x4.mul(u2, u));
-          sp = f32x4.add(sp, f32x4.mul(three, u2));
+          sp = f32x4.relaxed_madd(three, u2, sp);
         }
       }
       const go = gp + (<usize>i << 3);
@@ -218,10 +222,10 @@ export function ica(z: usize, kp: i32, stride: i32, nBlocks: i32, w: usize, cont
           const o = <usize>b << 2;
           const g0 = v128.load(y0p + o), g1 = v128.load(y1p + o);
           const z0 = v128.load(z0p + o), z1 = v128.load(z0p + zs + o), z2 = v128.load(z0p + 2 * zs + o), z3 = v128.load(z0p + 3 * zs + o);
-          s00 = f32x4.add(s00, f32x4.mul(g0, z0)); s01 = f32x4.add(s01, f32x4.mul(g0, z1));
-          s02 = f32x4.add(s02, f32x4.mul(g0, z2)); s03 = f32x4.add(s03, f32x4.mul(g0, z3));
-          s10 = f32x4.add(s10, f32x4.mul(g1, z0)); s11 = f32x4.add(s11, f32x4.mul(g1, z1));
-          s12 = f32x4.add(s12, f32x4.mul(g1, z2)); s13 = f32x4.add(s13, f32x4.mul(g1, z3));
+          s00 = f32x4.relaxed_madd(g0, z0, s00); s01 = f32x4.relaxed_madd(g0, z1, s01);
+          s02 = f32x4.relaxed_madd(g0, z2, s02); s03 = f32x4.relaxed_madd(g0, z3, s03);
+          s10 = f32x4.relaxed_madd(g1, z0, s10); s11 = f32x4.relaxed_madd(g1, z1, s11);
+          s12 = f32x4.relaxed_madd(g1, z2, s12); s13 = f32x4.relaxed_madd(g1, z3, s13);
         }
         const g0o = G + ((<usize>i * kp + j) << 3);
         const g1o = g0o + ((<usize>kp) << 3);
@@ -239,7 +243,7 @@ export function ica(z: usize, kp: i32, stride: i32, nBlocks: i32, w: usize, cont
   return (<f64>f32x4.extract_lane(v, 0) + <f64>f32x4.extract_lane(v, 1)) + (<f64>f32x4.extract_lane(v, 2) + <f64>f32x4.extract_lane(v, 3));
 }
 
-/** Spatial maps s = W·z over nBlocks blocks of NB voxels, float32. z, s: f32 kp × stride; w: f32 kp × kp. */
+/** Spatial maps s = W·z over nBlocks blocks of NB voxels, float32. z, s: f32 kp × stride; w pre-broadcast (see mulBlock). */
 export function unmix(z: usize, kp: i32, stride: i32, nBlocks: i32, w: usize, s: usize): void {
   for (let blk = 0; blk < nBlocks; blk++) mulBlock(z, stride, blk * NB, w, kp, s, stride, blk * NB);
 }
