@@ -133,6 +133,8 @@ export async function fastIca(z: Float32Array, k: number, V: number, pool: Kerne
   return last!;
 }
 
+let iterationRuns = 0;
+
 /** Fixed-point iterations from w until convergence or maxIter (see fastIca). */
 async function iterateFastIca(
   z: Float32Array, k: number, V: number, pool: KernelPool, w0: Float64Array, code: number, alpha: number, tol: number, maxIter: number,
@@ -140,6 +142,8 @@ async function iterateFastIca(
   const parts = pool.partition(V);
   const Gs = parts.map(() => sharedFloat64(k * k));
   const gps = parts.map(() => sharedFloat64(k));
+  // z is constant during these iterations: the WebAssembly kernels keep their copy of each range.
+  const cacheKey = `fastica-${++iterationRuns}`;
   let w = w0;
   let it = 0;
   while (it < maxIter) {
@@ -148,7 +152,7 @@ async function iterateFastIca(
     for (const g of gps) g.fill(0);
     const wShared = sharedFloat64(k * k);
     wShared.set(w);
-    await pool.run('icaChunk', parts, (r, i) => [z, k, V, wShared, code, alpha, r[0], r[1], Gs[i], gps[i]]);
+    await pool.run('icaChunk', parts, (r, i) => [z, k, V, wShared, code, alpha, r[0], r[1], Gs[i], gps[i], cacheKey]);
     const w1 = new Float64Array(k * k);
     for (let q = 0; q < parts.length; q++) {
       const G = Gs[q]!;

@@ -27,8 +27,26 @@ export function wasmMemory(ex: KernelExports, bytes: number): { f32: Float32Arra
   return { f32: new Float32Array(ex.memory.buffer), f64: new Float64Array(ex.memory.buffer) };
 }
 
+/**
+ * Per-instance cache of the z ranges wasmIcaChunk copied in, for one cache key (one run of FastICA
+ * iterations, during which z does not change): slot offsets by range start. Any other kernel call
+ * clears it (it reuses the memory). State lives on the function itself (self-contained for workers).
+ */
+export function wasmCache(ex: KernelExports): { key: string | null; top: number; slots: Map<number, number> } {
+  type State = { key: string | null; top: number; slots: Map<number, number> };
+  const self = wasmCache as unknown as { states?: WeakMap<object, State> };
+  self.states ??= new WeakMap();
+  let st = self.states.get(ex);
+  if (!st) {
+    st = { key: null, top: 0, slots: new Map() };
+    self.states.set(ex, st);
+  }
+  return st;
+}
+
 /** gramChunk of kernels.ts on WebAssembly: float64 products and sums (x promoted on copy-in). */
 export function wasmGramChunk(ex: KernelExports, x: Float32Array, T: number, V: number, v0: number, v1: number, out: Float64Array): void {
+  wasmCache(ex).key = null;
   const n = v1 - v0;
   const ne = n + (n & 1);
   const Tp = (T + 3) & ~3;
@@ -50,6 +68,7 @@ export function wasmProjectChunk(
   ex: KernelExports, x: Float32Array, T: number, V: number, p: Float64Array, c: Float64Array, k: number,
   v0: number, v1: number, z: Float32Array,
 ): void {
+  wasmCache(ex).key = null;
   const n = v1 - v0;
   const ne = (n + 3) & ~3;
   const kp = (k + 3) & ~3;
@@ -70,24 +89,51 @@ export function wasmProjectChunk(
 /**
  * icaChunk of kernels.ts on WebAssembly: float32 products and per-block sums, float64 across blocks,
  * fast tanh (kernels.as.ts tanh4) for log-cosh. Same accumulation contract (G, gp not cleared).
+ * cacheKey (optional): the caller promises z is unchanged for every call with this key, so the
+ * range copied in by the first call is reused (wasmCache) — FastICA's iterations pass one key.
  */
 export function wasmIcaChunk(
   ex: KernelExports, z: Float32Array, k: number, V: number, w: Float64Array, contrast: number, alpha: number,
-  v0: number, v1: number, G: Float64Array, gp: Float64Array,
+  v0: number, v1: number, G: Float64Array, gp: Float64Array, cacheKey?: string,
 ): void {
   const NB = 128;
   const n = v1 - v0;
   const nBlocks = Math.ceil(n / NB);
   const stride = nBlocks * NB;
   const kp = (k + 3) & ~3;
-  const zp = 65536, wp = zp + kp * stride * 4, Gp = wp + kp * kp * 16, gpp = Gp + kp * kp * 8, yp = gpp + kp * 8;
-  const { f32, f64 } = wasmMemory(ex, kp * stride * 4 + kp * kp * 16 + kp * kp * 8 + kp * 8 + kp * NB * 4);
-  const zo = zp / 4, wo = wp / 4, Go = Gp / 8, gpo = gpp / 8;
-  for (let i = 0; i < k; i++) {
-    f32.set(z.subarray(i * V + v0, i * V + v1), zo + i * stride);
-    f32.fill(0, zo + i * stride + n, zo + (i + 1) * stride);
+  // Scratch (W, G, gp, y) first, then the z range(s).
+  const wp = 65536, Gp = wp + kp * kp * 16, gpp = Gp + kp * kp * 8, yp = gpp + kp * 8, scratchEnd = yp + kp * NB * 4;
+  const zBytes = kp * stride * 4;
+  const st = wasmCache(ex);
+  let zp = scratchEnd;
+  let copy = true;
+  if (cacheKey) {
+    if (st.key !== cacheKey) {
+      st.key = cacheKey;
+      st.slots.clear();
+      st.top = scratchEnd;
+    }
+    const hit = st.slots.get(v0);
+    if (hit !== undefined) {
+      zp = hit;
+      copy = false;
+    } else {
+      zp = st.top;
+      st.top += zBytes;
+      st.slots.set(v0, zp);
+    }
+  } else {
+    st.key = null;
   }
-  f32.fill(0, zo + k * stride, zo + kp * stride);
+  const { f32, f64 } = wasmMemory(ex, zp + zBytes - 65536);
+  const zo = zp / 4, wo = wp / 4, Go = Gp / 8, gpo = gpp / 8;
+  if (copy) {
+    for (let i = 0; i < k; i++) {
+      f32.set(z.subarray(i * V + v0, i * V + v1), zo + i * stride);
+      f32.fill(0, zo + i * stride + n, zo + (i + 1) * stride);
+    }
+    f32.fill(0, zo + k * stride, zo + kp * stride);
+  }
   // W pre-broadcast: entry (i, j) as 4 equal float32 at wo + 4·(i·kp + j).
   f32.fill(0, wo, wo + 4 * kp * kp);
   for (let i = 0; i < k; i++) {
@@ -109,6 +155,7 @@ export function wasmIcaChunk(
 
 /** unmixChunk of kernels.ts on WebAssembly (float32, W rounded to float32, fused multiply-adds). */
 export function wasmUnmixChunk(ex: KernelExports, z: Float32Array, k: number, V: number, w: Float64Array, v0: number, v1: number, s: Float32Array): void {
+  wasmCache(ex).key = null;
   const NB = 128;
   const n = v1 - v0;
   const nBlocks = Math.ceil(n / NB);

@@ -11,7 +11,7 @@ import { setFlagsFromString } from 'node:v8';
 import { Worker } from 'node:worker_threads';
 import { availableParallelism } from 'node:os';
 import { gramChunk, icaChunk, projectChunk, unmixChunk } from './kernels';
-import { wasmGramChunk, wasmIcaChunk, wasmMemory, wasmProjectChunk, wasmUnmixChunk, type KernelExports } from './wasm-kernels';
+import { wasmCache, wasmGramChunk, wasmIcaChunk, wasmMemory, wasmProjectChunk, wasmUnmixChunk, type KernelExports } from './wasm-kernels';
 import { DecompositionError } from './errors';
 
 const KERNELS = { gramChunk, icaChunk, projectChunk, unmixChunk } as const;
@@ -65,7 +65,7 @@ export function kernelBackend(): KernelBackend {
 }
 
 function workerSource(backend: KernelBackend): string {
-  const set: Record<string, Function> = backend === 'wasm' ? { ...WASM_KERNELS, wasmMemory } : { ...KERNELS };
+  const set: Record<string, Function> = backend === 'wasm' ? { ...WASM_KERNELS, wasmMemory, wasmCache } : { ...KERNELS };
   const defs = Object.entries(set)
     .map(([name, fn]) => `const ${name} = (${fn.toString()});`)
     .join('\n');

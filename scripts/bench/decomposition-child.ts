@@ -69,7 +69,7 @@ if (mode === 'gen' && a && b) {
     lap('pca');
     const wh = await whiten(x, T, V, pca.vectors, pca.eigenvalues, cov.spatialMean, k, pool);
     lap('whitening');
-    const ica = await fastIca(wh.z, k, V, pool, { contrast: 'logcosh', tol: 1e-4, maxIter: 200, seed: 1 });
+    const ica = await fastIca(wh.z, k, V, pool, { contrast: 'logcosh', tol: 1e-4, maxIter: 200, seed: 1, attempts: 1 });
     lap('ica');
     const s = sharedFloat32(k * V);
     await pool.run('unmixChunk', pool.partition(V), (r) => [wh.z, k, V, ica.w, r[0], r[1], s]);

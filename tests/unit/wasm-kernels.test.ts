@@ -89,6 +89,24 @@ describe('WebAssembly kernels', () => {
     }
   });
 
+  it('a cached FastICA pass (cache key) equals an uncached one; a new key or another kernel call re-copies z', () => {
+    const z = randomF32(k * V, 9);
+    const w = symmetricDecorrelation(Float64Array.from(randomF32(k * k, 10)), k);
+    const pass = (zz: Float32Array, key?: string) => {
+      const G = new Float64Array(k * k), gp = new Float64Array(k);
+      wasmIcaChunk(ex, zz, k, V, w, 0, 1, v0, v1, G, gp, key);
+      return [...G, ...gp];
+    };
+    const plain = pass(z);
+    expect(pass(z, 'a')).toEqual(plain); // first call with key 'a' copies
+    expect(pass(z, 'a')).toEqual(plain); // second reuses the copy
+    const z2 = randomF32(k * V, 19);
+    expect(pass(z2, 'b')).toEqual(pass(z2)); // new key: fresh copy of the new data
+    pass(z, 'c');
+    wasmUnmixChunk(ex, z2, k, V, w, v0, v1, new Float32Array(k * V)); // clobbers the memory
+    expect(pass(z, 'c')).toEqual(plain); // … and cleared the cache, so z is copied again
+  });
+
   it('unmix matches the JS reference within float32 tolerance', () => {
     const z = randomF32(k * V, 7);
     const w = symmetricDecorrelation(Float64Array.from(randomF32(k * k, 8)), k);
