@@ -44,20 +44,23 @@ export function wasmCache(ex: KernelExports): { key: string | null; top: number;
   return st;
 }
 
-/** gramChunk of kernels.ts on WebAssembly: float64 products and sums (x promoted on copy-in). */
+/**
+ * gramChunk of kernels.ts on WebAssembly: float32 products summed per lane over 512-voxel blocks,
+ * then in float64 (relative error ~1e-6 of Σ|x_a x_b|; the reference is float64 throughout).
+ */
 export function wasmGramChunk(ex: KernelExports, x: Float32Array, T: number, V: number, v0: number, v1: number, out: Float64Array): void {
   wasmCache(ex).key = null;
   const n = v1 - v0;
-  const ne = n + (n & 1);
+  const ne = (n + 3) & ~3;
   const Tp = (T + 3) & ~3;
-  const xp = 65536, op = xp + Tp * ne * 8;
-  const { f64 } = wasmMemory(ex, Tp * ne * 8 + Tp * Tp * 8);
-  const xo = xp / 8, oo = op / 8;
+  const xp = 65536, op = xp + Tp * ne * 4;
+  const { f32, f64 } = wasmMemory(ex, Tp * ne * 4 + Tp * Tp * 8);
+  const xo = xp / 4, oo = op / 8;
   for (let t = 0; t < T; t++) {
-    f64.set(x.subarray(t * V + v0, t * V + v1), xo + t * ne);
-    if (ne > n) f64[xo + t * ne + n] = 0;
+    f32.set(x.subarray(t * V + v0, t * V + v1), xo + t * ne);
+    f32.fill(0, xo + t * ne + n, xo + (t + 1) * ne);
   }
-  f64.fill(0, xo + T * ne, xo + Tp * ne);
+  f32.fill(0, xo + T * ne, xo + Tp * ne);
   f64.fill(0, oo, oo + Tp * Tp);
   ex.gram(xp, Tp, ne, op);
   for (let a = 0; a < T; a++) for (let b = a; b < T; b++) out[a * T + b] += f64[oo + a * Tp + b]!;
@@ -96,7 +99,7 @@ export function wasmIcaChunk(
   ex: KernelExports, z: Float32Array, k: number, V: number, w: Float64Array, contrast: number, alpha: number,
   v0: number, v1: number, G: Float64Array, gp: Float64Array, cacheKey?: string,
 ): void {
-  const NB = 128;
+  const NB = 64;
   const n = v1 - v0;
   const nBlocks = Math.ceil(n / NB);
   const stride = nBlocks * NB;
@@ -156,7 +159,7 @@ export function wasmIcaChunk(
 /** unmixChunk of kernels.ts on WebAssembly (float32, W rounded to float32, fused multiply-adds). */
 export function wasmUnmixChunk(ex: KernelExports, z: Float32Array, k: number, V: number, w: Float64Array, v0: number, v1: number, s: Float32Array): void {
   wasmCache(ex).key = null;
-  const NB = 128;
+  const NB = 64;
   const n = v1 - v0;
   const nBlocks = Math.ceil(n / NB);
   const stride = nBlocks * NB;

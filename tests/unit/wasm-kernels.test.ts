@@ -50,17 +50,18 @@ describe('WebAssembly kernels', () => {
     expect(Array.from(f32.subarray(65536 / 4, 65536 / 4 + 4))).toEqual([1, -1, 0, Math.fround(Math.fround(1e-6) * Math.fround(4.89352455891786e-3) / Math.fround(4.89352518554385e-3))].map((v) => Math.fround(v)));
   });
 
-  // Odd sizes exercise the zero padding (T, k not multiples of 4; voxel ranges not multiples of 128).
+  // Odd sizes exercise the zero padding (T, k not multiples of 4; voxel ranges not multiples of 64).
   const T = 37, V = 1001, k = 11, v0 = 13, v1 = 990;
 
-  it('gram (float64) matches the JS reference to 1e-12 relative', () => {
+  it('gram (float32 products, float64 across 512-voxel blocks) matches the float64 JS reference to 1e-6 relative', () => {
     const x = randomF32(T * V, 1);
     const a = new Float64Array(T * T), b = new Float64Array(T * T);
     gramChunk(x, T, V, v0, v1, a);
     wasmGramChunk(ex, x, T, V, v0, v1, b);
     let worst = 0;
     for (let i = 0; i < T; i++) for (let j = i; j < T; j++) worst = Math.max(worst, Math.abs(a[i * T + j]! - b[i * T + j]!));
-    expect(worst / maxAbs(a)).toBeLessThan(1e-12);
+    // Tolerance: float32 rounding (6e-8) × √(128 terms a lane) ≈ 7e-7; an index error would be ~1.
+    expect(worst / maxAbs(a)).toBeLessThan(1e-6);
   });
 
   it('projection (float64, float32 out) matches the JS reference to float32 rounding', () => {

@@ -6,55 +6,52 @@
 // Multiply-adds use relaxed SIMD (relaxed_madd: one fused multiply-add where the CPU has FMA, as
 // x86-64 with FMA3 does; mul + add elsewhere), so the last bits of a result can differ between
 // CPU kinds but never between runs or thread counts on one machine.
-// Layouts: row-major, rows padded by the caller (voxel rows to a multiple of NB = 128, row counts
+// Layouts: row-major, rows padded by the caller (voxel rows to a multiple of NB = 64, row counts
 // to a multiple of 4) with zeros, so no function needs a remainder loop.
 
 // @ts-nocheck — AssemblyScript (f32, f64, v128 and the SIMD built-ins are not TypeScript).
 
-const NB: i32 = 128;
+const NB: i32 = 64;
 
 /**
- * Gram matrix of a block, float64: out[a*Tp + b] += Σ_v x[a,v]·x[b,v] for a ≤ b (entries below the
- * diagonal inside 4 × 2 tiles are scratch). x: f64 Tp × n (row stride n, n even); out: f64 Tp × Tp.
- * Tp a multiple of 4. Voxel blocks of 256 for cache reuse; 4 × 2 register tile of f64x2 sums.
+ * Gram matrix of a block: out[a*Tp + b] += Σ_v x[a,v]·x[b,v] for a ≤ b (entries below the diagonal
+ * inside 4 × 2 tiles are scratch). x: f32 Tp × n (row stride n, n a multiple of 4, zero-padded);
+ * out: f64 Tp × Tp. Tp a multiple of 4. Float32 products and per-lane sums over voxel blocks of
+ * VB = 512 (128 terms a lane), added to out in float64; 4 × 2 register tile of f32x4 sums.
  */
 export function gram(x: usize, Tp: i32, n: i32, out: usize): void {
-  const VB = 256;
+  const VB = 512;
+  const rs = <usize>n << 2;
+  const os = <usize>Tp << 3;
   for (let vb = 0; vb < n; vb += VB) {
     const ve = min(vb + VB, n);
     for (let a = 0; a < Tp; a += 4) {
-      const ra = x + ((<usize>a * n) << 3);
-      const rs = <usize>n << 3;
+      const ra = x + ((<usize>a * n) << 2);
       for (let b = a; b < Tp; b += 2) {
-        const rb = x + ((<usize>b * n) << 3);
-        let s00 = f64x2.splat(0), s01 = f64x2.splat(0);
-        let s10 = f64x2.splat(0), s11 = f64x2.splat(0);
-        let s20 = f64x2.splat(0), s21 = f64x2.splat(0);
-        let s30 = f64x2.splat(0), s31 = f64x2.splat(0);
-        for (let v = vb; v < ve; v += 2) {
-          const o = <usize>v << 3;
+        const rb = x + ((<usize>b * n) << 2);
+        let s00 = f32x4.splat(0), s01 = f32x4.splat(0);
+        let s10 = f32x4.splat(0), s11 = f32x4.splat(0);
+        let s20 = f32x4.splat(0), s21 = f32x4.splat(0);
+        let s30 = f32x4.splat(0), s31 = f32x4.splat(0);
+        for (let v = vb; v < ve; v += 4) {
+          const o = <usize>v << 2;
           const x0 = v128.load(ra + o), x1 = v128.load(ra + rs + o), x2 = v128.load(ra + 2 * rs + o), x3 = v128.load(ra + 3 * rs + o);
           const y0 = v128.load(rb + o), y1 = v128.load(rb + rs + o);
-          s00 = f64x2.relaxed_madd(x0, y0, s00); s01 = f64x2.relaxed_madd(x0, y1, s01);
-          s10 = f64x2.relaxed_madd(x1, y0, s10); s11 = f64x2.relaxed_madd(x1, y1, s11);
-          s20 = f64x2.relaxed_madd(x2, y0, s20); s21 = f64x2.relaxed_madd(x2, y1, s21);
-          s30 = f64x2.relaxed_madd(x3, y0, s30); s31 = f64x2.relaxed_madd(x3, y1, s31);
+          s00 = f32x4.relaxed_madd(x0, y0, s00); s01 = f32x4.relaxed_madd(x0, y1, s01);
+          s10 = f32x4.relaxed_madd(x1, y0, s10); s11 = f32x4.relaxed_madd(x1, y1, s11);
+          s20 = f32x4.relaxed_madd(x2, y0, s20); s21 = f32x4.relaxed_madd(x2, y1, s21);
+          s30 = f32x4.relaxed_madd(x3, y0, s30); s31 = f32x4.relaxed_madd(x3, y1, s31);
         }
         let o = out + ((<usize>a * Tp + b) << 3);
-        const os = <usize>Tp << 3;
-        store<f64>(o, load<f64>(o) + hsum2(s00)); store<f64>(o + 8, load<f64>(o + 8) + hsum2(s01)); o += os;
-        store<f64>(o, load<f64>(o) + hsum2(s10)); store<f64>(o + 8, load<f64>(o + 8) + hsum2(s11)); o += os;
-        store<f64>(o, load<f64>(o) + hsum2(s20)); store<f64>(o + 8, load<f64>(o + 8) + hsum2(s21)); o += os;
-        store<f64>(o, load<f64>(o) + hsum2(s30)); store<f64>(o + 8, load<f64>(o + 8) + hsum2(s31));
+        store<f64>(o, load<f64>(o) + hsum4(s00)); store<f64>(o + 8, load<f64>(o + 8) + hsum4(s01)); o += os;
+        store<f64>(o, load<f64>(o) + hsum4(s10)); store<f64>(o + 8, load<f64>(o + 8) + hsum4(s11)); o += os;
+        store<f64>(o, load<f64>(o) + hsum4(s20)); store<f64>(o + 8, load<f64>(o + 8) + hsum4(s21)); o += os;
+        store<f64>(o, load<f64>(o) + hsum4(s30)); store<f64>(o + 8, load<f64>(o + 8) + hsum4(s31));
       }
     }
   }
 }
 
-// @ts-ignore: decorator
-@inline function hsum2(v: v128): f64 {
-  return f64x2.extract_lane(v, 0) + f64x2.extract_lane(v, 1);
-}
 
 /**
  * Projection z[i, v] = Σ_t p[i*T + t]·x[t, v] − c[i], float64 throughout. x: f64 T × n (row stride
