@@ -78,7 +78,7 @@ export async function main(): Promise<void> {
     console.log(`phantom ${size}: ${m.dims.join('×')} int16 .nii.gz, ${m.voxelsInMask} voxels in the automatic mask, ` +
       `${gen.sources} true sources (generated in ${s(gen.generateSeconds)}); 2 threads each side; BENCH_REPEAT=${repeat}`);
     if (sk) {
-      const py = JSON.parse(execFileSync('/usr/bin/python3', ['-c', 'import json, threadpoolctl; print(json.dumps([i for i in threadpoolctl.threadpool_info() if i["user_api"] == "blas"]))'], { encoding: 'utf8', env: referenceEnv() }).trim() || '[]');
+      const py = JSON.parse(execFileSync('/usr/bin/python3', ['-c', 'import json, numpy, threadpoolctl; print(json.dumps([i for i in threadpoolctl.threadpool_info() if i["user_api"] == "blas"]))'], { encoding: 'utf8', env: referenceEnv() }).trim() || '[]');
       if (py.length) console.log(`reference BLAS (OPENBLAS_CORETYPE, OPENBLAS_L2_SIZE unset): ${py.map((i: Record<string, unknown>) => `${i.internal_api} ${i.version}, ${i.architecture} kernels, ${i.num_threads} threads`).join('; ')}`);
     } else {
       console.log('scikit-learn comparison skipped: /usr/bin/python3 with sklearn and nibabel not found (apt-get install python3-sklearn python3-nibabel python3-threadpoolctl)');
