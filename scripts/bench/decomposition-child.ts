@@ -69,8 +69,10 @@ if (mode === 'gen' && a && b) {
     lap('pca');
     const wh = await whiten(x, T, V, pca.vectors, pca.eigenvalues, cov.spatialMean, k, pool);
     lap('whitening');
+    const cpu0 = process.cpuUsage();
     const ica = await fastIca(wh.z, k, V, pool, { contrast: 'logcosh', tol: 1e-4, maxIter: 200, seed: 1, attempts: 1 });
     lap('ica');
+    const icaCpu = process.cpuUsage(cpu0);
     const s = sharedFloat32(k * V);
     await pool.run('unmixChunk', pool.partition(V), (r) => [wh.z, k, V, ica.w, r[0], r[1], s]);
     lap('unmix');
@@ -78,6 +80,7 @@ if (mode === 'gen' && a && b) {
       seconds: { ...sec, endToEnd: (performance.now() - t0) / 1000 }, k, V, T, iterations: ica.iterations,
       warmStartIterations: ica.warmStartIterations, warmStartVoxels: ica.warmStartVoxels, converged: ica.converged,
       attempts: ica.attempts, threads: pool.threads, backend: kernelBackend(), maxRssMb: rssMb(),
+      icaCpuSeconds: (icaCpu.user + icaCpu.system) / 1e6,
     });
   } finally {
     await pool.close();

@@ -90,7 +90,7 @@ export async function main(): Promise<void> {
       const o = ours.result;
       const stages = Object.entries(o.seconds as Record<string, number>).filter(([n]) => n !== 'endToEnd').map(([n, v]) => `${n} ${v.toFixed(2)}`).join(' · ');
       console.log(`  (a) one FastICA  ours          ${s(o.seconds.endToEnd).padStart(8)}  ${o.iterations} it, ${conv(o.converged)}, peak RSS ${mb(o.maxRssMb)}, kernels ${o.backend}, ${o.threads} threads  [${ours.load}]`);
-      console.log(`                    stages (s): ${stages}`);
+      console.log(`                    stages (s): ${stages}; FastICA CPU ${o.icaCpuSeconds.toFixed(1)} s over all threads`);
       let ref: number | null = null;
       if (sk) {
         const r = timed(repeat, (x) => x.total, () => JSON.parse(execFileSync('/usr/bin/python3', [sklearnScript, '--ica', file, maskFile, String(k)], { encoding: 'utf8', env: referenceEnv() })));
