@@ -53,7 +53,7 @@ export function kernelInstance(): KernelExports {
 
 /**
  * The kernel set a new KernelPool uses by default: QUORUM_KERNELS=js|wasm when set, else 'wasm'
- * when kernels.wasm loads, else 'js'.
+ * when kernels.wasm loads, else 'js' (with a process warning, once).
  */
 export function kernelBackend(): KernelBackend {
   const env = process.env.QUORUM_KERNELS;
@@ -61,8 +61,14 @@ export function kernelBackend(): KernelBackend {
   if (env !== undefined && env !== '' && env !== 'wasm') {
     throw new DecompositionError('bad_option', `QUORUM_KERNELS must be "wasm" or "js"; got "${env}".`);
   }
-  return kernelModule() ? 'wasm' : 'js';
+  if (kernelModule()) return 'wasm';
+  if (!warnedNoWasm) {
+    warnedNoWasm = true;
+    process.emitWarning('lib/decomposition/wasm/kernels.wasm could not be loaded; the decomposition runs the slower JavaScript kernels (run npm run build:kernels).');
+  }
+  return 'js';
 }
+let warnedNoWasm = false;
 
 function workerSource(backend: KernelBackend): string {
   const set: Record<string, Function> = backend === 'wasm' ? { ...WASM_KERNELS, wasmMemory, wasmCache } : { ...KERNELS };
