@@ -1,5 +1,5 @@
 // Spatial FastICA, symmetric approach, on whitened k × V data.
-import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
+import { symmetricEigen } from './eigen-symmetric';
 import { DecompositionError } from './errors';
 import { gaussianSource } from './random';
 import { KernelPool, sharedFloat32, sharedFloat64 } from './worker-pool';
@@ -43,37 +43,38 @@ export interface FastIcaResult {
 
 /**
  * Symmetric decorrelation W ← (W Wᵀ)^{−1/2} W (Hyvärinen & Oja 2000, Neural Networks 13:411,
- * eq. 45), via the eigen-decomposition of the k × k matrix W Wᵀ. w: row-major k × k.
+ * eq. 45), via the eigen-decomposition of the k × k matrix W Wᵀ (eigen-symmetric.ts). w: row-major k × k.
  */
 export function symmetricDecorrelation(w: Float64Array, k: number): Float64Array {
-  const m = new Matrix(k, k);
+  const m = new Float64Array(k * k);
   for (let i = 0; i < k; i++) {
     for (let j = i; j < k; j++) {
       let s = 0;
-      for (let l = 0; l < k; l++) s += w[i * k + l]! * w[j * k + l]!;
-      m.set(i, j, s);
-      m.set(j, i, s);
+      const oi = i * k, oj = j * k;
+      for (let l = 0; l < k; l++) s += w[oi + l]! * w[oj + l]!;
+      m[i * k + j] = s;
+      m[j * k + i] = s;
     }
   }
-  const evd = new EigenvalueDecomposition(m, { assumeSymmetric: true });
-  const d = evd.realEigenvalues;
-  const u = evd.eigenvectorMatrix;
-  // R = U diag(1/√d) Uᵀ
+  const { values, vectors } = symmetricEigen(m, k);
+  // R = U diag(1/√d) Uᵀ = Σ_l (u_l d_l^{−1/4})(u_l d_l^{−1/4})ᵀ; eigenvectors are rows of `vectors`.
   const r = new Float64Array(k * k);
-  for (let i = 0; i < k; i++) {
-    for (let j = i; j < k; j++) {
-      let s = 0;
-      for (let l = 0; l < k; l++) s += (u.get(i, l) * u.get(j, l)) / Math.sqrt(Math.max(d[l]!, 1e-300));
-      r[i * k + j] = s;
-      r[j * k + i] = s;
+  const u = new Float64Array(k);
+  for (let l = 0; l < k; l++) {
+    const sc = 1 / Math.sqrt(Math.sqrt(Math.max(values[l]!, 1e-300)));
+    for (let i = 0; i < k; i++) u[i] = vectors[l * k + i]! * sc;
+    for (let i = 0; i < k; i++) {
+      const ui = u[i]!, o = i * k;
+      for (let j = i; j < k; j++) r[o + j] += ui * u[j]!;
     }
   }
+  for (let i = 0; i < k; i++) for (let j = 0; j < i; j++) r[i * k + j] = r[j * k + i]!;
   const out = new Float64Array(k * k);
   for (let i = 0; i < k; i++) {
-    for (let j = 0; j < k; j++) {
-      let s = 0;
-      for (let l = 0; l < k; l++) s += r[i * k + l]! * w[l * k + j]!;
-      out[i * k + j] = s;
+    const o = i * k;
+    for (let l = 0; l < k; l++) {
+      const ril = r[o + l]!, ol = l * k;
+      for (let j = 0; j < k; j++) out[o + j] += ril * w[ol + j]!;
     }
   }
   return out;
@@ -132,6 +133,8 @@ export async function fastIca(z: Float32Array, k: number, V: number, pool: Kerne
   return last!;
 }
 
+let iterationRuns = 0;
+
 /** Fixed-point iterations from w until convergence or maxIter (see fastIca). */
 async function iterateFastIca(
   z: Float32Array, k: number, V: number, pool: KernelPool, w0: Float64Array, code: number, alpha: number, tol: number, maxIter: number,
@@ -139,6 +142,8 @@ async function iterateFastIca(
   const parts = pool.partition(V);
   const Gs = parts.map(() => sharedFloat64(k * k));
   const gps = parts.map(() => sharedFloat64(k));
+  // z is constant during these iterations: the WebAssembly kernels keep their copy of each range.
+  const cacheKey = `fastica-${++iterationRuns}`;
   let w = w0;
   let it = 0;
   while (it < maxIter) {
@@ -147,7 +152,7 @@ async function iterateFastIca(
     for (const g of gps) g.fill(0);
     const wShared = sharedFloat64(k * k);
     wShared.set(w);
-    await pool.run('icaChunk', parts, (r, i) => [z, k, V, wShared, code, alpha, r[0], r[1], Gs[i], gps[i]]);
+    await pool.run('icaChunk', parts, (r, i) => [z, k, V, wShared, code, alpha, r[0], r[1], Gs[i], gps[i], cacheKey]);
     const w1 = new Float64Array(k * k);
     for (let q = 0; q < parts.length; q++) {
       const G = Gs[q]!;

@@ -1,5 +1,5 @@
-// Eigen-decomposition of the small T × T temporal covariance (ml-matrix), sorted by eigenvalue.
-import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
+// Eigen-decomposition of the small T × T temporal covariance, sorted by eigenvalue.
+import { symmetricEigen } from './eigen-symmetric';
 
 export interface TemporalPca {
   /** Eigenvalues, descending, clipped at 0 (length T), in data units². */
@@ -10,22 +10,18 @@ export interface TemporalPca {
 }
 
 /**
- * Symmetric eigen-decomposition of a T × T covariance (row-major Float64Array) with ml-matrix's
- * EigenvalueDecomposition (tridiagonal QL, from the JAMA/EISPACK lineage); returns eigenvalues in
- * descending order and the matching eigenvectors as rows (T × T, row-major).
+ * Symmetric eigen-decomposition of a T × T covariance (row-major Float64Array) by Householder
+ * tridiagonalisation and implicit QL (eigen-symmetric.ts, the JAMA/EISPACK lineage); returns
+ * eigenvalues in descending order and the matching eigenvectors as rows (T × T, row-major).
  */
 export function temporalPca(cov: Float64Array, T: number): TemporalPca {
-  const rows: number[][] = [];
-  for (let a = 0; a < T; a++) rows.push(Array.from(cov.subarray(a * T, (a + 1) * T)));
-  const evd = new EigenvalueDecomposition(new Matrix(rows), { assumeSymmetric: true });
-  const values = evd.realEigenvalues;
-  const vecs = evd.eigenvectorMatrix;
-  const order = values.map((_, i) => i).sort((i, j) => values[j]! - values[i]!);
+  const { values, vectors: vecs } = symmetricEigen(cov, T);
+  const order = Array.from(values, (_, i) => i).sort((i, j) => values[j]! - values[i]!);
   const eigenvalues = new Float64Array(T);
   const vectors = new Float64Array(T * T);
   order.forEach((src, dst) => {
     eigenvalues[dst] = Math.max(0, values[src]!);
-    for (let t = 0; t < T; t++) vectors[dst * T + t] = vecs.get(t, src);
+    vectors.set(vecs.subarray(src * T, (src + 1) * T), dst * T);
   });
   return { eigenvalues, vectors, T };
 }
