@@ -37,7 +37,6 @@ export function FeaturePanel({ component, k, reproducibilityThreshold }: { compo
               <dd
                 className={`text-right font-mono text-xs tabular-nums ${key === 'reproducibility' && low ? 'font-semibold text-alarm' : undefinedValue ? 'text-ink-muted' : 'text-ink'}`}
                 data-testid={`feature-${key}-value`}
-                aria-label={undefinedValue ? `${hint.label}: not available` : undefined}
               >
                 {shown}
               </dd>
