@@ -5,7 +5,7 @@ import { useRouter } from 'next/navigation';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { studySchema, type StudyInput, type StudyValues } from '@/lib/studies/schema';
-import { CONSENSUS_NAMES, CONSENSUS_RULES, DIM_METHOD_NAMES, DIM_METHODS, NOISE_KIND_KEYS, NOISE_KIND_NAMES } from '@/lib/studies/labels';
+import { CONSENSUS_NAMES, CONSENSUS_RULES, DIM_METHOD_NAMES, DIM_METHODS, LOW_REPRODUCIBILITY_NAMES, LOW_REPRODUCIBILITY_POLICIES, NOISE_KIND_KEYS, NOISE_KIND_NAMES } from '@/lib/studies/labels';
 import { postJson } from '@/lib/api/client';
 import { Field } from '@/components/ui/field';
 import { Button } from '@/components/ui/button';
@@ -97,6 +97,21 @@ export function StudyForm({ initial, studyId }: { initial: StudyValues; studyId?
         ) : null}
         <Check label="Variance normalisation per voxel" {...register('varianceNorm')} />
         <Check label="Linear detrend" {...register('detrend')} />
+        <Field
+          label="Reproducibility threshold (0–1)"
+          type="number"
+          step="0.05"
+          min={0}
+          max={1}
+          {...register('reproducibilityThreshold', { valueAsNumber: true })}
+          error={errors.reproducibilityThreshold?.message}
+          hint="How closely a component must come back when the decomposition is re-run from other starting points (1 = identical)."
+        />
+        <Select label="Components below the threshold" error={errors.lowReproducibility?.message} {...register('lowReproducibility')}>
+          {LOW_REPRODUCIBILITY_POLICIES.map((p) => (
+            <option key={p} value={p}>{LOW_REPRODUCIBILITY_NAMES[p]}</option>
+          ))}
+        </Select>
       </fieldset>
 
       <Button type="submit" disabled={formState.isSubmitting} className="w-fit" data-testid="study-save">

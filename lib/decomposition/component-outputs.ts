@@ -1,6 +1,6 @@
 // Per-component outputs of a decomposition: power spectra, rater features, the JSON summary and
 // TSV tables (timecourses, spectra, features).
-import { computeComponentFeatures, type ComponentFeatures } from './features';
+import { brainEdge, computeComponentFeatures, type ComponentFeatures } from './features';
 import type { MotionParams } from './motion';
 import type { DecompositionResult } from './pipeline';
 import { powerSpectrum } from './spectrum';
@@ -36,6 +36,7 @@ export function componentFeatures(
   const m = motion;
   const V = r.voxelsInMask;
   const out: ComponentFeatures[] = [];
+  const edge = brainEdge(r.maskIndices, r.dims, { meanImage: r.meanImage });
   for (let c = 0; c < r.k; c++) {
     out.push(computeComponentFeatures({
       map: r.maps.subarray(c * V, (c + 1) * V),
@@ -45,6 +46,9 @@ export function componentFeatures(
       trSeconds: r.trSeconds,
       motion: m,
       spectrum: { frequencies: spectra.frequencies, power: spectra.power[c]! },
+      meanImage: r.meanImage,
+      edge,
+      reproducibility: r.reproducibility ? r.reproducibility[c]! : null,
     }));
   }
   return out;
@@ -74,6 +78,9 @@ export function decompositionSummary(r: DecompositionResult) {
     smoothnessFwhmVoxels: r.smoothness.fwhmVoxels.map(round),
     eigenvalues: Array.from(r.eigenvalues, round),
     explainedVariance: Array.from(r.explainedVariance, round),
+    /** Per component (0..1), null when the decomposition ran without restarts. */
+    reproducibility: r.reproducibility ? Array.from(r.reproducibility, round) : null,
+    warnings: r.warnings ?? [],
     pcaVarianceKept: round(r.pcaVarianceKept),
     iterations: r.iterations,
     warmStartIterations: r.warmStartIterations,

@@ -91,6 +91,10 @@ export interface DecompositionResult {
   threads: number;
   /** Wall-clock seconds per stage and 'total'. */
   seconds: Record<string, number>;
+  /** Cross-restart reproducibility per component (final order, 0..1); null when restarts are off. */
+  reproducibility: Float64Array | null;
+  /** Things the lead should know about this decomposition (e.g. k at the search bound). */
+  warnings: Array<{ code: string; message: string }>;
 }
 
 const MIN_TIMEPOINTS = 10;
@@ -260,6 +264,8 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
       varianceNormalised: varianceNorm,
       threads: pool.threads,
       seconds,
+      reproducibility: null,
+      warnings: [],
     };
   } finally {
     await pool.close();

@@ -24,8 +24,19 @@ export function defaultSegmentLength(t: number): number {
  * Electroacoustics 15:70), following the conventions of scipy.signal.welch: periodic Hann window
  * of length nperseg, 50 % overlap (noverlap = floor(nperseg/2)), nfft = nperseg, each segment's
  * mean removed (detrend 'constant'), scaling 'density' (1 / (fs·Σw²)), one-sided with the non-DC,
- * non-Nyquist bins doubled, segments averaged by their mean; trailing samples that do not fill a
- * segment are ignored (scipy's padded=False, boundary=None).
+ * non-Nyquist bins doubled, segments averaged by their mean.
+ *
+ * Segment layout (`layout`): scipy places segments every nperseg − noverlap samples from the
+ * start and ignores trailing samples that do not fill a segment (padded=False, boundary=None):
+ * for T = 156, nperseg 64 that leaves out the last 28 volumes, so a spike there never reaches the
+ * spectrum. Our default 'cover' keeps scipy's segment length and count rule but spreads the
+ * segments evenly so the first starts at volume 0 and the last ends at volume T − 1: n =
+ * ⌈(T − nperseg)/step⌉ + 1 segments starting at round(i·(T − nperseg)/(n − 1)), i = 0..n−1. Every
+ * kept volume is then in at least one segment, overlaps are ≥ 50 % (slightly more when T − nperseg
+ * is not a multiple of the step), and when it is a multiple the result equals scipy's exactly.
+ * We chose this over zero-padding the tail (which would add a partly empty, down-weighted
+ * segment) or a final extra segment (which would weight the last volumes twice as much as the
+ * rest). 'scipy' reproduces scipy's layout (used to check against its output).
  *
  * `tc`: time course, length T, one sample per volume. `trSeconds`: repetition time in s, so
  * fs = 1/TR Hz. Returns `frequencies` in Hz (k·fs/nperseg, k = 0..floor(nperseg/2)) and `power`
@@ -35,7 +46,7 @@ export function defaultSegmentLength(t: number): number {
 export function powerSpectrum(
   tc: Float64Array | Float32Array,
   trSeconds: number,
-  opts: { segmentLength?: number } = {},
+  opts: { segmentLength?: number; layout?: 'cover' | 'scipy' } = {},
 ): { frequencies: Float64Array; power: Float64Array } {
   const t = tc.length;
   if (!Number.isFinite(trSeconds) || trSeconds <= 0) {
@@ -60,7 +71,9 @@ export function powerSpectrum(
   const fs = 1 / trSeconds;
   const noverlap = Math.floor(nperseg / 2);
   const step = nperseg - noverlap;
-  const nseg = Math.floor((t - noverlap) / step);
+  const cover = (opts.layout ?? 'cover') === 'cover';
+  const nseg = cover ? Math.ceil((t - nperseg) / step) + 1 : Math.floor((t - noverlap) / step);
+  const startOf = (s: number) => (cover ? (nseg === 1 ? 0 : Math.round((s * (t - nperseg)) / (nseg - 1))) : s * step);
   const nfreq = Math.floor(nperseg / 2) + 1;
 
   const window = new Float64Array(nperseg);
@@ -76,7 +89,7 @@ export function powerSpectrum(
   const im = new Float64Array(nperseg);
   const power = new Float64Array(nfreq);
   for (let s = 0; s < nseg; s++) {
-    const start = s * step;
+    const start = startOf(s);
     let mean = 0;
     for (let n = 0; n < nperseg; n++) mean += tc[start + n];
     mean /= nperseg;

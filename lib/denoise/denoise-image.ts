@@ -9,7 +9,7 @@ import { createWriteStream } from 'node:fs';
 import { Transform } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
 import { createGzip } from 'node:zlib';
-import { encodeNifti1, type NiftiImage } from '@/lib/nifti';
+import { encodeNifti1, spatialFieldsOf, type NiftiImage } from '@/lib/nifti';
 import { N1 } from '@/lib/nifti/header-layout';
 import type { MotionParams } from '@/lib/decomposition/motion';
 import { buildDesign, RegressionError, VolumeRegression, type RegressionMode } from './regress';
@@ -57,7 +57,7 @@ function header4d(image: NiftiImage, T: number): Uint8Array {
   const one = encodeNifti1({
     dims: [image.nx, image.ny, image.nz, 1],
     pixdim: [...voxel, tr],
-    affine: h.affine.map((r) => [...r]),
+    ...spatialFieldsOf(h), // keep the run's qform/sform and their codes (nifti1.h)
     datatype: 'float32',
     data: new Float32Array(image.voxelsPerVolume),
     xyztUnits: h.xyztUnits,

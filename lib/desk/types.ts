@@ -30,6 +30,7 @@ export type DeskRun = {
   studyName: string;
   trSeconds: number;
   droppedVolumes: number;
+  /** Components in the decomposition (the desk lists k − reproducibility.hidden of them). */
   k: number;
   labelSet: string[];
   noiseKinds: string[];
@@ -37,6 +38,8 @@ export type DeskRun = {
   framewiseDisplacement: number[] | null;
   /** Where the rater stopped (1-based component number), or null before the first visit. */
   lastComponentIdx: number | null;
+  /** The study's rule for components below its reproducibility threshold, and how many it hid. */
+  reproducibility: { threshold: number; policy: 'flag' | 'last' | 'hide'; hidden: number };
 };
 
 export type ComponentsPayload = { run: DeskRun; components: DeskComponent[] };

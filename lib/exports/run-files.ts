@@ -38,18 +38,26 @@ export type RunExportInput = {
 };
 export type TextFile = { name: string; content: string };
 
+/**
+ * Feature columns of the training tables, in order, with their sidecar descriptions. Undefined
+ * values are written "n/a" (never 0): see computeComponentFeatures in lib/decomposition/features.ts.
+ */
 export const FEATURE_COLUMNS: Record<string, string> = {
+  reproducibility: 'Cross-restart reproducibility of the component (0..1): how closely the decomposition found it again from other starting points; n/a when it ran without restarts.',
   highFrequencyPower: 'Fraction of the time course power above 0.1 Hz (0..1).',
-  edgeFraction: 'Fraction of supra-threshold map voxels (|z| > 2.3) on the brain-mask edge (0..1).',
-  clusterCount: 'Number of 26-connected clusters of at least 10 supra-threshold voxels.',
-  largestClusterVoxels: 'Voxels in the largest supra-threshold cluster.',
-  largestClusterFraction: 'Largest cluster as a fraction of all supra-threshold voxels (0..1).',
+  edgeFraction: 'Fraction of the map\'s supra-threshold voxels on the brain edge: within one voxel of a voxel outside the mask or darker than the brain-mask threshold in the mean image (0..1); n/a when fewer than 10 voxels pass the map\'s threshold.',
+  clusterCount: 'Number of 26-connected clusters of at least 10 supra-threshold voxels; n/a when fewer than 10 voxels pass the map\'s threshold.',
+  largestClusterVoxels: 'Voxels in the largest supra-threshold cluster; n/a as above.',
+  largestClusterFraction: 'Largest cluster as a fraction of all supra-threshold voxels (0..1); n/a as above.',
+  mapThresholdZ: 'The map\'s adaptive threshold in |z|: voxels more than 2.5 robust SDs (1.4826 × median absolute deviation) from the map\'s median are supra-threshold; n/a when fewer than 10 voxels pass it.',
   kurtosis: 'Excess kurtosis of the z-map over in-mask voxels.',
   skewness: 'Skewness of the z-map over in-mask voxels.',
   peakZ: 'Largest |z| of the map.',
-  spikeScore: 'Largest absolute robust z-score of the time course (spikiness).',
+  spikeScore: 'Largest robust z-score of a frame-to-frame jump of the time course (spikiness).',
+  stepScore: 'Largest shift of the time course mean at any split point, in pooled within-side SDs (a step); n/a when the run is too short to split.',
+  trendR2: 'R² of a constant + linear + quadratic trend fitted to the time course (slow drift, 0..1); n/a for a constant time course.',
   motionCorrelation: 'Largest |Pearson r| of the time course with the motion parameters and their derivatives; n/a without motion.',
-  fdCorrelation: 'Pearson r of the time course magnitude with framewise displacement (Power et al. 2012, 50 mm sphere); n/a without motion.',
+  fdCorrelation: 'Pearson r of the time course with framewise displacement (Power et al. 2012, 50 mm sphere); n/a without motion.',
   meanFramewiseDisplacement: 'Mean framewise displacement of the run in mm; n/a without motion.',
   temporalAutocorrelation: 'Lag-1 autocorrelation of the time course.',
 };

@@ -31,6 +31,28 @@ export interface NiftiWriteInput {
   sformCode?: number;
   /** Default: sformCode when the affine is rigid (rotation × voxel sizes), else 0. */
   qformCode?: number;
+  /**
+   * The qform's own voxel→world transform when it differs from the sform (as an input header may
+   * carry); default: the affine. Must be rigid (rotation × voxel sizes, optionally reflected).
+   */
+  qformAffine?: number[][];
+}
+
+/**
+ * The spatial fields of an input header to pass to the writer so an output on the same grid keeps
+ * the input's qform_code and sform_code (nifti1.h: NIFTI_XFORM_SCANNER_ANAT = 1, ALIGNED_ANAT = 2,
+ * TALAIRACH = 3, MNI_152 = 4) and both transforms, instead of relabelling them.
+ * With both codes 0 (an "Analyze-like" header) the output gets the pixdim diagonal as before,
+ * written with sform_code 0 and qform_code 0 so it claims no more than the input did.
+ */
+export function spatialFieldsOf(h: { affine: number[][]; qform: number[][]; qformCode: number; sformCode: number }): Pick<NiftiWriteInput, 'affine' | 'sformCode' | 'qformCode' | 'qformAffine'> {
+  const copy = (a: number[][]) => a.map((r) => [...r]);
+  return {
+    affine: copy(h.affine),
+    sformCode: h.sformCode,
+    qformCode: h.qformCode,
+    qformAffine: h.qformCode > 0 ? copy(h.qform) : undefined,
+  };
 }
 
 const WRITABLE: Record<WritableDatatype, { code: number; bitpix: number; ctor: Function }> = {
@@ -84,7 +106,11 @@ export function encodeNifti1(input: NiftiWriteInput): Uint8Array {
   if (affine.length !== 4 || affine.some((row) => row.length !== 4 || row.some((x) => !Number.isFinite(x)))) {
     bad('affine must be a 4×4 array of finite numbers (row-major voxel→world, mm).');
   }
-  const quat = affineToQuaternion(affine);
+  const qAffine: Affine = input.qformAffine ?? affine;
+  if (qAffine.length !== 4 || qAffine.some((row) => row.length !== 4 || row.some((x) => !Number.isFinite(x)))) {
+    bad('qformAffine must be a 4×4 array of finite numbers (row-major voxel→world, mm).');
+  }
+  const quat = affineToQuaternion(qAffine);
   const zooms = [0, 1, 2].map((j) => Math.hypot(affine[0][j], affine[1][j], affine[2][j]));
   if (zooms.some((z) => !(z > 0))) bad('The affine is singular (a column of its 3×3 part is zero); give a proper voxel→world transform.');
   if (input.affine && input.pixdim) {
@@ -100,6 +126,7 @@ export function encodeNifti1(input: NiftiWriteInput): Uint8Array {
   const sformCode = input.sformCode ?? 2;
   const qformCode = quat ? (input.qformCode ?? (sformCode || 2)) : 0;
   if (input.qformCode && !quat) bad('A qform was requested but the affine has shear, which a qform cannot represent; omit qformCode.');
+  if (input.qformAffine && !quat) bad('qformAffine has shear, which a qform cannot represent; pass a rotation times voxel sizes.');
 
   const bytesPer = spec.bitpix / 8;
   const out = new Uint8Array(VOX_OFFSET + nvox * bytesPer);

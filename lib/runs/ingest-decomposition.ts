@@ -7,6 +7,7 @@ import { float32ToBlob, toJson } from '@/lib/db/knex';
 import type { ComponentFeatures } from '@/lib/decomposition/features';
 import { componentFeatures, componentSpectra, componentTimecourse } from '@/lib/decomposition/component-outputs';
 import type { MotionParams } from '@/lib/decomposition/motion';
+import { componentsHeaderFields, volumeHeaderFields } from '@/lib/decomposition/output-headers';
 import type { DecompositionResult } from '@/lib/decomposition/pipeline';
 import { writeNiftiFile, type NiftiHeader } from '@/lib/nifti';
 import { childKey, ensureDirFor, newKey, pathFor, removeKey } from '@/lib/storage';
@@ -53,9 +54,10 @@ export interface DecompositionFiles {
 /**
  * Writes the outputs into a new directory `decompositions/<yyyy-mm>/<uuid>/`: components.nii.gz
  * (4D float32 z-maps, volume c = component c + 1, 0 outside the mask), mean.nii.gz (float32) and
- * mask.nii.gz (uint8), all on the run's grid and affine. On error the directory is removed.
+ * mask.nii.gz (uint8), all on the run's grid with its qform/sform and their codes (output-headers.ts).
+ * On error the directory is removed.
  */
-export async function writeDecompositionFiles(result: DecompositionResult, header: Pick<NiftiHeader, 'pixdim' | 'affine'>): Promise<DecompositionFiles> {
+export async function writeDecompositionFiles(result: DecompositionResult, header: Pick<NiftiHeader, 'pixdim' | 'affine' | 'qform' | 'qformCode' | 'sformCode' | 'xyztUnits'>): Promise<DecompositionFiles> {
   const dirKey = newKey('decompositions');
   const files: DecompositionFiles = {
     dirKey,
@@ -66,8 +68,7 @@ export async function writeDecompositionFiles(result: DecompositionResult, heade
   const [nx, ny, nz] = result.dims;
   const nVox = nx * ny * nz;
   const V = result.voxelsInMask;
-  const voxel = [1, 2, 3].map((i) => header.pixdim[i] ?? 1);
-  const affine = header.affine.map((r) => [...r]);
+  const volume = volumeHeaderFields(header);
   try {
     await ensureDirFor(files.componentsKey);
     const maps = new Float32Array(nVox * result.k);
@@ -77,20 +78,17 @@ export async function writeDecompositionFiles(result: DecompositionResult, heade
     }
     await writeNiftiFile(pathFor(files.componentsKey), {
       dims: [nx, ny, nz, result.k],
-      pixdim: [...voxel, 1],
-      affine,
+      ...componentsHeaderFields(header),
       datatype: 'float32',
       data: maps,
-      xyztUnits: 2,
-      intentCode: 5, // NIFTI_INTENT_ZSCORE
       description: 'Quorum component z-maps',
     });
     await writeNiftiFile(pathFor(files.meanKey), {
-      dims: [nx, ny, nz], pixdim: voxel, affine, datatype: 'float32', data: result.meanImage, xyztUnits: 2,
+      dims: [nx, ny, nz], ...volume, datatype: 'float32', data: result.meanImage,
       description: 'Quorum mean image of kept volumes',
     });
     await writeNiftiFile(pathFor(files.maskKey), {
-      dims: [nx, ny, nz], pixdim: voxel, affine, datatype: 'uint8', data: result.mask, xyztUnits: 2,
+      dims: [nx, ny, nz], ...volume, datatype: 'uint8', data: result.mask,
       description: 'Quorum decomposition mask',
     });
   } catch (err) {

@@ -65,3 +65,13 @@ export const STUDY_ROLE_NAMES: Record<StudyRole, string> = {
   rater: 'Rater',
   observer: 'Observer',
 };
+
+/** What the desk does with components whose reproducibility is below the study's threshold. */
+export const LOW_REPRODUCIBILITY_POLICIES = ['flag', 'last', 'hide'] as const;
+export type LowReproducibilityPolicy = (typeof LOW_REPRODUCIBILITY_POLICIES)[number];
+
+export const LOW_REPRODUCIBILITY_NAMES: Record<LowReproducibilityPolicy, string> = {
+  flag: 'Flag them on the desk (shown in order, marked)',
+  last: 'Flag them and put them last in the rater’s list',
+  hide: 'Hide them from raters (the lead decides them in Reconcile)',
+};

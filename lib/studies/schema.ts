@@ -4,7 +4,7 @@
  */
 import { z } from 'zod';
 import { emailSchema } from '@/lib/auth/schemas';
-import { CONSENSUS_RULES, DIM_METHODS, NOISE_KIND_KEYS, STUDY_ROLES } from './labels';
+import { CONSENSUS_RULES, DIM_METHODS, LOW_REPRODUCIBILITY_POLICIES, NOISE_KIND_KEYS, STUDY_ROLES } from './labels';
 
 const int = (what: string) => z.number({ message: `Enter ${what} as a whole number.` }).int({ message: `Enter ${what} as a whole number.` });
 
@@ -25,6 +25,14 @@ export const studyFields = z.object({
   varianceFraction: z.number({ message: 'Enter a fraction such as 0.9.' }).gt(0, { message: 'Use a fraction above 0.' }).lt(1, { message: 'Use a fraction below 1.' }).nullable().optional(),
   varianceNorm: z.boolean(),
   detrend: z.boolean(),
+  /** Components with reproducibility below this (0..1) are flagged, put last or hidden. */
+  reproducibilityThreshold: z
+    .number({ message: 'Enter a reproducibility between 0 and 1, such as 0.8.' })
+    .min(0, { message: 'Use a value from 0 to 1.' })
+    .max(1, { message: 'Use a value from 0 to 1.' })
+    .optional(),
+  /** Left out: the database default (flag, 0.8). Not .default(): the update schema's .partial() would then reset it. */
+  lowReproducibility: z.enum(LOW_REPRODUCIBILITY_POLICIES, { message: 'Choose what the desk does with components below the threshold.' }).optional(),
 });
 
 type DimFields = { dimMethod?: string; fixedComponents?: number | null; varianceFraction?: number | null };
@@ -62,6 +70,8 @@ export const STUDY_DEFAULTS: StudyValues = {
   varianceFraction: null,
   varianceNorm: true,
   detrend: false,
+  reproducibilityThreshold: 0.8,
+  lowReproducibility: 'flag',
 };
 
 export const studyIdParams = z.object({ id: z.coerce.number().int().positive({ message: 'Not a study number.' }) });

@@ -9,6 +9,7 @@ import {
   type DecompositionResult, type DimMethod,
 } from '@/lib/decomposition';
 import type { Contrast } from '@/lib/decomposition/fastica';
+import { componentsHeaderFields, volumeHeaderFields } from '@/lib/decomposition/output-headers';
 import { dropInitialVolumes, type MotionParams } from '@/lib/decomposition/motion';
 import { MOTION_USAGE, motionOptions, readMotionOption } from './motion-options';
 import type { CliCommand } from './index';
@@ -36,23 +37,24 @@ function dimMethodOf(text: string | undefined): DimMethod | undefined {
 
 /**
  * Writes a decomposition's files into dir: components.nii.gz (4D float32 z-maps on the run's grid
- * and affine, 0 outside the mask), mean.nii.gz, mask.nii.gz (uint8), timecourses.tsv, spectra.tsv
+ * with its qform/sform and codes, component axis not labelled as time; output-headers.ts; 0
+ * outside the mask), mean.nii.gz, mask.nii.gz (uint8), timecourses.tsv, spectra.tsv
  * and features.tsv. summary.json is written by the caller.
  */
 export async function writeDecompositionOutputs(out: string, h: NiftiHeader, r: DecompositionResult, motion?: MotionParams): Promise<void> {
   await mkdir(out, { recursive: true });
-  const voxel = [h.pixdim[1] ?? 1, h.pixdim[2] ?? 1, h.pixdim[3] ?? 1];
   const [nx, ny, nz] = r.dims;
+  const volume = volumeHeaderFields(h);
   await writeNiftiFile(path.join(out, 'components.nii.gz'), {
-    dims: [nx, ny, nz, r.k], pixdim: [...voxel, 1], affine: h.affine, datatype: 'float32', data: mapsVolume(r),
-    xyztUnits: h.xyztUnits, description: 'Quorum component z-maps',
+    dims: [nx, ny, nz, r.k], ...componentsHeaderFields(h), datatype: 'float32', data: mapsVolume(r),
+    description: 'Quorum component z-maps',
   });
   await writeNiftiFile(path.join(out, 'mean.nii.gz'), {
-    dims: [nx, ny, nz], pixdim: voxel, affine: h.affine, datatype: 'float32', data: r.meanImage, xyztUnits: h.xyztUnits & 7,
+    dims: [nx, ny, nz], ...volume, datatype: 'float32', data: r.meanImage,
     description: 'Quorum temporal mean',
   });
   await writeNiftiFile(path.join(out, 'mask.nii.gz'), {
-    dims: [nx, ny, nz], pixdim: voxel, affine: h.affine, datatype: 'uint8', data: r.mask, xyztUnits: h.xyztUnits & 7,
+    dims: [nx, ny, nz], ...volume, datatype: 'uint8', data: r.mask,
     description: 'Quorum decomposition mask',
   });
   await writeFile(path.join(out, 'timecourses.tsv'), timecoursesTsv(r));

@@ -61,6 +61,59 @@ describe('quorum decompose', () => {
     expect((await readNiftiFile(path.join(out, 'mean.nii.gz'))).header.dims).toEqual(p.dims.slice(0, 3));
   });
 
+  it('outputs keep the input\'s qform/sform codes and transforms; the component axis is not time (NIfTI-1 standard, nifti1.h)', async () => {
+    // A run as a DICOM converter writes it: qform_code = sform_code = 1 (NIFTI_XFORM_SCANNER_ANAT).
+    // Also a qform-only header (sform_code 0), whose qform must stay the only transform.
+    const dir = await mkdtemp(path.join(tmpdir(), 'quorum-decompose-codes-'));
+    dirs.push(dir);
+    const p = generatePhantom({ size: 'tiny', seed: 2, volumes: 40 });
+    for (const codes of [{ qformCode: 1, sformCode: 1 }, { qformCode: 1, sformCode: 0 }]) {
+      const file = path.join(dir, `run-q${codes.qformCode}-s${codes.sformCode}.nii.gz`);
+      await writeNiftiFile(file, { ...phantomToNiftiInput(p, { datatype: 'int16' }), ...codes });
+      const input = await readNiftiFile(file);
+      expect([input.header.qformCode, input.header.sformCode]).toEqual([codes.qformCode, codes.sformCode]);
+      const out = path.join(dir, `out-q${codes.qformCode}-s${codes.sformCode}`);
+      const res = await runCli([file, '--out', out, '--components', '4', '--seed', '1', '--threads', '1']);
+      expect(res.stderr).toBe('');
+      for (const name of ['components.nii.gz', 'mean.nii.gz', 'mask.nii.gz']) {
+        const h = (await readNiftiFile(path.join(out, name))).header;
+        expect([h.qformCode, h.sformCode], name).toEqual([codes.qformCode, codes.sformCode]);
+        expect(affineMaxDiff(h.qform, input.header.qform), name).toBeLessThan(1e-4);
+        expect(affineMaxDiff(h.affine, input.header.affine), name).toBeLessThan(1e-4);
+        expect(h.xyztUnits & 0x07, `${name} keeps the spatial units`).toBe(input.header.xyztUnits & 0x07);
+      }
+      const comps = (await readNiftiFile(path.join(out, 'components.nii.gz'))).header;
+      // time bits of xyzt_units (nifti1.h XYZT_TO_TIME, mask 0x38) = NIFTI_UNITS_UNKNOWN; pixdim[4] = 1 (positive, as nifti1.h asks)
+      expect(input.header.xyztUnits & 0x38).not.toBe(0); // the run itself is labelled in seconds
+      expect(comps.xyztUnits & 0x38).toBe(0);
+      expect(comps.pixdim[4]).toBe(1);
+      expect(comps.intentCode).toBe(5); // NIFTI_INTENT_ZSCORE
+    }
+  });
+
+  it('features.tsv writes undefined features as n/a and has the drift, step and reproducibility columns; summary.json says reproducibility was not computed', async () => {
+    const dir = await mkdtemp(path.join(tmpdir(), 'quorum-decompose-features-'));
+    dirs.push(dir);
+    const p = generatePhantom({ size: 'tiny', seed: 2, volumes: 40 });
+    const file = path.join(dir, 'run.nii.gz');
+    await writeNiftiFile(file, phantomToNiftiInput(p, { datatype: 'int16' }));
+    const out = path.join(dir, 'out');
+    const res = await runCli([file, '--out', out, '--components', '4', '--seed', '1', '--threads', '1']);
+    expect(res.code).toBe(0);
+    const summary = JSON.parse(res.stdout);
+    expect(summary.reproducibility).toBeNull();
+    expect(summary.warnings).toEqual([]);
+    const lines = (await readFile(path.join(out, 'features.tsv'), 'utf8')).trim().split('\n').map((l) => l.split('\t'));
+    const header = lines[0]!;
+    for (const col of ['reproducibility', 'stepScore', 'trendR2', 'mapThresholdZ', 'edgeFraction']) expect(header).toContain(col);
+    const rep = header.indexOf('reproducibility');
+    for (const row of lines.slice(1)) {
+      expect(row[rep]).toBe('n/a'); // no restarts in this run
+      expect(row[header.indexOf('motionCorrelation')]).toBe('n/a'); // no motion table
+      for (const cell of row) expect(cell === 'n/a' || Number.isFinite(Number(cell)), cell).toBe(true);
+    }
+  });
+
   it('uses a motion table for the motion features', async () => {
     const dir = await mkdtemp(path.join(tmpdir(), 'quorum-decompose-'));
     dirs.push(dir);

@@ -88,3 +88,24 @@ describe('methods paragraph', () => {
     expect(text).toContain('uncertain components were kept');
   });
 });
+
+describe('features in the rated-features table (training table)', () => {
+  it('writes undefined features as n/a (BIDS), never 0, and has reproducibility, step and drift columns described in the sidecar', () => {
+    const base = input('keep');
+    const features = { reproducibility: 0.93, edgeFraction: null, clusterCount: null, largestClusterVoxels: null, largestClusterFraction: null, mapThresholdZ: null, stepScore: 4.2, trendR2: 0.71, kurtosis: 3 };
+    const files = runExportFiles({ ...base, components: base.components.map((c) => ({ ...c, features })) });
+    const tsv = files.find((f) => f.name.endsWith('desc-ratedfeatures_components.tsv'))!;
+    const { header, rows } = parseTsv(tsv.content);
+    for (const col of ['reproducibility', 'edge_fraction', 'cluster_count', 'map_threshold_z', 'step_score', 'trend_r2']) expect(header).toContain(col);
+    const at = (col: string) => rows[0]![header.indexOf(col)];
+    expect(at('edge_fraction')).toBe('n/a');
+    expect(at('cluster_count')).toBe('n/a');
+    expect(at('map_threshold_z')).toBe('n/a');
+    expect(at('reproducibility')).toBe('0.93');
+    expect(at('step_score')).toBe('4.2');
+    expect(at('trend_r2')).toBe('0.71');
+    expect(at('motion_correlation')).toBe('n/a'); // absent from the stored features: not computed
+    const sidecar = JSON.parse(files.find((f) => f.name.endsWith('desc-ratedfeatures_components.json'))!.content);
+    for (const col of ['reproducibility', 'step_score', 'trend_r2', 'map_threshold_z']) expect(sidecar[col].Description.length).toBeGreaterThan(20);
+  });
+});

@@ -8,6 +8,8 @@ import {
   mapMoments,
   maskEdge,
   spikeScore,
+  stepScore,
+  trendR2,
   type ComponentFeatures,
 } from '@/lib/decomposition/features';
 import { featureHints } from '@/lib/decomposition/feature-hints';
@@ -16,6 +18,10 @@ import { powerSpectrum } from '@/lib/decomposition/spectrum';
 
 type Dims = [number, number, number];
 const idx = (d: Dims, x: number, y: number, z: number): number => x + d[0] * (y + d[1] * z);
+
+const trend = JSON.parse(
+  readFileSync(path.resolve(__dirname, '../fixtures/features/trend.json'), 'utf8'),
+) as { library: string; cases: { name: string; values: number[]; trendR2: number; stepScore: number }[] };
 
 const moments = JSON.parse(
   readFileSync(path.resolve(__dirname, '../fixtures/features/moments.json'), 'utf8'),
@@ -77,8 +83,14 @@ describe('map moments against scipy.stats (fixture made with ' + moments.library
 
 describe('spatial features', () => {
   it('a map on the mask rim has edgeFraction 1; an interior blob has 0', () => {
-    const rim = noiseMap(1, 0.3); // |z| ≤ 0.3·(<6) < 2.3 almost surely; rim voxels get 4
-    const blob = noiseMap(1, 0.3);
+    // Bulk uniform in ±0.3: its robust SD is 1.4826·0.15, so |z| ≤ 0.3 is at most 1.35 robust SDs
+    // and never passes the 2.5 cut; rim voxels get 4, blob voxels 5.
+    const uniform = () => {
+      const r = normalRng(1);
+      return Float32Array.from({ length: V }, () => 0.3 * (2 * ((Math.abs(r()) * 1e4) % 1) - 1));
+    };
+    const rim = uniform();
+    const blob = uniform();
     let nRim = 0;
     let nBlob = 0;
     for (let i = 0; i < V; i++) {
@@ -136,12 +148,82 @@ describe('spatial features', () => {
     expect(f.clusterCount).toBe(2);
     expect(f.largestClusterVoxels).toBe(18);
     expect(f.largestClusterFraction).toBeCloseTo(18 / 31, 12);
-    // the threshold is strict and adjustable: at 3 nothing is supra-threshold
+    // the cut is adjustable: far above every voxel nothing is supra-threshold, and the spatial
+    // features are then undefined (null), not 0
     const g = computeComponentFeatures({
-      map, maskIndices, dims, timecourse: sine(0.02, TR), trSeconds: TR, spectrum: powerSpectrum(sine(0.02, TR), TR), zThreshold: 3,
+      map, maskIndices, dims, timecourse: sine(0.02, TR), trSeconds: TR, spectrum: powerSpectrum(sine(0.02, TR), TR), robustZCut: 1e6,
     });
-    expect(g.clusterCount).toBe(0);
-    expect(g.edgeFraction).toBe(0);
+    for (const key of ['clusterCount', 'edgeFraction', 'largestClusterVoxels', 'largestClusterFraction', 'mapThresholdZ'] as const) expect(g[key], key).toBeNull();
+  });
+
+  it('undefined spatial features are null, never 0: a broad map with no voxels standing out (a drift-like gradient)', () => {
+    // The issue's drift component: loaded over the whole brain, peak |z| 2.23, so a fixed 2.3 cut
+    // found no voxel and reported 0 % edge, 0 clusters. A linear gradient across x, z-scored, has
+    // the same shape: its robust SD is wide, no voxel is 2.5 robust SDs out.
+    const ramp = Float32Array.from(maskIndices, (j) => (j % dims[0]) - 9.5);
+    let m = 0, q = 0;
+    for (const v of ramp) { m += v; q += v * v; }
+    m /= V;
+    const sd = Math.sqrt(q / V - m * m);
+    const z = ramp.map((v) => (v - m) / sd);
+    expect(Math.max(...Array.from(z, Math.abs))).toBeLessThan(2.3);
+    const f = features(z, sine(0.02, TR));
+    expect(f.edgeFraction).toBeNull();
+    expect(f.clusterCount).toBeNull();
+    expect(f.largestClusterVoxels).toBeNull();
+    expect(f.largestClusterFraction).toBeNull();
+    expect(f.mapThresholdZ).toBeNull();
+    expect(f.peakZ).toBeGreaterThan(1); // the defined features stay numbers
+    // a constant map has no spread at all
+    expect(features(new Float32Array(V).fill(1), sine(0.02, TR)).clusterCount).toBeNull();
+    // and the desk shows a dash for each of them
+    for (const key of ['edgeFraction', 'clusterCount', 'largestClusterVoxels', 'largestClusterFraction', 'mapThresholdZ'] as const) {
+      expect(featureHints[key].format(f[key])).toBe('—');
+    }
+  });
+
+  it('the threshold adapts to the map: a focal blob on Gaussian noise is found, and the cut is reported in z', () => {
+    const map = noiseMap(4, 1);
+    const pos = new Map<number, number>();
+    maskIndices.forEach((j, i) => pos.set(j, i));
+    let nBlob = 0;
+    for (let i = 0; i < V; i++) {
+      const j = maskIndices[i]!;
+      const x = j % dims[0], y = Math.floor(j / dims[0]) % dims[1], z = Math.floor(j / (dims[0] * dims[1]));
+      if ((x - 9) ** 2 + (y - 9) ** 2 + (z - 5) ** 2 <= 4) { map[i] = 8; nBlob++; }
+    }
+    const f = features(map, sine(0.02, TR));
+    // robust SD of the N(0,1) bulk ≈ 1, so the cut sits near 2.5 (sampling error of the MAD, ±0.2)
+    expect(f.mapThresholdZ).toBeGreaterThan(2.2);
+    expect(f.mapThresholdZ).toBeLessThan(2.8);
+    expect(f.largestClusterVoxels).toBeGreaterThanOrEqual(nBlob);
+  });
+});
+
+describe('drift and step features', () => {
+  for (const c of trend.cases) {
+    it(`${c.name}: trendR2 equals numpy.polyfit(t, x, 2) R² and stepScore a brute-force scan (fixture: ${trend.library})`, () => {
+      expect(trendR2(c.values)).toBeCloseTo(c.trendR2, 10);
+      expect(stepScore(c.values)).toBeCloseTo(c.stepScore, 10);
+    });
+  }
+
+  it('hand-computed step: [0,1,0,1,0, 3,4,3,4,3] splits only at 5: shift 3, pooled SD √(2.4/8) → 5.477', () => {
+    expect(stepScore([0, 1, 0, 1, 0, 3, 4, 3, 4, 3])).toBeCloseTo(3 / Math.sqrt(0.3), 12);
+    expect(stepScore([1, 2, 3])).toBeNull(); // too short to split with 5 volumes a side
+    expect(trendR2([1, 2, 3, 4])).toBeCloseTo(1, 12); // a line is all trend
+    expect(trendR2([3, 3, 3, 3])).toBeNull();
+  });
+
+  it('the step series is picked out by stepScore and the drifts by trendR2 (synthetic series of the fixture)', () => {
+    const by = Object.fromEntries(trend.cases.map((c) => [c.name, c.values]));
+    const steps = trend.cases.map((c) => ({ name: c.name, step: stepScore(c.values)!, trend: trendR2(c.values)! }));
+    const topStep = steps.reduce((a, b) => (b.step > a.step ? b : a));
+    expect(topStep.name).toBe('step at volume 60 plus noise');
+    // white noise and a network-like slow sinusoid carry almost no trend; drifts carry much
+    for (const name of ['white noise', '0.05 Hz sinusoid at TR 2 s']) expect(trendR2(by[name]!)!).toBeLessThan(0.05);
+    for (const name of ['linear trend plus noise', 'quadratic drift plus noise']) expect(trendR2(by[name]!)!).toBeGreaterThan(0.4);
+    expect(featureHints.stepScore.format(stepScore(by['step at volume 60 plus noise']!))).toMatch(/^\d+\.\d$/);
   });
 });
 

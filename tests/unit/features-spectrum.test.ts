@@ -31,6 +31,7 @@ describe('powerSpectrum against scipy.signal.welch (fixture made with ' + fixtur
     it(c.name, () => {
       const { frequencies, power } = powerSpectrum(Float64Array.from(c.signal), c.trSeconds, {
         segmentLength: c.segmentLength ?? undefined,
+        layout: 'scipy',
       });
       if (c.segmentLength === null) expect(defaultSegmentLength(c.signal.length)).toBe(c.npersegUsed);
       // 1e-9 relative (brief); a floor of 1e-12 of the largest bin for bins that are ~0 in both.
@@ -38,6 +39,49 @@ describe('powerSpectrum against scipy.signal.welch (fixture made with ' + fixtur
       expectRelClose(power, c.power, 1e-9, 1e-12);
     });
   }
+  // The default 'cover' layout spreads segments so the last ends at the last volume; when
+  // T − nperseg is a multiple of the step scipy's segments already do, and the two must agree.
+  const aligned = fixture.cases.filter((c: { signal: number[]; npersegUsed: number }) => (c.signal.length - c.npersegUsed) % (c.npersegUsed - Math.floor(c.npersegUsed / 2)) === 0);
+  it(`default layout equals scipy when the segments already reach the end (${aligned.length} cases)`, () => {
+    expect(aligned.length).toBeGreaterThanOrEqual(2);
+    for (const c of aligned) {
+      const { power } = powerSpectrum(Float64Array.from(c.signal), c.trSeconds, { segmentLength: c.segmentLength ?? undefined });
+      expectRelClose(power, c.power, 1e-9, 1e-12);
+    }
+  });
+});
+
+describe('powerSpectrum covers every kept volume', () => {
+  // The issue's case: T = 156 volumes, TR 2 s, default nperseg 64 (step 32). scipy's layout ends
+  // its last segment at volume 159 − 32 = 127, so volumes 128..155 never reach the spectrum.
+  const T = 156;
+  const tr = 2;
+  const base = Float64Array.from({ length: T }, (_, i) => Math.sin(2 * Math.PI * 0.03 * i * tr));
+  const spiked = Float64Array.from(base);
+  spiked[150] += 20; // a spike planted in the last volumes
+  const total = (p: Float64Array) => p.reduce((a, b) => a + b, 0);
+
+  it('a spike at volume 150 of 156 raises the default spectrum (broadband) and not scipy\'s layout', () => {
+    const clean = powerSpectrum(base, tr);
+    const withSpike = powerSpectrum(spiked, tr);
+    // A unit impulse of height h in one Hann-windowed segment adds ≈ h²·w² broadband power; the
+    // high-frequency half of the spectrum, where the sinusoid has no power, must rise clearly.
+    const hi = (p: Float64Array) => total(p.subarray(p.length >> 1));
+    expect(hi(withSpike.power)).toBeGreaterThan(100 * hi(clean.power) + 1e-6);
+    const scipyClean = powerSpectrum(base, tr, { layout: 'scipy' });
+    const scipySpiked = powerSpectrum(spiked, tr, { layout: 'scipy' });
+    expect(Array.from(scipySpiked.power)).toEqual(Array.from(scipyClean.power));
+  });
+
+  it('every volume lies in some segment: a spike at any volume (except the Hann window\'s zero at the very first sample) changes the spectrum', () => {
+    const clean = powerSpectrum(base, tr);
+    for (let v = 1; v < T; v++) {
+      const x = Float64Array.from(base);
+      x[v] += 5;
+      const p = powerSpectrum(x, tr).power;
+      expect(Math.abs(total(p) - total(clean.power)), `volume ${v}`).toBeGreaterThan(1e-6);
+    }
+  });
 });
 
 describe('powerSpectrum properties', () => {

@@ -9,6 +9,9 @@ import { dropInitialVolumes, framewiseDisplacement, parseMotionFile } from '@/li
 import { recordAudit } from './audit';
 import { queueVotesCompleteCheck } from '@/lib/notifications/queue';
 import type { ComponentsPayload, DeskComponent } from '@/lib/desk/types';
+import { arrangeForDesk, isLowReproducibility, type ReproducibilityRule } from '@/lib/desk/reproducibility';
+import { recomputeDecision } from '@/lib/consensus/recompute';
+import type { LowReproducibilityPolicy } from '@/lib/studies/labels';
 
 type Caller = { id: number };
 
@@ -52,6 +55,8 @@ export async function findAssignedRun(
       's.label_set as labelSet',
       's.noise_kinds as noiseKinds',
       's.show_votes_after_submit as showVotesAfterSubmit',
+      's.reproducibility_threshold as reproducibilityThreshold',
+      's.low_reproducibility as lowReproducibility',
       'd.id as decompositionId',
       'd.k',
       'd.parameters',
@@ -71,6 +76,10 @@ export async function findAssignedRun(
     noiseKinds: parseJson<string[]>(row.noiseKinds, []) ?? [],
     droppedVolumes: dropped,
     k: Number(row.k),
+    reproducibilityRule: {
+      threshold: row.reproducibilityThreshold == null ? 0.8 : Number(row.reproducibilityThreshold),
+      policy: (row.lowReproducibility ?? 'flag') as LowReproducibilityPolicy,
+    } satisfies ReproducibilityRule,
   };
 }
 export type AssignedRun = Awaited<ReturnType<typeof findAssignedRun>>;
@@ -131,7 +140,9 @@ async function readFramewiseDisplacement(run: AssignedRun): Promise<number[] | n
  */
 export async function loadDeskComponents({ user, runId }: { user: Caller; runId: number }): Promise<ComponentsPayload> {
   const run = await findAssignedRun({ user, runId });
-  const components = await componentsOfDecomposition({ decompositionId: run.decompositionId });
+  const all = await componentsOfDecomposition({ decompositionId: run.decompositionId });
+  // the study's rule for low reproducibility: flag (as they are), last, or hidden from raters
+  const { components, hidden } = arrangeForDesk(all, run.reproducibilityRule);
   return {
     run: {
       runId: run.runId,
@@ -141,11 +152,12 @@ export async function loadDeskComponents({ user, runId }: { user: Caller; runId:
       studyName: run.studyName,
       trSeconds: Number(run.trSeconds),
       droppedVolumes: run.droppedVolumes,
-      k: components.length,
+      k: all.length,
       labelSet: run.labelSet,
       noiseKinds: run.noiseKinds,
       framewiseDisplacement: await readFramewiseDisplacement(run),
       lastComponentIdx: run.lastComponentIdx == null ? null : Number(run.lastComponentIdx),
+      reproducibility: { ...run.reproducibilityRule, hidden },
     },
     components,
   };
@@ -181,14 +193,19 @@ export async function submitRun({ user, runId, ip }: { user: Caller; runId: numb
   return db.transaction(async (trx) => {
     const run = await findAssignedRun({ user, runId, forUpdate: true }, trx);
     if (run.submittedAt) return { submittedAt: new Date(run.submittedAt).toISOString(), already: true };
-    const missing = await trx('components as c')
+    const unlabelled = await trx('components as c')
       .leftJoin('votes as v', function () {
         this.on('v.component_id', 'c.id').andOn('v.rater_id', trx.raw('?', [user.id]));
       })
       .where('c.decomposition_id', run.decompositionId)
       .whereNull('v.id')
       .orderBy('c.idx')
-      .pluck('c.idx');
+      .select('c.id', 'c.idx', 'c.features');
+    // components the study hides from raters (low reproducibility) need no vote: the lead decides them
+    const hides = run.reproducibilityRule.policy === 'hide';
+    const isHidden = (r: { features: unknown }) => hides && isLowReproducibility(parseJson<Record<string, number | null>>(r.features, {}) ?? {}, run.reproducibilityRule.threshold);
+    const missing = unlabelled.filter((r) => !isHidden(r)).map((r) => r.idx as number);
+    for (const r of unlabelled.filter(isHidden)) await recomputeDecision(trx, { componentId: r.id as number }); // a pending decision the lead sees in Reconcile
     if (missing.length) {
       const list = missing.length > 12 ? `${missing.slice(0, 12).join(', ')} …` : missing.join(', ');
       throw new AppError(

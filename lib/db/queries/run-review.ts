@@ -32,6 +32,8 @@ export async function loadRunForReview({ user, runId }: { user: Pick<UserRow, 'i
       'r.tr_seconds as trSeconds',
       's.label_set as labelSet',
       's.noise_kinds as noiseKinds',
+      's.reproducibility_threshold as reproducibilityThreshold',
+      's.low_reproducibility as lowReproducibility',
       'd.id as decompositionId',
       'd.parameters',
       'd.summary',
@@ -55,6 +57,12 @@ export async function loadRunForReview({ user, runId }: { user: Pick<UserRow, 'i
     noiseKinds: parseJson<string[]>(run.noiseKinds, []) ?? [],
     framewiseDisplacement: null,
     lastComponentIdx: null,
+    // the lead sees every component; the rule is carried so the feature panel can flag low ones
+    reproducibility: {
+      threshold: run.reproducibilityThreshold == null ? 0.8 : Number(run.reproducibilityThreshold),
+      policy: run.lowReproducibility ?? 'flag',
+      hidden: 0,
+    },
   };
   const files = { 'components.nii.gz': run.componentsKey, 'mean.nii.gz': run.meanKey, 'mask.nii.gz': run.maskKey } as Record<string, string | null>;
   return { run: deskRun, components, files };

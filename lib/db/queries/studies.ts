@@ -4,7 +4,7 @@ import type { UserRow } from './users';
 import type { Knex } from 'knex';
 import { parseJson, toJson } from '@/lib/db/knex';
 import { recordAudit } from './audit';
-import type { StudyRole, ConsensusRule, DimMethod, NoiseKindKey } from '@/lib/studies/labels';
+import type { StudyRole, ConsensusRule, DimMethod, LowReproducibilityPolicy, NoiseKindKey } from '@/lib/studies/labels';
 import type { StudyValues, StudyUpdate } from '@/lib/studies/schema';
 
 export type StudySummary = {
@@ -63,6 +63,8 @@ export type StudyDetail = {
   varianceFraction: number | null;
   varianceNorm: boolean;
   detrend: boolean;
+  reproducibilityThreshold: number;
+  lowReproducibility: LowReproducibilityPolicy;
   createdBy: number;
   createdAt: Date;
 };
@@ -91,6 +93,8 @@ const studyColumns = [
   's.variance_fraction',
   's.variance_norm',
   's.detrend',
+  's.reproducibility_threshold',
+  's.low_reproducibility',
   's.created_by',
   's.created_at',
 ] as const;
@@ -114,6 +118,8 @@ function toStudy(r: Record<string, unknown>): StudyDetail {
     varianceFraction: r.variance_fraction == null ? null : Number(r.variance_fraction),
     varianceNorm: Boolean(r.variance_norm),
     detrend: Boolean(r.detrend),
+    reproducibilityThreshold: r.reproducibility_threshold == null ? 0.8 : Number(r.reproducibility_threshold),
+    lowReproducibility: (r.low_reproducibility as LowReproducibilityPolicy | null) ?? 'flag',
     createdBy: Number(r.created_by),
     createdAt: r.created_at as Date,
   };
@@ -175,6 +181,8 @@ function protocolRow(v: Partial<StudyValues>): Record<string, unknown> {
   }
   if (v.varianceNorm !== undefined) row.variance_norm = v.varianceNorm;
   if (v.detrend !== undefined) row.detrend = v.detrend;
+  if (v.reproducibilityThreshold !== undefined) row.reproducibility_threshold = v.reproducibilityThreshold;
+  if (v.lowReproducibility !== undefined) row.low_reproducibility = v.lowReproducibility;
   return row;
 }
 

@@ -28,6 +28,8 @@ export type ReadyRunOptions = {
   /** Fix the number of components (default: automatic). */
   components?: 'auto' | number;
   withMotion?: boolean;
+  /** Per-component reproducibility (component order), as a decomposition with restarts reports it. */
+  reproducibility?: number[];
 };
 
 export type ReadyRun = { runId: number; decompositionId: number; componentIds: number[]; k: number };
@@ -47,6 +49,7 @@ export async function createReadyRun(db: Knex, opts: ReadyRunOptions): Promise<R
   const boldBytes = encodeNifti1(phantomToNiftiInput(p));
   const image = decodeNifti(boldBytes);
   const result = await decomposeRun({ image }, { drop, threads: 1, components: opts.components ?? 'auto', seed: 1 });
+  if (opts.reproducibility) result.reproducibility = Float64Array.from({ length: result.k }, (_, c) => opts.reproducibility![c] ?? 1);
 
   const motionFull: MotionParams = { translations: p.motion.translations, rotations: p.motion.rotations };
   const motion = opts.withMotion === false ? undefined : dropInitialVolumes(motionFull, drop);

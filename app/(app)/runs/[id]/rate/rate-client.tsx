@@ -14,6 +14,7 @@ import { TimecourseChart } from '@/components/charts/timecourse-chart';
 import { SpectrumChart } from '@/components/charts/spectrum-chart';
 import { MotionChart } from '@/components/charts/motion-chart';
 import { FeaturePanel } from '@/components/desk/feature-panel';
+import { isLowReproducibility } from '@/lib/desk/reproducibility';
 import { HelpOverlay } from '@/components/desk/help-overlay';
 import { ComponentStrip } from '@/components/desk/component-strip';
 import { VerdictPanel } from '@/components/desk/verdict-panel';
@@ -58,6 +59,11 @@ export function RateClient({
   const { votes, status, others, setVote, sync, clearRefusal } = useVotes({ runId, userId, initialData: initialVotes });
 
   const ids = useMemo(() => components.map((c) => c.id), [components]);
+  const numbers = useMemo(() => components.map((c) => c.idx), [components]);
+  const lowIds = useMemo(() => {
+    const threshold = run.reproducibility?.threshold;
+    return new Set(threshold === undefined ? [] : components.filter((c) => isLowReproducibility(c.features, threshold)).map((c) => c.id));
+  }, [components, run.reproducibility?.threshold]);
   const firstUnlabelled = useCallback(
     (from = 0) => {
       for (let i = 0; i < ids.length; i++) {
@@ -108,11 +114,11 @@ export function RateClient({
     (next: number) => {
       if (next < 0 || next >= ids.length) return;
       performance.mark('desk:nav');
-      navStart.current = { frame: next, t: performance.now() };
+      navStart.current = { frame: components[next]!.idx - 1, t: performance.now() };
       remember(next + 1);
       setIndex(next);
     },
-    [ids.length, remember],
+    [ids.length, components, remember],
   );
 
   const onDrawn = useCallback((frame: number, phase: 'issued' | 'painted') => {
@@ -231,8 +237,13 @@ export function RateClient({
           <p className="text-xs text-ink-muted">{run.studyName}</p>
         </div>
         <p className="font-mono text-sm" data-testid="desk-position" aria-live="polite">
-          Component <span className="text-ink">{component.idx}</span> of {ids.length}
+          Component <span className="text-ink">{component.idx}</span> of {run.k}
         </p>
+        {run.reproducibility?.hidden ? (
+          <p className="text-xs text-ink-muted" data-testid="desk-hidden-note" title="The study hides components whose reproducibility is below its threshold; the lead decides them.">
+            {run.reproducibility.hidden} of {run.k} hidden (reproducibility below {run.reproducibility.threshold.toFixed(2)})
+          </p>
+        ) : null}
         <div className="flex min-w-48 flex-1 items-center gap-2">
           <div
             className="h-1.5 flex-1 rounded bg-ground-sunken"
@@ -293,7 +304,7 @@ export function RateClient({
         </Notice>
       ) : null}
 
-      <ComponentStrip ids={ids} current={index} votes={votes} onPick={goTo} />
+      <ComponentStrip ids={ids} current={index} votes={votes} onPick={goTo} numbers={numbers} lowIds={lowIds} />
 
       <div className="grid gap-3 lg:grid-cols-[minmax(0,1fr)_20rem]">
         <div className="flex min-w-0 flex-col gap-2">
@@ -301,7 +312,7 @@ export function RateClient({
             <VolumeViewer
               meanUrl={`${files}/mean.nii.gz?d=${run.decompositionId}`}
               componentsUrl={`${files}/components.nii.gz?d=${run.decompositionId}`}
-              frame={index}
+              frame={component.idx - 1}
               threshold={prefs.threshold}
               maxZ={maxZ}
               layout={prefs.layout}
@@ -387,7 +398,7 @@ export function RateClient({
             onNoteDone={() => noteRef.current?.blur()}
           />
           {othersHere ? <OthersVotes votes={othersHere} /> : null}
-          <FeaturePanel component={component} k={ids.length} />
+          <FeaturePanel component={component} k={run.k} reproducibilityThreshold={run.reproducibility?.threshold} />
           <Link href="/" className="text-xs text-ink-muted hover:text-ink">
             ← Back to my queue
           </Link>

@@ -243,7 +243,7 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
                     {saving ? 'Saving…' : 'Record decision'}
                   </Button>
                 </form>
-                {component ? <FeaturePanel component={component} k={item.k} /> : null}
+                {component ? <FeaturePanel component={component} k={item.k} reproducibilityThreshold={run?.reproducibility?.threshold} /> : null}
               </>
             ) : null}
           </aside>

@@ -6,7 +6,7 @@ import { listMembers } from '@/lib/db/queries/members';
 import { StudyForm } from '@/components/studies/study-form';
 import { MembersPanel } from '@/components/studies/members-panel';
 import { Panel } from '@/components/ui/panel';
-import { CONSENSUS_NAMES, DIM_METHOD_NAMES, NOISE_KIND_NAMES, LABEL_NAMES, type LabelKey } from '@/lib/studies/labels';
+import { CONSENSUS_NAMES, DIM_METHOD_NAMES, NOISE_KIND_NAMES, LABEL_NAMES, type LabelKey, LOW_REPRODUCIBILITY_NAMES } from '@/lib/studies/labels';
 
 export const metadata: Metadata = { title: 'Study protocol' };
 
@@ -40,6 +40,8 @@ export default async function StudySettingsPage({ params }: { params: Promise<{ 
               varianceFraction: study.varianceFraction,
               varianceNorm: study.varianceNorm,
               detrend: study.detrend,
+              reproducibilityThreshold: study.reproducibilityThreshold,
+              lowReproducibility: study.lowReproducibility,
             }}
           />
         ) : (
@@ -53,6 +55,7 @@ export default async function StudySettingsPage({ params }: { params: Promise<{ 
             <dt className="text-ink-muted">Number of components</dt><dd>{DIM_METHOD_NAMES[study.dimMethod]}</dd>
             <dt className="text-ink-muted">Variance normalisation</dt><dd>{study.varianceNorm ? 'on' : 'off'}</dd>
             <dt className="text-ink-muted">Detrend</dt><dd>{study.detrend ? 'linear' : 'off'}</dd>
+            <dt className="text-ink-muted">Low reproducibility</dt><dd>below {study.reproducibilityThreshold.toFixed(2)}: {LOW_REPRODUCIBILITY_NAMES[study.lowReproducibility]}</dd>
           </dl>
         )}
       </Panel>
