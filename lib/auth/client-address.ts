@@ -10,8 +10,8 @@
  */
 type HeaderSource = Headers | Record<string, unknown> | undefined;
 
-/** Longest address kept (an IPv6 address with a zone fits); longer values are not addresses. */
-const MAX_ADDRESS = 64;
+/** Longest address kept (45: an IPv4-mapped IPv6 address, the audit column's width); longer is not an address. */
+const MAX_ADDRESS = 45;
 
 function header(h: HeaderSource, name: string): string | null {
   if (!h) return null;

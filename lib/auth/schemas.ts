@@ -4,7 +4,7 @@ import { z } from 'zod';
 export const emailSchema = z
   .string()
   .trim()
-  .max(254, { message: 'An e-mail address has at most 254 characters.' })
+  .max(254, { message: 'An e-mail address has at most 254 characters' })
   .toLowerCase()
   .pipe(z.email({ message: 'Enter a valid e-mail address.' }));
 

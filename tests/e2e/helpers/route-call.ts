@@ -22,11 +22,11 @@ type RouteFn = (req: Request, ctx: { params: Promise<Record<string, string | str
 /** Calls `fn` like Next.js does and returns the status and parsed JSON. */
 export async function callRoute(
   fn: RouteFn,
-  { method = 'GET', url, params, body }: { method?: string; url: string; params: Record<string, string>; body?: unknown },
+  { method = 'GET', url, params, body, headers = {} }: { method?: string; url: string; params: Record<string, string>; body?: unknown; headers?: Record<string, string> },
 ): Promise<{ status: number; json: any; res: Response }> {
   const req = new Request(`http://localhost${url}`, {
     method,
-    headers: body === undefined ? {} : { 'content-type': 'application/json' },
+    headers: body === undefined ? headers : { 'content-type': 'application/json', ...headers },
     body: body === undefined ? undefined : JSON.stringify(body),
   });
   const res = await fn(req, { params: Promise.resolve(params) });
