@@ -89,6 +89,22 @@ export function motionOrderOf(value: string | null): MotionOrder {
   throw new PermanentJobError(`The run's motion column order "${value}" is not understood; use rx,ry,rz,tx,ty,tz or tx,ty,tz,rx,ry,rz.`);
 }
 
+/**
+ * A failure that the same input will always produce (no positive voxels, no finite data, a bad
+ * option, too few volumes, a run too large for memory) as a PermanentJobError, so the job fails at
+ * once instead of being retried; null for anything a retry might fix (a crashed worker thread).
+ */
+export function deterministic(err: unknown): PermanentJobError | null {
+  if (!(err instanceof Error)) return null;
+  if ((err.name === 'DecompositionError' && (err as { code?: string }).code !== 'worker_failed') || err.name === 'BrainMaskError') {
+    return new PermanentJobError(err.message, { cause: err });
+  }
+  if (err instanceof RangeError && /allocation failed|invalid (typed )?array length/i.test(err.message)) {
+    return new PermanentJobError('The run is too large to decompose on this server (not enough memory); crop it or use fewer volumes, or ask the facility admin.', { cause: err });
+  }
+  return null;
+}
+
 async function readStored<T>(what: string, key: string, read: (path: string) => Promise<T>): Promise<T> {
   let path: string;
   try {
@@ -163,7 +179,9 @@ export const decomposeKind = defineJobKind({
     const started = Date.now();
     const result = await decomposeRun({ image, mask, motion }, options, (stage, pct) =>
       ctx.progressSync(NEXT_STAGE[stage] ?? stage, 5 + pct * 0.75),
-    );
+    ).catch((err: unknown) => {
+      throw deterministic(err) ?? err;
+    });
     ctx.throwIfStopped();
     await ctx.progress('features', 82);
     const components = componentRows(result, motion);
