@@ -30,6 +30,7 @@ node --import tsx scripts/mail-server.ts --exit-with-parent &
 pids+=($!)
 node --import tsx scripts/worker.ts &
 pids+=($!)
-node_modules/.bin/next start -p "$PORT" -H 127.0.0.1 &
+# the production start (scripts/serve.ts) in demo mode: the tests read the dev mailbox
+QUORUM_DEMO=1 QUORUM_SKIP_MIGRATE=1 QUORUM_HOST=127.0.0.1 PORT="$PORT" node --import tsx scripts/serve.ts &
 pids+=($!)
 wait -n "${pids[@]}"

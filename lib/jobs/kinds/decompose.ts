@@ -20,6 +20,7 @@ import {
   writeDecompositionFiles,
 } from '@/lib/runs/ingest-decomposition';
 import { pathFor, removeKey } from '@/lib/storage';
+import { storageFaultKind } from '@/lib/storage/faults';
 import { JobError, PermanentJobError } from '../errors';
 import { decomposePayloadSchema, type DecomposePayload } from '../payloads';
 import { enqueueJob } from '../queue';
@@ -186,7 +187,24 @@ export const decomposeKind = defineJobKind({
     await ctx.progress('features', 82);
     const components = componentRows(result, motion);
     await ctx.progress('writing', 90);
-    const files = await writeDecompositionFiles(result, image.header);
+    const files = await writeDecompositionFiles(result, image.header).catch(async (err: unknown) => {
+      // any file-system error while writing results is the storage's fault (a read-only mount
+      // answers mkdir -p with ENOENT on some kernels), never text for people
+      const fault = storageFaultKind(err) ?? ((err as { syscall?: string }).syscall ? 'denied' : null);
+      if (!fault) throw err;
+      ctx.logger.error(`run ${runId}: storage fault while writing the results: ${(err as Error).message}`);
+      // the admin's alert on the Facility page (same row as lib/errors.ts writes; the worker has no server-only imports)
+      await db('audit_log')
+        .insert({ action: 'storage.fault', target_type: 'storage', detail: JSON.stringify({ kind: fault, code: (err as { code?: string }).code, where: `decompose job ${ctx.job.id}` }) })
+        .catch(() => undefined);
+      // people read this on the run: no file-system text (it names paths); retried, the admin is alerted
+      throw new JobError(
+        fault === 'full'
+          ? "The results could not be written: the facility's storage is full. The facility admin has been alerted."
+          : "The results could not be written: the facility's storage refused the write (read-only or permission denied). The facility admin has been alerted.",
+        { cause: err },
+      );
+    });
     const parameters = {
       engine: 'quorum-decomposition',
       mask: mask ? 'uploaded' : 'automatic',
