@@ -3,7 +3,24 @@
  * job queued; every file of the bad-upload corpus (tests/fixtures/uploads, made by make-corpus.ts)
  * is refused with a 4xx AppError whose message says what is wrong, and leaves no file and no row.
  */
-import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, beforeEach, describe, expect, it, vi } from 'vitest';
+
+/** Each run file moved into storage, and whether its row already existed (uncommitted) at that moment. */
+const moves = vi.hoisted(() => ({ seen: [] as { key: string; rowWritten: boolean }[] }));
+vi.mock('@/lib/storage', async (importOriginal) => {
+  const real = await importOriginal<typeof import('@/lib/storage')>();
+  return {
+    ...real,
+    async moveIntoStore(tempFile: string, key: string) {
+      if (key.startsWith('runs/')) {
+        const { db: conn } = await import('@/lib/db/knex');
+        const row = await conn.transaction((t) => t('runs').where({ file_key: key }).first('id'), { isolationLevel: 'read uncommitted' });
+        moves.seen.push({ key, rowWritten: Boolean(row) });
+      }
+      return real.moveIntoStore(tempFile, key);
+    },
+  };
+});
 import { readFileSync } from 'node:fs';
 import { readdir } from 'node:fs/promises';
 import path from 'node:path';
@@ -94,6 +111,8 @@ describe('a good upload', () => {
     expect(jobs).toHaveLength(1);
     expect(jobs[0]).toMatchObject({ kind: 'decompose', status: 'queued', study_id: studyId, created_by: lead.id });
     expect(await filesUnder(path.join(uploads.dir, 'tmp'))).toEqual([]);
+    // the file went into storage only after its row was written (issue 13 item 10)
+    expect(moves.seen.find((m) => m.key === row.file_key)).toEqual({ key: row.file_key, rowWritten: true });
   });
 
   it('takes a mask on the grid and a motion table, then queues on request', async () => {
