@@ -1,4 +1,5 @@
 import { ZodError } from 'zod';
+import { STORAGE_FAULT_MESSAGES, storageFaultKind } from '@/lib/storage/faults';
 
 export type AppErrorCode =
   | 'bad_request'
@@ -9,6 +10,7 @@ export type AppErrorCode =
   | 'conflict'
   | 'too_large'
   | 'too_many_requests'
+  | 'insufficient_storage'
   | 'unavailable'
   | 'internal';
 
@@ -21,6 +23,7 @@ const STATUS: Record<AppErrorCode, number> = {
   conflict: 409,
   too_large: 413,
   too_many_requests: 429,
+  insufficient_storage: 507,
   unavailable: 503,
   internal: 500,
 };
@@ -74,6 +77,15 @@ export function errorResponse(err: unknown, context: string): Response {
   if (code === 'ECONNREFUSED' || code === 'PROTOCOL_CONNECTION_LOST' || code === 'ER_ACCESS_DENIED_ERROR') {
     console.error(`[${context}] database unavailable:`, err);
     return new AppError('unavailable', 'The database is not reachable right now. Try again in a moment.').toResponse();
+  }
+  const fault = storageFaultKind(err);
+  if (fault) {
+    console.error(`[${context}] storage fault:`, err);
+    // the admin's alert (Facility page); best effort, the person's answer does not wait for it
+    void import('@/lib/db/queries/audit')
+      .then(({ recordAudit }) => recordAudit({ actorId: null, action: 'storage.fault', targetType: 'storage', detail: { kind: fault, code: (err as { code?: string }).code, where: context } }))
+      .catch((e) => console.error('[storage fault] could not record the alert:', e));
+    return new AppError(fault === 'full' ? 'insufficient_storage' : 'unavailable', STORAGE_FAULT_MESSAGES[fault]).toResponse();
   }
   console.error(`[${context}] unexpected error:`, err);
   return new AppError('internal', 'Something went wrong on the server. The error was logged; try again.').toResponse();

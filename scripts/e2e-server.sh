@@ -6,7 +6,7 @@ cd "$(dirname "$0")/.."
 PORT="${1:-3100}"
 export QUORUM_DB_NAME="${QUORUM_DB_NAME:-quorum_e2e}"
 export NEXTAUTH_URL="http://localhost:$PORT"
-export NEXTAUTH_SECRET="${NEXTAUTH_SECRET:-e2e-only-secret-$(date +%s)}"
+export NEXTAUTH_SECRET="${NEXTAUTH_SECRET:-$(node -e "process.stdout.write(require('node:crypto').randomBytes(32).toString('hex'))")}"
 export QUORUM_UPLOADS_DIR="${QUORUM_UPLOADS_DIR:-$PWD/.data/e2e-uploads}"
 # the browser tests play a deployment behind the facility's own proxy (per-address throttles are
 # exercised through X-Forwarded-For) and batch notification e-mails over 2 s instead of a minute
@@ -30,6 +30,7 @@ node --import tsx scripts/mail-server.ts --exit-with-parent &
 pids+=($!)
 node --import tsx scripts/worker.ts &
 pids+=($!)
-node_modules/.bin/next start -p "$PORT" -H 127.0.0.1 &
+# the production start (scripts/serve.ts) in demo mode: the tests read the dev mailbox
+QUORUM_DEMO=1 QUORUM_SKIP_MIGRATE=1 QUORUM_HOST=127.0.0.1 PORT="$PORT" node --import tsx scripts/serve.ts &
 pids+=($!)
 wait -n "${pids[@]}"

@@ -1,7 +1,9 @@
 #!/usr/bin/env bash
-# npm run start:demo – the whole product with its demo data on http://localhost:3000.
-# Installs what is missing, starts MariaDB, migrates, seeds the demo accounts and study, builds the
-# app, and serves it together with the background worker and the local mail catcher. Ctrl-C stops all.
+# npm run start:demo – the whole product with its demo data on http://localhost:3000 (this machine only).
+# Installs what is missing, starts MariaDB, migrates, seeds what is missing of the demo accounts and
+# study (a restart keeps an admin's changes: deactivated accounts, roles, passwords), builds the app,
+# and serves it together with the background worker and the local mail catcher. Ctrl-C stops all.
+# Not a deployment: see `npm start` (scripts/serve.ts) in the README.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 source scripts/lib/ensure-system.sh
@@ -44,7 +46,10 @@ pids+=($!)
 node --import tsx scripts/worker.ts &
 pids+=($!)
 
+# the production server (scripts/serve.ts) in demo mode: the in-app mailbox is allowed, the schema
+# was migrated above; it listens on this machine only unless QUORUM_HOST says otherwise
+export PORT QUORUM_DEMO=1 QUORUM_SKIP_MIGRATE=1 QUORUM_HOST="${QUORUM_HOST:-127.0.0.1}"
 echo "Quorum is starting on http://localhost:$PORT — sign in as lead@fernhollow.example / quorum-demo"
-node_modules/.bin/next start -p "$PORT" &
+node --import tsx scripts/serve.ts &
 pids+=($!)
 wait -n "${pids[@]}"

@@ -2,11 +2,12 @@ import type { Role } from '@/lib/auth/roles';
 
 declare module 'next-auth' {
   interface Session {
-    user: { id: number; email: string; name: string; role: Role };
+    user: { id: number; email: string; name: string; role: Role; sid: string; sv: number };
   }
   interface User {
     id: string;
     role: Role;
+    sv?: number;
   }
 }
 
@@ -14,5 +15,7 @@ declare module 'next-auth/jwt' {
   interface JWT {
     uid?: number;
     role?: Role;
+    sid?: string;
+    sv?: number;
   }
 }

@@ -13,7 +13,7 @@ import {
   type SortingState,
 } from '@tanstack/react-table';
 import { ROLES, ROLE_LABELS, type Role } from '@/lib/auth/roles';
-import { patchAccess } from './access-client';
+import { endSessions, patchAccess } from './access-client';
 import { utcMinute } from './format';
 import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/notice';
@@ -48,6 +48,16 @@ export function PeopleTable({ people, currentUserId }: { people: PersonView[]; c
     const what = change.role ? `${person.name} is now ${ROLE_LABELS[change.role].toLowerCase()}.` : change.active ? `${person.name} is active again.` : `${person.name} is deactivated; their sessions stop working now.`;
     setMessage({ kind: 'ok', text: what });
     router.refresh();
+  }
+
+  async function signOutEverywhere(person: PersonView) {
+    setBusy(person.id);
+    setMessage(null);
+    const result = await endSessions(person.id);
+    setBusy(null);
+    if (!result.ok) return setMessage({ kind: 'error', text: result.message });
+    setMessage({ kind: 'ok', text: `${person.name} is signed out everywhere; their open sessions stop working now.` });
+    if (person.id === currentUserId) router.push('/sign-in');
   }
 
   const columns = useMemo(
@@ -101,9 +111,14 @@ export function PeopleTable({ people, currentUserId }: { people: PersonView[]; c
         cell: (c) => {
           const p = c.row.original;
           return p.active ? (
-            <Button variant="danger" data-testid={`deactivate-${p.email}`} disabled={busy === p.id} onClick={() => change(p, { active: false })}>
-              {p.id === currentUserId ? 'Deactivate me' : 'Deactivate'}
-            </Button>
+            <span className="flex gap-2">
+              <Button variant="quiet" data-testid={`sign-out-everywhere-${p.email}`} disabled={busy === p.id} onClick={() => signOutEverywhere(p)}>
+                Sign out everywhere
+              </Button>
+              <Button variant="danger" data-testid={`deactivate-${p.email}`} disabled={busy === p.id} onClick={() => change(p, { active: false })}>
+                {p.id === currentUserId ? 'Deactivate me' : 'Deactivate'}
+              </Button>
+            </span>
           ) : (
             <Button variant="quiet" data-testid={`reactivate-${p.email}`} disabled={busy === p.id} onClick={() => change(p, { active: true })}>
               Reactivate

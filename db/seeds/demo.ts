@@ -1,8 +1,9 @@
 /**
  * Demo data for the invented Fernhollow Imaging Core: accounts for every role and the study
  * "Evening light and sleep — resting state" with its protocol and members. Runs are added later
- * by the upload/job pipeline. Idempotent: a second run updates names and roles in place, keeps
- * existing password hashes, and adds nothing twice. Every demo password is `quorum-demo`.
+ * by the upload/job pipeline. Idempotent without undoing an admin's changes: a second run creates
+ * only what is missing and leaves existing accounts (name, role, active flag, password) and
+ * memberships as they are. Every demo password is `quorum-demo`.
  *
  * Used by `npm run seed` (scripts/seed-demo.ts), `knex seed:run` and the integration tests.
  */
@@ -44,7 +45,7 @@ export async function seedDemo(db: Knex): Promise<DemoSeedResult> {
     .whereIn('email', DEMO_USERS.map((u) => u.email))
     .select('id', 'email', 'password_hash');
   const byEmail = new Map(existing.map((r: { id: number; email: string; password_hash: string | null }) => [r.email.toLowerCase(), r]));
-  const needHash = DEMO_USERS.filter((u) => !byEmail.get(u.email)?.password_hash);
+  const needHash = DEMO_USERS.filter((u) => !byEmail.has(u.email));
   // one salted hash per account (bcrypt, ~0.2 s each), computed before the transaction opens
   const hashes = new Map(
     await Promise.all(needHash.map(async (u) => [u.email, await hashPassword(DEMO_PASSWORD)] as const)),
@@ -56,9 +57,8 @@ export async function seedDemo(db: Knex): Promise<DemoSeedResult> {
     for (const u of DEMO_USERS) {
       const row = byEmail.get(u.email);
       if (row) {
-        const patch: Record<string, unknown> = { name: u.name, role: u.role, active: true };
-        if (!row.password_hash) patch.password_hash = hashes.get(u.email);
-        await trx('users').where({ id: row.id }).update(patch);
+        // an existing account belongs to the facility now: its name, role, active flag and
+        // password stay as an admin left them (a deactivated demo account stays deactivated)
         users[u.email] = row.id;
       } else {
         // ON DUPLICATE KEY keeps a concurrent second seeding from failing; the id is read back.
@@ -108,12 +108,13 @@ export async function seedDemo(db: Knex): Promise<DemoSeedResult> {
     }
     const studyId: number = study.id;
 
-    for (const u of DEMO_USERS) {
+    // memberships only with a new study: one a lead changed or removed later stays as the lead left it
+    for (const u of createdStudy ? DEMO_USERS : []) {
       if (!u.studyRole) continue;
       await trx('study_members')
         .insert({ study_id: studyId, user_id: users[u.email], study_role: u.studyRole, added_by: leadId })
         .onConflict(['study_id', 'user_id'])
-        .merge(['study_role']);
+        .ignore();
     }
     return { users, studyId, created: { users: createdUsers, study: createdStudy } };
   });

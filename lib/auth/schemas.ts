@@ -1,6 +1,12 @@
 import { z } from 'zod';
 
-export const emailSchema = z.string().trim().toLowerCase().pipe(z.email({ message: 'Enter a valid e-mail address.' }));
+/** An e-mail address: at most 254 characters (RFC 5321 §4.5.3.1 path limit), trimmed and lower-cased. */
+export const emailSchema = z
+  .string()
+  .trim()
+  .max(254, { message: 'An e-mail address has at most 254 characters' })
+  .toLowerCase()
+  .pipe(z.email({ message: 'Enter a valid e-mail address.' }));
 
 export const passwordSchema = z
   .string()

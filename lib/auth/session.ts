@@ -4,19 +4,21 @@ import { getServerSession } from 'next-auth';
 import { redirect } from 'next/navigation';
 import { authOptions } from './options';
 import { can, type Action } from './permissions';
-import { findUserById, type UserRow } from '@/lib/db/queries/users';
+import type { UserRow } from '@/lib/db/queries/users';
+import { findSessionUser } from '@/lib/db/queries/sessions';
 import { forbidden, unauthenticated } from '@/lib/errors';
 
 /**
  * The signed-in user, read fresh from the database on every request: a deactivated user or a
- * changed role takes effect at once, whatever the JWT still says.
+ * changed role takes effect at once, whatever the JWT still says. The session must still be
+ * live: its token's session version equals the account's (password change or reset, deactivation
+ * and "sign out everywhere" raise it) and its id was not signed out (ended_sessions).
  */
 export const getCurrentUser = cache(async (): Promise<UserRow | null> => {
   const session = await getServerSession(authOptions);
-  const id = session?.user?.id;
-  if (!id) return null;
-  const user = await findUserById({ id });
-  return user && user.active ? user : null;
+  const { id, sid, sv } = session?.user ?? {};
+  if (!id || !sid || typeof sv !== 'number' || sv < 0) return null;
+  return findSessionUser({ id, sid, sv });
 });
 
 /** For route handlers and actions: the user, or an AppError (401 / 403). */

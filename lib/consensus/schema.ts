@@ -1,11 +1,12 @@
 import { z } from 'zod';
+import { wellFormed } from '@/lib/text';
 
 /** A lead's decision on one component: the final label, its noise kind, and the reason (required). */
 export const leadDecisionSchema = z.object({
   componentId: z.coerce.number().int().positive(),
   label: z.string().min(1).max(32),
   noiseKind: z.string().min(1).max(32).nullish(),
-  reason: z.string().trim().min(3, { message: 'Give a reason (a few words) — it goes into the audit log and the export.' }).max(2000),
+  reason: z.string().trim().min(3, { message: 'Give a reason (a few words) — it goes into the audit log and the export.' }).max(2000).refine(...wellFormed('The reason')),
 });
 export type LeadDecisionInput = z.infer<typeof leadDecisionSchema>;
 

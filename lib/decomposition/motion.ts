@@ -45,6 +45,8 @@ export function parseMotionFile(
       `Rotation units must be 'radians' or 'degrees', got '${String(opts.rotationUnits)}'.`,
     );
   }
+  // a cell is quoted back to the person, but never more than 40 characters of it (a 7 MB cell once was)
+  const shownCell = (cell: string) => (cell.length > 40 ? `${cell.slice(0, 40)}… (${cell.length} characters)` : cell);
   const rows: number[][] = [];
   const lines = text.replace(/^\uFEFF/, '').split(/\r\n|\r|\n/);
   let first = true;
@@ -69,7 +71,7 @@ export function parseMotionFile(
       if (!Number.isFinite(v)) {
         throw new MotionFileError(
           'not_numeric',
-          `Motion file line ${lineNo}, column ${ci + 1}: '${cell}' is not a number; the file must hold only numbers (a first line of column names and lines starting with '#' are skipped).`,
+          `Motion file line ${lineNo}, column ${ci + 1}: '${shownCell(cell)}' is not a number; the file must hold only numbers (a first line of column names and lines starting with '#' are skipped).`,
           lineNo,
         );
       }

@@ -15,10 +15,15 @@ import type { Writable } from 'node:stream';
 import { imageSizes, NiftiError, parseNiftiHeader, type NiftiHeader } from '@/lib/nifti';
 import { tempPath } from '@/lib/storage';
 import { AppError } from '@/lib/errors';
-import { formatBytes } from './schema';
+import { formatBytes, maxImageBytes } from './schema';
 
 export type ReceiveOptions = {
   maxBytes: number;
+  /**
+   * Largest image the header may describe (vox_offset + data), checked as soon as the header has
+   * arrived, before the rest is inflated; default maxImageBytes() (QUORUM_MAX_IMAGE_MB).
+   */
+  maxImageBytes?: number;
   /** The Content-Length header, when the client sent one. */
   contentLength: number | null;
   /** Extra checks on the header (4D, volumes, grid); a thrown error refuses the file. */
@@ -38,6 +43,26 @@ export type ReceivedNifti = {
 };
 
 const HEAD_BYTES = 544;
+/**
+ * Inflation stops this many bytes past the size the header implies: a .gz whose stream holds more
+ * (a decompression bomb behind a small header, or trailing data) is refused without inflating the rest.
+ */
+export const INFLATE_SLACK_BYTES = 1024 * 1024;
+
+export function imageTooLarge(limit: number, implied: number, header: NiftiHeader): AppError {
+  return new AppError(
+    'too_large',
+    `The image is larger than this facility's limit of ${formatBytes(limit)}: its header describes a ${header.dims.join(' × ')} ${header.datatype} image of ${formatBytes(implied)}. ` +
+      'Upload a smaller run (cropped, or with fewer volumes) or ask the facility admin to raise QUORUM_MAX_IMAGE_MB.',
+  );
+}
+
+function trailingData(header: NiftiHeader, implied: number): AppError {
+  const msg =
+    `The compressed file holds more data than its header describes (${header.dims.join(' × ')} ${header.datatype}, ${formatBytes(implied)}); ` +
+    'it is damaged or not a single NIfTI image. Re-export the image and upload it again.';
+  return new AppError('validation', msg, { file: [msg] });
+}
 
 export function tooLarge(maxBytes: number, size?: number): AppError {
   return new AppError(
@@ -121,6 +146,8 @@ export async function receiveNifti(body: ReadableStream<Uint8Array> | null, opts
   let headLength = 0;
   let firstBytes = Buffer.alloc(0);
   let header: NiftiHeader | null = null;
+  let implied: number | null = null;
+  let overflow = false;
   let failure: unknown = null;
 
   const keepHead = (b: Buffer) => {
@@ -134,6 +161,9 @@ export async function receiveNifti(body: ReadableStream<Uint8Array> | null, opts
     try {
       if (headLength === 0) throw new NiftiError('not_nifti', 'The file is empty. Upload a .nii or .nii.gz image.');
       header = parseNiftiHeader(new Uint8Array(Buffer.concat(head)));
+      implied = header.voxOffset + imageSizes(header).dataBytes;
+      const limit = opts.maxImageBytes ?? maxImageBytes();
+      if (implied > limit) throw imageTooLarge(limit, implied, header);
       opts.checkHeader?.(header);
     } catch (err) {
       failure = asRefusal(err);
@@ -151,6 +181,10 @@ export async function receiveNifti(body: ReadableStream<Uint8Array> | null, opts
       g.on('data', (d: Buffer) => {
         inflated += d.length;
         keepHead(d);
+        if (implied !== null && inflated > implied + INFLATE_SLACK_BYTES && !overflow) {
+          overflow = true;
+          g.destroy(); // stop inflating: the rest is never decompressed
+        }
       });
       g.once('end', () => resolve());
       g.once('error', (err) => {
@@ -190,6 +224,7 @@ export async function receiveNifti(body: ReadableStream<Uint8Array> | null, opts
         await feed(bytes);
       }
       if (!gzip) tryHeader(false);
+      else if (overflow && header) failure = trailingData(header, implied!);
       else if (gzipError) failure = gzipFailure(gzipError);
       else tryHeader(false);
       if (failure) stopProcessing();
@@ -202,11 +237,13 @@ export async function receiveNifti(body: ReadableStream<Uint8Array> | null, opts
     }
     if (!failure) {
       const g = gunzip as Gunzip | null;
-      if (g) {
+      if (g && !overflow) {
         g.end();
         await gunzipDone;
       }
       tryHeader(true);
+      if (!failure && overflow && header) failure = trailingData(header, implied!);
+      if (!failure && gzip && header && inflated > implied! + INFLATE_SLACK_BYTES) failure = trailingData(header, implied!);
     }
     if (failure) throw failure;
     if (diskError) throw diskError;

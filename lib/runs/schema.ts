@@ -97,6 +97,15 @@ export function maxUploadBytes(env: Record<string, string | undefined> = process
   return Math.floor((Number.isFinite(mb) && mb > 0 ? mb : 2048) * 1024 * 1024);
 }
 
+/**
+ * Largest image a header may describe (vox_offset + voxel data, uncompressed), from
+ * QUORUM_MAX_IMAGE_MB (default 4096): the worker holds a run in memory to decompose it.
+ */
+export function maxImageBytes(env: Record<string, string | undefined> = process.env): number {
+  const mb = Number(env.QUORUM_MAX_IMAGE_MB ?? 4096);
+  return Math.floor((Number.isFinite(mb) && mb > 0 ? mb : 4096) * 1024 * 1024);
+}
+
 /** A motion table is small text: refuse more than this. */
 export const MAX_MOTION_BYTES = 8 * 1024 * 1024;
 

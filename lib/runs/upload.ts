@@ -93,8 +93,6 @@ export async function uploadRun({ user, studyId, query, raw }: { user: Actor; st
     const existing = await findRunBySha({ studyId, sha256: received.sha256 });
     if (existing) refuseDuplicate(existing);
     if (raw.signal?.aborted) throw interrupted();
-    await moveIntoStore(received.tempFile, key);
-    moved = true;
     const h = received.header;
     const runId = await db.transaction(async (trx) => {
       const [id] = await trx('runs').insert({
@@ -118,6 +116,10 @@ export async function uploadRun({ user, studyId, query, raw }: { user: Actor; st
       });
       await recordAudit({ actorId: user.id, action: 'run.upload', targetType: 'run', targetId: id, studyId, detail: { name: query.name, sha256: received.sha256, bytes: received.sizeBytes } }, trx);
       if (query.queue) await queueDecomposition(trx, { runId: Number(id), studyId, createdBy: user.id });
+      // the file goes into storage only once its row is written, inside the same transaction: a
+      // failed move rolls the row back, a failed commit removes the file (catch below)
+      await moveIntoStore(received.tempFile, key);
+      moved = true;
       return Number(id);
     });
     const [row] = await listRunsForStudy({ user, studyId, runId });

@@ -136,3 +136,33 @@ test('the development mailbox lists the caught e-mails for the admin', async ({ 
   expect(res.status()).toBe(200);
   expect(Array.isArray((await res.json()).messages)).toBe(true);
 });
+
+test("an admin's sign out everywhere ends a person's open sessions; signing in again works (issue 13 item 5)", async ({ page, baseURL }) => {
+  const { email } = unique('roaming');
+  await createAccount(db, { email, password: 'roaming-about-pass', role: 'rater', name: 'Ilse Roaming' });
+  const sessions = [];
+  for (let i = 0; i < 2; i++) {
+    const s = await playwrightRequest.newContext({ baseURL, extraHTTPHeaders: { 'x-forwarded-for': client.ip } });
+    await apiSignIn(s, email, 'roaming-about-pass');
+    expect((await s.get('/api/me')).status()).toBe(200);
+    sessions.push(s);
+  }
+
+  const signIn = new SignInPage(page);
+  await signIn.open();
+  await signIn.signIn(DEMO.admin);
+  await expect(page.getByTestId('home-heading')).toBeVisible();
+  await new PeoplePage(page).open();
+  await page.getByTestId('people-search').fill('Ilse');
+  await page.getByTestId(`sign-out-everywhere-${email}`).click();
+  await expect(page.getByTestId('people-ok')).toContainText('signed out everywhere');
+
+  for (const s of sessions) {
+    expect((await s.get('/api/me')).status()).toBe(401);
+    await s.dispose();
+  }
+  const again = await playwrightRequest.newContext({ baseURL, extraHTTPHeaders: { 'x-forwarded-for': client.ip } });
+  await apiSignIn(again, email, 'roaming-about-pass');
+  expect((await again.get('/api/me')).status()).toBe(200);
+  await again.dispose();
+});

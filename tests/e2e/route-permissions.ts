@@ -17,6 +17,7 @@ export const ROUTES: RouteCase[] = [
   { file: 'admin/users/route.ts', method: 'GET', url: '/api/admin/users', allowed: ['admin'] },
   // people: invitations, password resets, facility admin, audit log, storage, development mailbox
   { file: 'admin/users/[id]/route.ts', method: 'PATCH', url: '/api/admin/users/999999', allowed: ['admin'] },
+  { file: 'admin/users/[id]/sessions/route.ts', method: 'DELETE', url: '/api/admin/users/999999/sessions', allowed: ['admin'] },
   { file: 'admin/audit/route.ts', method: 'GET', url: '/api/admin/audit', allowed: ['admin'] },
   { file: 'admin/audit/export/route.ts', method: 'GET', url: '/api/admin/audit/export?from=2999-01-01', allowed: ['admin'] },
   { file: 'admin/storage/route.ts', method: 'GET', url: '/api/admin/storage', allowed: ['admin'] },

@@ -7,7 +7,7 @@
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { randomBytes } from 'node:crypto';
 
-const session = vi.hoisted(() => ({ current: null as null | { user: { id: number; email: string; name: string; role: string } } }));
+const session = vi.hoisted(() => ({ current: null as null | { user: { id: number; email: string; name: string; role: string; sid: string; sv: number } } }));
 vi.mock('next-auth', async (importOriginal) => ({
   ...(await importOriginal<typeof import('next-auth')>()),
   getServerSession: async () => session.current,
@@ -108,7 +108,8 @@ describe('the last active admin', () => {
 
 describe('sessions of deactivated people', () => {
   it('stop working at once although the JWT still names them', async () => {
-    session.current = { user: { id: ids.rater, email: `rater-${tag}@fernhollow.example`, name: 'r', role: 'rater' } };
+    const version = async () => Number((await db('users').where({ id: ids.rater }).first('session_version')).session_version);
+    session.current = { user: { id: ids.rater, email: `rater-${tag}@fernhollow.example`, name: 'r', role: 'rater', sid: `s-${tag}`, sv: await version() } };
     expect((await getCurrentUser())?.id).toBe(ids.rater);
     expect((await requireUser('votes.write')).id).toBe(ids.rater);
 
@@ -118,7 +119,10 @@ describe('sessions of deactivated people', () => {
     expect(err.status).toBe(401);
 
     await updateAccess({ actorId: ids.a1, userId: ids.rater, active: true, role: 'observer' });
-    // a changed role takes effect at once too: the JWT's "rater" is ignored
+    // reactivation does not revive the old session (issue 13 item 5) …
+    expect((await refusal(requireUser('votes.write'))).status).toBe(401);
+    // … and in a new one a changed role takes effect at once: the JWT's "rater" is ignored
+    session.current = { ...session.current, user: { ...session.current.user, sid: `s2-${tag}`, sv: await version() } };
     expect((await refusal(requireUser('votes.write'))).status).toBe(403);
     session.current = null;
   });

@@ -52,8 +52,8 @@ let runs: Awaited<ReturnType<typeof createReadyRun>>[];
 const u = (name: string) => users[`${name}@fernhollow.example`]!;
 const sha = (b: Buffer | string) => createHash('sha256').update(b).digest('hex');
 
-function release(body: unknown = {}) {
-  return callRoute(releasesRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/releases`, params: { id: String(studyId) }, body });
+function release(body: unknown = {}, headers: Record<string, string> = {}) {
+  return callRoute(releasesRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/releases`, params: { id: String(studyId) }, body, headers });
 }
 async function bytesOf(res: Response): Promise<Buffer> {
   return Buffer.from(await res.arrayBuffer());
@@ -134,7 +134,9 @@ describe('a study release', () => {
   beforeAll(async () => {
     await db('decisions').where({ component_id: runs[0]!.componentIds[4] }).update({ label: 'noise', noise_kind: 'other', method: 'reconciled', reason: 'Lead: edge ring, noise' });
     actAs(u('lead'));
-    const res = await release({ notes: 'Friday release' });
+    // a forged X-Forwarded-For without a trusted proxy must not reach the audit log (issue 13 item 10)
+    delete process.env.QUORUM_TRUST_PROXY;
+    const res = await release({ notes: 'Friday release' }, { 'x-forwarded-for': '6.6.6.6' });
     expect(res.status, JSON.stringify(res.json)).toBe(201);
     expect(res.json.version).toBe(1);
     releaseId = res.json.releaseId;
@@ -152,6 +154,7 @@ describe('a study release', () => {
     const audit = await db('audit_log').where({ action: 'release.create', target_id: String(releaseId) }).first();
     expect(audit.actor_id).toBe(u('lead'));
     expect(audit.study_id).toBe(studyId);
+    expect(audit.ip).toBeNull(); // the forged X-Forwarded-For was not believed
   });
 
   it('writes per-run files whose content matches the database, with sidecars describing every column and the caution', async () => {

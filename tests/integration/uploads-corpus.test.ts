@@ -3,10 +3,28 @@
  * job queued; every file of the bad-upload corpus (tests/fixtures/uploads, made by make-corpus.ts)
  * is refused with a 4xx AppError whose message says what is wrong, and leaves no file and no row.
  */
-import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, beforeEach, describe, expect, it, vi } from 'vitest';
+
+/** Each run file moved into storage, and whether its row already existed (uncommitted) at that moment. */
+const moves = vi.hoisted(() => ({ seen: [] as { key: string; rowWritten: boolean }[] }));
+vi.mock('@/lib/storage', async (importOriginal) => {
+  const real = await importOriginal<typeof import('@/lib/storage')>();
+  return {
+    ...real,
+    async moveIntoStore(tempFile: string, key: string) {
+      if (key.startsWith('runs/')) {
+        const { db: conn } = await import('@/lib/db/knex');
+        const row = await conn.transaction((t) => t('runs').where({ file_key: key }).first('id'), { isolationLevel: 'read uncommitted' });
+        moves.seen.push({ key, rowWritten: Boolean(row) });
+      }
+      return real.moveIntoStore(tempFile, key);
+    },
+  };
+});
 import { readFileSync } from 'node:fs';
 import { readdir } from 'node:fs/promises';
 import path from 'node:path';
+import { gunzipSync, gzipSync } from 'node:zlib';
 import { db } from '@/lib/db/knex';
 import { AppError } from '@/lib/errors';
 import { createStudy } from '@/lib/db/queries/studies';
@@ -93,6 +111,8 @@ describe('a good upload', () => {
     expect(jobs).toHaveLength(1);
     expect(jobs[0]).toMatchObject({ kind: 'decompose', status: 'queued', study_id: studyId, created_by: lead.id });
     expect(await filesUnder(path.join(uploads.dir, 'tmp'))).toEqual([]);
+    // the file went into storage only after its row was written (issue 13 item 10)
+    expect(moves.seen.find((m) => m.key === row.file_key)).toEqual({ key: row.file_key, rowWritten: true });
   });
 
   it('takes a mask on the grid and a motion table, then queues on request', async () => {
@@ -119,12 +139,37 @@ describe('the bad-upload corpus', () => {
     expect(Number((await db('runs').count({ n: '*' }))[0].n)).toBe(before.runs);
     expect(await filesUnder(uploads.dir)).toEqual(before.files);
   }
-  const upload = (file: string, name = 'sub-09_task-rest_bold.nii.gz', opts: Parameters<typeof rawBody>[1] = {}) =>
-    uploadRun({ user: lead, studyId, query: query(name, { sub: '09' }), raw: rawBody(fixture(file), opts) });
+  const upload = (file: string, name = 'sub-09_task-rest_bold.nii.gz', opts: Parameters<typeof rawBody>[1] & { bytes?: Buffer } = {}) =>
+    uploadRun({ user: lead, studyId, query: query(name, { sub: '09' }), raw: rawBody(opts.bytes ?? fixture(file), opts) });
 
   it('refuses a file that is not NIfTI (plain and gzip)', async () => {
     await refused(upload('not-nifti.nii', 'sub-09_task-rest_bold.nii'), 422, /not a NIfTI file/);
     await refused(upload('not-nifti.nii.gz'), 422, /not a NIfTI file/);
+    await nothingLeft();
+  });
+
+  it('refuses a .gz holding far more than its header describes, without inflating the rest (issue 13 item 10)', async () => {
+    // a small valid header and data, then 64 MiB of zeros: about 64 KiB compressed
+    const raw = gunzipSync(fixture('good-run.nii.gz'));
+    const bomb = gzipSync(Buffer.concat([raw, Buffer.alloc(64 * 1024 * 1024)]), { level: 1 });
+    expect(bomb.length).toBeLessThan(1024 * 1024);
+    const err = await refused(upload('x', undefined, { bytes: bomb, chunk: 16 * 1024 }), 422, /holds more data than its header describes \(6 × 5 × 4 × 40 int16/);
+    expect(err.fields).toBeDefined();
+    await nothingLeft();
+  });
+
+  it('refuses an image whose header implies more than the limit before inflating it (413)', async () => {
+    const raw = gunzipSync(fixture('good-run.nii.gz'));
+    const header = Buffer.from(raw);
+    header.writeInt16LE(30000, 48); // dim[4]: 30000 volumes, 7.2 MB of int16 implied; the data stays small
+    const saved = process.env.QUORUM_MAX_IMAGE_MB;
+    process.env.QUORUM_MAX_IMAGE_MB = '1';
+    try {
+      await refused(upload('x', undefined, { bytes: gzipSync(header) }), 413, /larger than this facility's limit of 1(\.0)? MB: its header describes a 6 × 5 × 4 × 30000 int16 image/);
+    } finally {
+      if (saved === undefined) delete process.env.QUORUM_MAX_IMAGE_MB;
+      else process.env.QUORUM_MAX_IMAGE_MB = saved;
+    }
     await nothingLeft();
   });
 

@@ -10,6 +10,7 @@ import { jobKinds } from '@/lib/jobs/kinds';
 import { enqueueDecomposition } from '@/lib/jobs/kinds/decompose';
 import { runClaimedJob } from '@/lib/jobs/runner';
 import { readNiftiFile, writeNiftiFile } from '@/lib/nifti';
+import { generatePhantom, phantomToNiftiInput } from '@/lib/phantom';
 import { assignRaters } from '@/lib/runs/assign-raters';
 import { ensureDirFor, newKey, pathFor } from '@/lib/storage';
 import { createPhantomRun, createRun, useTempUploads, writePhantomRunFile } from './helpers/factories';
@@ -137,6 +138,21 @@ describe('decompose in process', () => {
     expect(job!.attempts).toBe(1);
     expect(job!.message).toMatch(/motion/i);
     expect((await db('runs').where({ id: runId }).first()).status_message).toBe(job!.message);
+  });
+
+  it('deterministic failures (no positive voxels, no finite data) fail at once, not after the retries (issue 13 item 10)', async () => {
+    for (const [fill, message] of [[0, /no positive voxels/], [Number.NaN, /no positive voxels|finite/]] as const) {
+      const { runId } = await createPhantomRun(db);
+      const phantom = generatePhantom({ size: 'tiny', seed: 1 });
+      phantom.data.fill(fill);
+      await writeNiftiFile(pathFor((await db('runs').where({ id: runId }).first('file_key')).file_key), phantomToNiftiInput(phantom));
+      const { jobId } = await enqueueDecomposition(db, { runId, maxAttempts: 3 });
+      expect(await runNext()).toBe('failed');
+      const job = await getJob(db, jobId);
+      expect(job).toMatchObject({ status: 'failed', attempts: 1 });
+      expect(job!.message).toMatch(message);
+      expect((await db('runs').where({ id: runId }).first()).status).toBe('failed');
+    }
   });
 
   it('a second decomposition replaces the current one and keeps the assignments', async () => {

@@ -72,6 +72,14 @@ describe('parseMotionFile', () => {
     expect(e.message).toMatch(/line 2, column 5: 'abc' is not a number/);
   });
 
+  it('quotes at most 40 characters of a huge cell back (issue 13 item 10: a 7 MB cell was echoed)', () => {
+    const huge = 'x'.repeat(7_000_000);
+    const e = catchError(() => parseMotionFile(`0 0 0 0 0 0\n0 0 ${huge} 0 0 0\n`, { order: 'rot-first', rotationUnits: 'radians' }));
+    expect(e.code).toBe('not_numeric');
+    expect(e.message).toMatch(/line 2, column 3: 'x{40}… \(7000000 characters\)' is not a number/);
+    expect(e.message.length).toBeLessThan(300);
+  });
+
   it('refuses an empty file and NaN cells', () => {
     expect(catchError(() => parseMotionFile('\n# only a comment\n', { order: 'rot-first', rotationUnits: 'radians' })).code).toBe('empty');
     expect(catchError(() => parseMotionFile('0 0 0 NaN 0 0', { order: 'rot-first', rotationUnits: 'radians' })).code).toBe('not_numeric');

@@ -1,8 +1,10 @@
 import { handler } from '@/lib/api/handler';
 import { db } from '@/lib/db/knex';
+import { readiness } from '@/lib/health';
 
-// GET /api/health – liveness and database reachability, for the start script and monitoring
+// GET /api/health – readiness for the start script, load balancers and monitoring:
+// 200 {ready: true} when the secret and the database are there, else 503 with the reasons
 export const GET = handler({ permission: 'public' }, async () => {
-  await db.raw('SELECT 1');
-  return { ok: true, database: 'reachable' };
+  const state = await readiness({ conn: db });
+  return Response.json(state, { status: state.ready ? 200 : 503, headers: { 'cache-control': 'no-store' } });
 });

@@ -209,7 +209,8 @@ export async function completePasswordReset({
     const link = await claimLink(trx, token, 'reset', now);
     const user = await trx('users').where({ id: link.userId }).first('id', 'active');
     if (!user || !user.active) throw new AppError('conflict', 'This account is deactivated. Ask the facility admin.');
-    await trx('users').where({ id: user.id }).update({ password_hash: passwordHash, updated_at: now });
+    // a reset ends every session of the account (whoever knew the old password is signed out)
+    await trx('users').where({ id: user.id }).update({ password_hash: passwordHash, session_version: trx.raw('session_version + 1'), updated_at: now });
     await trx('invitations').where({ id: link.id }).update({ used_at: now });
     await recordAudit({ actorId: Number(user.id), action: 'password_reset.completed', targetType: 'user', targetId: user.id, ip }, trx);
     return { userId: Number(user.id) };

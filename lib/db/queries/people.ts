@@ -96,7 +96,9 @@ export async function updateAccess({
       throw new AppError('conflict', LAST_ADMIN_MESSAGE);
     }
     if (after.role === before.role && after.active === before.active) return { id: userId, ...after };
-    await trx('users').where({ id: userId }).update({ role: after.role, active: after.active, updated_at: trx.fn.now(3) });
+    // deactivation ends every session; reactivation leaves the version raised, so they stay ended
+    const endSessions = before.active && !after.active ? { session_version: trx.raw('session_version + 1') } : {};
+    await trx('users').where({ id: userId }).update({ role: after.role, active: after.active, ...endSessions, updated_at: trx.fn.now(3) });
     if (after.role !== before.role) {
       await recordAudit({ actorId, action: 'user.role_changed', targetType: 'user', targetId: userId, detail: { email: target.email, from: before.role, to: after.role }, ip }, trx);
     }

@@ -47,3 +47,17 @@ export async function storageByStudy(): Promise<StudyStorage[]> {
     };
   });
 }
+
+export type StorageFaultSummary = { kind: 'full' | 'denied'; count: number; lastAt: Date };
+
+/** Storage faults (audit action storage.fault) of the last 24 hours, per kind, for the admin's alert. */
+export async function recentStorageFaults(): Promise<StorageFaultSummary[]> {
+  const rows = await db('audit_log')
+    .where({ action: 'storage.fault' })
+    .where('created_at', '>', db.raw('NOW(3) - INTERVAL 1 DAY'))
+    .select(db.raw("JSON_UNQUOTE(JSON_EXTRACT(detail, '$.kind')) AS kind"), db.raw('COUNT(*) AS n'), db.raw('MAX(created_at) AS lastAt'))
+    .groupByRaw("JSON_UNQUOTE(JSON_EXTRACT(detail, '$.kind'))");
+  return rows
+    .filter((r: { kind: string }) => r.kind === 'full' || r.kind === 'denied')
+    .map((r: { kind: 'full' | 'denied'; n: number; lastAt: Date }) => ({ kind: r.kind, count: Number(r.n), lastAt: new Date(r.lastAt) }));
+}

@@ -51,8 +51,13 @@ export async function recordSignIn({ id }: { id: number }): Promise<void> {
   await db('users').where({ id }).update({ last_sign_in_at: db.fn.now(3) });
 }
 
-export async function updatePasswordHash({ id, passwordHash }: { id: number; passwordHash: string }) {
-  await db('users').where({ id }).update({ password_hash: passwordHash, updated_at: db.fn.now(3) });
+/** Sets a new password and ends every session of the user; returns the new session version. */
+export async function updatePasswordHash({ id, passwordHash }: { id: number; passwordHash: string }): Promise<number> {
+  await db('users')
+    .where({ id })
+    .update({ password_hash: passwordHash, session_version: db.raw('session_version + 1'), updated_at: db.fn.now(3) });
+  const row = await db('users').where({ id }).first('session_version');
+  return Number(row?.session_version ?? 0);
 }
 
 export async function listUsers(): Promise<UserRow[]> {

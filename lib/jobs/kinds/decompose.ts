@@ -20,6 +20,7 @@ import {
   writeDecompositionFiles,
 } from '@/lib/runs/ingest-decomposition';
 import { pathFor, removeKey } from '@/lib/storage';
+import { storageFaultKind } from '@/lib/storage/faults';
 import { JobError, PermanentJobError } from '../errors';
 import { decomposePayloadSchema, type DecomposePayload } from '../payloads';
 import { enqueueJob } from '../queue';
@@ -87,6 +88,22 @@ export function motionOrderOf(value: string | null): MotionOrder {
   if (/^r/.test(v)) return 'rot-first';
   if (/^t/.test(v)) return 'trans-first';
   throw new PermanentJobError(`The run's motion column order "${value}" is not understood; use rx,ry,rz,tx,ty,tz or tx,ty,tz,rx,ry,rz.`);
+}
+
+/**
+ * A failure that the same input will always produce (no positive voxels, no finite data, a bad
+ * option, too few volumes, a run too large for memory) as a PermanentJobError, so the job fails at
+ * once instead of being retried; null for anything a retry might fix (a crashed worker thread).
+ */
+export function deterministic(err: unknown): PermanentJobError | null {
+  if (!(err instanceof Error)) return null;
+  if ((err.name === 'DecompositionError' && (err as { code?: string }).code !== 'worker_failed') || err.name === 'BrainMaskError') {
+    return new PermanentJobError(err.message, { cause: err });
+  }
+  if (err instanceof RangeError && /allocation failed|invalid (typed )?array length/i.test(err.message)) {
+    return new PermanentJobError('The run is too large to decompose on this server (not enough memory); crop it or use fewer volumes, or ask the facility admin.', { cause: err });
+  }
+  return null;
 }
 
 async function readStored<T>(what: string, key: string, read: (path: string) => Promise<T>): Promise<T> {
@@ -163,12 +180,31 @@ export const decomposeKind = defineJobKind({
     const started = Date.now();
     const result = await decomposeRun({ image, mask, motion }, options, (stage, pct) =>
       ctx.progressSync(NEXT_STAGE[stage] ?? stage, 5 + pct * 0.75),
-    );
+    ).catch((err: unknown) => {
+      throw deterministic(err) ?? err;
+    });
     ctx.throwIfStopped();
     await ctx.progress('features', 82);
     const components = componentRows(result, motion);
     await ctx.progress('writing', 90);
-    const files = await writeDecompositionFiles(result, image.header);
+    const files = await writeDecompositionFiles(result, image.header).catch(async (err: unknown) => {
+      // any file-system error while writing results is the storage's fault (a read-only mount
+      // answers mkdir -p with ENOENT on some kernels), never text for people
+      const fault = storageFaultKind(err) ?? ((err as { syscall?: string }).syscall ? 'denied' : null);
+      if (!fault) throw err;
+      ctx.logger.error(`run ${runId}: storage fault while writing the results: ${(err as Error).message}`);
+      // the admin's alert on the Facility page (same row as lib/errors.ts writes; the worker has no server-only imports)
+      await db('audit_log')
+        .insert({ action: 'storage.fault', target_type: 'storage', detail: JSON.stringify({ kind: fault, code: (err as { code?: string }).code, where: `decompose job ${ctx.job.id}` }) })
+        .catch(() => undefined);
+      // people read this on the run: no file-system text (it names paths); retried, the admin is alerted
+      throw new JobError(
+        fault === 'full'
+          ? "The results could not be written: the facility's storage is full. The facility admin has been alerted."
+          : "The results could not be written: the facility's storage refused the write (read-only or permission denied). The facility admin has been alerted.",
+        { cause: err },
+      );
+    });
     const parameters = {
       engine: 'quorum-decomposition',
       mask: mask ? 'uploaded' : 'automatic',

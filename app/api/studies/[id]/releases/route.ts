@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { auditAddress } from '@/lib/auth/client-address';
 import { handler } from '@/lib/api/handler';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { listReleases, releaseReadiness } from '@/lib/db/queries/releases';
@@ -23,6 +24,6 @@ export const GET = handler({ permission: 'releases.read', params, what: 'The rel
 
 // POST /api/studies/:id/releases – a lead releases the study (or one run with {runId}); 409 with the reason when decisions are incomplete
 export const POST = handler({ permission: 'releases.create', params, body: createReleaseSchema, what: 'The release' }, async ({ user, params, body, req }) => {
-  const created = await createRelease({ user, studyId: params.id, runId: body.runId ?? null, notes: body.notes || null, ip: req.headers.get('x-forwarded-for') });
+  const created = await createRelease({ user, studyId: params.id, runId: body.runId ?? null, notes: body.notes || null, ip: auditAddress(req) });
   return Response.json({ releaseId: created.releaseId, version: created.version, files: created.manifest.files.length }, { status: 201 });
 });

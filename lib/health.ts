@@ -1,0 +1,31 @@
+import 'server-only';
+import type { Knex } from 'knex';
+import { secretProblem } from '@/lib/auth/secret';
+
+export type Readiness = {
+  ready: boolean;
+  secret: 'ok' | 'missing or weak';
+  database: 'reachable' | 'unreachable';
+  /** One sentence per failed check, for people and monitoring (no addresses, no driver text). */
+  reasons: string[];
+};
+
+/**
+ * Whether this server can serve signed-in users: in production a real session secret
+ * (lib/auth/secret.ts) and, always, a database that answers. The driver's own error is logged,
+ * never returned (it names hosts and ports).
+ */
+export async function readiness({ env = process.env, conn }: { env?: Record<string, string | undefined>; conn: Knex }): Promise<Readiness> {
+  const reasons: string[] = [];
+  const weak = env.NODE_ENV === 'production' && env.QUORUM_ALLOW_DEV_SECRET !== '1' ? secretProblem(env) : null;
+  if (weak) reasons.push('The session secret is missing or weak: set NEXTAUTH_SECRET to a long random string and restart.');
+  let database: Readiness['database'] = 'reachable';
+  try {
+    await conn.raw('SELECT 1 FROM users LIMIT 1');
+  } catch (err) {
+    console.error('[health] database check failed:', err);
+    database = 'unreachable';
+    reasons.push('The database is not reachable or not migrated: check DATABASE_URL and run the migrations.');
+  }
+  return { ready: reasons.length === 0, secret: weak ? 'missing or weak' : 'ok', database, reasons };
+}
