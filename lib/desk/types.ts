@@ -31,6 +31,8 @@ export type DeskRun = {
   trSeconds: number;
   droppedVolumes: number;
   k: number;
+  /** Warnings of the decomposition (dimension at its bound, FastICA not converged), shown above the desk. */
+  warnings: Array<{ code: string; message: string }>;
   labelSet: string[];
   noiseKinds: string[];
   /** Framewise displacement (mm) per kept volume, when the run has motion parameters. */
