@@ -167,6 +167,7 @@ export const decomposeKind = defineJobKind({
       ctx.progressSync(NEXT_STAGE[stage] ?? stage, 5 + pct * 0.75),
     );
     ctx.throwIfStopped();
+    for (const w of result.warnings) ctx.logger.warn(`run ${runId}: ${w.code}: ${w.message}`);
     await ctx.progress('features', 82);
     const components = componentRows(result, motion);
     await ctx.progress('writing', 90);
