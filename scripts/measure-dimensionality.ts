@@ -2,7 +2,9 @@
 // method's k, and at each of those k the reproducibility index of the components (5 restarts) and how
 // many true sources are found. Prints one JSON line per run and k, then a table.
 //
-//   node --import tsx scripts/measure-dimensionality.ts [--runs XS:1,S:1] [--restarts 5] [--threads 2]
+//   node --import tsx scripts/measure-dimensionality.ts [--runs XS:1,S:1] [--methods iid-mdl,mdl,…] [--restarts 5] [--threads 2]
+//
+// --methods limits the decompositions with restarts to those methods' k (all methods' k are printed).
 //
 // Slow on purpose (several full decompositions per run, up to k = 100 at S size): a measurement, not a test.
 import { parseArgs } from 'node:util';
@@ -51,7 +53,8 @@ const median = (xs: number[]) => {
 const f2 = (x: number) => (Number.isFinite(x) ? x.toFixed(2) : '—');
 
 async function main() {
-  const { values } = parseArgs({ options: { runs: { type: 'string', default: 'XS:1,S:1' }, restarts: { type: 'string', default: '5' }, threads: { type: 'string', default: '2' } } });
+  const { values } = parseArgs({ options: { runs: { type: 'string', default: 'XS:1,S:1' }, restarts: { type: 'string', default: '5' }, threads: { type: 'string', default: '2' }, methods: { type: 'string' } } });
+  const only = values.methods ? new Set(values.methods.split(',')) : null;
   const restarts = Number(values.restarts);
   const threads = Number(values.threads);
   const table: string[] = ['run        method   k    median repro  ≥0.8   sources |r|≥0.5  true-source repro median  other repro median'];
@@ -66,6 +69,7 @@ async function main() {
     console.log(JSON.stringify({ run: `${size}:${seed}`, voxels: auto.voxelsInMask, timepoints: auto.timepoints, sources: p.truth.sources.length, bound, estimates, iidSubsampling: auto.iidSubsampling, smoothnessEffectiveSamples: Math.round(auto.smoothness.effectiveSamples) }));
     const byK = new Map<number, string[]>();
     for (const [method, k] of Object.entries(estimates)) {
+      if (only && !only.has(method)) continue;
       const kk = Math.min(bound, Math.max(2, k));
       byK.set(kk, [...(byK.get(kk) ?? []), method]);
     }
