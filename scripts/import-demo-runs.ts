@@ -1,7 +1,9 @@
 // Puts the demo's synthetic runs into the demo study, through the same upload code a lead's
 // browser uses (validation, checksums, storage keys, motion tables), and queues their
 // decompositions for the worker. Idempotent: a study that already has runs is left alone.
-// Usage: node --conditions=react-server --import tsx scripts/import-demo-runs.ts [--runs 12] [--size small]
+// Usage: node --conditions=react-server --import tsx scripts/import-demo-runs.ts [--runs 6] [--size S]
+// Default: six S-size runs of the realistic phantom (64 × 64 × 36, 300 volumes, 27 sources), so a
+// newcomer rates realistic components; --size small --runs 12 gives the quick toy demo.
 import { execFileSync } from 'node:child_process';
 import { createReadStream, existsSync, readdirSync, statSync } from 'node:fs';
 import path from 'node:path';
@@ -21,7 +23,7 @@ const raw = (file: string) => ({
 });
 
 async function main(): Promise<number> {
-  const { values } = parseArgs({ options: { runs: { type: 'string', default: '12' }, size: { type: 'string', default: 'small' } } });
+  const { values } = parseArgs({ options: { runs: { type: 'string', default: '6' }, size: { type: 'string', default: 'S' } } });
   const study = await db('studies').where({ slug: DEMO_STUDY_SLUG }).first('id');
   const lead = await db('users').where({ email: DEMO_LEAD }).first('id', 'role');
   if (!study || !lead) {
@@ -33,7 +35,7 @@ async function main(): Promise<number> {
     console.log(`demo study already has ${n} runs; nothing imported`);
     return 0;
   }
-  const dir = path.resolve('.data/demo-runs', String(values.size));
+  const dir = path.resolve('.data/demo-runs', `${values.size}-${values.runs}`);
   if (!existsSync(path.join(dir, 'dataset_description.json'))) {
     console.log(`writing ${values.runs} synthetic ${values.size} runs to ${dir}`);
     execFileSync('node', ['--import', 'tsx', 'scripts/make-demo-data.ts', '--out', dir, '--size', String(values.size), '--runs', String(values.runs)], { stdio: ['ignore', 'ignore', 'inherit'] });

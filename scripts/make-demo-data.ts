@@ -31,7 +31,7 @@ import {
 
 const STUDY = 'Evening light and sleep — resting state';
 const FACILITY = 'Fernhollow Imaging Core';
-const SIZES: PhantomSize[] = ['tiny', 'small', 'S', 'M', 'L'];
+const SIZES: PhantomSize[] = ['tiny', 'small', 'XS', 'S', 'M', 'L'];
 
 /** Motion file header: translations in mm, then rotations in radians (about x, y, z). */
 export const MOTION_COLUMNS = ['tx_mm', 'ty_mm', 'tz_mm', 'rx_rad', 'ry_rad', 'rz_rad'] as const;

@@ -16,6 +16,7 @@ import { useQueryClient } from '@tanstack/react-query';
 import type { RunListItem, RunStatus } from '@/lib/db/queries/runs';
 import { bidsName } from '@/lib/bids';
 import { DIM_METHOD_NAMES, DIM_METHODS, type DimMethod } from '@/lib/studies/labels';
+import { WARNING_SHORT } from '@/lib/runs/decomposition-warnings';
 import { decomposeSettingsSchema } from '@/lib/runs/schema';
 import { postJson } from '@/lib/api/client';
 import { Button } from '@/components/ui/button';
@@ -71,7 +72,20 @@ export function RunsTable({ studyId, runs, canManage }: { studyId: number; runs:
       col.accessor((r) => r.trSeconds ?? 0, { id: 'tr', header: 'TR (s)', cell: (c) => (c.row.original.trSeconds == null ? '—' : c.row.original.trSeconds.toFixed(2)) }),
       col.accessor('status', { header: 'Status', cell: (c) => <span data-testid="run-status">{STATUS_TEXT[c.getValue()]}</span> }),
       col.display({ id: 'progress', header: 'Progress', cell: (c) => <ProgressCell run={c.row.original} /> }),
-      col.accessor((r) => r.components ?? -1, { id: 'components', header: 'Components', cell: (c) => <span data-testid="run-components">{c.row.original.components ?? '—'}</span> }),
+      col.accessor((r) => r.components ?? -1, {
+        id: 'components',
+        header: 'Components',
+        cell: (c) => (
+          <span className="flex flex-col">
+            <span data-testid="run-components">{c.row.original.components ?? '—'}</span>
+            {c.row.original.decompositionWarnings.map((w) => (
+              <span key={w.code} className="text-xs text-alarm" title={w.message} data-testid={`run-warning-${w.code}`}>
+                {WARNING_SHORT[w.code] ?? w.code}
+              </span>
+            ))}
+          </span>
+        ),
+      }),
       col.accessor((r) => (r.assigned ? r.submitted / r.assigned : -1), {
         id: 'raters',
         header: 'Raters done',

@@ -86,7 +86,7 @@ export async function seedDemo(db: Knex): Promise<DemoSeedResult> {
       show_votes_after_submit: true,
       uncertain_in_export: 'keep',
       drop_volumes: 4,
-      dim_method: 'laplace', // automatic dimensionality (Laplace evidence)
+      dim_method: 'iid-mdl', // automatic dimensionality (MDL on an i.i.d. voxel subsample)
       fixed_components: null,
       variance_norm: true,
       archived: false,

@@ -74,18 +74,30 @@ export function decompositionSummary(r: DecompositionResult) {
     dimMethod: r.dimMethod,
     dimensionEstimate: r.dimension.estimated,
     dimensionRange: r.dimension.range,
+    /** The automatic search's upper bound, min(⌊T/3⌋, 100, rank − 1), and whether the estimate reached it. */
+    dimensionBound: r.dimension.range[1],
+    dimensionAtBound: r.dimension.atBound,
+    /** Every automatic method's estimate on this run, and the chosen method's criterion per k = 1 … bound + 1. */
+    dimensionEstimates: r.dimension.estimates,
+    dimensionCurve: r.dimension.curve,
+    iidSubsampling: r.iidSubsampling
+      ? { ...r.iidSubsampling, lagCorrelation: r.iidSubsampling.lagCorrelation.map(round), entropyDeficit: r.iidSubsampling.entropyDeficit.map(round) }
+      : null,
     effectiveSamples: round(r.dimension.effectiveSamples),
     smoothnessFwhmVoxels: r.smoothness.fwhmVoxels.map(round),
     eigenvalues: Array.from(r.eigenvalues, round),
     explainedVariance: Array.from(r.explainedVariance, round),
-    /** Per component (0..1), null when the decomposition ran without restarts. */
-    reproducibility: r.reproducibility ? Array.from(r.reproducibility, round) : null,
-    warnings: r.warnings ?? [],
     pcaVarianceKept: round(r.pcaVarianceKept),
     iterations: r.iterations,
     warmStartIterations: r.warmStartIterations,
     warmStartVoxels: r.warmStartVoxels,
     converged: r.converged,
+    /** Per component (component order), 0–1; null when restarts were off. */
+    reproducibility: r.reproducibility ? Array.from(r.reproducibility, (v) => Number(v.toFixed(4))) : null,
+    restarts: r.restarts
+      ? { ...r.restarts, centrotypeSimilarity: r.restarts.centrotypeSimilarity.map((v) => Number(v.toFixed(4))) }
+      : null,
+    warnings: r.warnings,
     seed: r.seed,
     requestedSeed: r.requestedSeed,
     icaAttempts: r.icaAttempts,

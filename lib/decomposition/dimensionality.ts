@@ -1,9 +1,16 @@
 // Number of components from the PCA eigenvalue spectrum: Minka's Laplace evidence, AIC and MDL
-// (Wax & Kailath), a fixed number or a variance fraction, with a sample size corrected for spatial
-// smoothness (see smoothness.ts) and a clamp to a sensible range.
+// (Wax & Kailath) — on all voxels with a smoothness-corrected sample size (smoothness.ts), or on an
+// entropy-rate-guided i.i.d. voxel subsample (iid-subsampling.ts; Li, Adali & Calhoun 2007) — a fixed
+// number or a variance fraction, searched within an explicit bound.
 import { DecompositionError } from './errors';
 
-export type DimMethod = 'laplace' | 'aic' | 'mdl' | { variance: number };
+export type DimMethod = 'laplace' | 'aic' | 'mdl' | 'iid-aic' | 'iid-mdl' | { variance: number };
+
+/** The default automatic method (chosen by scripts/bench/dimensionality.ts on the realistic phantom; see DEVELOPERS.md). */
+export const DEFAULT_DIM_METHOD: DimMethod = 'iid-mdl';
+
+/** Upper end of the automatic search: min(⌊T/3⌋, MAX_COMPONENTS, rank − 1). */
+export const MAX_COMPONENTS = 100;
 
 /**
  * ln Γ(x) for x > 0 by the Lanczos approximation (g = 7, 9 coefficients; Lanczos 1964, the widely
@@ -83,9 +90,16 @@ export function minkaDimension(spectrum: ArrayLike<number>, n: number, maxRank =
  * (at least 1) among k ≤ maxRank. spectrum: descending eigenvalues, all > 0; n: samples.
  */
 export function informationCriterionDimension(spectrum: ArrayLike<number>, n: number, criterion: 'aic' | 'mdl', maxRank = Infinity): number {
-  const p = spectrum.length;
+  const scores = informationCriterionScores(spectrum, n, criterion, maxRank);
   let best = 1;
-  let bestScore = Infinity;
+  for (let k = 2; k < scores.length; k++) if (scores[k]! < scores[best]!) best = k;
+  return best;
+}
+
+/** AIC(k) or MDL(k) of informationCriterionDimension for k = 1 … min(p − 1, maxRank) (index k; index 0 unused, NaN). */
+export function informationCriterionScores(spectrum: ArrayLike<number>, n: number, criterion: 'aic' | 'mdl', maxRank = Infinity): Float64Array {
+  const p = spectrum.length;
+  const out = new Float64Array(Math.max(2, Math.min(p - 1, maxRank) + 1)).fill(NaN);
   // Suffix sums of λ and ln λ give each L(k) in O(1).
   const sum = new Float64Array(p + 1);
   const sumLog = new Float64Array(p + 1);
@@ -99,13 +113,9 @@ export function informationCriterionDimension(spectrum: ArrayLike<number>, n: nu
     const logGeo = sumLog[k]! / q;
     const L = n * q * (logArith - logGeo);
     const penalty = k * (2 * p - k);
-    const score = criterion === 'aic' ? 2 * L + 2 * penalty : L + 0.5 * penalty * Math.log(n);
-    if (score < bestScore) {
-      bestScore = score;
-      best = k;
-    }
+    out[k] = criterion === 'aic' ? 2 * L + 2 * penalty : L + 0.5 * penalty * Math.log(n);
   }
-  return best;
+  return out;
 }
 
 /** Smallest k whose leading eigenvalues hold at least `fraction` of the total (0 < fraction ≤ 1). */
@@ -131,54 +141,97 @@ export function numericalRank(spectrum: ArrayLike<number>): number {
 
 export interface DimensionChoice {
   k: number;
-  /** The method as a string: 'laplace' | 'aic' | 'mdl' | 'variance:F' | 'fixed'. */
+  /** The method as a string: 'laplace' | 'aic' | 'mdl' | 'iid-aic' | 'iid-mdl' | 'variance:F' | 'fixed'. */
   method: string;
   /** The estimate before clamping. */
   estimated: number;
-  /** [min, max] the estimate was clamped to. */
+  /** [min, max] the automatic search covers: [2, min(⌊T/3⌋, 100, rank − 1)]; [1, rank] for a fixed number. */
   range: [number, number];
+  /** True when an automatic estimate reached the search's upper bound (its true value may be higher). */
+  atBound: boolean;
   /** Sample size used by laplace/aic/mdl (voxels corrected for smoothness). */
   effectiveSamples: number;
+  /** Voxels kept by the i.i.d. subsampling (N of iid-aic/iid-mdl); null when it was not run. */
+  iidSamples: number | null;
+  /** Every automatic method's estimate on this run (searched within the same bound), for comparison. */
+  estimates: Record<string, number>;
+  /** The chosen criterion per k = 1 … bound + 1 (AIC/MDL: lower is better; laplace: log evidence); [] otherwise. */
+  curve: number[];
+}
+
+export interface DimensionInput {
+  components: 'auto' | number;
+  method: DimMethod;
+  effectiveSamples: number;
+  /** Eigenvalues of the i.i.d. voxel subsample's covariance and its voxel count (iid-aic, iid-mdl). */
+  iid?: { spectrum: Float64Array; samples: number };
+}
+
+/** Upper bound of the automatic search for T time points and numerical rank `rank`. */
+export function searchBound(T: number, rank: number): number {
+  return Math.max(1, Math.min(Math.floor(T / 3), MAX_COMPONENTS, rank - 1));
 }
 
 /**
  * Chooses the number of components. spectrum: descending covariance eigenvalues (length T);
- * effectiveSamples: N for the evidence/criteria; components: 'auto' or a fixed number.
- * Automatic choices are clamped to [2, min(⌊T/2⌋, 150, rank − 1)]; a fixed number must be 1 … rank.
+ * effectiveSamples: N for laplace/aic/mdl; iid: the subsample's spectrum and N for iid-aic/iid-mdl;
+ * components: 'auto' or a fixed number. Automatic choices are searched up to bound + 1 and clamped to
+ * [2, bound], bound = min(⌊T/3⌋, 100, rank − 1) (searchBound): past a third of the volumes, real
+ * runs' extra components are not reproducible (REAL-DATA.md). Reaching the bound sets atBound.
+ * A fixed number must be 1 … rank.
  */
-export function chooseDimension(
-  spectrum: Float64Array,
-  opts: { components: 'auto' | number; method: DimMethod; effectiveSamples: number },
-): DimensionChoice {
+export function chooseDimension(spectrum: Float64Array, opts: DimensionInput): DimensionChoice {
   const rank = numericalRank(spectrum);
   const T = spectrum.length;
-  const hi = Math.max(1, Math.min(Math.floor(T / 2), 150, rank - 1));
+  const hi = searchBound(T, rank);
   const lo = Math.min(2, hi);
+  const iidSamples = opts.iid ? opts.iid.samples : null;
   if (opts.components !== 'auto') {
     const k = opts.components;
     if (!Number.isInteger(k) || k < 1 || k > rank) {
       throw new DecompositionError('bad_option', `components must be an integer from 1 to ${rank} (the data's rank); got ${k}.`);
     }
-    return { k, method: 'fixed', estimated: k, range: [1, rank], effectiveSamples: opts.effectiveSamples };
+    return { k, method: 'fixed', estimated: k, range: [1, rank], atBound: false, effectiveSamples: opts.effectiveSamples, iidSamples, estimates: {}, curve: [] };
   }
   if (rank < 3) throw new DecompositionError('rank_deficient', `The data have numerical rank ${rank}; at least 3 independent time points are needed.`);
   const s = spectrum.subarray(0, rank);
   const n = opts.effectiveSamples;
+  const argmin = (c: Float64Array) => {
+    let best = 1;
+    for (let k = 2; k < c.length; k++) if (c[k]! < c[best]!) best = k;
+    return best;
+  };
+  const curves: Record<string, Float64Array> = {};
+  {
+    const ev = new Float64Array(Math.min(rank - 1, hi + 1) + 1).fill(NaN);
+    for (let r = 1; r < ev.length; r++) ev[r] = -minkaLogEvidence(s, r, n);
+    curves.laplace = ev;
+  }
+  curves.aic = informationCriterionScores(s, n, 'aic', hi + 1);
+  curves.mdl = informationCriterionScores(s, n, 'mdl', hi + 1);
+  if (opts.iid) {
+    const si = opts.iid.spectrum.subarray(0, Math.max(3, numericalRank(opts.iid.spectrum)));
+    curves['iid-aic'] = informationCriterionScores(si, opts.iid.samples, 'aic', hi + 1);
+    curves['iid-mdl'] = informationCriterionScores(si, opts.iid.samples, 'mdl', hi + 1);
+  }
+  const estimates: Record<string, number> = {};
+  for (const [name, c] of Object.entries(curves)) estimates[name] = argmin(c);
   let estimated: number;
   let method: string;
+  let curve: number[] = [];
   const m = opts.method;
   if (typeof m === 'object') {
     estimated = varianceFractionDimension(s, m.variance);
     method = `variance:${m.variance}`;
-  } else if (m === 'laplace') {
-    estimated = minkaDimension(s, n, hi + 1);
+  } else if (m === 'laplace' || m === 'aic' || m === 'mdl' || m === 'iid-aic' || m === 'iid-mdl') {
+    if (!curves[m]) throw new DecompositionError('bad_option', `The ${m} method needs the i.i.d. voxel subsample; none was given.`);
+    estimated = estimates[m]!;
     method = m;
-  } else if (m === 'aic' || m === 'mdl') {
-    estimated = informationCriterionDimension(s, n, m, hi + 1);
-    method = m;
+    const sign = m === 'laplace' ? -1 : 1;
+    curve = Array.from(curves[m]!.subarray(1), (v) => Number((sign * v).toPrecision(8)));
   } else {
-    throw new DecompositionError('bad_option', `Unknown dimensionality method ${JSON.stringify(m)}; use laplace, aic, mdl or {variance: F}.`);
+    throw new DecompositionError('bad_option', `Unknown dimensionality method ${JSON.stringify(m)}; use iid-mdl, iid-aic, laplace, aic, mdl or {variance: F}.`);
   }
   const k = Math.min(hi, Math.max(lo, estimated));
-  return { k, method, estimated, range: [lo, hi], effectiveSamples: n };
+  return { k, method, estimated, range: [lo, hi], atBound: estimated >= hi, effectiveSamples: n, iidSamples, estimates, curve };
 }

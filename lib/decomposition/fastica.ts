@@ -16,8 +16,14 @@ export interface FastIcaOptions {
   /** Iteration cap per attempt. Default 200 (scikit-learn 1.2.1's default). */
   maxIter?: number;
   seed?: number;
-  /** Attempts with seeds seed, seed+1, … when an attempt does not converge. Default 3. */
-  attempts?: number;
+  /**
+   * Non-convergence policy: when the first attempt reaches maxIter, one retry continues from its
+   * last (best) estimate for up to maxIter more iterations; if that does not converge either, the
+   * result is kept and flagged (converged: false). Default true; false = no retry.
+   */
+  retry?: boolean;
+  /** Start from this unmixing matrix (k × k, row-major; decorrelated first) instead of a seeded random one. */
+  init?: Float64Array;
   /**
    * Size of the voxel subset for a warm start: when V > 2 × this, FastICA first converges on every
    * ⌊V / this⌋-th voxel, then continues on all voxels from that W (the result is still a fixed
@@ -29,15 +35,16 @@ export interface FastIcaOptions {
 export interface FastIcaResult {
   /** Unmixing matrix W (k × k, row-major, orthogonal): s = W·z. */
   w: Float64Array;
-  /** Iterations on the full data (of the attempt returned). */
+  /** Iterations on the full data, both attempts together. */
   iterations: number;
   /** Iterations of the warm start on the voxel subset (0 when none ran). */
   warmStartIterations: number;
   /** Voxels in the warm-start subset (0 when none ran). */
   warmStartVoxels: number;
   converged: boolean;
-  /** Seed of the attempt returned (differs from the requested seed after a retry). */
+  /** Seed of the random start (the requested one; unused when init was given). */
   seed: number;
+  /** 1, or 2 when the warm-started retry ran (see FastIcaOptions.retry). */
   attempts: number;
 }
 
@@ -85,8 +92,9 @@ export function symmetricDecorrelation(w: Float64Array, k: number): Float64Array
  * Hyvärinen & Oja 2000): W⁺ = E{g(Wz) zᵀ} − diag(E{g'(Wz)}) W, then W ← (W⁺W⁺ᵀ)^{−1/2} W⁺, until
  * max_i |1 − |⟨w⁺_i, w_i⟩|| < tol (scikit-learn 1.2.1's stopping rule). Samples are voxels (spatial
  * ICA). z: whitened Float32Array k × V (SharedArrayBuffer-backed for parallel runs). Starts from a
- * seeded Gaussian W (warm-started on a voxel subset for large V); retries with the next seed when an
- * attempt does not converge.
+ * seeded Gaussian W or opts.init (warm-started on a voxel subset for large V); when the attempt does
+ * not converge, retries once from its last estimate, then returns the result flagged (never a
+ * silent fresh restart).
  */
 export async function fastIca(z: Float32Array, k: number, V: number, pool: KernelPool, opts: FastIcaOptions = {}): Promise<FastIcaResult> {
   const contrast = opts.contrast ?? 'logcosh';
@@ -95,8 +103,9 @@ export async function fastIca(z: Float32Array, k: number, V: number, pool: Kerne
   const alpha = opts.alpha ?? 1;
   const tol = opts.tol ?? 1e-4;
   const maxIter = opts.maxIter ?? 200;
-  const seed0 = (opts.seed ?? 1) >>> 0;
-  const attempts = Math.max(1, opts.attempts ?? 3);
+  const seed = (opts.seed ?? 1) >>> 0;
+  const retry = opts.retry ?? true;
+  if (opts.init && opts.init.length !== k * k) throw new DecompositionError('bad_option', `init must hold k × k = ${k * k} values; got ${opts.init.length}.`);
   if (!(tol > 0)) throw new DecompositionError('bad_option', `tol must be positive; got ${tol}.`);
   if (!(Number.isInteger(maxIter) && maxIter >= 1)) throw new DecompositionError('bad_option', `maxIter must be a positive integer; got ${maxIter}.`);
 
@@ -113,24 +122,30 @@ export async function fastIca(z: Float32Array, k: number, V: number, pool: Kerne
       for (let q = 0; q < Vs; q++) zSub[dst + q] = z[src + q * stride]!;
     }
   }
-  let last: FastIcaResult | null = null;
-  for (let a = 0; a < attempts; a++) {
-    const seed = (seed0 + a) >>> 0;
+  let w: Float64Array;
+  if (opts.init) {
+    w = symmetricDecorrelation(opts.init, k);
+  } else {
     const rnd = gaussianSource(seed);
-    let w: Float64Array = new Float64Array(k * k);
+    w = new Float64Array(k * k);
     for (let i = 0; i < k * k; i++) w[i] = rnd();
     w = symmetricDecorrelation(w, k);
-    let warmIterations = 0;
-    if (zSub) {
-      const pre = await iterateFastIca(zSub, k, Vs, pool, w, code, alpha, tol, maxIter);
-      w = pre.w;
-      warmIterations = pre.iterations;
-    }
-    const full = await iterateFastIca(z, k, V, pool, w, code, alpha, tol, maxIter);
-    last = { w: full.w, iterations: full.iterations, warmStartIterations: warmIterations, warmStartVoxels: zSub ? Vs : 0, converged: full.converged, seed, attempts: a + 1 };
-    if (full.converged) break;
   }
-  return last!;
+  let warmIterations = 0;
+  if (zSub) {
+    const pre = await iterateFastIca(zSub, k, Vs, pool, w, code, alpha, tol, maxIter);
+    w = pre.w;
+    warmIterations = pre.iterations;
+  }
+  let full = await iterateFastIca(z, k, V, pool, w, code, alpha, tol, maxIter);
+  let iterations = full.iterations;
+  let attempts = 1;
+  if (!full.converged && retry) {
+    full = await iterateFastIca(z, k, V, pool, full.w, code, alpha, tol, maxIter);
+    iterations += full.iterations;
+    attempts = 2;
+  }
+  return { w: full.w, iterations, warmStartIterations: warmIterations, warmStartVoxels: zSub ? Vs : 0, converged: full.converged, seed, attempts };
 }
 
 let iterationRuns = 0;

@@ -3,15 +3,17 @@
 import { autoBrainMask } from './brain-mask';
 import { temporalCovariance } from './covariance';
 import { buildDataMatrix, meanImage, type DataMatrix, type RunImage } from './data-matrix';
-import { chooseDimension, type DimMethod, type DimensionChoice } from './dimensionality';
+import { chooseDimension, DEFAULT_DIM_METHOD, numericalRank, searchBound, type DimMethod, type DimensionChoice } from './dimensionality';
 import { DecompositionError } from './errors';
-import { fastIca, type Contrast } from './fastica';
+import { fastIca, type Contrast, type FastIcaResult } from './fastica';
+import { iidSubsampling, residualVolumes, subsampledSpectrum, type IidSubsampling } from './iid-subsampling';
+import { clusterEstimates, matchToCentrotypes } from './reproducibility';
 import { KernelPool, sharedFloat32 } from './worker-pool';
 import type { MotionParams } from './motion';
 import { orientComponents } from './orient';
 import { temporalPca } from './pca';
 import { estimateSmoothness, type SmoothnessEstimate } from './smoothness';
-import { whiten } from './whitening';
+import { whiten, type Whitened } from './whitening';
 
 export interface DecomposeInput {
   image: RunImage;
@@ -38,6 +40,40 @@ export interface DecomposeOptions {
   warmStartVoxels?: number;
   /** Worker threads for the voxel-sized kernels (default: available cores; 1 = this thread). */
   threads?: number;
+  /**
+   * FastICA runs with seeds seed, seed + 1, … whose estimates are clustered for the reproducibility
+   * index (reproducibility.ts). Default DEFAULT_RESTARTS; 1 = a single run, no index.
+   */
+  restarts?: number;
+  /** Restarts run on an evenly strided voxel subset of this size when V > 2 × it (0 = all voxels). Default 16384. */
+  restartVoxels?: number;
+}
+
+/** Default number of FastICA restarts for the reproducibility index. */
+export const DEFAULT_RESTARTS = 5;
+
+/** Something the user should know about a finished decomposition (summary.json, runs table, desk). */
+export interface DecompositionWarning {
+  /** 'dimension_at_bound' | 'ica_not_converged'. */
+  code: string;
+  message: string;
+}
+
+export interface RestartSummary {
+  /** FastICA runs clustered (R). */
+  runs: number;
+  /** Seeds of the runs: seed … seed + R − 1. */
+  seeds: number[];
+  /** Voxels each restart ran on (V, or the strided subset's size). */
+  voxels: number;
+  /** How many of the R runs converged (each with its one warm-started retry). */
+  converged: number;
+  /** Iterations of each run (both attempts together). */
+  iterations: number[];
+  /** Per component (final order): estimates in its cluster (R when every restart found it once). */
+  clusterSizes: number[];
+  /** Per component (final order): |similarity| of the final component to its cluster's centrotype. */
+  centrotypeSimilarity: number[];
 }
 
 export type ProgressCallback = (stage: string, percent: number) => void;
@@ -60,7 +96,18 @@ export interface DecompositionResult {
   dimMethod: string;
   dimension: DimensionChoice;
   smoothness: SmoothnessEstimate;
-  /** FastICA iterations on all voxels. */
+  /** The entropy-rate-guided voxel subsample of the iid-* methods (null for a fixed number of components). */
+  iidSubsampling: (Omit<IidSubsampling, 'voxels'> & { samples: number }) | null;
+  /**
+   * Reproducibility index per component (final order), 0–1: the quality index of the component's
+   * cluster of restart estimates (reproducibility.ts). null when restarts were off (restarts = 1).
+   */
+  reproducibility: Float64Array | null;
+  /** Restarts behind the reproducibility index; null when off. */
+  restarts: RestartSummary | null;
+  /** Dimension at its bound, FastICA not converged (see DecompositionWarning). */
+  warnings: DecompositionWarning[];
+  /** FastICA iterations on all voxels (final run, both attempts together). */
   iterations: number;
   /** FastICA warm-start iterations and subset size (0, 0 when V was small enough). */
   warmStartIterations: number;
@@ -91,10 +138,6 @@ export interface DecompositionResult {
   threads: number;
   /** Wall-clock seconds per stage and 'total'. */
   seconds: Record<string, number>;
-  /** Cross-restart reproducibility per component (final order, 0..1); null when restarts are off. */
-  reproducibility: Float64Array | null;
-  /** Things the lead should know about this decomposition (e.g. k at the search bound). */
-  warnings: Array<{ code: string; message: string }>;
 }
 
 const MIN_TIMEPOINTS = 10;
@@ -104,11 +147,14 @@ const MIN_TIMEPOINTS = 10;
  * and constant voxels dropped and counted) → drop initial volumes → time-major voxel × time matrix
  * (Float32Array T × V, float64 accumulation) demeaned per voxel, optionally detrended, variance-
  * normalised by default → T × T covariance with voxels as samples (worker threads) → eigen-
- * decomposition → number of components from the eigenvalues (default Minka's Laplace evidence with
- * N = effectiveSamples = V / Π FWHM, the smoothness-corrected sample count of smoothness.ts, since
- * neighbouring voxels are not independent and the plain N = V overshoots) → PCA whitening →
- * symmetric FastICA (seeded, retried with the next seed on non-convergence) → maps oriented to a
- * positive heavy tail, ordered by variance explained, z-scored. See DecompositionResult for layouts.
+ * decomposition → number of components from the eigenvalues (default iid-mdl: MDL on the covariance
+ * of an entropy-rate-guided i.i.d. voxel subsample, iid-subsampling.ts, since neighbouring voxels are
+ * not independent and N = V overshoots; searched up to min(⌊T/3⌋, 100), reaching it is a warning) →
+ * PCA whitening → symmetric FastICA, `restarts` times with seeds seed, seed + 1, … (on a voxel
+ * subset for large V), estimates clustered by |spatial correlation| and the clusters' centrotypes
+ * refined by one run on all voxels (reproducibility.ts); a run that does not converge retries once
+ * from its last estimate and is then kept and flagged → maps oriented to a positive heavy tail,
+ * ordered by variance explained, z-scored. See DecompositionResult for layouts.
  */
 export async function decomposeRun(input: DecomposeInput, options: DecomposeOptions = {}, onProgress?: ProgressCallback): Promise<DecompositionResult> {
   const t0 = performance.now();
@@ -125,7 +171,11 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
   const detrend = options.detrend ?? false;
   const varianceNorm = options.varianceNorm ?? true;
   const components = options.components ?? 'auto';
-  const dimMethod = options.dimMethod ?? 'laplace';
+  const dimMethod = options.dimMethod ?? DEFAULT_DIM_METHOD;
+  const restarts = options.restarts ?? DEFAULT_RESTARTS;
+  const restartVoxels = options.restartVoxels ?? 16384;
+  if (!Number.isInteger(restarts) || restarts < 1 || restarts > 50) throw new DecompositionError('bad_option', `restarts must be a whole number from 1 to 50; got ${restarts}.`);
+  if (!Number.isInteger(restartVoxels) || restartVoxels < 0) throw new DecompositionError('bad_option', `restartVoxels must be a non-negative integer; got ${restartVoxels}.`);
   const requestedSeed = options.seed ?? 1;
   const contrast = options.contrast ?? 'logcosh';
   const tol = options.tol ?? 1e-4;
@@ -195,16 +245,74 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
     stage('covariance', 45);
     const pca = temporalPca(cov.cov, T);
     stage('pca', 50);
+    let iid: IidSubsampling | null = null;
+    let iidSpectrum: Float64Array | null = null;
+    let whBound: Whitened | null = null;
+    if (components === 'auto') {
+      // Whiten up to the search bound once: its leading rows serve the ICA at any k ≤ bound, and the
+      // residual beyond them shows the noise's own spatial dependence for the i.i.d. subsampling.
+      const m = searchBound(T, numericalRank(pca.eigenvalues));
+      whBound = await whiten(x, T, V, pca.vectors, pca.eigenvalues, cov.spatialMean, m, pool);
+      const res = residualVolumes(x, T, V, cov.spatialMean, whBound.z, whBound.dewhitening, m, m);
+      iid = iidSubsampling(res.residual, res.volumes, V, maskIndices, dims, 3 * T);
+      iidSpectrum = subsampledSpectrum(x, T, V, iid.voxels);
+    }
     const dimension = chooseDimension(pca.eigenvalues, {
       components,
       method: dimMethod,
       effectiveSamples: smoothness.effectiveSamples,
+      iid: iid && iidSpectrum ? { spectrum: iidSpectrum, samples: iid.voxels.length } : undefined,
     });
     const k = dimension.k;
+    const warnings: DecompositionWarning[] = [];
+    if (dimension.atBound) {
+      warnings.push({
+        code: 'dimension_at_bound',
+        message: `The automatic number of components (${dimension.method}) reached its search bound, k = ${k} = min(⌊T/3⌋, 100) for T = ${T} volumes: the run may hold more structure than the bound allows, or noise the method cannot tell from signal. Check the components' reproducibility, or set the number of components.`,
+      });
+    }
     stage('dimensionality', 52);
-    const wh = await whiten(x, T, V, pca.vectors, pca.eigenvalues, cov.spatialMean, k, pool);
+    const wh = whBound ? leadingWhitened(whBound, k, T, V) : await whiten(x, T, V, pca.vectors, pca.eigenvalues, cov.spatialMean, k, pool);
     stage('whitening', 60);
-    const ica = await fastIca(wh.z, k, V, pool, { contrast, tol, maxIter, seed: requestedSeed, warmStartVoxels: options.warmStartVoxels });
+    const icaOptions = { contrast, tol, maxIter };
+    let ica: FastIcaResult;
+    let reproByRow: Float64Array | null = null;
+    let restartSummary: Omit<RestartSummary, 'clusterSizes' | 'centrotypeSimilarity'> | null = null;
+    let rowCluster: { sizes: Int32Array; cluster: Int32Array; similarity: Float64Array } | null = null;
+    if (restarts <= 1) {
+      ica = await fastIca(wh.z, k, V, pool, { ...icaOptions, seed: requestedSeed, warmStartVoxels: options.warmStartVoxels });
+    } else {
+      // Restarts on an evenly strided voxel subset (the whitened space is shared, so their estimates
+      // compare by dot products), then one run on all voxels from the clusters' centrotypes.
+      const stride = restartVoxels > 0 && V > 2 * restartVoxels ? Math.floor(V / restartVoxels) : 1;
+      let zr = wh.z, Vr = V;
+      if (stride > 1) {
+        Vr = Math.ceil(V / stride);
+        zr = sharedFloat32(k * Vr);
+        for (let i = 0; i < k; i++) for (let q = 0; q < Vr; q++) zr[i * Vr + q] = wh.z[i * V + q * stride]!;
+      }
+      const runs: FastIcaResult[] = [];
+      for (let r = 0; r < restarts; r++) {
+        runs.push(await fastIca(zr, k, Vr, pool, { ...icaOptions, seed: (requestedSeed + r) >>> 0, warmStartVoxels: stride > 1 ? 0 : options.warmStartVoxels }));
+        onProgress?.('ica', 60 + (25 * (r + 1)) / restarts);
+      }
+      const clusters = clusterEstimates(runs.map((r) => r.w), k);
+      ica = await fastIca(wh.z, k, V, pool, { ...icaOptions, seed: requestedSeed, init: clusters.centrotypes, warmStartVoxels: 0 });
+      const match = matchToCentrotypes(ica.w, clusters.centrotypes, k);
+      reproByRow = Float64Array.from(match.cluster, (c) => clusters.index[c]!);
+      rowCluster = { sizes: clusters.sizes, cluster: match.cluster, similarity: match.similarity };
+      restartSummary = {
+        runs: restarts,
+        seeds: runs.map((r) => r.seed),
+        voxels: Vr,
+        converged: runs.filter((r) => r.converged).length,
+        iterations: runs.map((r) => r.iterations),
+      };
+    }
+    if (!ica.converged) {
+      const note = `FastICA did not converge within ${maxIter} iterations, nor in one retry of ${maxIter} more from its best estimate (tolerance ${tol}); the components are kept but may be inaccurate. Try fewer components or a larger iteration cap.`;
+      warnings.push({ code: 'ica_not_converged', message: note });
+    }
     stage('ica', 90);
     const s = sharedFloat32(k * V);
     const wShared = ica.w;
@@ -219,6 +327,14 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
       }
     }
     const oriented = orientComponents(s, a, k, V, T, cov.totalSumSquares);
+    const reproducibility = reproByRow ? Float64Array.from(oriented.order, (i) => reproByRow![i]!) : null;
+    const restartsOut: RestartSummary | null = restartSummary && rowCluster
+      ? {
+          ...restartSummary,
+          clusterSizes: Array.from(oriented.order, (i) => rowCluster!.sizes[rowCluster!.cluster[i]!]!),
+          centrotypeSimilarity: Array.from(oriented.order, (i) => rowCluster!.similarity[i]!),
+        }
+      : null;
     let kept = 0, total = 0;
     for (let i = 0; i < T; i++) {
       total += pca.eigenvalues[i]!;
@@ -240,6 +356,12 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
       dimMethod: dimension.method,
       dimension,
       smoothness,
+      iidSubsampling: iid
+        ? { depth: iid.depth, lagCorrelation: iid.lagCorrelation, entropyDeficit: iid.entropyDeficit, limitedBySamples: iid.limitedBySamples, samples: iid.voxels.length }
+        : null,
+      reproducibility,
+      restarts: restartsOut,
+      warnings,
       iterations: ica.iterations,
       warmStartIterations: ica.warmStartIterations,
       warmStartVoxels: ica.warmStartVoxels,
@@ -264,10 +386,15 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
       varianceNormalised: varianceNorm,
       threads: pool.threads,
       seconds,
-      reproducibility: null,
-      warnings: [],
     };
   } finally {
     await pool.close();
   }
+}
+
+/** The first k components of a whitening to kz ≥ k components (rows of z and P, columns of the de-whitening). */
+function leadingWhitened(w: Whitened, k: number, T: number, V: number): Whitened {
+  const dw = new Float64Array(T * k);
+  for (let t = 0; t < T; t++) for (let i = 0; i < k; i++) dw[t * k + i] = w.dewhitening[t * w.k + i]!;
+  return { z: w.z.subarray(0, k * V), k, V, whitening: w.whitening.slice(0, k * T), dewhitening: dw };
 }

@@ -32,6 +32,8 @@ export type DeskRun = {
   droppedVolumes: number;
   /** Components in the decomposition (the desk lists k − reproducibility.hidden of them). */
   k: number;
+  /** Warnings of the decomposition (dimension at its bound, FastICA not converged), shown above the desk. */
+  warnings: Array<{ code: string; message: string }>;
   labelSet: string[];
   noiseKinds: string[];
   /** Framewise displacement (mm) per kept volume, when the run has motion parameters. */

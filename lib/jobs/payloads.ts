@@ -15,7 +15,9 @@ export const decompositionOptionsSchema = z
   .object({
     /** 'auto' or a fixed number of components. */
     components: z.union([z.literal('auto'), z.number().int().min(1).max(500)]).optional(),
-    dimMethod: z.enum(['laplace', 'aic', 'mdl']).optional(),
+    dimMethod: z.enum(['iid-mdl', 'iid-aic', 'laplace', 'aic', 'mdl']).optional(),
+    /** FastICA restarts for the reproducibility index (1 = off). */
+    restarts: z.number().int().min(1).max(50).optional(),
     /** Keep this fraction of variance (0 < F < 1); replaces dimMethod. */
     varianceFraction: z.number().gt(0).lt(1).optional(),
     seed: z.number().int().min(0).max(2 ** 31 - 1).optional(),

@@ -3,8 +3,9 @@ import { headModel } from './head-model';
 import { simulateMotion } from './motion';
 import { childSeed, createRng, normalQuantileTable } from './random';
 import { sizeSpec } from './sizes';
+import { buildRealisticSources, gaussianKernel, NOISE_SMOOTHING_SIGMA_VOXELS, noiseAr1Field, REALISTIC_NOISE_FRACTION, smoothSeparable } from './realistic';
 import { buildSources, MAP_FLOOR } from './sources';
-import type { Phantom, PhantomOptions } from './types';
+import type { Phantom, PhantomModel, PhantomOptions } from './types';
 
 /** Thermal-noise SD after smoothing, as a fraction of the grey-matter baseline (tSNR ≈ 120). */
 export const THERMAL_NOISE_FRACTION = 0.008;
@@ -81,8 +82,12 @@ export function generatePhantom(opts: PhantomOptions): Phantom {
   const [nx, ny, nz] = head.dims;
   const nv = nx * ny * nz;
 
+  const model: PhantomModel = opts.model ?? (opts.size === 'tiny' || opts.size === 'small' ? 'classic' : 'realistic');
+  if (model !== 'classic' && model !== 'realistic') throw new Error(`Unknown phantom model "${String(model)}"; use classic or realistic.`);
+  const realistic = model === 'realistic';
   const motion = simulateMotion(nt, tr, motionScale, createRng(childSeed(seed, 'motion')));
-  const sources = buildSources({ head, nt, trSeconds: tr, motion, motionScale, seed });
+  const sourceInput = { head, nt, trSeconds: tr, motion, motionScale, seed };
+  const sources = realistic ? buildRealisticSources(sourceInput) : buildSources(sourceInput);
   const sparse = sources.map((src) => {
     let n = 0;
     for (let i = 0; i < nv; i++) if (Math.abs(src.map[i]) >= MAP_FLOOR) n++;
@@ -97,18 +102,31 @@ export function generatePhantom(opts: PhantomOptions): Phantom {
     return { idx, gain, tc: src.timecourse };
   });
 
-  const k2 = KERNEL[0] ** 2 + KERNEL[1] ** 2 + KERNEL[2] ** 2;
-  const sigma0 = (THERMAL_NOISE_FRACTION * 820) / Math.sqrt(k2 * k2 * k2);
+  const gk = gaussianKernel(NOISE_SMOOTHING_SIGMA_VOXELS);
+  let k2 = KERNEL[0] ** 2 + KERNEL[1] ** 2 + KERNEL[2] ** 2;
+  if (realistic) k2 = gk.reduce((a, v) => a + v * v, 0);
+  const sigma0 = ((realistic ? REALISTIC_NOISE_FRACTION : THERMAL_NOISE_FRACTION) * 820) / Math.sqrt(k2 * k2 * k2);
   const data = new Float32Array(nv * nt);
   const rng = createRng(childSeed(seed, 'thermal'));
   const table = normalQuantileTable(TABLE_SIZE);
   for (let i = 0; i < TABLE_SIZE; i++) table[i] *= sigma0;
   const base = head.baseline;
+  // Realistic model: AR(1) noise n_t = ρ n_{t−1} + √(1 − ρ²) u_t per voxel (u_t the smoothed
+  // innovation volume), so the stationary SD equals the innovations' and lag-1 autocorrelation is ρ.
+  const rho = realistic ? noiseAr1Field(head.dims, createRng(childSeed(seed, 'noise colour'))) : null;
+  const prev = realistic ? new Float32Array(nv) : null;
+  const scratch = new Float32Array(Math.max(nx, ny, nz));
   for (let t = 0; t < nt; t++) {
     const vol = data.subarray(t * nv, (t + 1) * nv);
     // Approximately normal samples from a quantile table (see normalQuantileTable), scaled by σ0.
     for (let i = 0; i < nv; i++) vol[i] = table[(rng.next() * TABLE_SIZE) | 0];
-    smooth3(vol, head.dims, KERNEL);
+    if (rho && prev) {
+      smoothSeparable(vol, head.dims, gk, scratch);
+      if (t > 0) for (let i = 0; i < nv; i++) vol[i] = rho[i] * prev[i] + Math.sqrt(1 - rho[i] * rho[i]) * vol[i];
+      prev.set(vol);
+    } else {
+      smooth3(vol, head.dims, KERNEL);
+    }
     for (let i = 0; i < nv; i++) vol[i] += base[i];
     for (const sp of sparse) {
       const c = sp.tc[t];
@@ -129,5 +147,6 @@ export function generatePhantom(opts: PhantomOptions): Phantom {
     motion,
     seed,
     size: opts.size,
+    model,
   };
 }

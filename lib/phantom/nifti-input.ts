@@ -55,19 +55,23 @@ export function truthSummary(p: Phantom): {
   trSeconds: number;
   dims: number[];
   model: string;
-  sources: Array<{ index: number; name: string; kind: string; noiseKind: string | null; timecourse: number[] }>;
+  /** 'classic' or 'realistic' (see PhantomOptions.model). */
+  phantomModel: string;
+  sources: Array<{ index: number; name: string; kind: string; noiseKind: string | null; pattern?: string; timecourse: number[] }>;
 } {
   return {
     size: p.size,
     seed: p.seed,
     trSeconds: p.trSeconds,
     dims: [...p.dims],
-    model: 'data = baseline * (1 + sum_s map_s * timecourse_s) + smoothed Gaussian noise; timecourse = fractional signal change at map weight 1',
+    phantomModel: p.model,
+    model: 'data = baseline * (1 + sum_s map_s * timecourse_s) + smoothed Gaussian noise (realistic model: Gaussian-smoothed, AR(1) in time); timecourse = fractional signal change at map weight 1',
     sources: p.truth.sources.map((s, index) => ({
       index,
       name: s.name,
       kind: s.kind,
       noiseKind: s.noiseKind ?? null,
+      ...(s.pattern ? { pattern: s.pattern } : {}),
       timecourse: Array.from(s.timecourse, (v) => Number(v.toPrecision(6))),
     })),
   };

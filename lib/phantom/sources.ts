@@ -41,7 +41,7 @@ export const NETWORKS: NetworkSpec[] = [
   { name: 'left fronto-parietal network', blobs: [[-0.75, 0.55, 0.35], [-0.7, -0.55, 0.55]], sigmaMm: 12 },
 ];
 
-interface Grid {
+export interface Grid {
   nx: number;
   ny: number;
   nz: number;
@@ -50,14 +50,14 @@ interface Grid {
   zs: Float64Array;
 }
 
-function grid(head: HeadModel): Grid {
+export function grid(head: HeadModel): Grid {
   const [nx, ny, nz] = head.dims;
   const axis = (n: number, v: number) => Float64Array.from({ length: n }, (_, i) => voxelToMm(i, n, v));
   return { nx, ny, nz, xs: axis(nx, head.voxelSize[0]), ys: axis(ny, head.voxelSize[1]), zs: axis(nz, head.voxelSize[2]) };
 }
 
 /** Point (mm) `depthMm` below the brain ellipsoid surface in direction d (ignores the flattened base). */
-function belowSurface(d: [number, number, number], depthMm: number, s: number): [number, number, number] {
+export function belowSurface(d: [number, number, number], depthMm: number, s: number): [number, number, number] {
   const [a, b, c] = BRAIN_SEMI_AXES_MM.map((v) => v * s);
   const r = Math.sqrt((d[0] / a) ** 2 + (d[1] / b) ** 2 + (d[2] / c) ** 2);
   const surf = d.map((v) => v / r) as [number, number, number];
@@ -67,7 +67,7 @@ function belowSurface(d: [number, number, number], depthMm: number, s: number): 
 }
 
 /** Rescales a map so max |w| = 1 and zeroes weights below MAP_FLOOR (in place). */
-function normaliseMap(map: Float32Array): Float32Array {
+export function normaliseMap(map: Float32Array): Float32Array {
   let peak = 0;
   for (let i = 0; i < map.length; i++) peak = Math.max(peak, Math.abs(map[i]));
   if (peak === 0) return map;
@@ -82,7 +82,7 @@ function normaliseMap(map: Float32Array): Float32Array {
  * Gaussian blobs exp(−|p − c|² / 2σ²) summed over centres, weighted by tissue (grey 1, white 0.1,
  * CSF and outside 0), truncated beyond 3σ. Returns a 3D map (x fastest), not yet normalised.
  */
-function blobMap(head: HeadModel, g: Grid, centres: Array<[number, number, number]>, sigma: number): Float32Array {
+export function blobMap(head: HeadModel, g: Grid, centres: Array<[number, number, number]>, sigma: number): Float32Array {
   const map = new Float32Array(g.nx * g.ny * g.nz);
   const cut = 9 * sigma * sigma;
   for (let k = 0; k < g.nz; k++) {

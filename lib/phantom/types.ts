@@ -1,6 +1,6 @@
 // Types of the synthetic fMRI phantom (invented data for tests, benchmarks and the demo).
 
-export type PhantomSize = 'tiny' | 'small' | 'S' | 'M' | 'L';
+export type PhantomSize = 'tiny' | 'small' | 'XS' | 'S' | 'M' | 'L';
 
 export type PhantomNoiseKind =
   | 'motion'
@@ -20,7 +20,16 @@ export interface PhantomOptions {
   volumes?: number;
   /** Multiplies the simulated head motion (and so the rim source). Default 1; 0 = no motion. */
   motionScale?: number;
+  /**
+   * 'classic': 10 sources, mildly smoothed white noise (a sharp eigenvalue elbow; the tests' tiny
+   * and small fixtures). 'realistic': 27 sources, Gaussian-smoothed, temporally autocorrelated noise
+   * (a smoothly decaying spectrum, as in real runs; see realistic.ts). Default: classic for tiny and
+   * small, realistic for S, M and L.
+   */
+  model?: PhantomModel;
 }
+
+export type PhantomModel = 'classic' | 'realistic';
 
 export interface PhantomSource {
   name: string;
@@ -33,6 +42,11 @@ export interface PhantomSource {
    * data = baseline · (1 + Σ map·timecourse) + thermal noise.
    */
   timecourse: Float64Array;
+  /**
+   * What the source looks like, for use as a label (realistic model only): 'network', 'rim', 'drift',
+   * 'step', 'spike', 'slice', 'pulsation', 'vascular', 'susceptibility'.
+   */
+  pattern?: string;
 }
 
 export interface PhantomTruth {
@@ -57,4 +71,5 @@ export interface Phantom {
   motion: { translations: Float64Array[]; rotations: Float64Array[] };
   seed: number;
   size: PhantomSize;
+  model: PhantomModel;
 }

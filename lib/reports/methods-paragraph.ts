@@ -33,6 +33,8 @@ export type MethodsInput = {
 };
 
 const DIM: Record<string, string> = {
+  'iid-mdl': 'the minimum description length criterion (Wax & Kailath 1985) on an entropy-rate-guided i.i.d. subsample of voxels (Li, Adali & Calhoun 2007)',
+  'iid-aic': 'the Akaike information criterion (Wax & Kailath 1985) on an entropy-rate-guided i.i.d. subsample of voxels (Li, Adali & Calhoun 2007)',
   laplace: "Minka's Laplace approximation of the PCA model evidence (Minka 2000)",
   aic: 'the Akaike information criterion of Wax & Kailath (1985)',
   mdl: 'the minimum description length criterion of Wax & Kailath (1985)',

@@ -46,11 +46,13 @@ export const CONSENSUS_NAMES: Record<ConsensusRule, string> = {
   lead: 'A lead decides every disagreement',
 };
 
-export const DIM_METHODS = ['laplace', 'aic', 'mdl', 'fixed', 'variance'] as const;
+export const DIM_METHODS = ['iid-mdl', 'iid-aic', 'laplace', 'aic', 'mdl', 'fixed', 'variance'] as const;
 export type DimMethod = (typeof DIM_METHODS)[number];
 
 export const DIM_METHOD_NAMES: Record<DimMethod, string> = {
-  laplace: 'Automatic (Laplace evidence)',
+  'iid-mdl': 'Automatic (MDL on independent voxels)',
+  'iid-aic': 'AIC on independent voxels',
+  laplace: 'Laplace evidence',
   aic: 'AIC',
   mdl: 'MDL',
   fixed: 'Fixed number of components',

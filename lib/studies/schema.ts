@@ -65,7 +65,7 @@ export const STUDY_DEFAULTS: StudyValues = {
   blinding: true,
   showVotesAfterSubmit: true,
   dropVolumes: 0,
-  dimMethod: 'laplace',
+  dimMethod: 'iid-mdl',
   fixedComponents: null,
   varianceFraction: null,
   varianceNorm: true,

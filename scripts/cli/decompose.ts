@@ -15,8 +15,8 @@ import { MOTION_USAGE, motionOptions, readMotionOption } from './motion-options'
 import type { CliCommand } from './index';
 
 const USAGE =
-  'usage: quorum decompose FILE --out DIR [--mask FILE] [--components auto|N] [--dim-method laplace|aic|mdl|variance:F] ' +
-  '[--seed N] [--drop N] [--no-variance-norm] [--detrend] [--contrast logcosh|exp|cube] [--threads N] ' +
+  'usage: quorum decompose FILE --out DIR [--mask FILE] [--components auto|N] [--dim-method iid-mdl|iid-aic|laplace|aic|mdl|variance:F] ' +
+  '[--seed N] [--restarts N] [--drop N] [--no-variance-norm] [--detrend] [--contrast logcosh|exp|cube] [--threads N] ' +
   MOTION_USAGE;
 
 class UsageError extends Error {}
@@ -29,10 +29,10 @@ function integer(name: string, text: string | undefined, min: number): number | 
 
 function dimMethodOf(text: string | undefined): DimMethod | undefined {
   if (text === undefined) return undefined;
-  if (text === 'laplace' || text === 'aic' || text === 'mdl') return text;
+  if (text === 'laplace' || text === 'aic' || text === 'mdl' || text === 'iid-aic' || text === 'iid-mdl') return text;
   const m = /^variance:(\d*\.?\d+)$/.exec(text);
   if (m && Number(m[1]) > 0 && Number(m[1]) <= 1) return { variance: Number(m[1]) };
-  throw new UsageError(`--dim-method must be laplace, aic, mdl or variance:F with 0 < F ≤ 1; got "${text}".`);
+  throw new UsageError(`--dim-method must be iid-mdl, iid-aic, laplace, aic, mdl or variance:F with 0 < F ≤ 1; got "${text}".`);
 }
 
 /**
@@ -79,6 +79,7 @@ export const decompose: CliCommand = {
           components: { type: 'string' },
           'dim-method': { type: 'string' },
           seed: { type: 'string' },
+          restarts: { type: 'string' },
           drop: { type: 'string' },
           'no-variance-norm': { type: 'boolean', default: false },
           detrend: { type: 'boolean', default: false },
@@ -96,6 +97,7 @@ export const decompose: CliCommand = {
         components,
         dimMethod: dimMethodOf(values['dim-method']),
         seed: integer('seed', values.seed, 0),
+        restarts: integer('restarts', values.restarts, 1),
         drop: integer('drop', values.drop, 0),
         varianceNorm: !values['no-variance-norm'],
         detrend: values.detrend,
@@ -134,6 +136,7 @@ export const decompose: CliCommand = {
       };
       const json = JSON.stringify(summary, null, 2);
       await writeFile(path.join(values.out, 'summary.json'), json + '\n');
+      for (const w of r.warnings) process.stderr.write(`quorum decompose: warning (${w.code}): ${w.message}\n`);
       process.stdout.write(json + '\n');
       return 0;
     } catch (err) {

@@ -74,7 +74,7 @@ describe('studies', () => {
   it('makes the creator the lead member and keeps the protocol', async () => {
     const access = await findStudyForUser({ user: users.lead, studyId });
     expect(access).toMatchObject({ studyRole: 'lead', canManage: true, seesAllRuns: true });
-    expect(access!.study).toMatchObject({ blinding: true, dimMethod: 'laplace', dropVolumes: 2, labelSet: ['signal', 'noise', 'uncertain'] });
+    expect(access!.study).toMatchObject({ blinding: true, dimMethod: 'iid-mdl', dropVolumes: 2, labelSet: ['signal', 'noise', 'uncertain'] });
     await updateStudy({ user: users.lead, studyId, values: { dimMethod: 'fixed', fixedComponents: 12, allowUncertain: false } });
     const after = await findStudyForUser({ user: users.lead, studyId });
     expect(after!.study).toMatchObject({ dimMethod: 'fixed', fixedComponents: 12, labelSet: ['signal', 'noise'] });

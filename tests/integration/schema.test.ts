@@ -270,7 +270,7 @@ describe('demo seed', () => {
     const study = await scratch('studies').where({ id: first.studyId }).first();
     expect(study).toMatchObject({
       name: 'Evening light and sleep — resting state', raters_per_run: 3, consensus_rule: 'majority',
-      blinding: true, drop_volumes: 4, dim_method: 'laplace', created_by: first.users['lead@fernhollow.example'],
+      blinding: true, drop_volumes: 4, dim_method: 'iid-mdl', created_by: first.users['lead@fernhollow.example'],
     });
     expect(parseJson(study.label_set)).toEqual(['signal', 'noise', 'uncertain']);
     const members = await scratch('study_members as m').join('users as u', 'u.id', 'm.user_id')

@@ -61,7 +61,7 @@ describe('decompose in process', () => {
     expect(d.k).toBeGreaterThanOrEqual(2);
     expect(job!.result).toMatchObject({ decompositionId: d.id, k: d.k });
     const params = parseJson<Record<string, unknown>>(d.parameters)!;
-    expect(params).toMatchObject({ mask: 'automatic', dropVolumes: 0, varianceNorm: true, detrend: false, dimMethod: 'laplace', seed: 1, contrast: 'logcosh' });
+    expect(params).toMatchObject({ mask: 'automatic', dropVolumes: 0, varianceNorm: true, detrend: false, dimMethod: 'iid-mdl', seed: 1, contrast: 'logcosh' });
     const summary = parseJson<Record<string, unknown>>(d.summary)!;
     expect(summary).toMatchObject({ components: d.k, timepoints: 80 });
 

@@ -91,14 +91,15 @@ describe('quorum decompose', () => {
     }
   });
 
-  it('features.tsv writes undefined features as n/a and has the drift, step and reproducibility columns; summary.json says reproducibility was not computed', async () => {
+  it('features.tsv writes undefined features as n/a and has the drift, step and reproducibility columns; summary.json says reproducibility was not computed with --restarts 1', async () => {
     const dir = await mkdtemp(path.join(tmpdir(), 'quorum-decompose-features-'));
     dirs.push(dir);
     const p = generatePhantom({ size: 'tiny', seed: 2, volumes: 40 });
     const file = path.join(dir, 'run.nii.gz');
     await writeNiftiFile(file, phantomToNiftiInput(p, { datatype: 'int16' }));
     const out = path.join(dir, 'out');
-    const res = await runCli([file, '--out', out, '--components', '4', '--seed', '1', '--threads', '1']);
+    // --restarts 1: a single FastICA run, so no reproducibility index (the default runs restarts)
+    const res = await runCli([file, '--out', out, '--components', '4', '--seed', '1', '--threads', '1', '--restarts', '1']);
     expect(res.code).toBe(0);
     const summary = JSON.parse(res.stdout);
     expect(summary.reproducibility).toBeNull();

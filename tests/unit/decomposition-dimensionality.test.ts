@@ -89,11 +89,23 @@ describe('chooseDimension', () => {
     expect(varianceFractionDimension([4, 3, 2, 1], 0.4)).toBe(1);
     expect(chooseDimension(s, { components: 'auto', method: { variance: 0.5 }, effectiveSamples: 1000 }).method).toBe('variance:0.5');
   });
-  it('clamps automatic choices to [2, min(T/2, 150)] and reports the raw estimate', () => {
+  it('clamps automatic choices to [2, min(⌊T/3⌋, 100)], reports the raw estimate and flags the bound', () => {
     const c = chooseDimension(s, { components: 'auto', method: { variance: 1 }, effectiveSamples: 1000 });
     expect(c.estimated).toBe(40);
-    expect(c.k).toBe(20);
-    expect(c.range).toEqual([2, 20]);
+    expect(c.k).toBe(13);
+    expect(c.range).toEqual([2, 13]);
+    expect(c.atBound).toBe(true);
+    const long = Float64Array.from({ length: 600 }, (_, i) => 600 - i);
+    expect(chooseDimension(long, { components: 'auto', method: { variance: 1 }, effectiveSamples: 1e5 }).range).toEqual([2, 100]);
+    const inside = chooseDimension(s, { components: 'auto', method: 'mdl', effectiveSamples: 1000 });
+    expect(inside).toMatchObject({ k: 5, atBound: false });
+    expect(inside.estimates).toMatchObject({ aic: 5, mdl: 5 });
+    expect(inside.curve).toHaveLength(14);
+  });
+  it('iid-aic / iid-mdl judge the subsample\'s own spectrum with its voxel count', () => {
+    const c = chooseDimension(s, { components: 'auto', method: 'iid-mdl', effectiveSamples: 1000, iid: { spectrum: s, samples: 800 } });
+    expect(c).toMatchObject({ k: 5, method: 'iid-mdl', iidSamples: 800 });
+    expect(() => chooseDimension(s, { components: 'auto', method: 'iid-mdl', effectiveSamples: 1000 })).toThrow(/needs the i.i.d. voxel subsample/);
   });
   it('fixed numbers pass through; out of range is a typed error', () => {
     expect(chooseDimension(s, { components: 7, method: 'laplace', effectiveSamples: 1000 })).toMatchObject({ k: 7, method: 'fixed' });

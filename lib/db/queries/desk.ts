@@ -1,4 +1,5 @@
 import 'server-only';
+import { decompositionWarnings } from '@/lib/runs/decomposition-warnings';
 import type { Knex } from 'knex';
 import { readFile } from 'node:fs/promises';
 import { blobToFloat32, db, parseJson } from '@/lib/db/knex';
@@ -153,6 +154,7 @@ export async function loadDeskComponents({ user, runId }: { user: Caller; runId:
       trSeconds: Number(run.trSeconds),
       droppedVolumes: run.droppedVolumes,
       k: all.length,
+      warnings: decompositionWarnings(run.summary),
       labelSet: run.labelSet,
       noiseKinds: run.noiseKinds,
       framewiseDisplacement: await readFramewiseDisplacement(run),

@@ -1,4 +1,5 @@
 import 'server-only';
+import { decompositionWarnings } from '@/lib/runs/decomposition-warnings';
 import { db, parseJson } from '@/lib/db/knex';
 import { componentsOfDecomposition, droppedVolumesOf } from './desk';
 import { bidsName } from '@/lib/bids';
@@ -53,6 +54,7 @@ export async function loadRunForReview({ user, runId }: { user: Pick<UserRow, 'i
     trSeconds: Number(run.trSeconds),
     droppedVolumes: droppedVolumesOf(run),
     k: components.length,
+    warnings: decompositionWarnings(run.summary),
     labelSet: parseJson<string[]>(run.labelSet, []) ?? [],
     noiseKinds: parseJson<string[]>(run.noiseKinds, []) ?? [],
     framewiseDisplacement: null,

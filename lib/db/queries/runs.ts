@@ -1,6 +1,7 @@
 import 'server-only';
 import type { Knex } from 'knex';
 import { db, parseJson } from '@/lib/db/knex';
+import { decompositionWarnings, type DecompositionWarning } from '@/lib/runs/decomposition-warnings';
 import type { UserRow } from './users';
 import { runAgreements } from './agreement';
 import { findStudyAccess } from './study-access';
@@ -28,6 +29,8 @@ export type RunListItem = {
   createdAt: Date;
   job: { id: number; status: JobStatus; stage: string | null; percent: number | null; message: string | null } | null;
   components: number | null;
+  /** Warnings of the current decomposition (its summary): dimension at the bound, not converged. */
+  decompositionWarnings: DecompositionWarning[];
   assigned: number;
   submitted: number;
   /** Agreement on the run (e.g. Fleiss κ); null until it has been computed. */
@@ -143,6 +146,7 @@ export async function listRunsForStudy({ user, studyId, runId }: Scoped & { stud
       'j.percent as jobPercent',
       'j.message as jobMessage',
       'd.k as components',
+      db.raw("JSON_EXTRACT(d.summary, '$.warnings') as decompositionWarnings"),
       db.raw('(SELECT COUNT(*) FROM assignments a WHERE a.run_id = r.id) as assigned'),
       db.raw('(SELECT COUNT(*) FROM assignments a WHERE a.run_id = r.id AND a.submitted_at IS NOT NULL) as submitted'),
     )
@@ -182,6 +186,7 @@ export async function listRunsForStudy({ user, studyId, runId }: Scoped & { stud
               message: (r.jobMessage as string | null) ?? null,
             },
       components: r.components == null ? null : Number(r.components),
+      decompositionWarnings: decompositionWarnings(r.decompositionWarnings),
       assigned: Number(r.assigned),
       submitted: Number(r.submitted),
       agreement: agreement.get(Number(r.id)) ?? null,

@@ -10,6 +10,7 @@ import { readFile } from 'node:fs/promises';
 import type { Knex } from 'knex';
 import { dropInitialVolumes, parseMotionFile, type MotionOrder, type MotionParams } from '@/lib/decomposition/motion';
 import { decomposeRun, type DecomposeOptions } from '@/lib/decomposition/pipeline';
+import { DEFAULT_DIM_METHOD } from '@/lib/decomposition/dimensionality';
 import { readNiftiFile, type NiftiImage } from '@/lib/nifti';
 import { assignRaters, type AssignRatersResult } from '@/lib/runs/assign-raters';
 import { afterAssignmentsCreated } from '@/lib/notifications/queue';
@@ -42,7 +43,7 @@ const NEXT_STAGE: Record<string, string> = {
 
 interface ProtocolRow {
   drop_volumes: number;
-  dim_method: 'laplace' | 'aic' | 'mdl' | 'fixed' | 'variance';
+  dim_method: 'iid-mdl' | 'iid-aic' | 'laplace' | 'aic' | 'mdl' | 'fixed' | 'variance';
   fixed_components: number | null;
   variance_fraction: number | null;
   variance_norm: boolean;
@@ -59,14 +60,15 @@ export function decomposeOptionsFor(protocol: ProtocolRow, o: DecomposePayload['
     contrast: o.contrast ?? 'logcosh',
     tol: o.tol ?? 1e-4,
     maxIter: o.maxIter ?? 200,
+    ...(o.restarts !== undefined ? { restarts: o.restarts } : {}),
   };
   if (o.components !== undefined || o.dimMethod !== undefined || o.varianceFraction !== undefined) {
     opts.components = o.components ?? 'auto';
-    opts.dimMethod = o.varianceFraction !== undefined ? { variance: o.varianceFraction } : (o.dimMethod ?? 'laplace');
+    opts.dimMethod = o.varianceFraction !== undefined ? { variance: o.varianceFraction } : (o.dimMethod ?? DEFAULT_DIM_METHOD);
   } else if (protocol.dim_method === 'fixed') {
     if (!protocol.fixed_components) throw new PermanentJobError('The study protocol asks for a fixed number of components but gives none; set it in the protocol.');
     opts.components = Number(protocol.fixed_components);
-    opts.dimMethod = 'laplace';
+    opts.dimMethod = DEFAULT_DIM_METHOD;
   } else if (protocol.dim_method === 'variance') {
     const f = Number(protocol.variance_fraction);
     if (!(f > 0 && f < 1)) throw new PermanentJobError('The study protocol asks for a variance fraction but gives none between 0 and 1; set it in the protocol.');
@@ -184,6 +186,7 @@ export const decomposeKind = defineJobKind({
       throw deterministic(err) ?? err;
     });
     ctx.throwIfStopped();
+    for (const w of result.warnings) ctx.logger.warn(`run ${runId}: ${w.code}: ${w.message}`);
     await ctx.progress('features', 82);
     const components = componentRows(result, motion);
     await ctx.progress('writing', 90);
@@ -219,6 +222,7 @@ export const decomposeKind = defineJobKind({
       contrast: result.contrast,
       tol: result.tol,
       maxIter: result.maxIter,
+      restarts: result.restarts?.runs ?? 1,
       threads: result.threads,
       trSeconds: result.trSeconds,
       motion: motion ? { order: motionOrderOf(run.motion_order), rotationUnits: run.motion_rotation_units ?? 'radians' } : null,

@@ -54,7 +54,7 @@ export interface StudyProtocol {
   raters_per_run?: number;
   consensus_rule?: 'unanimous' | 'majority' | 'lead';
   drop_volumes?: number;
-  dim_method?: 'laplace' | 'aic' | 'mdl' | 'fixed' | 'variance';
+  dim_method?: 'iid-mdl' | 'iid-aic' | 'laplace' | 'aic' | 'mdl' | 'fixed' | 'variance';
   fixed_components?: number | null;
   variance_fraction?: number | null;
   variance_norm?: boolean;

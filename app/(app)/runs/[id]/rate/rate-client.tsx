@@ -236,6 +236,13 @@ export function RateClient({
           </h1>
           <p className="text-xs text-ink-muted">{run.studyName}</p>
         </div>
+        {run.warnings?.length ? (
+          <ul className="basis-full text-xs text-alarm" data-testid="desk-decomposition-warnings">
+            {run.warnings.map((w) => (
+              <li key={w.code} data-testid={`desk-warning-${w.code}`}>{w.message}</li>
+            ))}
+          </ul>
+        ) : null}
         <p className="font-mono text-sm" data-testid="desk-position" aria-live="polite">
           Component <span className="text-ink">{component.idx}</span> of {run.k}
         </p>
