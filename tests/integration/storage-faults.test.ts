@@ -98,7 +98,10 @@ describe.skipIf(!mounted)('storage faults', () => {
     execFileSync('mount', ['-o', 'remount,ro', mountPoint]);
     const since = await lastAuditId();
     const { jobId } = await enqueueDecomposition(db, { runId, maxAttempts: 1 });
+    // jobs other test files left queued wait until this one is claimed
+    await db('jobs').where({ status: 'queued' }).whereNot({ id: jobId }).update({ run_after: db.raw('NOW(3) + INTERVAL 1 DAY') });
     const job = await claimJob(db, { workerId: 'fault-test', leaseMs: 30_000, kinds: Object.keys(jobKinds) });
+    expect(job?.id).toBe(jobId);
     const quiet = { info() {}, warn() {}, error() {} };
     expect(await runClaimedJob(db, job!, { workerId: 'fault-test', leaseMs: 30_000, kinds: jobKinds, logger: quiet, retryBaseMs: 0 })).toBe('failed');
     const failed = await getJob(db, jobId);
