@@ -1,3 +1,4 @@
+/* eslint-disable @typescript-eslint/no-explicit-any -- manifests, TSV rows and raw SQL rows are read back untyped to check them field by field */
 /**
  * Releases and exports against the real MariaDB, through the real route handlers, as each role:
  * a lead releases a study whose decisions are complete (decisions made directly, votes from two

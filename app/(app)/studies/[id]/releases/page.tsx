@@ -49,7 +49,7 @@ export default async function ReleasesPage({ params }: { params: Promise<{ id: s
           {readiness.notReady.length ? ` ${readiness.notReady.length} run(s) are not ready and will not be part of a release.` : ''}
           {latestStudy && changed ? ` ${changed} decision(s) changed since version ${latestStudy.version}: release again to publish them.` : ''}
         </p>
-        {isLead ? <ReleaseAction studyId={studyId} refusal={refusal} pending={readiness.pending + readiness.undecided} runs={perRun} /> : <p className="text-sm text-ink-muted">Only the study's leads release.</p>}
+        {isLead ? <ReleaseAction studyId={studyId} refusal={refusal} pending={readiness.pending + readiness.undecided} runs={perRun} /> : <p className="text-sm text-ink-muted">Only the study&apos;s leads release.</p>}
       </Panel>
 
       {releases.length === 0 ? (
