@@ -8,6 +8,7 @@ export type AppErrorCode =
   | 'not_found'
   | 'conflict'
   | 'too_large'
+  | 'unsupported_media_type'
   | 'too_many_requests'
   | 'unavailable'
   | 'internal';
@@ -20,6 +21,7 @@ const STATUS: Record<AppErrorCode, number> = {
   not_found: 404,
   conflict: 409,
   too_large: 413,
+  unsupported_media_type: 415,
   too_many_requests: 429,
   unavailable: 503,
   internal: 500,

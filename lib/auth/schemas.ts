@@ -1,6 +1,6 @@
 import { z } from 'zod';
 
-export const emailSchema = z.string().trim().toLowerCase().pipe(z.email({ message: 'Enter a valid e-mail address.' }));
+export const emailSchema = z.string().trim().toLowerCase().max(255, { message: 'Use at most 255 characters.' }).pipe(z.email({ message: 'Enter a valid e-mail address.' }));
 
 export const passwordSchema = z
   .string()
@@ -14,9 +14,9 @@ export const signInSchema = z.object({
 
 export const changePasswordSchema = z
   .object({
-    currentPassword: z.string().min(1, { message: 'Enter your current password.' }),
+    currentPassword: z.string().min(1, { message: 'Enter your current password.' }).max(200, { message: 'That password is too long.' }),
     newPassword: passwordSchema,
-    confirmPassword: z.string(),
+    confirmPassword: z.string().max(200),
   })
   .refine((v) => v.newPassword === v.confirmPassword, {
     path: ['confirmPassword'],

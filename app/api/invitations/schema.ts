@@ -20,7 +20,7 @@ const nameSchema = z.string().trim().min(1, { message: 'Enter your name.' }).max
 const acceptFields = z.object({
   name: nameSchema,
   password: passwordSchema,
-  confirmPassword: z.string(),
+  confirmPassword: z.string().max(200),
 });
 const samePasswords = (v: { password: string; confirmPassword: string }) => v.password === v.confirmPassword;
 const differ = { path: ['confirmPassword'], message: 'The two passwords differ.' };
