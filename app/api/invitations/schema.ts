@@ -1,8 +1,7 @@
 import { z } from 'zod';
 import { emailSchema, passwordSchema } from '@/lib/auth/schemas';
 import { ROLES } from '@/lib/auth/roles';
-
-export const STUDY_ROLES = ['lead', 'rater', 'observer'] as const;
+import { STUDY_ROLES } from '@/lib/studies/labels';
 
 /** An invitation: address, facility role, and optionally a study with the role in it. */
 export const inviteSchema = z

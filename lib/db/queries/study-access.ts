@@ -1,8 +1,8 @@
 import 'server-only';
 import { db } from '@/lib/db/knex';
 import type { UserRow } from './users';
+import type { StudyRole } from '@/lib/studies/labels';
 
-export type StudyRole = 'lead' | 'rater' | 'observer';
 export type StudyAccess = { studyId: number; name: string; studyRole: StudyRole | null; isAdmin: boolean };
 
 /**
