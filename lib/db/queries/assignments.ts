@@ -4,7 +4,7 @@ import { bidsName } from '@/lib/bids';
 import { recomputeRunDecisions } from '@/lib/consensus/recompute';
 import { db } from '@/lib/db/knex';
 import { AppError, notFound } from '@/lib/errors';
-import { afterAssignmentsCreated, ensureDailyOverdue } from '@/lib/notifications/queue';
+import { afterAssignmentsCreated, ensureDailyOverdue } from '@/lib/notifications/enqueue';
 import { recordAudit } from './audit';
 import { findStudyAccess, leadsStudy } from './study-access';
 import type { UserRow } from './users';

@@ -7,7 +7,7 @@ import { bidsName } from '@/lib/bids';
 import { pathFor } from '@/lib/storage';
 import { dropInitialVolumes, framewiseDisplacement, parseMotionFile } from '@/lib/decomposition/motion';
 import { recordAudit } from './audit';
-import { queueVotesCompleteCheck } from '@/lib/notifications/queue';
+import { queueVotesCompleteCheck } from '@/lib/notifications/enqueue';
 import type { ComponentsPayload, DeskComponent } from '@/lib/desk/types';
 
 type Caller = { id: number };

@@ -12,7 +12,7 @@ import { dropInitialVolumes, parseMotionFile, type MotionOrder, type MotionParam
 import { decomposeRun, type DecomposeOptions } from '@/lib/decomposition/pipeline';
 import { readNiftiFile, type NiftiImage } from '@/lib/nifti';
 import { assignRaters, type AssignRatersResult } from '@/lib/runs/assign-raters';
-import { afterAssignmentsCreated } from '@/lib/notifications/queue';
+import { afterAssignmentsCreated } from '@/lib/notifications/enqueue';
 import {
   componentRows,
   decompositionSummary,
