@@ -1,4 +1,5 @@
 import type { Role } from './roles';
+import type { StudyRole } from '@/lib/studies/labels';
 
 /**
  * The one permission matrix. Every route handler and server action names one of these actions;
@@ -61,4 +62,20 @@ export const PERMISSIONS: Record<Role, ReadonlySet<Action>> = {
 
 export function can(role: Role, action: Action): boolean {
   return PERMISSIONS[role]?.has(action) ?? false;
+}
+
+/**
+ * The caller's access to one study (lib/db/queries/study-access.ts#findStudyAccess): null when
+ * they may not see it. Admins see every study; everyone else only studies they are a member of.
+ */
+export type Access = { studyId: number; name: string; studyRole: StudyRole | null; isAdmin: boolean };
+
+/** Study-level rule: the caller leads this study (or is an admin), so may change it, reconcile, run its calibration set and release. */
+export function leadsStudy(access: Access | null): boolean {
+  return !!access && (access.isAdmin || access.studyRole === 'lead');
+}
+
+/** Study-level rule: the caller manages this study's runs and protocol — an admin, or a member leading it who also holds the facility role lead. */
+export function managesStudy({ role, studyRole }: { role: Role; studyRole: StudyRole | null }): boolean {
+  return role === 'admin' || (studyRole === 'lead' && role === 'lead');
 }

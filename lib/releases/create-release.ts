@@ -13,7 +13,8 @@ import { db, toJson } from '@/lib/db/knex';
 import { bidsName } from '@/lib/bids';
 import { AppError, forbidden, notFound } from '@/lib/errors';
 import type { UserRow } from '@/lib/db/queries/users';
-import { findStudyAccess, leadsStudy } from '@/lib/db/queries/study-access';
+import { findStudyAccess } from '@/lib/db/queries/study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { loadStudyRatings } from '@/lib/db/queries/agreement';
 import {

@@ -5,7 +5,8 @@ import { bidsName } from '@/lib/bids';
 import { AppError } from '@/lib/errors';
 import type { DeskRun } from '@/lib/desk/types';
 import type { UserRow } from './users';
-import { findStudyAccess, leadsStudy } from './study-access';
+import { findStudyAccess } from './study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 
 
 /**

@@ -3,7 +3,8 @@ import Link from 'next/link';
 import { notFound, redirect } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
 import { listCalibration } from '@/lib/db/queries/calibration';
-import { findStudyAccess, leadsStudy } from '@/lib/db/queries/study-access';
+import { findStudyAccess } from '@/lib/db/queries/study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 import { CalibrationClient } from '@/components/calibration/calibration-client';
 
 export const metadata: Metadata = { title: 'Calibration' };
