@@ -4,7 +4,7 @@ import { useState } from 'react';
 import { useRouter } from 'next/navigation';
 import { useForm, useWatch } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { inviteSchema, type InviteInput } from '@/app/api/invitations/schema';
+import { inviteSchema, type InviteInput } from '@/lib/invitations/schema';
 import { postJson } from '@/lib/api/client';
 import { ROLE_LABELS, type Role } from '@/lib/auth/roles';
 import { Field } from '@/components/ui/field';

@@ -1,6 +1,6 @@
 import { after } from 'next/server';
 import { handler } from '@/lib/api/handler';
-import { inviteSchema } from './schema';
+import { inviteSchema } from '@/lib/invitations/schema';
 import { accountExists } from '@/lib/db/queries/people';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { leadsStudy } from '@/lib/auth/permissions';

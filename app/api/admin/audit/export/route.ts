@@ -1,5 +1,5 @@
 import { handler } from '@/lib/api/handler';
-import { auditFilterSchema } from '../schema';
+import { auditFilterSchema } from '@/lib/audit/schema';
 import { iterateAuditLog, type AuditRow } from '@/lib/db/queries/audit-log';
 import { csvLine } from '@/lib/exports/tabular';
 
