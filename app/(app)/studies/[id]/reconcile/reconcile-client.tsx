@@ -11,7 +11,7 @@ import { TimecourseChart } from '@/components/charts/timecourse-chart';
 import { SpectrumChart } from '@/components/charts/spectrum-chart';
 import { FeaturePanel } from '@/components/desk/feature-panel';
 import { VotesSideBySide } from '@/components/reconcile/votes-side-by-side';
-import { useReconcileItems, useReviewRun } from '@/components/reconcile/use-reconcile';
+import { useReconcileItems, useReconcileRun } from '@/components/reconcile/use-reconcile';
 import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/notice';
 
@@ -31,7 +31,7 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
   const { data: items = [], isFetching } = useReconcileItems(studyId, { runId: runFilter, noiseKind: kindFilter, include }, initialItems);
   const [selected, setSelected] = useState<number | null>(initialItems[0]?.componentId ?? null);
   const item = items.find((i) => i.componentId === selected) ?? items[0] ?? null;
-  const review = useReviewRun(item?.runId ?? null);
+  const review = useReconcileRun(item?.runId ?? null);
   const component = review.data?.components.find((c) => c.id === item?.componentId) ?? null;
   const run = review.data?.run;
 

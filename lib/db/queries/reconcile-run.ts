@@ -14,7 +14,7 @@ import { leadsStudy } from '@/lib/auth/permissions';
  * rating desk draws (maps, time courses, spectra, features), reached through leading the study
  * instead of an assignment. 404 when the run is not in a study the caller leads.
  */
-export async function loadRunForReview({ user, runId }: { user: Pick<UserRow, 'id' | 'role'>; runId: number }) {
+export async function loadRunForReconcile({ user, runId }: { user: Pick<UserRow, 'id' | 'role'>; runId: number }) {
   const run = await db('runs as r')
     .join('studies as s', 's.id', 'r.study_id')
     .join('decompositions as d', function () {
