@@ -1,5 +1,4 @@
-import type { Role } from './roles';
-import type { StudyRole } from '@/lib/studies/labels';
+import type { Role, StudyRole } from './roles';
 
 /**
  * The one permission matrix. Every route handler and server action names one of these actions;
