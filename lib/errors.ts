@@ -9,6 +9,7 @@ export type AppErrorCode =
   | 'not_found'
   | 'conflict'
   | 'too_large'
+  | 'unsupported_media_type'
   | 'too_many_requests'
   | 'insufficient_storage'
   | 'unavailable'
@@ -22,6 +23,7 @@ const STATUS: Record<AppErrorCode, number> = {
   not_found: 404,
   conflict: 409,
   too_large: 413,
+  unsupported_media_type: 415,
   too_many_requests: 429,
   insufficient_storage: 507,
   unavailable: 503,

@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
-# npm test: every test of the project on this machine. Installs what is missing, starts its own
+# npm test: every test of the project on this machine. Installs what is missing, runs the static
+# checks (type-check, lint, dependency rule, dead exports: scripts/checks.sh), starts its own
 # MariaDB (unless DATABASE_URL is set) and app, runs vitest (unit + integration) and Playwright,
-# stops what it started, and ends with one line "N passed, N failed".
+# stops what it started, and ends with one line "N passed, N failed" (each static check counts as one).
 set -uo pipefail
 cd "$(dirname "$0")/.."
 source scripts/lib/ensure-system.sh
@@ -10,6 +11,10 @@ ensure_debian_packages with-browser || exit 1
 ensure_node_modules || exit 1
 mkdir -p .data/test-results
 rm -f .data/test-results/*.json
+
+status=0
+echo "== static checks =="
+bash scripts/checks.sh || status=1
 
 started_db=0
 if [ -z "${DATABASE_URL:-}" ] && ! bash scripts/db.sh status >/dev/null 2>&1; then started_db=1; fi
@@ -20,7 +25,6 @@ cleanup() {
 }
 trap cleanup EXIT
 
-status=0
 echo "== unit and integration tests (vitest) =="
 npx vitest run --reporter=default --reporter=json --outputFile=.data/test-results/vitest.json || status=1
 
@@ -35,5 +39,5 @@ else
   status=1
 fi
 
-node scripts/lib/test-summary.mjs .data/test-results/vitest.json .data/test-results/playwright.json build=$( [ -f .next/BUILD_ID ] && echo ok || echo failed ) || status=1
+node scripts/lib/test-summary.mjs .data/test-results/vitest.json .data/test-results/playwright.json build=$( [ -f .next/BUILD_ID ] && echo ok || echo failed ) checks=.data/test-results/checks.json || status=1
 exit $status

@@ -1,6 +1,6 @@
 import type { Metadata } from 'next';
 import { requirePageUser } from '@/lib/auth/session';
-import { listQueueForRater } from '@/lib/db/queries/queue';
+import { listQueueForRater } from '@/lib/db/queries/work-queue';
 import { listStudiesForUser } from '@/lib/db/queries/studies';
 import { listUsers } from '@/lib/db/queries/users';
 import { RaterQueue } from '@/components/home/rater-queue';

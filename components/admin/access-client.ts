@@ -1,4 +1,4 @@
-import type { AccessChange } from '@/app/api/admin/schema';
+import type { AccessChange } from '@/lib/people/schema';
 import type { ApiResult } from '@/lib/api/client';
 
 /** PATCH /api/admin/users/:id from the browser. */

@@ -3,7 +3,7 @@
 import { useRouter } from 'next/navigation';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { auditFilterSchema, type AuditFilterInput } from '@/app/api/admin/audit/schema';
+import { auditFilterSchema, type AuditFilterInput } from '@/lib/audit/schema';
 import { Button } from '@/components/ui/button';
 
 type Choices = { actions: string[]; actors: { id: number; name: string }[]; studies: { id: number; name: string }[] };

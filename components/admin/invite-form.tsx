@@ -2,9 +2,9 @@
 
 import { useState } from 'react';
 import { useRouter } from 'next/navigation';
-import { useForm } from 'react-hook-form';
+import { useForm, useWatch } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { inviteSchema, type InviteInput } from '@/app/api/invitations/schema';
+import { inviteSchema, type InviteInput } from '@/lib/invitations/schema';
 import { postJson } from '@/lib/api/client';
 import { ROLE_LABELS, type Role } from '@/lib/auth/roles';
 import { Field } from '@/components/ui/field';
@@ -41,11 +41,11 @@ function SelectField({ label, name, error, children, ...props }: React.SelectHTM
 export function InviteForm({ roles, studies, studyRoles }: { roles: Role[]; studies: { id: number; name: string }[]; studyRoles: string[] }) {
   const router = useRouter();
   const [result, setResult] = useState<{ kind: 'ok' | 'error'; text: string } | null>(null);
-  const { register, handleSubmit, formState, reset, setError, watch } = useForm<InviteInput>({
+  const { register, handleSubmit, formState, reset, setError, control } = useForm<InviteInput>({
     resolver: zodResolver(inviteSchema),
     defaultValues: { role: roles.includes('rater') ? 'rater' : roles[0], studyId: '', studyRole: '' } as unknown as InviteInput,
   });
-  const studyId = watch('studyId');
+  const studyId = useWatch({ control, name: 'studyId' });
 
   const onSubmit = handleSubmit(async (values) => {
     setResult(null);

@@ -127,7 +127,7 @@ export function PeopleTable({ people, currentUserId }: { people: PersonView[]; c
         },
       }),
     ],
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- `change` is a new function each render but only reads state through its arguments and the router
     [busy, currentUserId],
   );
 

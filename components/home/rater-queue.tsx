@@ -1,5 +1,5 @@
 import Link from 'next/link';
-import type { QueueItem } from '@/lib/db/queries/queue';
+import type { QueueItem } from '@/lib/db/queries/work-queue';
 import { Panel } from '@/components/ui/panel';
 import { bidsName } from '@/lib/bids';
 

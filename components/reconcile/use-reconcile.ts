@@ -24,9 +24,9 @@ export function useReconcileItems(studyId: number, filters: { runId?: number; no
 }
 
 /** One run's components as the lead reviews them (loaded once per run, kept for the session). */
-export function useReviewRun(runId: number | null) {
+export function useReconcileRun(runId: number | null) {
   return useQuery({
-    queryKey: ['review-run', runId],
+    queryKey: ['reconcile-run', runId],
     enabled: runId != null,
     staleTime: Infinity,
     queryFn: () => unwrap(getJson<ComponentsPayload>(`/api/reconcile/runs/${runId}/components`)),

@@ -97,6 +97,7 @@ export function RunsTable({ studyId, runs, canManage }: { studyId: number; runs:
     [studyId, canManage],
   );
 
+  // eslint-disable-next-line react-hooks/incompatible-library -- TanStack Table keeps its own state; the React Compiler leaves this component alone
   const table = useReactTable({
     data,
     columns,

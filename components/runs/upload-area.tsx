@@ -1,6 +1,6 @@
 'use client';
 
-import { useCallback, useRef, useState } from 'react';
+import { useCallback, useLayoutEffect, useRef, useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { parseBidsName, bidsName } from '@/lib/bids';
 import { fileNameProblem, formatBytes, MOTION_ORDER_NAMES, MOTION_ORDERS, runEntitiesSchema } from '@/lib/runs/schema';
@@ -55,7 +55,9 @@ export function UploadArea({ studyId, maxBytes }: { studyId: number; maxBytes: n
   const [busy, setBusy] = useState(false);
   const input = useRef<HTMLInputElement>(null);
   const itemsRef = useRef<Item[]>([]);
-  itemsRef.current = items;
+  useLayoutEffect(() => {
+    itemsRef.current = items;
+  });
 
   const update = useCallback((key: string, patch: Partial<Item>) => {
     setItems((list) => list.map((it) => (it.key === key ? { ...it, ...patch } : it)));

@@ -2,7 +2,7 @@
 
 import { useState } from 'react';
 import { useRouter } from 'next/navigation';
-import { useForm } from 'react-hook-form';
+import { useForm, useWatch } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { studySchema, type StudyInput, type StudyValues } from '@/lib/studies/schema';
 import { CONSENSUS_NAMES, CONSENSUS_RULES, DIM_METHOD_NAMES, DIM_METHODS, LOW_REPRODUCIBILITY_NAMES, LOW_REPRODUCIBILITY_POLICIES, NOISE_KIND_KEYS, NOISE_KIND_NAMES } from '@/lib/studies/labels';
@@ -18,11 +18,11 @@ export function StudyForm({ initial, studyId }: { initial: StudyValues; studyId?
   const router = useRouter();
   const [failure, setFailure] = useState<string | null>(null);
   const [saved, setSaved] = useState(false);
-  const { register, handleSubmit, formState, setError, watch } = useForm<StudyInput, unknown, StudyValues>({
+  const { register, handleSubmit, formState, setError, control } = useForm<StudyInput, unknown, StudyValues>({
     resolver: zodResolver(studySchema),
     defaultValues: initial,
   });
-  const dimMethod = watch('dimMethod');
+  const [dimMethod, allowUncertain] = useWatch({ control, name: ['dimMethod', 'allowUncertain'] });
   const errors = formState.errors;
 
   const onSubmit = handleSubmit(async (values) => {
@@ -63,7 +63,7 @@ export function StudyForm({ initial, studyId }: { initial: StudyValues; studyId?
           ))}
         </Select>
         <div className="text-sm">
-          <p className="text-ink-muted">Labels: Signal, Noise{watch('allowUncertain') ? ', Uncertain' : ''}</p>
+          <p className="text-ink-muted">Labels: Signal, Noise{allowUncertain ? ', Uncertain' : ''}</p>
           <Check label="Offer “Uncertain” as a label" {...register('allowUncertain')} />
         </div>
         <div className="text-sm" role="group" aria-labelledby="noise-kinds-label" aria-describedby={errors.noiseKinds ? 'noise-kinds-error' : undefined}>

@@ -1,5 +1,5 @@
 'use client';
-import { useEffect, useRef, useState } from 'react';
+import { useEffect, useLayoutEffect, useRef, useState } from 'react';
 import { Niivue, SHOW_RENDER, type NiiVueLocation } from '@niivue/niivue';
 import { DUSK, EMBER } from './colormaps';
 
@@ -49,7 +49,9 @@ export default function VolumeViewer(props: VolumeViewerProps) {
   const nvRef = useRef<Niivue | null>(null);
   const [ready, setReady] = useState(false);
   const latest = useRef(props);
-  latest.current = props;
+  useLayoutEffect(() => {
+    latest.current = props;
+  });
 
   useEffect(() => {
     const canvas = canvasRef.current;
@@ -69,7 +71,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
       loadingText: 'loading maps…',
     });
     nvRef.current = nv;
-    (window as unknown as { __quorumViewer?: Niivue }).__quorumViewer = nv; // for the browser tests' timing breakdown
+    if (window.__quorumTestHooks) (window as unknown as { __quorumViewer?: Niivue }).__quorumViewer = nv; // for the browser tests' timing breakdown
     (async () => {
       await nv.attachToCanvas(canvas);
       nv.addColormap('quorum-ember', EMBER);

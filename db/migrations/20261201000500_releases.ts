@@ -5,7 +5,7 @@
  * the generated column run_key = IFNULL(run_id, 0).
  */
 import type { Knex } from 'knex';
-import { createdAt, tableDefaults, updatedAt } from '../schema-helpers';
+import { tableDefaults } from '../schema-helpers';
 
 
 export async function up(knex: Knex): Promise<void> {

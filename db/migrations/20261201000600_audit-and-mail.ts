@@ -4,7 +4,7 @@
  * Audit rows outlive their actors and studies: those keys are SET NULL on delete.
  */
 import type { Knex } from 'knex';
-import { createdAt, tableDefaults, updatedAt } from '../schema-helpers';
+import { createdAt, tableDefaults } from '../schema-helpers';
 
 
 export async function up(knex: Knex): Promise<void> {

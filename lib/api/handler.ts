@@ -4,6 +4,7 @@ import { requireUser } from '@/lib/auth/session';
 import type { Action } from '@/lib/auth/permissions';
 import type { UserRow } from '@/lib/db/queries/users';
 import { AppError, errorResponse } from '@/lib/errors';
+import { checkOrigin, readJsonBody } from './request-guards';
 
 type Schema = z.ZodType;
 type Out<S> = S extends Schema ? z.output<S> : undefined;
@@ -28,25 +29,6 @@ export type HandlerContext<Q, B, P, U> = {
 
 type RouteContext = { params: Promise<Record<string, string | string[]>> };
 
-async function readBody(req: Request): Promise<unknown> {
-  const type = req.headers.get('content-type') ?? '';
-  if (type.includes('application/json')) {
-    const text = await req.text();
-    if (!text) return {};
-    try {
-      return JSON.parse(text);
-    } catch {
-      throw new AppError('bad_request', 'The request body is not valid JSON.');
-    }
-  }
-  if (type.includes('multipart/form-data') || type.includes('application/x-www-form-urlencoded')) {
-    return Object.fromEntries((await req.formData()).entries());
-  }
-  const text = await req.text();
-  if (!text) return {};
-  throw new AppError('bad_request', 'Send the request body as JSON (Content-Type: application/json).');
-}
-
 function parse<S extends Schema | undefined>(schema: S, value: unknown, what: string): Out<S> {
   if (!schema) return undefined as Out<S>;
   const result = schema.safeParse(value);
@@ -55,8 +37,10 @@ function parse<S extends Schema | undefined>(schema: S, value: unknown, what: st
 }
 
 /**
- * The one wrapper for route handlers: authenticate → check the permission → validate params, query
- * and body with zod → run. Row scoping is the handler's job, in its queries' WHERE clauses.
+ * The one wrapper for route handlers: refuse state changes from other sites (Origin/Referer) →
+ * authenticate → check the permission → validate params, query and body with zod (a body is JSON
+ * only, 415 otherwise, and at most 64 KB, 413 otherwise) → run. Row scoping is the handler's job,
+ * in its queries' WHERE clauses. Upload routes declare no body and read the stream themselves.
  * Errors become JSON responses (AppError → its status; anything else → logged, generic 500).
  */
 export function handler<
@@ -70,11 +54,12 @@ export function handler<
 ) {
   return async (req: Request, context: RouteContext): Promise<Response> => {
     try {
+      checkOrigin(req);
       const user = spec.permission === 'public' ? null : await requireUser(spec.permission);
       const what = spec.what ?? 'The request';
       const params = parse(spec.params as P, context?.params ? await context.params : {}, `${what}'s address`);
       const query = parse(spec.query as Q, Object.fromEntries(new URL(req.url).searchParams), `${what}'s query`);
-      const body = spec.body ? parse(spec.body as B, await readBody(req), what) : (undefined as Out<B>);
+      const body = spec.body ? parse(spec.body as B, await readJsonBody(req), what) : (undefined as Out<B>);
       const result = await fn({ req, user: user as never, query, body, params });
       return result instanceof Response ? result : Response.json(result ?? { ok: true });
     } catch (err) {

@@ -36,9 +36,6 @@ export const bulkDueSchema = z
   .object({ runIds: z.array(z.coerce.number().int().positive()).min(1, { message: 'Choose at least one run.' }).max(1000, { message: 'At most 1000 runs at once.' }), dueAt: dueAtSchema })
   .strict();
 
-export type AddRaterInput = z.input<typeof addRaterSchema>;
-export type BulkDueInput = z.input<typeof bulkDueSchema>;
-
 /** Route addresses. */
 export const studyParamsSchema = z.object({ id: z.coerce.number().int().positive({ message: 'must be a study number' }) });
 export const runParamsSchema = z.object({ id: z.coerce.number().int().positive({ message: 'must be a run number' }) });

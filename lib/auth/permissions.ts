@@ -1,4 +1,4 @@
-import type { Role } from './roles';
+import type { Role, StudyRole } from './roles';
 
 /**
  * The one permission matrix. Every route handler and server action names one of these actions;
@@ -14,15 +14,14 @@ export const ACTIONS = [
   'runs.read',
   'runs.upload',
   'runs.manage',
-  'jobs.read',
   'votes.write',
   'decisions.reconcile',
+  'calibration.manage',
   'agreement.read',
   'releases.read',
   'releases.create',
   'exports.download',
   'denoise.request',
-  'users.read',
   'users.manage',
   'invitations.create',
   'audit.read',
@@ -37,7 +36,6 @@ const reader: Action[] = [
   'tokens.manage',
   'studies.read',
   'runs.read',
-  'jobs.read',
   'agreement.read',
   'releases.read',
   'exports.download',
@@ -52,10 +50,10 @@ export const PERMISSIONS: Record<Role, ReadonlySet<Action>> = {
     'runs.upload',
     'runs.manage',
     'decisions.reconcile',
+    'calibration.manage',
     'releases.create',
     'denoise.request',
     'invitations.create',
-    'users.read',
   ]),
   rater: new Set<Action>([...everyone, 'studies.read', 'runs.read', 'votes.write']),
   observer: new Set<Action>(reader),
@@ -63,4 +61,20 @@ export const PERMISSIONS: Record<Role, ReadonlySet<Action>> = {
 
 export function can(role: Role, action: Action): boolean {
   return PERMISSIONS[role]?.has(action) ?? false;
+}
+
+/**
+ * The caller's access to one study (lib/db/queries/study-access.ts#findStudyAccess): null when
+ * they may not see it. Admins see every study; everyone else only studies they are a member of.
+ */
+export type Access = { studyId: number; name: string; studyRole: StudyRole | null; isAdmin: boolean };
+
+/** Study-level rule: the caller leads this study (or is an admin), so may change it, reconcile, run its calibration set and release. */
+export function leadsStudy(access: Access | null): boolean {
+  return !!access && (access.isAdmin || access.studyRole === 'lead');
+}
+
+/** Study-level rule: the caller manages this study's runs and protocol — an admin, or a member leading it who also holds the facility role lead. */
+export function managesStudy({ role, studyRole }: { role: Role; studyRole: StudyRole | null }): boolean {
+  return role === 'admin' || (studyRole === 'lead' && role === 'lead');
 }

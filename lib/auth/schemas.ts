@@ -20,9 +20,9 @@ export const signInSchema = z.object({
 
 export const changePasswordSchema = z
   .object({
-    currentPassword: z.string().min(1, { message: 'Enter your current password.' }),
+    currentPassword: z.string().min(1, { message: 'Enter your current password.' }).max(200, { message: 'That password is too long.' }),
     newPassword: passwordSchema,
-    confirmPassword: z.string(),
+    confirmPassword: z.string().max(200),
   })
   .refine((v) => v.newPassword === v.confirmPassword, {
     path: ['confirmPassword'],

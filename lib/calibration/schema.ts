@@ -31,6 +31,3 @@ export const assignCalibrationSchema = z.object({ raterId: id('a rater') }).stri
 
 /** POST /api/studies/:id/calibration/certifications — the lead's verdict on a rater (scores stored with it). */
 export const certifySchema = z.object({ userId: id('a rater'), passed: z.boolean({ message: 'Say whether the rater passed.' }) }).strict();
-
-export type ReferenceInput = z.input<typeof referenceSchema>;
-export type CertifyInput = z.input<typeof certifySchema>;

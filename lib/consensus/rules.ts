@@ -8,7 +8,8 @@
  * "Uncertain" is a label like any other here; whether an uncertain component is kept or removed is
  * an export question (kept by default — common practice, no source).
  */
-export type ConsensusRule = 'unanimous' | 'majority' | 'lead';
+import type { ConsensusRule } from '@/lib/studies/labels';
+export type { ConsensusRule };
 export type VoteForConsensus = { label: string; noiseKind: string | null };
 export type AutomaticDecision =
   | { method: 'unanimous' | 'majority'; label: string; noiseKind: string | null }

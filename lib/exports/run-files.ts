@@ -2,7 +2,7 @@
  * The files of one released run (pure: strings in, strings out). Names are BIDS-style with our
  * own desc- words; every TSV has a JSON sidecar that describes each column and carries the caution.
  *
- *   <stem>_desc-verdicts_components.tsv   one row per component: decision, how decided, votes, reason
+ *   <stem>_desc-decisions_components.tsv   one row per component: decision, how decided, votes, reason
  *   <stem>_desc-noiselist_components.tsv  the components to remove (1-based) with their noise kind
  *   <stem>_desc-noiselist_components.txt  the same numbers on one comma-separated line
  *   <stem>_desc-sources_timeseries.tsv    one column per component time course, one row per kept volume
@@ -11,7 +11,8 @@
  */
 import { EXPORT_CAUTION } from './cautions';
 import { isRemoved, noiseList, noiseListLine, uncertainSentence, type UncertainPolicy } from './noise-list';
-import { toTsv, type Cell } from './tsv';
+import { toTsv, type Cell } from './tabular';
+import { EXPORT_FORMAT_SIDECAR } from './format';
 
 export type ExportVote = { raterCode: string; label: string; noiseKind: string | null };
 export type ExportComponent = {
@@ -73,6 +74,7 @@ function sidecar(description: string, columns: Record<string, { Description: str
     GeneratedBy: { Name: 'Quorum', Version: input.release.software },
     Release: { StudyId: input.release.studyId, ReleaseId: input.release.releaseId, Version: input.release.version, ReleasedAt: input.release.releasedAt },
     Caution: EXPORT_CAUTION,
+    ...EXPORT_FORMAT_SIDECAR,
   };
 }
 
@@ -108,9 +110,9 @@ export function runExportFiles(input: RunExportInput): TextFile[] {
     c.reason,
     c.varianceExplained,
   ]);
-  files.push({ name: `${stem}_desc-verdicts_components.tsv`, content: toTsv(header, rows) });
+  files.push({ name: `${stem}_desc-decisions_components.tsv`, content: toTsv(header, rows) });
   files.push({
-    name: `${stem}_desc-verdicts_components.json`,
+    name: `${stem}_desc-decisions_components.json`,
     content: json(
       sidecar('The released decision on every component of the run, how it was reached and the votes behind it.', {
         component: { Description: 'Component number, 1..k, ordered by variance explained (1 = most).' },
@@ -136,7 +138,7 @@ export function runExportFiles(input: RunExportInput): TextFile[] {
     name: `${stem}_desc-noiselist_components.json`,
     content: json(
       sidecar('The components to remove from the run (the noise list). The same numbers are on one comma-separated line in the .txt file of the same name.', {
-        component: { Description: 'Component number to remove, 1-based, as in the desc-verdicts table and the volumes of the desc-sources NIfTI.' },
+        component: { Description: 'Component number to remove, 1-based, as in the desc-decisions table and the volumes of the desc-sources NIfTI.' },
         label: { Description: 'The decided label (noise, or uncertain when the study removes uncertain components).' },
         noise_kind: { Description: 'The decided kind of noise (n/a when none was given).' },
       }, input, { NoiseListRule: rule, ComponentCount: comps.length, NoiseCount: noise.length, OneLineFile: `${stem}_desc-noiselist_components.txt` }),

@@ -15,7 +15,8 @@ import type { Knex } from 'knex';
 import { parseJson, toJson } from '@/lib/db/knex';
 import { describePayloadIssues, isJobKind, jobPayloadSchemas, type JobKindName, type JobPayload } from './payloads';
 
-export type JobStatus = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
+import type { JobStatus } from './status';
+export type { JobStatus };
 
 export interface Job {
   id: number;

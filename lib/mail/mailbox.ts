@@ -2,7 +2,7 @@
  * Reads the messages the fake mail server (scripts/mail-server.ts) stored as JSON files, newest
  * first. Used by the browser tests and the development mailbox page; no framework imports.
  */
-import { readdir, readFile, rm } from 'node:fs/promises';
+import { readdir, readFile } from 'node:fs/promises';
 import path from 'node:path';
 import { mailDir } from './config';
 
@@ -76,9 +76,4 @@ export function linkIn(mail: Pick<StoredMail, 'text'>, prefix: string): string {
   const match = mail.text.match(/https?:\/\/\S+/g)?.find((u) => new URL(u).pathname.startsWith(prefix));
   if (!match) throw new Error(`no link to ${prefix} in the message`);
   return match;
-}
-
-/** Deletes every stored message (tests). */
-export async function clearMail({ dir = mailDir() }: { dir?: string } = {}): Promise<void> {
-  await rm(dir, { recursive: true, force: true });
 }

@@ -47,9 +47,6 @@ export const TIME_UNITS: Record<number, { name: string; seconds: number | null }
   48: { name: 'rad/s', seconds: null },
 };
 
-/** xform codes (qform_code / sform_code), nifti1.h NIFTI_XFORM_*. */
-export const XFORM = { unknown: 0, scannerAnat: 1, alignedAnat: 2, talairach: 3, mni152: 4 } as const;
-
 /** sizeof_hdr and the offset at which voxel data may start, per version (nifti1.h / nifti2.h). */
 export const NIFTI1_HEADER_SIZE = 348;
 export const NIFTI2_HEADER_SIZE = 540;

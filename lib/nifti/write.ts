@@ -55,7 +55,7 @@ export function spatialFieldsOf(h: { affine: number[][]; qform: number[][]; qfor
   };
 }
 
-const WRITABLE: Record<WritableDatatype, { code: number; bitpix: number; ctor: Function }> = {
+const WRITABLE: Record<WritableDatatype, { code: number; bitpix: number; ctor: typeof Uint8Array | typeof Int16Array | typeof Float32Array }> = {
   uint8: { code: 2, bitpix: 8, ctor: Uint8Array },
   int16: { code: 4, bitpix: 16, ctor: Int16Array },
   float32: { code: 16, bitpix: 32, ctor: Float32Array },

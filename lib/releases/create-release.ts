@@ -13,7 +13,8 @@ import { db, toJson } from '@/lib/db/knex';
 import { bidsName } from '@/lib/bids';
 import { AppError, forbidden, notFound } from '@/lib/errors';
 import type { UserRow } from '@/lib/db/queries/users';
-import { findStudyAccess, leadsStudy } from '@/lib/db/queries/study-access';
+import { findStudyAccess } from '@/lib/db/queries/study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { loadStudyRatings } from '@/lib/db/queries/agreement';
 import {
@@ -25,7 +26,8 @@ import { methodsMarkdown, type MethodsInput } from '@/lib/reports/methods-paragr
 import { CAUTIONS, EXPORT_CAUTION } from '@/lib/exports/cautions';
 import { noiseList, type UncertainPolicy } from '@/lib/exports/noise-list';
 import { FEATURE_COLUMNS, featureColumnName, featureColumns, mapFileName, runExportFiles, type TextFile } from '@/lib/exports/run-files';
-import { toTsv } from '@/lib/exports/tsv';
+import { toTsv } from '@/lib/exports/tabular';
+import { EXPORT_FORMAT, EXPORT_FORMAT_SIDECAR } from '@/lib/exports/format';
 import { childKey, ensureDirFor, newKey, readStream, removeKey } from '@/lib/storage';
 import { SOFTWARE_VERSION } from './version';
 
@@ -192,10 +194,10 @@ async function writeReleaseFiles(
 
   // study-level files
   const prefix = `study-${studyId}`;
-  const sidecarMeta = { GeneratedBy: { Name: 'Quorum', Version: SOFTWARE_VERSION }, Release: { StudyId: studyId, ReleaseId: o.releaseId, Version: o.version, ReleasedAt: o.releasedAt }, Caution: EXPORT_CAUTION };
+  const sidecarMeta = { GeneratedBy: { Name: 'Quorum', Version: SOFTWARE_VERSION }, Release: { StudyId: studyId, ReleaseId: o.releaseId, Version: o.version, ReleasedAt: o.releasedAt }, Caution: EXPORT_CAUTION, ...EXPORT_FORMAT_SIDECAR };
   const js = (v: unknown) => JSON.stringify(v, null, 2) + '\n';
   await put('', { name: `${prefix}_desc-raters_table.tsv`, content: toTsv(['rater', 'name', 'votes'], raterIds.map((id) => [codeOf.get(id)!, names.get(id) ?? `user ${id}`, o.runs.reduce((a, r) => a + r.components.reduce((b, c) => b + c.votes.filter((v) => v.raterId === id).length, 0), 0)])) }, null);
-  await put('', { name: `${prefix}_desc-raters_table.json`, content: js({ rater: { Description: 'Rater code used in the rater_labels column of the desc-verdicts tables.' }, name: { Description: 'The rater\'s name in Quorum.' }, votes: { Description: 'Submitted votes of the rater in this release.' }, Description: 'The raters whose submitted votes are in this release.', ...sidecarMeta }) }, null);
+  await put('', { name: `${prefix}_desc-raters_table.json`, content: js({ rater: { Description: 'Rater code used in the rater_labels column of the desc-decisions tables.' }, name: { Description: 'The rater\'s name in Quorum.' }, votes: { Description: 'Submitted votes of the rater in this release.' }, Description: 'The raters whose submitted votes are in this release.', ...sidecarMeta }) }, null);
   const entityCols = ['sub', 'ses', 'task', 'acq', 'run'];
   await put('', { name: `${prefix}_desc-trainingset_features.tsv`, content: toTsv([...entityCols, 'component', ...featureKeys.map(featureColumnName), 'variance_explained', 'label', 'noise_kind', 'decided_by'], training) }, null);
   await put('', {
@@ -216,7 +218,7 @@ async function writeReleaseFiles(
   await put('', { name: `${prefix}_desc-methods_report.md`, content: methodsMarkdown(methodsInputOf(o.runs, o.study, report)) }, null);
 
   return {
-    format: 'quorum-release/1',
+    format: EXPORT_FORMAT,
     study: { id: studyId, name: String(o.study.name) },
     release: { id: o.releaseId, version: o.version, scope: o.runId ? 'run' : 'study', runId: o.runId, releasedAt: o.releasedAt, releasedBy: { id: o.user.id, name: o.user.name }, notes: o.notes },
     software: { name: 'Quorum', version: SOFTWARE_VERSION },

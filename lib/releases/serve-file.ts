@@ -4,8 +4,6 @@ import type { ReleaseRow } from '@/lib/db/queries/releases';
 import { notFound } from '@/lib/errors';
 import { storedFileResponse } from '@/lib/storage/respond';
 
-export { mediaType } from '@/lib/storage/respond';
-
 export async function releaseFileResponse(release: ReleaseRow, name: string): Promise<Response> {
   const file = release.manifest?.files.find((f) => f.name === name);
   if (!file) throw notFound(`The file "${name}" in release ${release.id}`);

@@ -1,12 +1,9 @@
 import type { AgreementReport } from './agreement-report';
 import type { StatResult } from '@/lib/agreement';
+import { csvLine } from '@/lib/exports/tabular';
 
 const num = (s: StatResult | null | undefined) => (s?.value == null ? '' : s.value.toFixed(4));
-const cell = (v: unknown) => {
-  const text = v == null ? '' : String(v);
-  return /[",\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
-};
-const rows = (header: string[], body: unknown[][]) => [header, ...body].map((r) => r.map(cell).join(',')).join('\n');
+const rows = (header: string[], body: unknown[][]) => [header, ...body].map(csvLine).join('\n');
 
 /** The agreement report's numbers as CSV sections (one table after another, each with its own header). */
 export function agreementReportCsv(report: AgreementReport, nameOf: (raterId: string) => string): string {

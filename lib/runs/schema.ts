@@ -41,7 +41,6 @@ export const runEntitiesSchema = z.object({
   acq: label('acquisition').optional().default(''),
   run: label('run').optional().default(''),
 });
-export type RunEntities = z.output<typeof runEntitiesSchema>;
 
 const fileName = (kind: 'image' | 'motion') =>
   z.string().superRefine((name, ctx) => {

@@ -59,8 +59,9 @@ export const DIM_METHOD_NAMES: Record<DimMethod, string> = {
   variance: 'Fraction of variance explained',
 };
 
-export const STUDY_ROLES = ['lead', 'rater', 'observer'] as const;
-export type StudyRole = (typeof STUDY_ROLES)[number];
+// the role vocabulary (facility and study roles) is defined once, in lib/auth/roles.ts
+import { STUDY_ROLES, type StudyRole } from '@/lib/auth/roles';
+export { STUDY_ROLES, type StudyRole };
 
 export const STUDY_ROLE_NAMES: Record<StudyRole, string> = {
   lead: 'Lead',

@@ -1,6 +1,6 @@
 // `quorum decompose FILE --out DIR [...]` – PCA + spatial FastICA of one run; writes z-maps, mean,
 // mask, time courses, spectra, features and summary.json into DIR and prints the summary as JSON.
-import { mkdir, readFile, writeFile } from 'node:fs/promises';
+import { mkdir, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import { parseArgs } from 'node:util';
 import { assertFourD, assertSameGrid, readNiftiFile, writeNiftiFile, type NiftiHeader } from '@/lib/nifti';

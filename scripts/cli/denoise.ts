@@ -8,7 +8,7 @@ import { readNiftiFile } from '@/lib/nifti';
 import { dropInitialVolumes } from '@/lib/decomposition/motion';
 import { MOTION_USAGE, motionOptions, readMotionOption } from './motion-options';
 import { denoiseImage } from '@/lib/denoise/denoise-image';
-import { parseTsv } from '@/lib/exports/tsv';
+import { parseTsv } from '@/lib/exports/tabular';
 import type { CliCommand } from './index';
 
 const USAGE =

@@ -1,5 +1,7 @@
-// Adds up the JSON reports of vitest and Playwright and prints one line "N passed, N failed".
-// A missing report counts as one failure, so a runner that never ran is visible.
+// Adds up the JSON reports of vitest and Playwright and the static checks (scripts/checks.sh:
+// type-check, lint, dependency rule, dead exports — one passed or failed check each) and prints
+// one line "N passed, N failed". A missing report counts as one failure, so a runner that never
+// ran is visible.
 import { existsSync, readFileSync } from 'node:fs';
 
 let passed = 0;
@@ -31,10 +33,25 @@ function playwright(file) {
   failed += (r.errors ?? []).length;
 }
 
-const [vitestFile, playwrightFile, build] = process.argv.slice(2);
+function checks(file) {
+  if (!existsSync(file)) return notes.push(`no static-checks report at ${file}`), failed++;
+  for (const [name, verdict] of Object.entries(JSON.parse(readFileSync(file, 'utf8')))) {
+    if (verdict === 'passed') passed++;
+    else {
+      failed++;
+      notes.push(`static check failed: ${name} (run \`npm run ${name}\`)`);
+    }
+  }
+}
+
+const [vitestFile, playwrightFile, build, checksArg] = process.argv.slice(2);
+if (checksArg?.startsWith('checks=')) checks(checksArg.slice('checks='.length));
 vitest(vitestFile);
 if (build === 'build=ok') playwright(playwrightFile);
-else notes.push('production build failed: browser tests not run'), failed++;
+else {
+  notes.push('production build failed: browser tests not run');
+  failed++;
+}
 
 for (const n of notes) console.log(`note: ${n}`);
 console.log(`${passed} passed, ${failed} failed${skipped ? `, ${skipped} skipped` : ''}`);

@@ -10,7 +10,7 @@ import * as auditModule from '@/lib/db/queries/audit';
 import * as auditLogModule from '@/lib/db/queries/audit-log';
 import { iterateAuditLog, queryAuditLog } from '@/lib/db/queries/audit-log';
 import { recordAudit } from '@/lib/db/queries/audit';
-import { auditFilterSchema, auditPageSchema } from '@/app/api/admin/audit/schema';
+import { auditFilterSchema, auditPageSchema } from '@/lib/audit/schema';
 
 const tag = randomBytes(3).toString('hex');
 let actorA: number;

@@ -38,7 +38,10 @@ const getComponents = () => callRoute(componentsRoute.GET, { url: `/api/runs/${r
 
 function keysIn(value: unknown, out = new Set<string>()): Set<string> {
   if (Array.isArray(value)) value.forEach((v) => keysIn(v, out));
-  else if (value && typeof value === 'object') for (const [k, v] of Object.entries(value)) (out.add(k), keysIn(v, out));
+  else if (value && typeof value === 'object') for (const [k, v] of Object.entries(value)) {
+      out.add(k);
+      keysIn(v, out);
+    }
   return out;
 }
 

@@ -1,3 +1,4 @@
+/* eslint-disable @typescript-eslint/no-explicit-any -- manifests, TSV rows and raw SQL rows are read back untyped to check them field by field */
 /**
  * Releases and exports against the real MariaDB, through the real route handlers, as each role:
  * a lead releases a study whose decisions are complete (decisions made directly, votes from two
@@ -28,7 +29,7 @@ const { db, closeDb, blobToFloat32 } = await import('@/lib/db/knex');
 const { seedDemo } = await import('@/db/seeds/demo');
 const { createReadyRun } = await import('../e2e/helpers/ready-run');
 const { pathFor } = await import('@/lib/storage');
-const { parseTsv } = await import('@/lib/exports/tsv');
+const { parseTsv } = await import('@/lib/exports/tabular');
 const { EXPORT_CAUTION } = await import('@/lib/exports/cautions');
 const { buildDesign } = await import('@/lib/denoise/regress');
 const { decodeNifti } = await import('@/lib/nifti');
@@ -164,7 +165,7 @@ describe('a study release', () => {
       const stem = entry.stem as string;
       expect(stem).toMatch(/^sub-rel0\d_ses-1_task-rest$/);
       const comps = await db('components as c').leftJoin('decisions as x', 'x.component_id', 'c.id').where('c.decomposition_id', run.decompositionId).orderBy('c.idx').select('c.idx', 'c.timecourse', 'c.features', 'x.label', 'x.noise_kind', 'x.method', 'x.reason');
-      const verdicts = parseTsv((await read(`${stem}_desc-verdicts_components.tsv`)).toString());
+      const verdicts = parseTsv((await read(`${stem}_desc-decisions_components.tsv`)).toString());
       expect(verdicts.rows).toHaveLength(comps.length);
       const col = (name: string) => verdicts.header.indexOf(name);
       for (const [i, c] of comps.entries()) {

@@ -3,7 +3,7 @@
 import { describe, expect, it } from 'vitest';
 import { runExportFiles, type RunExportInput } from '@/lib/exports/run-files';
 import { noiseList } from '@/lib/exports/noise-list';
-import { parseTsv, toTsv } from '@/lib/exports/tsv';
+import { parseTsv, toTsv } from '@/lib/exports/tabular';
 import { EXPORT_CAUTION } from '@/lib/exports/cautions';
 import { methodsParagraph } from '@/lib/reports/methods-paragraph';
 
@@ -32,9 +32,9 @@ describe('run export files', () => {
     const files = runExportFiles(input('keep'));
     expect(files.map((f) => f.name).sort()).toEqual(
       [
+        'desc-decisions_components.json', 'desc-decisions_components.tsv',
         'desc-noiselist_components.json', 'desc-noiselist_components.tsv', 'desc-noiselist_components.txt', 'desc-ratedfeatures_components.json',
         'desc-ratedfeatures_components.tsv', 'desc-sources_components.json', 'desc-sources_timeseries.json', 'desc-sources_timeseries.tsv',
-        'desc-verdicts_components.json', 'desc-verdicts_components.tsv',
       ].map((n) => `sub-01_ses-1_task-rest_run-1_${n}`),
     );
     for (const f of files.filter((x) => x.name.endsWith('.tsv'))) {
@@ -42,7 +42,7 @@ describe('run export files', () => {
       for (const h of parseTsv(f.content).header) expect(side[h]?.Description, `${f.name} ${h}`).toBeTruthy();
       expect(side.Caution).toBe(EXPORT_CAUTION);
     }
-    const verdicts = parseTsv(files.find((f) => f.name.endsWith('verdicts_components.tsv'))!.content);
+    const verdicts = parseTsv(files.find((f) => f.name.endsWith('decisions_components.tsv'))!.content);
     expect(verdicts.rows[1]).toEqual(['2', 'noise', 'motion', 'reconciled', '1', '1', '1', '0', '2', 'R1=signal;R2=noise/motion', 'edge ring', '0.2']);
     expect(verdicts.rows[0]![verdicts.header.indexOf('lead_reason')]).toBe('n/a');
   });

@@ -24,6 +24,7 @@ export function SignInForm() {
       setFailure(result?.error && result.error !== 'CredentialsSignin' ? result.error : 'E-mail or password is wrong.');
       return;
     }
+    // eslint-disable-next-line @next/next/no-location-assign-relative-destination -- a full load so that the server components see the new session cookie
     window.location.assign('/');
   });
 

@@ -1,7 +1,9 @@
 import { after } from 'next/server';
 import { handler } from '@/lib/api/handler';
-import { inviteSchema } from './schema';
-import { accountExists, leadsStudy } from '@/lib/db/queries/people';
+import { inviteSchema } from '@/lib/invitations/schema';
+import { accountExists } from '@/lib/db/queries/people';
+import { findStudyAccess } from '@/lib/db/queries/study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 import { createInvitation, listInvitations } from '@/lib/db/queries/invitations';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { countAttempts, lockedFor } from '@/lib/auth/throttle';
@@ -27,7 +29,7 @@ export const POST = handler({ permission: 'invitations.create', body: inviteSche
       throw new AppError('forbidden', 'Study leads may invite raters and observers; ask the facility admin for other roles.');
     }
     if (body.studyRole === 'lead') throw new AppError('forbidden', 'Study leads may add raters and observers to their studies.');
-    if (body.studyId && !(await leadsStudy({ userId: user.id, studyId: body.studyId }))) {
+    if (body.studyId && !leadsStudy(await findStudyAccess({ user, studyId: body.studyId }))) {
       throw new AppError('forbidden', 'You can invite people only to studies you lead.');
     }
   }

@@ -4,9 +4,10 @@ import { bidsName } from '@/lib/bids';
 import { recomputeRunDecisions } from '@/lib/consensus/recompute';
 import { db } from '@/lib/db/knex';
 import { AppError, notFound } from '@/lib/errors';
-import { afterAssignmentsCreated, ensureDailyOverdue } from '@/lib/notifications/queue';
+import { afterAssignmentsCreated, ensureDailyOverdue } from '@/lib/notifications/enqueue';
 import { recordAudit } from './audit';
-import { findStudyAccess, leadsStudy } from './study-access';
+import { findStudyAccess } from './study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 import type { UserRow } from './users';
 
 type Caller = Pick<UserRow, 'id' | 'role'>;

@@ -1,7 +1,7 @@
 import 'server-only';
 import type { Knex } from 'knex';
 import { db, parseJson } from '@/lib/db/knex';
-import type { AuditFilter } from '@/app/api/admin/audit/schema';
+import type { AuditFilter } from '@/lib/audit/schema';
 
 export type AuditRow = {
   id: number;

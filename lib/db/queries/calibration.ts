@@ -6,7 +6,8 @@ import { db, parseJson, toJson } from '@/lib/db/knex';
 import { AppError, notFound } from '@/lib/errors';
 import { recordAudit } from './audit';
 import { isRunReleased } from './desk';
-import { findStudyAccess, leadsStudy } from './study-access';
+import { findStudyAccess } from './study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 import type { UserRow } from './users';
 
 type Caller = Pick<UserRow, 'id' | 'role'>;

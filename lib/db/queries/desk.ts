@@ -8,7 +8,7 @@ import { bidsName } from '@/lib/bids';
 import { pathFor } from '@/lib/storage';
 import { dropInitialVolumes, framewiseDisplacement, parseMotionFile } from '@/lib/decomposition/motion';
 import { recordAudit } from './audit';
-import { queueVotesCompleteCheck } from '@/lib/notifications/queue';
+import { queueVotesCompleteCheck } from '@/lib/notifications/enqueue';
 import type { ComponentsPayload, DeskComponent } from '@/lib/desk/types';
 import { arrangeForDesk, isLowReproducibility, type ReproducibilityRule } from '@/lib/desk/reproducibility';
 import { recomputeDecision } from '@/lib/consensus/recompute';

@@ -5,9 +5,9 @@ import { recordAudit } from '@/lib/db/queries/audit';
 import { hashToken, inviteTtlMs, linkRefusal, linkState, newToken, RESET_TTL_MS, type LinkState } from '@/lib/auth/tokens';
 import type { Role } from '@/lib/auth/roles';
 import { AppError } from '@/lib/errors';
+import type { StudyRole } from '@/lib/studies/labels';
 
 
-export type StudyRole = 'lead' | 'rater' | 'observer';
 
 /** A stored link as the pages and handlers need it (never the hash). */
 export type LinkRecord = {

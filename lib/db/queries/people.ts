@@ -38,12 +38,6 @@ export async function listMemberships({ userId }: { userId?: number }): Promise<
   return q;
 }
 
-/** True when the user leads the study (study_members.study_role = lead). */
-export async function leadsStudy({ userId, studyId }: { userId: number; studyId: number }): Promise<boolean> {
-  const row = await db('study_members').where({ user_id: userId, study_id: studyId, study_role: 'lead' }).first('id');
-  return Boolean(row);
-}
-
 /** Studies a user may invite people to: all (admin) or those they lead. */
 export async function invitableStudies({ userId, role }: { userId: number; role: Role }): Promise<{ id: number; name: string }[]> {
   const q = db('studies as s').select('s.id', 's.name').where('s.archived', false).orderBy('s.name');

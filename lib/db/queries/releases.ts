@@ -176,7 +176,8 @@ export type ManifestRun = {
   counts: Record<string, number>;
 };
 export type ReleaseManifest = {
-  format: 'quorum-release/1';
+  /** 'quorum-release/1' for releases made before the desc-decisions rename (lib/exports/format.ts). */
+  format: 'quorum-release/1' | 'quorum-release/2';
   study: { id: number; name: string };
   release: { id: number; version: number; scope: 'study' | 'run'; runId: number | null; releasedAt: string; releasedBy: { id: number; name: string }; notes: string | null };
   software: { name: 'Quorum'; version: string };

@@ -5,9 +5,9 @@ import { decompositionWarnings, type DecompositionWarning } from '@/lib/runs/dec
 import type { UserRow } from './users';
 import { runAgreements } from './agreement';
 import { findStudyAccess } from './study-access';
+import type { JobStatus } from '@/lib/jobs/status';
 
 export type RunStatus = 'uploaded' | 'queued' | 'processing' | 'ready' | 'failed' | 'cancelled';
-export type JobStatus = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
 
 /** One row of a study's runs table: entities, geometry, status, the latest decompose job, counts. */
 export type RunListItem = {

@@ -6,6 +6,7 @@ import { parseJson, toJson } from '@/lib/db/knex';
 import { recordAudit } from './audit';
 import type { StudyRole, ConsensusRule, DimMethod, LowReproducibilityPolicy, NoiseKindKey } from '@/lib/studies/labels';
 import type { StudyValues, StudyUpdate } from '@/lib/studies/schema';
+import { managesStudy } from '@/lib/auth/permissions';
 
 export type StudySummary = {
   id: number;
@@ -70,7 +71,7 @@ export type StudyDetail = {
 };
 
 /** What a user may do in one study: `canManage` (upload, change, run actions), `seesAllRuns` (else only assigned runs). */
-export type StudyAccess = {
+export type StudyWithAccess = {
   study: StudyDetail;
   studyRole: StudyRole | null;
   canManage: boolean;
@@ -129,7 +130,7 @@ function toStudy(r: Record<string, unknown>): StudyDetail {
  * The study with the user's access to it, or null when the user may not see it (not a member and
  * not an admin). The membership condition is in the WHERE clause.
  */
-export async function findStudyForUser({ user, studyId }: { user: Pick<UserRow, 'id' | 'role'>; studyId: number }): Promise<StudyAccess | null> {
+export async function findStudyForUser({ user, studyId }: { user: Pick<UserRow, 'id' | 'role'>; studyId: number }): Promise<StudyWithAccess | null> {
   const query = db('studies as s')
     .leftJoin('study_members as m', function () {
       this.on('m.study_id', 's.id').andOn('m.user_id', db.raw('?', [user.id]));
@@ -145,7 +146,7 @@ export async function findStudyForUser({ user, studyId }: { user: Pick<UserRow, 
   return {
     study: toStudy(row),
     studyRole,
-    canManage: admin || (studyRole === 'lead' && user.role === 'lead'),
+    canManage: managesStudy({ role: user.role, studyRole }),
     seesAllRuns: admin || studyRole === 'lead' || studyRole === 'observer',
   };
 }

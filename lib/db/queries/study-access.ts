@@ -1,15 +1,13 @@
 import 'server-only';
 import { db } from '@/lib/db/knex';
 import type { UserRow } from './users';
-
-export type StudyRole = 'lead' | 'rater' | 'observer';
-export type StudyAccess = { studyId: number; name: string; studyRole: StudyRole | null; isAdmin: boolean };
+import type { Access } from '@/lib/auth/permissions';
 
 /**
  * The caller's access to one study, or null when they may not see it: admins see every study;
  * everyone else only studies they are a member of. Use it to scope every study-level query.
  */
-export async function findStudyAccess({ user, studyId }: { user: Pick<UserRow, 'id' | 'role'>; studyId: number }): Promise<StudyAccess | null> {
+export async function findStudyAccess({ user, studyId }: { user: Pick<UserRow, 'id' | 'role'>; studyId: number }): Promise<Access | null> {
   const row = await db('studies as s')
     .leftJoin('study_members as m', function () {
       this.on('m.study_id', 's.id').andOn('m.user_id', db.raw('?', [user.id]));
@@ -20,9 +18,4 @@ export async function findStudyAccess({ user, studyId }: { user: Pick<UserRow, '
   const isAdmin = user.role === 'admin';
   if (!isAdmin && !row.studyRole) return null;
   return { studyId: row.studyId, name: row.name, studyRole: row.studyRole ?? null, isAdmin };
-}
-
-/** True when the caller leads the study (or is an admin): may change it, reconcile and release. */
-export function leadsStudy(access: StudyAccess | null): boolean {
-  return !!access && (access.isAdmin || access.studyRole === 'lead');
 }

@@ -6,7 +6,7 @@
  */
 import { votesCompleteScanMs } from '@/lib/notifications/config';
 import { notifyVotesCompletePayloadSchema, NOTIFY_VOTES_COMPLETE } from '@/lib/notifications/payloads';
-import { ensureNotifyJob } from '@/lib/notifications/queue';
+import { ensureNotifyJob } from '@/lib/notifications/enqueue';
 import { ratingsOpen, sendVotesCompleteNotices } from '@/lib/notifications/votes-complete';
 import { defineJobKind } from '../types';
 

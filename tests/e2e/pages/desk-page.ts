@@ -5,6 +5,10 @@ export class DeskPage {
   constructor(readonly page: Page) {}
 
   async open(runId: number) {
+    // the desk records its timings (window.__deskTimings…) only for tests
+    await this.page.addInitScript(() => {
+      window.__quorumTestHooks = true;
+    });
     await this.page.goto(`/runs/${runId}/rate`);
     await this.ready();
   }

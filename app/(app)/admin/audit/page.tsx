@@ -2,7 +2,7 @@ import type { Metadata } from 'next';
 import Link from 'next/link';
 import { requirePageUser } from '@/lib/auth/session';
 import { auditFilterChoices, queryAuditLog } from '@/lib/db/queries/audit-log';
-import { auditPageSchema } from '@/app/api/admin/audit/schema';
+import { auditPageSchema } from '@/lib/audit/schema';
 import { Panel } from '@/components/ui/panel';
 import { Notice } from '@/components/ui/notice';
 import { AdminTabs } from '@/components/admin/admin-tabs';

@@ -4,7 +4,7 @@ import { useState } from 'react';
 import Link from 'next/link';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { acceptFormSchema, type AcceptFormInput } from '@/app/api/invitations/schema';
+import { acceptFormSchema, type AcceptFormInput } from '@/lib/invitations/schema';
 import { postJson } from '@/lib/api/client';
 import { Field } from '@/components/ui/field';
 import { Button } from '@/components/ui/button';

@@ -1,5 +1,5 @@
 import { handler } from '@/lib/api/handler';
-import { auditPageSchema } from './schema';
+import { auditPageSchema } from '@/lib/audit/schema';
 import { queryAuditLog } from '@/lib/db/queries/audit-log';
 
 // GET /api/admin/audit – one page of the audit log, filtered by actor, action, study and dates.

@@ -1,5 +1,5 @@
 import { handler } from '@/lib/api/handler';
-import { idParams } from '../schema';
+import { idParams } from '@/lib/invitations/schema';
 import { revokeInvitation } from '@/lib/db/queries/invitations';
 import { db } from '@/lib/db/knex';
 import { notFound } from '@/lib/errors';

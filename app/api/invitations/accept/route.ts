@@ -1,5 +1,5 @@
 import { handler } from '@/lib/api/handler';
-import { acceptSchema } from '../schema';
+import { acceptSchema } from '@/lib/invitations/schema';
 import { acceptInvitation } from '@/lib/db/queries/invitations';
 import { hashPassword } from '@/lib/auth/password';
 import { countAttempts, lockedFor } from '@/lib/auth/throttle';

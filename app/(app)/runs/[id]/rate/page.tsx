@@ -12,12 +12,10 @@ export default async function RatePage({ params }: { params: Promise<{ id: strin
   const user = await requirePageUser('votes.write');
   const runId = Number((await params).id);
   if (!Number.isInteger(runId) || runId <= 0) notFound();
-  try {
-    // the same scoped queries as the API: only the rater's own votes before submission
-    const [components, votes] = await Promise.all([loadDeskComponents({ user, runId }), listVotesForRater({ user, runId })]);
-    return <RateClient runId={runId} userId={user.id} initialComponents={components} initialVotes={votes} />;
-  } catch (err) {
+  // the same scoped queries as the API: only the rater's own votes before submission
+  const [components, votes] = await Promise.all([loadDeskComponents({ user, runId }), listVotesForRater({ user, runId })]).catch((err) => {
     if (err instanceof AppError && err.code === 'not_found') notFound();
     throw err;
-  }
+  });
+  return <RateClient runId={runId} userId={user.id} initialComponents={components} initialVotes={votes} />;
 }

@@ -23,6 +23,8 @@ import { Notice } from '@/components/ui/notice';
 
 declare global {
   interface Window {
+    /** Set by the browser tests (addInitScript) before the page loads; the timings below are recorded only then. */
+    __quorumTestHooks?: boolean;
     /** Key press → new component painted (map, time course, spectrum), ms (read by the browser test). */
     __deskTimings?: number[];
     /** Key press → React committed and the viewer issued its draw calls, ms. */
@@ -82,6 +84,7 @@ export function RateClient({
     return i < 0 ? 0 : i;
   });
   const [prefs, setPrefs] = useState<Prefs>(DEFAULT_PREFS);
+  // eslint-disable-next-line react-hooks/set-state-in-effect -- localStorage exists only after hydration; the server renders the defaults
   useEffect(() => setPrefs(loadPrefs()), []);
   useEffect(() => {
     try {
@@ -107,6 +110,7 @@ export function RateClient({
   const { remember, pendingIdx } = useDeskPosition(runId, userId, components.length);
   useEffect(() => {
     const pending = pendingIdx();
+    // eslint-disable-next-line react-hooks/set-state-in-effect -- the stored position is in localStorage, readable only after hydration
     if (pending !== null) setIndex(pending - 1);
   }, [pendingIdx]);
 
@@ -126,12 +130,12 @@ export function RateClient({
     if (!start || start.frame !== frame) return;
     const ms = performance.now() - start.t;
     if (phase === 'issued') {
-      (window.__deskTimingsIssued ??= []).push(ms);
+      if (window.__quorumTestHooks) (window.__deskTimingsIssued ??= []).push(ms);
       return;
     }
     navStart.current = null;
     performance.measure('desk:next', 'desk:nav');
-    (window.__deskTimings ??= []).push(ms);
+    if (window.__quorumTestHooks) (window.__deskTimings ??= []).push(ms);
   }, []);
 
   const change = useCallback(

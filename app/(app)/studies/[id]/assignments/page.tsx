@@ -3,7 +3,8 @@ import Link from 'next/link';
 import { notFound, redirect } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
 import { listStudyAssignments } from '@/lib/db/queries/assignments';
-import { findStudyAccess, leadsStudy } from '@/lib/db/queries/study-access';
+import { findStudyAccess } from '@/lib/db/queries/study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 import { AssignmentsTable } from '@/components/assignments/assignments-table';
 import { Panel } from '@/components/ui/panel';
 

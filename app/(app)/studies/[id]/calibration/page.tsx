@@ -3,18 +3,19 @@ import Link from 'next/link';
 import { notFound, redirect } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
 import { listCalibration } from '@/lib/db/queries/calibration';
-import { findStudyAccess, leadsStudy } from '@/lib/db/queries/study-access';
+import { findStudyAccess } from '@/lib/db/queries/study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 import { CalibrationClient } from '@/components/calibration/calibration-client';
 
 export const metadata: Metadata = { title: 'Calibration' };
 
 export default async function CalibrationPage({ params }: { params: Promise<{ id: string }> }) {
-  const user = await requirePageUser('decisions.reconcile');
+  const user = await requirePageUser('calibration.manage');
   const id = Number((await params).id);
   if (!Number.isInteger(id) || id <= 0) notFound();
   const access = await findStudyAccess({ user, studyId: id });
   if (!access) notFound();
-  if (!leadsStudy(access)) redirect(`/forbidden?need=${encodeURIComponent('decisions.reconcile')}`);
+  if (!leadsStudy(access)) redirect(`/forbidden?need=${encodeURIComponent('calibration.manage')}`);
   const initial = await listCalibration({ user, studyId: id });
   return (
     <div className="flex flex-col gap-6">

@@ -1,7 +1,8 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
-import { findStudyAccess, leadsStudy } from '@/lib/db/queries/study-access';
+import { findStudyAccess } from '@/lib/db/queries/study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 import { listReconcileItems } from '@/lib/db/queries/reconcile';
 import { ReconcileClient } from './reconcile-client';
 

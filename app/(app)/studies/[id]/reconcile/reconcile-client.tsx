@@ -1,6 +1,6 @@
 'use client';
 import Link from 'next/link';
-import { useEffect, useMemo, useState } from 'react';
+import { useMemo, useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { postJson } from '@/lib/api/client';
 import { bidsName } from '@/lib/bids';
@@ -11,7 +11,7 @@ import { TimecourseChart } from '@/components/charts/timecourse-chart';
 import { SpectrumChart } from '@/components/charts/spectrum-chart';
 import { FeaturePanel } from '@/components/desk/feature-panel';
 import { VotesSideBySide } from '@/components/reconcile/votes-side-by-side';
-import { useReconcileItems, useReviewRun } from '@/components/reconcile/use-reconcile';
+import { useReconcileItems, useReconcileRun } from '@/components/reconcile/use-reconcile';
 import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/notice';
 
@@ -31,23 +31,27 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
   const { data: items = [], isFetching } = useReconcileItems(studyId, { runId: runFilter, noiseKind: kindFilter, include }, initialItems);
   const [selected, setSelected] = useState<number | null>(initialItems[0]?.componentId ?? null);
   const item = items.find((i) => i.componentId === selected) ?? items[0] ?? null;
-  const review = useReviewRun(item?.runId ?? null);
+  const review = useReconcileRun(item?.runId ?? null);
   const component = review.data?.components.find((c) => c.id === item?.componentId) ?? null;
   const run = review.data?.run;
 
-  const [label, setLabel] = useState<string>('');
-  const [noiseKind, setNoiseKind] = useState<string>('');
+  const [label, setLabel] = useState<string>(item?.decision.label ?? '');
+  const [noiseKind, setNoiseKind] = useState<string>(item?.decision.noiseKind ?? '');
   const [reason, setReason] = useState('');
   const [failure, setFailure] = useState<string | null>(null);
   const [saving, setSaving] = useState(false);
   const [done, setDone] = useState<string | null>(null);
 
-  useEffect(() => {
+  // the form follows the selected item: reset it while rendering when the item (or its decision) changes
+  const itemKey = `${item?.componentId}|${item?.decision.label}|${item?.decision.noiseKind}`;
+  const [formKey, setFormKey] = useState(itemKey);
+  if (formKey !== itemKey) {
+    setFormKey(itemKey);
     setLabel(item?.decision.label ?? '');
     setNoiseKind(item?.decision.noiseKind ?? '');
     setReason('');
     setFailure(null);
-  }, [item?.componentId, item?.decision.label, item?.decision.noiseKind]);
+  }
 
   const runs = useMemo(() => {
     const m = new Map<number, string>();

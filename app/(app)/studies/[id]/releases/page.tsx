@@ -3,7 +3,8 @@ import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
 import { can } from '@/lib/auth/permissions';
-import { findStudyAccess, leadsStudy } from '@/lib/db/queries/study-access';
+import { findStudyAccess } from '@/lib/db/queries/study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 import { changedSinceRelease, listReleases, releaseReadiness, runReadiness } from '@/lib/db/queries/releases';
 import { bidsName } from '@/lib/bids';
 import { refusalOf } from '@/lib/releases/create-release';
@@ -49,7 +50,7 @@ export default async function ReleasesPage({ params }: { params: Promise<{ id: s
           {readiness.notReady.length ? ` ${readiness.notReady.length} run(s) are not ready and will not be part of a release.` : ''}
           {latestStudy && changed ? ` ${changed} decision(s) changed since version ${latestStudy.version}: release again to publish them.` : ''}
         </p>
-        {isLead ? <ReleaseAction studyId={studyId} refusal={refusal} pending={readiness.pending + readiness.undecided} runs={perRun} /> : <p className="text-sm text-ink-muted">Only the study's leads release.</p>}
+        {isLead ? <ReleaseAction studyId={studyId} refusal={refusal} pending={readiness.pending + readiness.undecided} runs={perRun} /> : <p className="text-sm text-ink-muted">Only the study&apos;s leads release.</p>}
       </Panel>
 
       {releases.length === 0 ? (

@@ -1,19 +1,12 @@
 import { handler } from '@/lib/api/handler';
-import { auditFilterSchema } from '../schema';
+import { auditFilterSchema } from '@/lib/audit/schema';
 import { iterateAuditLog, type AuditRow } from '@/lib/db/queries/audit-log';
+import { csvLine } from '@/lib/exports/tabular';
 
 const HEADER = ['id', 'time_utc', 'actor_id', 'actor_name', 'actor_email', 'action', 'target_type', 'target_id', 'study_id', 'study_name', 'detail', 'ip'];
 
-/** One CSV field (RFC 4180 quoting); a leading = + - @ is prefixed with ' so spreadsheets do not run it. */
-function field(value: unknown): string {
-  if (value === null || value === undefined) return '';
-  let s = value instanceof Date ? value.toISOString() : typeof value === 'object' ? JSON.stringify(value) : String(value);
-  if (/^[=+\-@\t\r]/.test(s)) s = `'${s}`;
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
-
 function line(r: AuditRow): string {
-  return [r.id, r.createdAt, r.actorId, r.actorName, r.actorEmail, r.action, r.targetType, r.targetId, r.studyId, r.studyName, r.detail, r.ip].map(field).join(',') + '\r\n';
+  return csvLine([r.id, r.createdAt, r.actorId, r.actorName, r.actorEmail, r.action, r.targetType, r.targetId, r.studyId, r.studyName, r.detail, r.ip]) + '\r\n';
 }
 
 // GET /api/admin/audit/export – the filtered audit log as CSV, streamed in batches

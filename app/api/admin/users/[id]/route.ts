@@ -1,5 +1,5 @@
 import { handler } from '@/lib/api/handler';
-import { accessChangeSchema, userIdParams } from '../../schema';
+import { accessChangeSchema, userIdParams } from '@/lib/people/schema';
 import { updateAccess } from '@/lib/db/queries/people';
 import { auditAddress } from '@/lib/auth/client-address';
 

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { handler } from '@/lib/api/handler';
-import { findStudyAccess, leadsStudy } from '@/lib/db/queries/study-access';
+import { findStudyAccess } from '@/lib/db/queries/study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 import { findRelease, releaseReadiness } from '@/lib/db/queries/releases';
 import { enqueueDenoise, listDenoiseJobs, runHasMotion, runStudy } from '@/lib/db/queries/exports';
 import { recordAudit } from '@/lib/db/queries/audit';

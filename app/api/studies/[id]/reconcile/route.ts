@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { handler } from '@/lib/api/handler';
-import { findStudyAccess, leadsStudy } from '@/lib/db/queries/study-access';
+import { findStudyAccess } from '@/lib/db/queries/study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 import { listReconcileItems } from '@/lib/db/queries/reconcile';
 import { reconcileQuerySchema } from '@/lib/consensus/schema';
 import { forbidden, notFound } from '@/lib/errors';

@@ -1,5 +1,5 @@
 import { handler } from '@/lib/api/handler';
-import { userIdParams } from '../../../schema';
+import { userIdParams } from '@/lib/people/schema';
 import { auditAddress } from '@/lib/auth/client-address';
 import { endAllSessions } from '@/lib/db/queries/sessions';
 import { findUserById } from '@/lib/db/queries/users';

@@ -1,9 +1,9 @@
 import { handler } from '@/lib/api/handler';
-import { loadRunForReview } from '@/lib/db/queries/run-review';
-import { reviewRunParams } from '@/lib/consensus/review-schemas';
+import { loadRunForReconcile } from '@/lib/db/queries/reconcile-run';
+import { reconcileRunParams } from '@/lib/consensus/reconcile-params';
 
 // GET /api/reconcile/runs/:runId/components – a run's components for the lead reconciling it
-export const GET = handler({ permission: 'decisions.reconcile', params: reviewRunParams }, async ({ user, params }) => {
-  const { run, components } = await loadRunForReview({ user, runId: params.runId });
+export const GET = handler({ permission: 'decisions.reconcile', params: reconcileRunParams }, async ({ user, params }) => {
+  const { run, components } = await loadRunForReconcile({ user, runId: params.runId });
   return { run, components };
 });

@@ -1,12 +1,12 @@
 import { handler } from '@/lib/api/handler';
-import { loadRunForReview } from '@/lib/db/queries/run-review';
-import { reviewFileParams } from '@/lib/consensus/review-schemas';
+import { loadRunForReconcile } from '@/lib/db/queries/reconcile-run';
+import { reconcileFileParams } from '@/lib/consensus/reconcile-params';
 import { storedFileResponse } from '@/lib/storage/respond';
 import { AppError } from '@/lib/errors';
 
 // GET /api/reconcile/runs/:runId/files/:file – stream a run's maps or mean image to the lead reconciling it
-export const GET = handler({ permission: 'decisions.reconcile', params: reviewFileParams, what: 'The file' }, async ({ user, params }) => {
-  const { run, files } = await loadRunForReview({ user, runId: params.runId });
+export const GET = handler({ permission: 'decisions.reconcile', params: reconcileFileParams, what: 'The file' }, async ({ user, params }) => {
+  const { run, files } = await loadRunForReconcile({ user, runId: params.runId });
   const key = files[params.file];
   if (!key) throw new AppError('not_found', `Run ${params.runId} has no ${params.file}; its decomposition did not write it.`);
   return storedFileResponse(key, {

@@ -6,7 +6,7 @@ import { latestStudyRelease } from '@/lib/db/queries/releases';
 import { notFound } from '@/lib/errors';
 
 const params = z.object({ id: z.coerce.number().int().positive() });
-const entity = z.string().regex(/^[A-Za-z0-9]+$/, 'a BIDS label (letters and digits)').optional();
+const entity = z.string().max(64).regex(/^[A-Za-z0-9]+$/, 'a BIDS label (letters and digits)').optional();
 const query = z.object({ sub: entity, ses: entity, task: entity, acq: entity, run: entity });
 
 // GET /api/v1/studies/:id/releases/latest/runs – (Bearer token) the latest study release's runs: entities, k, noise list, file addresses

@@ -6,7 +6,8 @@ import { bidsName } from '@/lib/bids';
 import { AppError } from '@/lib/errors';
 import type { DeskRun } from '@/lib/desk/types';
 import type { UserRow } from './users';
-import { findStudyAccess, leadsStudy } from './study-access';
+import { findStudyAccess } from './study-access';
+import { leadsStudy } from '@/lib/auth/permissions';
 
 
 /**
@@ -14,7 +15,7 @@ import { findStudyAccess, leadsStudy } from './study-access';
  * rating desk draws (maps, time courses, spectra, features), reached through leading the study
  * instead of an assignment. 404 when the run is not in a study the caller leads.
  */
-export async function loadRunForReview({ user, runId }: { user: Pick<UserRow, 'id' | 'role'>; runId: number }) {
+export async function loadRunForReconcile({ user, runId }: { user: Pick<UserRow, 'id' | 'role'>; runId: number }) {
   const run = await db('runs as r')
     .join('studies as s', 's.id', 'r.study_id')
     .join('decompositions as d', function () {

@@ -1,8 +1,7 @@
 import { z } from 'zod';
 import { emailSchema, passwordSchema } from '@/lib/auth/schemas';
 import { ROLES } from '@/lib/auth/roles';
-
-export const STUDY_ROLES = ['lead', 'rater', 'observer'] as const;
+import { STUDY_ROLES } from '@/lib/studies/labels';
 
 /** An invitation: address, facility role, and optionally a study with the role in it. */
 export const inviteSchema = z
@@ -20,7 +19,7 @@ const nameSchema = z.string().trim().min(1, { message: 'Enter your name.' }).max
 const acceptFields = z.object({
   name: nameSchema,
   password: passwordSchema,
-  confirmPassword: z.string(),
+  confirmPassword: z.string().max(200),
 });
 const samePasswords = (v: { password: string; confirmPassword: string }) => v.password === v.confirmPassword;
 const differ = { path: ['confirmPassword'], message: 'The two passwords differ.' };
