@@ -140,7 +140,7 @@ function tql2(n: number, e: Float64Array, d: Float64Array, V: Float64Array): voi
 
   let f = 0;
   let tst1 = 0;
-  let eps = Number.EPSILON;
+  const eps = Number.EPSILON;
 
   for (l = 0; l < n; l++) {
     tst1 = Math.max(tst1, Math.abs(d[l]) + Math.abs(e[l]));

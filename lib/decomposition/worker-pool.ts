@@ -71,7 +71,7 @@ export function kernelBackend(): KernelBackend {
 let warnedNoWasm = false;
 
 function workerSource(backend: KernelBackend): string {
-  const set: Record<string, Function> = backend === 'wasm' ? { ...WASM_KERNELS, wasmMemory, wasmCache } : { ...KERNELS };
+  const set: Record<string, (...args: never[]) => unknown> = backend === 'wasm' ? { ...WASM_KERNELS, wasmMemory, wasmCache } : { ...KERNELS };
   const defs = Object.entries(set)
     .map(([name, fn]) => `const ${name} = (${fn.toString()});`)
     .join('\n');

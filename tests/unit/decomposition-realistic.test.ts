@@ -67,7 +67,10 @@ describe('realistic phantom, small grid (32 × 32 × 20, 160 volumes): reproduci
     expect(r.restarts!.runs).toBe(5);
     expect(r.reproducibility).not.toBeNull();
     const rep = r.reproducibility!;
-    for (const v of rep) expect(v).toBeGreaterThanOrEqual(0), expect(v).toBeLessThanOrEqual(1);
+    for (const v of rep) {
+      expect(v).toBeGreaterThanOrEqual(0);
+      expect(v).toBeLessThanOrEqual(1);
+    }
     const m = matches(p, r);
     const found = m.filter((x) => x.r >= 0.6);
     expect(found.length).toBeGreaterThanOrEqual(12);
