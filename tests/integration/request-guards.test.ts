@@ -9,7 +9,7 @@
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { randomBytes } from 'node:crypto';
 
-const session = vi.hoisted(() => ({ current: null as null | { user: { id: number } } }));
+const session = vi.hoisted(() => ({ current: null as null | { user: { id: number; sid: string; sv: number } } }));
 vi.mock('next-auth', async (importOriginal) => ({
   ...(await importOriginal<typeof import('next-auth')>()),
   getServerSession: async () => session.current,
@@ -39,7 +39,8 @@ const json = (name: string) => ({ 'content-type': 'application/json', body: JSON
 beforeAll(async () => {
   const [id] = await db('users').insert({ email: `guards-${tag}@fernhollow.example`, name: `Guards ${tag}`, role: 'observer', active: true });
   userId = Number(id);
-  session.current = { user: { id: userId } };
+  // a live session of a fresh account: session id, and session version 0 (lib/auth/session.ts)
+  session.current = { user: { id: userId, sid: `guards-${tag}`, sv: 0 } };
 });
 
 afterAll(async () => {
