@@ -45,7 +45,9 @@ test('a lead reconciles a disagreement with a reason, and the agreement page sho
   await expect(page.getByTestId('home-heading')).toBeVisible();
   await page.goto(`/studies/${studyId}/reconcile`);
   await expect(page.getByTestId('reconcile-heading')).toBeVisible();
-  const entry = page.getByTestId('reconcile-list').getByRole('button', { name: new RegExp(`component 1 of ${run.k}`) });
+  // this test's run by its subject label: other tests' runs in the demo study may wait in Reconcile too
+  const sub = sql<{ sub: string }>(`SELECT sub FROM runs WHERE id = ${run.runId}`)[0]!.sub;
+  const entry = page.getByTestId('reconcile-list').getByRole('button', { name: new RegExp(`sub-${sub}_.*component 1 of ${run.k}`) });
   await expect(entry).toBeVisible();
   await entry.click();
   await expect(page.getByTestId('reconcile-votes')).toContainText('Noise');
