@@ -1,7 +1,7 @@
 'use client';
 
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { getJson } from '@/lib/api/client';
+import { callJson, dataOrThrow, getJson } from '@/lib/api/client';
 
 /** What GET /api/studies/:id/assignments returns (dates as ISO strings, as JSON carries them). */
 export type AssignmentCell = { raterId: number; raterName: string; dueAt: string | null; labelled: number; submittedAt: string | null; notifiedAt: string | null; overdue: boolean };
@@ -25,23 +25,9 @@ export function useStudyAssignments(studyId: number, initialData: StudyAssignmen
   });
 }
 
-export class AssignmentCallError extends Error {
-  constructor(message: string, readonly status: number, readonly fields?: Record<string, string[]>) {
-    super(message);
-  }
-}
-
-/** One JSON call (any method); throws AssignmentCallError with the server's message. */
+/** One JSON call (any method); throws ApiCallError with the server's message. */
 export async function callAssignments<T = unknown>(method: 'POST' | 'PATCH' | 'DELETE', url: string, body?: unknown): Promise<T> {
-  let res: Response;
-  try {
-    res = await fetch(url, { method, headers: body === undefined ? undefined : { 'Content-Type': 'application/json' }, body: body === undefined ? undefined : JSON.stringify(body) });
-  } catch {
-    throw new AssignmentCallError('The server cannot be reached. Check your connection and try again.', 0);
-  }
-  const payload = await res.json().catch(() => null);
-  if (!res.ok) throw new AssignmentCallError(payload?.error?.message ?? `The server answered ${res.status}.`, res.status, payload?.error?.fields);
-  return payload as T;
+  return dataOrThrow(await callJson<T>(method, url, body));
 }
 
 /** A change to the study's assignments that refreshes the table when it is done. */

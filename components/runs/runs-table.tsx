@@ -18,7 +18,7 @@ import { bidsName } from '@/lib/bids';
 import { DIM_METHOD_NAMES, DIM_METHODS, type DimMethod } from '@/lib/studies/labels';
 import { WARNING_SHORT } from '@/lib/runs/decomposition-warnings';
 import { decomposeSettingsSchema } from '@/lib/runs/schema';
-import { postJson } from '@/lib/api/client';
+import { deleteJson, postJson } from '@/lib/api/client';
 import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/notice';
 import { studyRunsKey } from './use-study-runs';
@@ -210,12 +210,7 @@ function RowActions({ run, studyId, canManage }: { run: RunListItem; studyId: nu
     await client.invalidateQueries({ queryKey: studyRunsKey(studyId) });
   };
   const del = (confirmVotes: boolean) =>
-    act(async () => {
-      const res = await fetch(`/api/runs/${run.id}${confirmVotes ? '?confirmVotes=true' : ''}`, { method: 'DELETE' }).catch(() => null);
-      if (!res) return { ok: false, message: 'The server cannot be reached.' };
-      const payload = await res.json().catch(() => null);
-      return { ok: res.ok, status: res.status, message: payload?.error?.message, fields: payload?.error?.fields };
-    });
+    act(() => deleteJson(`/api/runs/${run.id}${confirmVotes ? '?confirmVotes=true' : ''}`));
 
   const redecompose = () => {
     const settings = { dimMethod: dim, fixedComponents: dim === 'fixed' ? Number(n) : null, varianceFraction: dim === 'variance' ? Number(fraction) : null };

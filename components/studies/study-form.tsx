@@ -6,7 +6,7 @@ import { useForm, useWatch } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { studySchema, type StudyInput, type StudyValues } from '@/lib/studies/schema';
 import { CONSENSUS_NAMES, CONSENSUS_RULES, DIM_METHOD_NAMES, DIM_METHODS, LOW_REPRODUCIBILITY_NAMES, LOW_REPRODUCIBILITY_POLICIES, NOISE_KIND_KEYS, NOISE_KIND_NAMES } from '@/lib/studies/labels';
-import { postJson } from '@/lib/api/client';
+import { patchJson, postJson } from '@/lib/api/client';
 import { Field } from '@/components/ui/field';
 import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/notice';
@@ -121,14 +121,6 @@ export function StudyForm({ initial, studyId }: { initial: StudyValues; studyId?
   );
 }
 
-async function patchJson<T>(url: string, body: unknown) {
-  // PATCH through the same client conventions as putJson/postJson.
-  const res = await fetch(url, { method: 'PATCH', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify(body) }).catch(() => null);
-  if (!res) return { ok: false as const, status: 0, message: 'The server cannot be reached. Check your connection and try again.' };
-  const payload = await res.json().catch(() => null);
-  if (res.ok) return { ok: true as const, data: payload as T };
-  return { ok: false as const, status: res.status, message: payload?.error?.message ?? `The server answered ${res.status}.`, fields: payload?.error?.fields as Record<string, string[]> | undefined };
-}
 
 type SelectProps = React.SelectHTMLAttributes<HTMLSelectElement> & { label: string; name: string; error?: string; ref?: React.Ref<HTMLSelectElement> };
 function Select({ label, name, error, children, ref, ...props }: SelectProps) {

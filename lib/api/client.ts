@@ -3,7 +3,8 @@ export type ApiResult<T> =
   | { ok: true; data: T }
   | { ok: false; status: number; message: string; fields?: Record<string, string[]> };
 
-async function call<T>(method: string, url: string, body?: unknown): Promise<ApiResult<T>> {
+/** The one browser JSON call: sends `body` as JSON when given, reads the server's `{ error }` shape. */
+export async function callJson<T>(method: 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE', url: string, body?: unknown): Promise<ApiResult<T>> {
   let res: Response;
   try {
     res = await fetch(url, {
@@ -24,7 +25,25 @@ async function call<T>(method: string, url: string, body?: unknown): Promise<Api
   };
 }
 
-export const getJson = <T>(url: string) => call<T>('GET', url);
-export const postJson = <T>(url: string, body: unknown) => call<T>('POST', url, body);
-export const putJson = <T>(url: string, body: unknown) => call<T>('PUT', url, body);
-export const deleteJson = <T>(url: string) => call<T>('DELETE', url);
+export const getJson = <T>(url: string) => callJson<T>('GET', url);
+export const postJson = <T>(url: string, body: unknown) => callJson<T>('POST', url, body);
+export const putJson = <T>(url: string, body: unknown) => callJson<T>('PUT', url, body);
+export const patchJson = <T>(url: string, body: unknown) => callJson<T>('PATCH', url, body);
+export const deleteJson = <T>(url: string) => callJson<T>('DELETE', url);
+
+/** A failed call as an exception (for react-query mutations): the server's message, status and field errors. */
+export class ApiCallError extends Error {
+  constructor(
+    message: string,
+    readonly status: number,
+    readonly fields?: Record<string, string[]>,
+  ) {
+    super(message);
+  }
+}
+
+/** The data of a successful call, or throws ApiCallError. */
+export function dataOrThrow<T>(result: ApiResult<T>): T {
+  if (result.ok) return result.data;
+  throw new ApiCallError(result.message, result.status, result.fields);
+}
