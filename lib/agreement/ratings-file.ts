@@ -1,42 +1,17 @@
 import { AgreementError } from './errors';
 import type { Vote } from './table';
+import { parseDelimitedText, TabularParseError } from '@/lib/exports/tabular';
 
 export type RatingsFileFormat = 'csv' | 'tsv';
 
-/**
- * Splits delimited text into rows. CSV follows RFC 4180 (fields in double quotes may hold the
- * delimiter, newlines and doubled quotes); TSV is split on tabs without quoting (the IANA
- * text/tab-separated-values convention). Lines may end in LF or CRLF; blank lines are skipped.
- */
+/** Rows of a CSV (RFC 4180) or TSV text; a malformed CSV is the ratings file's bad input. */
 export function parseDelimited(text: string, format: RatingsFileFormat): string[][] {
-  const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
-  if (format === 'tsv') {
-    return body.split(/\r?\n/).filter((l) => l.trim() !== '').map((l) => l.split('\t'));
+  try {
+    return parseDelimitedText(text, format);
+  } catch (e) {
+    if (e instanceof TabularParseError) throw new AgreementError('bad_input', e.message);
+    throw e;
   }
-  const rows: string[][] = [];
-  let row: string[] = [];
-  let field = '';
-  let quoted = false;
-  for (let i = 0; i < body.length; i++) {
-    const ch = body[i];
-    if (quoted) {
-      if (ch === '"' && body[i + 1] === '"') { field += '"'; i++; }
-      else if (ch === '"') quoted = false;
-      else field += ch;
-    } else if (ch === '"' && field === '') quoted = true;
-    else if (ch === ',') { row.push(field); field = ''; }
-    else if (ch === '\n' || ch === '\r') {
-      if (ch === '\r' && body[i + 1] === '\n') i++;
-      row.push(field);
-      if (row.some((f) => f.trim() !== '')) rows.push(row);
-      row = [];
-      field = '';
-    } else field += ch;
-  }
-  if (quoted) throw new AgreementError('bad_input', 'unterminated quoted field in CSV');
-  row.push(field);
-  if (row.some((f) => f.trim() !== '')) rows.push(row);
-  return rows;
 }
 
 /** CSV or TSV from the file name (.csv / .tsv / .tab), else from the header line (a tab means TSV). */

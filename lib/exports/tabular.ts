@@ -1,6 +1,6 @@
 /**
  * The one writer of tabular exports (TSV in releases, CSV for the agreement report and the audit
- * log) and the reader of TSV for checks. Every free-text cell goes through `guardFormula`: a cell
+ * log) and the one reader of delimited text (CSV per RFC 4180, TSV). Every free-text cell goes through `guardFormula`: a cell
  * that starts with = + - @, a tab or a carriage return is prefixed with ' so that a spreadsheet
  * shows it as text instead of running it as a formula (OWASP, "CSV Injection"). Numbers stay
  * numbers: number cells, and text cells that are a plain decimal number (e.g. "-0.1234"), are
@@ -45,9 +45,51 @@ export function csvLine(cells: readonly unknown[]): string {
   return cells.map(csvCell).join(',');
 }
 
-/** Parses a TSV with a header row into column names and rows of strings. */
+/** A delimited text that cannot be read (the message says where and why). */
+export class TabularParseError extends Error {}
+
+/**
+ * Splits delimited text into rows. CSV follows RFC 4180 (fields in double quotes may hold the
+ * delimiter, newlines and doubled quotes); TSV is split on tabs without quoting (the IANA
+ * text/tab-separated-values convention). Lines may end in LF or CRLF; blank lines are skipped.
+ */
+export function parseDelimitedText(text: string, format: 'csv' | 'tsv'): string[][] {
+  const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
+  if (format === 'tsv') {
+    return body.split(/\r?\n/).filter((l) => l.trim() !== '').map((l) => l.split('\t'));
+  }
+  const rows: string[][] = [];
+  let row: string[] = [];
+  let field = '';
+  let quoted = false;
+  for (let i = 0; i < body.length; i++) {
+    const ch = body[i];
+    if (quoted) {
+      if (ch === '"' && body[i + 1] === '"') { field += '"'; i++; }
+      else if (ch === '"') quoted = false;
+      else field += ch;
+    } else if (ch === '"' && field === '') quoted = true;
+    else if (ch === ',') { row.push(field); field = ''; }
+    else if (ch === '\n' || ch === '\r') {
+      if (ch === '\r' && body[i + 1] === '\n') i++;
+      row.push(field);
+      if (row.some((f) => f.trim() !== '')) rows.push(row);
+      row = [];
+      field = '';
+    } else field += ch;
+  }
+  if (quoted) throw new TabularParseError('unterminated quoted field in CSV');
+  row.push(field);
+  if (row.some((f) => f.trim() !== '')) rows.push(row);
+  return rows;
+}
+
+/**
+ * Parses a TSV with a header row into column names and rows of strings (lines starting with # are
+ * comments; blank lines are skipped).
+ */
 export function parseTsv(text: string): { header: string[]; rows: string[][] } {
-  const lines = text.split(/\r?\n/).filter((l) => l.length > 0 && !l.startsWith('#'));
-  const [head, ...rest] = lines;
-  return { header: (head ?? '').split('\t'), rows: rest.map((l) => l.split('\t')) };
+  const uncommented = text.split(/\r?\n/).filter((l) => !l.startsWith('#')).join('\n');
+  const [head, ...rest] = parseDelimitedText(uncommented, 'tsv');
+  return { header: head ?? [''], rows: rest };
 }

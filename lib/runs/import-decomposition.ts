@@ -9,6 +9,7 @@ import path from 'node:path';
 import type { ComponentFeatures } from '@/lib/decomposition/features';
 import { assertSameGrid, readNiftiHeaderFile, type NiftiHeader } from '@/lib/nifti';
 import { childKey, ensureDirFor, newKey } from '@/lib/storage';
+import { parseTsv } from '@/lib/exports/tabular';
 import type { ComponentRow, DecompositionFiles } from './ingest-decomposition';
 
 export class ImportError extends Error {
@@ -27,11 +28,9 @@ async function readTable(dir: string, name: string): Promise<Table> {
   } catch {
     throw new ImportError(`${name} is missing from ${dir}; give the folder written by \`quorum decompose --out\`.`);
   }
-  const lines = text.split('\n').filter((l) => l.trim() !== '');
-  if (lines.length < 2) throw new ImportError(`${name} has no rows.`);
-  const header = lines[0].split('\t');
-  const rows = lines.slice(1).map((line, i) => {
-    const cells = line.split('\t');
+  const { header, rows: cellRows } = parseTsv(text);
+  if (cellRows.length === 0) throw new ImportError(`${name} has no rows.`);
+  const rows = cellRows.map((cells, i) => {
     if (cells.length !== header.length) throw new ImportError(`${name}, line ${i + 2}: ${cells.length} columns, the header has ${header.length}.`);
     return cells.map((c) => {
       if (c === 'n/a' || c === '') return null;
