@@ -15,7 +15,7 @@ import {
 import { useQueryClient } from '@tanstack/react-query';
 import type { RunListItem, RunStatus } from '@/lib/db/queries/runs';
 import { bidsName } from '@/lib/bids';
-import { DIM_METHOD_NAMES, DIM_METHODS, type DimMethod } from '@/lib/studies/labels';
+import { DIM_METHOD_NAMES, DIM_METHODS, type DimSetting } from '@/lib/studies/labels';
 import { WARNING_SHORT } from '@/lib/runs/decomposition-warnings';
 import { decomposeSettingsSchema } from '@/lib/runs/schema';
 import { deleteJson, postJson } from '@/lib/api/client';
@@ -187,7 +187,7 @@ function RowActions({ run, studyId, canManage }: { run: RunListItem; studyId: nu
   const [mode, setMode] = useState<Mode>(null);
   const [message, setMessage] = useState<string | null>(null);
   const [pending, setPending] = useState(false);
-  const [dim, setDim] = useState<DimMethod>('fixed');
+  const [dim, setDim] = useState<DimSetting>('fixed');
   const [n, setN] = useState('20');
   const [fraction, setFraction] = useState('0.9');
   const name = bidsName(run);
@@ -260,7 +260,7 @@ function RowActions({ run, studyId, canManage }: { run: RunListItem; studyId: nu
       ) : null}
       {mode === 'redecompose' ? (
         <div className="flex flex-wrap items-center justify-end gap-1 text-xs">
-          <select aria-label="Dimensionality" value={dim} onChange={(e) => setDim(e.target.value as DimMethod)} className="rounded border border-line-strong bg-ground-sunken px-1">
+          <select aria-label="Dimensionality" value={dim} onChange={(e) => setDim(e.target.value as DimSetting)} className="rounded border border-line-strong bg-ground-sunken px-1">
             {DIM_METHODS.map((m) => (
               <option key={m} value={m}>{DIM_METHOD_NAMES[m]}</option>
             ))}

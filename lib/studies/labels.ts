@@ -47,9 +47,10 @@ export const CONSENSUS_NAMES: Record<ConsensusRule, string> = {
 };
 
 export const DIM_METHODS = ['iid-mdl', 'iid-aic', 'laplace', 'aic', 'mdl', 'fixed', 'variance'] as const;
-export type DimMethod = (typeof DIM_METHODS)[number];
+/** How a study sets the number of components (the engine's own `DimMethod` carries the numbers). */
+export type DimSetting = (typeof DIM_METHODS)[number];
 
-export const DIM_METHOD_NAMES: Record<DimMethod, string> = {
+export const DIM_METHOD_NAMES: Record<DimSetting, string> = {
   'iid-mdl': 'Automatic (MDL on independent voxels)',
   'iid-aic': 'AIC on independent voxels',
   laplace: 'Laplace evidence',

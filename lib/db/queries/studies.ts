@@ -4,7 +4,7 @@ import type { UserRow } from './users';
 import type { Knex } from 'knex';
 import { parseJson, toJson } from '@/lib/db/knex';
 import { recordAudit } from './audit';
-import type { StudyRole, ConsensusRule, DimMethod, LowReproducibilityPolicy, NoiseKindKey } from '@/lib/studies/labels';
+import type { StudyRole, ConsensusRule, DimSetting, LowReproducibilityPolicy, NoiseKindKey } from '@/lib/studies/labels';
 import type { StudyValues, StudyUpdate } from '@/lib/studies/schema';
 import { managesStudy } from '@/lib/auth/permissions';
 
@@ -59,7 +59,7 @@ export type StudyDetail = {
   blinding: boolean;
   showVotesAfterSubmit: boolean;
   dropVolumes: number;
-  dimMethod: DimMethod;
+  dimMethod: DimSetting;
   fixedComponents: number | null;
   varianceFraction: number | null;
   varianceNorm: boolean;
@@ -114,7 +114,7 @@ function toStudy(r: Record<string, unknown>): StudyDetail {
     blinding: Boolean(r.blinding),
     showVotesAfterSubmit: Boolean(r.show_votes_after_submit),
     dropVolumes: Number(r.drop_volumes),
-    dimMethod: r.dim_method as DimMethod,
+    dimMethod: r.dim_method as DimSetting,
     fixedComponents: r.fixed_components == null ? null : Number(r.fixed_components),
     varianceFraction: r.variance_fraction == null ? null : Number(r.variance_fraction),
     varianceNorm: Boolean(r.variance_norm),
