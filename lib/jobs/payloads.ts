@@ -9,6 +9,7 @@ import {
   notifyOverduePayloadSchema,
   notifyVotesCompletePayloadSchema,
 } from '@/lib/notifications/payloads';
+import { sendMailPayloadSchema } from '@/lib/mail/payloads';
 
 /** Overrides of the study protocol for one decomposition (all optional). */
 export const decompositionOptionsSchema = z
@@ -47,6 +48,7 @@ export const jobPayloadSchemas = {
   'notify-assignments': notifyAssignmentsPayloadSchema,
   'notify-votes-complete': notifyVotesCompletePayloadSchema,
   'notify-overdue': notifyOverduePayloadSchema,
+  'send-mail': sendMailPayloadSchema,
 } as const;
 
 export type JobKindName = keyof typeof jobPayloadSchemas;

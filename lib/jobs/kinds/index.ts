@@ -5,6 +5,7 @@ import { denoiseKind } from './denoise';
 import { notifyAssignmentsKind } from './notify-assignments';
 import { notifyVotesCompleteKind } from './notify-votes-complete';
 import { notifyOverdueKind } from './notify-overdue';
+import { sendMailKind } from './send-mail';
 
 export const jobKinds: Readonly<Record<string, JobKind>> = {
   [decomposeKind.kind]: decomposeKind as unknown as JobKind,
@@ -12,4 +13,5 @@ export const jobKinds: Readonly<Record<string, JobKind>> = {
   [notifyAssignmentsKind.kind]: notifyAssignmentsKind as unknown as JobKind,
   [notifyVotesCompleteKind.kind]: notifyVotesCompleteKind as unknown as JobKind,
   [notifyOverdueKind.kind]: notifyOverdueKind as unknown as JobKind,
+  [sendMailKind.kind]: sendMailKind as unknown as JobKind,
 };
