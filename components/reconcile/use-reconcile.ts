@@ -23,7 +23,7 @@ export function useReconcileItems(studyId: number, filters: { runId?: number; no
   });
 }
 
-/** One run's components as the lead reviews them (loaded once per run, kept for the session). */
+/** One run's components as the lead reconciles them (loaded once per run, kept for the session). */
 export function useReconcileRun(runId: number | null) {
   return useQuery({
     queryKey: ['reconcile-run', runId],

@@ -11,7 +11,7 @@ import { leadsStudy } from '@/lib/auth/permissions';
 
 
 /**
- * A run's current decomposition as a study lead reviews it in Reconcile: the same shapes the
+ * A run's current decomposition as a study lead sees it in Reconcile: the same shapes the
  * rating desk draws (maps, time courses, spectra, features), reached through leading the study
  * instead of an assignment. 404 when the run is not in a study the caller leads.
  */

@@ -31,9 +31,9 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
   const { data: items = [], isFetching } = useReconcileItems(studyId, { runId: runFilter, noiseKind: kindFilter, include }, initialItems);
   const [selected, setSelected] = useState<number | null>(initialItems[0]?.componentId ?? null);
   const item = items.find((i) => i.componentId === selected) ?? items[0] ?? null;
-  const review = useReconcileRun(item?.runId ?? null);
-  const component = review.data?.components.find((c) => c.id === item?.componentId) ?? null;
-  const run = review.data?.run;
+  const runView = useReconcileRun(item?.runId ?? null);
+  const component = runView.data?.components.find((c) => c.id === item?.componentId) ?? null;
+  const run = runView.data?.run;
 
   const [label, setLabel] = useState<string>(item?.decision.label ?? '');
   const [noiseKind, setNoiseKind] = useState<string>(item?.decision.noiseKind ?? '');
