@@ -5,7 +5,7 @@ import { countAttempts, lockedFor } from '@/lib/auth/throttle';
 import { addressKey, auditAddress } from '@/lib/auth/client-address';
 import { facilityName, publicBaseUrl } from '@/lib/mail/config';
 import { AppError } from '@/lib/errors';
-import { requestPasswordReset } from '@/lib/auth/request-password-reset';
+import { requestPasswordReset } from '@/lib/people/request-password-reset';
 
 // POST /api/password-reset – ask for a reset link. Same answer, and the same work before it, for
 // every address: the lookup and the queueing of the e-mail happen after the response; the worker

@@ -1,5 +1,5 @@
 /**
- * Job kind `send-mail` (payload { outboxId }): sends one queued e-mail (lib/mail/queue-mail.ts).
+ * Job kind `send-mail` (payload { outboxId }): sends one queued e-mail (lib/jobs/queue-mail.ts).
  * Opens the sealed message with the server secret, sends it, marks the outbox row sent and drops
  * the sealed copy. A failure to send is retried with back-off (5 attempts); the last failure also
  * drops the sealed copy. A message this worker cannot open (another NEXTAUTH_SECRET) fails at once.

@@ -1,12 +1,12 @@
 /**
  * Use case: someone asks for a password reset link. For an active account, a new one-time link
  * (earlier unused ones are withdrawn, lib/db/queries/invitations.ts) is queued as an e-mail for the
- * worker (lib/mail/queue-mail.ts). Nothing is said about whether the address has an account.
+ * worker (lib/jobs/queue-mail.ts). Nothing is said about whether the address has an account.
  */
 import { findAccountForReset } from '@/lib/db/queries/people';
 import { createPasswordReset } from '@/lib/db/queries/invitations';
 import { inTransaction } from '@/lib/db/transaction';
-import { queueMail } from '@/lib/mail/queue-mail';
+import { queueMail } from '@/lib/jobs/queue-mail';
 import { passwordResetMail } from '@/lib/mail/templates/password-reset';
 
 export async function requestPasswordReset({ email, ip, baseUrl, facility }: { email: string; ip: string | null; baseUrl: string; facility: string }): Promise<{ queued: boolean }> {

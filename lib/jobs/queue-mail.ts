@@ -1,14 +1,14 @@
 /**
  * Queues an e-mail that carries a one-time link (invitation, password reset) for the send-mail job
- * (lib/jobs/kinds/send-mail.ts): sent by the worker with retries, never from the request. The
- * outbox's readable copy has the links removed; the full message is sealed (./seal.ts) until sent.
+ * (./kinds/send-mail.ts): sent by the worker with retries, never from the request. The
+ * outbox's readable copy has the links removed; the full message is sealed (lib/mail/seal.ts) until sent.
  */
 import type { Knex } from 'knex';
 import { insertQueuedMail } from '@/lib/db/queries/mail-outbox';
-import { enqueueJob } from '@/lib/jobs/queue';
-import { SEND_MAIL } from './payloads';
-import { sealMail, withoutSecrets } from './seal';
-import type { MailContent } from './templates/layout';
+import { enqueueJob } from './queue';
+import { SEND_MAIL } from '@/lib/mail/payloads';
+import { sealMail, withoutSecrets } from '@/lib/mail/seal';
+import type { MailContent } from '@/lib/mail/templates/layout';
 
 export async function queueMail(
   trx: Knex,
