@@ -1,9 +1,10 @@
 import 'server-only';
 import type { z } from 'zod';
 import { requireUser } from '@/lib/auth/session';
-import type { Action } from '@/lib/auth/permissions';
+import { leadsStudy, type Access, type Action } from '@/lib/auth/permissions';
+import { findRunAccess, findStudyAccess } from '@/lib/db/queries/study-access';
 import type { UserRow } from '@/lib/db/queries/users';
-import { AppError, errorResponse } from '@/lib/errors';
+import { AppError, errorResponse, forbidden, notFound } from '@/lib/errors';
 import { checkOrigin, readJsonBody } from './request-guards';
 
 type Schema = z.ZodType;
@@ -17,11 +18,26 @@ export type HandlerSpec<Q, B, P> = {
   params?: P;
   /** Describes the request in validation messages, e.g. "The vote". */
   what?: string;
+  /**
+   * The study the request is about, from the address's `id`: 'study' (the study's id) or 'run' (a
+   * run's id, scoped to its study). The wrapper loads the caller's Access (404 when the caller may not
+   * see it) and passes it in as `access`.
+   */
+  scope?: 'study' | 'run';
+  /** With a scope: 'lead' lets only the study's leads (and admins) through, 403 otherwise, saying `denied`. */
+  studyRule?: 'member' | 'lead';
+  /** What the caller was refused, for the 403 message, e.g. "reconciling a study you do not lead". */
+  denied?: string;
 };
 
-export type HandlerContext<Q, B, P, U> = {
+/** The caller's access to the scoped study (with the run's id for a run scope). */
+export type ScopedAccess = Access & { runId?: number };
+
+export type HandlerContext<Q, B, P, U, A = ScopedAccess | null> = {
   req: Request;
   user: U;
+  /** The caller's access to the scoped study: present when the spec has a scope, else null. */
+  access: A;
   query: Out<Q>;
   body: Out<B>;
   params: Out<P>;
@@ -36,9 +52,20 @@ function parse<S extends Schema | undefined>(schema: S, value: unknown, what: st
   return result.data as Out<S>;
 }
 
+/** Loads the Access of a scoped request, or throws 404 (not the caller's to see) / 403 (not a lead). */
+async function scopedAccess(spec: Pick<HandlerSpec<unknown, unknown, unknown>, 'scope' | 'studyRule' | 'denied'>, user: UserRow, params: unknown): Promise<ScopedAccess> {
+  const id = Number((params as { id?: unknown } | undefined)?.id);
+  if (!Number.isInteger(id) || id <= 0) throw new AppError('validation', 'The address needs a numeric id.');
+  const access = spec.scope === 'run' ? await findRunAccess({ user, runId: id }) : await findStudyAccess({ user, studyId: id });
+  if (!access) throw notFound(spec.scope === 'run' ? 'The run' : 'The study');
+  if (spec.studyRule === 'lead' && !leadsStudy(access)) throw forbidden(spec.denied ?? 'this for a study you do not lead');
+  return access;
+}
+
 /**
  * The one wrapper for route handlers: refuse state changes from other sites (Origin/Referer) →
- * authenticate → check the permission → validate params, query and body with zod (a body is JSON
+ * authenticate → check the permission → validate params → load the caller's Access to the scoped
+ * study or run (404 / 403 by the study-level rule) → validate query and body with zod (a body is JSON
  * only, 415 otherwise, and at most 64 KB, 413 otherwise) → run. Row scoping is the handler's job,
  * in its queries' WHERE clauses. Upload routes declare no body and read the stream themselves.
  * Errors become JSON responses (AppError → its status; anything else → logged, generic 500).
@@ -48,9 +75,10 @@ export function handler<
   B extends Schema | undefined = undefined,
   P extends Schema | undefined = undefined,
   Perm extends Action | 'public' = Action | 'public',
+  Sc extends 'study' | 'run' | undefined = undefined,
 >(
-  spec: HandlerSpec<Q, B, P> & { permission: Perm },
-  fn: (ctx: HandlerContext<Q, B, P, Perm extends 'public' ? UserRow | null : UserRow>) => Promise<Response | unknown>,
+  spec: HandlerSpec<Q, B, P> & { permission: Perm; scope?: Sc },
+  fn: (ctx: HandlerContext<Q, B, P, Perm extends 'public' ? UserRow | null : UserRow, Sc extends 'study' | 'run' ? ScopedAccess : null>) => Promise<Response | unknown>,
 ) {
   return async (req: Request, context: RouteContext): Promise<Response> => {
     try {
@@ -59,8 +87,9 @@ export function handler<
       const what = spec.what ?? 'The request';
       const params = parse(spec.params as P, context?.params ? await context.params : {}, `${what}'s address`);
       const query = parse(spec.query as Q, Object.fromEntries(new URL(req.url).searchParams), `${what}'s query`);
+      const access = spec.scope && user ? await scopedAccess(spec, user, params) : null;
       const body = spec.body ? parse(spec.body as B, await readJsonBody(req), what) : (undefined as Out<B>);
-      const result = await fn({ req, user: user as never, query, body, params });
+      const result = await fn({ req, user: user as never, access: access as never, query, body, params });
       return result instanceof Response ? result : Response.json(result ?? { ok: true });
     } catch (err) {
       return errorResponse(err, `${req.method} ${new URL(req.url).pathname}`);

@@ -1,18 +1,14 @@
 import { z } from 'zod';
 import { handler } from '@/lib/api/handler';
-import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { loadStudyRatings } from '@/lib/db/queries/agreement';
 import { buildAgreementReport } from '@/lib/reports/agreement-report';
 import { agreementReportCsv } from '@/lib/reports/agreement-csv';
-import { notFound } from '@/lib/errors';
 
 const params = z.object({ id: z.coerce.number().int().positive() });
 const query = z.object({ format: z.enum(['json', 'csv']).default('json') });
 
 // GET /api/studies/:id/agreement – the study's agreement report (JSON, or CSV tables with ?format=csv)
-export const GET = handler({ permission: 'agreement.read', params, query, what: 'The agreement request' }, async ({ user, params, query }) => {
-  const access = await findStudyAccess({ user, studyId: params.id });
-  if (!access) throw notFound('The study');
+export const GET = handler({ permission: 'agreement.read', scope: 'study', params, query, what: 'The agreement request' }, async ({ access, params, query }) => {
   const ratings = await loadStudyRatings({ studyId: params.id });
   const report = buildAgreementReport(ratings);
   if (query.format === 'csv') {
