@@ -66,6 +66,7 @@ export const ROUTES: RouteCase[] = [
   { file: 'runs/[id]/assignments/route.ts', method: 'PATCH', url: '/api/runs/999999/assignments', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/assignments/[raterId]/route.ts', method: 'PATCH', url: '/api/runs/999999/assignments/999999', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/assignments/[raterId]/route.ts', method: 'DELETE', url: '/api/runs/999999/assignments/999999', allowed: ['admin', 'lead'] },
+  { file: 'runs/[id]/assignments/[raterId]/reopen/route.ts', method: 'POST', url: '/api/runs/999999/assignments/999999/reopen', allowed: ['admin', 'lead'] },
   // rating desk (votes.write: raters, and the admin, who holds every action; rows scoped to the caller's assignments)
   { file: 'runs/[id]/components/route.ts', method: 'GET', url: '/api/runs/999999/components', allowed: ['admin', 'rater'] },
   { file: 'runs/[id]/votes/route.ts', method: 'GET', url: '/api/runs/999999/votes', allowed: ['admin', 'rater'] },
