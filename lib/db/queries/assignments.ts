@@ -7,7 +7,7 @@ import { AppError, notFound } from '@/lib/errors';
 import { afterAssignmentsCreated, ensureDailyOverdue } from '@/lib/notifications/enqueue';
 import { recordAudit } from './audit';
 import { findStudyAccess } from './study-access';
-import { leadsStudy } from '@/lib/auth/permissions';
+import { leadsStudy, VOTING_ROLES } from '@/lib/auth/permissions';
 import type { UserRow } from './users';
 
 type Caller = Pick<UserRow, 'id' | 'role'>;
@@ -90,9 +90,10 @@ async function requireStudyRater(trx: Knex.Transaction, { studyId, raterId, fiel
   const row = await trx('study_members as m')
     .join('users as u', 'u.id', 'm.user_id')
     .where({ 'm.study_id': studyId, 'm.user_id': raterId, 'm.study_role': 'rater' })
-    .first('u.id', 'u.name', 'u.active');
+    .first('u.id', 'u.name', 'u.active', 'u.role');
   if (!row) throw new AppError('validation', 'That person is not a rater of this study. Add them as a rater under Protocol and members first.', { [field]: ['not a rater of this study'] });
   if (!row.active) throw new AppError('validation', `${row.name}'s account is deactivated.`, { [field]: ['deactivated account'] });
+  if (!VOTING_ROLES.includes(row.role)) throw new AppError('validation', `${row.name}'s account (${row.role}) may not vote, so it cannot rate runs. Ask the facility admin to change the account's role.`, { [field]: ['account may not vote'] });
   return { id: Number(row.id), name: String(row.name) };
 }
 
@@ -132,6 +133,7 @@ export async function listStudyAssignments({ user, studyId }: { user: Caller; st
   const raters = await db('study_members as m')
     .join('users as u', 'u.id', 'm.user_id')
     .where({ 'm.study_id': studyId, 'm.study_role': 'rater', 'u.active': true })
+    .whereIn('u.role', VOTING_ROLES)
     .select('u.id', 'u.name', db.raw('(SELECT COUNT(*) FROM assignments a WHERE a.rater_id = u.id AND a.submitted_at IS NULL) as open'))
     .orderBy('u.name');
   return {

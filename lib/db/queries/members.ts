@@ -3,7 +3,7 @@ import type { Knex } from 'knex';
 import { db } from '@/lib/db/knex';
 import { recordAudit } from './audit';
 import { AppError, notFound } from '@/lib/errors';
-import type { Role } from '@/lib/auth/roles';
+import { mayHoldStudyRole, type Role } from '@/lib/auth/roles';
 import type { StudyRole } from '@/lib/studies/labels';
 import type { UserRow } from './users';
 
@@ -26,13 +26,6 @@ export async function listMembers({ studyId }: { studyId: number }): Promise<Stu
   return rows.map((r) => ({ ...r, userId: Number(r.userId) }));
 }
 
-/** Which account roles may hold a study role: raters vote (raters and admins), leads manage (leads and admins). */
-const ALLOWED: Record<StudyRole, Role[]> = {
-  lead: ['lead', 'admin'],
-  rater: ['rater', 'admin'],
-  observer: ['admin', 'lead', 'rater', 'observer'],
-};
-
 /**
  * Adds an existing, active account to a study by e-mail, or changes its study role. The account's
  * facility role must allow the study role. Audited.
@@ -44,7 +37,7 @@ export async function addMember({ actor, studyId, email, studyRole }: { actor: P
       email: ['No active account has this e-mail.'],
     });
   }
-  if (!ALLOWED[studyRole].includes(account.role)) {
+  if (!mayHoldStudyRole(account.role, studyRole)) {
     throw new AppError(
       'validation',
       `${account.name} has the facility role "${account.role}", which cannot be a study ${studyRole}. Choose another study role or ask the facility admin to change the account's role.`,
