@@ -78,3 +78,28 @@ export async function removeMember({ actor, studyId, userId }: { actor: Pick<Use
     await recordAudit({ actorId: actor.id, action: 'study.member_remove', targetType: 'user', targetId: userId, studyId, detail: { studyRole: existing.study_role } }, trx);
   });
 }
+
+export type AccountCandidate = { userId: number; name: string; email: string; role: Role; studyRole: StudyRole | null };
+
+/**
+ * Active accounts whose name or e-mail contains `q` (case-insensitive; % and _ match literally),
+ * by name, at most `limit` (one more is read to tell whether there are more), with the study role
+ * each already holds in the study. Only what the member picker shows: id, name, e-mail, facility
+ * role — never deactivated accounts, sign-in times or anything else of the account.
+ */
+export async function searchAccounts({ studyId, q, limit }: { studyId: number; q: string; limit: number }): Promise<{ accounts: AccountCandidate[]; more: boolean }> {
+  const like = `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+  const rows = await db('users as u')
+    .leftJoin('study_members as m', function () {
+      this.on('m.user_id', 'u.id').andOn('m.study_id', db.raw('?', [studyId]));
+    })
+    .where('u.active', true)
+    .andWhere((w) => w.where('u.name', 'like', like).orWhere('u.email', 'like', like))
+    .orderBy(['u.name', 'u.id'])
+    .limit(limit + 1)
+    .select('u.id as userId', 'u.name', 'u.email', 'u.role', 'm.study_role as studyRole');
+  return {
+    accounts: rows.slice(0, limit).map((r) => ({ userId: Number(r.userId), name: r.name, email: r.email, role: r.role, studyRole: r.studyRole ?? null })),
+    more: rows.length > limit,
+  };
+}
