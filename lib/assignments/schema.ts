@@ -38,7 +38,6 @@ export const reopenSchema = z
       .max(500, { message: 'Keep the reason under 500 characters.' }),
   })
   .strict();
-export type ReopenInput = z.input<typeof reopenSchema>;
 
 /** PATCH /api/runs/:id/assignments — one due date for every rater of the run. */
 export const runDueSchema = z.object({ dueAt: dueAtSchema }).strict();
