@@ -41,26 +41,35 @@ function SelectField({ label, name, error, children, ...props }: React.SelectHTM
 export function InviteForm({ roles, studies, studyRoles }: { roles: Role[]; studies: { id: number; name: string }[]; studyRoles: string[] }) {
   const router = useRouter();
   const [result, setResult] = useState<{ kind: 'ok' | 'error'; text: string } | null>(null);
+  // a pending invitation to the same address: the server's words, and the values to send again on "Replace it"
+  const [replace, setReplace] = useState<{ text: string; values: InviteInput } | null>(null);
+  const defaults = { email: '', role: roles.includes('rater') ? 'rater' : roles[0], studyId: '', studyRole: '' } as unknown as InviteInput;
   const { register, handleSubmit, formState, reset, setError, control } = useForm<InviteInput>({
     resolver: zodResolver(inviteSchema),
-    defaultValues: { role: roles.includes('rater') ? 'rater' : roles[0], studyId: '', studyRole: '' } as unknown as InviteInput,
+    defaultValues: defaults,
   });
   const studyId = useWatch({ control, name: 'studyId' });
 
-  const onSubmit = handleSubmit(async (values) => {
+  const send = async (values: InviteInput) => {
     setResult(null);
-    const res = await postJson<{ ok: true; message: string }>('/api/invitations', values);
+    setReplace(null);
+    const res = await postJson<{ ok: true; outcome: string; message: string }>('/api/invitations', values);
     if (res.ok) {
       setResult({ kind: 'ok', text: res.data.message });
-      reset();
+      reset(defaults); // every field back to its default after each send, the role picker too
       router.refresh();
+      return;
+    }
+    if (res.status === 409 && res.fields?.replace) {
+      setReplace({ text: res.message, values });
       return;
     }
     for (const [name, messages] of Object.entries(res.fields ?? {})) {
       if (name === 'email' || name === 'role' || name === 'studyId' || name === 'studyRole') setError(name, { message: messages[0] });
     }
     setResult({ kind: 'error', text: res.message });
-  });
+  };
+  const onSubmit = handleSubmit((values) => send({ ...values, replace: false }));
 
   return (
     <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4" data-testid="invite-form">
@@ -68,6 +77,21 @@ export function InviteForm({ roles, studies, studyRoles }: { roles: Role[]; stud
         <Notice kind={result.kind} testId={result.kind === 'ok' ? 'invite-sent' : 'invite-error'}>
           {result.text}
         </Notice>
+      ) : null}
+      {replace ? (
+        <div role="alertdialog" aria-labelledby="replace-title" className="rounded border border-alarm/60 bg-alarm/10 p-3 text-sm" data-testid="invite-replace">
+          <p id="replace-title" className="font-semibold">Replace the pending invitation?</p>
+          <p className="mt-1 text-ink-muted" data-testid="invite-replace-text">{replace.text}</p>
+          <p className="mt-1 text-ink-muted">The withdrawal is recorded in the audit log; the old link stops working.</p>
+          <div className="mt-2 flex gap-2">
+            <Button type="button" variant="danger" disabled={formState.isSubmitting} data-testid="invite-replace-yes" onClick={() => void send({ ...replace.values, replace: true })}>
+              Withdraw it and send this one
+            </Button>
+            <Button type="button" variant="quiet" data-testid="invite-replace-no" onClick={() => { setReplace(null); setResult({ kind: 'ok', text: 'Nothing was sent; the pending invitation stays as it was.' }); }}>
+              Keep the pending one
+            </Button>
+          </div>
+        </div>
       ) : null}
       <div className="grid gap-4 sm:grid-cols-2">
         <Field label="E-mail" type="email" autoComplete="off" {...register('email')} error={formState.errors.email?.message} />

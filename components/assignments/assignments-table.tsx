@@ -7,7 +7,7 @@ import { Notice } from '@/components/ui/notice';
 import { callAssignments, useAssignmentChange, useStudyAssignments, type AssignmentCell, type AssignmentRow, type RaterOption, type StudyAssignments } from './use-study-assignments';
 import { dayOf, removalText } from './format';
 
-type Pending = { kind: 'remove' | 'replace'; run: AssignmentRow; cell: AssignmentCell; to?: RaterOption };
+type Pending = { kind: 'remove' | 'replace' | 'reopen'; run: AssignmentRow; cell: AssignmentCell; to?: RaterOption };
 
 const input = 'rounded border border-line-strong bg-ground-sunken px-2 py-1 text-xs text-ink';
 
@@ -20,6 +20,12 @@ function RaterCell({ run, cell, raters, onAsk, onDue, busy }: { run: AssignmentR
       <span className="font-medium" data-testid="assignment-rater">{cell.raterName}</span>
       <span className="text-xs tabular-nums text-ink-muted" data-testid="assignment-progress">{cell.labelled}/{run.total} labelled</span>
       <span className={`text-xs ${cell.submittedAt ? 'text-lumen-strong' : cell.overdue ? 'text-alarm' : 'text-ink-faint'}`} data-testid="assignment-state">{state}</span>
+      {cell.reopenCount ? <span className="text-xs text-ink-muted" data-testid="assignment-reopened">reopened {cell.reopenCount === 1 ? 'once' : `${cell.reopenCount} times`}</span> : null}
+      {cell.submittedAt ? (
+        <button type="button" className="text-xs text-lumen hover:underline disabled:opacity-50" disabled={busy} onClick={() => onAsk({ kind: 'reopen', run, cell })} data-testid="assignment-reopen" title="Let the rater change their submitted votes (audited; agreement keeps the votes as first submitted)">
+          reopen
+        </button>
+      ) : null}
       {cell.notifiedAt ? null : <span className="text-xs text-ink-faint" title="The e-mail listing this run goes out with the next batch">e-mail pending</span>}
       <label className="flex items-center gap-1 text-xs text-ink-muted">
         due
@@ -55,6 +61,7 @@ export function AssignmentsTable({ studyId, initial }: { studyId: number; initia
   const [selected, setSelected] = useState<Set<number>>(new Set());
   const [bulkDue, setBulkDue] = useState('');
   const [adding, setAdding] = useState<Record<number, string>>({});
+  const [reason, setReason] = useState('');
 
   const report = (text: string) => setMessage({ kind: 'ok', text });
   const fail = (e: unknown) => setMessage({ kind: 'error', text: (e as Error).message });
@@ -73,9 +80,16 @@ export function AssignmentsTable({ studyId, initial }: { studyId: number; initia
       await callAssignments('PATCH', `/api/runs/${p.run.runId}/assignments/${p.cell.raterId}`, { replaceWith: p.to!.id, confirm: confirmed });
       return `${p.to!.name} now rates ${p.run.runName} instead of ${p.cell.raterName}; they get an e-mail with the next batch.`;
     });
+  const reopen = (p: Pending, why: string) =>
+    run(async () => {
+      await callAssignments('POST', `/api/runs/${p.run.runId}/assignments/${p.cell.raterId}/reopen`, { reason: why });
+      setReason('');
+      return `${p.run.runName} is open again for ${p.cell.raterName}: they may change their votes and submit again. Agreement keeps the votes as first submitted.`;
+    });
   const ask = (p: Pending) => {
     setMessage(null);
-    if (p.cell.labelled > 0) setConfirm(p);
+    if (p.kind === 'reopen') setConfirm(p);
+    else if (p.cell.labelled > 0) setConfirm(p);
     else if (p.kind === 'remove') remove(p, false);
     else replace(p, false);
   };
@@ -86,7 +100,33 @@ export function AssignmentsTable({ studyId, initial }: { studyId: number; initia
     <div className="flex flex-col gap-4">
       {error ? <Notice kind="error">The assignments could not be refreshed: {error.message}</Notice> : null}
       {message ? <Notice kind={message.kind} testId="assignments-message">{message.text}</Notice> : null}
-      {confirm ? (
+      {confirm?.kind === 'reopen' ? (
+        <form
+          role="alertdialog"
+          aria-labelledby="reopen-title"
+          className="rounded border border-line-strong bg-ground-sunken p-3 text-sm"
+          data-testid="reopen-confirm"
+          onSubmit={(e) => {
+            e.preventDefault();
+            const p = confirm;
+            setConfirm(null);
+            reopen(p, reason);
+          }}
+        >
+          <p id="reopen-title" className="font-semibold">Reopen {confirm.run.runName} for {confirm.cell.raterName}?</p>
+          <p className="mt-1 text-ink-muted">
+            {confirm.cell.raterName} may then change their submitted votes and must submit again. Their votes as first submitted stay in the history and are the ones agreement statistics use; the methods paragraph reports the reopening. The reason is recorded in the audit log.
+          </p>
+          <label className="mt-2 flex flex-col gap-1 text-ink-muted">
+            Reason
+            <input className={input} value={reason} maxLength={500} onChange={(e) => setReason(e.target.value)} data-testid="reopen-reason" placeholder="e.g. labelled component 12 by mistake" />
+          </label>
+          <div className="mt-2 flex gap-2">
+            <Button type="submit" disabled={busy || reason.trim().length < 3} data-testid="reopen-confirm-yes">Reopen for {confirm.cell.raterName}</Button>
+            <Button type="button" variant="quiet" onClick={() => setConfirm(null)}>Keep it submitted</Button>
+          </div>
+        </form>
+      ) : confirm ? (
         <div role="alertdialog" aria-labelledby="confirm-title" className="rounded border border-alarm/60 bg-alarm/10 p-3 text-sm" data-testid="assignment-confirm">
           <p id="confirm-title" className="font-semibold">{confirm.kind === 'remove' ? `Remove ${confirm.cell.raterName} from ${confirm.run.runName}?` : `Hand ${confirm.cell.raterName}'s place on ${confirm.run.runName} to ${confirm.to!.name}?`}</p>
           <p className="mt-1 text-ink-muted">{removalText(confirm.cell.raterName, confirm.cell.labelled)} The change is recorded in the audit log.</p>

@@ -28,6 +28,17 @@ export const changeAssignmentSchema = z
 /** DELETE /api/runs/:id/assignments/:raterId?confirm=1 — confirm is required when the rater has votes. */
 export const removeRaterQuerySchema = z.object({ confirm: z.enum(['1', 'true', '0', 'false']).optional().transform((v) => v === '1' || v === 'true') });
 
+/** POST /api/runs/:id/assignments/:raterId/reopen — the lead's reason is kept in the audit log. */
+export const reopenSchema = z
+  .object({
+    reason: z
+      .string({ message: 'Give a reason for reopening (it is kept in the audit log).' })
+      .trim()
+      .min(3, { message: 'Give a reason for reopening (it is kept in the audit log).' })
+      .max(500, { message: 'Keep the reason under 500 characters.' }),
+  })
+  .strict();
+
 /** PATCH /api/runs/:id/assignments — one due date for every rater of the run. */
 export const runDueSchema = z.object({ dueAt: dueAtSchema }).strict();
 

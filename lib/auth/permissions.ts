@@ -78,3 +78,6 @@ export function leadsStudy(access: Access | null): boolean {
 export function managesStudy({ role, studyRole }: { role: Role; studyRole: StudyRole | null }): boolean {
   return role === 'admin' || (studyRole === 'lead' && role === 'lead');
 }
+
+/** Account roles that may vote (votes.write): the only accounts automatic or manual assignment may choose as raters. */
+export const VOTING_ROLES: readonly Role[] = (Object.keys(PERMISSIONS) as Role[]).filter((r) => can(r, 'votes.write'));

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { emailSchema, passwordSchema } from '@/lib/auth/schemas';
-import { ROLES } from '@/lib/auth/roles';
+import { ROLES, mayHoldStudyRole, studyRoleRefusal } from '@/lib/auth/roles';
 import { STUDY_ROLES } from '@/lib/studies/labels';
 
 /** An invitation: address, facility role, and optionally a study with the role in it. */
@@ -10,8 +10,14 @@ export const inviteSchema = z
     role: z.enum(ROLES, { message: 'Choose a role.' }),
     studyId: z.preprocess((v) => (v === '' || v === null ? undefined : v), z.coerce.number().int().positive().optional()),
     studyRole: z.preprocess((v) => (v === '' || v === null ? undefined : v), z.enum(STUDY_ROLES).optional()),
+    /** True when the inviter confirmed replacing a pending invitation to the same address. */
+    replace: z.boolean().optional(),
   })
-  .refine((v) => !v.studyId || v.studyRole, { path: ['studyRole'], message: 'Choose the role in the study.' });
+  .refine((v) => !v.studyId || v.studyRole, { path: ['studyRole'], message: 'Choose the role in the study.' })
+  // the same rule as adding a member (issue 13 item 8): an observer account is never a study rater
+  .superRefine((v, ctx) => {
+    if (v.studyId && v.studyRole && !mayHoldStudyRole(v.role, v.studyRole)) ctx.addIssue({ code: 'custom', path: ['studyRole'], message: studyRoleRefusal(v.role, v.studyRole) });
+  });
 export type InviteInput = z.input<typeof inviteSchema>;
 
 const nameSchema = z.string().trim().min(1, { message: 'Enter your name.' }).max(200, { message: 'Use at most 200 characters.' });

@@ -16,7 +16,7 @@ import type { UserRow } from '@/lib/db/queries/users';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { leadsStudy } from '@/lib/auth/permissions';
 import { recordAudit } from '@/lib/db/queries/audit';
-import { loadStudyRatings } from '@/lib/db/queries/agreement';
+import { loadRatingFacts, loadStudyRatings, type RatingFacts } from '@/lib/db/queries/agreement';
 import {
   loadExportRuns, releaseReadiness, type ExportRun, type ManifestFile, type ManifestRun, type ReleaseManifest, type Readiness,
 } from '@/lib/db/queries/releases';
@@ -65,7 +65,7 @@ const median = (xs: number[]) => {
 const uniq = <T,>(xs: T[]) => [...new Set(xs.filter((x) => x !== undefined && x !== null))] as T[];
 
 /** The methods paragraph input from the frozen runs and the report. */
-export function methodsInputOf(runs: ExportRun[], study: Record<string, unknown>, report: ReturnType<typeof buildAgreementReport>): MethodsInput {
+export function methodsInputOf(runs: ExportRun[], study: Record<string, unknown>, report: ReturnType<typeof buildAgreementReport>, ratings: RatingFacts): MethodsInput {
   const p = runs.map((r) => r.parameters);
   const num = (v: unknown) => (typeof v === 'number' ? v : null);
   const voteCounts = runs.flatMap((r) => r.components.map((c) => c.votes.length));
@@ -91,6 +91,7 @@ export function methodsInputOf(runs: ExportRun[], study: Record<string, unknown>
     uncertainInExport: (study.uncertain_in_export as UncertainPolicy) ?? 'keep',
     report,
     bootstrap: { ...BOOTSTRAP },
+    ratings,
   };
 }
 
@@ -215,7 +216,7 @@ async function writeReleaseFiles(
   const nameOf = (id: string) => `${codeOf.get(Number(id)) ?? id} (${names.get(Number(id)) ?? 'rater'})`;
   await put('', { name: `${prefix}_desc-agreement_report.json`, content: js({ Description: 'Inter-rater agreement of the released runs (statistics with percentile-bootstrap 95% CIs over components).', bootstrap: BOOTSTRAP, raterCodes: Object.fromEntries(raterIds.map((id) => [String(id), codeOf.get(id)])), report, ...sidecarMeta }) }, null);
   await put('', { name: `${prefix}_desc-agreement_report.csv`, content: agreementReportCsv(report, nameOf) }, null);
-  await put('', { name: `${prefix}_desc-methods_report.md`, content: methodsMarkdown(methodsInputOf(o.runs, o.study, report)) }, null);
+  await put('', { name: `${prefix}_desc-methods_report.md`, content: methodsMarkdown(methodsInputOf(o.runs, o.study, report, await loadRatingFacts({ studyId, runIds: o.runs.map((r) => r.runId) }))) }, null);
 
   return {
     format: EXPORT_FORMAT,

@@ -30,6 +30,15 @@ export type MethodsInput = {
   uncertainInExport: 'keep' | 'remove';
   report: AgreementReport;
   bootstrap: { resamples: number; seed: number };
+  /** How the ratings were made, as enforced (lib/db/queries/agreement.ts loadRatingFacts). */
+  ratings: {
+    blinding: boolean;
+    showVotesAfterSubmit: boolean;
+    reopened: { assignments: number; times: number };
+    raters: number;
+    /** Raters who passed the study's calibration set; null when the study certified nobody. */
+    certified: number | null;
+  };
 };
 
 const DIM: Record<string, string> = {
@@ -57,6 +66,33 @@ function stat(name: string, s: { value: number | null; ci?: { lower: number | nu
   return `${name} ${f2(s.value)}${ci}`;
 }
 
+const times = (n: number) => (n === 1 ? 'once' : `${n} times`);
+
+/** Who the raters were, as far as Quorum knows: certified on the study's calibration set, or not. */
+function whoRated(r: MethodsInput['ratings']): string {
+  const n = `${r.raters} rater${r.raters === 1 ? '' : 's'}`;
+  if (r.certified === null || r.certified === 0) return `${cap(n)}, none of them certified on a calibration set in Quorum,`;
+  if (r.certified === r.raters) return `${cap(n)}, ${r.raters === 1 ? 'who' : 'all of whom'} passed certification on the study's calibration set (agreement with the study lead's reference labels),`;
+  return `${cap(n)} (${r.certified} of them certified on the study's calibration set, ${r.raters - r.certified} not)`;
+}
+const cap = (x: string) => x.charAt(0).toUpperCase() + x.slice(1);
+
+/** What a rater could see of the other raters' labels, as the software enforced it. */
+function whatWasShown(r: MethodsInput['ratings']): string {
+  if (!r.showVotesAfterSubmit) return "Quorum never showed a rater another rater's labels.";
+  if (r.blinding) return "Quorum withheld the other raters' labels from each rater until that rater had submitted the run, and then showed only the labels of raters who had submitted it too.";
+  return "Raters were not blind to each other: Quorum showed each rater the labels of raters who had already submitted the run, also before they submitted their own.";
+}
+
+/** Frozen submissions, the lead's reopenings, and which votes the statistics use. */
+function frozen(r: MethodsInput['ratings']): string {
+  const reopened =
+    r.reopened.assignments === 0
+      ? 'no submission was reopened'
+      : `a study lead reopened ${r.reopened.assignments} rater submission${r.reopened.assignments === 1 ? '' : 's'} of a run (${times(r.reopened.times)} in all, each with a recorded reason), and decisions use the labels as changed after reopening`;
+  return `A rater's labels could not change after submission unless a study lead reopened the run for that rater; ${reopened}. Agreement statistics use each rater's labels as first submitted.`;
+}
+
 export function methodsParagraph(m: MethodsInput): string {
   const d = m.decomposition;
   const parts: string[] = [];
@@ -73,8 +109,9 @@ export function methodsParagraph(m: MethodsInput): string {
   );
   const v = m.votesPerComponent;
   parts.push(
-    `Trained raters labelled every component as ${list(m.labelSet, 'or')} from its spatial map, time course, power spectrum and features, blind to each other's labels until they had submitted a run; ` +
-      `the protocol asked for ${m.ratersPerRun} raters per run, and components received ${range(v.min, v.max)} submitted votes (mean ${f2(v.mean)}) from ${m.report.raters.length} raters in all. ` +
+    `${whoRated(m.ratings)} labelled every component as ${list(m.labelSet, 'or')} from its spatial map, time course, power spectrum and features. ` +
+      `${whatWasShown(m.ratings)} ${frozen(m.ratings)} ` +
+      `The protocol asked for ${m.ratersPerRun} raters per run, and components received ${range(v.min, v.max)} submitted votes (mean ${f2(v.mean)}) from ${m.report.raters.length} raters in all. ` +
       `Under the consensus rule, ${RULE[m.consensusRule]}.`,
   );
   const s = m.report.summary;

@@ -1,6 +1,6 @@
 /**
  * Automatic rater assignment for a run from its study's protocol (raters_per_run), balancing open
- * work: the study's active rater members with the fewest open (unsubmitted) assignments in any
+ * work: the study's active rater members whose account may vote (VOTING_ROLES) with the fewest open (unsubmitted) assignments in any
  * study come first, ties by user id. When the study certifies raters (rater_certifications has
  * rows for it), raters who passed come before the others, who are used only to fill the protocol's
  * count. Greedy choice of the least-loaded keeps every rater's open count within one of the others'
@@ -9,6 +9,7 @@
  * the `created` assignments).
  */
 import type { Knex } from 'knex';
+import { VOTING_ROLES } from '@/lib/auth/permissions';
 
 export interface AssignRatersResult {
   /** 'assigned', or why nothing was done. */
@@ -41,6 +42,7 @@ export async function assignRaters(
     .join('users as u', 'u.id', 'm.user_id')
     .select('m.user_id')
     .where({ 'm.study_id': run.study_id, 'm.study_role': 'rater', 'u.active': true })
+    .whereIn('u.role', VOTING_ROLES) // an account that may not vote never gets a run it cannot rate
     .orderBy('m.user_id')
     .forUpdate();
   if (members.length === 0) return { outcome: 'no_raters', raterIds: [], wanted, short: wanted };

@@ -82,6 +82,18 @@ export const memberSchema = z.object({
 });
 export type MemberInput = z.input<typeof memberSchema>;
 
+/** Most accounts the member picker lists at once (it says when there are more: type more of the name). */
+export const ACCOUNT_SEARCH_LIMIT = 20;
+
+/** GET /api/studies/:id/members/candidates?q= — part of a name or e-mail (2–100 characters). */
+export const accountSearchSchema = z.object({
+  q: z
+    .string({ message: 'Type at least 2 letters of a name or e-mail.' })
+    .trim()
+    .min(2, { message: 'Type at least 2 letters of a name or e-mail.' })
+    .max(100, { message: 'Use at most 100 characters.' }),
+});
+
 export const memberParams = studyIdParams.extend({
   userId: z.coerce.number().int().positive({ message: 'Not a user number.' }),
 });

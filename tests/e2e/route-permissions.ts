@@ -48,6 +48,7 @@ export const ROUTES: RouteCase[] = [
   { file: 'studies/[id]/members/route.ts', method: 'GET', url: '/api/studies/1/members', allowed: ALL },
   { file: 'studies/[id]/members/route.ts', method: 'POST', url: '/api/studies/999999/members', allowed: ['admin', 'lead'] },
   { file: 'studies/[id]/members/[userId]/route.ts', method: 'DELETE', url: '/api/studies/999999/members/999999', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/members/candidates/route.ts', method: 'GET', url: '/api/studies/999999/members/candidates?q=ab', allowed: ['admin', 'lead'] },
   { file: 'studies/[id]/runs/route.ts', method: 'GET', url: '/api/studies/1/runs', allowed: ALL },
   { file: 'studies/[id]/runs/route.ts', method: 'POST', url: '/api/studies/999999/runs', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/route.ts', method: 'GET', url: '/api/runs/999999', allowed: ALL },
@@ -66,6 +67,7 @@ export const ROUTES: RouteCase[] = [
   { file: 'runs/[id]/assignments/route.ts', method: 'PATCH', url: '/api/runs/999999/assignments', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/assignments/[raterId]/route.ts', method: 'PATCH', url: '/api/runs/999999/assignments/999999', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/assignments/[raterId]/route.ts', method: 'DELETE', url: '/api/runs/999999/assignments/999999', allowed: ['admin', 'lead'] },
+  { file: 'runs/[id]/assignments/[raterId]/reopen/route.ts', method: 'POST', url: '/api/runs/999999/assignments/999999/reopen', allowed: ['admin', 'lead'] },
   // rating desk (votes.write: raters, and the admin, who holds every action; rows scoped to the caller's assignments)
   { file: 'runs/[id]/components/route.ts', method: 'GET', url: '/api/runs/999999/components', allowed: ['admin', 'rater'] },
   { file: 'runs/[id]/votes/route.ts', method: 'GET', url: '/api/runs/999999/votes', allowed: ['admin', 'rater'] },

@@ -6,6 +6,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { actAs, callRoute, currentSession } from '../e2e/helpers/route-call';
+import { markSubmitted } from './helpers/submitted';
 
 vi.mock('server-only', () => ({}));
 vi.mock('next-auth', async (importOriginal) => ({
@@ -43,7 +44,7 @@ async function run(studyId: number, createdBy: number, raterIds: number[], k = 3
 
 async function voteAll(runId: number, componentIds: number[], raterId: number, label = 'signal') {
   for (const c of componentIds) await db('votes').insert({ component_id: c, run_id: runId, rater_id: raterId, label });
-  await db('assignments').where({ run_id: runId, rater_id: raterId }).update({ submitted_at: db.fn.now(3) });
+  await markSubmitted(db, { runId, raterId });
 }
 
 const add = (runId: number, body: unknown) => callRoute(runRoute.POST, { method: 'POST', url: `/api/runs/${runId}/assignments`, params: { id: String(runId) }, body });

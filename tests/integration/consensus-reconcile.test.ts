@@ -13,6 +13,7 @@ import { loadStudyRatings } from '@/lib/db/queries/agreement';
 import { buildAgreementReport } from '@/lib/reports/agreement-report';
 import { listRunsForStudy } from '@/lib/db/queries/runs';
 import { createRun, createStudyWithRaters } from './helpers/factories';
+import { markSubmitted } from './helpers/submitted';
 
 let studyId: number;
 let leadId: number;
@@ -79,7 +80,7 @@ describe('votes to decisions (majority rule, 3 raters)', () => {
 describe('reconcile', () => {
   it('shows nothing before every rater has submitted, then exactly the disagreement', async () => {
     expect(await listReconcileItems({ studyId, include: 'pending' })).toEqual([]);
-    await db('assignments').where({ run_id: runId }).update({ submitted_at: db.fn.now(3) });
+    await markSubmitted(db, { runId });
     const items = await listReconcileItems({ studyId, include: 'pending' });
     expect(items.map((i) => i.idx)).toEqual([3]);
     expect(items[0].votes.map((v) => v.label).sort()).toEqual(['noise', 'signal', 'uncertain']);

@@ -15,6 +15,7 @@ import { mkdtemp, readFile, readdir, rm, writeFile } from 'node:fs/promises';
 import os from 'node:os';
 import path from 'node:path';
 import { actAs, callRoute, currentSession } from '../e2e/helpers/route-call';
+import { markSubmitted } from './helpers/submitted';
 
 vi.mock('server-only', () => ({}));
 vi.mock('next-auth', async (importOriginal) => ({
@@ -96,7 +97,7 @@ beforeAll(async () => {
         decided_by: reconciled ? u('lead') : null, reason: reconciled ? `Lead looked at component ${idx}: rim pattern` : null,
       });
     }
-    await db('assignments').where({ run_id: run.runId }).update({ submitted_at: db.fn.now() });
+    await markSubmitted(db, { runId: run.runId });
   }
 });
 
@@ -215,6 +216,11 @@ describe('a study release', () => {
     const methods = (await read(`study-${studyId}_desc-methods_report.md`)).toString();
     expect(methods).toMatch(/symmetric FastICA/);
     expect(methods).toMatch(/1000 resamples, seed 1/);
+    // what was enforced and what is known about the raters (issue 13 item 2, issue 15 item 8)
+    expect(methods).not.toMatch(/trained raters/i);
+    expect(methods).toMatch(/none of them certified on a calibration set in Quorum/);
+    expect(methods).toMatch(/withheld the other raters' labels from each rater until that rater had submitted the run/);
+    expect(methods).toMatch(/no submission was reopened\. Agreement statistics use each rater's labels as first submitted\./);
     expect(methods).toMatch(/Research software: not for diagnosis/);
   });
 

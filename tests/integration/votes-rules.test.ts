@@ -145,7 +145,7 @@ describe('saving, merging and auditing', () => {
 });
 
 describe('submission and release', () => {
-  it('refuses submission while components are unlabelled, then accepts it; changes after submission are audited', async () => {
+  it('refuses submission while components are unlabelled, then accepts it; votes are frozen after submission', async () => {
     actAs(r1());
     const early = await callRoute(submitRoute.POST, { method: 'POST', url: `/api/runs/${runA.runId}/submit`, params: { id: String(runA.runId) } });
     expect(early.status).toBe(409);
@@ -154,12 +154,11 @@ describe('submission and release', () => {
     const done = await callRoute(submitRoute.POST, { method: 'POST', url: `/api/runs/${runA.runId}/submit`, params: { id: String(runA.runId) } });
     expect(done.status).toBe(200);
     expect(done.json.already).toBe(false);
+    // submitted votes are frozen (issue 13 item 2): only a lead's reopen lets the rater change them
     const change = await put(runA.runId, runA.componentIds[2], { label: 'uncertain', baseVersion: 1 });
-    expect(change.status).toBe(200);
-    const last = await db('audit_log').where({ target_type: 'component', target_id: String(runA.componentIds[2]) }).orderBy('id', 'desc').first('action', 'detail');
-    const detail = typeof last.detail === 'string' ? JSON.parse(last.detail) : last.detail;
-    expect(last.action).toBe('vote.change');
-    expect(detail.afterSubmit).toBe(true);
+    expect(change.status).toBe(409);
+    expect(change.json.error.message).toMatch(/votes on it are frozen\. If a label must change, ask the study lead to reopen the run for you/);
+    expect((await db('votes').where({ component_id: runA.componentIds[2], rater_id: r1() }).first('label')).label).toBe('signal');
     expect(await db('audit_log').where({ action: 'run.submit', target_id: String(runA.runId) }).count({ n: '*' }).then(([r]) => Number(r.n))).toBe(1);
   });
 
@@ -167,6 +166,7 @@ describe('submission and release', () => {
     const run = await db('runs').where({ id: runA.runId }).first('study_id');
     await db('releases').insert({ study_id: run.study_id, run_id: runA.runId, version: 1, released_by: users['lead@fernhollow.example'] });
     actAs(r1());
+    await db('assignments').where({ run_id: runA.runId, rater_id: r1() }).update({ submitted_at: null }); // as if reopened: release still freezes
     const res = await put(runA.runId, runA.componentIds[0], { label: 'signal', baseVersion: 1 });
     expect(res.status).toBe(409);
     expect(res.json.error.message).toMatch(/has been released; its votes are frozen/);

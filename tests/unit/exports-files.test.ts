@@ -69,6 +69,7 @@ describe('methods paragraph', () => {
       decomposition: { dimMethods: ['laplace'], contrasts: ['logcosh'], tolerance: 1e-4, maxIter: 200, dropVolumes: [4], varianceNorm: true, detrend: false, masks: ['automatic'] },
       ratersPerRun: 3, votesPerComponent: { min: 3, max: 3, mean: 3 }, consensusRule: 'majority', labelSet: ['signal', 'noise', 'uncertain'], uncertainInExport: 'keep',
       bootstrap: { resamples: 1000, seed: 1 },
+      ratings: { blinding: true, showVotesAfterSubmit: true, reopened: { assignments: 0, times: 0 }, raters: 3, certified: null },
       report: {
         summary: { items: 300, overall: { krippendorffAlpha: { value: 0.712, ci, n: 300 }, fleissKappa: { value: 0.7, ci, n: 300 }, pabak: { value: 0.8, ci, n: 300 }, gwetAC1: { value: 0.83, ci, n: 300 }, percentAgreement: { value: 0.9, ci: { lower: 0.88, upper: 0.92 }, n: 300 } } },
         raters: [{ id: 1, name: 'a', votes: 1 }, { id: 2, name: 'b', votes: 1 }, { id: 3, name: 'c', votes: 1 }],

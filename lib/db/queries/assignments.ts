@@ -7,7 +7,7 @@ import { AppError, notFound } from '@/lib/errors';
 import { afterAssignmentsCreated, ensureDailyOverdue } from '@/lib/notifications/enqueue';
 import { recordAudit } from './audit';
 import { findStudyAccess } from './study-access';
-import { leadsStudy } from '@/lib/auth/permissions';
+import { leadsStudy, VOTING_ROLES } from '@/lib/auth/permissions';
 import type { UserRow } from './users';
 
 type Caller = Pick<UserRow, 'id' | 'role'>;
@@ -18,6 +18,8 @@ export type RunAssignment = {
   dueAt: Date | null;
   labelled: number;
   submittedAt: Date | null;
+  /** Times a lead reopened this rater's submission. */
+  reopenCount: number;
   notifiedAt: Date | null;
   overdue: boolean;
 };
@@ -88,9 +90,10 @@ async function requireStudyRater(trx: Knex.Transaction, { studyId, raterId, fiel
   const row = await trx('study_members as m')
     .join('users as u', 'u.id', 'm.user_id')
     .where({ 'm.study_id': studyId, 'm.user_id': raterId, 'm.study_role': 'rater' })
-    .first('u.id', 'u.name', 'u.active');
+    .first('u.id', 'u.name', 'u.active', 'u.role');
   if (!row) throw new AppError('validation', 'That person is not a rater of this study. Add them as a rater under Protocol and members first.', { [field]: ['not a rater of this study'] });
   if (!row.active) throw new AppError('validation', `${row.name}'s account is deactivated.`, { [field]: ['deactivated account'] });
+  if (!VOTING_ROLES.includes(row.role)) throw new AppError('validation', `${row.name}'s account (${row.role}) may not vote, so it cannot rate runs. Ask the facility admin to change the account's role.`, { [field]: ['account may not vote'] });
   return { id: Number(row.id), name: String(row.name) };
 }
 
@@ -113,7 +116,7 @@ export async function listStudyAssignments({ user, studyId }: { user: Caller; st
     .join('users as u', 'u.id', 'a.rater_id')
     .where('r.study_id', studyId)
     .select(
-      'a.run_id as runId', 'a.rater_id as raterId', 'u.name as raterName', 'a.due_at as dueAt', 'a.submitted_at as submittedAt', 'a.notified_at as notifiedAt',
+      'a.run_id as runId', 'a.rater_id as raterId', 'u.name as raterName', 'a.due_at as dueAt', 'a.submitted_at as submittedAt', 'a.notified_at as notifiedAt', 'a.reopen_count as reopenCount',
       db.raw('(a.due_at IS NOT NULL AND a.due_at < NOW(3) AND a.submitted_at IS NULL) as overdue'),
       db.raw(`(SELECT COUNT(*) FROM votes v JOIN components c ON c.id = v.component_id JOIN decompositions d ON d.id = c.decomposition_id AND d.is_current = 1
                WHERE d.run_id = a.run_id AND v.rater_id = a.rater_id) as labelled`),
@@ -122,7 +125,7 @@ export async function listStudyAssignments({ user, studyId }: { user: Caller; st
   const byRun = new Map<number, RunAssignment[]>();
   for (const a of rows) {
     const list = byRun.get(Number(a.runId)) ?? [];
-    list.push({ raterId: Number(a.raterId), raterName: a.raterName, dueAt: a.dueAt ?? null, labelled: Number(a.labelled), submittedAt: a.submittedAt ?? null, notifiedAt: a.notifiedAt ?? null, overdue: Boolean(Number(a.overdue)) });
+    list.push({ raterId: Number(a.raterId), raterName: a.raterName, dueAt: a.dueAt ?? null, labelled: Number(a.labelled), submittedAt: a.submittedAt ?? null, reopenCount: Number(a.reopenCount ?? 0), notifiedAt: a.notifiedAt ?? null, overdue: Boolean(Number(a.overdue)) });
     byRun.set(Number(a.runId), list);
   }
   const certRows = await db('rater_certifications').where({ study_id: studyId }).select('user_id', 'passed');
@@ -130,6 +133,7 @@ export async function listStudyAssignments({ user, studyId }: { user: Caller; st
   const raters = await db('study_members as m')
     .join('users as u', 'u.id', 'm.user_id')
     .where({ 'm.study_id': studyId, 'm.study_role': 'rater', 'u.active': true })
+    .whereIn('u.role', VOTING_ROLES)
     .select('u.id', 'u.name', db.raw('(SELECT COUNT(*) FROM assignments a WHERE a.rater_id = u.id AND a.submitted_at IS NULL) as open'))
     .orderBy('u.name');
   return {
@@ -265,4 +269,33 @@ export async function setStudyDue({ user, studyId, runIds, dueAt, ip }: { user: 
     if (dueAt && changed) await ensureDailyOverdue(trx);
     return { runs: own.length, skipped: runIds.length - own.length, changed };
   });
+}
+
+/** A transaction for a use case that reads and writes assignments together (lib/assignments/*). */
+export type Trx = Knex.Transaction;
+export function inAssignmentsTransaction<T>(fn: (trx: Trx) => Promise<T>): Promise<T> {
+  return db.transaction(fn);
+}
+
+/** A run's study and name (null when there is no such run). */
+export async function findRunStudy({ runId }: { runId: number }): Promise<{ runId: number; studyId: number; name: string } | null> {
+  const r = await db('runs').where({ id: runId }).first('id', 'study_id as studyId', 'sub', 'ses', 'task', 'acq', 'run_label as runLabel');
+  return r ? { runId: Number(r.id), studyId: Number(r.studyId), name: bidsName({ sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, runLabel: r.runLabel }) } : null;
+}
+
+/** One rater's assignment on a run with the rater's name, locked FOR UPDATE inside `trx` (null when none). */
+export async function lockAssignment(trx: Trx, { runId, raterId }: { runId: number; raterId: number }) {
+  const a = await trx('assignments as a')
+    .join('users as u', 'u.id', 'a.rater_id')
+    .where({ 'a.run_id': runId, 'a.rater_id': raterId })
+    .forUpdate()
+    .first('a.id', 'u.name as raterName', 'a.submitted_at as submittedAt', 'a.first_submitted_at as firstSubmittedAt', 'a.reopen_count as reopenCount');
+  return a ? { id: Number(a.id), raterName: String(a.raterName), submittedAt: (a.submittedAt as Date | null) ?? null, firstSubmittedAt: (a.firstSubmittedAt as Date | null) ?? null, reopenCount: Number(a.reopenCount) } : null;
+}
+
+/** Reopens a submitted assignment: the rater may change their votes again until they resubmit. */
+export async function markAssignmentReopened(trx: Trx, { assignmentId, by, at }: { assignmentId: number; by: number; at: Date }): Promise<void> {
+  await trx('assignments')
+    .where({ id: assignmentId })
+    .update({ submitted_at: null, reopened_at: at, reopened_by: by, reopen_count: trx.raw('reopen_count + 1') });
 }

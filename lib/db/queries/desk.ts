@@ -38,6 +38,8 @@ export async function findAssignedRun(
     .first(
       'a.id as assignmentId',
       'a.submitted_at as submittedAt',
+      'a.first_submitted_at as firstSubmittedAt',
+      'a.reopen_count as reopenCount',
       'a.started_at as startedAt',
       'a.last_component_idx as lastComponentIdx',
       'r.id as runId',
@@ -55,6 +57,7 @@ export async function findAssignedRun(
       's.name as studyName',
       's.label_set as labelSet',
       's.noise_kinds as noiseKinds',
+      's.blinding',
       's.show_votes_after_submit as showVotesAfterSubmit',
       's.reproducibility_threshold as reproducibilityThreshold',
       's.low_reproducibility as lowReproducibility',
@@ -72,7 +75,9 @@ export async function findAssignedRun(
   const dropped = droppedVolumesOf(row);
   return {
     ...row,
+    blinding: Boolean(row.blinding),
     showVotesAfterSubmit: Boolean(row.showVotesAfterSubmit),
+    reopenCount: Number(row.reopenCount ?? 0),
     labelSet: parseJson<string[]>(row.labelSet, []) ?? [],
     noiseKinds: parseJson<string[]>(row.noiseKinds, []) ?? [],
     droppedVolumes: dropped,
@@ -190,6 +195,9 @@ export async function saveDeskPosition({ user, runId, componentIdx }: { user: Ca
 /**
  * POST /api/runs/:id/submit — marks the rater's work on the run as done. Every component of the
  * current decomposition must carry the rater's vote. Submitting twice answers the first time.
+ * From now on the rater's votes are frozen (saveVote refuses) until a lead reopens the run for
+ * them; the votes as first submitted are copied to submitted_votes (a resubmission after a reopen
+ * adds none over them), which agreement statistics read.
  */
 export async function submitRun({ user, runId, ip }: { user: Caller; runId: number; ip?: string | null }) {
   return db.transaction(async (trx) => {
@@ -216,10 +224,19 @@ export async function submitRun({ user, runId, ip }: { user: Caller; runId: numb
       );
     }
     const now = new Date();
-    await trx('assignments').where({ id: run.assignmentId }).update({ submitted_at: now });
+    await trx('assignments').where({ id: run.assignmentId }).update({ submitted_at: now, first_submitted_at: trx.raw('COALESCE(first_submitted_at, ?)', [now]) });
+    // the votes as first submitted: agreement reads these; a later (reopened) change never replaces them
+    await trx.raw(
+      `INSERT INTO submitted_votes (component_id, run_id, rater_id, label, noise_kind, confidence, note, submitted_at)
+       SELECT v.component_id, v.run_id, v.rater_id, v.label, v.noise_kind, v.confidence, v.note, ?
+       FROM votes v JOIN components c ON c.id = v.component_id
+       WHERE v.run_id = ? AND v.rater_id = ? AND c.decomposition_id = ?
+       ON DUPLICATE KEY UPDATE submitted_votes.id = submitted_votes.id`,
+      [now, runId, user.id, run.decompositionId],
+    );
     await queueVotesCompleteCheck(trx); // the lead hears promptly when the last rater submits
     await recordAudit(
-      { actorId: user.id, action: 'run.submit', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { components: run.k }, ip },
+      { actorId: user.id, action: 'run.submit', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { components: run.k, ...(run.firstSubmittedAt ? { resubmit: true, reopenCount: run.reopenCount } : {}) }, ip },
       trx,
     );
     return { submittedAt: now.toISOString(), already: false };

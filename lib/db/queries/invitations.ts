@@ -54,8 +54,21 @@ function links(conn: Knex | Knex.Transaction = db) {
     .select(linkColumns);
 }
 
+/** The unused, unexpired invitation to an address, if any (the newest), with what it offers and who sent it. */
+export async function findPendingInvitation({ email, now = new Date() }: { email: string; now?: Date }): Promise<LinkRecord | null> {
+  const row = await links()
+    .where({ 'i.kind': 'invite', 'i.email': email })
+    .whereNull('i.used_at')
+    .whereNull('i.revoked_at')
+    .where('i.expires_at', '>', now)
+    .orderBy('i.id', 'desc')
+    .first();
+  return (row as LinkRecord | undefined) ?? null;
+}
+
 /**
- * Writes a new invitation and withdraws earlier unused ones to the same address.
+ * Writes a new invitation and withdraws earlier unused ones to the same address, each withdrawal
+ * audited (invitation.revoked, reason "replaced", with the new invitation's id).
  * Returns the token for the e-mail (it is not stored).
  */
 export async function createInvitation({
@@ -78,7 +91,8 @@ export async function createInvitation({
   const { token, hash } = newToken();
   const expiresAt = new Date(now.getTime() + ttlMs);
   const id = await db.transaction(async (trx) => {
-    await trx('invitations').where({ email, kind: 'invite' }).whereNull('used_at').whereNull('revoked_at').update({ revoked_at: now });
+    const earlier = await trx('invitations').where({ email, kind: 'invite' }).whereNull('used_at').whereNull('revoked_at').forUpdate().select('id', 'role', 'study_id', 'study_role');
+    if (earlier.length) await trx('invitations').whereIn('id', earlier.map((e) => e.id)).update({ revoked_at: now });
     const [inserted] = await trx('invitations').insert({
       kind: 'invite',
       token_hash: hash,
@@ -94,6 +108,19 @@ export async function createInvitation({
       { actorId: invitedBy, action: 'invitation.sent', targetType: 'invitation', targetId: inserted, studyId, detail: { email, role, studyRole } },
       trx,
     );
+    for (const e of earlier) {
+      await recordAudit(
+        {
+          actorId: invitedBy,
+          action: 'invitation.revoked',
+          targetType: 'invitation',
+          targetId: e.id,
+          studyId: e.study_id ?? null,
+          detail: { email, reason: 'replaced', replacedBy: Number(inserted), role: e.role, studyRole: e.study_role ?? null },
+        },
+        trx,
+      );
+    }
     return Number(inserted);
   });
   return { id, token, expiresAt };
@@ -238,3 +265,9 @@ export async function revokeInvitation({ id, actorId, now = new Date() }: { id: 
   });
 }
 
+
+/** A study's name (null when there is no such study). */
+export async function findStudyName({ studyId }: { studyId: number }): Promise<string | null> {
+  const row = await db('studies').where({ id: studyId }).first('name');
+  return row ? String(row.name) : null;
+}

@@ -3,7 +3,7 @@ import type { Knex } from 'knex';
 import { db } from '@/lib/db/knex';
 import { recordAudit } from './audit';
 import { AppError, notFound } from '@/lib/errors';
-import type { Role } from '@/lib/auth/roles';
+import { mayHoldStudyRole, type Role } from '@/lib/auth/roles';
 import type { StudyRole } from '@/lib/studies/labels';
 import type { UserRow } from './users';
 
@@ -26,13 +26,6 @@ export async function listMembers({ studyId }: { studyId: number }): Promise<Stu
   return rows.map((r) => ({ ...r, userId: Number(r.userId) }));
 }
 
-/** Which account roles may hold a study role: raters vote (raters and admins), leads manage (leads and admins). */
-const ALLOWED: Record<StudyRole, Role[]> = {
-  lead: ['lead', 'admin'],
-  rater: ['rater', 'admin'],
-  observer: ['admin', 'lead', 'rater', 'observer'],
-};
-
 /**
  * Adds an existing, active account to a study by e-mail, or changes its study role. The account's
  * facility role must allow the study role. Audited.
@@ -44,7 +37,7 @@ export async function addMember({ actor, studyId, email, studyRole }: { actor: P
       email: ['No active account has this e-mail.'],
     });
   }
-  if (!ALLOWED[studyRole].includes(account.role)) {
+  if (!mayHoldStudyRole(account.role, studyRole)) {
     throw new AppError(
       'validation',
       `${account.name} has the facility role "${account.role}", which cannot be a study ${studyRole}. Choose another study role or ask the facility admin to change the account's role.`,
@@ -84,4 +77,29 @@ export async function removeMember({ actor, studyId, userId }: { actor: Pick<Use
     await trx('study_members').where({ study_id: studyId, user_id: userId }).delete();
     await recordAudit({ actorId: actor.id, action: 'study.member_remove', targetType: 'user', targetId: userId, studyId, detail: { studyRole: existing.study_role } }, trx);
   });
+}
+
+export type AccountCandidate = { userId: number; name: string; email: string; role: Role; studyRole: StudyRole | null };
+
+/**
+ * Active accounts whose name or e-mail contains `q` (case-insensitive; % and _ match literally),
+ * by name, at most `limit` (one more is read to tell whether there are more), with the study role
+ * each already holds in the study. Only what the member picker shows: id, name, e-mail, facility
+ * role — never deactivated accounts, sign-in times or anything else of the account.
+ */
+export async function searchAccounts({ studyId, q, limit }: { studyId: number; q: string; limit: number }): Promise<{ accounts: AccountCandidate[]; more: boolean }> {
+  const like = `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+  const rows = await db('users as u')
+    .leftJoin('study_members as m', function () {
+      this.on('m.user_id', 'u.id').andOn('m.study_id', db.raw('?', [studyId]));
+    })
+    .where('u.active', true)
+    .andWhere((w) => w.where('u.name', 'like', like).orWhere('u.email', 'like', like))
+    .orderBy(['u.name', 'u.id'])
+    .limit(limit + 1)
+    .select('u.id as userId', 'u.name', 'u.email', 'u.role', 'm.study_role as studyRole');
+  return {
+    accounts: rows.slice(0, limit).map((r) => ({ userId: Number(r.userId), name: r.name, email: r.email, role: r.role, studyRole: r.studyRole ?? null })),
+    more: rows.length > limit,
+  };
 }

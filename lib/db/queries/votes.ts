@@ -37,9 +37,21 @@ function toMyVote(r: VoteRow): MyVote {
 }
 
 /**
+ * Whether a rater may see the other raters' votes now, and why not: under blinding only once they
+ * have submitted the run themselves ('not_submitted' before); never when the study hides them
+ * ('study_hides'). Null when they are shown.
+ */
+export function othersHiddenReason(run: { blinding: boolean; showVotesAfterSubmit: boolean; submittedAt: unknown }): VotesPayload['status']['othersHidden'] {
+  if (run.blinding && !run.submittedAt) return 'not_submitted';
+  if (!run.showVotesAfterSubmit) return 'study_hides';
+  return null;
+}
+
+/**
  * GET /api/runs/:id/votes — the caller's own votes on the run, the assignment's status, and the
- * other raters' votes ONLY when the caller has submitted the run and the study shows them.
- * Before submission the query for other raters' votes is never run.
+ * other raters' votes only when othersHiddenReason allows it — and then only the votes of raters
+ * who have submitted the run themselves (work in progress, or a run a lead reopened for its rater,
+ * is never shown). While they are hidden the query for other raters' votes is never run.
  */
 export async function listVotesForRater({ user, runId }: { user: Caller; runId: number }): Promise<VotesPayload> {
   const run = await findAssignedRun({ user, runId });
@@ -49,20 +61,21 @@ export async function listVotesForRater({ user, runId }: { user: Caller; runId: 
     .orderBy('c.idx')
     .select(voteColumns);
   const released = await isRunReleased({ runId });
+  const othersHidden = othersHiddenReason(run);
   let others: OtherVote[] | null = null;
-  let othersHidden: VotesPayload['status']['othersHidden'] = 'not_submitted';
-  if (run.submittedAt) {
-    othersHidden = run.showVotesAfterSubmit ? null : 'study_hides';
-    if (run.showVotesAfterSubmit) {
-      const rows = await db('votes as v')
-        .join('components as c', 'c.id', 'v.component_id')
-        .join('users as u', 'u.id', 'v.rater_id')
-        .where({ 'v.run_id': runId, 'c.decomposition_id': run.decompositionId })
-        .whereNot('v.rater_id', user.id)
-        .orderBy(['c.idx', 'u.name'])
-        .select('v.component_id as componentId', 'u.name as raterName', 'v.label', 'v.noise_kind as noiseKind', 'v.confidence', 'v.note');
-      others = rows.map((r) => ({ ...r, confidence: r.confidence == null ? null : Number(r.confidence) }));
-    }
+  if (othersHidden === null) {
+    const rows = await db('votes as v')
+      .join('components as c', 'c.id', 'v.component_id')
+      .join('users as u', 'u.id', 'v.rater_id')
+      .join('assignments as a', function () {
+        this.on('a.run_id', 'v.run_id').andOn('a.rater_id', 'v.rater_id');
+      })
+      .where({ 'v.run_id': runId, 'c.decomposition_id': run.decompositionId })
+      .whereNotNull('a.submitted_at')
+      .whereNot('v.rater_id', user.id)
+      .orderBy(['c.idx', 'u.name'])
+      .select('v.component_id as componentId', 'u.name as raterName', 'v.label', 'v.noise_kind as noiseKind', 'v.confidence', 'v.note');
+    others = rows.map((r) => ({ ...r, confidence: r.confidence == null ? null : Number(r.confidence) }));
   }
   return {
     status: { submittedAt: run.submittedAt ? new Date(run.submittedAt).toISOString() : null, released, othersHidden },
@@ -81,7 +94,9 @@ export async function listVotesForRater({ user, runId }: { user: Caller; runId: 
  *   the stored vote — last write per field wins — and the merge is audited.
  * - A noise kind is kept only while the label is "noise".
  * - Repeating a change that is already stored changes nothing (safe to retry).
- * - Changes after submission are allowed until release, and audited as such.
+ * - After the rater submitted the run their votes are frozen (409) until a lead reopens the run
+ *   for them; a change after a reopen is audited as such, and the vote as first submitted stays
+ *   in submitted_votes.
  */
 export async function saveVote({
   user,
@@ -105,6 +120,10 @@ export async function saveVote({
     }
     if (await isRunReleased({ runId }, trx)) {
       throw new AppError('conflict', `Run ${runId} has been released; its votes are frozen. Ask the study lead if a label must change.`);
+    }
+    if (run.submittedAt) {
+      const day = new Date(run.submittedAt).toISOString().slice(0, 16).replace('T', ' ');
+      throw new AppError('conflict', `You submitted run ${runId} on ${day} UTC, so your votes on it are frozen. If a label must change, ask the study lead to reopen the run for you.`);
     }
     const fields: Record<string, string[]> = {};
     if (change.label !== undefined && !run.labelSet.includes(change.label)) {
@@ -174,7 +193,7 @@ export async function saveVote({
           runId,
           componentIdx: component.idx,
           changes,
-          afterSubmit: Boolean(run.submittedAt),
+          afterReopen: Boolean(run.firstSubmittedAt),
           ...(merged ? { merged: true, baseVersion: change.baseVersion, storedVersion: Number(existing!.version) } : {}),
         },
         ip,

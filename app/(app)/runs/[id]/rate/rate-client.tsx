@@ -105,6 +105,8 @@ export function RateClient({
   const labelledCount = ids.filter((id) => votes.get(id)?.label).length;
   const released = Boolean(status?.released);
   const submitted = Boolean(status?.submittedAt);
+  // a submitted rater's votes are frozen until a lead reopens the run for them (blinding)
+  const frozen = released || submitted;
 
   // remember where the rater is (reopens here, also after a reload that outran the server)
   const { remember, pendingIdx } = useDeskPosition(runId, userId, components.length);
@@ -140,11 +142,11 @@ export function RateClient({
 
   const change = useCallback(
     (fields: Partial<VoteFields>, advance = false) => {
-      if (released) return;
+      if (frozen) return;
       setVote(component.id, fields);
       if (advance && prefs.autoAdvance && index < ids.length - 1) goTo(index + 1);
     },
-    [released, setVote, component.id, prefs.autoAdvance, index, ids.length, goTo],
+    [frozen, setVote, component.id, prefs.autoAdvance, index, ids.length, goTo],
   );
 
   const submit = useCallback(async () => {
@@ -284,7 +286,7 @@ export function RateClient({
         </button>
         {submitted ? (
           <span className="text-xs text-ink-muted" data-testid="submitted-note">
-            Submitted {status?.submittedAt?.replace('T', ' ').slice(0, 16)} UTC{released ? ' · released, votes frozen' : ' · changes are still possible until release'}
+            Submitted {status?.submittedAt?.replace('T', ' ').slice(0, 16)} UTC · votes frozen{released ? ' (released)' : '; if a label must change, ask the study lead to reopen the run for you'}
           </span>
         ) : (
           <button
@@ -404,7 +406,7 @@ export function RateClient({
             vote={vote}
             labelSet={run.labelSet}
             noiseKinds={run.noiseKinds}
-            disabled={released}
+            disabled={frozen}
             onChange={(f) => change(f)}
             onNoteDone={() => noteRef.current?.blur()}
           />

@@ -5,7 +5,7 @@ import { notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
 import { db } from '@/lib/db/knex';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
-import { loadStudyRatings } from '@/lib/db/queries/agreement';
+import { loadRatingFacts, loadStudyRatings } from '@/lib/db/queries/agreement';
 import { findRelease, loadExportRuns, releaseDecisions } from '@/lib/db/queries/releases';
 import { buildAgreementReport } from '@/lib/reports/agreement-report';
 import { methodsParagraph } from '@/lib/reports/methods-paragraph';
@@ -49,7 +49,7 @@ export default async function ReportPage({ params, searchParams }: { params: Pro
     methods = md.split('\n').filter((l) => l && !l.startsWith('#') && !l.startsWith('- ')).join(' ');
   } else {
     const runs = await loadExportRuns({ studyId }, db, { timecourses: false });
-    methods = runs.length ? methodsParagraph(methodsInputOf(runs, study, report)) : 'No run has a finished decomposition yet.';
+    methods = runs.length ? methodsParagraph(methodsInputOf(runs, study, report, await loadRatingFacts({ studyId }))) : 'No run has a finished decomposition yet.';
   }
   const names = new Map(report.raters.map((r) => [String(r.id), r.name]));
   const nameOf = (id: string) => names.get(id) ?? `rater ${id}`;
