@@ -8,7 +8,8 @@ import { accountExists } from '@/lib/db/queries/people';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import type { UserRow } from '@/lib/db/queries/users';
 import { AppError } from '@/lib/errors';
-import { deliverMail } from '@/lib/mail/deliver';
+import { inTransaction } from '@/lib/db/transaction';
+import { queueMail } from '@/lib/jobs/queue-mail';
 import { existingAccountMail } from '@/lib/mail/templates/existing-account';
 import { invitationMail } from '@/lib/mail/templates/invitation';
 import type { StudyRole } from '@/lib/studies/labels';
@@ -48,9 +49,10 @@ function pendingRefusal(email: string, pending: LinkRecord, next: string): AppEr
  * - an invitation to the address is pending → refused (409) until the inviter confirms
  *   (`replace: true`); then the old one is withdrawn (audited) and the new one sent;
  * - otherwise a new invitation is written and mailed.
- * The mail goes out through `deliver`, which the route handler runs after its response.
+ * The mail is queued for the worker's send-mail job (lib/jobs/queue-mail.ts: retried, and the outbox
+ * keeps no live link).
  */
-export async function sendInvitation({ user, input, baseUrl, facility, ip = null }: { user: Pick<UserRow, 'id' | 'role' | 'name'>; input: InvitationRequest; baseUrl: string; facility: string; ip?: string | null }): Promise<InvitationOutcome & { deliver: () => Promise<void> }> {
+export async function sendInvitation({ user, input, baseUrl, facility, ip = null }: { user: Pick<UserRow, 'id' | 'role' | 'name'>; input: InvitationRequest; baseUrl: string; facility: string; ip?: string | null }): Promise<InvitationOutcome> {
   if (user.role !== 'admin') {
     if (input.role !== 'rater' && input.role !== 'observer') throw new AppError('forbidden', 'Study leads may invite raters and observers; ask the facility admin for other roles.');
     if (input.studyRole === 'lead') throw new AppError('forbidden', 'Study leads may add raters and observers to their studies.');
@@ -73,12 +75,12 @@ export async function sendInvitation({ user, input, baseUrl, facility, ip = null
     await countAttempts([key]);
     await recordAudit({ actorId: user.id, action: 'invitation.existing_account', targetType: 'email', targetId: null, studyId: input.studyId ?? null, detail: { email: input.email }, ip });
     const content = existingAccountMail({ facility, inviterName: user.name, signInUrl: `${baseUrl}/sign-in`, forgotUrl: `${baseUrl}/reset-password` });
+    await inTransaction((trx) => queueMail(trx, { to: input.email, template: 'existing-account', content, secrets: [] }));
     return {
       outcome: 'existing_account',
       message:
         `${input.email} already has an account, so no invitation was sent; they were e-mailed a reminder to sign in. ` +
         (studyName ? `To give them a place in ${studyName}, add them under the study's members.` : 'To give them a place in a study, add them under that study\'s members.'),
-      deliver: () => deliverMail({ to: input.email, template: 'existing-account', content }).then(() => undefined),
     };
   }
   const offer = offerText(input.role, studyName, studyRole);
@@ -87,12 +89,13 @@ export async function sendInvitation({ user, input, baseUrl, facility, ip = null
 
   await countAttempts([key]);
   const { token, expiresAt } = await createInvitation({ email: input.email, role: input.role, studyId: input.studyId ?? null, studyRole, invitedBy: user.id });
-  const content = invitationMail({ facility, inviterName: user.name, role: input.role, studyName, studyRole: studyRole ?? undefined, url: `${baseUrl}/invitations/${token}`, expiresAt });
+  const url = `${baseUrl}/invitations/${token}`;
+  const content = invitationMail({ facility, inviterName: user.name, role: input.role, studyName, studyRole: studyRole ?? undefined, url, expiresAt });
+  await inTransaction((trx) => queueMail(trx, { to: input.email, template: 'invite', content, secrets: [url, token] }));
   return {
     outcome: pending ? 'replaced' : 'sent',
     message: pending
       ? `The pending invitation to ${input.email} (${offerText(pending.role, pending.studyName, pending.studyRole)}) was withdrawn; a new invitation (${offer}) is on its way.`
       : `An invitation (${offer}) is on its way to ${input.email}.`,
-    deliver: () => deliverMail({ to: input.email, template: 'invite', content }).then(() => undefined),
   };
 }

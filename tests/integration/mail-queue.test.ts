@@ -145,3 +145,20 @@ describe('the send-mail job', () => {
     expect(`${final.message} ${final.error}`).toMatch(/NEXTAUTH_SECRET/);
   });
 });
+
+describe('an invitation', () => {
+  it('is queued with its link sealed and removed from the readable copy', async () => {
+    const { sendInvitation } = await import('@/lib/invitations/send-invitation');
+    const admin = await createUser(db, { role: 'admin' });
+    const email = `invitee-${uniqueSuffix()}@fernhollow.example`;
+    const r = await sendInvitation({ user: { id: admin, role: 'admin', name: 'Admin' }, input: { email, role: 'rater' }, baseUrl: 'http://localhost:3100', facility: 'Fernhollow Imaging Core' });
+    expect(r.outcome).toBe('sent');
+    const row = await db('mail_outbox').where({ to_email: email }).first('id', 'status', 'text_body', 'html_body', 'sealed');
+    expect(row.status).toBe('queued');
+    expect(`${row.text_body}${row.html_body}`).not.toMatch(/\/invitations\//);
+    const job = await db('jobs').where({ kind: SEND_MAIL }).whereRaw("JSON_VALUE(payload, '$.outboxId') = ?", [row.id]).first('id');
+    expect((await runUntilDone(Number(job.id))).status).toBe('succeeded');
+    const mail = await waitForMail({ to: email, dir, subject: /invit/i });
+    expect(linkIn(mail, '/invitations/')).toMatch(/^http:\/\/localhost:3100\/invitations\/\S+$/);
+  });
+});

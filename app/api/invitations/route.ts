@@ -1,4 +1,3 @@
-import { after } from 'next/server';
 import { handler } from '@/lib/api/handler';
 import { inviteSchema } from '@/lib/invitations/schema';
 import { listInvitations } from '@/lib/db/queries/invitations';
@@ -14,15 +13,8 @@ export const GET = handler({ permission: 'invitations.create' }, async ({ user }
 
 // POST /api/invitations – invite a person by e-mail (lib/invitations/send-invitation.ts). The answer
 // says what happened: sent, a pending invitation replaced (only with `replace: true`, 409 before),
-// or no invitation because the address already has an account. The e-mail goes out after the response.
+// or no invitation because the address already has an account. The worker sends the e-mail (send-mail job).
 export const POST = handler({ permission: 'invitations.create', body: inviteSchema, what: 'The invitation' }, async ({ req, user, body }) => {
-  const { deliver, ...outcome } = await sendInvitation({ user, input: body, baseUrl: publicBaseUrl(req.url), facility: facilityName(), ip: auditAddress(req) });
-  after(async () => {
-    try {
-      await deliver();
-    } catch (err) {
-      console.error('[invitations] could not send an invitation:', err);
-    }
-  });
+  const outcome = await sendInvitation({ user, input: body, baseUrl: publicBaseUrl(req.url), facility: facilityName(), ip: auditAddress(req) });
   return { ok: true, ...outcome };
 });
