@@ -114,3 +114,7 @@ export function formatBytes(n: number): string {
   if (n >= 1024) return `${(n / 1024).toFixed(1)} KB`;
   return `${n} bytes`;
 }
+
+/** Body of PATCH /api/runs/:id: the corrected BIDS entities (empty = none). */
+export const runEntitiesBodySchema = runEntitiesSchema;
+export type RunEntities = z.output<typeof runEntitiesSchema>;

@@ -439,7 +439,7 @@ describe('pipeline API with personal access tokens', () => {
   it('names each run\'s own latest release (a later single-run release supersedes the study release for that run) and lists and serves denoised files', async () => {
     const body = await (await v1(token)).json();
     const newestWith = async (runId: number) =>
-      Number((await db('release_decisions').where({ run_id: runId }).max('release_id as id').first()).id);
+      Number((await db('release_decisions').where({ run_id: runId }).max('release_id as id').first() as { id: number }).id);
     for (const run of runs) {
       const entry = body.runs.find((r: any) => r.runId === run.runId);
       const expected = await db('releases').where({ id: await newestWith(run.runId) }).first('id', 'version', 'run_id');

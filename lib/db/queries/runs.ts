@@ -242,3 +242,19 @@ export async function studyProgress({ user, studyId, seesAllRuns }: Scoped & { s
     openDisagreements,
   };
 }
+
+/** Another run of the study with exactly these BIDS entities (null/empty alike), or null. */
+export async function findRunWithEntities(
+  { studyId, entities, exceptRunId }: { studyId: number; entities: { sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null }; exceptRunId?: number },
+  trx: Knex | Knex.Transaction = db,
+): Promise<RunRecord | null> {
+  const same = (q: Knex.QueryBuilder, column: string, value: string | null) =>
+    value ? q.where(column, value) : q.where((w) => w.whereNull(column).orWhere(column, ''));
+  let q = trx('runs as r').where({ 'r.study_id': studyId, 'r.sub': entities.sub });
+  q = same(q, 'r.ses', entities.ses);
+  q = same(q, 'r.task', entities.task);
+  q = same(q, 'r.acq', entities.acq);
+  q = same(q, 'r.run_label', entities.runLabel);
+  if (exceptRunId) q = q.whereNot('r.id', exceptRunId);
+  return (await q.orderBy('r.id').first(recordColumns)) ?? null;
+}
