@@ -27,4 +27,5 @@ async function call<T>(method: string, url: string, body?: unknown): Promise<Api
 export const getJson = <T>(url: string) => call<T>('GET', url);
 export const postJson = <T>(url: string, body: unknown) => call<T>('POST', url, body);
 export const putJson = <T>(url: string, body: unknown) => call<T>('PUT', url, body);
+export const patchJson = <T>(url: string, body: unknown) => call<T>('PATCH', url, body);
 export const deleteJson = <T>(url: string) => call<T>('DELETE', url);
