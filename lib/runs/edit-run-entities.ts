@@ -5,12 +5,10 @@ import 'server-only';
  * old names, and pipelines fetch them by those), and refused when another run of the study already
  * has the new entities. The change is audited with the old and new names.
  */
-import { db } from '@/lib/db/knex';
 import { bidsName } from '@/lib/bids';
 import { AppError } from '@/lib/errors';
 import { recordAudit } from '@/lib/db/queries/audit';
-import { isRunReleased } from '@/lib/db/queries/desk';
-import { findRunWithEntities, listRunsForStudy, type RunListItem } from '@/lib/db/queries/runs';
+import { changeRunEntities, listRunsForStudy, type RunListItem } from '@/lib/db/queries/runs';
 import type { UserRow } from '@/lib/db/queries/users';
 import { runForChange } from './upload';
 import type { RunEntities } from './schema';
@@ -20,19 +18,15 @@ export async function editRunEntities({ user, runId, entities, ip = null }: { us
   const next = { sub: entities.sub, ses: entities.ses || null, task: entities.task || null, acq: entities.acq || null, runLabel: entities.run || null };
   const before = bidsName(run);
   const after = bidsName(next);
-  await db.transaction(async (trx) => {
-    await trx('runs').where({ id: runId }).forUpdate().first('id');
-    if (await isRunReleased({ runId }, trx)) {
-      throw new AppError('conflict', `${before} is already in a release, so its labels can no longer change: the released files and pipelines use this name. Upload the run again under the right labels if it must be released under them.`);
-    }
-    const other = await findRunWithEntities({ studyId: run.studyId, entities: next, exceptRunId: runId }, trx);
-    if (other) {
-      throw new AppError('conflict', `Run #${other.id} (uploaded as ${other.originalName}) already has the labels ${after}. Choose labels no other run of the study has, e.g. another run number.`, { run: ['These labels are taken.'] });
-    }
-    if (before === after) return;
-    await trx('runs').where({ id: runId }).update({ sub: next.sub, ses: next.ses, task: next.task, acq: next.acq, run_label: next.runLabel });
-    await recordAudit({ actorId: user.id, action: 'run.relabel', targetType: 'run', targetId: runId, studyId: run.studyId, ip, detail: { from: before, to: after } }, trx);
-  });
+  const change = await changeRunEntities({ runId, studyId: run.studyId, entities: next }, (trx) =>
+    recordAudit({ actorId: user.id, action: 'run.relabel', targetType: 'run', targetId: runId, studyId: run.studyId, ip, detail: { from: before, to: after } }, trx),
+  );
+  if (change.outcome === 'released') {
+    throw new AppError('conflict', `${before} is already in a release, so its labels can no longer change: the released files and pipelines use this name. Upload the run again under the right labels if it must be released under them.`);
+  }
+  if (change.outcome === 'taken') {
+    throw new AppError('conflict', `Run #${change.other.id} (uploaded as ${change.other.originalName}) already has the labels ${after}. Choose labels no other run of the study has, e.g. another run number.`, { run: ['These labels are taken.'] });
+  }
   const [row] = await listRunsForStudy({ user, studyId: run.studyId, runId });
   return row;
 }
