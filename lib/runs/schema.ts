@@ -115,6 +115,5 @@ export function formatBytes(n: number): string {
   return `${n} bytes`;
 }
 
-/** Body of PATCH /api/runs/:id: the corrected BIDS entities (empty = none). */
-export const runEntitiesBodySchema = runEntitiesSchema;
+/** The BIDS entities of a run as parsed (also the body of PATCH /api/runs/:id; empty = none). */
 export type RunEntities = z.output<typeof runEntitiesSchema>;

@@ -1,5 +1,5 @@
 import { handler } from '@/lib/api/handler';
-import { deleteRunQuerySchema, runEntitiesBodySchema, runIdParams } from '@/lib/runs/schema';
+import { deleteRunQuerySchema, runEntitiesSchema, runIdParams } from '@/lib/runs/schema';
 import { deleteRun } from '@/lib/runs/actions';
 import { editRunEntities } from '@/lib/runs/edit-run-entities';
 import { findRunForUser, listRunsForStudy } from '@/lib/db/queries/runs';
@@ -15,7 +15,7 @@ export const GET = handler({ permission: 'runs.read', params: runIdParams }, asy
 });
 
 // PATCH /api/runs/:id – correct the run's BIDS entities (refused once released, or when another run has them)
-export const PATCH = handler({ permission: 'runs.manage', params: runIdParams, body: runEntitiesBodySchema, what: 'The label change' }, async ({ req, user, params, body }) => ({
+export const PATCH = handler({ permission: 'runs.manage', params: runIdParams, body: runEntitiesSchema, what: 'The label change' }, async ({ req, user, params, body }) => ({
   run: await editRunEntities({ user, runId: params.id, entities: body, ip: auditAddress(req) }),
 }));
 
