@@ -24,3 +24,13 @@ export function bidsName(e: BidsEntities): string {
     .filter(Boolean)
     .join('_');
 }
+
+/**
+ * Names for a list of runs that a person can tell apart: a BIDS stem shared by two runs of a
+ * study (two uploads with the same entities) gets the run's number appended, "… (run #12)".
+ */
+export function distinctRunNames<T extends { runId: number; name: string }>(runs: T[]): T[] {
+  const count = new Map<string, number>();
+  for (const r of runs) count.set(r.name, (count.get(r.name) ?? 0) + 1);
+  return runs.map((r) => ((count.get(r.name) ?? 0) > 1 ? { ...r, name: `${r.name} (run #${r.runId})` } : r));
+}

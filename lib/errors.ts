@@ -1,5 +1,6 @@
 import { ZodError } from 'zod';
 import { STORAGE_FAULT_MESSAGES, storageFaultKind } from '@/lib/storage/faults';
+import { sentence } from '@/lib/text';
 
 export type AppErrorCode =
   | 'bad_request'
@@ -62,7 +63,7 @@ export class AppError extends Error {
     }
     const first = err.issues[0];
     const where = first?.path.length ? ` (${first.path.join('.')})` : '';
-    return new AppError('validation', `${what} is not valid${where}: ${first?.message ?? 'check the fields'}.`, fields);
+    return new AppError('validation', sentence(`${what} is not valid${where}: ${first?.message ?? 'check the fields'}`), fields);
   }
 }
 

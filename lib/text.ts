@@ -13,3 +13,12 @@ export function isWellFormedText(value: string): boolean {
 export function wellFormed(what: string): [(value: string) => boolean, { message: string }] {
   return [isWellFormedText, { message: `${what} holds a broken character (half of an emoji or symbol); retype it` }];
 }
+
+/**
+ * A message part closed as one sentence: trimmed, inner runs of spaces collapsed, and a full stop
+ * added only when it does not already end in ".", "?" or "!" (so "…label." + "." never reads "..").
+ */
+export function sentence(text: string): string {
+  const t = text.replace(/ {2,}/g, ' ').trim();
+  return /[.?!…]$/.test(t) ? t : `${t}.`;
+}

@@ -22,6 +22,7 @@ import { deleteJson, postJson } from '@/lib/api/client';
 import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/notice';
 import { studyRunsKey } from './use-study-runs';
+import { RunLabelsForm } from './run-labels-form';
 
 const STATUS_TEXT: Record<RunStatus, string> = {
   uploaded: 'uploaded',
@@ -180,7 +181,7 @@ export function RunsTable({ studyId, runs, canManage }: { studyId: number; runs:
   );
 }
 
-type Mode = null | 'delete' | 'delete-votes' | 'redecompose';
+type Mode = null | 'delete' | 'delete-votes' | 'redecompose' | 'labels';
 
 function RowActions({ run, studyId, canManage }: { run: RunListItem; studyId: number; canManage: boolean }) {
   const client = useQueryClient();
@@ -242,6 +243,9 @@ function RowActions({ run, studyId, canManage }: { run: RunListItem; studyId: nu
           <Button variant="quiet" type="button" onClick={() => setMode(mode === 'redecompose' ? null : 'redecompose')}>Re-decompose…</Button>
         ) : null}
         {canManage ? (
+          <Button variant="quiet" type="button" onClick={() => setMode(mode === 'labels' ? null : 'labels')} aria-label={`Edit the labels of ${name}`} data-testid="run-labels">Labels…</Button>
+        ) : null}
+        {canManage ? (
           <Button variant="danger" type="button" onClick={() => setMode('delete')} aria-label={`Delete ${name}`} data-testid="run-delete">Delete</Button>
         ) : null}
       </div>
@@ -258,6 +262,7 @@ function RowActions({ run, studyId, canManage }: { run: RunListItem; studyId: nu
           <Button variant="quiet" type="button" onClick={() => { setMode(null); setMessage(null); }}>Keep</Button>
         </div>
       ) : null}
+      {mode === 'labels' ? <RunLabelsForm run={run} studyId={studyId} onDone={() => setMode(null)} /> : null}
       {mode === 'redecompose' ? (
         <div className="flex flex-wrap items-center justify-end gap-1 text-xs">
           <select aria-label="Dimensionality" value={dim} onChange={(e) => setDim(e.target.value as DimSetting)} className="rounded border border-line-strong bg-ground-sunken px-1">

@@ -1,5 +1,6 @@
 import { AgreementError, studyAgreement, type StudyAgreement, type StatResult } from '@/lib/agreement';
 import { bidsName, type BidsEntities } from '@/lib/bids';
+import { sentence } from '@/lib/text';
 
 export type RatingsInput = {
   categories: string[];
@@ -73,7 +74,7 @@ export function buildAgreementReport(input: RatingsInput, opts: { resamples?: nu
     });
   } catch (err) {
     if (!(err instanceof AgreementError)) throw err;
-    return { ...empty, unavailable: `Agreement cannot be computed yet: ${err.message}.` };
+    return { ...empty, unavailable: sentence(`Agreement cannot be computed yet: ${err.message}`) };
   }
   const runName = new Map(input.runs.map((r) => [String(r.id), bidsName(r)]));
   const runs = summary.runs.map((r) => ({ ...r, runId: Number(r.runId), name: runName.get(r.runId) ?? `run ${r.runId}` }));

@@ -114,3 +114,6 @@ export function formatBytes(n: number): string {
   if (n >= 1024) return `${(n / 1024).toFixed(1)} KB`;
   return `${n} bytes`;
 }
+
+/** The BIDS entities of a run as parsed (also the body of PATCH /api/runs/:id; empty = none). */
+export type RunEntities = z.output<typeof runEntitiesSchema>;

@@ -8,6 +8,8 @@ ensure_debian_packages() {
   command -v mariadbd >/dev/null 2>&1 || [ -x /usr/sbin/mariadbd ] || missing+=(mariadb-server-core mariadb-client-core)
   if [ "${1:-}" = "with-browser" ]; then
     [ -x /usr/bin/chromium ] || missing+=(chromium)
+    # pdftoppm renders the printed report (page.pdf) to an image in the release browser test
+    command -v pdftoppm >/dev/null 2>&1 || missing+=(poppler-utils)
   fi
   [ ${#missing[@]} -eq 0 ] && return 0
   local cmd="apt-get update && apt-get install -y --no-install-recommends ${missing[*]}"

@@ -107,7 +107,7 @@ test('a lead is told why a study with a pending decision cannot be released, wit
   const refusal = page.getByTestId('release-refusal');
   await expect(refusal).toContainText('1 of 6 components have no final decision yet (1 pending');
   await expect(refusal.getByRole('link', { name: 'Open Reconcile' })).toHaveAttribute('href', `/studies/${pendingStudy}/reconcile`);
-  await releases.releaseButton().click();
+  await releases.clickReleaseAndConfirm();
   await expect(page.getByTestId('release-message')).toContainText('no final decision yet');
   await expect(page.getByTestId('no-releases')).toBeVisible();
 });

@@ -52,6 +52,7 @@ export const ROUTES: RouteCase[] = [
   { file: 'studies/[id]/runs/route.ts', method: 'GET', url: '/api/studies/1/runs', allowed: ALL },
   { file: 'studies/[id]/runs/route.ts', method: 'POST', url: '/api/studies/999999/runs', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/route.ts', method: 'GET', url: '/api/runs/999999', allowed: ALL },
+  { file: 'runs/[id]/route.ts', method: 'PATCH', url: '/api/runs/999999', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/route.ts', method: 'DELETE', url: '/api/runs/999999', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/mask/route.ts', method: 'PUT', url: '/api/runs/999999/mask', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/motion/route.ts', method: 'PUT', url: '/api/runs/999999/motion', allowed: ['admin', 'lead'] },

@@ -442,6 +442,37 @@ describe('pipeline API with personal access tokens', () => {
     expect((await db('personal_access_tokens').where({ id: tokenId }).first()).last_used_at).toBeInstanceOf(Date);
   });
 
+  it('names each run\'s own latest release (a later single-run release supersedes the study release for that run) and lists and serves denoised files', async () => {
+    const body = await (await v1(token)).json();
+    const newestWith = async (runId: number) =>
+      Number((await db('release_decisions').where({ run_id: runId }).max('release_id as id').first() as { id: number }).id);
+    for (const run of runs) {
+      const entry = body.runs.find((r: any) => r.runId === run.runId);
+      const expected = await db('releases').where({ id: await newestWith(run.runId) }).first('id', 'version', 'run_id');
+      expect(entry.release).toMatchObject({ id: expected.id, version: expected.version, scope: expected.run_id ? 'run' : 'study' });
+      expect(entry.noise).toEqual(await db('release_decisions').where({ release_id: expected.id, run_id: run.runId, label: 'noise' }).orderBy('idx').pluck('idx'));
+    }
+    expect(body.runs.find((r: any) => r.runId === runs[0]!.runId).release.scope).toBe('run');
+    // the full regression with motion (previous describe) was made from the latest study release of rel02
+    const rel02 = body.runs.find((r: any) => r.runId === runs[1]!.runId);
+    expect(rel02.release.scope).toBe('study');
+    const job = await db('jobs').where({ kind: 'denoise', run_id: runs[1]!.runId, status: 'succeeded' }).orderBy('id', 'desc').first('result');
+    const result = typeof job.result === 'string' ? JSON.parse(job.result) : job.result;
+    expect(result.name).toBe('sub-rel02_ses-1_task-rest_desc-denoisedfullmotion_bold.nii.gz');
+    expect(rel02.denoised).toEqual([expect.objectContaining({ name: result.name, mode: 'full', includeMotion: true, sha256: result.sha256, bytes: result.bytes })]);
+    expect(rel02.files[result.name].sha256).toBe(result.sha256);
+    const url = new URL(rel02.denoised[0].url);
+    const [, , , , relId, , name] = url.pathname.split('/');
+    const file = await v1FileRoute.GET(new Request(url, { headers: { authorization: `Bearer ${token}` } }), { params: Promise.resolve({ releaseId: relId!, name: decodeURIComponent(name!) }) });
+    expect(file.status).toBe(200);
+    expect(sha(await bytesOf(file))).toBe(result.sha256);
+    // and the release itself lists it for the release page
+    actAs(u('observer'));
+    const one = await callRoute(releaseRoute.GET, { url: `/api/releases/${relId}`, params: { releaseId: relId! } });
+    expect(one.json.denoised.map((f: any) => f.name)).toContain(result.name);
+    expect(JSON.stringify(one.json.denoised)).not.toContain('"key"');
+  });
+
   it('refuses a missing or wrong token (401), a token trying to write (405), a session alone (401), another study (404), and a revoked token (401)', async () => {
     expect((await v1(null)).status).toBe(401);
     expect((await v1('qrm_not-a-token')).status).toBe(401);

@@ -1,6 +1,6 @@
 import 'server-only';
 import type { Knex } from 'knex';
-import { bidsName } from '@/lib/bids';
+import { bidsName, distinctRunNames } from '@/lib/bids';
 import { scoreAgainstReference, type CalibrationScore } from '@/lib/calibration/score';
 import { db, parseJson, toJson } from '@/lib/db/knex';
 import { AppError, notFound } from '@/lib/errors';
@@ -179,7 +179,10 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
         : null,
     });
   }
-  return { studyName: access.name, categories, noiseKinds, runs, candidates, raters };
+  // two runs with the same entities read apart in the pickers: "… (run #12)"
+  const names = new Map(distinctRunNames([...runs, ...candidates].map((r) => ({ runId: r.runId, name: r.runName }))).map((r) => [r.runId, r.name]));
+  const named = <T extends { runId: number; runName: string }>(r: T): T => ({ ...r, runName: names.get(r.runId) ?? r.runName });
+  return { studyName: access.name, categories, noiseKinds, runs: runs.map(named), candidates: candidates.map(named), raters };
 }
 
 /** Marks a ready, unreleased run of the study as a calibration run (it leaves agreement and releases). */

@@ -72,3 +72,17 @@ export async function runHasMotion({ runId }: { runId: number }): Promise<boolea
   const r = await db('runs').where({ id: runId }).first('motion_key');
   return !!r?.motion_key;
 }
+
+/**
+ * The finished denoise jobs that took their noise list from this release (newest first): their
+ * files belong to the release's listing and are served by its files route.
+ */
+export async function listReleaseDenoised({ releaseId }: { releaseId: number }): Promise<DenoiseJob[]> {
+  const rows = await db('jobs')
+    .where({ kind: 'denoise', status: 'succeeded' })
+    .whereRaw("JSON_VALUE(payload, '$.releaseId') = ?", [releaseId])
+    .orderBy('id', 'desc')
+    .limit(500)
+    .select(COLUMNS);
+  return rows.map(toDenoiseJob).filter((j) => j.result !== null);
+}

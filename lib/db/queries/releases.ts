@@ -218,12 +218,6 @@ export async function findRelease({ releaseId }: { releaseId: number }): Promise
   return row ? toRelease(row) : null;
 }
 
-/** The latest study-wide release of a study, or null. */
-export async function latestStudyRelease({ studyId }: { studyId: number }): Promise<ReleaseRow | null> {
-  const row = await db('releases as rl').join('users as u', 'u.id', 'rl.released_by').where('rl.study_id', studyId).whereNull('rl.run_id').whereNotNull('rl.manifest').orderBy('rl.version', 'desc').first(RELEASE_COLUMNS);
-  return row ? toRelease(row) : null;
-}
-
 /** The frozen decisions of a release. */
 export async function releaseDecisions({ releaseId }: { releaseId: number }) {
   return db('release_decisions').where({ release_id: releaseId }).orderBy(['run_id', 'idx']).select('component_id as componentId', 'run_id as runId', 'idx', 'label', 'noise_kind as noiseKind', 'method');

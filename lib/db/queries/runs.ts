@@ -5,6 +5,7 @@ import { decompositionWarnings, type DecompositionWarning } from '@/lib/runs/dec
 import type { UserRow } from './users';
 import { runAgreements } from './agreement';
 import { findStudyAccess } from './study-access';
+import { isRunReleased } from './desk';
 import type { JobStatus } from '@/lib/jobs/status';
 
 export type RunStatus = 'uploaded' | 'queued' | 'processing' | 'ready' | 'failed' | 'cancelled';
@@ -241,4 +242,44 @@ export async function studyProgress({ user, studyId, seesAllRuns }: Scoped & { s
     componentsRated,
     openDisagreements,
   };
+}
+
+/** Another run of the study with exactly these BIDS entities (null/empty alike), or null. */
+export async function findRunWithEntities(
+  { studyId, entities, exceptRunId }: { studyId: number; entities: { sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null }; exceptRunId?: number },
+  trx: Knex | Knex.Transaction = db,
+): Promise<RunRecord | null> {
+  const same = (q: Knex.QueryBuilder, column: string, value: string | null) =>
+    value ? q.where(column, value) : q.where((w) => w.whereNull(column).orWhere(column, ''));
+  let q = trx('runs as r').where({ 'r.study_id': studyId, 'r.sub': entities.sub });
+  q = same(q, 'r.ses', entities.ses);
+  q = same(q, 'r.task', entities.task);
+  q = same(q, 'r.acq', entities.acq);
+  q = same(q, 'r.run_label', entities.runLabel);
+  if (exceptRunId) q = q.whereNot('r.id', exceptRunId);
+  return (await q.orderBy('r.id').first(recordColumns)) ?? null;
+}
+
+export type EntitiesChange = { outcome: 'released' } | { outcome: 'taken'; other: RunRecord } | { outcome: 'unchanged' } | { outcome: 'changed' };
+
+/**
+ * Sets a run's BIDS entities in one transaction (the run row locked): not when the run is in a
+ * release, not when another run of the study has them. `alsoInTransaction` runs after the update
+ * in the same transaction (the caller's audit entry).
+ */
+export async function changeRunEntities(
+  { runId, studyId, entities }: { runId: number; studyId: number; entities: { sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null } },
+  alsoInTransaction: (trx: Knex.Transaction) => Promise<void>,
+): Promise<EntitiesChange> {
+  return db.transaction(async (trx) => {
+    const row = await trx('runs').where({ id: runId }).forUpdate().first('sub', 'ses', 'task', 'acq', 'run_label');
+    if (await isRunReleased({ runId }, trx)) return { outcome: 'released' as const };
+    const other = await findRunWithEntities({ studyId, entities, exceptRunId: runId }, trx);
+    if (other) return { outcome: 'taken' as const, other };
+    const same = row.sub === entities.sub && (row.ses || null) === entities.ses && (row.task || null) === entities.task && (row.acq || null) === entities.acq && (row.run_label || null) === entities.runLabel;
+    if (same) return { outcome: 'unchanged' as const };
+    await trx('runs').where({ id: runId }).update({ sub: entities.sub, ses: entities.ses, task: entities.task, acq: entities.acq, run_label: entities.runLabel });
+    await alsoInTransaction(trx);
+    return { outcome: 'changed' as const };
+  });
 }

@@ -72,7 +72,8 @@ export const denoiseKind = defineJobKind({
     ctx.throwIfStopped();
     const key = newKey('denoised', '.nii.gz');
     const stem = bidsName({ sub: run.sub, ses: run.ses, task: run.task, acq: run.acq, runLabel: run.run_label });
-    const name = `${stem}_desc-denoised${payload.mode}_bold.nii.gz`;
+    // with motion regressors the name says so, so the two files of one release never share a name
+    const name = `${stem}_desc-denoised${payload.mode}${payload.includeMotion ? 'motion' : ''}_bold.nii.gz`;
     try {
       const out = await denoiseImage({
         image, drop, timecourses: tcs, k, noise, mode: payload.mode, motion, mask, outPath: await ensureDirFor(key),

@@ -13,8 +13,17 @@ export class ReleasesPage {
     return this.page.getByTestId('release-button');
   }
 
-  async release() {
+  /** Clicks Release and confirms in the dialog that says what follows. */
+  async clickReleaseAndConfirm() {
     await this.releaseButton().click();
+    const dialog = this.page.getByRole('dialog');
+    await expect(dialog).toBeVisible();
+    await dialog.getByTestId('release-confirm-confirm').click();
+    await expect(dialog).toBeHidden();
+  }
+
+  async release() {
+    await this.clickReleaseAndConfirm();
     await expect(this.page.getByTestId('release-message')).toContainText('Released as version');
   }
 

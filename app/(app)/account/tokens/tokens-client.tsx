@@ -4,6 +4,7 @@ import { useState } from 'react';
 import { deleteJson, getJson, postJson } from '@/lib/api/client';
 import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/notice';
+import { ConfirmDialog } from '@/components/ui/confirm-dialog';
 
 type Token = { id: number; name: string; tokenPrefix: string | null; scope: string; lastUsedAt: string | null; expiresAt: string | null; revokedAt: string | null; createdAt: string };
 
@@ -14,6 +15,7 @@ export function AccessTokens() {
   const qc = useQueryClient();
   const [name, setName] = useState('');
   const [fresh, setFresh] = useState<string | null>(null);
+  const [revoking, setRevoking] = useState<Token | null>(null);
   const tokens = useQuery({
     queryKey: ['access-tokens'],
     queryFn: async () => {
@@ -39,7 +41,10 @@ export function AccessTokens() {
       const r = await deleteJson(`/api/account/tokens/${id}`);
       if (!r.ok) throw new Error(r.message);
     },
-    onSuccess: () => qc.invalidateQueries({ queryKey: ['access-tokens'] }),
+    onSuccess: () => {
+      setRevoking(null);
+      return qc.invalidateQueries({ queryKey: ['access-tokens'] });
+    },
   });
 
   return (
@@ -78,12 +83,28 @@ export function AccessTokens() {
               <td>{day(t.createdAt)}</td>
               <td>{day(t.lastUsedAt)}</td>
               <td className="text-right">
-                {t.revokedAt ? <span className="text-ink-faint">revoked</span> : <Button variant="danger" className="px-2 py-0.5 text-xs" onClick={() => revoke.mutate(t.id)}>Revoke</Button>}
+                {t.revokedAt ? <span className="text-ink-faint">revoked</span> : <Button variant="danger" className="px-2 py-0.5 text-xs" onClick={() => setRevoking(t)} data-testid={`token-revoke-${t.id}`}>Revoke</Button>}
               </td>
             </tr>
           ))}
         </tbody>
       </table>
+      {revoke.error ? <p className="text-alarm" role="alert">{revoke.error.message}</p> : null}
+      <ConfirmDialog
+        open={revoking !== null}
+        title={`Revoke the token “${revoking?.name ?? ''}”?`}
+        confirmLabel="Revoke the token"
+        busy={revoke.isPending}
+        onConfirm={() => revoking && revoke.mutate(revoking.id)}
+        onCancel={() => setRevoking(null)}
+        testId="token-revoke-confirm"
+      >
+        <p>
+          Every pipeline that sends the token <code className="font-mono">{revoking?.tokenPrefix}…</code> is refused from now on (401) and can no
+          longer fetch released noise lists.
+        </p>
+        <p className="text-ink">A revoked token cannot be restored: create a new one and give it to the pipeline.</p>
+      </ConfirmDialog>
     </div>
   );
 }

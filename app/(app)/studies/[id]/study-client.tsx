@@ -16,7 +16,7 @@ export function StudyClient({ studyId, initial, canManage, maxBytes }: { studyId
       <StudyProgressSummary progress={data.progress} />
       {canManage ? (
         <Panel title="Upload runs">
-          <UploadArea studyId={studyId} maxBytes={maxBytes} />
+          <UploadArea studyId={studyId} maxBytes={maxBytes} existing={data.runs} />
         </Panel>
       ) : null}
       <Panel title="Runs">

@@ -2,37 +2,27 @@ import { z } from 'zod';
 import { handler } from '@/lib/api/handler';
 import { authenticateBearer, readOnlyResponse } from '@/lib/auth/access-tokens';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
-import { latestStudyRelease } from '@/lib/db/queries/releases';
+import { latestReleasedRuns } from '@/lib/releases/latest-runs';
 import { notFound } from '@/lib/errors';
 
 const params = z.object({ id: z.coerce.number().int().positive() });
 const entity = z.string().max(64).regex(/^[A-Za-z0-9]+$/, 'a BIDS label (letters and digits)').optional();
 const query = z.object({ sub: entity, ses: entity, task: entity, acq: entity, run: entity });
 
-// GET /api/v1/studies/:id/releases/latest/runs – (Bearer token) the latest study release's runs: entities, k, noise list, file addresses
+// GET /api/v1/studies/:id/releases/latest/runs – (Bearer token) per run its latest release (study or single-run): entities, k, noise list, file addresses, denoised files
 export const GET = handler({ permission: 'public', params, query, what: 'The pipeline request' }, async ({ req, params, query }) => {
   const user = await authenticateBearer(req);
   const access = await findStudyAccess({ user, studyId: params.id });
   if (!access) throw notFound('The study');
-  const release = await latestStudyRelease({ studyId: params.id });
-  if (!release?.manifest) throw notFound(`A release of study ${params.id}`);
-  const m = release.manifest;
-  const origin = new URL(req.url).origin;
-  const url = (name: string) => `${origin}/api/v1/releases/${release.id}/files/${encodeURIComponent(name)}`;
-  const runs = m.runs.filter(
-    (r) => (!query.sub || r.entities.sub === query.sub) && (!query.ses || r.entities.ses === query.ses) && (!query.task || r.entities.task === query.task) && (!query.acq || r.entities.acq === query.acq) && (!query.run || r.entities.run === query.run),
-  );
+  const latest = await latestReleasedRuns({ studyId: params.id, filter: query, origin: new URL(req.url).origin });
+  if (!latest.any || !latest.manifest) throw notFound(`A release of study ${params.id}`);
+  const m = latest.manifest;
+  const s = latest.studyRelease;
   return {
     study: m.study,
-    release: { id: release.id, version: release.version, releasedAt: m.release.releasedAt, software: m.software, uncertainInExport: m.uncertainInExport },
-    runs: runs.map((r) => ({
-      runId: r.runId,
-      name: r.stem,
-      entities: r.entities,
-      k: r.k,
-      noise: r.noise,
-      files: Object.fromEntries(m.files.filter((f) => f.runId === r.runId).map((f) => [f.name, { url: url(f.name), sha256: f.sha256, bytes: f.bytes }])),
-    })),
+    // the newest study release (null when only single runs have been released); each run names its own release
+    release: s?.manifest ? { id: s.id, version: s.version, releasedAt: s.manifest.release.releasedAt, software: s.manifest.software, uncertainInExport: s.manifest.uncertainInExport } : null,
+    runs: latest.runs,
     cautions: m.cautions,
   };
 });

@@ -1,0 +1,32 @@
+import 'server-only';
+/**
+ * A lead corrects a run's BIDS entities (sub, ses, task, acq, run), e.g. after two uploads were
+ * given the same ones. Refused once the run is in a release (its files and noise lists carry the
+ * old names, and pipelines fetch them by those), and refused when another run of the study already
+ * has the new entities. The change is audited with the old and new names.
+ */
+import { bidsName } from '@/lib/bids';
+import { AppError } from '@/lib/errors';
+import { recordAudit } from '@/lib/db/queries/audit';
+import { changeRunEntities, listRunsForStudy, type RunListItem } from '@/lib/db/queries/runs';
+import type { UserRow } from '@/lib/db/queries/users';
+import { runForChange } from './upload';
+import type { RunEntities } from './schema';
+
+export async function editRunEntities({ user, runId, entities, ip = null }: { user: Pick<UserRow, 'id' | 'role'>; runId: number; entities: RunEntities; ip?: string | null }): Promise<RunListItem> {
+  const run = await runForChange(user, runId);
+  const next = { sub: entities.sub, ses: entities.ses || null, task: entities.task || null, acq: entities.acq || null, runLabel: entities.run || null };
+  const before = bidsName(run);
+  const after = bidsName(next);
+  const change = await changeRunEntities({ runId, studyId: run.studyId, entities: next }, (trx) =>
+    recordAudit({ actorId: user.id, action: 'run.relabel', targetType: 'run', targetId: runId, studyId: run.studyId, ip, detail: { from: before, to: after } }, trx),
+  );
+  if (change.outcome === 'released') {
+    throw new AppError('conflict', `${before} is already in a release, so its labels can no longer change: the released files and pipelines use this name. Upload the run again under the right labels if it must be released under them.`);
+  }
+  if (change.outcome === 'taken') {
+    throw new AppError('conflict', `Run #${change.other.id} (uploaded as ${change.other.originalName}) already has the labels ${after}. Choose labels no other run of the study has, e.g. another run number.`, { run: ['These labels are taken.'] });
+  }
+  const [row] = await listRunsForStudy({ user, studyId: run.studyId, runId });
+  return row;
+}
