@@ -180,9 +180,16 @@ export const decomposeKind = defineJobKind({
     await ctx.progress('masking', 5);
 
     const started = Date.now();
-    const result = await decomposeRun({ image, mask, motion }, options, (stage, pct) =>
-      ctx.progressSync(NEXT_STAGE[stage] ?? stage, 5 + pct * 0.75),
-    ).catch((err: unknown) => {
+    // ICA reports every iteration: pass on a change of stage, or of a whole percent, not each one
+    let last = '';
+    const result = await decomposeRun({ image, mask, motion }, options, (stage, pct, detail) => {
+      const ours = NEXT_STAGE[stage] ?? stage;
+      const percent = 5 + pct * 0.75;
+      const key = `${ours} ${Math.floor(percent)}`;
+      if (key === last) return;
+      last = key;
+      ctx.progressSync(ours, percent, detail ?? null);
+    }).catch((err: unknown) => {
       throw deterministic(err) ?? err;
     });
     ctx.throwIfStopped();
