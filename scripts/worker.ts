@@ -12,6 +12,7 @@ import { checkDatabase, closeDb, db } from '@/lib/db/knex';
 import { jobKinds } from '@/lib/jobs/kinds';
 import { defaultWorkerId, startWorker } from '@/lib/jobs/worker';
 import { executorName, slurmSettings, workerConcurrency } from '@/lib/jobs/executors/settings';
+import { cancelOrphanedClusterJobs } from '@/lib/jobs/executors/cancel-orphans';
 
 function intEnv(name: string, fallback: number, min: number): number {
   const raw = process.env[name];
@@ -59,7 +60,15 @@ async function main(): Promise<number> {
   }
 
   console.log(`worker ${workerId}: ready (kinds ${Object.keys(jobKinds).join(', ')}; lease ${leaseMs} ms; executor ${executor}; ${concurrency} at once${once ? '; --once' : ''})`);
-  const worker = startWorker({ db, kinds: jobKinds, workerId, leaseMs, pollMs, retryBaseMs, once, concurrency });
+  const worker = startWorker({
+    db, kinds: jobKinds, workerId, leaseMs, pollMs, retryBaseMs, once, concurrency,
+    onSweep: executorName() === 'slurm'
+      ? async () => {
+          const ids = await cancelOrphanedClusterJobs(db);
+          return ids.length ? `cancelled cluster job ${ids.join(', ')} (their Quorum jobs were cancelled while queued)` : null;
+        }
+      : undefined,
+  });
 
   let signals = 0;
   const onSignal = (sig: NodeJS.Signals) => {

@@ -31,6 +31,8 @@ export interface WorkerOptions {
    * on a cluster (the Slurm executor) — not when they compute here.
    */
   concurrency?: number;
+  /** Extra housekeeping on every sweep (the Slurm executor cancels orphaned cluster jobs). */
+  onSweep?: () => Promise<string | null>;
 }
 
 export function defaultWorkerId(): string {
@@ -90,6 +92,8 @@ export function startWorker(opts: WorkerOptions): WorkerHandle {
       const { requeued, failed } = await requeueExpiredLeases(db);
       if (requeued.length) line(`worker ${workerId}: re-queued job ${requeued.join(', ')} (lease expired)`);
       if (failed.length) line(`worker ${workerId}: job ${failed.join(', ')} failed (lease expired, no attempts left)`);
+      const extra = await opts.onSweep?.();
+      if (extra) line(`worker ${workerId}: ${extra}`);
     } catch (err) {
       logger.warn(`worker ${workerId}: lease sweep failed: ${readableMessage(err)}`);
     }

@@ -8,7 +8,7 @@ import { execFileSync, spawnSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
 import { writeFile } from 'node:fs/promises';
 import path from 'node:path';
-import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { closeDb, db, parseJson } from '@/lib/db/knex';
 import { cancelJob, getJob } from '@/lib/jobs';
 import { enqueueDecomposition } from '@/lib/jobs/kinds/decompose';
@@ -67,12 +67,15 @@ beforeAll(async () => {
 });
 afterAll(async () => {
   for (const w of workers) if (w.child.exitCode === null && w.child.signalCode === null) w.child.kill('SIGKILL');
-  // leave nothing running on the cluster
-  const left = execFileSync('squeue', ['-h', '-o', '%i %j'], { env: { ...process.env, ...slurmEnv }, encoding: 'utf8' }).split('\n').filter((l) => / quorum-j/.test(l));
-  for (const l of left) spawnSync('scancel', [l.split(' ')[0]!], { env: { ...process.env, ...slurmEnv } });
+  // leave none of this file's cluster jobs running (and nobody else's touched)
+  for (const id of submitted) spawnSync('scancel', [id], { env: { ...process.env, ...slurmEnv } });
   if (startedHere) spawnSync('bash', [slurmScript, 'stop']);
   await uploads.cleanup();
   await closeDb();
+});
+const submitted = new Set<string>();
+afterEach(async () => {
+  for (const r of await db('jobs').whereNotNull('cluster_job_id').select('cluster_job_id')) submitted.add(String(r.cluster_job_id));
 });
 beforeEach(async () => {
   await db('jobs').del();
@@ -177,5 +180,26 @@ describe.skipIf(skipWhy !== null)('decompose through Slurm', () => {
     expect(await db('decompositions').where({ run_id: runId })).toHaveLength(1);
     expect((await db('runs').where({ id: runId }).first('status')).status).toBe('ready');
     expect(existsSync(gate)).toBe(true);
+  });
+
+  it('a job cancelled while its worker was dead: the next worker cancels the orphaned cluster job', { timeout: 300_000 }, async () => {
+    const { runId } = await createPhantomRun(db, { size: 'tiny', raters: 1 });
+    const { jobId } = await enqueueDecomposition(db, { runId });
+    const env = { QUORUM_JOB_LEASE_MS: '1500', QUORUM_SLURM_SETUP: gateLine(path.join(uploads.dir, 'never')) };
+    const first = slurmWorker(env, []);
+    const r1 = await waitFor(async () => {
+      const r = await jobRow(jobId);
+      return r?.cluster_state === 'RUNNING' ? r : null;
+    }, { timeoutMs: 120_000, everyMs: 100 });
+    first.child.kill('SIGKILL');
+    await first.exited;
+    await cancelJob(db, jobId);
+    const second = slurmWorker(env);
+    const exit = await second.exited;
+    expect(exit.code, second.lines.join('\n')).toBe(0);
+    expect(second.lines.join('\n')).toContain(`cancelled cluster job ${r1.cluster_job_id}`);
+    expect(await waitFor(async () => (/JobState=CANCELLED/.test(scontrol(r1.cluster_job_id)) ? true : null), { timeoutMs: 60_000, everyMs: 200 })).toBe(true);
+    expect((await jobRow(jobId)).cluster_state).toBe('CANCELLED');
+    expect((await db('runs').where({ id: runId }).first('status')).status).toBe('cancelled');
   });
 });
