@@ -20,7 +20,16 @@ started_db=0
 if [ -z "${DATABASE_URL:-}" ] && ! bash scripts/db.sh status >/dev/null 2>&1; then started_db=1; fi
 bash scripts/db.sh start || exit 1
 
+# a private single-node Slurm for the cluster executor's tests (installs Debian's packages when
+# missing; loopback ports QUORUM_SLURM_CTLD_PORT/QUORUM_SLURM_NODE_PORT, default 6917/6918)
+started_slurm=0
+if ! bash scripts/slurm.sh status >/dev/null 2>&1; then
+  if bash scripts/slurm.sh start; then started_slurm=1; else echo "Slurm could not be started: the cluster tests are skipped and say why"; fi
+fi
+eval "$(bash scripts/slurm.sh env)"
+
 cleanup() {
+  if [ "$started_slurm" = 1 ]; then bash scripts/slurm.sh stop >/dev/null 2>&1 || true; fi
   if [ "$started_db" = 1 ]; then bash scripts/db.sh stop >/dev/null 2>&1 || true; fi
 }
 trap cleanup EXIT

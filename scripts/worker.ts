@@ -3,12 +3,16 @@
 //   --once                 process jobs until none is queued or running, then exit (tests, batch)
 // Environment: QUORUM_WORKER_ID (default host:pid:random), QUORUM_JOB_LEASE_MS (default 30000),
 //   QUORUM_JOB_POLL_MS (500), QUORUM_JOB_RETRY_BASE_MS (5000), QUORUM_DECOMPOSE_THREADS,
-//   the database settings of lib/db/config.ts and QUORUM_UPLOADS_DIR (the shared storage root).
+//   the database settings of lib/db/config.ts and QUORUM_UPLOADS_DIR (the shared storage root);
+//   QUORUM_EXECUTOR (local | slurm), QUORUM_WORKER_CONCURRENCY and the QUORUM_SLURM_* settings
+//   of lib/jobs/executors/settings.ts.
 // SIGTERM / SIGINT: the running job is released back to the queue (its attempt is not counted) and
 // the worker exits; a second signal exits at once.
 import { checkDatabase, closeDb, db } from '@/lib/db/knex';
 import { jobKinds } from '@/lib/jobs/kinds';
 import { defaultWorkerId, startWorker } from '@/lib/jobs/worker';
+import { executorName, slurmSettings, workerConcurrency } from '@/lib/jobs/executors/settings';
+import { cancelOrphanedClusterJobs } from '@/lib/jobs/executors/cancel-orphans';
 
 function intEnv(name: string, fallback: number, min: number): number {
   const raw = process.env[name];
@@ -33,6 +37,19 @@ async function main(): Promise<number> {
   const pollMs = intEnv('QUORUM_JOB_POLL_MS', 500, 10);
   const retryBaseMs = intEnv('QUORUM_JOB_RETRY_BASE_MS', 5_000, 0);
   const workerId = process.env.QUORUM_WORKER_ID?.trim() || defaultWorkerId();
+  let executor: string;
+  let concurrency: number;
+  try {
+    executor = executorName();
+    concurrency = workerConcurrency();
+    if (executor === 'slurm') {
+      const s = slurmSettings();
+      executor = `slurm (time ${s.time}, ${s.cpus} CPUs, ${s.mem}${s.partition ? `, partition ${s.partition}` : ''}; polls every ${s.pollMs} ms)`;
+    }
+  } catch (err) {
+    process.stderr.write(`worker: ${(err as Error).message}\n`);
+    return 2;
+  }
 
   try {
     await checkDatabase(db);
@@ -42,8 +59,16 @@ async function main(): Promise<number> {
     return 1;
   }
 
-  console.log(`worker ${workerId}: ready (kinds ${Object.keys(jobKinds).join(', ')}; lease ${leaseMs} ms${once ? '; --once' : ''})`);
-  const worker = startWorker({ db, kinds: jobKinds, workerId, leaseMs, pollMs, retryBaseMs, once });
+  console.log(`worker ${workerId}: ready (kinds ${Object.keys(jobKinds).join(', ')}; lease ${leaseMs} ms; executor ${executor}; ${concurrency} at once${once ? '; --once' : ''})`);
+  const worker = startWorker({
+    db, kinds: jobKinds, workerId, leaseMs, pollMs, retryBaseMs, once, concurrency,
+    onSweep: executorName() === 'slurm'
+      ? async () => {
+          const ids = await cancelOrphanedClusterJobs(db);
+          return ids.length ? `cancelled cluster job ${ids.join(', ')} (their Quorum jobs were cancelled while queued)` : null;
+        }
+      : undefined,
+  });
 
   let signals = 0;
   const onSignal = (sig: NodeJS.Signals) => {

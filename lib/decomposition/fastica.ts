@@ -30,6 +30,12 @@ export interface FastIcaOptions {
    * point on the full data; only the path there is cheaper). 0 = off. Default 32768.
    */
   warmStartVoxels?: number;
+  /**
+   * Called after every fixed-point iteration (warm start, full data and retry alike) with the
+   * iteration count so far and the convergence measure max_i |1 − |⟨w_i, w_i_old⟩|| (it reaches
+   * `tol` at convergence). For progress reports only; never changes the result.
+   */
+  onIteration?: (iteration: number, change: number) => void;
 }
 
 export interface FastIcaResult {
@@ -132,16 +138,20 @@ export async function fastIca(z: Float32Array, k: number, V: number, pool: Kerne
     w = symmetricDecorrelation(w, k);
   }
   let warmIterations = 0;
+  let done = 0;
+  const report = opts.onIteration ? (it: number, change: number) => opts.onIteration!(done + it, change) : undefined;
   if (zSub) {
-    const pre = await iterateFastIca(zSub, k, Vs, pool, w, code, alpha, tol, maxIter);
+    const pre = await iterateFastIca(zSub, k, Vs, pool, w, code, alpha, tol, maxIter, report);
+    done += pre.iterations;
     w = pre.w;
     warmIterations = pre.iterations;
   }
-  let full = await iterateFastIca(z, k, V, pool, w, code, alpha, tol, maxIter);
+  let full = await iterateFastIca(z, k, V, pool, w, code, alpha, tol, maxIter, report);
+  done += full.iterations;
   let iterations = full.iterations;
   let attempts = 1;
   if (!full.converged && retry) {
-    full = await iterateFastIca(z, k, V, pool, full.w, code, alpha, tol, maxIter);
+    full = await iterateFastIca(z, k, V, pool, full.w, code, alpha, tol, maxIter, report);
     iterations += full.iterations;
     attempts = 2;
   }
@@ -153,6 +163,7 @@ let iterationRuns = 0;
 /** Fixed-point iterations from w until convergence or maxIter (see fastIca). */
 async function iterateFastIca(
   z: Float32Array, k: number, V: number, pool: KernelPool, w0: Float64Array, code: number, alpha: number, tol: number, maxIter: number,
+  onIteration?: (iteration: number, change: number) => void,
 ): Promise<{ w: Float64Array; iterations: number; converged: boolean }> {
   const parts = pool.partition(V);
   const Gs = parts.map(() => sharedFloat64(k * k));
@@ -187,6 +198,7 @@ async function iterateFastIca(
       lim = Math.max(lim, Math.abs(Math.abs(d) - 1));
     }
     w = wn;
+    onIteration?.(it, lim);
     if (lim < tol) return { w, iterations: it, converged: true };
   }
   return { w, iterations: it, converged: false };

@@ -76,7 +76,23 @@ export interface RestartSummary {
   centrotypeSimilarity: number[];
 }
 
-export type ProgressCallback = (stage: string, percent: number) => void;
+/**
+ * Progress of decomposeRun: the stage just finished (or, for 'ica', under way), percent of the whole
+ * (0..100) and, inside the ICA stage, a line for people such as "restart 3 of 10, iteration 41".
+ */
+export type ProgressCallback = (stage: string, percent: number, detail?: string) => void;
+
+/**
+ * Share of one FastICA run done, from its convergence measure: log(change)/log(tol) is 0 at the
+ * start (change ≈ 1) and 1 at convergence (change = tol); clamped to 0..0.99 (the run's end is
+ * reported by the caller). An estimate for a progress bar only: FastICA's iteration count is not
+ * known in advance (common practice, no source).
+ */
+export function icaRunFraction(change: number, tol: number): number {
+  if (!(change > 0)) return 0.99;
+  const f = Math.log(change) / Math.log(tol);
+  return Math.max(0, Math.min(0.99, Number.isFinite(f) ? f : 0));
+}
 
 export interface DecompositionResult {
   /** Number of components. */
@@ -275,12 +291,21 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
     const wh = whBound ? leadingWhitened(whBound, k, T, V) : await whiten(x, T, V, pca.vectors, pca.eigenvalues, cov.spatialMean, k, pool);
     stage('whitening', 60);
     const icaOptions = { contrast, tol, maxIter };
+    // ICA takes 60 → 90 %: R restarts and the final run on all voxels (R > 1), or one run, in equal shares
+    const icaRuns = restarts <= 1 ? 1 : restarts + 1;
+    const icaProgress = (run: number, label: string) => {
+      let best = 0;
+      return (iteration: number, change: number) => {
+        best = Math.max(best, icaRunFraction(change, tol));
+        onProgress?.('ica', 60 + (30 * (run + best)) / icaRuns, `${label}, iteration ${iteration}`);
+      };
+    };
     let ica: FastIcaResult;
     let reproByRow: Float64Array | null = null;
     let restartSummary: Omit<RestartSummary, 'clusterSizes' | 'centrotypeSimilarity'> | null = null;
     let rowCluster: { sizes: Int32Array; cluster: Int32Array; similarity: Float64Array } | null = null;
     if (restarts <= 1) {
-      ica = await fastIca(wh.z, k, V, pool, { ...icaOptions, seed: requestedSeed, warmStartVoxels: options.warmStartVoxels });
+      ica = await fastIca(wh.z, k, V, pool, { ...icaOptions, seed: requestedSeed, warmStartVoxels: options.warmStartVoxels, onIteration: icaProgress(0, `${k} components`) });
     } else {
       // Restarts on an evenly strided voxel subset (the whitened space is shared, so their estimates
       // compare by dot products), then one run on all voxels from the clusters' centrotypes.
@@ -293,11 +318,18 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
       }
       const runs: FastIcaResult[] = [];
       for (let r = 0; r < restarts; r++) {
-        runs.push(await fastIca(zr, k, Vr, pool, { ...icaOptions, seed: (requestedSeed + r) >>> 0, warmStartVoxels: stride > 1 ? 0 : options.warmStartVoxels }));
-        onProgress?.('ica', 60 + (25 * (r + 1)) / restarts);
+        runs.push(
+          await fastIca(zr, k, Vr, pool, {
+            ...icaOptions,
+            seed: (requestedSeed + r) >>> 0,
+            warmStartVoxels: stride > 1 ? 0 : options.warmStartVoxels,
+            onIteration: icaProgress(r, `restart ${r + 1} of ${restarts}`),
+          }),
+        );
+        onProgress?.('ica', 60 + (30 * (r + 1)) / icaRuns, `restart ${r + 1} of ${restarts} done`);
       }
       const clusters = clusterEstimates(runs.map((r) => r.w), k);
-      ica = await fastIca(wh.z, k, V, pool, { ...icaOptions, seed: requestedSeed, init: clusters.centrotypes, warmStartVoxels: 0 });
+      ica = await fastIca(wh.z, k, V, pool, { ...icaOptions, seed: requestedSeed, init: clusters.centrotypes, warmStartVoxels: 0, onIteration: icaProgress(restarts, 'final run on all voxels') });
       const match = matchToCentrotypes(ica.w, clusters.centrotypes, k);
       reproByRow = Float64Array.from(match.cluster, (c) => clusters.index[c]!);
       rowCluster = { sizes: clusters.sizes, cluster: match.cluster, similarity: match.similarity };

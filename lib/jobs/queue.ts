@@ -200,6 +200,8 @@ export async function claimJob(
         started_at: trx.raw('NOW(3)'),
         stage: 'starting',
         percent: 0,
+        // the queue's words ("Waiting for a worker", "Retrying in 5 s") no longer hold once claimed
+        message: null,
         finished_at: null,
       });
     const row = await trx('jobs').select(COLUMNS).where({ id }).first();

@@ -91,16 +91,22 @@ export async function runClaimedJob(db: Knex, job: Job, opts: RunJobOptions): Pr
   }, renewEvery);
   timer.unref?.();
 
-  const progress = async (stage: string, percent: number, message?: string) => {
+  const report = async (stage: string, percent: number, message?: string | null) => {
     throwIfStopped();
     const ok = await reportProgress(db, job.id, workerId, { stage, percent, message, leaseMs });
     if (!ok) await diagnose();
     throwIfStopped();
   };
   let chain: Promise<void> = Promise.resolve();
-  const progressSync = (stage: string, percent: number) => {
+  const progressSync = (stage: string, percent: number, message?: string | null) => {
     throwIfStopped();
-    chain = chain.then(() => progress(stage, percent)).catch(() => undefined);
+    chain = chain.then(() => report(stage, percent, message)).catch(() => undefined);
+  };
+  // reports from synchronous callbacks still on their way are written first, so a later stage is
+  // never overwritten by an earlier one
+  const progress = async (stage: string, percent: number, message?: string | null) => {
+    await chain;
+    await report(stage, percent, message);
   };
   let committed = false;
   const commit: JobContext<unknown>['commit'] = async (write, result) => {

@@ -22,12 +22,12 @@ export interface JobContext<P> {
    * Records stage + percent (0..100) and extends the lease. Throws JobCancelled or LeaseLost when
    * the job is no longer this worker's to finish; the kind should let that error propagate.
    */
-  progress(stage: string, percent: number, message?: string): Promise<void>;
+  progress(stage: string, percent: number, message?: string | null): Promise<void>;
   /**
    * For synchronous callbacks (e.g. the decomposition engine's onProgress): throws at once when
    * the job was already found stopped, else records the progress in the background.
    */
-  progressSync(stage: string, percent: number): void;
+  progressSync(stage: string, percent: number, message?: string | null): void;
   /** Throws JobCancelled / LeaseLost when the job is no longer this worker's. */
   throwIfStopped(): void;
   /**

@@ -26,6 +26,13 @@ export interface WorkerOptions {
   logger?: JobLogger;
   /** Called for every job start and end (one line each). */
   onLine?: (line: string) => void;
+  /**
+   * Jobs this worker runs at once (default 1). More than one pays off when jobs mostly wait —
+   * on a cluster (the Slurm executor) — not when they compute here.
+   */
+  concurrency?: number;
+  /** Extra housekeeping on every sweep (the Slurm executor cancels orphaned cluster jobs). */
+  onSweep?: () => Promise<string | null>;
 }
 
 export function defaultWorkerId(): string {
@@ -48,6 +55,8 @@ export interface WorkerHandle {
    */
   stop(): Promise<void>;
   current(): Job | null;
+  /** Every job this worker is running now. */
+  running(): Job[];
 }
 
 function sleep(ms: number, signal: AbortSignal): Promise<void> {
@@ -73,15 +82,18 @@ export function startWorker(opts: WorkerOptions): WorkerHandle {
   const logger = opts.logger ?? consoleLogger;
   const line = opts.onLine ?? ((l: string) => logger.info(l));
   const kindNames = Object.keys(opts.kinds);
+  const concurrency = Math.max(1, Math.floor(opts.concurrency ?? 1));
   const stopping = new AbortController();
-  const jobStop = { controller: new AbortController() };
-  let current: Job | null = null;
+  /** The jobs under way, each with the signal that tells its kind to stop, and its promise. */
+  const active = new Map<number, { job: Job; stop: AbortController; done: Promise<void> }>();
 
   const sweep = async () => {
     try {
       const { requeued, failed } = await requeueExpiredLeases(db);
       if (requeued.length) line(`worker ${workerId}: re-queued job ${requeued.join(', ')} (lease expired)`);
       if (failed.length) line(`worker ${workerId}: job ${failed.join(', ')} failed (lease expired, no attempts left)`);
+      const extra = await opts.onSweep?.();
+      if (extra) line(`worker ${workerId}: ${extra}`);
     } catch (err) {
       logger.warn(`worker ${workerId}: lease sweep failed: ${readableMessage(err)}`);
     }
@@ -92,13 +104,59 @@ export function startWorker(opts: WorkerOptions): WorkerHandle {
     return Number(row?.n ?? 0);
   };
 
+  const words: Record<RunOutcome | 'error', string> = {
+    succeeded: 'succeeded',
+    retry: 'failed; queued for retry',
+    failed: 'failed (no attempts left)',
+    cancelled: 'stopped (cancelled)',
+    lost: 'stopped (lease lost or released)',
+    error: 'ended with an unrecorded outcome',
+  };
+  let processed = 0;
+  /** Something to wake the loop when a job ends (so a full worker claims again at once). */
+  let wake: () => void = () => undefined;
+
+  const execute = async (job: Job, stop: AbortController) => {
+    const t0 = Date.now();
+    line(`job ${job.id} ${job.kind} started (attempt ${job.attempts}/${job.maxAttempts}${job.runId ? `, run ${job.runId}` : ''}) by ${workerId}`);
+    let outcome: RunOutcome | 'error';
+    try {
+      outcome = await runClaimedJob(db, job, { workerId, leaseMs, kinds: opts.kinds, logger, retryBaseMs: opts.retryBaseMs, stopSignal: stop.signal });
+    } catch (err) {
+      // the database went away while recording the outcome: the lease will expire and another
+      // worker (or this one) takes the job again
+      logger.error(`job ${job.id}: could not record the outcome: ${readableMessage(err)}`);
+      outcome = 'error';
+    }
+    const secs = ((Date.now() - t0) / 1000).toFixed(1);
+    line(`job ${job.id} ${job.kind} ${words[outcome]} after ${secs} s`);
+    processed++;
+  };
+
+  const waitForRoomOrPoll = (ms: number) =>
+    new Promise<void>((resolve) => {
+      const t = setTimeout(finish, ms);
+      function finish() {
+        clearTimeout(t);
+        stopping.signal.removeEventListener('abort', finish);
+        wake = () => undefined;
+        resolve();
+      }
+      wake = finish;
+      stopping.signal.addEventListener('abort', finish, { once: true });
+      if (stopping.signal.aborted) finish();
+    });
+
   const loop = async () => {
-    let processed = 0;
     let lastSweep = 0;
     while (!stopping.signal.aborted) {
       if (Date.now() - lastSweep >= sweepMs) {
         lastSweep = Date.now();
         await sweep();
+      }
+      if (active.size >= concurrency) {
+        await waitForRoomOrPoll(sweepMs);
+        continue;
       }
       let job: Job | null = null;
       try {
@@ -109,8 +167,8 @@ export function startWorker(opts: WorkerOptions): WorkerHandle {
         continue;
       }
       if (!job) {
-        if (opts.once && (await pending()) === 0) break;
-        await sleep(pollMs, stopping.signal);
+        if (opts.once && active.size === 0 && (await pending()) === 0) break;
+        await waitForRoomOrPoll(pollMs);
         continue;
       }
       if (stopping.signal.aborted) {
@@ -118,39 +176,15 @@ export function startWorker(opts: WorkerOptions): WorkerHandle {
         if (await releaseJob(db, job.id, workerId).catch(() => false)) line(`job ${job.id} ${job.kind} released back to the queue`);
         break;
       }
-      current = job;
-      jobStop.controller = new AbortController();
-      const t0 = Date.now();
-      line(`job ${job.id} ${job.kind} started (attempt ${job.attempts}/${job.maxAttempts}${job.runId ? `, run ${job.runId}` : ''}) by ${workerId}`);
-      let outcome: RunOutcome | 'error';
-      try {
-        outcome = await runClaimedJob(db, job, {
-          workerId,
-          leaseMs,
-          kinds: opts.kinds,
-          logger,
-          retryBaseMs: opts.retryBaseMs,
-          stopSignal: jobStop.controller.signal,
-        });
-      } catch (err) {
-        // the database went away while recording the outcome: the lease will expire and another
-        // worker (or this one) takes the job again
-        logger.error(`job ${job.id}: could not record the outcome: ${readableMessage(err)}`);
-        outcome = 'error';
-      }
-      const secs = ((Date.now() - t0) / 1000).toFixed(1);
-      const words: Record<RunOutcome | 'error', string> = {
-        succeeded: 'succeeded',
-        retry: 'failed; queued for retry',
-        failed: 'failed (no attempts left)',
-        cancelled: 'stopped (cancelled)',
-        lost: 'stopped (lease lost or released)',
-        error: 'ended with an unrecorded outcome',
-      };
-      line(`job ${job.id} ${job.kind} ${words[outcome]} after ${secs} s`);
-      current = null;
-      processed++;
+      const stop = new AbortController();
+      const claimed = job;
+      const done = execute(claimed, stop).finally(() => {
+        active.delete(claimed.id);
+        wake();
+      });
+      active.set(claimed.id, { job: claimed, stop, done });
     }
+    await Promise.all([...active.values()].map((a) => a.done));
     return { processed };
   };
 
@@ -158,17 +192,17 @@ export function startWorker(opts: WorkerOptions): WorkerHandle {
   return {
     workerId,
     done,
-    current: () => current,
+    current: () => active.values().next().value?.job ?? null,
+    running: () => [...active.values()].map((a) => a.job),
     async stop() {
       stopping.abort();
-      const job = current;
-      if (job) {
+      for (const { job, stop } of [...active.values()]) {
         try {
           if (await releaseJob(db, job.id, workerId)) line(`job ${job.id} ${job.kind} released back to the queue`);
         } catch (err) {
           logger.error(`job ${job.id}: could not release: ${readableMessage(err)}`);
         }
-        jobStop.controller.abort();
+        stop.abort();
       }
     },
   };

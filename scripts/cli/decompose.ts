@@ -1,5 +1,6 @@
 // `quorum decompose FILE --out DIR [...]` – PCA + spatial FastICA of one run; writes z-maps, mean,
 // mask, time courses, spectra, features and summary.json into DIR and prints the summary as JSON.
+import { renameSync, writeFileSync } from 'node:fs';
 import { mkdir, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import { parseArgs } from 'node:util';
@@ -16,7 +17,8 @@ import type { CliCommand } from './index';
 
 const USAGE =
   'usage: quorum decompose FILE --out DIR [--mask FILE] [--components auto|N] [--dim-method iid-mdl|iid-aic|laplace|aic|mdl|variance:F] ' +
-  '[--seed N] [--restarts N] [--drop N] [--no-variance-norm] [--detrend] [--contrast logcosh|exp|cube] [--threads N] ' +
+  '[--seed N] [--restarts N] [--drop N] [--no-variance-norm] [--detrend] [--contrast logcosh|exp|cube] [--tol X] [--max-iter N] [--threads N] ' +
+  '[--progress FILE] ' +
   MOTION_USAGE;
 
 class UsageError extends Error {}
@@ -25,6 +27,34 @@ function integer(name: string, text: string | undefined, min: number): number | 
   if (text === undefined) return undefined;
   if (!/^\d+$/.test(text) || Number(text) < min) throw new UsageError(`--${name} must be a whole number ≥ ${min}; got "${text}".`);
   return Number(text);
+}
+
+function positive(name: string, text: string | undefined): number | undefined {
+  if (text === undefined) return undefined;
+  const v = Number(text);
+  if (!(v > 0) || !Number.isFinite(v)) throw new UsageError(`--${name} must be a positive number; got "${text}".`);
+  return v;
+}
+
+/**
+ * For --progress FILE: writes {stage, percent, detail} as JSON (to a temporary file, then renamed,
+ * so a reader never sees half a file) whenever the stage or the whole percent changes. The
+ * Slurm executor's worker reads it to show the run's progress while the cluster job runs.
+ */
+function progressWriter(file: string | undefined) {
+  if (!file) return undefined;
+  let last = '';
+  return (stage: string, percent: number, detail?: string) => {
+    const key = `${stage} ${Math.floor(percent)}`;
+    if (key === last) return;
+    last = key;
+    try {
+      writeFileSync(`${file}.tmp`, JSON.stringify({ stage, percent, detail }));
+      renameSync(`${file}.tmp`, file);
+    } catch {
+      // progress is a courtesy: a failed write never stops the decomposition
+    }
+  };
 }
 
 function dimMethodOf(text: string | undefined): DimMethod | undefined {
@@ -85,6 +115,9 @@ export const decompose: CliCommand = {
           detrend: { type: 'boolean', default: false },
           contrast: { type: 'string' },
           threads: { type: 'string' },
+          tol: { type: 'string' },
+          'max-iter': { type: 'string' },
+          progress: { type: 'string' },
           ...motionOptions,
         },
       });
@@ -103,6 +136,8 @@ export const decompose: CliCommand = {
         detrend: values.detrend,
         contrast,
         threads: integer('threads', values.threads, 1),
+        tol: positive('tol', values.tol),
+        maxIter: integer('max-iter', values['max-iter'], 1),
       };
 
       const tRead = performance.now();
@@ -119,7 +154,7 @@ export const decompose: CliCommand = {
       const motion = await readMotionOption(values, image.nt);
 
       const readSeconds = (performance.now() - tRead) / 1000;
-      const r = await decomposeRun({ image, mask, motion }, options);
+      const r = await decomposeRun({ image, mask, motion }, options, progressWriter(values.progress));
       const t0 = performance.now();
       await writeDecompositionOutputs(values.out, image.header, r, motion);
       const summary = {

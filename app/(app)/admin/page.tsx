@@ -6,6 +6,8 @@ import { Notice } from '@/components/ui/notice';
 import { Panel } from '@/components/ui/panel';
 import { AdminTabs } from '@/components/admin/admin-tabs';
 import { PeopleTable, type PersonView } from '@/components/admin/people-table';
+import { ExecutorPanel } from '@/components/admin/executor-panel';
+import { executorStatus } from '@/lib/jobs/executors/executor-status';
 
 export const metadata: Metadata = { title: 'Facility' };
 
@@ -21,6 +23,7 @@ export default async function AdminPage() {
     memberships: p.memberships.map((m) => ({ studyId: m.studyId, studyName: m.studyName, studyRole: m.studyRole })),
   }));
   const faults = await recentStorageFaults();
+  const executor = await executorStatus();
   return (
     <div className="flex flex-col gap-6">
       <h1 className="text-xl font-semibold" data-testid="admin-heading">
@@ -39,6 +42,9 @@ export default async function AdminPage() {
       <AdminTabs role={user.role} current="/admin" />
       <Panel title="People">
         <PeopleTable people={people} currentUserId={user.id} />
+      </Panel>
+      <Panel title="Where decompositions run">
+        <ExecutorPanel status={executor} />
       </Panel>
     </div>
   );

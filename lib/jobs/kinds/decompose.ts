@@ -6,7 +6,7 @@
  * assigns raters. A retried or duplicated attempt therefore never leaves two sets of components.
  * Progress stages: reading, masking, pca, ica, features, writing.
  */
-import { readFile } from 'node:fs/promises';
+import { readFile, stat } from 'node:fs/promises';
 import type { Knex } from 'knex';
 import { dropInitialVolumes, parseMotionFile, type MotionOrder, type MotionParams } from '@/lib/decomposition/motion';
 import { decomposeRun, type DecomposeOptions } from '@/lib/decomposition/pipeline';
@@ -26,6 +26,8 @@ import { JobError, PermanentJobError } from '../errors';
 import { decomposePayloadSchema, type DecomposePayload } from '../payloads';
 import { enqueueJob } from '../queue';
 import { defineJobKind } from '../types';
+import { decomposeOnSlurm } from '../executors/decompose-on-slurm';
+import { executorName, slurmSettings } from '../executors/settings';
 
 /** Which of our stages an engine stage (reported when it has finished) leads into. */
 const NEXT_STAGE: Record<string, string> = {
@@ -150,6 +152,33 @@ export const decomposeKind = defineJobKind({
       .where({ id: runId })
       .whereExists(db('jobs').where({ id: ctx.job.id, status: 'running', lease_owner: ctx.workerId }).select(db.raw('1')))
       .update({ status: 'processing', status_message: null });
+    if (executorName() === 'slurm') {
+      // the cluster reads the run from shared storage: the worker only submits, waits and imports
+      let settings;
+      try {
+        settings = slurmSettings();
+      } catch (err) {
+        throw new JobError(`The cluster executor is not configured correctly: ${(err as Error).message}`, { cause: err });
+      }
+      await readStored("run's file", run.file_key, (p) => stat(p));
+      const stored = await decomposeOnSlurm(
+        ctx,
+        settings,
+        {
+          id: runId,
+          studyId: Number(run.study_id),
+          fileKey: run.file_key,
+          maskKey: run.mask_key ?? null,
+          motionKey: run.motion_key ?? null,
+          motionOrder: motionOrderOf(run.motion_order),
+          motionUnits: run.motion_rotation_units ?? 'radians',
+        },
+        options,
+        { stageOf: (s) => NEXT_STAGE[s] ?? s, percentOf: (p) => 5 + p * 0.75, overrides: payload.decompositionOptions },
+      );
+      ctx.logger.info(`run ${runId}: ${stored.k} components from the cluster (decomposition ${stored.decompositionId}, ${stored.assignment.outcome})`);
+      return stored;
+    }
     const image: NiftiImage = await readStored("run's file", run.file_key, (p) => readNiftiFile(p));
     ctx.throwIfStopped();
     let mask: Uint8Array | undefined;
@@ -180,9 +209,16 @@ export const decomposeKind = defineJobKind({
     await ctx.progress('masking', 5);
 
     const started = Date.now();
-    const result = await decomposeRun({ image, mask, motion }, options, (stage, pct) =>
-      ctx.progressSync(NEXT_STAGE[stage] ?? stage, 5 + pct * 0.75),
-    ).catch((err: unknown) => {
+    // ICA reports every iteration: pass on a change of stage, or of a whole percent, not each one
+    let last = '';
+    const result = await decomposeRun({ image, mask, motion }, options, (stage, pct, detail) => {
+      const ours = NEXT_STAGE[stage] ?? stage;
+      const percent = 5 + pct * 0.75;
+      const key = `${ours} ${Math.floor(percent)}`;
+      if (key === last) return;
+      last = key;
+      ctx.progressSync(ours, percent, detail ?? null);
+    }).catch((err: unknown) => {
       throw deterministic(err) ?? err;
     });
     ctx.throwIfStopped();

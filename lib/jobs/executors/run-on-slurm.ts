@@ -1,0 +1,188 @@
+/**
+ * Runs one claimed job's heavy step on Slurm: writes the batch script into the job's folder in
+ * shared storage, submits it (or re-attaches to the submission stored on the job row, so a
+ * restarted worker never submits twice), then polls Slurm every QUORUM_SLURM_POLL_MS while the
+ * runner keeps the lease, reporting the cluster's view (pending with its reason, running on which
+ * node, elapsed, and the decomposition's own stage from the job's progress file) as the job's
+ * progress. Returns when the cluster job COMPLETED; throws the mapped failure otherwise. A job
+ * cancelled in Quorum is cancelled on the cluster (scancel); a worker that stops or loses its
+ * lease leaves the cluster job running for the next worker.
+ */
+import { randomBytes } from 'node:crypto';
+import { mkdir, readFile, rm, writeFile } from 'node:fs/promises';
+import path from 'node:path';
+import { storageRoot } from '@/lib/storage';
+import { JobCancelled, JobError, isStopSignal } from '../errors';
+import type { JobContext } from '../types';
+import { loadTemplate, renderBatchScript, shellQuote } from './batch-script';
+import { clusterFailure, elapsedText, isTerminal, pendingReason } from './cluster-failure';
+import type { SlurmSettings } from './settings';
+import { findJobByName, jobState, sbatch, scancel, type ClusterJobState } from './slurm-commands';
+
+export interface ClusterFolders {
+  /** The job's folder as this worker sees it. */
+  local: string;
+  /** The same folder as the cluster's nodes see it. */
+  cluster: string;
+}
+
+/** The job's folder under the storage root: cluster/job-<id>/. */
+export function clusterFolders(jobId: number, settings: SlurmSettings): ClusterFolders {
+  const rel = path.join('cluster', `job-${jobId}`);
+  return { local: path.join(storageRoot(), rel), cluster: path.posix.join(settings.clusterStorageRoot, rel.split(path.sep).join('/')) };
+}
+
+/** A storage key's path as the cluster sees it. */
+export function clusterPathFor(key: string, settings: SlurmSettings): string {
+  return path.posix.join(settings.clusterStorageRoot, key);
+}
+
+interface ClusterColumns {
+  cluster_name: string | null;
+  cluster_job_id: string | null;
+}
+
+/** Updates the job row's cluster columns while this worker still owns the job. */
+async function record(ctx: JobContext<unknown>, values: Record<string, unknown>): Promise<void> {
+  await ctx.db('jobs').where({ id: ctx.job.id, lease_owner: ctx.workerId, status: 'running' }).update({ ...values, cluster_checked_at: ctx.db.raw('NOW(3)') });
+}
+
+async function lastLines(file: string, n = 5): Promise<string> {
+  const text = await readFile(file, 'utf8').catch(() => '');
+  return text.split('\n').map((l) => l.trim()).filter(Boolean).slice(-n).join(' / ').slice(-600);
+}
+
+function sleep(ms: number, signal: AbortSignal): Promise<void> {
+  return new Promise((resolve) => {
+    if (signal.aborted) return resolve();
+    const done = () => {
+      clearTimeout(t);
+      signal.removeEventListener('abort', done);
+      resolve();
+    };
+    const t = setTimeout(done, ms);
+    signal.addEventListener('abort', done, { once: true });
+  });
+}
+
+/** The engine's progress written by `quorum decompose --progress FILE` on the node, if any. */
+async function nodeProgress(file: string): Promise<{ stage: string; percent: number; detail?: string } | null> {
+  try {
+    const p = JSON.parse(await readFile(file, 'utf8')) as { stage?: unknown; percent?: unknown; detail?: unknown };
+    if (typeof p.stage !== 'string' || typeof p.percent !== 'number') return null;
+    return { stage: p.stage, percent: p.percent, detail: typeof p.detail === 'string' ? p.detail : undefined };
+  } catch {
+    return null;
+  }
+}
+
+export interface SlurmStep {
+  /** Arguments after `quorum` (paths as the cluster sees them); gets the job's cluster folder. */
+  args: (folders: ClusterFolders) => string[];
+  /** Maps the node's progress (engine percent 0..100) into the job's percent. */
+  percentOf?: (enginePercent: number) => number;
+  /** Maps the engine's stage names into the job's. */
+  stageOf?: (engineStage: string) => string;
+}
+
+/** Submits (or re-attaches) and waits for the cluster job; returns the folders and the cluster job id. */
+export async function runOnSlurm(ctx: JobContext<unknown>, settings: SlurmSettings, step: SlurmStep): Promise<{ folders: ClusterFolders; clusterJobId: string }> {
+  const folders = clusterFolders(ctx.job.id, settings);
+  const row = (await ctx.db('jobs').where({ id: ctx.job.id }).first('cluster_name', 'cluster_job_id')) as ClusterColumns | undefined;
+  let clusterJobId = row?.cluster_job_id ?? null;
+  if (!clusterJobId && row?.cluster_name) {
+    // a worker died between sbatch and storing the id: find its submission by the unique name
+    clusterJobId = await findJobByName(row.cluster_name).catch(() => null);
+    if (clusterJobId) await record(ctx, { cluster_job_id: clusterJobId });
+  }
+  if (clusterJobId) {
+    ctx.logger.info(`job ${ctx.job.id}: re-attached to cluster job ${clusterJobId}`);
+  } else {
+    clusterJobId = await submit(ctx, settings, step, folders);
+  }
+
+  const percentOf = step.percentOf ?? ((p: number) => p);
+  const stageOf = step.stageOf ?? ((s: string) => s);
+  let unknown = 0;
+  try {
+    for (;;) {
+      ctx.throwIfStopped();
+      let st: ClusterJobState | null;
+      try {
+        st = await jobState(clusterJobId);
+      } catch (err) {
+        // the controller does not answer: keep the job (and its lease) and ask again
+        await ctx.progress('cluster unreachable', 1, `The cluster does not answer (${(err as Error).message}); asking again.`);
+        await sleep(settings.pollMs, ctx.signal);
+        continue;
+      }
+      if (!st) {
+        unknown++;
+        if (unknown >= 3) {
+          await record(ctx, { cluster_job_id: null, cluster_name: null, cluster_state: 'UNKNOWN' });
+          throw new JobError(`The cluster no longer knows job ${clusterJobId} (purged before Quorum saw it end); it will be submitted again.`);
+        }
+      } else {
+        unknown = 0;
+        const state = st.state.split(' ')[0]!;
+        await record(ctx, { cluster_state: state.slice(0, 32), cluster_reason: st.reason?.slice(0, 255) ?? null, cluster_node: st.node?.slice(0, 255) ?? null, cluster_elapsed_s: st.elapsedSeconds });
+        if (isTerminal(state)) {
+          const failure = clusterFailure(clusterJobId, st, await lastLines(path.join(folders.local, 'stderr.txt')), settings);
+          if (!failure) return { folders, clusterJobId };
+          // the next attempt (if any) submits afresh
+          await record(ctx, { cluster_job_id: null, cluster_name: null });
+          throw failure;
+        }
+        if (state === 'PENDING' || state === 'CONFIGURING' || state === 'REQUEUED' || state === 'SUSPENDED') {
+          await ctx.progress('cluster pending', 1, `Pending on the cluster (job ${clusterJobId}): ${state === 'SUSPENDED' ? 'suspended' : pendingReason(st.reason)}.`);
+        } else {
+          const p = await nodeProgress(path.join(folders.local, 'progress.json'));
+          const where = `running on ${st.node ?? 'the cluster'} for ${elapsedText(st.elapsedSeconds)} (cluster job ${clusterJobId})`;
+          await ctx.progress(p ? stageOf(p.stage) : 'cluster running', p ? percentOf(p.percent) : 3, `${where[0]!.toUpperCase()}${where.slice(1)}${p?.detail ? ` · ${p.detail}` : ''}`);
+        }
+      }
+      await sleep(settings.pollMs, ctx.signal);
+    }
+  } catch (err) {
+    if (err instanceof JobCancelled || (isStopSignal(err) && ctx.signal.reason instanceof JobCancelled)) {
+      await scancel(clusterJobId).then(
+        () => ctx.logger.info(`job ${ctx.job.id}: cancelled cluster job ${clusterJobId}`),
+        (e: unknown) => ctx.logger.warn(`job ${ctx.job.id}: scancel ${clusterJobId} failed: ${(e as Error).message}`),
+      );
+      await ctx.db('jobs').where({ id: ctx.job.id }).update({ cluster_state: 'CANCELLED', cluster_checked_at: ctx.db.raw('NOW(3)') });
+    }
+    throw err;
+  }
+}
+
+async function submit(ctx: JobContext<unknown>, settings: SlurmSettings, step: SlurmStep, folders: ClusterFolders): Promise<string> {
+  const name = `quorum-j${ctx.job.id}-${randomBytes(4).toString('hex')}`;
+  await rm(folders.local, { recursive: true, force: true });
+  await mkdir(folders.local, { recursive: true });
+  const command = ['npm', 'run', '-s', 'quorum', '--', ...step.args(folders)].map(shellQuote).join(' ');
+  const script = renderBatchScript(await loadTemplate(settings.template), {
+    job_name: name,
+    partition: settings.partition,
+    account: settings.account,
+    time: settings.time,
+    cpus: String(settings.cpus),
+    mem: settings.mem,
+    stdout: path.posix.join(folders.cluster, 'stdout.txt'),
+    stderr: path.posix.join(folders.cluster, 'stderr.txt'),
+    workdir: shellQuote(folders.cluster),
+    quorum_home: shellQuote(settings.clusterHome),
+    setup: settings.setup.join('\n'),
+    command,
+  });
+  const scriptPath = path.join(folders.local, 'job.sh');
+  await writeFile(scriptPath, script, { mode: 0o755 });
+  // the name first, so a worker that dies inside sbatch leaves a trace the next one can find
+  await record(ctx, { executor: 'slurm', cluster_name: name, cluster_job_id: null, cluster_state: 'SUBMITTING', cluster_reason: null, cluster_node: null, cluster_elapsed_s: null });
+  ctx.throwIfStopped();
+  const id = await sbatch(scriptPath).catch((err: unknown) => {
+    throw new JobError(`The cluster refused the job: ${(err as Error).message}`, { cause: err });
+  });
+  await record(ctx, { cluster_job_id: id, cluster_state: 'PENDING' });
+  ctx.logger.info(`job ${ctx.job.id}: submitted as cluster job ${id} (${name})`);
+  return id;
+}
