@@ -4,6 +4,7 @@
  */
 import { z } from 'zod';
 import { denoisePayloadSchema } from '@/lib/denoise/payload';
+import { scoreSuggestionsPayloadSchema, trainSuggestionsPayloadSchema } from '@/lib/suggestions/payload';
 import {
   notifyAssignmentsPayloadSchema,
   notifyOverduePayloadSchema,
@@ -47,6 +48,8 @@ export const jobPayloadSchemas = {
   'notify-assignments': notifyAssignmentsPayloadSchema,
   'notify-votes-complete': notifyVotesCompletePayloadSchema,
   'notify-overdue': notifyOverduePayloadSchema,
+  'train-suggestions': trainSuggestionsPayloadSchema,
+  'score-suggestions': scoreSuggestionsPayloadSchema,
 } as const;
 
 export type JobKindName = keyof typeof jobPayloadSchemas;

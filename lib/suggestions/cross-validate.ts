@@ -8,7 +8,6 @@
  * Every reported figure (accuracy, κ, AC1, noise sensitivity and specificity, calibration) is computed
  * from the out-of-fold predictions at the operating point P(noise) ≥ 0.5.
  */
-import { RandomForestClassifier } from 'ml-random-forest';
 import { scoreAgainstReference, type CalibrationScore } from '@/lib/calibration/score';
 import { columnNames, defineFeatures, toRow, type RawFeatures } from './feature-vector';
 import { fitModel } from './fit-model';
@@ -91,10 +90,7 @@ export function calibrationBins(p: readonly number[], y: readonly number[], bins
 function importanceOf(model: TrainedModel, columns: string[]): { feature: string; weight: number }[] {
   let raw: number[];
   if (model.spec.kind === 'logistic' && 'logistic' in model) raw = model.logistic.coefficients.map(Math.abs);
-  else {
-    // ml-random-forest's gini importance (normalised per tree, averaged)
-    raw = (RandomForestClassifier.load((model as unknown as { forest: never }).forest) as unknown as { featureImportance(): number[] }).featureImportance();
-  }
+  else raw = (model as Extract<TrainedModel, { importance: number[] }>).importance; // gini importance (normalised per tree, averaged)
   const total = raw.reduce((s, v) => s + (Number.isFinite(v) ? v : 0), 0) || 1;
   return columns.map((feature, j) => ({ feature, weight: (Number.isFinite(raw[j]) ? raw[j]! : 0) / total })).sort((a, b) => b.weight - a.weight);
 }

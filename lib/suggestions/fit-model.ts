@@ -18,5 +18,6 @@ export function fitModel(spec: ModelSpec, X: number[][], y: number[]): TrainedMo
     treeOptions: { maxDepth: spec.maxDepth, minNumSamples: 3 },
   } as never);
   forest.train(X, y);
-  return { spec, forest: JSON.parse(JSON.stringify(forest.toJSON())) };
+  const importance = (forest as unknown as { featureImportance(): number[] }).featureImportance();
+  return { spec, forest: JSON.parse(JSON.stringify(forest.toJSON())), importance };
 }

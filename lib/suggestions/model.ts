@@ -20,7 +20,7 @@ export type ModelSpec = LogisticSpec | ForestSpec;
 
 export type TrainedModel =
   | { spec: LogisticSpec; standardise: { mean: number[]; sd: number[] }; logistic: LogisticModel }
-  | { spec: ForestSpec; forest: unknown };
+  | { spec: ForestSpec; forest: unknown; /** Gini importance per column (ml-random-forest featureImportance, at fit time: the saved trees lack sample counts). */ importance: number[] };
 
 /** The exported model: what it predicts, from what, how it was chosen. */
 export type SuggestionModelJson = {

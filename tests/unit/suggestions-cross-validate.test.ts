@@ -96,3 +96,16 @@ describe('trainSuggestionModel', () => {
     expect(() => trainSuggestionModel(rows(3, 5).map((r) => ({ ...r, label: 'noise' as const })))).toThrow(/both signal and noise/);
   });
 });
+
+describe('feature importance', () => {
+  it('the forest ranks the one informative feature first and its weights sum to 1', () => {
+    const rng = createPrng(9);
+    const data: TrainingRow[] = Array.from({ length: 160 }, (_, i) => {
+      const noise = i % 2 === 0;
+      return { subject: `s${i % 8}`, label: noise ? 'noise' : 'signal', features: { spikeScore: (noise ? 5 : 2) + rng.next(), kurtosis: rng.next(), skewness: rng.next() } };
+    });
+    const { report } = trainSuggestionModel(data, { candidates: [{ kind: 'forest', trees: 12, maxDepth: 4, maxFeatures: 0.7, seed: 1 }] });
+    expect(report.importance[0]!.feature).toBe('spikeScore');
+    expect(report.importance.reduce((s, f) => s + f.weight, 0)).toBeCloseTo(1, 9);
+  });
+});

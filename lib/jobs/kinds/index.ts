@@ -5,6 +5,8 @@ import { denoiseKind } from './denoise';
 import { notifyAssignmentsKind } from './notify-assignments';
 import { notifyVotesCompleteKind } from './notify-votes-complete';
 import { notifyOverdueKind } from './notify-overdue';
+import { scoreSuggestionsKind } from './score-suggestions';
+import { trainSuggestionsKind } from './train-suggestions';
 
 export const jobKinds: Readonly<Record<string, JobKind>> = {
   [decomposeKind.kind]: decomposeKind as unknown as JobKind,
@@ -12,4 +14,6 @@ export const jobKinds: Readonly<Record<string, JobKind>> = {
   [notifyAssignmentsKind.kind]: notifyAssignmentsKind as unknown as JobKind,
   [notifyVotesCompleteKind.kind]: notifyVotesCompleteKind as unknown as JobKind,
   [notifyOverdueKind.kind]: notifyOverdueKind as unknown as JobKind,
+  [trainSuggestionsKind.kind]: trainSuggestionsKind as unknown as JobKind,
+  [scoreSuggestionsKind.kind]: scoreSuggestionsKind as unknown as JobKind,
 };

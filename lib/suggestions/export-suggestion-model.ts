@@ -1,0 +1,22 @@
+/**
+ * The exported suggestion model: the model JSON (coefficients or trees, feature definitions with
+ * the imputation), its version, the releases it learnt from and its cross-validated report.
+ * The same document goes into the release ZIP (suggestion-model.json).
+ */
+import 'server-only';
+import type { Role } from '@/lib/auth/roles';
+import { findStudyAccess } from '@/lib/db/queries/study-access';
+import { activeSuggestionModel, type StoredModel } from '@/lib/db/queries/suggestions';
+import { notFound } from '@/lib/errors';
+
+export function suggestionModelDocument(m: StoredModel) {
+  return { studyId: m.studyId, version: m.version, createdAt: m.createdAt, training: m.training, report: m.report, ...m.model };
+}
+
+export async function exportSuggestionModel({ user, studyId }: { user: { id: number; role: Role }; studyId: number }) {
+  const access = await findStudyAccess({ user, studyId });
+  if (!access) throw notFound('The study');
+  const m = await activeSuggestionModel({ studyId });
+  if (!m) throw notFound('A trained suggestion model');
+  return { fileName: `study-${studyId}_suggestion-model-v${m.version}.json`, json: suggestionModelDocument(m) };
+}
