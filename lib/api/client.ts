@@ -28,3 +28,4 @@ export const getJson = <T>(url: string) => call<T>('GET', url);
 export const postJson = <T>(url: string, body: unknown) => call<T>('POST', url, body);
 export const putJson = <T>(url: string, body: unknown) => call<T>('PUT', url, body);
 export const deleteJson = <T>(url: string) => call<T>('DELETE', url);
+export const patchJson = <T>(url: string, body: unknown) => call<T>('PATCH', url, body);

@@ -6,12 +6,10 @@
 import 'server-only';
 import type { Role } from '@/lib/auth/roles';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
-import { activeSuggestionModel, type StoredModel } from '@/lib/db/queries/suggestions';
+import { activeSuggestionModel } from '@/lib/db/queries/suggestions';
+import { suggestionModelDocument } from './model-document';
 import { notFound } from '@/lib/errors';
 
-export function suggestionModelDocument(m: StoredModel) {
-  return { studyId: m.studyId, version: m.version, createdAt: m.createdAt, training: m.training, report: m.report, ...m.model };
-}
 
 export async function exportSuggestionModel({ user, studyId }: { user: { id: number; role: Role }; studyId: number }) {
   const access = await findStudyAccess({ user, studyId });

@@ -6,9 +6,8 @@
  */
 import 'server-only';
 import { findAssignedRun } from '@/lib/db/queries/desk';
-import { suggestionSettings, suggestionsAfterVotes, type RaterSuggestion } from '@/lib/db/queries/suggestions';
-
-export type RaterSuggestionsPayload = { enabled: boolean; modelVersion: number | null; suggestions: RaterSuggestion[] };
+import { suggestionSettings, suggestionsAfterVotes } from '@/lib/db/queries/suggestions';
+import type { RaterSuggestionsPayload } from './types';
 
 export async function showSuggestions({ user, runId }: { user: { id: number }; runId: number }): Promise<RaterSuggestionsPayload> {
   const run = await findAssignedRun({ user, runId });

@@ -14,8 +14,9 @@ vi.mock('next-auth', async (importOriginal) => ({
   getServerSession: vi.fn(async () => currentSession()),
 }));
 
-const { useTempUploads, createStudyWithRaters, createUser } = await import('./helpers/factories');
-const uploads = await useTempUploads();
+const factories = await import('./helpers/factories');
+const { createStudyWithRaters, createUser } = factories;
+const uploads = await factories.useTempUploads();
 const { db, closeDb, parseJson } = await import('@/lib/db/knex');
 const { claimJob } = await import('@/lib/jobs');
 const { jobKinds } = await import('@/lib/jobs/kinds');
