@@ -1,4 +1,5 @@
 import 'server-only';
+import { gateVerdict, isGated, type CalibrationThreshold, type GateVerdict } from '@/lib/calibration/gate';
 import type { Knex } from 'knex';
 import { bidsName } from '@/lib/bids';
 import { scoreAgainstReference, type CalibrationScore } from '@/lib/calibration/score';
@@ -308,4 +309,22 @@ export async function myCalibration({ user, studyId }: { user: Caller; studyId: 
   const { score, submittedRuns } = await scoreRater({ studyId, userId: user.id });
   const cert = await db('rater_certifications').where({ study_id: studyId, user_id: user.id }).first('passed', 'certified_at as certifiedAt');
   return { submittedRuns, score, certification: cert ? { passed: Boolean(cert.passed), certifiedAt: cert.certifiedAt ?? null } : null };
+}
+
+/** The study's calibration threshold (both null: no gate). */
+export async function calibrationThreshold({ studyId }: { studyId: number }, trx: Knex | Knex.Transaction = db): Promise<CalibrationThreshold> {
+  const s = await trx('studies').where({ id: studyId }).first('calibration_min_ac1 as minAc1', 'calibration_min_sensitivity as minSensitivity');
+  return { minAc1: s?.minAc1 == null ? null : Number(s.minAc1), minSensitivity: s?.minSensitivity == null ? null : Number(s.minSensitivity) };
+}
+
+export async function setCalibrationThreshold({ studyId, threshold }: { studyId: number; threshold: CalibrationThreshold }, trx: Knex | Knex.Transaction = db): Promise<void> {
+  await trx('studies').where({ id: studyId }).update({ calibration_min_ac1: threshold.minAc1, calibration_min_sensitivity: threshold.minSensitivity });
+}
+
+/** Whether the rater may get live runs of the study under its calibration threshold, and why not. */
+export async function calibrationGate({ studyId, raterId }: { studyId: number; raterId: number }, trx: Knex | Knex.Transaction = db): Promise<GateVerdict> {
+  const t = await calibrationThreshold({ studyId }, trx);
+  if (!isGated(t)) return gateVerdict(null, t);
+  const { score } = await scoreRater({ studyId, userId: raterId }, trx);
+  return gateVerdict(score, t);
 }
