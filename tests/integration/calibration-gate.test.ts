@@ -39,7 +39,8 @@ beforeAll(async () => {
   s = await createStudyWithRaters(db, { raters: 3, raters_per_run: 3 });
   const [a, b] = s.raterIds as [number, number, number];
   const cal = await readyRun(true);
-  for (const [i, id] of cal.ids.entries()) await db('reference_labels').insert({ component_id: id, label: REFERENCE[i], set_by: s.leadId });
+  // reference kinds: two motion components and one noise component without a kind
+  for (const [i, id] of cal.ids.entries()) await db('reference_labels').insert({ component_id: id, label: REFERENCE[i], noise_kind: i < 2 ? 'motion' : null, set_by: s.leadId });
   for (const [rater, labels] of [[a, REFERENCE], [b, REFERENCE.map(() => 'signal')]] as const) {
     await db('assignments').insert({ run_id: cal.runId, rater_id: rater, submitted_at: db.fn.now(3) });
     for (const [i, id] of cal.ids.entries()) await db('votes').insert({ component_id: id, run_id: cal.runId, rater_id: rater, label: labels[i] });
@@ -71,6 +72,16 @@ describe('calibration threshold', () => {
     await expect(addRaterToRun({ user: lead as never, runId: live.runId, raterId: s.raterIds[1]! })).rejects.toThrow(/noise sensitivity 0\.00 is below 0\.85/);
     await expect(addRaterToRun({ user: lead as never, runId: live.runId, raterId: s.raterIds[2]! })).rejects.toThrow(/has not submitted a calibration run/);
     await expect(addRaterToRun({ user: lead as never, runId: live.runId, raterId: s.raterIds[0]! })).resolves.toMatchObject({ raterId: s.raterIds[0] });
+  });
+
+  it('the lead’s overview shows each rater’s gate and noise sensitivity per reference kind', async () => {
+    const { listCalibration } = await import('@/lib/db/queries/calibration');
+    const o = await listCalibration({ user: { id: s.leadId, role: 'lead' } as never, studyId: s.studyId });
+    expect(o.threshold).toEqual({ minAc1: 0.8, minSensitivity: 0.85 });
+    const b = o.raters.find((r) => r.id === s.raterIds[1])!;
+    expect(b.gate).toMatchObject({ gated: true, passes: false });
+    expect(b.byKind).toEqual([{ kind: 'motion', n: 2, detected: 0, sensitivity: { value: 0, n: 2 } }, { kind: 'unspecified', n: 1, detected: 0, sensitivity: { value: 0, n: 1 } }]);
+    expect(o.raters.find((r) => r.id === s.raterIds[0])!.gate).toEqual({ gated: true, passes: true, reason: null });
   });
 
   it('without a threshold every rater is eligible again', async () => {

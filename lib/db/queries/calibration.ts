@@ -1,8 +1,9 @@
 import 'server-only';
-import { gateVerdict, isGated, type CalibrationThreshold, type GateVerdict } from '@/lib/calibration/gate';
 import type { Knex } from 'knex';
 import { bidsName } from '@/lib/bids';
 import { scoreAgainstReference, type CalibrationScore } from '@/lib/calibration/score';
+import { gateVerdict, isGated, type CalibrationThreshold, type GateVerdict } from '@/lib/calibration/gate';
+import { sensitivityByKind, type KindSensitivity } from '@/lib/calibration/per-kind';
 import { db, parseJson, toJson } from '@/lib/db/knex';
 import { AppError, notFound } from '@/lib/errors';
 import { recordAudit } from './audit';
@@ -35,6 +36,10 @@ export type CalibrationRater = {
   submittedRuns: number;
   /** The score now, from their submitted calibration runs. */
   score: CalibrationScore;
+  /** Noise sensitivity per reference noise kind (which kinds the rater misses). */
+  byKind: KindSensitivity[];
+  /** May the rater get live runs under the study's calibration threshold, and why not. */
+  gate: GateVerdict;
   certification: CalibrationCertification | null;
 };
 export type CalibrationOverview = {
@@ -45,6 +50,7 @@ export type CalibrationOverview = {
   /** Ready runs of the study that could be marked as calibration runs. */
   candidates: Array<{ runId: number; runName: string }>;
   raters: CalibrationRater[];
+  threshold: CalibrationThreshold;
 };
 
 const notLead = () => new AppError('forbidden', 'Only a lead of this study (or the facility admin) manages its calibration set.');
@@ -112,8 +118,8 @@ export async function scoreRater({ studyId, userId }: { studyId: number; userId:
     .join('reference_labels as rl', 'rl.component_id', 'c.id')
     .where({ 'r.study_id': studyId, 'r.is_calibration': true, 'd.is_current': true, 'v.rater_id': userId })
     .whereNotNull('a.submitted_at')
-    .select('v.label as rater', 'rl.label as reference', 'r.id as runId')) as Array<{ rater: string; reference: string; runId: number }>;
-  return { score: scoreAgainstReference(rows, categories), submittedRuns: new Set(rows.map((r) => Number(r.runId))).size };
+    .select('v.label as rater', 'rl.label as reference', 'rl.noise_kind as referenceKind', 'r.id as runId')) as Array<{ rater: string; reference: string; referenceKind: string | null; runId: number }>;
+  return { score: scoreAgainstReference(rows, categories), byKind: sensitivityByKind(rows), submittedRuns: new Set(rows.map((r) => Number(r.runId))).size };
 }
 
 /** The study's calibration runs, runs that could become one, and its raters with their scores and certification (leads, admins). */
@@ -167,20 +173,23 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
     .orderBy('u.name')
     .select('u.id', 'u.name', 'u.active', 'rc.id as certId', 'rc.passed', 'rc.certified_by as certifiedBy', 'rc.certified_at as certifiedAt', 'rc.scores');
   const raters: CalibrationRater[] = [];
+  const threshold = await calibrationThreshold({ studyId });
   for (const m of members) {
-    const { score, submittedRuns } = await scoreRater({ studyId, userId: Number(m.id) });
+    const { score, byKind, submittedRuns } = await scoreRater({ studyId, userId: Number(m.id) });
     raters.push({
       id: Number(m.id),
       name: String(m.name),
       active: Boolean(m.active),
       submittedRuns,
       score,
+      byKind,
+      gate: gateVerdict(submittedRuns ? score : null, threshold),
       certification: m.certId
         ? { passed: Boolean(m.passed), certifiedBy: m.certifiedBy == null ? null : Number(m.certifiedBy), certifiedAt: m.certifiedAt ?? null, scores: parseJson<CalibrationScore>(m.scores, null) }
         : null,
     });
   }
-  return { studyName: access.name, categories, noiseKinds, runs, candidates, raters };
+  return { studyName: access.name, categories, noiseKinds, runs, candidates, raters, threshold };
 }
 
 /** Marks a ready, unreleased run of the study as a calibration run (it leaves agreement and releases). */
@@ -306,9 +315,10 @@ export async function certifyRater({ user, studyId, userId, passed, ip = null }:
 export async function myCalibration({ user, studyId }: { user: Caller; studyId: number }) {
   const access = await findStudyAccess({ user, studyId });
   if (!access) throw notFound('The study');
-  const { score, submittedRuns } = await scoreRater({ studyId, userId: user.id });
+  const { score, byKind, submittedRuns } = await scoreRater({ studyId, userId: user.id });
   const cert = await db('rater_certifications').where({ study_id: studyId, user_id: user.id }).first('passed', 'certified_at as certifiedAt');
-  return { submittedRuns, score, certification: cert ? { passed: Boolean(cert.passed), certifiedAt: cert.certifiedAt ?? null } : null };
+  const gate = gateVerdict(submittedRuns ? score : null, await calibrationThreshold({ studyId }));
+  return { submittedRuns, score, byKind, gate, certification: cert ? { passed: Boolean(cert.passed), certifiedAt: cert.certifiedAt ?? null } : null };
 }
 
 /** The study's calibration threshold (both null: no gate). */
