@@ -5,6 +5,7 @@ import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/notice';
 import { Panel } from '@/components/ui/panel';
 import { formatStat } from '@/components/agreement/format';
+import { ThresholdForm } from './threshold-form';
 import { useCalibration, useCalibrationAction, type CalibrationRaterView, type CalibrationRunView, type CalibrationView } from './use-calibration';
 
 const input = 'rounded border border-line-strong bg-ground-sunken px-2 py-1 text-xs text-ink';
@@ -111,6 +112,9 @@ export function CalibrationClient({ studyId, initial }: { studyId: number; initi
       </Panel>
 
       <Panel title="Raters">
+        <div className="mb-3">
+          <ThresholdForm studyId={studyId} threshold={data.threshold ?? { minAc1: null, minSensitivity: null }} />
+        </div>
         {data.raters.length ? (
           <table className="w-full text-sm">
             <thead className="text-left text-xs text-ink-faint">
@@ -123,6 +127,7 @@ export function CalibrationClient({ studyId, initial }: { studyId: number; initi
                 <th className="pb-1 pr-3 text-right font-medium">Gwet&apos;s AC1</th>
                 <th className="pb-1 pr-3 text-right font-medium">Noise sens.</th>
                 <th className="pb-1 pr-3 text-right font-medium">Noise spec.</th>
+                <th className="pb-1 pr-3 font-medium">Live runs</th>
                 <th className="pb-1 pr-3 font-medium">Certification</th>
               </tr>
             </thead>
@@ -142,6 +147,14 @@ export function CalibrationClient({ studyId, initial }: { studyId: number; initi
                     {cell(s.gwetAC1)}
                     {cell(s.noise.sensitivity)}
                     {cell(s.noise.specificity)}
+                    <td className="py-2 pr-3 text-xs" data-testid="calibration-gate">
+                      {!r.gate?.gated ? <span className="text-ink-faint">no threshold</span> : r.gate.passes ? <span className="text-lumen-strong">eligible</span> : <span className="text-alarm">not yet: {r.gate.reason}</span>}
+                      {r.byKind?.length ? (
+                        <span className="block text-ink-faint" data-testid="calibration-by-kind">
+                          by kind: {r.byKind.map((k) => `${k.kind} ${k.detected}/${k.n}`).join(', ')}
+                        </span>
+                      ) : null}
+                    </td>
                     <td className="py-2 pr-3">
                       <div className="flex flex-wrap items-center gap-2">
                         <span className={`text-xs ${r.certification?.passed ? 'text-lumen-strong' : r.certification ? 'text-alarm' : 'text-ink-faint'}`} data-testid="calibration-certification">

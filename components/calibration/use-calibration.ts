@@ -3,6 +3,8 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { StatResult } from '@/lib/agreement';
 import { getJson, postJson } from '@/lib/api/client';
+import type { CalibrationThreshold, GateVerdict } from '@/lib/calibration/gate';
+import type { KindSensitivity } from '@/lib/calibration/per-kind';
 
 /** What GET /api/studies/:id/calibration returns (dates as ISO strings, as JSON carries them). */
 export type CalibrationScoreView = {
@@ -20,6 +22,8 @@ export type CalibrationRaterView = {
   active: boolean;
   submittedRuns: number;
   score: CalibrationScoreView;
+  byKind?: KindSensitivity[];
+  gate?: GateVerdict;
   certification: { passed: boolean; certifiedAt: string | null } | null;
 };
 export type CalibrationView = {
@@ -27,6 +31,7 @@ export type CalibrationView = {
   runs: CalibrationRunView[];
   candidates: Array<{ runId: number; runName: string }>;
   raters: CalibrationRaterView[];
+  threshold?: CalibrationThreshold;
 };
 
 export const calibrationKey = (studyId: number) => ['study-calibration', studyId] as const;

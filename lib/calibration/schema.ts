@@ -31,3 +31,8 @@ export const assignCalibrationSchema = z.object({ raterId: id('a rater') }).stri
 
 /** POST /api/studies/:id/calibration/certifications — the lead's verdict on a rater (scores stored with it). */
 export const certifySchema = z.object({ userId: id('a rater'), passed: z.boolean({ message: 'Say whether the rater passed.' }) }).strict();
+
+const share = (what: string) => z.number({ message: `${what}: a number from 0 to 1, or null for no threshold.` }).min(0, { message: `${what} is at least 0.` }).max(1, { message: `${what} is at most 1.` }).nullable();
+
+/** PUT /api/studies/:id/calibration/threshold — what a rater must reach on the calibration set before live runs. */
+export const calibrationThresholdSchema = z.object({ minAc1: share('Minimum AC1'), minSensitivity: share('Minimum noise sensitivity') }).strict();

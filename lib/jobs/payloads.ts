@@ -4,6 +4,7 @@
  */
 import { z } from 'zod';
 import { denoisePayloadSchema } from '@/lib/denoise/payload';
+import { scoreSuggestionsPayloadSchema, trainSuggestionsPayloadSchema } from '@/lib/suggestions/payload';
 import {
   notifyAssignmentsPayloadSchema,
   notifyOverduePayloadSchema,
@@ -49,6 +50,8 @@ export const jobPayloadSchemas = {
   'notify-votes-complete': notifyVotesCompletePayloadSchema,
   'notify-overdue': notifyOverduePayloadSchema,
   'send-mail': sendMailPayloadSchema,
+  'train-suggestions': trainSuggestionsPayloadSchema,
+  'score-suggestions': scoreSuggestionsPayloadSchema,
 } as const;
 
 export type JobKindName = keyof typeof jobPayloadSchemas;

@@ -30,6 +30,8 @@ import { toTsv } from '@/lib/exports/tabular';
 import { EXPORT_FORMAT, EXPORT_FORMAT_SIDECAR } from '@/lib/exports/format';
 import { childKey, ensureDirFor, newKey, readStream, removeKey } from '@/lib/storage';
 import { SOFTWARE_VERSION } from './version';
+import { activeSuggestionModel } from '@/lib/db/queries/suggestions';
+import { suggestionModelDocument } from '@/lib/suggestions/model-document';
 
 export const BOOTSTRAP = { resamples: 1000, seed: 1 } as const;
 
@@ -216,6 +218,8 @@ async function writeReleaseFiles(
   const nameOf = (id: string) => `${codeOf.get(Number(id)) ?? id} (${names.get(Number(id)) ?? 'rater'})`;
   await put('', { name: `${prefix}_desc-agreement_report.json`, content: js({ Description: 'Inter-rater agreement of the released runs (statistics with percentile-bootstrap 95% CIs over components).', bootstrap: BOOTSTRAP, raterCodes: Object.fromEntries(raterIds.map((id) => [String(id), codeOf.get(id)])), report, ...sidecarMeta }) }, null);
   await put('', { name: `${prefix}_desc-agreement_report.csv`, content: agreementReportCsv(report, nameOf) }, null);
+  const suggestionModel = await activeSuggestionModel({ studyId }, trx);
+  if (suggestionModel) await put('', { name: `${prefix}_desc-suggestions_model.json`, content: js({ ...suggestionModelDocument(suggestionModel), ...sidecarMeta }) }, null);
   await put('', { name: `${prefix}_desc-methods_report.md`, content: methodsMarkdown(methodsInputOf(o.runs, o.study, report, await loadRatingFacts({ studyId, runIds: o.runs.map((r) => r.runId) }))) }, null);
 
   return {

@@ -3,13 +3,16 @@
  * work: the study's active rater members whose account may vote (VOTING_ROLES) with the fewest open (unsubmitted) assignments in any
  * study come first, ties by user id. When the study certifies raters (rater_certifications has
  * rows for it), raters who passed come before the others, who are used only to fill the protocol's
- * count. Greedy choice of the least-loaded keeps every rater's open count within one of the others'
+ * count. Under the study's calibration threshold (lib/calibration/gate.ts) raters who have not
+ * reached it are left out altogether. Greedy choice of the least-loaded keeps every rater's open count within one of the others'
  * while nobody submits (tests/integration/assignments-balance.test.ts). Framework-free (takes a Knex or a transaction) so the worker
  * and route handlers share it; a people/notifications module may wrap it (e.g. to send mail for
  * the `created` assignments).
  */
 import type { Knex } from 'knex';
 import { VOTING_ROLES } from '@/lib/auth/permissions';
+import { calibrationGate, calibrationThreshold } from '@/lib/db/queries/calibration';
+import { isGated } from '@/lib/calibration/gate';
 
 export interface AssignRatersResult {
   /** 'assigned', or why nothing was done. */
@@ -46,7 +49,14 @@ export async function assignRaters(
     .orderBy('m.user_id')
     .forUpdate();
   if (members.length === 0) return { outcome: 'no_raters', raterIds: [], wanted, short: wanted };
-  const ids = members.map((m: { user_id: number }) => Number(m.user_id));
+  let ids = members.map((m: { user_id: number }) => Number(m.user_id));
+  // Under a calibration threshold, raters who have not reached it get no live runs.
+  if (isGated(await calibrationThreshold({ studyId: Number(run.study_id) }, db))) {
+    const passing: number[] = [];
+    for (const id of ids) if ((await calibrationGate({ studyId: Number(run.study_id), raterId: id }, db)).passes) passing.push(id);
+    ids = passing;
+    if (ids.length === 0) return { outcome: 'no_raters', raterIds: [], wanted, short: wanted };
+  }
   const open = await db('assignments')
     .select('rater_id')
     .count({ n: '*' })

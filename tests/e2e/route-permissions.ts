@@ -37,6 +37,8 @@ export const ROUTES: RouteCase[] = [
   { file: 'studies/[id]/calibration/runs/[runId]/references/route.ts', method: 'POST', url: '/api/studies/999999/calibration/runs/999999/references', allowed: ['admin', 'lead'] },
   { file: 'studies/[id]/calibration/runs/[runId]/raters/route.ts', method: 'POST', url: '/api/studies/999999/calibration/runs/999999/raters', allowed: ['admin', 'lead'] },
   { file: 'studies/[id]/calibration/certifications/route.ts', method: 'POST', url: '/api/studies/999999/calibration/certifications', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/calibration/threshold/route.ts', method: 'GET', url: '/api/studies/999999/calibration/threshold', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/calibration/threshold/route.ts', method: 'PUT', url: '/api/studies/999999/calibration/threshold', allowed: ['admin', 'lead'] },
   { file: 'studies/[id]/calibration/me/route.ts', method: 'GET', url: '/api/studies/1/calibration/me', allowed: ['admin', 'rater'] },
   { file: 'reconcile/runs/[runId]/components/route.ts', method: 'GET', url: '/api/reconcile/runs/999999/components', allowed: ['admin', 'lead'] },
   { file: 'reconcile/runs/[runId]/files/[file]/route.ts', method: 'GET', url: '/api/reconcile/runs/999999/files/mean.nii.gz', allowed: ['admin', 'lead'] },
@@ -74,6 +76,12 @@ export const ROUTES: RouteCase[] = [
   { file: 'runs/[id]/votes/route.ts', method: 'GET', url: '/api/runs/999999/votes', allowed: ['admin', 'rater'] },
   { file: 'runs/[id]/votes/[componentId]/route.ts', method: 'PUT', url: '/api/runs/999999/votes/1', allowed: ['admin', 'rater'] },
   { file: 'runs/[id]/submit/route.ts', method: 'POST', url: '/api/runs/999999/submit', allowed: ['admin', 'rater'] },
+  { file: 'runs/[id]/suggestions/route.ts', method: 'GET', url: '/api/runs/999999/suggestions', allowed: ['admin', 'rater'] },
+  // learned suggestions: settings and report (readers of agreement), training and switching on (leads)
+  { file: 'studies/[id]/suggestions/route.ts', method: 'GET', url: '/api/studies/999999/suggestions', allowed: ['admin', 'lead', 'observer'] },
+  { file: 'studies/[id]/suggestions/route.ts', method: 'PATCH', url: '/api/studies/999999/suggestions', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/suggestions/train/route.ts', method: 'POST', url: '/api/studies/999999/suggestions/train', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/suggestions/model/route.ts', method: 'GET', url: '/api/studies/999999/suggestions/model', allowed: ['admin', 'lead', 'observer'] },
   { file: 'runs/[id]/desk/route.ts', method: 'PUT', url: '/api/runs/999999/desk', allowed: ['admin', 'rater'] },
   { file: 'runs/[id]/files/[file]/route.ts', method: 'GET', url: '/api/runs/999999/files/components.nii.gz', allowed: ['admin', 'rater'] },
   // releases and exports (addresses of rows that do not exist: allowed roles get 404, never a write)

@@ -6,6 +6,7 @@ import { db } from '@/lib/db/knex';
 import { AppError, notFound } from '@/lib/errors';
 import { afterAssignmentsCreated, ensureDailyOverdue } from '@/lib/notifications/enqueue';
 import { recordAudit } from './audit';
+import { calibrationGate } from './calibration';
 import { findStudyAccess } from './study-access';
 import { leadsStudy, VOTING_ROLES } from '@/lib/auth/permissions';
 import type { UserRow } from './users';
@@ -149,6 +150,15 @@ export async function listStudyAssignments({ user, studyId }: { user: Caller; st
   };
 }
 
+
+/** Refuses a live run to a rater under the study's calibration threshold, saying why. */
+async function requireCalibrated(trx: Knex.Transaction, { studyId, runId, rater, raterId }: { studyId: number; runId: number; rater: { name: string }; raterId: number }) {
+  const r = await trx('runs').where({ id: runId }).first('is_calibration');
+  if (r?.is_calibration) return;
+  const gate = await calibrationGate({ studyId, raterId }, trx);
+  if (!gate.passes) throw new AppError('conflict', `${rater.name} cannot take live runs yet: ${gate.reason} (the study's calibration threshold). Assign them a calibration run, or change the threshold on the calibration page.`);
+}
+
 /**
  * Adds a rater to a ready run (optionally with a due date). The run's decisions are recomputed at
  * once, since the number of expected votes grew (a run whose decisions were complete goes back to
@@ -162,6 +172,7 @@ export async function addRaterToRun({ user, runId, raterId, dueAt, ip }: { user:
     if (await trx('assignments').where({ run_id: runId, rater_id: raterId }).first('id')) {
       throw new AppError('conflict', `${rater.name} is already assigned to ${run.name}.`);
     }
+    await requireCalibrated(trx, { studyId: run.studyId, runId, rater, raterId });
     const pendingBefore = await pendingCount(trx, runId);
     await trx('assignments').insert({ run_id: runId, rater_id: raterId, assigned_by: user.id, due_at: dueAt ?? null });
     await recomputeRunDecisions(trx, { runId });
@@ -222,6 +233,7 @@ export async function reassignRun({ user, runId, fromRaterId, toRaterId, dueAt, 
     if (await trx('assignments').where({ run_id: runId, rater_id: toRaterId }).first('id')) {
       throw new AppError('conflict', `${to.name} is already assigned to ${run.name}.`);
     }
+    await requireCalibrated(trx, { studyId: run.studyId, runId, rater: to, raterId: toRaterId });
     const old = await trx('assignments').where({ run_id: runId, rater_id: fromRaterId }).first('due_at');
     const removed = await removeInTrx(trx, { run, raterId: fromRaterId, confirm });
     const due = dueAt === undefined ? (old?.due_at ?? null) : dueAt;

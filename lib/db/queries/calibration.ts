@@ -2,6 +2,8 @@ import 'server-only';
 import type { Knex } from 'knex';
 import { bidsName, distinctRunNames } from '@/lib/bids';
 import { scoreAgainstReference, type CalibrationScore } from '@/lib/calibration/score';
+import { gateVerdict, isGated, type CalibrationThreshold, type GateVerdict } from '@/lib/calibration/gate';
+import { sensitivityByKind, type KindSensitivity } from '@/lib/calibration/per-kind';
 import { db, parseJson, toJson } from '@/lib/db/knex';
 import { AppError, notFound } from '@/lib/errors';
 import { recordAudit } from './audit';
@@ -34,6 +36,10 @@ export type CalibrationRater = {
   submittedRuns: number;
   /** The score now, from their submitted calibration runs. */
   score: CalibrationScore;
+  /** Noise sensitivity per reference noise kind (which kinds the rater misses). */
+  byKind: KindSensitivity[];
+  /** May the rater get live runs under the study's calibration threshold, and why not. */
+  gate: GateVerdict;
   certification: CalibrationCertification | null;
 };
 export type CalibrationOverview = {
@@ -44,6 +50,7 @@ export type CalibrationOverview = {
   /** Ready runs of the study that could be marked as calibration runs. */
   candidates: Array<{ runId: number; runName: string }>;
   raters: CalibrationRater[];
+  threshold: CalibrationThreshold;
 };
 
 const notLead = () => new AppError('forbidden', 'Only a lead of this study (or the facility admin) manages its calibration set.');
@@ -111,8 +118,8 @@ export async function scoreRater({ studyId, userId }: { studyId: number; userId:
     .join('reference_labels as rl', 'rl.component_id', 'c.id')
     .where({ 'r.study_id': studyId, 'r.is_calibration': true, 'd.is_current': true, 'v.rater_id': userId })
     .whereNotNull('a.submitted_at')
-    .select('v.label as rater', 'rl.label as reference', 'r.id as runId')) as Array<{ rater: string; reference: string; runId: number }>;
-  return { score: scoreAgainstReference(rows, categories), submittedRuns: new Set(rows.map((r) => Number(r.runId))).size };
+    .select('v.label as rater', 'rl.label as reference', 'rl.noise_kind as referenceKind', 'r.id as runId')) as Array<{ rater: string; reference: string; referenceKind: string | null; runId: number }>;
+  return { score: scoreAgainstReference(rows, categories), byKind: sensitivityByKind(rows), submittedRuns: new Set(rows.map((r) => Number(r.runId))).size };
 }
 
 /** The study's calibration runs, runs that could become one, and its raters with their scores and certification (leads, admins). */
@@ -166,14 +173,17 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
     .orderBy('u.name')
     .select('u.id', 'u.name', 'u.active', 'rc.id as certId', 'rc.passed', 'rc.certified_by as certifiedBy', 'rc.certified_at as certifiedAt', 'rc.scores');
   const raters: CalibrationRater[] = [];
+  const threshold = await calibrationThreshold({ studyId });
   for (const m of members) {
-    const { score, submittedRuns } = await scoreRater({ studyId, userId: Number(m.id) });
+    const { score, byKind, submittedRuns } = await scoreRater({ studyId, userId: Number(m.id) });
     raters.push({
       id: Number(m.id),
       name: String(m.name),
       active: Boolean(m.active),
       submittedRuns,
       score,
+      byKind,
+      gate: gateVerdict(submittedRuns ? score : null, threshold),
       certification: m.certId
         ? { passed: Boolean(m.passed), certifiedBy: m.certifiedBy == null ? null : Number(m.certifiedBy), certifiedAt: m.certifiedAt ?? null, scores: parseJson<CalibrationScore>(m.scores, null) }
         : null,
@@ -182,7 +192,7 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
   // two runs with the same entities read apart in the pickers: "… (run #12)"
   const names = new Map(distinctRunNames([...runs, ...candidates].map((r) => ({ runId: r.runId, name: r.runName }))).map((r) => [r.runId, r.name]));
   const named = <T extends { runId: number; runName: string }>(r: T): T => ({ ...r, runName: names.get(r.runId) ?? r.runName });
-  return { studyName: access.name, categories, noiseKinds, runs: runs.map(named), candidates: candidates.map(named), raters };
+  return { studyName: access.name, categories, noiseKinds, runs: runs.map(named), candidates: candidates.map(named), raters, threshold };
 }
 
 /** Marks a ready, unreleased run of the study as a calibration run (it leaves agreement and releases). */
@@ -308,7 +318,26 @@ export async function certifyRater({ user, studyId, userId, passed, ip = null }:
 export async function myCalibration({ user, studyId }: { user: Caller; studyId: number }) {
   const access = await findStudyAccess({ user, studyId });
   if (!access) throw notFound('The study');
-  const { score, submittedRuns } = await scoreRater({ studyId, userId: user.id });
+  const { score, byKind, submittedRuns } = await scoreRater({ studyId, userId: user.id });
   const cert = await db('rater_certifications').where({ study_id: studyId, user_id: user.id }).first('passed', 'certified_at as certifiedAt');
-  return { submittedRuns, score, certification: cert ? { passed: Boolean(cert.passed), certifiedAt: cert.certifiedAt ?? null } : null };
+  const gate = gateVerdict(submittedRuns ? score : null, await calibrationThreshold({ studyId }));
+  return { submittedRuns, score, byKind, gate, certification: cert ? { passed: Boolean(cert.passed), certifiedAt: cert.certifiedAt ?? null } : null };
+}
+
+/** The study's calibration threshold (both null: no gate). */
+export async function calibrationThreshold({ studyId }: { studyId: number }, trx: Knex | Knex.Transaction = db): Promise<CalibrationThreshold> {
+  const s = await trx('studies').where({ id: studyId }).first('calibration_min_ac1 as minAc1', 'calibration_min_sensitivity as minSensitivity');
+  return { minAc1: s?.minAc1 == null ? null : Number(s.minAc1), minSensitivity: s?.minSensitivity == null ? null : Number(s.minSensitivity) };
+}
+
+export async function setCalibrationThreshold({ studyId, threshold }: { studyId: number; threshold: CalibrationThreshold }, trx: Knex | Knex.Transaction = db): Promise<void> {
+  await trx('studies').where({ id: studyId }).update({ calibration_min_ac1: threshold.minAc1, calibration_min_sensitivity: threshold.minSensitivity });
+}
+
+/** Whether the rater may get live runs of the study under its calibration threshold, and why not. */
+export async function calibrationGate({ studyId, raterId }: { studyId: number; raterId: number }, trx: Knex | Knex.Transaction = db): Promise<GateVerdict> {
+  const t = await calibrationThreshold({ studyId }, trx);
+  if (!isGated(t)) return gateVerdict(null, t);
+  const { score } = await scoreRater({ studyId, userId: raterId }, trx);
+  return gateVerdict(score, t);
 }

@@ -13,6 +13,8 @@ export type ReconcileItem = {
   run: { sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null };
   decision: { label: string | null; noiseKind: string | null; method: string; reason: string | null; decidedBy: string | null };
   votes: ReconcileVote[];
+  /** The study's model in use (null without one or before scoring): for sorting by disagreement. */
+  suggestion: { label: string; pNoise: number } | null;
 };
 
 /**
@@ -26,6 +28,10 @@ export async function listReconcileItems({ studyId, runId, noiseKind, include }:
     .join('decompositions as d', 'd.id', 'c.decomposition_id')
     .join('runs as r', 'r.id', 'd.run_id')
     .leftJoin('users as u', 'u.id', 'x.decided_by')
+    .join('studies as s', 's.id', 'r.study_id')
+    .leftJoin('suggestions as g', function () {
+      this.on('g.component_id', 'c.id').andOn('g.model_id', 's.suggestion_model_id');
+    })
     .where({ 'r.study_id': studyId, 'd.is_current': true, 'r.is_calibration': false }) // calibration runs certify raters; their references are set apart
     // only runs whose assigned raters have all submitted
     .whereNotExists(db('assignments as a').whereRaw('a.run_id = r.id').whereNull('a.submitted_at'))
@@ -44,6 +50,8 @@ export async function listReconcileItems({ studyId, runId, noiseKind, include }:
       'x.method',
       'x.reason',
       'u.name as decidedBy',
+      'g.label as suggestionLabel',
+      'g.p_noise as pNoise',
     )
     .orderBy([{ column: 'r.id' }, { column: 'c.idx' }]);
   if (include === 'pending') q.where('x.method', 'pending');
@@ -73,6 +81,7 @@ export async function listReconcileItems({ studyId, runId, noiseKind, include }:
     run: { sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, runLabel: r.runLabel },
     decision: { label: r.label, noiseKind: r.noiseKind, method: r.method, reason: r.reason, decidedBy: r.decidedBy },
     votes: byComponent.get(r.componentId) ?? [],
+    suggestion: r.pNoise == null ? null : { label: r.suggestionLabel, pNoise: Number(r.pNoise) },
   }));
 }
 

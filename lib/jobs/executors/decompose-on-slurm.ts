@@ -11,6 +11,7 @@ import { readNiftiHeaderFile } from '@/lib/nifti';
 import { assignRaters } from '@/lib/runs/assign-raters';
 import { copyDecompositionFiles, ImportError, readDecompositionDir } from '@/lib/runs/import-decomposition';
 import { storeDecomposition } from '@/lib/runs/ingest-decomposition';
+import { queueScoringOfNewRun } from '../kinds/score-suggestions';
 import { afterAssignmentsCreated } from '@/lib/notifications/enqueue';
 import { pathFor, removeKey } from '@/lib/storage';
 import { PermanentJobError } from '../errors';
@@ -100,6 +101,7 @@ export async function decomposeOnSlurm(
         const decompositionId = await storeDecomposition(trx, { runId: run.id, parameters, summary: imported.summary, files, components: imported.components });
         const assignment = await assignRaters(trx, { runId: run.id });
         if (assignment.raterIds.length) await afterAssignmentsCreated(trx, { studyId: run.studyId });
+        await queueScoringOfNewRun(trx, { studyId: run.studyId, runId: run.id });
         return { decompositionId, assignment, k: imported.components.length };
       },
       (v) => ({ decompositionId: v.decompositionId, k: v.k, raters: v.assignment.raterIds, assignment: v.assignment.outcome, clusterJobId }),

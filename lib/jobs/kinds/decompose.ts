@@ -28,6 +28,7 @@ import { enqueueJob } from '../queue';
 import { defineJobKind } from '../types';
 import { decomposeOnSlurm } from '../executors/decompose-on-slurm';
 import { executorName, slurmSettings } from '../executors/settings';
+import { queueScoringOfNewRun } from './score-suggestions';
 
 /** Which of our stages an engine stage (reported when it has finished) leads into. */
 const NEXT_STAGE: Record<string, string> = {
@@ -278,6 +279,7 @@ export const decomposeKind = defineJobKind({
           });
           const assignment: AssignRatersResult = await assignRaters(trx, { runId });
           if (assignment.raterIds.length) await afterAssignmentsCreated(trx, { studyId: Number(run.study_id) });
+          await queueScoringOfNewRun(trx, { studyId: Number(run.study_id), runId });
           return { decompositionId, assignment };
         },
         (v) => ({ decompositionId: v.decompositionId, k: result.k, raters: v.assignment.raterIds, assignment: v.assignment.outcome }),

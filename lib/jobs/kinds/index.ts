@@ -6,6 +6,8 @@ import { notifyAssignmentsKind } from './notify-assignments';
 import { notifyVotesCompleteKind } from './notify-votes-complete';
 import { notifyOverdueKind } from './notify-overdue';
 import { sendMailKind } from './send-mail';
+import { scoreSuggestionsKind } from './score-suggestions';
+import { trainSuggestionsKind } from './train-suggestions';
 
 export const jobKinds: Readonly<Record<string, JobKind>> = {
   [decomposeKind.kind]: decomposeKind as unknown as JobKind,
@@ -14,4 +16,6 @@ export const jobKinds: Readonly<Record<string, JobKind>> = {
   [notifyVotesCompleteKind.kind]: notifyVotesCompleteKind as unknown as JobKind,
   [notifyOverdueKind.kind]: notifyOverdueKind as unknown as JobKind,
   [sendMailKind.kind]: sendMailKind as unknown as JobKind,
+  [trainSuggestionsKind.kind]: trainSuggestionsKind as unknown as JobKind,
+  [scoreSuggestionsKind.kind]: scoreSuggestionsKind as unknown as JobKind,
 };

@@ -14,6 +14,7 @@ import { TimecourseChart } from '@/components/charts/timecourse-chart';
 import { SpectrumChart } from '@/components/charts/spectrum-chart';
 import { MotionChart } from '@/components/charts/motion-chart';
 import { FeaturePanel } from '@/components/desk/feature-panel';
+import { SuggestionAfterVote } from '@/components/suggestions/suggestion-after-vote';
 import { isLowReproducibility } from '@/lib/desk/reproducibility';
 import { HelpOverlay } from '@/components/desk/help-overlay';
 import { ComponentStrip } from '@/components/desk/component-strip';
@@ -411,6 +412,7 @@ export function RateClient({
             onNoteDone={() => noteRef.current?.blur()}
           />
           {othersHere ? <OthersVotes votes={othersHere} /> : null}
+          <SuggestionAfterVote runId={runId} componentId={component.id} voteSaved={!!vote?.label && !vote.pending} />
           <FeaturePanel component={component} k={run.k} reproducibilityThreshold={run.reproducibility?.threshold} />
           <Link href="/" className="text-xs text-ink-muted hover:text-ink">
             ← Back to my queue

@@ -11,6 +11,7 @@ import { Headline } from '@/components/agreement/headline';
 import { RunHistogram } from '@/components/agreement/agreement-charts';
 import { RaterPairsPanel, RatersVsDecisionsPanel, RunsTable, WeeklyPanel } from '@/components/agreement/agreement-panels';
 import { countOf, formatStat } from '@/components/agreement/format';
+import { SuggestionsPanel } from '@/components/suggestions/suggestions-panel';
 
 export const metadata: Metadata = { title: 'Agreement' };
 
@@ -107,6 +108,11 @@ export default async function AgreementPage({ params }: { params: Promise<{ id: 
           </div>
         </>
       )}
+      <SuggestionsPanel
+        studyId={studyId}
+        canManage={leadsStudy(access)}
+        raters={(s?.vsDecision ?? []).map((r) => ({ name: nameOf(r.rater), kappa: r.cohenKappa, sensitivity: r.sensitivity, specificity: r.specificity }))}
+      />
     </div>
   );
 }

@@ -14,6 +14,7 @@ import { VotesSideBySide } from '@/components/reconcile/votes-side-by-side';
 import { useReconcileItems, useReconcileRun } from '@/components/reconcile/use-reconcile';
 import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/notice';
+import { modelDisagreement, sortByDisagreement } from '@/lib/suggestions/disagreement';
 
 const METHOD_NAMES: Record<string, string> = {
   pending: 'waiting for a lead',
@@ -28,7 +29,10 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
   const [include, setInclude] = useState<'pending' | 'all'>('pending');
   const [runFilter, setRunFilter] = useState<number | undefined>();
   const [kindFilter, setKindFilter] = useState<string | undefined>();
-  const { data: items = [], isFetching } = useReconcileItems(studyId, { runId: runFilter, noiseKind: kindFilter, include }, initialItems);
+  const [order, setOrder] = useState<'run' | 'disagreement'>('run');
+  const { data: fetched = [], isFetching } = useReconcileItems(studyId, { runId: runFilter, noiseKind: kindFilter, include }, initialItems);
+  const items = useMemo(() => (order === 'disagreement' ? sortByDisagreement(fetched) : fetched), [fetched, order]);
+  const scored = fetched.some((i) => i.suggestion);
   const [selected, setSelected] = useState<number | null>(initialItems[0]?.componentId ?? null);
   const item = items.find((i) => i.componentId === selected) ?? items[0] ?? null;
   const runView = useReconcileRun(item?.runId ?? null);
@@ -120,6 +124,15 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
             </select>
           </label>
           <label className="flex items-center gap-1 text-ink-muted">
+            Order
+            <select className="rounded border border-line-strong bg-ground-sunken px-2 py-1 text-ink" value={order} onChange={(e) => setOrder(e.target.value as 'run' | 'disagreement')} data-testid="reconcile-order">
+              <option value="run">by run and component</option>
+              <option value="disagreement" disabled={!scored}>
+                by the model’s disagreement with the votes{scored ? '' : ' (no suggestions yet)'}
+              </option>
+            </select>
+          </label>
+          <label className="flex items-center gap-1 text-ink-muted">
             <input type="checkbox" checked={include === 'all'} onChange={(e) => setInclude(e.target.checked ? 'all' : 'pending')} />
             also decided components (to override)
           </label>
@@ -146,6 +159,11 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
                   >
                     <span className="block font-mono text-xs text-ink-muted">{bidsName(i.run)}</span>
                     component {i.idx} of {i.k} · <span className="text-ink-muted">{i.votes.map((v) => labelName(v.label)).join(' / ')}</span>
+                    {order === 'disagreement' && i.suggestion ? (
+                      <span className="block text-xs text-ink-faint" data-testid="reconcile-disagreement">
+                        model {labelName(i.suggestion.label)} (P(noise) {i.suggestion.pNoise.toFixed(2)}), disagreement {modelDisagreement(i.suggestion.pNoise, i.votes)?.toFixed(2) ?? '—'}
+                      </span>
+                    ) : null}
                   </button>
                 </li>
               ))}

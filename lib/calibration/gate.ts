@@ -1,0 +1,32 @@
+/**
+ * The study's calibration threshold as a gate on live work: a rater passes when their score against
+ * the reference labels (score.ts, pooled over the calibration runs they submitted) reaches every
+ * threshold that is set. An undefined statistic (no submitted calibration run, no reference noise)
+ * does not pass — it is not taken as 0 or as 1, the reason says what is missing.
+ */
+import type { CalibrationScore } from './score';
+
+export type CalibrationThreshold = { minAc1: number | null; minSensitivity: number | null };
+
+export type GateVerdict = { gated: boolean; passes: boolean; reason: string | null };
+
+export function isGated(t: CalibrationThreshold): boolean {
+  return t.minAc1 !== null || t.minSensitivity !== null;
+}
+
+export function gateVerdict(score: CalibrationScore | null, t: CalibrationThreshold): GateVerdict {
+  if (!isGated(t)) return { gated: false, passes: true, reason: null };
+  if (!score || score.n === 0) return { gated: true, passes: false, reason: 'has not submitted a calibration run with reference labels yet' };
+  const misses: string[] = [];
+  if (t.minAc1 !== null) {
+    const v = score.gwetAC1.value;
+    if (v === null) misses.push(`AC1 is undefined (${score.gwetAC1.reason ?? 'too few components'}), threshold ${t.minAc1.toFixed(2)}`);
+    else if (v < t.minAc1) misses.push(`AC1 ${v.toFixed(2)} is below ${t.minAc1.toFixed(2)}`);
+  }
+  if (t.minSensitivity !== null) {
+    const v = score.noise.sensitivity.value;
+    if (v === null) misses.push(`noise sensitivity is undefined (${score.noise.sensitivity.reason ?? 'no reference noise'}), threshold ${t.minSensitivity.toFixed(2)}`);
+    else if (v < t.minSensitivity) misses.push(`noise sensitivity ${v.toFixed(2)} is below ${t.minSensitivity.toFixed(2)}`);
+  }
+  return misses.length ? { gated: true, passes: false, reason: misses.join('; ') } : { gated: true, passes: true, reason: null };
+}

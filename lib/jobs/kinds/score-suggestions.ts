@@ -1,0 +1,36 @@
+/**
+ * Job kind `score-suggestions` (payload { studyId, runId? }): P(noise) of every component of the
+ * study's ready runs (or one run) under the study's model in use, stored per component with the
+ * model (suggestions table). Queued after training and when a decomposition becomes ready.
+ * Nothing to do (no model) is a success with scored = 0. Progress stages: reading, scoring.
+ */
+import type { Knex } from 'knex';
+import { activeSuggestionModel, componentsToScore, insertSuggestions } from '@/lib/db/queries/suggestions';
+import { scoreComponents } from '@/lib/suggestions/score-components';
+import { scoreSuggestionsPayloadSchema } from '@/lib/suggestions/payload';
+import { enqueueJob } from '../queue';
+import { defineJobKind } from '../types';
+
+export const scoreSuggestionsKind = defineJobKind({
+  kind: 'score-suggestions',
+  payloadSchema: scoreSuggestionsPayloadSchema,
+  async run(ctx) {
+    const { payload } = ctx;
+    await ctx.progress('reading', 1);
+    const model = await activeSuggestionModel({ studyId: payload.studyId }, ctx.db);
+    if (!model) return { scored: 0, modelId: null };
+    const rows = await componentsToScore({ studyId: payload.studyId, runId: payload.runId }, ctx.db);
+    await ctx.progress('scoring', 30);
+    const scored = scoreComponents(model.model, rows);
+    await ctx.commit((trx) => insertSuggestions(trx, model.id, scored), () => ({ scored: scored.length, modelId: model.id }));
+    ctx.logger.info(`study ${payload.studyId}: ${scored.length} components scored with suggestion model v${model.version}`);
+    return { scored: scored.length, modelId: model.id };
+  },
+});
+
+/** In the decompose job's commit: a new decomposition of a study with a model in use is scored. */
+export async function queueScoringOfNewRun(trx: Knex.Transaction, { studyId, runId }: { studyId: number; runId: number }): Promise<void> {
+  const s = await trx('studies').where({ id: studyId }).first('suggestion_model_id');
+  if (s?.suggestion_model_id == null) return;
+  await enqueueJob(trx, { kind: 'score-suggestions', payload: { studyId, runId }, studyId });
+}
