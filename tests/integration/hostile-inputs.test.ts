@@ -56,7 +56,7 @@ const ODD_STRINGS = [
 ];
 const FIELD_NAMES = ['id', 'name', 'email', 'password', 'confirmPassword', 'token', 'role', 'label', 'noiseKind', 'note', 'reason', 'notes', 'componentId', 'runId', 'raterId', 'raterIds', 'baseVersion', 'description', 'studyRole', 'active', 'position', 'items', 'runs', 'sub', 'ses', 'task'];
 
-type Body = { what: string; type?: string; raw: string | Uint8Array };
+type Body = { what: string; type?: string; raw: string | Uint8Array<ArrayBuffer> };
 const json = (what: string, value: unknown): Body => ({ what, raw: JSON.stringify(value) });
 function nested(depth: number): string {
   return '['.repeat(depth) + ']'.repeat(depth);
