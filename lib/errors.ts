@@ -74,9 +74,6 @@ export const notFound = (what = 'The item') => new AppError('not_found', `${what
 // The database is stopped, restarting, or went away under a query (mysql2 and MariaDB codes)
 const DB_DOWN_CODES = new Set([
   'ECONNREFUSED',
-  'ECONNRESET',
-  'EPIPE',
-  'ETIMEDOUT',
   'PROTOCOL_CONNECTION_LOST',
   'PROTOCOL_SEQUENCE_TIMEOUT',
   'ER_ACCESS_DENIED_ERROR',
@@ -85,14 +82,17 @@ const DB_DOWN_CODES = new Set([
   'ER_QUERY_INTERRUPTED',
   'ER_SERVER_GONE_ERROR',
 ]);
+// network codes count only on the driver's own fatal errors (a browser that went away mid-body is ECONNRESET too)
+const DB_NETWORK_CODES = new Set(['ECONNRESET', 'EPIPE', 'ETIMEDOUT']);
 // mysql2 throws these without a code when a pooled connection died with the server (e.g. the
 // ROLLBACK of a transaction that was in flight when the database stopped)
 const DB_DOWN_MESSAGES = /Can't add new command when connection is in closed state|Connection lost: The server closed the connection|Pool is closed/;
 
 /** True when `err` (or what it wraps) says the database cannot be reached right now. */
 function databaseUnavailable(err: unknown): boolean {
-  for (let e = err as { code?: string; name?: string; message?: string; cause?: unknown } | undefined, depth = 0; e && depth < 4; e = e.cause as typeof e, depth++) {
+  for (let e = err as { code?: string; name?: string; message?: string; fatal?: boolean; cause?: unknown } | undefined, depth = 0; e && depth < 4; e = e.cause as typeof e, depth++) {
     if (e.code && DB_DOWN_CODES.has(e.code)) return true;
+    if (e.code && e.fatal === true && DB_NETWORK_CODES.has(e.code)) return true;
     if (e.name === 'KnexTimeoutError') return true;
     if (typeof e.message === 'string' && DB_DOWN_MESSAGES.test(e.message)) return true;
   }
