@@ -121,7 +121,7 @@ function check(t: Target, what: string, r: { status: number; text: string }) {
   if (leak && !/\.nii|\.tsv|\.json|gzip/.test(t.file + what)) problems.push(`${where}: internal text ${leak} in ${r.text.slice(0, 200)}`);
 }
 
-let targets: Target[] = [];
+const targets: Target[] = [];
 let adminId: number;
 
 beforeAll(async () => {
