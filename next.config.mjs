@@ -1,11 +1,11 @@
 /** @type {import('next').NextConfig} */
 const isDev = process.env.NODE_ENV !== 'production';
 
-// Content-Security-Policy suited to the volume viewer: WebGL needs no extra source, but the viewer
-// decodes images in blob: workers and reads maps through blob:/data: URLs.
-const csp = [
+// Content-Security-Policy of API responses and files (no inline script at all). Pages get theirs
+// from proxy.ts with a per-request nonce (lib/server/csp.ts, the same directives otherwise).
+const apiCsp = [
   "default-src 'self'",
-  `script-src 'self' 'unsafe-inline'${isDev ? " 'unsafe-eval'" : ''}`,
+  `script-src 'self'${isDev ? " 'unsafe-eval'" : ''}`,
   "style-src 'self' 'unsafe-inline'",
   "img-src 'self' data: blob:",
   "font-src 'self'",
@@ -23,12 +23,14 @@ const nextConfig = {
   reactStrictMode: true,
   poweredByHeader: false,
   serverExternalPackages: ['knex', 'mysql2', 'bcryptjs', 'nodemailer', 'smtp-server', 'mailparser', 'archiver'],
+  // forbidden() renders app/forbidden.tsx with status 403
+  experimental: { authInterrupts: true },
   async headers() {
     return [
+      { source: '/api/:path*', headers: [{ key: 'Content-Security-Policy', value: apiCsp }] },
       {
         source: '/:path*',
         headers: [
-          { key: 'Content-Security-Policy', value: csp },
           { key: 'Referrer-Policy', value: 'strict-origin-when-cross-origin' },
           { key: 'X-Content-Type-Options', value: 'nosniff' },
           { key: 'X-Frame-Options', value: 'DENY' },

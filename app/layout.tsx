@@ -1,5 +1,6 @@
 import type { Metadata } from 'next';
 import localFont from 'next/font/local';
+import { connection } from 'next/server';
 import { CautionFooter } from '@/components/layout/caution-footer';
 import './globals.css';
 
@@ -28,7 +29,9 @@ export const metadata: Metadata = {
   description: 'Multi-rater classification of fMRI independent components for imaging core facilities.',
 };
 
-export default function RootLayout({ children }: { children: React.ReactNode }) {
+export default async function RootLayout({ children }: { children: React.ReactNode }) {
+  // every page renders per request: its scripts carry that request's CSP nonce (proxy.ts)
+  await connection();
   return (
     <html lang="en" className={`${sans.variable} ${mono.variable}`}>
       <body className="flex min-h-screen flex-col">

@@ -72,12 +72,39 @@ export const forbidden = (what = 'this') =>
   new AppError('forbidden', `Your role does not allow ${what}. Ask a study lead or the facility admin if you need it.`);
 export const notFound = (what = 'The item') => new AppError('not_found', `${what} was not found.`);
 
+// The database is stopped, restarting, or went away under a query (mysql2 and MariaDB codes)
+const DB_DOWN_CODES = new Set([
+  'ECONNREFUSED',
+  'PROTOCOL_CONNECTION_LOST',
+  'PROTOCOL_SEQUENCE_TIMEOUT',
+  'ER_ACCESS_DENIED_ERROR',
+  'ER_SERVER_SHUTDOWN',
+  'ER_CONNECTION_KILLED',
+  'ER_QUERY_INTERRUPTED',
+  'ER_SERVER_GONE_ERROR',
+]);
+// network codes count only on the driver's own fatal errors (a browser that went away mid-body is ECONNRESET too)
+const DB_NETWORK_CODES = new Set(['ECONNRESET', 'EPIPE', 'ETIMEDOUT']);
+// mysql2 throws these without a code when a pooled connection died with the server (e.g. the
+// ROLLBACK of a transaction that was in flight when the database stopped)
+const DB_DOWN_MESSAGES = /Can't add new command when connection is in closed state|Connection lost: The server closed the connection|Pool is closed/;
+
+/** True when `err` (or what it wraps) says the database cannot be reached right now. */
+function databaseUnavailable(err: unknown): boolean {
+  for (let e = err as { code?: string; name?: string; message?: string; fatal?: boolean; cause?: unknown } | undefined, depth = 0; e && depth < 4; e = e.cause as typeof e, depth++) {
+    if (e.code && DB_DOWN_CODES.has(e.code)) return true;
+    if (e.code && e.fatal === true && DB_NETWORK_CODES.has(e.code)) return true;
+    if (e.name === 'KnexTimeoutError') return true;
+    if (typeof e.message === 'string' && DB_DOWN_MESSAGES.test(e.message)) return true;
+  }
+  return false;
+}
+
 /** Turns any thrown value into a safe response: AppErrors as they are, anything else logged and generic. */
 export function errorResponse(err: unknown, context: string): Response {
   if (err instanceof AppError) return err.toResponse();
   if (err instanceof ZodError) return AppError.fromZod(err).toResponse();
-  const code = (err as { code?: string })?.code;
-  if (code === 'ECONNREFUSED' || code === 'PROTOCOL_CONNECTION_LOST' || code === 'ER_ACCESS_DENIED_ERROR') {
+  if (databaseUnavailable(err)) {
     console.error(`[${context}] database unavailable:`, err);
     return new AppError('unavailable', 'The database is not reachable right now. Try again in a moment.').toResponse();
   }

@@ -1,7 +1,7 @@
 import 'server-only';
 import { cache } from 'react';
 import { getServerSession } from 'next-auth';
-import { redirect } from 'next/navigation';
+import { forbidden as refusePage, redirect } from 'next/navigation';
 import { authOptions } from './options';
 import { can, type Action } from './permissions';
 import type { UserRow } from '@/lib/db/queries/users';
@@ -29,10 +29,10 @@ export async function requireUser(action?: Action): Promise<UserRow> {
   return user;
 }
 
-/** For pages: the user, or a redirect to sign-in; a missing permission renders the refusal page. */
+/** For pages: the user, or a redirect to sign-in; a missing permission renders app/forbidden.tsx with 403. */
 export async function requirePageUser(action?: Action): Promise<UserRow> {
   const user = await getCurrentUser();
   if (!user) redirect('/sign-in');
-  if (action && !can(user.role, action)) redirect(`/forbidden?need=${encodeURIComponent(action)}`);
+  if (action && !can(user.role, action)) refusePage();
   return user;
 }

@@ -39,7 +39,7 @@ export async function recomputeDecision(trx: Knex.Transaction | Knex, { componen
     reason: null,
     decided_at: decision.method === 'pending' ? null : trx.fn.now(3),
   };
-  if (existing) await trx('decisions').where({ id: existing.id }).update(row);
+  if (existing) await trx('decisions').where({ id: existing.id }).update({ ...row, version: trx.raw('version + 1') });
   else await trx('decisions').insert({ component_id: componentId, run_id: ctx.runId, ...row });
 }
 

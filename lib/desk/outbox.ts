@@ -79,6 +79,11 @@ export function acknowledge(key: string, componentId: number, sent: Partial<Vote
   writeOutbox(key, state);
 }
 
+/** A failure worth sending again (no answer, timeout, throttled, server or database down); others are refusals. */
+export function isTransient(status: number): boolean {
+  return status === 0 || status === 408 || status === 429 || status >= 500;
+}
+
 /** Drops a change the server refused (it will not succeed on retry). */
 export function dropChange(key: string, componentId: number): void {
   const state = { ...readOutbox(key) };

@@ -2,7 +2,7 @@
 import { useCallback, useEffect, useMemo, useRef, useState, useSyncExternalStore } from 'react';
 import { useQuery, useQueryClient } from '@tanstack/react-query';
 import { getJson, putJson } from '@/lib/api/client';
-import { acknowledge, dropChange, outboxKey, queueChange, readOutbox, subscribeOutbox, type OutboxState } from './outbox';
+import { acknowledge, dropChange, isTransient, outboxKey, queueChange, readOutbox, subscribeOutbox, type OutboxState } from './outbox';
 import type { MyVote, SaveVoteResult, VoteFields, VotesPayload } from './types';
 
 export const votesKey = (runId: number) => ['desk', runId, 'votes'] as const;
@@ -20,10 +20,6 @@ export type SyncState = {
 
 const RETRY_MS = [1000, 2000, 4000, 8000, 15000];
 const EMPTY_OUTBOX: OutboxState = {};
-
-function isTransient(status: number) {
-  return status === 0 || status === 408 || status === 429 || status >= 500;
-}
 
 /**
  * The rater's votes on one run, saved as they are made:

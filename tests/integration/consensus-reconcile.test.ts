@@ -90,7 +90,7 @@ describe('reconcile', () => {
 
   it('records the lead decision with its reason and audit entry, and keeps it when votes change', async () => {
     const result = await recordLeadDecision({ studyId, leadId, input: { componentId: components[2], label: 'noise', noiseKind: 'csf', reason: 'Ventricular pattern, 0.2 Hz peak' } });
-    expect(result.method).toBe('reconciled');
+    expect(result).toMatchObject({ method: 'reconciled' });
     expect(await decisionOf(components[2])).toMatchObject({ method: 'reconciled', label: 'noise', noiseKind: 'csf', reason: 'Ventricular pattern, 0.2 Hz peak' });
     const audit = await db('audit_log').where({ action: 'decision.reconcile', target_id: String(components[2]) }).first();
     expect(audit).toMatchObject({ actor_id: leadId, study_id: studyId, target_type: 'component' });
@@ -102,7 +102,7 @@ describe('reconcile', () => {
 
   it('an override of an automatic decision is recorded as such', async () => {
     const result = await recordLeadDecision({ studyId, leadId, input: { componentId: components[1], label: 'noise', noiseKind: 'scanner', reason: 'Slice pattern visible in mosaic' } });
-    expect(result.method).toBe('override');
+    expect(result).toMatchObject({ method: 'override' });
     expect(await db('audit_log').where({ action: 'decision.override', target_id: String(components[1]) }).first()).toBeTruthy();
   });
 

@@ -34,7 +34,7 @@ const { parseTsv } = await import('@/lib/exports/tabular');
 const { EXPORT_CAUTION } = await import('@/lib/exports/cautions');
 const { buildDesign } = await import('@/lib/denoise/regress');
 const { decodeNifti } = await import('@/lib/nifti');
-const { claimJob } = await import('@/lib/jobs/queue');
+const { claimJob, completeJob, getJob, reportProgress, requeueExpiredLeases } = await import('@/lib/jobs/queue');
 const { runClaimedJob } = await import('@/lib/jobs/runner');
 const { jobKinds } = await import('@/lib/jobs/kinds');
 const releasesRoute = await import('@/app/api/studies/[id]/releases/route');
@@ -350,6 +350,38 @@ describe('a study release', () => {
     }
     expect(maxRemoved).toBeLessThan(1e-3 * maxBefore);
     expect(maxKeptDiff).toBeLessThan(1e-3);
+  });
+});
+
+describe('a worker lost during denoising (issue 13, faults)', () => {
+  it('after its lease expires another worker finishes the job once; the lost worker can no longer complete it', async () => {
+    const run = runs[0]!;
+    const rel = await db('releases').where({ study_id: studyId, run_key: 0 }).orderBy('version', 'desc').first('id');
+    actAs(u('lead'));
+    const req = await callRoute(denoiseRoute.POST, { method: 'POST', url: `/api/runs/${run.runId}/denoise`, params: { id: String(run.runId) }, body: { releaseId: rel.id, mode: 'full' } });
+    expect(req.status, JSON.stringify(req.json)).toBe(202);
+    // the worker that gets killed: it claimed the job and reported progress, then its process ended (its lease is never renewed)
+    const lost = await claimJob(db, { workerId: 'killed-worker', kinds: ['denoise'], leaseMs: 60_000 });
+    expect(lost?.id).toBe(req.json.jobId);
+    expect(await reportProgress(db, lost!.id, 'killed-worker', { stage: 'regress', percent: 40 })).toBe(true);
+    await db('jobs').where({ id: lost!.id }).update({ lease_expires_at: db.raw('NOW(3) - INTERVAL 1 SECOND') });
+
+    // the sweep every worker runs before claiming puts it back in the queue; another worker takes it
+    expect((await requeueExpiredLeases(db)).requeued).toContain(lost!.id);
+    const logger = { info: () => {}, warn: () => {}, error: (m: string) => console.error(m) };
+    const again = await claimJob(db, { workerId: 'rescuer', kinds: ['denoise'], leaseMs: 60_000 });
+    expect(again?.id).toBe(lost!.id);
+    expect(await runClaimedJob(db, again!, { workerId: 'rescuer', leaseMs: 60_000, kinds: jobKinds, logger })).toBe('succeeded');
+    expect(await getJob(db, lost!.id)).toMatchObject({ status: 'succeeded', attempts: 2 });
+    // the lost worker's late completion changes nothing: one result, written by the rescuer
+    expect(await completeJob(db, lost!.id, 'killed-worker', { file: 'late' })).toBe(false);
+    const list = await callRoute(denoiseRoute.GET, { url: `/api/runs/${run.runId}/denoise`, params: { id: String(run.runId) } });
+    const mine = list.json.jobs.filter((j: { jobId: number }) => j.jobId === lost!.id);
+    expect(mine).toHaveLength(1);
+    expect(mine[0].file.name).toMatch(/desc-denoisedfull_bold\.nii\.gz$/);
+    const res = await denoiseFileRoute.GET(new Request('http://localhost/x'), { params: Promise.resolve({ id: String(run.runId), jobId: String(lost!.id) }) });
+    expect(res.status).toBe(200);
+    expect(sha(await bytesOf(res))).toBe(mine[0].file.sha256);
   });
 });
 

@@ -11,7 +11,7 @@ export type ReconcileItem = {
   k: number;
   runId: number;
   run: { sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null };
-  decision: { label: string | null; noiseKind: string | null; method: string; reason: string | null; decidedBy: string | null };
+  decision: { label: string | null; noiseKind: string | null; method: string; reason: string | null; decidedBy: string | null; version: number };
   votes: ReconcileVote[];
   /** The study's model in use (null without one or before scoring): for sorting by disagreement. */
   suggestion: { label: string; pNoise: number } | null;
@@ -49,6 +49,7 @@ export async function listReconcileItems({ studyId, runId, noiseKind, include }:
       'x.noise_kind as noiseKind',
       'x.method',
       'x.reason',
+      'x.version',
       'u.name as decidedBy',
       'g.label as suggestionLabel',
       'g.p_noise as pNoise',
@@ -79,19 +80,24 @@ export async function listReconcileItems({ studyId, runId, noiseKind, include }:
     k: r.k,
     runId: r.runId,
     run: { sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, runLabel: r.runLabel },
-    decision: { label: r.label, noiseKind: r.noiseKind, method: r.method, reason: r.reason, decidedBy: r.decidedBy },
+    decision: { label: r.label, noiseKind: r.noiseKind, method: r.method, reason: r.reason, decidedBy: r.decidedBy, version: r.version },
     votes: byComponent.get(r.componentId) ?? [],
     suggestion: r.pNoise == null ? null : { label: r.suggestionLabel, pNoise: Number(r.pNoise) },
   }));
 }
 
+export type DecisionConflict = { conflict: { label: string | null; noiseKind: string | null; method: string; decidedBy: string | null } };
+type RecordedDecision = { componentId: number; method: string; label: string; noiseKind: string | null };
+
 /**
  * Records a lead's decision on a component of their study (reconciled when it was pending, an
  * override of an automatic decision otherwise), with the reason, in one transaction with its audit
  * entry. Releases keep the decisions they froze; a change after a release needs a new release.
+ * With `baseVersion`, a decision that changed since the lead saw it is not touched: the attempt is
+ * audited (decision.conflict) and the current decision returned as `conflict`.
  */
-export async function recordLeadDecision({ studyId, leadId, input }: { studyId: number; leadId: number; input: LeadDecisionInput }) {
-  return db.transaction(async (trx) => {
+export async function recordLeadDecision({ studyId, leadId, input }: { studyId: number; leadId: number; input: LeadDecisionInput }): Promise<RecordedDecision | DecisionConflict> {
+  return db.transaction(async (trx): Promise<RecordedDecision | DecisionConflict> => {
     const ctx = await trx('components as c')
       .join('decompositions as d', 'd.id', 'c.decomposition_id')
       .join('runs as r', 'r.id', 'd.run_id')
@@ -108,11 +114,31 @@ export async function recordLeadDecision({ studyId, leadId, input }: { studyId: 
     if (noiseKind && !kinds.includes(noiseKind)) {
       throw new AppError('validation', `"${noiseKind}" is not one of this study's noise kinds.`, { noiseKind: ['Choose one of the study’s noise kinds.'] });
     }
-    const existing = await trx('decisions').where({ component_id: input.componentId }).forUpdate().first('id', 'method', 'label', 'noise_kind as noiseKind');
+    const existing = await trx('decisions as x')
+      .leftJoin('users as u', 'u.id', 'x.decided_by')
+      .where({ 'x.component_id': input.componentId })
+      .forUpdate()
+      .first('x.id', 'x.method', 'x.label', 'x.noise_kind as noiseKind', 'x.version', 'u.name as decidedBy');
+    if (input.baseVersion !== undefined && (existing?.version ?? 0) !== input.baseVersion) {
+      // another lead (or a changed vote) got there first: refuse, and keep the attempt in the audit log
+      const current = { label: existing?.label ?? null, noiseKind: existing?.noiseKind ?? null, method: existing?.method ?? 'pending', decidedBy: existing?.decidedBy ?? null };
+      await recordAudit(
+        {
+          actorId: leadId,
+          action: 'decision.conflict',
+          targetType: 'component',
+          targetId: input.componentId,
+          studyId,
+          detail: { runId: ctx.runId, index: ctx.idx, baseVersion: input.baseVersion, version: existing?.version ?? 0, current, refused: { label: input.label, noiseKind, reason: input.reason } },
+        },
+        trx,
+      );
+      return { conflict: current };
+    }
     const method = !existing || existing.method === 'pending' ? 'reconciled' : existing.method === 'reconciled' ? 'reconciled' : 'override';
     const row = { label: input.label, noise_kind: noiseKind, method, decided_by: leadId, reason: input.reason, decided_at: trx.fn.now(3) };
-    if (existing) await trx('decisions').where({ id: existing.id }).update(row);
-    else await trx('decisions').insert({ component_id: input.componentId, run_id: ctx.runId, ...row });
+    if (existing) await trx('decisions').where({ id: existing.id }).update({ ...row, version: trx.raw('version + 1') });
+    else await trx('decisions').insert({ component_id: input.componentId, run_id: ctx.runId, ...row, version: 1 });
     await recordAudit(
       {
         actorId: leadId,

@@ -3,9 +3,10 @@ import { handler } from '@/lib/api/handler';
 import { createAccessToken } from '@/lib/auth/access-tokens';
 import { listAccessTokens } from '@/lib/db/queries/access-tokens';
 import { recordAudit } from '@/lib/db/queries/audit';
+import { wellFormed } from '@/lib/text';
 
 const body = z.object({
-  name: z.string().trim().min(1, 'Give the token a name, e.g. the pipeline that uses it.').max(120),
+  name: z.string().trim().min(1, 'Give the token a name, e.g. the pipeline that uses it.').max(120).refine(...wellFormed('The name')),
   expiresInDays: z.coerce.number().int().min(1).max(3650).optional(),
 });
 

@@ -1,6 +1,6 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
-import { notFound, redirect } from 'next/navigation';
+import { forbidden, notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
 import { listStudyAssignments } from '@/lib/db/queries/assignments';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
@@ -16,7 +16,7 @@ export default async function AssignmentsPage({ params }: { params: Promise<{ id
   if (!Number.isInteger(id) || id <= 0) notFound();
   const access = await findStudyAccess({ user, studyId: id });
   if (!access) notFound();
-  if (!leadsStudy(access)) redirect(`/forbidden?need=${encodeURIComponent('runs.manage')}`);
+  if (!leadsStudy(access)) forbidden();
   const initial = await listStudyAssignments({ user, studyId: id });
   return (
     <div className="flex flex-col gap-6">

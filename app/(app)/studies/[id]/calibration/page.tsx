@@ -1,6 +1,6 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
-import { notFound, redirect } from 'next/navigation';
+import { forbidden, notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
 import { listCalibration } from '@/lib/db/queries/calibration';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
@@ -15,7 +15,7 @@ export default async function CalibrationPage({ params }: { params: Promise<{ id
   if (!Number.isInteger(id) || id <= 0) notFound();
   const access = await findStudyAccess({ user, studyId: id });
   if (!access) notFound();
-  if (!leadsStudy(access)) redirect(`/forbidden?need=${encodeURIComponent('calibration.manage')}`);
+  if (!leadsStudy(access)) forbidden();
   const initial = await listCalibration({ user, studyId: id });
   return (
     <div className="flex flex-col gap-6">

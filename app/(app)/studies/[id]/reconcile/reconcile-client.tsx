@@ -75,10 +75,13 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
       label,
       noiseKind: label === 'noise' ? noiseKind || null : null,
       reason,
+      baseVersion: item.decision.version,
     });
     setSaving(false);
     if (!result.ok) {
       setFailure(result.fields ? Object.values(result.fields).flat().join(' ') : result.message);
+      // another lead decided first: show their decision (the message says what to do)
+      if (result.status === 409) await queryClient.invalidateQueries({ queryKey: ['reconcile', studyId] });
       return;
     }
     setDone(`Component ${item.idx} of ${bidsName(item.run)}: ${labelName(label)} (${METHOD_NAMES[result.data.decision.method]}).`);

@@ -4,7 +4,8 @@ import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { leadsStudy } from '@/lib/auth/permissions';
 import { recordLeadDecision } from '@/lib/db/queries/reconcile';
 import { leadDecisionSchema } from '@/lib/consensus/schema';
-import { forbidden, notFound } from '@/lib/errors';
+import { AppError, forbidden, notFound } from '@/lib/errors';
+import { conflictMessage } from '@/lib/consensus/conflict-message';
 
 const params = z.object({ id: z.coerce.number().int().positive() });
 
@@ -13,5 +14,7 @@ export const POST = handler({ permission: 'decisions.reconcile', params, body: l
   const access = await findStudyAccess({ user, studyId: params.id });
   if (!access) throw notFound('The study');
   if (!leadsStudy(access)) throw forbidden('deciding components of a study you do not lead');
-  return { decision: await recordLeadDecision({ studyId: params.id, leadId: user.id, input: body }) };
+  const result = await recordLeadDecision({ studyId: params.id, leadId: user.id, input: body });
+  if ('conflict' in result) throw new AppError('conflict', conflictMessage(result.conflict));
+  return { decision: result };
 });

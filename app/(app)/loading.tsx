@@ -1,9 +1,0 @@
-export default function Loading() {
-  return (
-    <div className="flex flex-col gap-4" aria-busy="true" aria-label="Loading">
-      <div className="h-6 w-48 animate-pulse rounded bg-ground-raised" />
-      <div className="h-32 animate-pulse rounded bg-ground-raised" />
-      <div className="h-32 animate-pulse rounded bg-ground-raised" />
-    </div>
-  );
-}
