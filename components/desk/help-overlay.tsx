@@ -4,7 +4,7 @@ import { helpRows } from '@/lib/desk/keys';
 import { labelName, noiseKindName } from '@/lib/studies/labels';
 
 /** The keyboard help (?), a modal dialog generated from the desk's key map. */
-export function HelpOverlay({ labelSet, noiseKinds, onClose }: { labelSet: string[]; noiseKinds: string[]; onClose: () => void }) {
+export function HelpOverlay({ labelSet, noiseKinds, onClose, readOnly = false }: { labelSet: string[]; noiseKinds: string[]; onClose: () => void; readOnly?: boolean }) {
   const ref = useRef<HTMLDivElement>(null);
   useEffect(() => ref.current?.focus(), []);
   return (
@@ -28,7 +28,7 @@ export function HelpOverlay({ labelSet, noiseKinds, onClose }: { labelSet: strin
           </button>
         </div>
         <div className="grid gap-5 sm:grid-cols-2">
-          {helpRows(labelSet, noiseKinds, { label: labelName, kind: noiseKindName }).map((g) => (
+          {helpRows(labelSet, noiseKinds, { label: labelName, kind: noiseKindName }, readOnly).map((g) => (
             <section key={g.group}>
               <h3 className="mb-1 text-xs font-semibold uppercase tracking-wider text-ink-muted">{g.group}</h3>
               <table className="w-full text-sm">

@@ -2,14 +2,14 @@ import { labelName, noiseKindName } from '@/lib/studies/labels';
 import type { OtherVote } from '@/lib/desk/types';
 
 /** How the other raters voted on this component — only ever rendered after submission. */
-export function OthersVotes({ votes }: { votes: OtherVote[] }) {
+export function OthersVotes({ votes, title = 'Other raters' }: { votes: OtherVote[]; title?: string }) {
   return (
     <section aria-labelledby="others-heading" className="rounded border border-line bg-ground-raised p-3" data-testid="others-votes">
       <h2 id="others-heading" className="mb-1 text-xs font-semibold uppercase tracking-wider text-ink-muted">
-        Other raters
+        {title}
       </h2>
       {votes.length === 0 ? (
-        <p className="text-xs text-ink-muted">No other rater has voted on this component yet.</p>
+        <p className="text-xs text-ink-muted">No vote on this component yet.</p>
       ) : (
         <ul className="space-y-1 text-xs">
           {votes.map((v) => (

@@ -45,9 +45,16 @@ export function RaterQueue({ items }: { items: QueueItem[] }) {
         <Panel title="Submitted">
           <ul className="divide-y divide-line text-sm">
             {done.map((i) => (
-              <li key={i.runId} className="flex justify-between py-2">
-                <span className="font-mono">{bidsName(i)}</span>
-                <span className="text-ink-muted">submitted {i.submittedAt?.toISOString().replace('T', ' ').slice(0, 16)} UTC</span>
+              <li key={i.runId} className="flex items-center justify-between gap-4 py-2" data-testid="submitted-item">
+                <div className="min-w-0">
+                  <p className="truncate font-mono">{bidsName(i)}</p>
+                  <p className="text-xs text-ink-muted">{i.studyName}</p>
+                </div>
+                <span className="ml-auto text-xs text-ink-muted">submitted {i.submittedAt?.toISOString().replace('T', ' ').slice(0, 16)} UTC</span>
+                {/* the desk shows a submitted run with the rater's votes; changes stay possible until a release freezes them */}
+                <Link href={`/runs/${i.runId}/rate`} className="rounded border border-line-strong px-3 py-1 text-xs text-ink hover:bg-ground-raised" data-testid="submitted-open">
+                  Review
+                </Link>
               </li>
             ))}
           </ul>

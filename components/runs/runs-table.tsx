@@ -57,7 +57,8 @@ function ProgressCell({ run }: { run: RunListItem }) {
 }
 
 /** A study's runs with live progress, sorting, filtering, paging and row actions for the study's leads. */
-export function RunsTable({ studyId, runs, canManage }: { studyId: number; runs: RunListItem[]; canManage: boolean }) {
+/** `readOnlyOpen`: the caller leads or observes the study, so Open goes to the read-only run view rather than the rating desk. */
+export function RunsTable({ studyId, runs, canManage, readOnlyOpen = false }: { studyId: number; runs: RunListItem[]; canManage: boolean; readOnlyOpen?: boolean }) {
   const [sorting, setSorting] = useState<SortingState>([]);
   const [filter, setFilter] = useState('');
   const [status, setStatus] = useState<RunStatus | ''>('');
@@ -93,9 +94,9 @@ export function RunsTable({ studyId, runs, canManage }: { studyId: number; runs:
         cell: (c) => (c.row.original.assigned ? `${c.row.original.submitted} / ${c.row.original.assigned}` : '—'),
       }),
       col.accessor((r) => r.agreement ?? -2, { id: 'agreement', header: 'Agreement', cell: (c) => (c.row.original.agreement == null ? '—' : c.row.original.agreement.toFixed(2)) }),
-      col.display({ id: 'actions', header: '', cell: (c) => <RowActions run={c.row.original} studyId={studyId} canManage={canManage} /> }),
+      col.display({ id: 'actions', header: '', cell: (c) => <RowActions run={c.row.original} studyId={studyId} canManage={canManage} readOnlyOpen={readOnlyOpen} /> }),
     ],
-    [studyId, canManage],
+    [studyId, canManage, readOnlyOpen],
   );
 
   // eslint-disable-next-line react-hooks/incompatible-library -- TanStack Table keeps its own state; the React Compiler leaves this component alone
@@ -183,7 +184,7 @@ export function RunsTable({ studyId, runs, canManage }: { studyId: number; runs:
 
 type Mode = null | 'delete' | 'delete-votes' | 'redecompose' | 'labels';
 
-function RowActions({ run, studyId, canManage }: { run: RunListItem; studyId: number; canManage: boolean }) {
+function RowActions({ run, studyId, canManage, readOnlyOpen }: { run: RunListItem; studyId: number; canManage: boolean; readOnlyOpen: boolean }) {
   const client = useQueryClient();
   const [mode, setMode] = useState<Mode>(null);
   const [message, setMessage] = useState<string | null>(null);
@@ -228,7 +229,7 @@ function RowActions({ run, studyId, canManage }: { run: RunListItem; studyId: nu
     <div className="flex min-w-40 flex-col items-end gap-1">
       <div className="flex flex-wrap justify-end gap-1">
         {ready ? (
-          <Link href={`/runs/${run.id}/rate`} className="rounded px-2 py-1 text-xs text-lumen hover:bg-ground-raised">Open</Link>
+          <Link href={readOnlyOpen ? `/runs/${run.id}/view` : `/runs/${run.id}/rate`} className="rounded px-2 py-1 text-xs text-lumen hover:bg-ground-raised" data-testid="run-open">Open</Link>
         ) : null}
         {canManage && run.status === 'uploaded' ? (
           <Button variant="quiet" type="button" disabled={pending} onClick={() => act(() => postJson(`/api/runs/${run.id}/queue`, {}))}>Start</Button>

@@ -24,3 +24,6 @@ export const DUSK: ColorMapSpec = {
 /** CSS gradients of the same maps for the legend. */
 export const EMBER_CSS = 'linear-gradient(to right, rgb(150,40,92), rgb(232,112,86), rgb(250,190,120), rgb(255,244,214))';
 export const DUSK_CSS = 'linear-gradient(to right, rgb(226,218,255), rgb(172,150,245), rgb(118,86,214), rgb(62,38,140))';
+
+/** Fully transparent: hides one sign of the map (positive only / negative only). */
+export const NONE: ColorMapSpec = { R: [0, 0], G: [0, 0], B: [0, 0], A: [0, 0], I: [0, 255] };

@@ -1,10 +1,25 @@
 'use client';
 import { useEffect, useLayoutEffect, useRef, useState } from 'react';
-import { Niivue, SHOW_RENDER, type NiiVueLocation } from '@niivue/niivue';
-import { DUSK, EMBER } from './colormaps';
+import { DRAG_MODE, Niivue, SHOW_RENDER, SLICE_TYPE, type NiiVueLocation } from '@niivue/niivue';
+import { DUSK, EMBER, NONE } from './colormaps';
+import { findClusters, maxAbs, type Cluster, type Sign } from '@/lib/desk/clusters';
+import { mosaicSpec, planMosaic } from '@/lib/desk/mosaic';
 
 export type ViewerLayout = 'multiplanar' | 'mosaic';
+export type ViewerPlane = 'axial' | 'coronal' | 'sagittal';
 export type ViewerLocation = { mm: [number, number, number]; vox: [number, number, number]; z: number | null };
+export type OverlaySettings = { visible: boolean; opacity: number; sign: Sign };
+/** What the viewer found in the shown component: its clusters above the threshold and which one the crosshair is on. */
+export type FrameInfo = { frame: number; maxAbsZ: number | null; clusters: number; cluster: number | null; peakZ: number | null; peakMm: [number, number, number] | null };
+
+/** Commands the desk sends to the viewer (keys). */
+export type ViewerApi = {
+  nextCluster: () => void;
+  moveSlice: (delta: number) => void;
+  zoom: (factor: number) => void;
+  pan: (dx: number, dy: number) => void;
+  resetView: () => void;
+};
 
 export type VolumeViewerProps = {
   /** Address of the run's mean image and its 4D component maps (one request each, once). */
@@ -17,11 +32,22 @@ export type VolumeViewerProps = {
   /** Top of the colour scale (|z|). */
   maxZ: number;
   layout: ViewerLayout;
+  /** The large plane of the three-plane layout; slice keys move through it. */
+  plane?: ViewerPlane;
+  overlay?: OverlaySettings;
+  /** Move the crosshair to the largest cluster's peak on each new component (default true). */
+  followPeak?: boolean;
+  /** Receives the viewer's commands for the desk's keys (null when the viewer goes). */
+  onApi?: (api: ViewerApi | null) => void;
   onLocation?: (loc: ViewerLocation) => void;
+  onFrameInfo?: (info: FrameInfo) => void;
   /** Called when the frame's draw calls are issued, and again once the browser painted it (timing marks). */
   onDrawn?: (frame: number, phase: 'issued' | 'painted') => void;
   onError?: (message: string) => void;
 };
+
+const PLANE_TYPE: Record<ViewerPlane, SLICE_TYPE> = { axial: SLICE_TYPE.AXIAL, coronal: SLICE_TYPE.CORONAL, sagittal: SLICE_TYPE.SAGITTAL };
+const DEFAULT_OVERLAY: OverlaySettings = { visible: true, opacity: 1, sign: 'both' };
 
 /** After the browser has painted the next frame. */
 function afterPaint(fn: () => void) {
@@ -32,23 +58,77 @@ function afterPaint(fn: () => void) {
   });
 }
 
-function mosaicString(min: number[], max: number[]): string {
-  const n = 12;
-  const zs = Array.from({ length: n }, (_, i) => min[2] + ((i + 1) * (max[2] - min[2])) / (n + 1));
-  const row = (part: number[]) => `A ${part.map((z) => z.toFixed(1)).join(' ')}`;
-  return `${row(zs.slice(0, 6))} ; ${row(zs.slice(6))}`;
+type Vol = Niivue['volumes'][number];
+
+/** One frame of a 4D image as a voxel reader in native order (scaled to z). */
+function frameReader(vol: Vol, frame: number) {
+  const hdr = vol.hdr!;
+  const [nx, ny, nz] = [hdr.dims[1], hdr.dims[2], hdr.dims[3]];
+  const img = vol.img as ArrayLike<number>;
+  const slope = hdr.scl_slope || 1;
+  const inter = hdr.scl_inter || 0;
+  const off = frame * nx * ny * nz;
+  return { dims: [nx, ny, nz] as [number, number, number], at: (i: number) => img[off + i] * slope + inter };
+}
+
+/** Native voxel → mm through the image's own affine (NIfTI sform/qform rows). */
+function voxToMm(vol: Vol, v: [number, number, number]): [number, number, number] {
+  const a = vol.hdr!.affine;
+  return [0, 1, 2].map((r) => a[r][0] * v[0] + a[r][1] * v[1] + a[r][2] * v[2] + a[r][3]) as [number, number, number];
+}
+
+type ClustersRef = React.RefObject<{ frame: number; list: Cluster[]; at: number; maxAbsZ: number | null }>;
+type LatestRef = React.RefObject<VolumeViewerProps>;
+
+/** Clusters of the shown frame at the current threshold and sign (cached per frame). */
+function clustersOf(nv: Niivue, frame: number, clustersRef: ClustersRef, latest: LatestRef) {
+  const c = clustersRef.current;
+  if (c.frame === frame) return c;
+  const vol = nv.volumes[1];
+  const { dims, at } = frameReader(vol, frame);
+  const p = latest.current;
+  const list = findClusters(at, dims, p.threshold, { sign: p.overlay?.sign ?? 'both', limit: 50 });
+  const maxAbsZ = maxAbs(at, dims[0] * dims[1] * dims[2]);
+  clustersRef.current = { frame, list, at: -1, maxAbsZ };
+  p.onFrameInfo?.({ frame, maxAbsZ, clusters: list.length, cluster: null, peakZ: null, peakMm: null });
+  return clustersRef.current;
+}
+
+/** Crosshair to cluster `i` (the planes follow); keeps the point where it was on screen when zoomed. */
+function goToCluster(nv: Niivue, frame: number, i: number, draw: boolean, clustersRef: ClustersRef, latest: LatestRef) {
+  const c = clustersOf(nv, frame, clustersRef, latest);
+  if (!c.list.length) return;
+  const k = ((i % c.list.length) + c.list.length) % c.list.length;
+  c.at = k;
+  const cl = c.list[k];
+  const mm = voxToMm(nv.volumes[1], cl.peak);
+  nv.scene.crosshairPos = nv.mm2frac(mm);
+  const zoom = nv.scene.pan2Dxyzmm[3];
+  if (zoom > 1) nv.scene.pan2Dxyzmm = [(1 - zoom) * mm[0], (1 - zoom) * mm[1], (1 - zoom) * mm[2], zoom];
+  latest.current.onFrameInfo?.({
+    frame,
+    maxAbsZ: c.maxAbsZ,
+    clusters: c.list.length,
+    cluster: k + 1,
+    peakZ: cl.peakZ,
+    peakMm: mm,
+  });
+  nv.createOnLocationChange();
+  if (draw) nv.drawScene();
 }
 
 /**
  * The desk's volume viewer (WebGL2): the run's mean image in grey with the current component's
- * z-map over it (positive "ember", negative "dusk"), multiplanar or mosaic. Both images are loaded
- * once; switching components only changes the displayed frame of the 4D map.
+ * z-map over it (positive "ember", negative "dusk"), three planes (one large) or a mosaic. Both
+ * images are loaded once; switching components changes the displayed frame of the 4D map and moves
+ * the crosshair to the component's largest cluster.
  */
 export default function VolumeViewer(props: VolumeViewerProps) {
   const canvasRef = useRef<HTMLCanvasElement>(null);
   const nvRef = useRef<Niivue | null>(null);
   const [ready, setReady] = useState(false);
   const latest = useRef(props);
+  const clustersRef = useRef<{ frame: number; list: Cluster[]; at: number; maxAbsZ: number | null }>({ frame: -1, list: [], at: -1, maxAbsZ: null });
   useLayoutEffect(() => {
     latest.current = props;
   });
@@ -66,6 +146,8 @@ export default function VolumeViewer(props: VolumeViewerProps) {
       isColorbar: false,
       multiplanarShowRender: SHOW_RENDER.NEVER,
       dragAndDropEnabled: false,
+      dragMode: DRAG_MODE.pan, // right-drag pans, as the keys do
+      centerMosaic: true,
       textHeight: 0.035,
       isOrientationTextVisible: true,
       loadingText: 'loading maps…',
@@ -76,6 +158,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
       await nv.attachToCanvas(canvas);
       nv.addColormap('quorum-ember', EMBER);
       nv.addColormap('quorum-dusk', DUSK);
+      nv.addColormap('quorum-none', NONE);
       const p = latest.current;
       await nv.loadVolumes([
         { url: p.meanUrl, name: 'mean.nii.gz', colormap: 'gray' },
@@ -115,19 +198,33 @@ export default function VolumeViewer(props: VolumeViewerProps) {
     };
   }, [props.meanUrl, props.componentsUrl]);
 
-  // layout
+  const plane = props.plane ?? 'axial';
+  // layout: three planes with one large, or a mosaic that fills the viewer
   useEffect(() => {
     const nv = nvRef.current;
-    if (!nv || !ready) return;
-    if (props.layout === 'mosaic') {
-      const v = nv.volumes[0];
-      nv.setSliceMosaicString(mosaicString(v.extentsMinOrtho ?? [0, 0, -50], v.extentsMaxOrtho ?? [0, 0, 50]));
-    } else {
-      nv.setSliceMosaicString('');
-      nv.setSliceType(nv.sliceTypeMultiplanar);
-    }
-    nv.drawScene();
-  }, [props.layout, ready]);
+    const canvas = canvasRef.current;
+    if (!nv || !ready || !canvas) return;
+    const apply = () => {
+      if (props.layout === 'mosaic') {
+        const v = nv.volumes[0];
+        const min = v.extentsMinOrtho ?? [-90, -110, -60];
+        const max = v.extentsMaxOrtho ?? [90, 90, 80];
+        const plan = planMosaic({ viewW: canvas.clientWidth, viewH: canvas.clientHeight, sliceW: max[0] - min[0], sliceH: max[1] - min[1], zMin: min[2], zMax: max[2] });
+        nv.setSliceMosaicString(mosaicSpec(plan));
+      } else {
+        nv.setSliceMosaicString('');
+        nv.opts.heroImageFraction = 0.55;
+        nv.opts.heroSliceType = PLANE_TYPE[plane];
+        nv.setSliceType(nv.sliceTypeMultiplanar);
+      }
+      nv.drawScene();
+    };
+    apply();
+    if (props.layout !== 'mosaic') return;
+    const ro = new ResizeObserver(() => apply());
+    ro.observe(canvas);
+    return () => ro.disconnect();
+  }, [props.layout, plane, ready]);
 
   // threshold and scale
   useEffect(() => {
@@ -136,18 +233,77 @@ export default function VolumeViewer(props: VolumeViewerProps) {
     const v = nv.volumes[1];
     v.cal_min = props.threshold;
     v.cal_max = Math.max(props.maxZ, props.threshold + 0.5);
+    clustersRef.current.frame = -1; // clusters depend on the threshold
+    clustersOf(nv, latest.current.frame, clustersRef, latest);
     nv.updateGLVolume();
   }, [props.threshold, props.maxZ, ready]);
 
-  // component frame: the only thing that changes between components
+  // overlay: on/off, opacity, which sign
+  const overlay = props.overlay ?? DEFAULT_OVERLAY;
   useEffect(() => {
     const nv = nvRef.current;
     if (!nv || !ready || nv.volumes.length < 2) return;
-    nv.setFrame4D(nv.volumes[1].id, props.frame); // re-blends the layers and draws the scene
+    const v = nv.volumes[1];
+    v.colormap = overlay.sign === 'negative' ? 'quorum-none' : 'quorum-ember';
+    v.colormapNegative = overlay.sign === 'positive' ? '' : 'quorum-dusk';
+    clustersRef.current.frame = -1;
+    clustersOf(nv, latest.current.frame, clustersRef, latest);
+    nv.setOpacity(1, overlay.visible ? overlay.opacity : 0);
+  }, [overlay.visible, overlay.opacity, overlay.sign, ready]);
+
+  // component frame: the only thing that changes between components
+  const followPeak = props.followPeak ?? true;
+  useEffect(() => {
+    const nv = nvRef.current;
+    if (!nv || !ready || nv.volumes.length < 2) return;
     const frame = props.frame;
+    if (followPeak) goToCluster(nv, frame, 0, false, clustersRef, latest);
+    nv.setFrame4D(nv.volumes[1].id, frame); // re-blends the layers and draws the scene
     latest.current.onDrawn?.(frame, 'issued');
     afterPaint(() => latest.current.onDrawn?.(frame, 'painted'));
-  }, [props.frame, ready]);
+  }, [props.frame, ready, followPeak]);
+
+  // the desk's keys
+  useEffect(() => {
+    const onApi = props.onApi;
+    if (!onApi) return;
+    onApi({
+      nextCluster: () => {
+        const nv = nvRef.current;
+        if (!nv || nv.volumes.length < 2) return;
+        goToCluster(nv, latest.current.frame, clustersRef.current.at + 1, true, clustersRef, latest);
+      },
+      moveSlice: (d) => {
+        const nv = nvRef.current;
+        if (!nv) return;
+        const p = latest.current.plane ?? 'axial';
+        if (p === 'axial') nv.moveCrosshairInVox(0, 0, d);
+        else if (p === 'coronal') nv.moveCrosshairInVox(0, d, 0);
+        else nv.moveCrosshairInVox(d, 0, 0);
+      },
+      zoom: (f) => {
+        const nv = nvRef.current;
+        if (!nv) return;
+        const [x, y, z, old] = nv.scene.pan2Dxyzmm;
+        const zoom = Math.min(8, Math.max(1, old * f));
+        if (zoom === 1) return nv.setPan2Dxyzmm([0, 0, 0, 1]);
+        const c = nv.frac2mm(nv.scene.crosshairPos);
+        const change = old - zoom; // zoom about the crosshair
+        nv.setPan2Dxyzmm([x + change * c[0], y + change * c[1], z + change * c[2], zoom]);
+      },
+      pan: (dx, dy) => {
+        const nv = nvRef.current;
+        if (!nv) return;
+        const [x, y, z, zoom] = nv.scene.pan2Dxyzmm;
+        const p = latest.current.plane ?? 'axial';
+        const step = 10 * zoom; // mm on screen per key
+        const v = p === 'axial' ? [dx, dy, 0] : p === 'coronal' ? [dx, 0, dy] : [0, dx, dy];
+        nv.setPan2Dxyzmm([x + step * v[0], y + step * v[1], z + step * v[2], zoom]);
+      },
+      resetView: () => nvRef.current?.setPan2Dxyzmm([0, 0, 0, 1]),
+    });
+    return () => onApi(null);
+  }, [props.onApi]);
 
   return (
     <div className="relative h-full w-full">

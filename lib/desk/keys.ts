@@ -16,11 +16,27 @@ export type DeskCommand =
   | { type: 'autoAdvance' }
   | { type: 'help' }
   | { type: 'submit' }
-  | { type: 'close' };
+  | { type: 'close' }
+  | { type: 'first' }
+  | { type: 'last' }
+  | { type: 'goTo' }
+  | { type: 'nextCluster' }
+  | { type: 'overlay' }
+  | { type: 'sign' }
+  | { type: 'opacityDown' }
+  | { type: 'opacityUp' }
+  | { type: 'zoomIn' }
+  | { type: 'zoomOut' }
+  | { type: 'resetView' }
+  | { type: 'slice'; delta: number }
+  | { type: 'pan'; dx: number; dy: number }
+  | { type: 'plane' }
+  | { type: 'flag' }
+  | { type: 'filter' };
 
 /** The key that sets each known label; other labels get their first free letter. */
 const LABEL_KEYS: Record<string, string> = { signal: 's', noise: 'n', uncertain: 'u' };
-const RESERVED = new Set(['j', 'k', 'e', 'l', 'a']);
+const RESERVED = new Set(['j', 'k', 'e', 'l', 'a', 'p', 'o', 'v', 'm', 'g', 'f']);
 
 export function labelKeys(labelSet: string[]): Record<string, string> {
   const used = new Set<string>();
@@ -43,7 +59,46 @@ export function commandFor(e: Pick<KeyboardEvent, 'key' | 'code' | 'shiftKey' | 
   const digit = /^Digit([1-9])$/.exec(e.code)?.[1] ?? /^Numpad([1-9])$/.exec(e.code)?.[1];
   if (digit && e.shiftKey) return Number(digit) <= 5 ? { type: 'confidence', value: Number(digit) } : null;
   if (digit) return { type: 'kind', index: Number(digit) - 1 };
+  if (e.shiftKey && e.key.startsWith('Arrow')) {
+    const d = { ArrowLeft: [-1, 0], ArrowRight: [1, 0], ArrowUp: [0, 1], ArrowDown: [0, -1] }[e.key];
+    return d ? { type: 'pan', dx: d[0], dy: d[1] } : null;
+  }
   switch (e.key) {
+    case 'Home':
+      return { type: 'first' };
+    case 'End':
+      return { type: 'last' };
+    case 'g':
+      return { type: 'goTo' };
+    case 'p':
+      return { type: 'nextCluster' };
+    case 'o':
+      return { type: 'overlay' };
+    case 'v':
+      return { type: 'sign' };
+    case '{':
+      return { type: 'opacityDown' };
+    case '}':
+      return { type: 'opacityUp' };
+    case '=':
+    case '+':
+      return { type: 'zoomIn' };
+    case '-':
+      return { type: 'zoomOut' };
+    case '0':
+      return { type: 'resetView' };
+    case 'ArrowUp':
+    case 'PageUp':
+      return { type: 'slice', delta: 1 };
+    case 'ArrowDown':
+    case 'PageDown':
+      return { type: 'slice', delta: -1 };
+    case 'm':
+      return { type: 'plane' };
+    case 'f':
+      return { type: 'flag' };
+    case 'F':
+      return { type: 'filter' };
     case 'ArrowRight':
     case 'j':
       return { type: 'next' };
@@ -73,9 +128,9 @@ export function commandFor(e: Pick<KeyboardEvent, 'key' | 'code' | 'shiftKey' | 
 }
 
 /** Rows of the help overlay. */
-export function helpRows(labelSet: string[], noiseKinds: string[], names: { label: (k: string) => string; kind: (k: string) => string }) {
+export function helpRows(labelSet: string[], noiseKinds: string[], names: { label: (k: string) => string; kind: (k: string) => string }, readOnly = false) {
   const keys = labelKeys(labelSet);
-  return [
+  const rows = [
     {
       group: 'Label',
       rows: [
@@ -91,6 +146,10 @@ export function helpRows(labelSet: string[], noiseKinds: string[], names: { labe
         { keys: ['→', 'J'], does: 'Next component' },
         { keys: ['←', 'K'], does: 'Previous component' },
         { keys: ['Enter'], does: 'Next unlabelled component' },
+        { keys: ['Home', 'End'], does: 'First / last component' },
+        { keys: ['G', 'number'], does: 'Go to component N (Enter)' },
+        { keys: ['F'], does: 'Flag the component to come back to' },
+        { keys: ['Shift', 'F'], does: 'Strip: all → unlabelled → flagged' },
         { keys: ['A'], does: 'Auto-advance after a label on / off' },
       ],
     },
@@ -98,7 +157,15 @@ export function helpRows(labelSet: string[], noiseKinds: string[], names: { labe
       group: 'View',
       rows: [
         { keys: ['[', ']'], does: 'Lower / raise the |z| threshold' },
-        { keys: ['L'], does: 'Multiplanar ↔ mosaic' },
+        { keys: ['P'], does: 'Crosshair to the next cluster peak' },
+        { keys: ['↑', '↓'], does: 'Slice up / down in the large plane' },
+        { keys: ['M'], does: 'Large plane: axial → coronal → sagittal' },
+        { keys: ['+', '−', '0'], does: 'Zoom in / out / reset' },
+        { keys: ['Shift', 'arrows'], does: 'Pan (or drag with the right button)' },
+        { keys: ['O'], does: 'Map on / off' },
+        { keys: ['{', '}'], does: 'Map opacity down / up' },
+        { keys: ['V'], does: 'Both signs → positive → negative' },
+        { keys: ['L'], does: 'Three planes ↔ mosaic' },
         { keys: ['Click'], does: 'Move the crosshair; read z and mm' },
       ],
     },
@@ -110,5 +177,13 @@ export function helpRows(labelSet: string[], noiseKinds: string[], names: { labe
         { keys: ['Esc'], does: 'Close help' },
       ],
     },
+  ];
+  if (!readOnly) return rows;
+  // the read-only run view: viewing and moving only
+  const viewing = new Set(['Label', 'Desk']);
+  const noVoting = /Flag|Strip|Auto-advance|Next unlabelled/;
+  return [
+    ...rows.filter((g) => !viewing.has(g.group)).map((g) => ({ ...g, rows: g.rows.filter((r) => !noVoting.test(r.does)) })),
+    { group: 'Help', rows: [{ keys: ['?'], does: 'This help (Esc closes)' }] },
   ];
 }

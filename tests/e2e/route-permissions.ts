@@ -84,6 +84,7 @@ export const ROUTES: RouteCase[] = [
   { file: 'studies/[id]/suggestions/model/route.ts', method: 'GET', url: '/api/studies/999999/suggestions/model', allowed: ['admin', 'lead', 'observer'] },
   { file: 'runs/[id]/desk/route.ts', method: 'PUT', url: '/api/runs/999999/desk', allowed: ['admin', 'rater'] },
   { file: 'runs/[id]/files/[file]/route.ts', method: 'GET', url: '/api/runs/999999/files/components.nii.gz', allowed: ['admin', 'rater'] },
+  { file: 'runs/[id]/view/files/[file]/route.ts', method: 'GET', url: '/api/runs/999999/view/files/components.nii.gz', allowed: ALL },
   // releases and exports (addresses of rows that do not exist: allowed roles get 404, never a write)
   { file: 'studies/[id]/releases/route.ts', method: 'GET', url: '/api/studies/999999/releases', allowed: ['admin', 'lead', 'observer'] },
   { file: 'studies/[id]/releases/route.ts', method: 'POST', url: '/api/studies/999999/releases', allowed: ['admin', 'lead'] },

@@ -16,6 +16,14 @@ import { leadsStudy } from '@/lib/auth/permissions';
  * instead of an assignment. 404 when the run is not in a study the caller leads.
  */
 export async function loadRunForReconcile({ user, runId }: { user: Pick<UserRow, 'id' | 'role'>; runId: number }) {
+  const shapes = await loadRunShapes({ runId });
+  const access = shapes ? await findStudyAccess({ user, studyId: shapes.run.studyId }) : null;
+  if (!shapes || !leadsStudy(access)) throw new AppError('not_found', `Run ${runId} is not in a study you lead.`);
+  return shapes;
+}
+
+/** A run's current decomposition in the desk's shapes, with its files' storage keys; null without one. No access check: callers scope. */
+export async function loadRunShapes({ runId }: { runId: number }) {
   const run = await db('runs as r')
     .join('studies as s', 's.id', 'r.study_id')
     .join('decompositions as d', function () {
@@ -43,8 +51,7 @@ export async function loadRunForReconcile({ user, runId }: { user: Pick<UserRow,
       'd.mean_key as meanKey',
       'd.mask_key as maskKey',
     );
-  const access = run ? await findStudyAccess({ user, studyId: run.studyId }) : null;
-  if (!run || !leadsStudy(access)) throw new AppError('not_found', `Run ${runId} is not in a study you lead.`);
+  if (!run) return null;
   const components = await componentsOfDecomposition({ decompositionId: run.decompositionId });
   const deskRun: DeskRun = {
     runId: run.runId,

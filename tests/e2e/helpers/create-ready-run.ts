@@ -10,7 +10,7 @@ import { createReadyRun } from './ready-run';
 import type { PhantomSize } from '@/lib/phantom';
 
 async function main() {
-  const args = JSON.parse(process.argv[2] ?? '{}') as { raters?: string[]; size?: PhantomSize; seed?: number; components?: number; withMotion?: boolean; reproducibility?: number[] };
+  const args = JSON.parse(process.argv[2] ?? '{}') as { raters?: string[]; size?: PhantomSize; seed?: number; components?: number; withMotion?: boolean; reproducibility?: number[]; restarts?: number };
   const settings = resolveDbSettings();
   if (!/e2e|test/.test(settings.database)) throw new Error(`refusing to write test runs into ${settings.database}`);
   const db = createDb(settings);
@@ -27,6 +27,7 @@ async function main() {
       components: args.components,
       withMotion: args.withMotion,
       reproducibility: args.reproducibility,
+      restarts: args.restarts,
     });
     process.stdout.write(JSON.stringify(run) + '\n');
   } finally {

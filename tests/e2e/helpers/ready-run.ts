@@ -30,6 +30,8 @@ export type ReadyRunOptions = {
   withMotion?: boolean;
   /** Per-component reproducibility (component order), as a decomposition with restarts reports it. */
   reproducibility?: number[];
+  /** FastICA restarts (default: the engine's); 1 keeps set-up short for runs with many components. */
+  restarts?: number;
 };
 
 export type ReadyRun = { runId: number; decompositionId: number; componentIds: number[]; k: number };
@@ -48,7 +50,7 @@ export async function createReadyRun(db: Knex, opts: ReadyRunOptions): Promise<R
   const [nx, ny, nz, nt] = p.dims;
   const boldBytes = encodeNifti1(phantomToNiftiInput(p));
   const image = decodeNifti(boldBytes);
-  const result = await decomposeRun({ image }, { drop, threads: 1, components: opts.components ?? 'auto', seed: 1 });
+  const result = await decomposeRun({ image }, { drop, threads: 1, components: opts.components ?? 'auto', seed: 1, ...(opts.restarts ? { restarts: opts.restarts } : {}) });
   if (opts.reproducibility) result.reproducibility = Float64Array.from({ length: result.k }, (_, c) => opts.reproducibility![c] ?? 1);
 
   const motionFull: MotionParams = { translations: p.motion.translations, rotations: p.motion.rotations };

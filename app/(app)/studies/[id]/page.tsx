@@ -54,7 +54,7 @@ export default async function StudyPage({ params }: { params: Promise<{ id: stri
           </Link>
         </nav>
       </div>
-      <StudyClient studyId={id} initial={{ runs, progress }} canManage={access.canManage} maxBytes={maxUploadBytes()} />
+      <StudyClient studyId={id} initial={{ runs, progress }} canManage={access.canManage} readOnlyOpen={access.seesAllRuns} maxBytes={maxUploadBytes()} />
     </div>
   );
 }

@@ -8,16 +8,18 @@ import { useRunComponents } from '@/lib/desk/use-run-components';
 import { useVotes, votesKey } from '@/lib/desk/use-vote';
 import { useDeskPosition } from '@/lib/desk/use-desk-position';
 import type { ComponentsPayload, VoteFields, VotesPayload } from '@/lib/desk/types';
-import { VolumeViewer, type ViewerLayout, type ViewerLocation } from '@/components/viewer';
-import { DUSK_CSS, EMBER_CSS } from '@/components/viewer/colormaps';
-import { TimecourseChart } from '@/components/charts/timecourse-chart';
-import { SpectrumChart } from '@/components/charts/spectrum-chart';
-import { MotionChart } from '@/components/charts/motion-chart';
+import type { ViewerApi } from '@/components/viewer';
+import { useDeskPrefs } from '@/lib/desk/prefs';
+import { useFlags } from '@/lib/desk/use-flags';
+import { MapPanel } from '@/components/desk/map-panel';
+import { ChartsPanel } from '@/components/desk/charts-panel';
+import { applyViewCommand } from '@/components/desk/view-commands';
+import { GoToBox } from '@/components/desk/go-to-box';
 import { FeaturePanel } from '@/components/desk/feature-panel';
 import { SuggestionAfterVote } from '@/components/suggestions/suggestion-after-vote';
 import { isLowReproducibility } from '@/lib/desk/reproducibility';
 import { HelpOverlay } from '@/components/desk/help-overlay';
-import { ComponentStrip } from '@/components/desk/component-strip';
+import { ComponentStrip, visibleIndices, type StripFilter } from '@/components/desk/component-strip';
 import { VerdictPanel } from '@/components/desk/verdict-panel';
 import { OthersVotes } from '@/components/desk/others-votes';
 import { Notice } from '@/components/ui/notice';
@@ -30,18 +32,6 @@ declare global {
     __deskTimings?: number[];
     /** Key press → React committed and the viewer issued its draw calls, ms. */
     __deskTimingsIssued?: number[];
-  }
-}
-
-const PREFS = 'quorum.desk.prefs.v1';
-type Prefs = { threshold: number; layout: ViewerLayout; autoAdvance: boolean };
-const DEFAULT_PREFS: Prefs = { threshold: 2.0, layout: 'multiplanar', autoAdvance: false };
-
-function loadPrefs(): Prefs {
-  try {
-    return { ...DEFAULT_PREFS, ...(JSON.parse(localStorage.getItem(PREFS) ?? '{}') as Partial<Prefs>) };
-  } catch {
-    return DEFAULT_PREFS;
   }
 }
 
@@ -84,18 +74,12 @@ export function RateClient({
     const i = components.findIndex((c) => !labelled.has(c.id));
     return i < 0 ? 0 : i;
   });
-  const [prefs, setPrefs] = useState<Prefs>(DEFAULT_PREFS);
-  // eslint-disable-next-line react-hooks/set-state-in-effect -- localStorage exists only after hydration; the server renders the defaults
-  useEffect(() => setPrefs(loadPrefs()), []);
-  useEffect(() => {
-    try {
-      localStorage.setItem(PREFS, JSON.stringify(prefs));
-    } catch {
-      /* private mode */
-    }
-  }, [prefs]);
+  const [prefs, setPrefs] = useDeskPrefs();
+  const { flags, toggle: toggleFlag } = useFlags(runId, userId);
+  const [filter, setFilter] = useState<StripFilter>('all');
+  const [goToOpen, setGoToOpen] = useState(false);
+  const viewerApi = useRef<ViewerApi | null>(null);
   const [help, setHelp] = useState(false);
-  const [location, setLocation] = useState<ViewerLocation | null>(null);
   const [viewerError, setViewerError] = useState<string | null>(null);
   const [submitState, setSubmitState] = useState<{ busy: boolean; message: string | null }>({ busy: false, message: null });
   const noteRef = useRef<HTMLTextAreaElement>(null);
@@ -141,6 +125,17 @@ export function RateClient({
     if (window.__quorumTestHooks) (window.__deskTimings ??= []).push(ms);
   }, []);
 
+  const order = useMemo(() => visibleIndices(ids, filter, votes, flags, index), [ids, filter, votes, flags, index]);
+  const goToNumber = useCallback(
+    (n: number): string | null => {
+      const i = numbers.indexOf(n);
+      if (i < 0) return `Component ${n} is hidden from raters in this study (low reproducibility).`;
+      goTo(i);
+      return null;
+    },
+    [numbers, goTo],
+  );
+
   const change = useCallback(
     (fields: Partial<VoteFields>, advance = false) => {
       if (frozen) return;
@@ -174,6 +169,7 @@ export function RateClient({
       if (!cmd) return;
       if (help && cmd.type !== 'help' && cmd.type !== 'close') return;
       e.preventDefault();
+      if (applyViewCommand(cmd, { setPrefs, viewer: viewerApi.current, order, index, goTo, openGoTo: () => setGoToOpen(true) })) return;
       switch (cmd.type) {
         case 'label':
           change(cmd.label === 'noise' ? { label: cmd.label } : { label: cmd.label, noiseKind: null }, cmd.label !== 'noise');
@@ -186,12 +182,6 @@ export function RateClient({
         case 'confidence':
           if (vote?.label) change({ confidence: cmd.value });
           break;
-        case 'next':
-          goTo(index + 1);
-          break;
-        case 'previous':
-          goTo(index - 1);
-          break;
         case 'nextUnlabelled': {
           const j = firstUnlabelled(index + 1);
           if (j >= 0 && j !== index) goTo(j);
@@ -200,17 +190,14 @@ export function RateClient({
         case 'note':
           noteRef.current?.focus();
           break;
-        case 'thresholdDown':
-          setPrefs((p) => ({ ...p, threshold: Math.max(1, Math.round((p.threshold - 0.5) * 10) / 10) }));
-          break;
-        case 'thresholdUp':
-          setPrefs((p) => ({ ...p, threshold: Math.min(12, Math.round((p.threshold + 0.5) * 10) / 10) }));
-          break;
-        case 'layout':
-          setPrefs((p) => ({ ...p, layout: p.layout === 'mosaic' ? 'multiplanar' : 'mosaic' }));
-          break;
         case 'autoAdvance':
           setPrefs((p) => ({ ...p, autoAdvance: !p.autoAdvance }));
+          break;
+        case 'flag':
+          toggleFlag(component.id);
+          break;
+        case 'filter':
+          setFilter((f) => (f === 'all' ? 'unlabelled' : f === 'unlabelled' ? 'flagged' : 'all'));
           break;
         case 'help':
           setHelp((h) => !h);
@@ -226,10 +213,9 @@ export function RateClient({
     };
     window.addEventListener('keydown', onKey);
     return () => window.removeEventListener('keydown', onKey);
-  }, [run.labelSet, run.noiseKinds, help, change, vote?.label, goTo, index, firstUnlabelled, submit, clearRefusal]);
+  }, [run.labelSet, run.noiseKinds, help, change, vote?.label, goTo, index, firstUnlabelled, submit, clearRefusal, setPrefs, order, toggleFlag, component.id]);
 
-  const peak = Number(component.features.peakZ ?? 0);
-  const maxZ = Math.max(prefs.threshold + 2, Math.min(peak || 8, 15));
+  const peak = component.features.peakZ == null ? null : Math.abs(Number(component.features.peakZ));
   const files = `/api/runs/${runId}/files`;
   const othersHere = others?.filter((o) => o.componentId === component.id) ?? null;
   const pct = ids.length ? (100 * labelledCount) / ids.length : 0;
@@ -253,6 +239,15 @@ export function RateClient({
         <p className="font-mono text-sm" data-testid="desk-position" aria-live="polite">
           Component <span className="text-ink">{component.idx}</span> of {run.k}
         </p>
+        <button
+          type="button"
+          onClick={() => toggleFlag(component.id)}
+          aria-pressed={flags.has(component.id)}
+          className={`rounded border px-2 py-0.5 text-xs ${flags.has(component.id) ? 'border-alarm text-alarm' : 'border-line-strong text-ink-muted'}`}
+          data-testid="flag-toggle"
+        >
+          {flags.has(component.id) ? 'Flagged' : 'Flag'} (F)
+        </button>
         {run.reproducibility?.hidden ? (
           <p className="text-xs text-ink-muted" data-testid="desk-hidden-note" title="The study hides components whose reproducibility is below its threshold; the lead decides them.">
             {run.reproducibility.hidden} of {run.k} hidden (reproducibility below {run.reproducibility.threshold.toFixed(2)})
@@ -318,88 +313,27 @@ export function RateClient({
         </Notice>
       ) : null}
 
-      <ComponentStrip ids={ids} current={index} votes={votes} onPick={goTo} numbers={numbers} lowIds={lowIds} />
+      <ComponentStrip ids={ids} current={index} votes={votes} onPick={goTo} numbers={numbers} lowIds={lowIds} flags={flags} filter={filter} onFilter={setFilter} />
+      {goToOpen ? <GoToBox k={run.k} go={goToNumber} onClose={() => setGoToOpen(false)} /> : null}
 
       <div className="grid gap-3 lg:grid-cols-[minmax(0,1fr)_20rem]">
         <div className="flex min-w-0 flex-col gap-2">
-          <div className="relative h-[26rem] overflow-hidden rounded border border-line bg-ground-sunken">
-            <VolumeViewer
-              meanUrl={`${files}/mean.nii.gz?d=${run.decompositionId}`}
-              componentsUrl={`${files}/components.nii.gz?d=${run.decompositionId}`}
-              frame={component.idx - 1}
-              threshold={prefs.threshold}
-              maxZ={maxZ}
-              layout={prefs.layout}
-              onLocation={setLocation}
-              onDrawn={onDrawn}
-              onError={setViewerError}
-            />
-          </div>
-          <div className="flex flex-wrap items-center gap-x-4 gap-y-1 text-xs text-ink-muted">
-            <label className="flex items-center gap-2">
-              |z| ≥
-              <input
-                type="range"
-                min={1}
-                max={12}
-                step={0.1}
-                value={prefs.threshold}
-                onChange={(e) => setPrefs((p) => ({ ...p, threshold: Number(e.target.value) }))}
-                aria-label="|z| threshold"
-                data-testid="threshold"
-                className="w-28 accent-lumen"
-              />
-              <span className="w-8 font-mono text-ink" data-testid="threshold-value">
-                {prefs.threshold.toFixed(1)}
-              </span>
-            </label>
-            <span className="flex items-center gap-1" aria-hidden>
-              <span className="h-2 w-12 rounded-sm" style={{ background: DUSK_CSS }} />
-              <span className="font-mono">−z · +z</span>
-              <span className="h-2 w-12 rounded-sm" style={{ background: EMBER_CSS }} />
-            </span>
-            <div role="group" aria-label="Layout" className="flex overflow-hidden rounded border border-line-strong">
-              {(['multiplanar', 'mosaic'] as const).map((l) => (
-                <button
-                  key={l}
-                  type="button"
-                  aria-pressed={prefs.layout === l}
-                  onClick={() => setPrefs((p) => ({ ...p, layout: l }))}
-                  data-testid={`layout-${l}`}
-                  className={`px-2 py-0.5 ${prefs.layout === l ? 'bg-ground-raised text-ink' : 'text-ink-muted'}`}
-                >
-                  {l === 'multiplanar' ? 'Three planes' : 'Mosaic'}
-                </button>
-              ))}
-            </div>
-            <label className="flex items-center gap-1">
-              <input type="checkbox" checked={prefs.autoAdvance} onChange={() => setPrefs((p) => ({ ...p, autoAdvance: !p.autoAdvance }))} className="accent-lumen" />
-              auto-advance (A)
-            </label>
-            <span className="ml-auto font-mono" data-testid="crosshair-readout">
-              {location
-                ? `${location.mm.map((v) => v.toFixed(0)).join(', ')} mm · z ${location.z == null ? '—' : location.z.toFixed(2)}`
-                : 'click the map to read z'}
-            </span>
-          </div>
-          <div className="grid gap-2 md:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]">
-            <figure className="rounded border border-line bg-ground-raised px-2 pt-1">
-              <figcaption className="text-[11px] uppercase tracking-wider text-ink-muted">Time course · s</figcaption>
-              <TimecourseChart values={component.timecourse} trSeconds={run.trSeconds} droppedVolumes={run.droppedVolumes} />
-              {run.framewiseDisplacement ? (
-                <>
-                  <p className="text-[11px] uppercase tracking-wider text-ink-muted">Framewise displacement · mm</p>
-                  <MotionChart fd={run.framewiseDisplacement} trSeconds={run.trSeconds} droppedVolumes={run.droppedVolumes} />
-                </>
-              ) : null}
-            </figure>
-            <figure className="rounded border border-line bg-ground-raised px-2 pt-1">
-              <figcaption className="text-[11px] uppercase tracking-wider text-ink-muted">
-                Power spectrum · Hz (to {(1 / (2 * run.trSeconds)).toFixed(2)} Hz; line at 0.1 Hz)
-              </figcaption>
-              <SpectrumChart frequencies={component.frequencies} power={component.spectrum} trSeconds={run.trSeconds} />
-            </figure>
-          </div>
+          <MapPanel
+            meanUrl={`${files}/mean.nii.gz?d=${run.decompositionId}`}
+            componentsUrl={`${files}/components.nii.gz?d=${run.decompositionId}`}
+            frame={component.idx - 1}
+            peakZ={peak}
+            prefs={prefs}
+            setPrefs={setPrefs}
+            api={viewerApi}
+            onDrawn={onDrawn}
+            onError={setViewerError}
+          />
+          <label className="flex items-center gap-1 text-xs text-ink-muted">
+            <input type="checkbox" checked={prefs.autoAdvance} onChange={() => setPrefs((p) => ({ ...p, autoAdvance: !p.autoAdvance }))} className="accent-lumen" />
+            auto-advance (A)
+          </label>
+          <ChartsPanel run={run} component={component} />
         </div>
         <aside className="flex flex-col gap-3" aria-label="Vote and features">
           <VerdictPanel
