@@ -28,7 +28,7 @@ pids=()
 trap 'kill "${pids[@]}" 2>/dev/null; wait' EXIT INT TERM
 node --import tsx scripts/mail-server.ts --exit-with-parent &
 pids+=($!)
-node --import tsx scripts/worker.ts &
+node --conditions=react-server --import tsx scripts/worker.ts &
 pids+=($!)
 # the production start (scripts/serve.ts) in demo mode: the tests read the dev mailbox
 QUORUM_DEMO=1 QUORUM_SKIP_MIGRATE=1 QUORUM_HOST=127.0.0.1 PORT="$PORT" node --import tsx scripts/serve.ts &

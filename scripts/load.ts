@@ -87,7 +87,7 @@ async function prepare(uploads: string) {
 }
 
 function start(args: string[], env: Record<string, string>, name: string): ChildProcess {
-  const child = spawn(process.execPath, ['--import', 'tsx', ...args], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+  const child = spawn(process.execPath, ['--conditions=react-server', '--import', 'tsx', ...args], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
   child.stderr!.on('data', (b: Buffer) => process.stderr.write(`[${name}] ${b}`));
   child.stdout!.resume();
   children.push(child);

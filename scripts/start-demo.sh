@@ -43,7 +43,7 @@ trap stop_all EXIT INT TERM
 export SMTP_HOST="${SMTP_HOST:-127.0.0.1}" SMTP_PORT="${SMTP_PORT:-${QUORUM_MAIL_PORT:-2525}}" QUORUM_DEV_MAILBOX="${QUORUM_DEV_MAILBOX:-1}"
 node --import tsx scripts/mail-server.ts &
 pids+=($!)
-node --import tsx scripts/worker.ts &
+node --conditions=react-server --import tsx scripts/worker.ts &
 pids+=($!)
 
 # the production server (scripts/serve.ts) in demo mode: the in-app mailbox is allowed, the schema

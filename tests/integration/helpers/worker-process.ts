@@ -1,5 +1,5 @@
 /**
- * Spawns `node --import tsx scripts/worker.ts` as a child process against the test database
+ * Spawns `node --conditions=react-server --import tsx scripts/worker.ts` as a child process against the test database
  * (QUORUM_DB_NAME from the harness) and a given storage root, collecting its output lines.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -24,7 +24,7 @@ export function spawnWorker(opts: {
   env?: Record<string, string>;
 }): WorkerProcess {
   const workerId = opts.workerId ?? `test-worker-${Math.random().toString(16).slice(2, 8)}`;
-  const child = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts', ...(opts.args ?? ['--once'])], {
+  const child = spawn(process.execPath, ['--conditions=react-server', '--import', 'tsx', 'scripts/worker.ts', ...(opts.args ?? ['--once'])], {
     cwd: root,
     env: {
       ...process.env,
