@@ -3,8 +3,8 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { StatResult } from '@/lib/agreement';
 import { getJson, postJson } from '@/lib/api/client';
-import type { CalibrationThreshold, GateVerdict } from '@/lib/calibration/gate';
-import type { KindSensitivity } from '@/lib/calibration/per-kind';
+import type { CalibrationThreshold, GateVerdict } from '@/lib/agreement/threshold-gate';
+import type { KindSensitivity } from '@/lib/agreement/kind-sensitivity';
 
 /** What GET /api/studies/:id/calibration returns (dates as ISO strings, as JSON carries them). */
 export type CalibrationScoreView = {

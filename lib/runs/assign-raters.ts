@@ -11,7 +11,7 @@
  */
 import type { Knex } from 'knex';
 import { calibrationGate, calibrationThreshold } from '@/lib/db/queries/calibration';
-import { isGated } from '@/lib/calibration/gate';
+import { isGated } from '@/lib/agreement/threshold-gate';
 
 export interface AssignRatersResult {
   /** 'assigned', or why nothing was done. */
