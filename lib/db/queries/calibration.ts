@@ -338,3 +338,16 @@ export async function calibrationGate({ studyId, raterId }: { studyId: number; r
   const { score } = await scoreRater({ studyId, userId: raterId }, trx);
   return gateVerdict(score, t);
 }
+
+/** A run of the study with its calibration flag and the raters assigned to it (null when not in the study). */
+export async function calibrationRunInfo({ studyId, runId }: { studyId: number; runId: number }) {
+  const r = await db('runs').where({ id: runId, study_id: studyId }).first('id', 'is_calibration as isCalibration', 'sub', 'ses', 'task', 'acq', 'run_label as runLabel');
+  if (!r) return null;
+  const raters = (await db('assignments').where({ run_id: runId }).select('rater_id')).map((a: { rater_id: number }) => Number(a.rater_id));
+  return { runId: Number(r.id), isCalibration: Boolean(r.isCalibration), name: nameOf(r), raterIds: raters };
+}
+
+/** Clears the run's calibration flag; its reference labels, votes and assignments stay. */
+export async function clearCalibrationFlag({ studyId, runId }: { studyId: number; runId: number }): Promise<void> {
+  await db('runs').where({ id: runId, study_id: studyId }).update({ is_calibration: false });
+}
