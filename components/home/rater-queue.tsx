@@ -47,6 +47,11 @@ export function RaterQueue({ items }: { items: QueueItem[] }) {
             {done.map((i) => (
               <li key={i.runId} className="flex justify-between py-2">
                 <span className="font-mono">{bidsName(i)}</span>
+                {i.isCalibration ? (
+                  <Link href={`/studies/${i.studyId}/calibration/result/${i.runId}`} className="text-lumen hover:text-lumen-strong" data-testid="calibration-result-link">
+                    Your calibration result
+                  </Link>
+                ) : null}
                 <span className="text-ink-muted">submitted {i.submittedAt?.toISOString().replace('T', ' ').slice(0, 16)} UTC</span>
               </li>
             ))}

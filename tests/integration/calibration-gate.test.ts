@@ -84,6 +84,18 @@ describe('calibration threshold', () => {
     expect(o.raters.find((r) => r.id === s.raterIds[0])!.gate).toEqual({ gated: true, passes: true, reason: null });
   });
 
+  it('a rater sees their result on a submitted calibration run component by component, with the lead’s reason; not before submitting', async () => {
+    const { calibrationResult } = await import('@/lib/db/queries/calibration');
+    const cal = await db('runs').where({ study_id: s.studyId, is_calibration: true }).first('id');
+    const comps = await db('components as c').join('decompositions as d', 'd.id', 'c.decomposition_id').where('d.run_id', cal.id).orderBy('c.idx').select('c.id');
+    await db('decisions').insert({ component_id: comps[0].id, run_id: cal.id, label: 'noise', noise_kind: 'motion', method: 'reconciled', reason: 'ring at the brain outline' });
+    const r = await calibrationResult({ studyId: s.studyId, runId: cal.id, raterId: s.raterIds[1]! });
+    expect(r!.components).toHaveLength(6);
+    expect(r!.components[0]).toMatchObject({ idx: 1, myLabel: 'signal', referenceLabel: 'noise', referenceKind: 'motion', reason: 'ring at the brain outline' });
+    // rater C has no submitted assignment on it: no result, so no reference labels leak
+    expect(await calibrationResult({ studyId: s.studyId, runId: cal.id, raterId: s.raterIds[2]! })).toBeNull();
+  });
+
   it('unmarking the calibration run keeps its references and votes, records the scores, and the run stops counting', async () => {
     const unmarkRoute = await import('@/app/api/studies/[id]/calibration/runs/[runId]/route');
     const cal = await db('runs').where({ study_id: s.studyId, is_calibration: true }).first('id');

@@ -351,3 +351,43 @@ export async function calibrationRunInfo({ studyId, runId }: { studyId: number; 
 export async function clearCalibrationFlag({ studyId, runId }: { studyId: number; runId: number }): Promise<void> {
   await db('runs').where({ id: runId, study_id: studyId }).update({ is_calibration: false });
 }
+
+export type CalibrationResultRow = {
+  componentId: number; idx: number; myLabel: string | null; myKind: string | null;
+  referenceLabel: string | null; referenceKind: string | null; reason: string | null; features: Record<string, number | null>;
+};
+
+/**
+ * A rater's result on one calibration run they have submitted, component by component: their
+ * label, the reference label and the lead's reason (the reason of the decision the reference was
+ * adopted from). null when the run is not a calibration run of the study assigned to the rater and
+ * submitted (the reference stays hidden until the rater has submitted).
+ */
+export async function calibrationResult({ studyId, runId, raterId }: { studyId: number; runId: number; raterId: number }) {
+  const run = await db('runs as r')
+    .join('assignments as a', function () {
+      this.on('a.run_id', 'r.id').andOn('a.rater_id', db.raw('?', [raterId]));
+    })
+    .where({ 'r.id': runId, 'r.study_id': studyId, 'r.is_calibration': true })
+    .whereNotNull('a.submitted_at')
+    .first('r.id', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel', 'a.submitted_at as submittedAt');
+  if (!run) return null;
+  const rows = await db('components as c')
+    .join('decompositions as d', 'd.id', 'c.decomposition_id')
+    .leftJoin('votes as v', function () {
+      this.on('v.component_id', 'c.id').andOn('v.rater_id', db.raw('?', [raterId]));
+    })
+    .leftJoin('reference_labels as rl', 'rl.component_id', 'c.id')
+    .leftJoin('decisions as x', 'x.component_id', 'c.id')
+    .where({ 'd.run_id': runId, 'd.is_current': true })
+    .orderBy('c.idx')
+    .select('c.id', 'c.idx', 'c.features', 'v.label as myLabel', 'v.noise_kind as myKind', 'rl.label as referenceLabel', 'rl.noise_kind as referenceKind', 'x.reason');
+  return {
+    runId, runName: nameOf(run), submittedAt: new Date(run.submittedAt).toISOString(),
+    components: rows.map((r): CalibrationResultRow => ({
+      componentId: Number(r.id), idx: Number(r.idx), myLabel: r.myLabel ?? null, myKind: r.myKind ?? null,
+      referenceLabel: r.referenceLabel ?? null, referenceKind: r.referenceKind ?? null, reason: r.reason ?? null,
+      features: parseJson<Record<string, number | null>>(r.features, {}) ?? {},
+    })),
+  };
+}
