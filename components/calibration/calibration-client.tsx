@@ -156,6 +156,11 @@ export function CalibrationClient({ studyId, initial }: { studyId: number; initi
                     {cell(s.noise.specificity)}
                     <td className="py-2 pr-3 text-xs" data-testid="calibration-gate">
                       {!r.gate?.gated ? <span className="text-ink-faint">no threshold</span> : r.gate.passes ? <span className="text-lumen-strong">eligible</span> : <span className="text-alarm">not yet: {r.gate.reason}</span>}
+                      {r.history && r.history.length > 1 ? (
+                        <span className="block text-ink-faint" data-testid="calibration-history">
+                          over time (AC1 / noise sens.): {r.history.map((h) => `${h.submittedAt.slice(0, 10)} ${formatStat(h.score.gwetAC1, 2)} / ${formatStat(h.score.noise.sensitivity, 2)}${h.stillCalibration ? '' : ' (unmarked)'}`).join(' → ')}
+                        </span>
+                      ) : null}
                       {r.byKind?.length ? (
                         <span className="block text-ink-faint" data-testid="calibration-by-kind">
                           by kind: {r.byKind.map((k) => `${k.kind} ${k.detected}/${k.n}`).join(', ')}

@@ -24,6 +24,7 @@ export type CalibrationRaterView = {
   score: CalibrationScoreView;
   byKind?: KindSensitivity[];
   gate?: GateVerdict;
+  history?: Array<{ runId: number; runName: string; submittedAt: string; stillCalibration: boolean; score: CalibrationScoreView }>;
   certification: { passed: boolean; certifiedAt: string | null } | null;
 };
 export type CalibrationView = {

@@ -90,4 +90,10 @@ describe('calibration drift e-mail', () => {
     expect(mail[0]!.text).toMatch(/noise sensitivity 0\.50 is below 0\.85/);
     expect((await sendDriftNotices(db)).sent).toEqual([]);
   });
+
+  it('the rater’s history shows the drop run by run (1.00 then 0.00 noise sensitivity)', async () => {
+    const { calibrationHistory } = await import('@/lib/db/queries/calibration');
+    const h = await calibrationHistory({ studyId: s.studyId, userId: s.raterIds[1]! });
+    expect(h.map((e) => e.score.noise.sensitivity.value)).toEqual([1, 0]);
+  });
 });

@@ -40,6 +40,8 @@ export type CalibrationRater = {
   byKind: KindSensitivity[];
   /** May the rater get live runs under the study's calibration threshold, and why not. */
   gate: GateVerdict;
+  /** One score per submitted calibration run, oldest first (drift over time). */
+  history: CalibrationHistoryEntry[];
   certification: CalibrationCertification | null;
 };
 export type CalibrationOverview = {
@@ -184,6 +186,7 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
       score,
       byKind,
       gate: gateVerdict(submittedRuns ? score : null, threshold),
+      history: await calibrationHistory({ studyId, userId: Number(m.id) }),
       certification: m.certId
         ? { passed: Boolean(m.passed), certifiedBy: m.certifiedBy == null ? null : Number(m.certifiedBy), certifiedAt: m.certifiedAt ?? null, scores: parseJson<CalibrationScore>(m.scores, null) }
         : null,
@@ -390,4 +393,34 @@ export async function calibrationResult({ studyId, runId, raterId }: { studyId: 
       features: parseJson<Record<string, number | null>>(r.features, {}) ?? {},
     })),
   };
+}
+
+export type CalibrationHistoryEntry = { runId: number; runName: string; submittedAt: string; stillCalibration: boolean; score: CalibrationScore };
+
+/**
+ * The rater's calibration history, oldest first: one score per submitted run that has reference
+ * labels — runs since unmarked included (stillCalibration false), so unmarking keeps the history.
+ */
+export async function calibrationHistory({ studyId, userId }: { studyId: number; userId: number }, trx: Knex | Knex.Transaction = db): Promise<CalibrationHistoryEntry[]> {
+  const { categories } = await studyLabels(trx, studyId);
+  const rows = (await trx('votes as v')
+    .join('components as c', 'c.id', 'v.component_id')
+    .join('decompositions as d', 'd.id', 'c.decomposition_id')
+    .join('runs as r', 'r.id', 'd.run_id')
+    .join('assignments as a', function () {
+      this.on('a.run_id', 'r.id').andOn('a.rater_id', 'v.rater_id');
+    })
+    .join('reference_labels as rl', 'rl.component_id', 'c.id')
+    .where({ 'r.study_id': studyId, 'd.is_current': true, 'v.rater_id': userId })
+    .whereNotNull('a.submitted_at')
+    .orderBy([{ column: 'a.submitted_at' }, { column: 'r.id' }])
+    .select('v.label as rater', 'rl.label as reference', 'r.id as runId', 'r.is_calibration as isCalibration', 'a.submitted_at as submittedAt', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel')) as Array<{
+    rater: string; reference: string; runId: number; isCalibration: unknown; submittedAt: Date; sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null;
+  }>;
+  const byRun = new Map<number, typeof rows>();
+  for (const r of rows) byRun.set(Number(r.runId), [...(byRun.get(Number(r.runId)) ?? []), r]);
+  return [...byRun.values()].map((rs) => ({
+    runId: Number(rs[0]!.runId), runName: nameOf(rs[0]!), submittedAt: new Date(rs[0]!.submittedAt).toISOString(),
+    stillCalibration: Boolean(rs[0]!.isCalibration), score: scoreAgainstReference(rs, categories),
+  }));
 }
