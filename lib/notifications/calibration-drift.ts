@@ -8,7 +8,7 @@
  */
 import type { Knex } from 'knex';
 import { isGated } from '@/lib/agreement/threshold-gate';
-import { calibrationGate, calibrationThreshold } from '@/lib/db/queries/calibration';
+import { calibrationGate, calibrationThreshold } from '@/lib/db/queries/calibration-gate';
 import { facilityName, publicBaseUrl } from '@/lib/mail/config';
 import { deliverMail } from '@/lib/mail/deliver';
 import { calibrationDriftMail } from '@/lib/mail/templates/calibration-drift';

@@ -10,7 +10,7 @@
  * the `created` assignments).
  */
 import type { Knex } from 'knex';
-import { calibrationGate, calibrationThreshold } from '@/lib/db/queries/calibration';
+import { calibrationGate, calibrationThreshold } from '@/lib/db/queries/calibration-gate';
 import { isGated } from '@/lib/agreement/threshold-gate';
 
 export interface AssignRatersResult {
