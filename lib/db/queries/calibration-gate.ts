@@ -5,7 +5,7 @@ import type { Knex } from 'knex';
 import { db, parseJson } from '@/lib/db/knex';
 import { gateVerdict, isGated, type CalibrationThreshold, type GateVerdict } from '@/lib/agreement/threshold-gate';
 import { sensitivityByKind } from '@/lib/agreement/kind-sensitivity';
-import { scoreAgainstReference } from '@/lib/calibration/score';
+import { scoreAgainstReference } from '@/lib/agreement/reference-score';
 
 export async function studyLabels(trx: Knex | Knex.Transaction, studyId: number) {
   const s = await trx('studies').where({ id: studyId }).first('label_set as labelSet', 'noise_kinds as noiseKinds');

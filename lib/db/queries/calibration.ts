@@ -1,9 +1,9 @@
 import 'server-only';
 import type { Knex } from 'knex';
 import { bidsName } from '@/lib/bids';
-import { scoreAgainstReference, type CalibrationScore } from '@/lib/calibration/score';
-import { gateVerdict, isGated, type CalibrationThreshold, type GateVerdict } from '@/lib/agreement/threshold-gate';
-import { sensitivityByKind, type KindSensitivity } from '@/lib/agreement/kind-sensitivity';
+import { scoreAgainstReference, type CalibrationScore } from '@/lib/agreement/reference-score';
+import { gateVerdict, type CalibrationThreshold, type GateVerdict } from '@/lib/agreement/threshold-gate';
+import type { KindSensitivity } from '@/lib/agreement/kind-sensitivity';
 import { db, parseJson, toJson } from '@/lib/db/knex';
 import { AppError, notFound } from '@/lib/errors';
 import { recordAudit } from './audit';
