@@ -17,13 +17,20 @@ function referenceState(run: CalibrationRunView): { text: string; tone: string }
 }
 
 /** One calibration run: reference status, adopt references, its raters' progress, assign a rater. */
-function RunRow({ run, raters, busy, act }: { run: CalibrationRunView; raters: CalibrationRaterView[]; busy: boolean; act: (path: string, body: unknown, done: string) => void }) {
+function RunRow({ run, raters, busy, act }: { run: CalibrationRunView; raters: CalibrationRaterView[]; busy: boolean; act: (path: string, body: unknown, done: string, method?: 'POST' | 'DELETE') => void }) {
   const state = referenceState(run);
   const complete = run.total > 0 && run.referenced === run.total;
   const free = raters.filter((r) => r.active && !run.assignments.some((a) => a.raterId === r.id));
   return (
     <tr className="border-t border-line align-top" data-testid={`calibration-run-${run.runId}`}>
-      <td className="py-2 pr-3 font-medium">{run.runName}</td>
+      <td className="py-2 pr-3 font-medium">
+        {run.runName}
+        <div className="mt-1">
+          <Button variant="quiet" className="text-xs" disabled={busy} onClick={() => act(`/runs/${run.runId}`, null, `${run.runName} is no longer a calibration run; its references, votes and the scores up to now are kept.`, 'DELETE')} data-testid="calibration-unmark">
+            Unmark
+          </Button>
+        </div>
+      </td>
       <td className="py-2 pr-3">
         <span className={`text-xs ${state.tone}`} data-testid="calibration-reference-state">{state.text}</span>
         <div className="mt-1">
@@ -70,9 +77,9 @@ export function CalibrationClient({ studyId, initial }: { studyId: number; initi
   const action = useCalibrationAction(studyId);
   const [message, setMessage] = useState<{ kind: 'ok' | 'error'; text: string } | null>(null);
   const [candidate, setCandidate] = useState('');
-  const act = (path: string, body: unknown, done: string) => {
+  const act = (path: string, body: unknown, done: string, method: 'POST' | 'DELETE' = 'POST') => {
     setMessage(null);
-    action.mutate({ path, body }, { onSuccess: () => setMessage({ kind: 'ok', text: done }), onError: (e) => setMessage({ kind: 'error', text: e.message }) });
+    action.mutate({ path, body, method }, { onSuccess: () => setMessage({ kind: 'ok', text: done }), onError: (e) => setMessage({ kind: 'error', text: e.message }) });
   };
   const busy = action.isPending;
 
@@ -149,6 +156,11 @@ export function CalibrationClient({ studyId, initial }: { studyId: number; initi
                     {cell(s.noise.specificity)}
                     <td className="py-2 pr-3 text-xs" data-testid="calibration-gate">
                       {!r.gate?.gated ? <span className="text-ink-faint">no threshold</span> : r.gate.passes ? <span className="text-lumen-strong">eligible</span> : <span className="text-alarm">not yet: {r.gate.reason}</span>}
+                      {r.history && r.history.length > 1 ? (
+                        <span className="block text-ink-faint" data-testid="calibration-history">
+                          over time (AC1 / noise sens.): {r.history.map((h) => `${h.submittedAt.slice(0, 10)} ${formatStat(h.score.gwetAC1, 2)} / ${formatStat(h.score.noise.sensitivity, 2)}${h.stillCalibration ? '' : ' (unmarked)'}`).join(' → ')}
+                        </span>
+                      ) : null}
                       {r.byKind?.length ? (
                         <span className="block text-ink-faint" data-testid="calibration-by-kind">
                           by kind: {r.byKind.map((k) => `${k.kind} ${k.detected}/${k.n}`).join(', ')}

@@ -2,7 +2,7 @@
 import { useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { putJson } from '@/lib/api/client';
-import type { CalibrationThreshold } from '@/lib/calibration/gate';
+import type { CalibrationThreshold } from '@/lib/agreement/threshold-gate';
 import { Button } from '@/components/ui/button';
 import { calibrationKey } from './use-calibration';
 

@@ -2,9 +2,9 @@
 
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { StatResult } from '@/lib/agreement';
-import { getJson, postJson } from '@/lib/api/client';
-import type { CalibrationThreshold, GateVerdict } from '@/lib/calibration/gate';
-import type { KindSensitivity } from '@/lib/calibration/per-kind';
+import { deleteJson, getJson, postJson } from '@/lib/api/client';
+import type { CalibrationThreshold, GateVerdict } from '@/lib/agreement/threshold-gate';
+import type { KindSensitivity } from '@/lib/agreement/kind-sensitivity';
 
 /** What GET /api/studies/:id/calibration returns (dates as ISO strings, as JSON carries them). */
 export type CalibrationScoreView = {
@@ -24,6 +24,7 @@ export type CalibrationRaterView = {
   score: CalibrationScoreView;
   byKind?: KindSensitivity[];
   gate?: GateVerdict;
+  history?: Array<{ runId: number; runName: string; submittedAt: string; stillCalibration: boolean; score: CalibrationScoreView }>;
   certification: { passed: boolean; certifiedAt: string | null } | null;
 };
 export type CalibrationView = {
@@ -50,12 +51,13 @@ export function useCalibration(studyId: number, initialData: CalibrationView) {
   });
 }
 
-/** One POST under /api/studies/:id/calibration that refreshes the page's data when done; throws with the server's message. */
+/** One POST (or DELETE) under /api/studies/:id/calibration that refreshes the page's data when done; throws with the server's message. */
 export function useCalibrationAction(studyId: number) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: async ({ path, body }: { path: string; body: unknown }) => {
-      const r = await postJson(`/api/studies/${studyId}/calibration${path}`, body);
+    mutationFn: async ({ path, body, method = 'POST' }: { path: string; body: unknown; method?: 'POST' | 'DELETE' }) => {
+      const url = `/api/studies/${studyId}/calibration${path}`;
+      const r = method === 'DELETE' ? await deleteJson(url) : await postJson(url, body);
       if (!r.ok) throw new Error(r.message);
       return r.data;
     },

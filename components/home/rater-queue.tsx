@@ -50,6 +50,11 @@ export function RaterQueue({ items }: { items: QueueItem[] }) {
                   <p className="truncate font-mono">{bidsName(i)}</p>
                   <p className="text-xs text-ink-muted">{i.studyName}</p>
                 </div>
+                {i.isCalibration ? (
+                  <Link href={`/studies/${i.studyId}/calibration/result/${i.runId}`} className="text-xs text-lumen hover:text-lumen-strong" data-testid="calibration-result-link">
+                    Your calibration result
+                  </Link>
+                ) : null}
                 <span className="ml-auto text-xs text-ink-muted">submitted {i.submittedAt?.toISOString().replace('T', ' ').slice(0, 16)} UTC</span>
                 {/* the desk shows a submitted run with the rater's votes; changes stay possible until a release freezes them */}
                 <Link href={`/runs/${i.runId}/rate`} className="rounded border border-line-strong px-3 py-1 text-xs text-ink hover:bg-ground-raised" data-testid="submitted-open">

@@ -6,7 +6,7 @@ import { recordAudit } from '@/lib/db/queries/audit';
 import { calibrationThreshold, setCalibrationThreshold } from '@/lib/db/queries/calibration';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { forbidden, notFound } from '@/lib/errors';
-import type { CalibrationThreshold } from './gate';
+import type { CalibrationThreshold } from '@/lib/agreement/threshold-gate';
 
 export async function readThreshold({ user, studyId }: { user: { id: number; role: Role }; studyId: number }): Promise<CalibrationThreshold> {
   const access = await findStudyAccess({ user, studyId });

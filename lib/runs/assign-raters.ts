@@ -11,8 +11,8 @@
  */
 import type { Knex } from 'knex';
 import { VOTING_ROLES } from '@/lib/auth/permissions';
-import { calibrationGate, calibrationThreshold } from '@/lib/db/queries/calibration';
-import { isGated } from '@/lib/calibration/gate';
+import { calibrationGate, calibrationThreshold } from '@/lib/db/queries/calibration-gate';
+import { isGated } from '@/lib/agreement/threshold-gate';
 
 export interface AssignRatersResult {
   /** 'assigned', or why nothing was done. */

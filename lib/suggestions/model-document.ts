@@ -1,5 +1,5 @@
 /** The exported suggestion model document (download and release ZIP): version, training releases, report and the model JSON. */
-import type { StoredModel } from '@/lib/db/queries/suggestions';
+import type { StoredModel } from './types';
 
 export function suggestionModelDocument(m: StoredModel) {
   return {

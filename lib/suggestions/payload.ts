@@ -17,6 +17,3 @@ export const scoreSuggestionsPayloadSchema = z
     runId: z.number().int().positive().optional(),
   })
   .strict();
-
-export type TrainSuggestionsPayload = z.infer<typeof trainSuggestionsPayloadSchema>;
-export type ScoreSuggestionsPayload = z.infer<typeof scoreSuggestionsPayloadSchema>;

@@ -10,6 +10,3 @@ export const suggestionSettingsSchema = z.object({ enabled: z.boolean({ message:
 export const trainRequestSchema = z
   .object({ sourceStudyIds: z.array(z.number().int().positive()).min(1, { message: 'Choose at least one study to learn from.' }).max(200).optional() })
   .strict();
-
-export type SuggestionSettingsInput = z.infer<typeof suggestionSettingsSchema>;
-export type TrainRequestInput = z.infer<typeof trainRequestSchema>;

@@ -37,6 +37,7 @@ export const ROUTES: RouteCase[] = [
   { file: 'studies/[id]/calibration/runs/[runId]/references/route.ts', method: 'POST', url: '/api/studies/999999/calibration/runs/999999/references', allowed: ['admin', 'lead'] },
   { file: 'studies/[id]/calibration/runs/[runId]/raters/route.ts', method: 'POST', url: '/api/studies/999999/calibration/runs/999999/raters', allowed: ['admin', 'lead'] },
   { file: 'studies/[id]/calibration/certifications/route.ts', method: 'POST', url: '/api/studies/999999/calibration/certifications', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/calibration/runs/[runId]/route.ts', method: 'DELETE', url: '/api/studies/999999/calibration/runs/999999', allowed: ['admin', 'lead'] },
   { file: 'studies/[id]/calibration/threshold/route.ts', method: 'GET', url: '/api/studies/999999/calibration/threshold', allowed: ['admin', 'lead'] },
   { file: 'studies/[id]/calibration/threshold/route.ts', method: 'PUT', url: '/api/studies/999999/calibration/threshold', allowed: ['admin', 'lead'] },
   { file: 'studies/[id]/calibration/me/route.ts', method: 'GET', url: '/api/studies/1/calibration/me', allowed: ['admin', 'rater'] },

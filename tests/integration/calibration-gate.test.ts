@@ -15,7 +15,7 @@ vi.mock('next-auth', async (importOriginal) => ({
   getServerSession: vi.fn(async () => currentSession()),
 }));
 
-const { db, closeDb, toJson } = await import('@/lib/db/knex');
+const { db, closeDb, toJson, parseJson } = await import('@/lib/db/knex');
 const { createStudyWithRaters, uniqueSuffix } = await import('./helpers/factories');
 const { assignRaters } = await import('@/lib/runs/assign-raters');
 const { addRaterToRun } = await import('@/lib/db/queries/assignments');
@@ -82,6 +82,36 @@ describe('calibration threshold', () => {
     expect(b.gate).toMatchObject({ gated: true, passes: false });
     expect(b.byKind).toEqual([{ kind: 'motion', n: 2, detected: 0, sensitivity: { value: 0, n: 2 } }, { kind: 'unspecified', n: 1, detected: 0, sensitivity: { value: 0, n: 1 } }]);
     expect(o.raters.find((r) => r.id === s.raterIds[0])!.gate).toEqual({ gated: true, passes: true, reason: null });
+  });
+
+  it('a rater sees their result on a submitted calibration run component by component, with the lead’s reason; not before submitting', async () => {
+    const { calibrationResult } = await import('@/lib/db/queries/calibration');
+    const cal = await db('runs').where({ study_id: s.studyId, is_calibration: true }).first('id');
+    const comps = await db('components as c').join('decompositions as d', 'd.id', 'c.decomposition_id').where('d.run_id', cal.id).orderBy('c.idx').select('c.id');
+    await db('decisions').insert({ component_id: comps[0].id, run_id: cal.id, label: 'noise', noise_kind: 'motion', method: 'reconciled', reason: 'ring at the brain outline' });
+    const r = await calibrationResult({ studyId: s.studyId, runId: cal.id, raterId: s.raterIds[1]! });
+    expect(r!.components).toHaveLength(6);
+    expect(r!.components[0]).toMatchObject({ idx: 1, myLabel: 'signal', referenceLabel: 'noise', referenceKind: 'motion', reason: 'ring at the brain outline' });
+    // rater C has no submitted assignment on it: no result, so no reference labels leak
+    expect(await calibrationResult({ studyId: s.studyId, runId: cal.id, raterId: s.raterIds[2]! })).toBeNull();
+  });
+
+  it('unmarking the calibration run keeps its references and votes, records the scores, and the run stops counting', async () => {
+    const unmarkRoute = await import('@/app/api/studies/[id]/calibration/runs/[runId]/route');
+    const cal = await db('runs').where({ study_id: s.studyId, is_calibration: true }).first('id');
+    const params = { id: String(s.studyId), runId: String(cal.id) };
+    actAs(s.raterIds[0]!);
+    expect((await callRoute(unmarkRoute.DELETE, { method: 'DELETE', url: '/', params })).status).toBe(403);
+    actAs(s.leadId);
+    expect((await callRoute(unmarkRoute.DELETE, { method: 'DELETE', url: '/', params })).json).toEqual({ runId: cal.id, unmarked: true });
+    expect((await callRoute(unmarkRoute.DELETE, { method: 'DELETE', url: '/', params })).status).toBe(409);
+    expect(Number((await db('reference_labels as rl').join('components as c', 'c.id', 'rl.component_id').join('decompositions as d', 'd.id', 'c.decomposition_id').where('d.run_id', cal.id).count({ n: '*' }).first())?.n)).toBe(6);
+    const audit = await db('audit_log').where({ action: 'calibration.run_unmarked', target_id: cal.id }).first('detail');
+    const detail = parseJson<{ scoresBefore: { raterId: number; gwetAC1: number | null }[] }>(audit.detail)!;
+    expect(detail.scoresBefore.find((x) => x.raterId === s.raterIds[0])!.gwetAC1).toBe(1);
+    // the run no longer counts: rater A has no calibration score left, so the gate (still 0.8 / 0.85) now refuses them
+    const { calibrationGate } = await import('@/lib/db/queries/calibration');
+    expect((await calibrationGate({ studyId: s.studyId, raterId: s.raterIds[0]! })).reason).toMatch(/has not submitted/);
   });
 
   it('without a threshold every rater is eligible again', async () => {

@@ -1,7 +1,7 @@
 // Noise sensitivity per noise kind (definition: sensitivity = TP / (TP + FN) within the reference's
 // noise components of each kind; common practice, no source).
 import { describe, expect, it } from 'vitest';
-import { sensitivityByKind } from '@/lib/calibration/per-kind';
+import { sensitivityByKind } from '@/lib/agreement/kind-sensitivity';
 
 describe('sensitivityByKind', () => {
   it('counts, per reference kind, the share the rater called noise', () => {

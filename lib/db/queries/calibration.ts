@@ -1,13 +1,16 @@
 import 'server-only';
 import type { Knex } from 'knex';
 import { bidsName, distinctRunNames } from '@/lib/bids';
-import { scoreAgainstReference, type CalibrationScore } from '@/lib/calibration/score';
-import { gateVerdict, isGated, type CalibrationThreshold, type GateVerdict } from '@/lib/calibration/gate';
-import { sensitivityByKind, type KindSensitivity } from '@/lib/calibration/per-kind';
+import { scoreAgainstReference, type CalibrationScore } from '@/lib/agreement/reference-score';
+import { gateVerdict, type CalibrationThreshold, type GateVerdict } from '@/lib/agreement/threshold-gate';
+import type { KindSensitivity } from '@/lib/agreement/kind-sensitivity';
 import { db, parseJson, toJson } from '@/lib/db/knex';
 import { AppError, notFound } from '@/lib/errors';
 import { recordAudit } from './audit';
 import { isRunReleased } from './desk';
+import { calibrationGate, calibrationThreshold, scoreRater, setCalibrationThreshold, studyLabels } from './calibration-gate';
+
+export { calibrationGate, calibrationThreshold, scoreRater, setCalibrationThreshold };
 import { findStudyAccess } from './study-access';
 import { leadsStudy } from '@/lib/auth/permissions';
 import type { UserRow } from './users';
@@ -40,6 +43,8 @@ export type CalibrationRater = {
   byKind: KindSensitivity[];
   /** May the rater get live runs under the study's calibration threshold, and why not. */
   gate: GateVerdict;
+  /** One score per submitted calibration run, oldest first (drift over time). */
+  history: CalibrationHistoryEntry[];
   certification: CalibrationCertification | null;
 };
 export type CalibrationOverview = {
@@ -63,14 +68,6 @@ async function requireLead({ user, studyId }: { user: Caller; studyId: number })
   if (!access) throw notFound('The study');
   if (!leadsStudy(access)) throw notLead();
   return access;
-}
-
-async function studyLabels(trx: Knex | Knex.Transaction, studyId: number) {
-  const s = await trx('studies').where({ id: studyId }).first('label_set as labelSet', 'noise_kinds as noiseKinds');
-  return {
-    categories: parseJson<string[]>(s?.labelSet, ['signal', 'noise', 'uncertain']) ?? [],
-    noiseKinds: parseJson<string[]>(s?.noiseKinds, []) ?? [],
-  };
 }
 
 /** A run of this study (study id in the WHERE clause), locked for the change; 404 otherwise. */
@@ -100,26 +97,6 @@ async function runComponents(trx: Knex | Knex.Transaction, runId: number) {
     .select('c.id', 'c.idx', 'x.label as decisionLabel', 'x.noise_kind as decisionKind', 'x.method', 'rl.label as referenceLabel')) as Array<{
     id: number; idx: number; decisionLabel: string | null; decisionKind: string | null; method: string | null; referenceLabel: string | null;
   }>;
-}
-
-/**
- * The rater's votes on the components of the study's calibration runs they have submitted (current
- * decomposition), each with its reference label, scored with lib/calibration/score.
- */
-export async function scoreRater({ studyId, userId }: { studyId: number; userId: number }, trx: Knex | Knex.Transaction = db) {
-  const { categories } = await studyLabels(trx, studyId);
-  const rows = (await trx('votes as v')
-    .join('components as c', 'c.id', 'v.component_id')
-    .join('decompositions as d', 'd.id', 'c.decomposition_id')
-    .join('runs as r', 'r.id', 'd.run_id')
-    .join('assignments as a', function () {
-      this.on('a.run_id', 'r.id').andOn('a.rater_id', 'v.rater_id');
-    })
-    .join('reference_labels as rl', 'rl.component_id', 'c.id')
-    .where({ 'r.study_id': studyId, 'r.is_calibration': true, 'd.is_current': true, 'v.rater_id': userId })
-    .whereNotNull('a.submitted_at')
-    .select('v.label as rater', 'rl.label as reference', 'rl.noise_kind as referenceKind', 'r.id as runId')) as Array<{ rater: string; reference: string; referenceKind: string | null; runId: number }>;
-  return { score: scoreAgainstReference(rows, categories), byKind: sensitivityByKind(rows), submittedRuns: new Set(rows.map((r) => Number(r.runId))).size };
 }
 
 /** The study's calibration runs, runs that could become one, and its raters with their scores and certification (leads, admins). */
@@ -184,6 +161,7 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
       score,
       byKind,
       gate: gateVerdict(submittedRuns ? score : null, threshold),
+      history: await calibrationHistory({ studyId, userId: Number(m.id) }),
       certification: m.certId
         ? { passed: Boolean(m.passed), certifiedBy: m.certifiedBy == null ? null : Number(m.certifiedBy), certifiedAt: m.certifiedAt ?? null, scores: parseJson<CalibrationScore>(m.scores, null) }
         : null,
@@ -324,20 +302,85 @@ export async function myCalibration({ user, studyId }: { user: Caller; studyId: 
   return { submittedRuns, score, byKind, gate, certification: cert ? { passed: Boolean(cert.passed), certifiedAt: cert.certifiedAt ?? null } : null };
 }
 
-/** The study's calibration threshold (both null: no gate). */
-export async function calibrationThreshold({ studyId }: { studyId: number }, trx: Knex | Knex.Transaction = db): Promise<CalibrationThreshold> {
-  const s = await trx('studies').where({ id: studyId }).first('calibration_min_ac1 as minAc1', 'calibration_min_sensitivity as minSensitivity');
-  return { minAc1: s?.minAc1 == null ? null : Number(s.minAc1), minSensitivity: s?.minSensitivity == null ? null : Number(s.minSensitivity) };
+/** A run of the study with its calibration flag and the raters assigned to it (null when not in the study). */
+export async function calibrationRunInfo({ studyId, runId }: { studyId: number; runId: number }) {
+  const r = await db('runs').where({ id: runId, study_id: studyId }).first('id', 'is_calibration as isCalibration', 'sub', 'ses', 'task', 'acq', 'run_label as runLabel');
+  if (!r) return null;
+  const raters = (await db('assignments').where({ run_id: runId }).select('rater_id')).map((a: { rater_id: number }) => Number(a.rater_id));
+  return { runId: Number(r.id), isCalibration: Boolean(r.isCalibration), name: nameOf(r), raterIds: raters };
 }
 
-export async function setCalibrationThreshold({ studyId, threshold }: { studyId: number; threshold: CalibrationThreshold }, trx: Knex | Knex.Transaction = db): Promise<void> {
-  await trx('studies').where({ id: studyId }).update({ calibration_min_ac1: threshold.minAc1, calibration_min_sensitivity: threshold.minSensitivity });
+/** Clears the run's calibration flag; its reference labels, votes and assignments stay. */
+export async function clearCalibrationFlag({ studyId, runId }: { studyId: number; runId: number }): Promise<void> {
+  await db('runs').where({ id: runId, study_id: studyId }).update({ is_calibration: false });
 }
 
-/** Whether the rater may get live runs of the study under its calibration threshold, and why not. */
-export async function calibrationGate({ studyId, raterId }: { studyId: number; raterId: number }, trx: Knex | Knex.Transaction = db): Promise<GateVerdict> {
-  const t = await calibrationThreshold({ studyId }, trx);
-  if (!isGated(t)) return gateVerdict(null, t);
-  const { score } = await scoreRater({ studyId, userId: raterId }, trx);
-  return gateVerdict(score, t);
+export type CalibrationResultRow = {
+  componentId: number; idx: number; myLabel: string | null; myKind: string | null;
+  referenceLabel: string | null; referenceKind: string | null; reason: string | null; features: Record<string, number | null>;
+};
+
+/**
+ * A rater's result on one calibration run they have submitted, component by component: their
+ * label, the reference label and the lead's reason (the reason of the decision the reference was
+ * adopted from). null when the run is not a calibration run of the study assigned to the rater and
+ * submitted (the reference stays hidden until the rater has submitted).
+ */
+export async function calibrationResult({ studyId, runId, raterId }: { studyId: number; runId: number; raterId: number }) {
+  const run = await db('runs as r')
+    .join('assignments as a', function () {
+      this.on('a.run_id', 'r.id').andOn('a.rater_id', db.raw('?', [raterId]));
+    })
+    .where({ 'r.id': runId, 'r.study_id': studyId, 'r.is_calibration': true })
+    .whereNotNull('a.submitted_at')
+    .first('r.id', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel', 'a.submitted_at as submittedAt');
+  if (!run) return null;
+  const rows = await db('components as c')
+    .join('decompositions as d', 'd.id', 'c.decomposition_id')
+    .leftJoin('votes as v', function () {
+      this.on('v.component_id', 'c.id').andOn('v.rater_id', db.raw('?', [raterId]));
+    })
+    .leftJoin('reference_labels as rl', 'rl.component_id', 'c.id')
+    .leftJoin('decisions as x', 'x.component_id', 'c.id')
+    .where({ 'd.run_id': runId, 'd.is_current': true })
+    .orderBy('c.idx')
+    .select('c.id', 'c.idx', 'c.features', 'v.label as myLabel', 'v.noise_kind as myKind', 'rl.label as referenceLabel', 'rl.noise_kind as referenceKind', 'x.reason');
+  return {
+    runId, runName: nameOf(run), submittedAt: new Date(run.submittedAt).toISOString(),
+    components: rows.map((r): CalibrationResultRow => ({
+      componentId: Number(r.id), idx: Number(r.idx), myLabel: r.myLabel ?? null, myKind: r.myKind ?? null,
+      referenceLabel: r.referenceLabel ?? null, referenceKind: r.referenceKind ?? null, reason: r.reason ?? null,
+      features: parseJson<Record<string, number | null>>(r.features, {}) ?? {},
+    })),
+  };
+}
+
+export type CalibrationHistoryEntry = { runId: number; runName: string; submittedAt: string; stillCalibration: boolean; score: CalibrationScore };
+
+/**
+ * The rater's calibration history, oldest first: one score per submitted run that has reference
+ * labels — runs since unmarked included (stillCalibration false), so unmarking keeps the history.
+ */
+export async function calibrationHistory({ studyId, userId }: { studyId: number; userId: number }, trx: Knex | Knex.Transaction = db): Promise<CalibrationHistoryEntry[]> {
+  const { categories } = await studyLabels(trx, studyId);
+  const rows = (await trx('votes as v')
+    .join('components as c', 'c.id', 'v.component_id')
+    .join('decompositions as d', 'd.id', 'c.decomposition_id')
+    .join('runs as r', 'r.id', 'd.run_id')
+    .join('assignments as a', function () {
+      this.on('a.run_id', 'r.id').andOn('a.rater_id', 'v.rater_id');
+    })
+    .join('reference_labels as rl', 'rl.component_id', 'c.id')
+    .where({ 'r.study_id': studyId, 'd.is_current': true, 'v.rater_id': userId })
+    .whereNotNull('a.submitted_at')
+    .orderBy([{ column: 'a.submitted_at' }, { column: 'r.id' }])
+    .select('v.label as rater', 'rl.label as reference', 'r.id as runId', 'r.is_calibration as isCalibration', 'a.submitted_at as submittedAt', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel')) as Array<{
+    rater: string; reference: string; runId: number; isCalibration: unknown; submittedAt: Date; sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null;
+  }>;
+  const byRun = new Map<number, typeof rows>();
+  for (const r of rows) byRun.set(Number(r.runId), [...(byRun.get(Number(r.runId)) ?? []), r]);
+  return [...byRun.values()].map((rs) => ({
+    runId: Number(rs[0]!.runId), runName: nameOf(rs[0]!), submittedAt: new Date(rs[0]!.submittedAt).toISOString(),
+    stillCalibration: Boolean(rs[0]!.isCalibration), score: scoreAgainstReference(rs, categories),
+  }));
 }

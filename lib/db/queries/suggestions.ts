@@ -1,11 +1,9 @@
-import 'server-only';
+// No `server-only` here: the worker's suggestion jobs (lib/jobs/kinds/*-suggestions.ts) use these queries outside Next.js.
 import type { Knex } from 'knex';
 import { db, parseJson, toJson } from '@/lib/db/knex';
-import type { RawFeatures } from '@/lib/suggestions/feature-vector';
-import type { SuggestionModelJson } from '@/lib/suggestions/model';
-import type { ModelReport } from '@/lib/suggestions/cross-validate';
+import type { ModelReport, RaterSuggestion, RawFeatures, StoredModel, SuggestionModelJson, TrainingRecord, TrainingSource } from '@/lib/suggestions/types';
 
-export type TrainingSource = { releaseId: number; studyId: number; runId: number | null; version: number };
+export type { StoredModel };
 export type TrainingData = {
   rows: { subject: string; features: RawFeatures; label: 'signal' | 'noise' }[];
   releases: TrainingSource[];
@@ -53,7 +51,7 @@ export async function trainingData({ studyIds }: { studyIds: number[] }, trx: Kn
 /** Stores a trained model as the study's next version and makes it the one in use. */
 export async function insertSuggestionModel(
   trx: Knex | Knex.Transaction,
-  m: { studyId: number; model: SuggestionModelJson; report: ModelReport; training: { studies: number[]; releases: TrainingSource[]; skipped: number }; createdBy: number | null },
+  m: { studyId: number; model: SuggestionModelJson; report: ModelReport; training: TrainingRecord; createdBy: number | null },
 ): Promise<{ id: number; version: number }> {
   const last = await trx('suggestion_models').where({ study_id: m.studyId }).max({ v: 'version' }).first();
   const version = Number(last?.v ?? 0) + 1;
@@ -64,7 +62,6 @@ export async function insertSuggestionModel(
   return { id: Number(id), version };
 }
 
-export type StoredModel = { id: number; studyId: number; version: number; model: SuggestionModelJson; report: ModelReport; training: { studies: number[]; releases: TrainingSource[]; skipped: number }; createdAt: string };
 
 function toStored(r: Record<string, unknown>): StoredModel {
   return {
@@ -113,7 +110,6 @@ export async function insertSuggestions(trx: Knex | Knex.Transaction, modelId: n
   }
 }
 
-export type RaterSuggestion = { componentId: number; label: string; pNoise: number; modelVersion: number };
 
 /**
  * Suggestions of the model in use for the components of the run the rater has voted on — the
@@ -132,11 +128,6 @@ export async function suggestionsAfterVotes({ runId, raterId, modelId }: { runId
   return rows.map((r) => ({ componentId: Number(r.componentId), label: String(r.label), pNoise: Number(r.pNoise), modelVersion: Number(r.modelVersion) }));
 }
 
-/** Every suggestion of the model for a run (leads: Reconcile). */
-export async function suggestionsForRun({ runId, modelId }: { runId: number; modelId: number }): Promise<Map<number, { label: string; pNoise: number }>> {
-  const rows = await db('suggestions').where({ run_id: runId, model_id: modelId }).select('component_id', 'label', 'p_noise');
-  return new Map(rows.map((r) => [Number(r.component_id), { label: String(r.label), pNoise: Number(r.p_noise) }]));
-}
 
 /** Runs `work` in one transaction (for use cases that enqueue and audit together). */
 export function inSuggestionTransaction<T>(work: (trx: Knex.Transaction) => Promise<T>): Promise<T> {

@@ -13,6 +13,8 @@ export type QueueItem = {
   submittedAt: Date | null;
   labelled: number;
   total: number;
+  /** A calibration run: once submitted, the rater's result page compares their labels with the reference. */
+  isCalibration: boolean;
 };
 
 /** A rater's assigned runs with how many of the current decomposition's components they have labelled. */
@@ -29,7 +31,7 @@ export async function listQueueForRater({ raterId }: { raterId: number }): Promi
     })
     .where('a.rater_id', raterId)
     .andWhere('r.status', 'ready')
-    .groupBy('r.id', 's.id', 's.name', 'r.sub', 'r.ses', 'r.task', 'r.run_label', 'a.due_at', 'a.submitted_at')
+    .groupBy('r.id', 's.id', 's.name', 'r.sub', 'r.ses', 'r.task', 'r.run_label', 'r.is_calibration', 'a.due_at', 'a.submitted_at')
     .select(
       'r.id as runId',
       's.id as studyId',
@@ -40,9 +42,10 @@ export async function listQueueForRater({ raterId }: { raterId: number }): Promi
       'r.run_label as runLabel',
       'a.due_at as dueAt',
       'a.submitted_at as submittedAt',
+      'r.is_calibration as isCalibration',
       db.raw('COUNT(DISTINCT v.id) as labelled'),
       db.raw('COUNT(DISTINCT c.id) as total'),
     )
     .orderBy([{ column: 'a.submitted_at', order: 'asc' }, { column: 'a.due_at', order: 'asc' }, { column: 'r.id' }]);
-  return rows.map((r) => ({ ...r, labelled: Number(r.labelled), total: Number(r.total) }));
+  return rows.map((r) => ({ ...r, labelled: Number(r.labelled), total: Number(r.total), isCalibration: Boolean(r.isCalibration) }));
 }

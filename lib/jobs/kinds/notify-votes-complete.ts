@@ -8,6 +8,7 @@ import { votesCompleteScanMs } from '@/lib/notifications/config';
 import { notifyVotesCompletePayloadSchema, NOTIFY_VOTES_COMPLETE } from '@/lib/notifications/payloads';
 import { ensureNotifyJob } from '@/lib/notifications/enqueue';
 import { ratingsOpen, sendVotesCompleteNotices } from '@/lib/notifications/votes-complete';
+import { sendDriftNotices } from '@/lib/notifications/calibration-drift';
 import { defineJobKind } from '../types';
 
 export const notifyVotesCompleteKind = defineJobKind({
@@ -16,6 +17,8 @@ export const notifyVotesCompleteKind = defineJobKind({
   async run(ctx) {
     await ctx.progress('sending', 1);
     const result = await sendVotesCompleteNotices(ctx.db);
+    const drift = await sendDriftNotices(ctx.db);
+    if (drift.sent.length || drift.failed) ctx.logger.info(`calibration drift e-mails: ${drift.sent.length} sent, ${drift.failed} failed`);
     const next = (await ratingsOpen(ctx.db)) ? await ensureNotifyJob(ctx.db, { kind: NOTIFY_VOTES_COMPLETE, delayMs: votesCompleteScanMs() }) : null;
     ctx.logger.info(`votes-complete e-mails: ${result.sent.length} sent, ${result.failed} failed${next ? `; next check job ${next.jobId}` : ''}`);
     return { sent: result.sent, failed: result.failed, nextJobId: next?.jobId ?? null };

@@ -1,10 +1,13 @@
 /**
- * The study's calibration threshold as a gate on live work: a rater passes when their score against
- * the reference labels (score.ts, pooled over the calibration runs they submitted) reaches every
- * threshold that is set. An undefined statistic (no submitted calibration run, no reference noise)
+ * A study's calibration threshold as a gate on live work: a rater passes when their score against
+ * the reference labels (lib/calibration/score.ts, pooled over the calibration runs they submitted)
+ * reaches every threshold that is set. An undefined statistic (no submitted calibration run, no reference noise)
  * does not pass — it is not taken as 0 or as 1, the reason says what is missing.
  */
-import type { CalibrationScore } from './score';
+import type { StatResult } from './result';
+
+/** The part of a calibration score the gate reads (lib/calibration/score.ts CalibrationScore fits). */
+type GateScore = { n: number; gwetAC1: StatResult; noise: { sensitivity: StatResult } };
 
 export type CalibrationThreshold = { minAc1: number | null; minSensitivity: number | null };
 
@@ -14,7 +17,7 @@ export function isGated(t: CalibrationThreshold): boolean {
   return t.minAc1 !== null || t.minSensitivity !== null;
 }
 
-export function gateVerdict(score: CalibrationScore | null, t: CalibrationThreshold): GateVerdict {
+export function gateVerdict(score: GateScore | null, t: CalibrationThreshold): GateVerdict {
   if (!isGated(t)) return { gated: false, passes: true, reason: null };
   if (!score || score.n === 0) return { gated: true, passes: false, reason: 'has not submitted a calibration run with reference labels yet' };
   const misses: string[] = [];

@@ -3,7 +3,7 @@
  * fraction the rater called noise (any kind). Shows a lead which kinds a rater misses. A kind with
  * no reference component is not listed; the reference's noise without a kind is "unspecified".
  */
-import type { StatResult } from '@/lib/agreement';
+import type { StatResult } from './result';
 
 export type KindPair = { rater: string; reference: string; referenceKind: string | null };
 export type KindSensitivity = { kind: string; n: number; detected: number; sensitivity: StatResult };
