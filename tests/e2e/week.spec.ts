@@ -94,7 +94,7 @@ test('revoking a token asks first and names what stops working', async ({ page }
   await signInAs(page, DEMO.lead);
   await page.goto('/account');
   const name = `week pipeline ${Date.now()}`;
-  await page.getByLabel('Name').fill(name);
+  await page.locator('#token-name').fill(name);
   await page.getByTestId('token-create').click();
   await expect(page.getByTestId('token-secret')).toBeVisible();
   const row = page.locator('tr', { hasText: name });
