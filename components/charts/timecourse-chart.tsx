@@ -42,7 +42,7 @@ export const TimecourseChart = memo(function TimecourseChart({
 }) {
   const data = useMemo<Point[]>(() => values.map((v, t) => ({ s: (droppedVolumes + t) * trSeconds, v, vol: droppedVolumes + t })), [values, trSeconds, droppedVolumes]);
   const end = (droppedVolumes + Math.max(values.length - 1, 0)) * trSeconds;
-  const domain: [number, number] = range ?? [0, end];
+  const domain = useMemo<[number, number]>(() => range ?? [0, end], [range, end]);
   const shown = useMemo(() => (range ? data.filter((d) => d.s >= range[0] && d.s <= range[1]) : data), [data, range]);
   const yTicks = useMemo(() => (shown.length ? niceTicks(Math.min(...shown.map((d) => d.v)), Math.max(...shown.map((d) => d.v)), 4) : [0, 1]), [shown]);
   const xTicks = useMemo(() => niceTicks(domain[0], domain[1], 6).filter((s) => s >= domain[0] - 1e-9 && s <= domain[1] + 1e-9), [domain]);
