@@ -83,7 +83,6 @@ export async function findAssignedRun(
     } satisfies ReproducibilityRule,
   };
 }
-export type AssignedRun = Awaited<ReturnType<typeof findAssignedRun>>;
 
 /** True once a release (of the run, or of the study with this run in it) exists. */
 export async function isRunReleased({ runId }: { runId: number }, trx: Knex | Knex.Transaction = db): Promise<boolean> {
