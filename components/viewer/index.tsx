@@ -2,7 +2,7 @@
 import dynamic from 'next/dynamic';
 import type { VolumeViewerProps } from './volume-viewer';
 
-export type { FrameInfo, OverlaySettings, ViewerApi, ViewerLayout, ViewerLocation, ViewerPlane, VolumeViewerProps } from './volume-viewer';
+export type { FrameInfo, ViewerApi, ViewerLocation, VolumeViewerProps } from './volume-viewer';
 
 /** The volume viewer, loaded only in the browser (WebGL). */
 export const VolumeViewer = dynamic<VolumeViewerProps>(() => import('./volume-viewer'), {

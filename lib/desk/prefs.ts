@@ -8,6 +8,8 @@ export type DeskPrefs = {
   layout: 'multiplanar' | 'mosaic';
   plane: 'axial' | 'coronal' | 'sagittal';
   autoAdvance: boolean;
+  /** The six motion parameters under the time course. */
+  showMotion: boolean;
   overlay: { visible: boolean; opacity: number; sign: Sign };
 };
 
@@ -17,6 +19,7 @@ export const DEFAULT_PREFS: DeskPrefs = {
   layout: 'multiplanar',
   plane: 'axial',
   autoAdvance: false,
+  showMotion: false,
   overlay: { visible: true, opacity: 1, sign: 'both' },
 };
 

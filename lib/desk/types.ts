@@ -38,6 +38,8 @@ export type DeskRun = {
   noiseKinds: string[];
   /** Framewise displacement (mm) per kept volume, when the run has motion parameters. */
   framewiseDisplacement: number[] | null;
+  /** The six motion parameters per kept volume: translations x, y, z (mm) and rotations x, y, z (degrees), when the run has them. */
+  motion?: { translations: number[][]; rotationsDeg: number[][] } | null;
   /** Where the rater stopped (1-based component number), or null before the first visit. */
   lastComponentIdx: number | null;
   /** The study's rule for components below its reproducibility threshold, and how many it hid. */

@@ -9,7 +9,7 @@ import { pathFor } from '@/lib/storage';
 import { dropInitialVolumes, framewiseDisplacement, parseMotionFile } from '@/lib/decomposition/motion';
 import { recordAudit } from './audit';
 import { queueVotesCompleteCheck } from '@/lib/notifications/enqueue';
-import type { ComponentsPayload, DeskComponent } from '@/lib/desk/types';
+import type { ComponentsPayload, DeskComponent, DeskRun } from '@/lib/desk/types';
 import { arrangeForDesk, isLowReproducibility, type ReproducibilityRule } from '@/lib/desk/reproducibility';
 import { recomputeDecision } from '@/lib/consensus/recompute';
 import type { LowReproducibilityPolicy } from '@/lib/studies/labels';
@@ -88,7 +88,6 @@ export async function findAssignedRun(
     } satisfies ReproducibilityRule,
   };
 }
-export type AssignedRun = Awaited<ReturnType<typeof findAssignedRun>>;
 
 /** True once a release (of the run, or of the study with this run in it) exists. */
 export async function isRunReleased({ runId }: { runId: number }, trx: Knex | Knex.Transaction = db): Promise<boolean> {
@@ -126,17 +125,30 @@ export async function componentsOfDecomposition({ decompositionId }: { decomposi
   }));
 }
 
-async function readFramewiseDisplacement(run: AssignedRun): Promise<number[] | null> {
-  if (!run.motionKey) return null;
+type MotionSource = { runId: number; motionKey: string | null; motionOrder: string | null; motionRotationUnits: string | null; droppedVolumes: number };
+
+/**
+ * The run's motion parameters over the kept volumes: framewise displacement (mm), the three
+ * translations (mm) and the three rotations (degrees, for reading), or nulls without a motion file.
+ */
+export async function readRunMotion(run: MotionSource): Promise<{ fd: number[] | null; motion: DeskRun['motion'] }> {
+  if (!run.motionKey) return { fd: null, motion: null };
   try {
     const text = await readFile(pathFor(run.motionKey), 'utf8');
     const order = String(run.motionOrder ?? '').trim().toLowerCase().startsWith('r') ? 'rot-first' : 'trans-first';
     const motion = parseMotionFile(text, { order, rotationUnits: run.motionRotationUnits === 'degrees' ? 'degrees' : 'radians' });
     const kept = run.droppedVolumes > 0 ? dropInitialVolumes(motion, run.droppedVolumes) : motion;
-    return Array.from(framewiseDisplacement(kept), round);
+    const deg = 180 / Math.PI;
+    return {
+      fd: Array.from(framewiseDisplacement(kept), round),
+      motion: {
+        translations: kept.translations.map((c) => Array.from(c, round)),
+        rotationsDeg: kept.rotations.map((c) => Array.from(c, (v) => round(v * deg))),
+      },
+    };
   } catch (err) {
     console.error(`[desk] motion parameters of run ${run.runId} unreadable:`, (err as Error).message);
-    return null;
+    return { fd: null, motion: null };
   }
 }
 
@@ -162,7 +174,7 @@ export async function loadDeskComponents({ user, runId }: { user: Caller; runId:
       warnings: decompositionWarnings(run.summary),
       labelSet: run.labelSet,
       noiseKinds: run.noiseKinds,
-      framewiseDisplacement: await readFramewiseDisplacement(run),
+      ...(await readRunMotion(run).then((m) => ({ framewiseDisplacement: m.fd, motion: m.motion }))),
       lastComponentIdx: run.lastComponentIdx == null ? null : Number(run.lastComponentIdx),
       reproducibility: { ...run.reproducibilityRule, hidden },
     },

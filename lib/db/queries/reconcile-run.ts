@@ -1,7 +1,7 @@
 import 'server-only';
 import { decompositionWarnings } from '@/lib/runs/decomposition-warnings';
 import { db, parseJson } from '@/lib/db/knex';
-import { componentsOfDecomposition, droppedVolumesOf } from './desk';
+import { componentsOfDecomposition, droppedVolumesOf, readRunMotion } from './desk';
 import { bidsName } from '@/lib/bids';
 import { AppError } from '@/lib/errors';
 import type { DeskRun } from '@/lib/desk/types';
@@ -40,6 +40,9 @@ export async function loadRunShapes({ runId }: { runId: number }) {
       'r.acq',
       'r.run_label as runLabel',
       'r.tr_seconds as trSeconds',
+      'r.motion_key as motionKey',
+      'r.motion_order as motionOrder',
+      'r.motion_rotation_units as motionRotationUnits',
       's.label_set as labelSet',
       's.noise_kinds as noiseKinds',
       's.reproducibility_threshold as reproducibilityThreshold',
@@ -52,6 +55,7 @@ export async function loadRunShapes({ runId }: { runId: number }) {
       'd.mask_key as maskKey',
     );
   if (!run) return null;
+  const { fd, motion } = await readRunMotion({ ...run, droppedVolumes: droppedVolumesOf(run) });
   const components = await componentsOfDecomposition({ decompositionId: run.decompositionId });
   const deskRun: DeskRun = {
     runId: run.runId,
@@ -65,7 +69,8 @@ export async function loadRunShapes({ runId }: { runId: number }) {
     warnings: decompositionWarnings(run.summary),
     labelSet: parseJson<string[]>(run.labelSet, []) ?? [],
     noiseKinds: parseJson<string[]>(run.noiseKinds, []) ?? [],
-    framewiseDisplacement: null,
+    framewiseDisplacement: fd,
+    motion,
     lastComponentIdx: null,
     // the lead sees every component; the rule is carried so the feature panel can flag low ones
     reproducibility: {

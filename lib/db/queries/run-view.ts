@@ -1,6 +1,5 @@
 import 'server-only';
 import { db } from '@/lib/db/knex';
-import { AppError } from '@/lib/errors';
 import type { OtherVote } from '@/lib/desk/types';
 import type { UserRow } from './users';
 import { findStudyAccess } from './study-access';
@@ -13,17 +12,16 @@ export type RunViewRole = 'lead' | 'observer';
 
 /**
  * A run's current decomposition for the read-only run view: the same shapes the rating desk draws,
- * reached through the study (lead, observer or admin) instead of an assignment. 404 when the
- * caller may not see the run, with the same words whether or not it exists.
+ * reached through the study (lead, observer or admin) instead of an assignment. Null when the
+ * caller may not see the run or it has no decomposition (callers answer 404 either way).
  */
 export async function loadRunForViewing({ user, runId }: { user: Viewer; runId: number }) {
   const studyId = (await db('runs').where({ id: runId, status: 'ready' }).first('study_id'))?.study_id as number | undefined;
   const access = studyId ? await findStudyAccess({ user, studyId }) : null;
   const role: RunViewRole | null = !access ? null : access.isAdmin || access.studyRole === 'lead' ? 'lead' : access.studyRole === 'observer' ? 'observer' : null;
-  if (!role) throw new AppError('not_found', `Run ${runId} is not a ready run of a study you lead or observe.`);
+  if (!role) return null;
   const shapes = await loadRunShapes({ runId });
-  if (!shapes) throw new AppError('not_found', `Run ${runId} has no decomposition to show yet.`);
-  return { ...shapes, role };
+  return shapes ? { ...shapes, role } : null;
 }
 
 /**

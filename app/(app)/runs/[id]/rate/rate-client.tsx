@@ -333,7 +333,7 @@ export function RateClient({
             <input type="checkbox" checked={prefs.autoAdvance} onChange={() => setPrefs((p) => ({ ...p, autoAdvance: !p.autoAdvance }))} className="accent-lumen" />
             auto-advance (A)
           </label>
-          <ChartsPanel run={run} component={component} />
+          <ChartsPanel run={run} component={component} showMotion={prefs.showMotion} onShowMotion={(on) => setPrefs((p) => ({ ...p, showMotion: on }))} />
         </div>
         <aside className="flex flex-col gap-3" aria-label="Vote and features">
           <VerdictPanel

@@ -1,7 +1,6 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
-import { AppError } from '@/lib/errors';
 import { loadRunForViewing, submittedVotesOfRun } from '@/lib/db/queries/run-view';
 import { ViewClient } from './view-client';
 
@@ -12,10 +11,8 @@ export default async function RunViewPage({ params }: { params: Promise<{ id: st
   const user = await requirePageUser('runs.read');
   const runId = Number((await params).id);
   if (!Number.isInteger(runId) || runId <= 0) notFound();
-  const loaded = await loadRunForViewing({ user, runId }).catch((err) => {
-    if (err instanceof AppError && err.code === 'not_found') notFound();
-    throw err;
-  });
+  const loaded = await loadRunForViewing({ user, runId });
+  if (!loaded) notFound();
   const votes = loaded.role === 'lead' ? await submittedVotesOfRun({ runId, decompositionId: loaded.run.decompositionId }) : null;
   return <ViewClient run={loaded.run} components={loaded.components} role={loaded.role} votes={votes} />;
 }

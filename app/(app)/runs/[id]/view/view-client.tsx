@@ -119,7 +119,7 @@ export function ViewClient({ run, components, role, votes }: { run: DeskRun; com
             api={viewerApi}
             onError={setViewerError}
           />
-          <ChartsPanel run={run} component={component} />
+          <ChartsPanel run={run} component={component} showMotion={prefs.showMotion} onShowMotion={(on) => setPrefs((p) => ({ ...p, showMotion: on }))} />
         </div>
         <aside className="flex flex-col gap-3" aria-label="Votes and features">
           {votes ? (

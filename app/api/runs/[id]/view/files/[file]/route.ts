@@ -6,7 +6,9 @@ import { AppError } from '@/lib/errors';
 
 // GET /api/runs/:id/view/files/:file – a run's maps or mean image for the read-only run view (the study's leads and observers)
 export const GET = handler({ permission: 'runs.read', params: fileParamsSchema, what: 'The file' }, async ({ user, params }) => {
-  const { run, files } = await loadRunForViewing({ user, runId: params.id });
+  const loaded = await loadRunForViewing({ user, runId: params.id });
+  if (!loaded) throw new AppError('not_found', `Run ${params.id} is not a ready run of a study you lead or observe.`);
+  const { run, files } = loaded;
   const key = files[params.file];
   if (!key) throw new AppError('not_found', `Run ${params.id} has no ${params.file}; its decomposition did not write it.`);
   return storedFileResponse(key, {
