@@ -118,6 +118,7 @@ test('submitted votes are frozen on the desk until the lead reopens the run for 
   const raterPage = await raterContext.newPage();
   await new SignInPage(raterPage).open();
   await new SignInPage(raterPage).signIn(A);
+  await expect(raterPage.getByTestId('home-heading')).toBeVisible();
   const desk = new DeskPage(raterPage);
   await desk.open(run.runId);
   await expect(raterPage.getByTestId('submitted-note')).toContainText('votes frozen; if a label must change, ask the study lead to reopen the run for you');
@@ -127,6 +128,7 @@ test('submitted votes are frozen on the desk until the lead reopens the run for 
   const signIn = new SignInPage(page);
   await signIn.open();
   await signIn.signIn(DEMO.lead);
+  await expect(page.getByTestId('home-heading')).toBeVisible();
   const studyId = await page.evaluate(async (runId) => (await (await fetch(`/api/runs/${runId}`)).json()).run.studyId as number, run.runId);
   await page.goto(`/studies/${studyId}/assignments`);
   const cell = page.getByTestId(`assignment-${run.runId}-${await userId(A)}`);
