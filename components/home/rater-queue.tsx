@@ -56,9 +56,9 @@ export function RaterQueue({ items }: { items: QueueItem[] }) {
                   </Link>
                 ) : null}
                 <span className="ml-auto text-xs text-ink-muted">submitted {i.submittedAt?.toISOString().replace('T', ' ').slice(0, 16)} UTC</span>
-                {/* the desk shows a submitted run with the rater's votes; changes stay possible until a release freezes them */}
+                {/* the desk shows a submitted run with the rater's votes, frozen unless a lead reopens it for them */}
                 <Link href={`/runs/${i.runId}/rate`} className="rounded border border-line-strong px-3 py-1 text-xs text-ink hover:bg-ground-raised" data-testid="submitted-open">
-                  Review
+                  Open
                 </Link>
               </li>
             ))}

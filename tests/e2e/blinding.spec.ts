@@ -118,8 +118,14 @@ test('submitted votes are frozen on the desk until the lead reopens the run for 
   const raterPage = await raterContext.newPage();
   await new SignInPage(raterPage).open();
   await new SignInPage(raterPage).signIn(A);
+  await expect(raterPage.getByTestId('home-heading')).toBeVisible();
   const desk = new DeskPage(raterPage);
-  await desk.open(run.runId);
+  // the desk's controls, without waiting for the volume viewer to draw (not what this test is about)
+  const openDesk = async () => {
+    await raterPage.goto(`/runs/${run.runId}/rate`);
+    await expect(raterPage.getByTestId('rating-desk')).toBeVisible();
+  };
+  await openDesk();
   await expect(raterPage.getByTestId('submitted-note')).toContainText('votes frozen; if a label must change, ask the study lead to reopen the run for you');
   await expect(raterPage.getByTestId('label-signal')).toBeDisabled();
 
@@ -127,6 +133,7 @@ test('submitted votes are frozen on the desk until the lead reopens the run for 
   const signIn = new SignInPage(page);
   await signIn.open();
   await signIn.signIn(DEMO.lead);
+  await expect(page.getByTestId('home-heading')).toBeVisible();
   const studyId = await page.evaluate(async (runId) => (await (await fetch(`/api/runs/${runId}`)).json()).run.studyId as number, run.runId);
   await page.goto(`/studies/${studyId}/assignments`);
   const cell = page.getByTestId(`assignment-${run.runId}-${await userId(A)}`);
@@ -142,7 +149,7 @@ test('submitted votes are frozen on the desk until the lead reopens the run for 
   await expect(cell.getByTestId('assignment-reopened')).toHaveText('reopened once');
 
   // A, on the desk again: may change the vote (blind again meanwhile), then submits once more
-  await desk.open(run.runId);
+  await openDesk();
   await expect(raterPage.getByTestId('submit-run')).toBeVisible();
   await expect(raterPage.getByTestId('label-signal')).toBeEnabled();
   await raterPage.getByTestId('label-signal').click();

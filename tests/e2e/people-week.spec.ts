@@ -26,6 +26,7 @@ test('re-inviting a pending address warns and asks; the form resets after each s
   const signIn = new SignInPage(page);
   await signIn.open();
   await signIn.signIn(DEMO.admin);
+  await expect(page.getByTestId('home-heading')).toBeVisible();
   await page.goto('/admin/invitations');
   const form = page.getByTestId('invite-form');
 
@@ -78,6 +79,7 @@ test('a lead adds a member by finding the account by name', async ({ page }) => 
   const signIn = new SignInPage(page);
   await signIn.open();
   await signIn.signIn(DEMO.lead);
+  await expect(page.getByTestId('home-heading')).toBeVisible();
   await page.goto(`/studies/${study.id}/settings`);
   const form = page.getByTestId('member-form');
   await form.getByLabel('Study role').selectOption('rater');
