@@ -113,6 +113,8 @@ export function startWorker(opts: WorkerOptions): WorkerHandle {
     error: 'ended with an unrecorded outcome',
   };
   let processed = 0;
+  /** The claim on its way, if any: stop() waits for it, so a job claimed just then is given back before the worker exits. */
+  let claiming: Promise<Job | null> | null = null;
   /** Something to wake the loop when a job ends (so a full worker claims again at once). */
   let wake: () => void = () => undefined;
 
@@ -160,7 +162,8 @@ export function startWorker(opts: WorkerOptions): WorkerHandle {
       }
       let job: Job | null = null;
       try {
-        job = await claimJob(db, { workerId, kinds: kindNames, leaseMs });
+        claiming = claimJob(db, { workerId, kinds: kindNames, leaseMs });
+        job = await claiming;
       } catch (err) {
         logger.error(`worker ${workerId}: cannot claim a job: ${readableMessage(err)}`);
         await sleep(Math.max(pollMs, 2_000), stopping.signal);
@@ -196,6 +199,9 @@ export function startWorker(opts: WorkerOptions): WorkerHandle {
     running: () => [...active.values()].map((a) => a.job),
     async stop() {
       stopping.abort();
+      await claiming?.catch(() => null);
+      // the loop gives back a job claimed during the stop; wait until it has
+      if (active.size === 0) await Promise.race([done, new Promise((r) => setTimeout(r, 2_000))]);
       for (const { job, stop } of [...active.values()]) {
         try {
           if (await releaseJob(db, job.id, workerId)) line(`job ${job.id} ${job.kind} released back to the queue`);

@@ -328,7 +328,7 @@ describe('worker processes', () => {
       expect(await db('decompositions').where({ run_id: runId })).toHaveLength(0);
       expect((await db('runs').where({ id: runId }).first()).status).toBe('queued');
     } else {
-      expect(job!.status).toBe('succeeded');
+      expect(job!.status, w.lines.join('\n')).toBe('succeeded');
     }
     expect(existsSync(uploads.dir)).toBe(true);
   });
