@@ -5,13 +5,17 @@
 // `quorum decompose` on the node. Jobs that must stay running until the test says so wait for a
 // gate file (QUORUM_SLURM_SETUP), so no verdict depends on how fast anything runs.
 import { execFileSync, spawnSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
 import { existsSync } from 'node:fs';
-import { writeFile } from 'node:fs/promises';
+import { readFile, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { closeDb, db, parseJson } from '@/lib/db/knex';
 import { cancelJob, getJob } from '@/lib/jobs';
 import { enqueueDecomposition } from '@/lib/jobs/kinds/decompose';
+import { enqueueDenoise } from '@/lib/db/queries/exports';
+import type { DenoiseResult } from '@/lib/denoise/payload';
+import { pathFor } from '@/lib/storage';
 import { createPhantomRun, useTempUploads } from './helpers/factories';
 import { spawnWorker, waitFor, type WorkerProcess } from './helpers/worker-process';
 
@@ -201,5 +205,51 @@ describe.skipIf(skipWhy !== null)('decompose through Slurm', () => {
     expect(await waitFor(async () => (/JobState=CANCELLED/.test(scontrol(r1.cluster_job_id)) ? true : null), { timeoutMs: 60_000, everyMs: 200 })).toBe(true);
     expect((await jobRow(jobId)).cluster_state).toBe('CANCELLED');
     expect((await db('runs').where({ id: runId }).first('status')).status).toBe('cancelled');
+  });
+});
+
+describe.skipIf(skipWhy !== null)('denoise through Slurm', () => {
+  it('a denoise job run on the cluster stores the very file the worker itself writes', { timeout: 400_000 }, async () => {
+    const { runId, studyId, leadId } = await createPhantomRun(db, { size: 'tiny', raters: 1 });
+    await enqueueDecomposition(db, { runId });
+    const d = await slurmWorker().exited;
+    expect(d.code).toBe(0);
+    const dec = await db('decompositions').where({ run_id: runId, is_current: true }).first('id', 'k');
+    expect(dec, 'the run was decomposed').toBeTruthy();
+    // components 1 and 3 decided noise, the rest signal: the noise list is [1, 3]
+    for (const c of await db('components').where({ decomposition_id: dec.id }).select('id', 'idx')) {
+      const label = c.idx === 1 || c.idx === 3 ? 'noise' : 'signal';
+      await db('decisions').insert({ component_id: c.id, run_id: runId, label, method: 'unanimous' }).onConflict('component_id').merge(['label', 'method']);
+    }
+
+    const onCluster = await enqueueDenoise({ payload: { runId, mode: 'partial', includeMotion: false }, studyId, createdBy: leadId });
+    const w = slurmWorker();
+    expect((await w.exited).code, w.lines.join('\n')).toBe(0);
+    const cj = await getJob(db, onCluster.jobId);
+    expect(cj?.status, cj?.message ?? '').toBe('succeeded');
+    const row = await jobRow(onCluster.jobId);
+    expect(row).toMatchObject({ executor: 'slurm', cluster_state: 'COMPLETED' });
+    expect(scontrol(row.cluster_job_id)).toMatch(/JobState=COMPLETED .*ExitCode=0:0/);
+    const a = cj!.result as DenoiseResult & { clusterJobId: string };
+    expect(a.clusterJobId).toBe(row.cluster_job_id);
+    expect(a.noise).toEqual([1, 3]);
+
+    // the same request computed by a worker with the local executor
+    const here = await enqueueDenoise({ payload: { runId, mode: 'partial', includeMotion: false }, studyId, createdBy: leadId });
+    const l = spawnWorker({ uploadsDir: uploads.dir, env: { QUORUM_EXECUTOR: 'local' } });
+    workers.push(l);
+    expect((await l.exited).code, l.lines.join('\n')).toBe(0);
+    const lj = await getJob(db, here.jobId);
+    expect(lj?.status, lj?.message ?? '').toBe('succeeded');
+    expect((await jobRow(here.jobId)).cluster_job_id).toBeNull();
+    const b = lj!.result as DenoiseResult;
+
+    expect(a.key).not.toBe(b.key);
+    const sha = async (key: string) => createHash('sha256').update(await readFile(pathFor(key))).digest('hex');
+    // the files on disk are byte for byte the same, and each matches the checksum its job recorded
+    expect(await sha(a.key)).toBe(await sha(b.key));
+    expect(await sha(a.key)).toBe(a.sha256);
+    expect(await sha(b.key)).toBe(b.sha256);
+    expect({ ...a, key: '', clusterJobId: undefined }).toEqual({ ...b, key: '', clusterJobId: undefined });
   });
 });

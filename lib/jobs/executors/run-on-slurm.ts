@@ -83,6 +83,8 @@ export interface SlurmStep {
   percentOf?: (enginePercent: number) => number;
   /** Maps the engine's stage names into the job's. */
   stageOf?: (engineStage: string) => string;
+  /** Writes the command's input files into the fresh job folder before sbatch (not on re-attach). */
+  prepare?: (folders: ClusterFolders) => Promise<void>;
 }
 
 /** Submits (or re-attaches) and waits for the cluster job; returns the folders and the cluster job id. */
@@ -159,6 +161,7 @@ async function submit(ctx: JobContext<unknown>, settings: SlurmSettings, step: S
   const name = `quorum-j${ctx.job.id}-${randomBytes(4).toString('hex')}`;
   await rm(folders.local, { recursive: true, force: true });
   await mkdir(folders.local, { recursive: true });
+  await step.prepare?.(folders);
   const command = ['npm', 'run', '-s', 'quorum', '--', ...step.args(folders)].map(shellQuote).join(' ');
   const script = renderBatchScript(await loadTemplate(settings.template), {
     job_name: name,
