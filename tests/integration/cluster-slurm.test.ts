@@ -253,3 +253,71 @@ describe.skipIf(skipWhy !== null)('denoise through Slurm', () => {
     expect({ ...a, key: '', clusterJobId: undefined }).toEqual({ ...b, key: '', clusterJobId: undefined });
   });
 });
+
+describe.skipIf(skipWhy !== null)('runs that arrive together go as one job array', () => {
+  // QUORUM_SLURM_ARRAY_MAX = the number of runs and a wait far longer than any test: the array is
+  // sent when the last run joins it, not when a timer fires, so no verdict depends on speed
+  const arrayEnv = (n: number, extra: Record<string, string> = {}) => ({ QUORUM_SLURM_ARRAY_MAX: String(n), QUORUM_SLURM_ARRAY_WAIT_MS: '600000', ...extra });
+  const taskOf = (out: string) => /ArrayJobId=(\d+) ArrayTaskId=(\d+)/.exec(out)?.slice(1, 3);
+
+  it('three runs queued together: one sbatch --array with three tasks, each run ready with one set of components', { timeout: 400_000 }, async () => {
+    const runs = [];
+    for (let i = 0; i < 3; i++) runs.push(await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 11 + i }));
+    const jobIds = [];
+    for (const r of runs) jobIds.push((await enqueueDecomposition(db, { runId: r.runId })).jobId);
+    const w = slurmWorker(arrayEnv(3));
+    const exit = await w.exited;
+    expect(exit.code, w.lines.join('\n')).toBe(0);
+
+    const rows = await Promise.all(jobIds.map((id) => jobRow(id)));
+    const ids = rows.map((r) => String(r.cluster_job_id));
+    const arrayId = ids[0]!.split('_')[0]!;
+    expect(ids.slice().sort()).toEqual([0, 1, 2].map((i) => `${arrayId}_${i}`));
+    // one submission: the worker said so once per task, all naming the same array of 3 tasks
+    expect(w.lines.filter((l) => /submitted as cluster job/.test(l))).toHaveLength(3);
+    expect(w.lines.filter((l) => l.includes(`of array ${arrayId}, 3 tasks`))).toHaveLength(3);
+    expect(new Set(rows.map((r) => String(r.cluster_name).split('#')[0])).size).toBe(1);
+    for (const [i, id] of jobIds.entries()) {
+      const job = await getJob(db, id);
+      expect(job?.status, job?.message ?? '').toBe('succeeded');
+      expect(rows[i]!.cluster_state).toBe('COMPLETED');
+      // Slurm's own record of the task: part of that array, completed
+      const out = scontrol(ids[i]!);
+      expect(taskOf(out)).toEqual([arrayId, ids[i]!.split('_')[1]]);
+      expect(out).toMatch(/JobState=COMPLETED .*ExitCode=0:0/);
+      expect((await db('runs').where({ id: runs[i]!.runId }).first('status')).status).toBe('ready');
+      const decs = await db('decompositions').where({ run_id: runs[i]!.runId });
+      expect(decs).toHaveLength(1);
+      const n = await db('components').where({ decomposition_id: decs[0].id }).count({ n: '*' }).first();
+      expect(Number(n!.n)).toBe(decs[0].k);
+      expect(decs[0].k).toBeGreaterThanOrEqual(2);
+    }
+  });
+
+  it('cancelling one run of an array cancels only its task (scancel <array>_<task>)', { timeout: 400_000 }, async () => {
+    const a = await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 21 });
+    const b = await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 22 });
+    const ja = (await enqueueDecomposition(db, { runId: a.runId })).jobId;
+    const jb = (await enqueueDecomposition(db, { runId: b.runId })).jobId;
+    const gate = path.join(uploads.dir, `gate-array-${ja}`);
+    const w = slurmWorker(arrayEnv(2, { QUORUM_SLURM_SETUP: gateLine(gate) }));
+    const running = await waitFor(async () => {
+      const r = await Promise.all([jobRow(ja), jobRow(jb)]);
+      return r.every((x) => x?.cluster_state === 'RUNNING') ? r : null;
+    }, { timeoutMs: 120_000, everyMs: 100 });
+    const [ta, tb] = running.map((r) => String(r.cluster_job_id));
+    expect(ta!.split('_')[0]).toBe(tb!.split('_')[0]);
+    expect(await cancelJob(db, ja)).toBe('cancelling');
+    await waitFor(async () => (/JobState=CANCELLED/.test(scontrol(ta!)) ? true : null), { timeoutMs: 60_000, everyMs: 200 });
+    expect(scontrol(tb!)).toMatch(/JobState=RUNNING/);
+    await writeFile(gate, '');
+    const exit = await w.exited;
+    expect(exit.code, w.lines.join('\n')).toBe(0);
+    expect(w.lines.join('\n')).toContain(`cancelled cluster job ${ta}`);
+    expect((await getJob(db, ja))?.status).toBe('cancelled');
+    expect((await getJob(db, jb))?.status).toBe('succeeded');
+    expect(scontrol(tb!)).toMatch(/JobState=COMPLETED/);
+    expect((await db('runs').where({ id: b.runId }).first('status')).status).toBe('ready');
+    expect((await db('runs').where({ id: a.runId }).first('status')).status).toBe('cancelled');
+  });
+});
