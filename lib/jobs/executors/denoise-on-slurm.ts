@@ -29,12 +29,12 @@ export interface DenoiseForCluster {
 }
 
 /** timecourses.tsv as `quorum decompose` writes it: a header of k names, then T rows. Each float32
- * value is printed in the shortest form that reads back to the same number, so the node fits the
- * very values the worker would. */
+ * value is printed in the shortest form that reads back to the same number (ECMAScript
+ * Number::toString; -0 kept as "-0"), so the node fits the very values the worker would. */
 export function timecoursesTsv(tcs: Float32Array, k: number): string {
   const T = tcs.length / k;
   const lines = [Array.from({ length: k }, (_, c) => `component_${c + 1}`).join('\t')];
-  for (let t = 0; t < T; t++) lines.push(Array.from(tcs.subarray(t * k, (t + 1) * k), (v) => String(v)).join('\t'));
+  for (let t = 0; t < T; t++) lines.push(Array.from(tcs.subarray(t * k, (t + 1) * k), (v) => (Object.is(v, -0) ? '-0' : String(v))).join('\t'));
   return lines.join('\n') + '\n';
 }
 
