@@ -2,7 +2,7 @@
 // (slurmctld, slurmd, munge), started on loopback ports by scripts/slurm.sh with its state under
 // .data/slurm/ (npm test starts it; this file starts it itself when it is not running and stops
 // what it started). Workers run as processes with QUORUM_EXECUTOR=slurm; the cluster jobs run
-// `quorum decompose` on the node. Jobs that must stay running until the test says so wait for a
+// `quorum decompose` or `quorum denoise` on the node, alone or as tasks of one job array. Jobs that must stay running until the test says so wait for a
 // gate file (QUORUM_SLURM_SETUP), so no verdict depends on how fast anything runs.
 import { execFileSync, spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
@@ -319,5 +319,39 @@ describe.skipIf(skipWhy !== null)('runs that arrive together go as one job array
     expect(scontrol(tb!)).toMatch(/JobState=COMPLETED/);
     expect((await db('runs').where({ id: b.runId }).first('status')).status).toBe('ready');
     expect((await db('runs').where({ id: a.runId }).first('status')).status).toBe('cancelled');
+  });
+});
+
+describe.skipIf(skipWhy !== null)('re-attaching to array tasks', () => {
+  it('a worker killed while its array runs: the next worker re-attaches to each task, submits nothing, and imports each run once', { timeout: 400_000 }, async () => {
+    const a = await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 31 });
+    const b = await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 32 });
+    const jobIds = [(await enqueueDecomposition(db, { runId: a.runId })).jobId, (await enqueueDecomposition(db, { runId: b.runId })).jobId];
+    const gate = path.join(uploads.dir, `gate-reattach-${jobIds[0]}`);
+    const env = { QUORUM_SLURM_ARRAY_MAX: '2', QUORUM_SLURM_ARRAY_WAIT_MS: '600000', QUORUM_JOB_LEASE_MS: '1500', QUORUM_SLURM_SETUP: gateLine(gate) };
+    const first = slurmWorker(env, []);
+    const rows = await waitFor(async () => {
+      const r = await Promise.all(jobIds.map((id) => jobRow(id)));
+      return r.every((x) => x?.cluster_state === 'RUNNING') ? r : null;
+    }, { timeoutMs: 120_000, everyMs: 100 });
+    first.child.kill('SIGKILL');
+    await first.exited;
+    const tasks = rows.map((r) => String(r.cluster_job_id));
+    const arrayName = String(rows[0]!.cluster_name).split('#')[0]!;
+
+    const second = slurmWorker(env);
+    await waitFor(async () => tasks.every((t) => second.lines.some((l) => l.includes(`re-attached to cluster job ${t}`))), { timeoutMs: 60_000, everyMs: 100 });
+    await writeFile(gate, '');
+    const exit = await second.exited;
+    expect(exit.code, second.lines.join('\n')).toBe(0);
+    expect(second.lines.join('\n')).not.toMatch(/submitted as cluster job/);
+    // Slurm knows the array's two tasks, submitted once (the second worker sent nothing)
+    expect(jobNames().filter((n) => n === arrayName)).toHaveLength(2);
+    for (const [i, id] of jobIds.entries()) {
+      const job = await getJob(db, id);
+      expect(job?.status, job?.message ?? '').toBe('succeeded');
+      expect((job!.result as { clusterJobId: string }).clusterJobId).toBe(tasks[i]);
+      expect(await db('decompositions').where({ run_id: [a, b][i]!.runId })).toHaveLength(1);
+    }
   });
 });
