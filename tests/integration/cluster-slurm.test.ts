@@ -36,7 +36,10 @@ if (skipWhy) console.warn(`cluster-slurm tests skipped: ${skipWhy}`);
 
 const slurmEnv = { SLURM_CONF: conf };
 const scontrol = (id: string) => execFileSync('scontrol', ['show', 'job', '-o', id], { env: { ...process.env, ...slurmEnv }, encoding: 'utf8' });
-const jobNames = () => execFileSync('squeue', ['-h', '-t', 'all', '-o', '%j'], { env: { ...process.env, ...slurmEnv }, encoding: 'utf8' }).split('\n').filter(Boolean);
+const squeueAll = () => execFileSync('squeue', ['-h', '-t', 'all', '-o', '%i %j'], { env: { ...process.env, ...slurmEnv }, encoding: 'utf8' }).split('\n').filter(Boolean).map((l) => l.split(' ') as [string, string]);
+/** Names of the cluster jobs Slurm knows, leaving out those it knew before (earlier runs of this file reuse Quorum job ids while Slurm keeps ended jobs for MinJobAge). */
+const jobNames = (before: ReadonlySet<string> = new Set()) => squeueAll().filter(([id]) => !before.has(id)).map(([, name]) => name);
+const knownIds = () => new Set(squeueAll().map(([id]) => id));
 
 let uploads: Awaited<ReturnType<typeof useTempUploads>>;
 const workers: WorkerProcess[] = [];
@@ -159,6 +162,7 @@ describe.skipIf(skipWhy !== null)('decompose through Slurm', () => {
     const { jobId } = await enqueueDecomposition(db, { runId });
     const gate = path.join(uploads.dir, `gate-${jobId}`);
     const lease = { QUORUM_JOB_LEASE_MS: '1500', QUORUM_SLURM_SETUP: gateLine(gate) };
+    const before = knownIds();
     const first = slurmWorker(lease, []);
     const r1 = await waitFor(async () => {
       const r = await jobRow(jobId);
@@ -179,7 +183,7 @@ describe.skipIf(skipWhy !== null)('decompose through Slurm', () => {
     expect(job!.attempts).toBe(2); // the lost attempt and the re-attached one
     // one submission: Slurm knows one job by this job's name
     expect(jobNames().filter((n) => n === r1.cluster_name)).toHaveLength(1);
-    expect(jobNames().filter((n) => n.startsWith(`quorum-j${jobId}-`))).toHaveLength(1);
+    expect(jobNames(before).filter((n) => n.startsWith(`quorum-j${jobId}-`))).toHaveLength(1);
     expect(second.lines.join('\n')).not.toMatch(/submitted as cluster job/);
     expect(await db('decompositions').where({ run_id: runId })).toHaveLength(1);
     expect((await db('runs').where({ id: runId }).first('status')).status).toBe('ready');
