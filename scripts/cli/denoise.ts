@@ -1,6 +1,8 @@
 // `quorum denoise FILE --from DIR --noise 1,4,7 [--mode partial|full] [--motion FILE …] --out FILE` –
 // regresses noise components out of a run, using a `quorum decompose` output directory
 // (timecourses.tsv, mask.nii.gz, summary.json for the dropped volumes); prints a JSON summary.
+// --mask FILE takes the mask from elsewhere, --no-mask regresses every voxel (the denoise job on
+// the cluster passes the decomposition's stored mask, or none, as the job on the worker uses it).
 import { readFile } from 'node:fs/promises';
 import path from 'node:path';
 import { parseArgs } from 'node:util';
@@ -12,7 +14,7 @@ import { parseTsv } from '@/lib/exports/tabular';
 import type { CliCommand } from './index';
 
 const USAGE =
-  'usage: quorum denoise FILE --from DIR --noise 1,4,7 [--mode partial|full] [--drop N] ' +
+  'usage: quorum denoise FILE --from DIR --noise 1,4,7 [--mode partial|full] [--drop N] [--mask FILE | --no-mask] ' +
   `${MOTION_USAGE} --out FILE.nii.gz`;
 
 class UsageError extends Error {}
@@ -30,6 +32,8 @@ export const denoise: CliCommand = {
           noise: { type: 'string' },
           mode: { type: 'string', default: 'partial' },
           drop: { type: 'string' },
+          mask: { type: 'string' },
+          'no-mask': { type: 'boolean', default: false },
           out: { type: 'string' },
           ...motionOptions,
         },
@@ -58,9 +62,14 @@ export const denoise: CliCommand = {
       }
       if (!Number.isInteger(drop) || drop < 0) throw new UsageError(`--drop must be a whole number ≥ 0; got "${values.drop}".`);
       const image = await readNiftiFile(file);
-      const maskVol = (await readNiftiFile(path.join(values.from, 'mask.nii.gz'))).readVolume(0);
-      if (maskVol.length !== image.voxelsPerVolume) throw new UsageError(`The mask in ${values.from} has ${maskVol.length} voxels per volume; ${file} has ${image.voxelsPerVolume}. Use the directory made from this run.`);
-      const mask = Uint8Array.from(maskVol, (v) => (v > 0 ? 1 : 0));
+      if (values.mask && values['no-mask']) throw new UsageError('Give --mask FILE or --no-mask, not both.');
+      let mask: Uint8Array | undefined;
+      if (!values['no-mask']) {
+        const maskFile = values.mask ?? path.join(values.from, 'mask.nii.gz');
+        const maskVol = (await readNiftiFile(maskFile)).readVolume(0);
+        if (maskVol.length !== image.voxelsPerVolume) throw new UsageError(`The mask ${maskFile} has ${maskVol.length} voxels per volume; ${file} has ${image.voxelsPerVolume}. Use the mask made from this run.`);
+        mask = Uint8Array.from(maskVol, (v) => (v > 0 ? 1 : 0));
+      }
       const full = await readMotionOption(values, image.nt);
       const motion = full ? dropInitialVolumes(full, drop) : undefined;
       const t0 = performance.now();

@@ -6,6 +6,9 @@ import { describe, expect, it } from 'vitest';
 import { DEFAULT_TEMPLATE, renderBatchScript, shellQuote } from '@/lib/jobs/executors/batch-script';
 import { clusterFailure, elapsedText, isTerminal, pendingReason } from '@/lib/jobs/executors/cluster-failure';
 import { decomposeFlags } from '@/lib/jobs/executors/decompose-on-slurm';
+import { timecoursesTsv } from '@/lib/jobs/executors/denoise-on-slurm';
+import { ExecutorSettingsError, slurmSettings } from '@/lib/jobs/executors/settings';
+import { parseTsv } from '@/lib/exports/tabular';
 import { parseScontrol, slurmSeconds } from '@/lib/jobs/executors/slurm-commands';
 import { JobError, PermanentJobError } from '@/lib/jobs/errors';
 import { icaRunFraction } from '@/lib/decomposition/pipeline';
@@ -100,5 +103,38 @@ describe('progress through one FastICA run', () => {
     expect(icaRunFraction(1e-2, 1e-4)).toBeCloseTo(0.5, 12);
     expect(icaRunFraction(1e-4, 1e-4)).toBe(0.99);
     expect(icaRunFraction(0, 1e-4)).toBe(0.99);
+  });
+});
+
+describe("the denoise job's time courses for the node", () => {
+  it('reads back as the very float32 values (ECMAScript Number::toString gives the shortest round-tripping digits)', () => {
+    const k = 3;
+    const tcs = Float32Array.from([0.1, -2.5e-8, 3.4028234663852886e38, 1 / 3, -0, 7, 1e-45, 123456.789, -0.3], (v) => v);
+    const tsv = parseTsv(timecoursesTsv(tcs, k));
+    expect(tsv.header).toEqual(['component_1', 'component_2', 'component_3']);
+    expect(tsv.rows).toHaveLength(3);
+    const back = Float64Array.from(tsv.rows.flat(), Number);
+    // every value equals the float32 exactly (compared as doubles), so the fit sees the same numbers
+    expect(Array.from(back)).toEqual(Array.from(tcs, (v) => v));
+  });
+});
+
+describe('array settings', () => {
+  const withEnv = (env: Record<string, string>, f: () => void) => {
+    const old = { ...process.env };
+    Object.assign(process.env, env);
+    try {
+      f();
+    } finally {
+      for (const key of Object.keys(env)) if (old[key] === undefined) delete process.env[key];
+      else process.env[key] = old[key];
+    }
+  };
+  it('default to arrays of up to 50 runs gathered for one poll interval', () => {
+    withEnv({ QUORUM_SLURM_POLL_MS: '700' }, () => expect(slurmSettings()).toMatchObject({ arrayMax: 50, arrayWaitMs: 700 }));
+  });
+  it('refuse a bad array size, naming the variable', () => {
+    withEnv({ QUORUM_SLURM_ARRAY_MAX: '0' }, () => expect(() => slurmSettings()).toThrow(ExecutorSettingsError));
+    withEnv({ QUORUM_SLURM_ARRAY_MAX: 'many' }, () => expect(() => slurmSettings()).toThrow(/QUORUM_SLURM_ARRAY_MAX must be a whole number/));
   });
 });

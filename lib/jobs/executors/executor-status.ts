@@ -43,6 +43,7 @@ export async function executorStatus(): Promise<ExecutorStatus> {
       { label: 'Storage root on the cluster', value: s.clusterStorageRoot },
       { label: 'Quorum on the cluster', value: s.clusterHome },
       { label: 'Polling interval', value: `${s.pollMs} ms` },
+      { label: 'Runs per job array', value: s.arrayMax > 1 ? `up to ${s.arrayMax}, gathered for ${s.arrayWaitMs} ms` : 'no arrays (one cluster job per run)' },
       { label: 'Jobs per worker at once', value: String(workerConcurrency()) },
     ];
     return { executor, problem: null, settings, cluster: await clusterAnswers() };

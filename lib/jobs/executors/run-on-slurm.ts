@@ -83,6 +83,8 @@ export interface SlurmStep {
   percentOf?: (enginePercent: number) => number;
   /** Maps the engine's stage names into the job's. */
   stageOf?: (engineStage: string) => string;
+  /** Writes the command's input files into the fresh job folder before sbatch (not on re-attach). */
+  prepare?: (folders: ClusterFolders) => Promise<void>;
 }
 
 /** Submits (or re-attaches) and waits for the cluster job; returns the folders and the cluster job id. */
@@ -156,24 +158,37 @@ export async function runOnSlurm(ctx: JobContext<unknown>, settings: SlurmSettin
 }
 
 async function submit(ctx: JobContext<unknown>, settings: SlurmSettings, step: SlurmStep, folders: ClusterFolders): Promise<string> {
-  const name = `quorum-j${ctx.job.id}-${randomBytes(4).toString('hex')}`;
   await rm(folders.local, { recursive: true, force: true });
   await mkdir(folders.local, { recursive: true });
+  await step.prepare?.(folders);
   const command = ['npm', 'run', '-s', 'quorum', '--', ...step.args(folders)].map(shellQuote).join(' ');
-  const script = renderBatchScript(await loadTemplate(settings.template), {
-    job_name: name,
+  // the command alone, for an array task to run (an array's one script reads it from here)
+  await writeFile(path.join(folders.local, 'command.sh'), `${command}\n`);
+  if (settings.arrayMax <= 1) return submitOne(ctx, settings, folders, command);
+  return new Promise<string>((resolve, reject) => joinArray({ ctx, settings, folders, command, resolve, reject }));
+}
+
+async function batchScript(settings: SlurmSettings, v: { name: string; stdout: string; stderr: string; command: string }): Promise<string> {
+  return renderBatchScript(await loadTemplate(settings.template), {
+    job_name: v.name,
     partition: settings.partition,
     account: settings.account,
     time: settings.time,
     cpus: String(settings.cpus),
     mem: settings.mem,
-    stdout: path.posix.join(folders.cluster, 'stdout.txt'),
-    stderr: path.posix.join(folders.cluster, 'stderr.txt'),
-    workdir: shellQuote(folders.cluster),
+    stdout: v.stdout,
+    stderr: v.stderr,
+    workdir: shellQuote(path.posix.dirname(v.stdout)),
     quorum_home: shellQuote(settings.clusterHome),
     setup: settings.setup.join('\n'),
-    command,
+    command: v.command,
   });
+}
+
+/** One cluster job for one Quorum job. */
+async function submitOne(ctx: JobContext<unknown>, settings: SlurmSettings, folders: ClusterFolders, command: string): Promise<string> {
+  const name = `quorum-j${ctx.job.id}-${randomBytes(4).toString('hex')}`;
+  const script = await batchScript(settings, { name, stdout: path.posix.join(folders.cluster, 'stdout.txt'), stderr: path.posix.join(folders.cluster, 'stderr.txt'), command });
   const scriptPath = path.join(folders.local, 'job.sh');
   await writeFile(scriptPath, script, { mode: 0o755 });
   // the name first, so a worker that dies inside sbatch leaves a trace the next one can find
@@ -185,4 +200,81 @@ async function submit(ctx: JobContext<unknown>, settings: SlurmSettings, step: S
   await record(ctx, { cluster_job_id: id, cluster_state: 'PENDING' });
   ctx.logger.info(`job ${ctx.job.id}: submitted as cluster job ${id} (${name})`);
   return id;
+}
+
+interface ArrayMember {
+  ctx: JobContext<unknown>;
+  settings: SlurmSettings;
+  folders: ClusterFolders;
+  command: string;
+  resolve: (id: string) => void;
+  reject: (err: unknown) => void;
+}
+
+/**
+ * Submissions of this process that arrive within QUORUM_SLURM_ARRAY_WAIT_MS of the first one
+ * (at most QUORUM_SLURM_ARRAY_MAX; a full batch goes at once) share one `sbatch --array`.
+ */
+let gathering: { members: ArrayMember[]; timer: NodeJS.Timeout } | null = null;
+
+function joinArray(m: ArrayMember): void {
+  if (!gathering) gathering = { members: [], timer: setTimeout(flushArray, m.settings.arrayWaitMs) };
+  gathering.members.push(m);
+  if (gathering.members.length >= m.settings.arrayMax) flushArray();
+}
+
+function flushArray(): void {
+  if (!gathering) return;
+  const { members, timer } = gathering;
+  gathering = null;
+  clearTimeout(timer);
+  const live = members.filter((m) => {
+    if (!m.ctx.signal.aborted) return true;
+    m.reject(m.ctx.signal.reason instanceof Error ? m.ctx.signal.reason : new JobError('The job stopped before it was submitted to the cluster.'));
+    return false;
+  });
+  if (live.length === 1) {
+    const m = live[0]!;
+    void submitOne(m.ctx, m.settings, m.folders, m.command).then(m.resolve, m.reject);
+  } else if (live.length > 1) {
+    void submitArray(live).catch((err: unknown) => live.forEach((m) => m.reject(err)));
+  }
+}
+
+/**
+ * One cluster job array for several Quorum jobs: task i reads line i+1 of list.txt (its job's
+ * cluster folder), sends its output to that folder's stdout.txt/stderr.txt and runs the folder's
+ * command.sh. Each Quorum job keeps "<array id>_<i>" as its cluster job, so polling, failures,
+ * scancel and re-attaching work per task.
+ */
+async function submitArray(members: ArrayMember[]): Promise<void> {
+  const settings = members[0]!.settings;
+  const hex = randomBytes(4).toString('hex');
+  const name = `quorum-a${hex}`;
+  const rel = path.join('cluster', `array-${hex}`);
+  const dir = { local: path.join(storageRoot(), rel), cluster: path.posix.join(settings.clusterStorageRoot, rel.split(path.sep).join('/')) };
+  await mkdir(dir.local, { recursive: true });
+  const list = path.posix.join(dir.cluster, 'list.txt');
+  await writeFile(path.join(dir.local, 'list.txt'), members.map((m) => `${m.folders.cluster}\n`).join(''));
+  const command = [
+    `dir=$(sed -n "$((SLURM_ARRAY_TASK_ID + 1))p" ${shellQuote(list)})`,
+    'exec >"$dir/stdout.txt" 2>"$dir/stderr.txt"',
+    '. "$dir/command.sh"',
+  ].join('\n');
+  const script = await batchScript(settings, { name, stdout: path.posix.join(dir.cluster, 'task-%a.out'), stderr: path.posix.join(dir.cluster, 'task-%a.err'), command });
+  const scriptPath = path.join(dir.local, 'job.sh');
+  await writeFile(scriptPath, script, { mode: 0o755 });
+  await Promise.all(
+    members.map((m, i) => record(m.ctx, { executor: 'slurm', cluster_name: `${name}#${i}`, cluster_job_id: null, cluster_state: 'SUBMITTING', cluster_reason: null, cluster_node: null, cluster_elapsed_s: null })),
+  );
+  const id = await sbatch(scriptPath, [`--array=0-${members.length - 1}`]).catch((err: unknown) => {
+    throw new JobError(`The cluster refused the job array: ${(err as Error).message}`, { cause: err });
+  });
+  await Promise.all(
+    members.map(async (m, i) => {
+      await record(m.ctx, { cluster_job_id: `${id}_${i}`, cluster_state: 'PENDING' });
+      m.ctx.logger.info(`job ${m.ctx.job.id}: submitted as cluster job ${id}_${i} (task ${i} of array ${id}, ${members.length} tasks, ${name})`);
+      m.resolve(`${id}_${i}`);
+    }),
+  );
 }

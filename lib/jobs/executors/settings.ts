@@ -13,6 +13,8 @@
  * | QUORUM_CLUSTER_STORAGE_ROOT | the storage root | the storage root as the cluster's nodes see it |
  * | QUORUM_CLUSTER_HOME | this checkout | the Quorum checkout as the nodes see it (npm ci done) |
  * | QUORUM_SLURM_POLL_MS | 5000 | how often the worker asks Slurm about its jobs |
+ * | QUORUM_SLURM_ARRAY_MAX | 50 | most runs in one `sbatch --array` (1: one cluster job per run) |
+ * | QUORUM_SLURM_ARRAY_WAIT_MS | the poll interval | how long a submission waits for others to join its array |
  * | QUORUM_WORKER_CONCURRENCY | 1 (local), 50 (slurm) | jobs one worker holds at once |
  */
 import { storageRoot } from '@/lib/storage';
@@ -30,6 +32,8 @@ export interface SlurmSettings {
   clusterStorageRoot: string;
   clusterHome: string;
   pollMs: number;
+  arrayMax: number;
+  arrayWaitMs: number;
 }
 
 export class ExecutorSettingsError extends Error {
@@ -60,6 +64,10 @@ export function slurmSettings(): SlurmSettings {
   if (!/^\d+[KMGT]?$/i.test(mem)) throw new ExecutorSettingsError(`QUORUM_SLURM_MEM must be a size such as 4000M or 4G; got "${mem}".`);
   const pollMs = Number(env('QUORUM_SLURM_POLL_MS') ?? 5000);
   if (!Number.isInteger(pollMs) || pollMs < 50) throw new ExecutorSettingsError(`QUORUM_SLURM_POLL_MS must be a whole number ≥ 50; got "${env('QUORUM_SLURM_POLL_MS')}".`);
+  const arrayMax = Number(env('QUORUM_SLURM_ARRAY_MAX') ?? 50);
+  if (!Number.isInteger(arrayMax) || arrayMax < 1 || arrayMax > 1000) throw new ExecutorSettingsError(`QUORUM_SLURM_ARRAY_MAX must be a whole number from 1 to 1000; got "${env('QUORUM_SLURM_ARRAY_MAX')}".`);
+  const arrayWaitMs = Number(env('QUORUM_SLURM_ARRAY_WAIT_MS') ?? pollMs);
+  if (!Number.isInteger(arrayWaitMs) || arrayWaitMs < 0) throw new ExecutorSettingsError(`QUORUM_SLURM_ARRAY_WAIT_MS must be a whole number ≥ 0; got "${env('QUORUM_SLURM_ARRAY_WAIT_MS')}".`);
   const word = (name: string) => {
     const v = env(name);
     if (v !== null && !/^[\w.,-]+$/.test(v)) throw new ExecutorSettingsError(`${name} may hold letters, digits and . , _ - only; got "${v}".`);
@@ -76,6 +84,8 @@ export function slurmSettings(): SlurmSettings {
     clusterStorageRoot: env('QUORUM_CLUSTER_STORAGE_ROOT') ?? storageRoot(),
     clusterHome: env('QUORUM_CLUSTER_HOME') ?? process.cwd(),
     pollMs,
+    arrayMax,
+    arrayWaitMs,
   };
 }
 

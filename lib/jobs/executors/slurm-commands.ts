@@ -36,10 +36,15 @@ export async function scancel(jobId: string): Promise<void> {
   await run('scancel', [jobId]);
 }
 
-/** The id of a job with this (unique) name that Slurm still knows, or null. */
+/**
+ * The id of a job with this (unique) name that Slurm still knows, or null. A name
+ * "<array name>#<task>" stands for one task of an array: its id is "<array id>_<task>".
+ */
 export async function findJobByName(name: string): Promise<string | null> {
-  const out = await run('squeue', ['-h', '-t', 'all', '--name', name, '-o', '%i']);
-  return out.trim().split('\n').map((l) => l.trim()).find(Boolean) ?? null;
+  const task = /^(.+)#(\d+)$/.exec(name);
+  const out = await run('squeue', ['-h', '-t', 'all', '--name', task ? task[1]! : name, '-o', task ? '%F' : '%i']);
+  const id = out.trim().split('\n').map((l) => l.trim()).find(Boolean) ?? null;
+  return id && task ? `${id}_${task[2]}` : id;
 }
 
 /** What Slurm says about one job. */

@@ -4,7 +4,9 @@
  * release (or of the current decisions under the study's uncertain_in_export), regresses the noise
  * components out volume by volume (lib/denoise) and writes a float32 .nii.gz under denoised/.
  * The file is written first, then the job completes with its key and checksum in one commit; a
- * lost lease removes the file again. Progress stages: reading, fitting, writing.
+ * lost lease removes the file again. Progress stages: reading, fitting, writing. With
+ * QUORUM_EXECUTOR=slurm the fitting runs as a cluster job (executors/denoise-on-slurm.ts) and the
+ * worker stores its output the same way.
  */
 import { readFile } from 'node:fs/promises';
 import { blobToFloat32, parseJson } from '@/lib/db/knex';
@@ -15,9 +17,13 @@ import { denoisePayloadSchema, type DenoiseResult } from '@/lib/denoise/payload'
 import { noiseList, type UncertainPolicy } from '@/lib/exports/noise-list';
 import { readNiftiFile } from '@/lib/nifti';
 import { ensureDirFor, newKey, pathFor, removeKey } from '@/lib/storage';
-import { PermanentJobError } from '../errors';
+import { JobError, PermanentJobError } from '../errors';
+import { denoiseOnSlurm } from '../executors/denoise-on-slurm';
+import { executorName, slurmSettings } from '../executors/settings';
 import { defineJobKind } from '../types';
 import { motionOrderOf } from './decompose';
+
+const NO_MOTION = 'The run has no motion parameters; request denoising without motion regressors or upload them.';
 
 export const denoiseKind = defineJobKind({
   kind: 'denoise',
@@ -55,6 +61,31 @@ export const denoiseKind = defineJobKind({
     const tcs = new Float32Array(T * k);
     for (let c = 0; c < k; c++) for (let t = 0; t < T; t++) tcs[t * k + c] = courses[c]![t]!;
 
+    const stem = bidsName({ sub: run.sub, ses: run.ses, task: run.task, acq: run.acq, runLabel: run.run_label });
+    // with motion regressors the name says so, so the two files of one release never share a name
+    const name = `${stem}_desc-denoised${payload.mode}${payload.includeMotion ? 'motion' : ''}_bold.nii.gz`;
+    if (payload.includeMotion && !run.motion_key) throw new PermanentJobError(NO_MOTION);
+
+    if (executorName() === 'slurm') {
+      let settings;
+      try {
+        settings = slurmSettings();
+      } catch (err) {
+        throw new JobError(`The cluster executor is not configured correctly: ${(err as Error).message}`, { cause: err });
+      }
+      const motion = payload.includeMotion ? { key: run.motion_key as string, order: motionOrderOf(run.motion_order), units: run.motion_rotation_units ?? 'radians' } : null;
+      const out = await denoiseOnSlurm(ctx, settings, { fileKey: run.file_key, maskKey: dec.mask_key ?? null, motion, timecourses: tcs, k, noise, drop, mode: payload.mode });
+      try {
+        const result: DenoiseResult = { key: out.key, name, sha256: out.sha256, bytes: out.bytes, mode: payload.mode, includeMotion: payload.includeMotion, noise, releaseId: payload.releaseId ?? null, volumes: T };
+        await ctx.commit(async () => result, (v) => ({ ...v, clusterJobId: out.clusterJobId }));
+        ctx.logger.info(`run ${run.id}: denoised on the cluster (job ${out.clusterJobId}, ${payload.mode}, ${noise.length} of ${k} components) → ${out.key}`);
+        return result;
+      } catch (err) {
+        await removeKey(out.key).catch(() => undefined);
+        throw err;
+      }
+    }
+
     await ctx.progress('reading', 2);
     const image = await readNiftiFile(pathFor(run.file_key));
     let mask: Uint8Array | undefined;
@@ -65,15 +96,11 @@ export const denoiseKind = defineJobKind({
     }
     let motion;
     if (payload.includeMotion) {
-      if (!run.motion_key) throw new PermanentJobError('The run has no motion parameters; request denoising without motion regressors or upload them.');
       const full = parseMotionFile(await readFile(pathFor(run.motion_key), 'utf8'), { order: motionOrderOf(run.motion_order), rotationUnits: run.motion_rotation_units ?? 'radians', expectedRows: image.nt });
       motion = dropInitialVolumes(full, drop);
     }
     ctx.throwIfStopped();
     const key = newKey('denoised', '.nii.gz');
-    const stem = bidsName({ sub: run.sub, ses: run.ses, task: run.task, acq: run.acq, runLabel: run.run_label });
-    // with motion regressors the name says so, so the two files of one release never share a name
-    const name = `${stem}_desc-denoised${payload.mode}${payload.includeMotion ? 'motion' : ''}_bold.nii.gz`;
     try {
       const out = await denoiseImage({
         image, drop, timecourses: tcs, k, noise, mode: payload.mode, motion, mask, outPath: await ensureDirFor(key),
