@@ -86,7 +86,7 @@ start() {
     sleep 0.5
   done
   echo "slurm did not come up; see $ROOT/log/" >&2
-  tail -5 "$ROOT/log/slurmctld.log" "$ROOT/log/slurmd.log" >&2 || true
+  tail -n 5 "$ROOT/log/slurmctld.log" "$ROOT/log/slurmd.log" >&2 || true
   return 1
 }
 
