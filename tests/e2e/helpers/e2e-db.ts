@@ -1,7 +1,7 @@
 import { execFileSync } from 'node:child_process';
 
 /**
- * A read-only look into the browser tests' database (QUORUM_DB_NAME, default quorum_e2e) through the
+ * A look into the browser tests' database (QUORUM_DB_NAME, default quorum_e2e) through the
  * project's own knex settings: runs one SQL statement and returns its rows.
  */
 export function sql<T = Record<string, unknown>>(query: string): T[] {
