@@ -6,6 +6,7 @@
  */
 import type { AgreementReport } from './agreement-report';
 import { CAUTIONS } from '@/lib/exports/cautions';
+import { sentence } from '@/lib/text';
 
 export type MethodsInput = {
   software: string;
@@ -130,7 +131,7 @@ export function methodsParagraph(m: MethodsInput): string {
         `Because signal and noise labels are imbalanced, PABAK and AC1 are reported beside κ.`,
     );
   } else {
-    parts.push(`Inter-rater agreement could not be computed: ${m.report.unavailable ?? 'not enough overlapping votes'}.`);
+    parts.push(sentence(`Inter-rater agreement could not be computed: ${m.report.unavailable ?? 'not enough overlapping votes'}`));
   }
   const c = m.report.decisions;
   const lead = c.reconciled + c.override;

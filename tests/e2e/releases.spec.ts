@@ -17,7 +17,7 @@ let studyId: number;
 /** A fresh study with one tiny ready run, votes from two submitted raters and complete decisions. */
 function createDecidedStudy(pendingFirst = false): number {
   const out = execFileSync('node', ['--import', 'tsx', '-e', `
-    Promise.all([import('./lib/db/knex.ts'), import('./tests/e2e/helpers/ready-run.ts')]).then(async ([{ createDb }, { createReadyRun }]) => {
+    Promise.all([import('./lib/db/knex.ts'), import('./tests/e2e/helpers/ready-run.ts'), import('./tests/integration/helpers/submitted.ts')]).then(async ([{ createDb }, { createReadyRun }, { markSubmitted }]) => {
       const db = createDb();
       const ids = Object.fromEntries((await db('users').select('id', 'email')).map((u) => [u.email.split('@')[0], u.id]));
       const [studyId] = await db('studies').insert({ name: 'Release walk ' + Date.now(), created_by: ids.lead, raters_per_run: 2, consensus_rule: 'majority',
@@ -30,7 +30,7 @@ function createDecidedStudy(pendingFirst = false): number {
         const pending = ${pendingFirst} && n === 0;
         await db('decisions').insert({ component_id: componentId, run_id: run.runId, label: pending ? null : label, noise_kind: label === 'noise' ? 'motion' : null, method: pending ? 'pending' : 'unanimous' });
       }
-      await db('assignments').where({ run_id: run.runId }).update({ submitted_at: db.fn.now() });
+      await markSubmitted(db, { runId: run.runId }); // as the desk's submit does: agreement reads the votes as first submitted
       process.stdout.write(JSON.stringify({ studyId }));
       await db.destroy();
     });`], {

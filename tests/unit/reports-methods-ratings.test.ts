@@ -7,16 +7,24 @@
 import { describe, expect, it } from 'vitest';
 import { methodsParagraph, type MethodsInput } from '@/lib/reports/methods-paragraph';
 
-function paragraph(ratings: Partial<MethodsInput['ratings']>): string {
+function paragraph(ratings: Partial<MethodsInput['ratings']>, unavailable = 'too few items'): string {
   return methodsParagraph({
     software: '0.1.0', runs: 2, components: 40, k: { min: 20, max: 20, median: 20 },
     decomposition: { dimMethods: ['iid-mdl'], contrasts: ['logcosh'], tolerance: 1e-4, maxIter: 200, dropVolumes: [], varianceNorm: true, detrend: false, masks: ['automatic'] },
     ratersPerRun: 2, votesPerComponent: { min: 2, max: 2, mean: 2 }, consensusRule: 'majority', labelSet: ['signal', 'noise', 'uncertain'], uncertainInExport: 'keep',
     bootstrap: { resamples: 1000, seed: 1 },
-    report: { summary: null, unavailable: 'too few items', raters: [{ id: 1, name: 'a', votes: 40 }, { id: 2, name: 'b', votes: 40 }], decisions: { total: 40, pending: 0, unanimous: 30, majority: 0, reconciled: 10, override: 0 } } as never,
+    report: { summary: null, unavailable, raters: [{ id: 1, name: 'a', votes: 40 }, { id: 2, name: 'b', votes: 40 }], decisions: { total: 40, pending: 0, unanimous: 30, majority: 0, reconciled: 10, override: 0 } } as never,
     ratings: { blinding: true, showVotesAfterSubmit: true, reopened: { assignments: 0, times: 0 }, raters: 2, certified: null, ...ratings },
   });
 }
+
+describe('methods paragraph: sentences', () => {
+  it('ends the agreement sentence once when the reason already ends in a full stop (no "..")', () => {
+    const text = paragraph({}, 'Agreement needs at least two raters who have submitted the same runs.');
+    expect(text).toContain('could not be computed: Agreement needs at least two raters who have submitted the same runs. ');
+    expect(text).not.toMatch(/\.\./);
+  });
+});
 
 describe('methods paragraph: who rated', () => {
   it('never says "trained" and says nobody was certified when the study certified nobody', () => {

@@ -8,7 +8,7 @@ import path from 'node:path';
  */
 export function createDecidedStudy(name: string, sub = 'wk01'): number {
   const out = execFileSync('node', ['--import', 'tsx', '-e', `
-    Promise.all([import('./lib/db/knex.ts'), import('./tests/e2e/helpers/ready-run.ts')]).then(async ([{ createDb }, { createReadyRun }]) => {
+    Promise.all([import('./lib/db/knex.ts'), import('./tests/e2e/helpers/ready-run.ts'), import('./tests/integration/helpers/submitted.ts')]).then(async ([{ createDb }, { createReadyRun }, { markSubmitted }]) => {
       const db = createDb();
       const ids = Object.fromEntries((await db('users').select('id', 'email')).map((u) => [u.email.split('@')[0], u.id]));
       const [studyId] = await db('studies').insert({ name: ${JSON.stringify(name)} + ' ' + Date.now(), created_by: ids.lead, raters_per_run: 2, consensus_rule: 'majority',
@@ -20,7 +20,7 @@ export function createDecidedStudy(name: string, sub = 'wk01'): number {
         for (const r of ['rater1', 'rater2']) await db('votes').insert({ component_id: componentId, run_id: run.runId, rater_id: ids[r], label, noise_kind: label === 'noise' ? 'motion' : null });
         await db('decisions').insert({ component_id: componentId, run_id: run.runId, label, noise_kind: label === 'noise' ? 'motion' : null, method: 'unanimous' });
       }
-      await db('assignments').where({ run_id: run.runId }).update({ submitted_at: db.fn.now() });
+      await markSubmitted(db, { runId: run.runId }); // as the desk's submit does: agreement reads the votes as first submitted
       process.stdout.write(JSON.stringify({ studyId }));
       await db.destroy();
     });`], {
