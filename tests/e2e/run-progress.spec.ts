@@ -14,7 +14,10 @@ import { sql } from './helpers/e2e-db';
 
 test('the runs table shows the stage, percent and message of a run a worker is decomposing', async ({ page }) => {
   const name = `Progress shown ${Date.now().toString(36)}`;
-  await new SignInPage(page).signIn(DEMO.lead);
+  const signIn = new SignInPage(page);
+  await signIn.open();
+  await signIn.signIn(DEMO.lead);
+  await expect(page).not.toHaveURL(/sign-in/);
   await new StudyPage(page).createStudy(name);
   const studyId = Number(new URL(page.url()).pathname.split('/').pop());
   expect(studyId).toBeGreaterThan(0);
