@@ -3,11 +3,13 @@
 //   --once                 process jobs until none is queued or running, then exit (tests, batch)
 // Environment: QUORUM_WORKER_ID (default host:pid:random), QUORUM_JOB_LEASE_MS (default 30000),
 //   QUORUM_JOB_POLL_MS (500), QUORUM_JOB_RETRY_BASE_MS (5000), QUORUM_DECOMPOSE_THREADS,
+//   QUORUM_WORKER_NICE (10: the worker's CPU priority, 0 = normal, up to 19 = lowest),
 //   the database settings of lib/db/config.ts and QUORUM_UPLOADS_DIR (the shared storage root);
 //   QUORUM_EXECUTOR (local | slurm), QUORUM_WORKER_CONCURRENCY and the QUORUM_SLURM_* settings
 //   of lib/jobs/executors/settings.ts.
 // SIGTERM / SIGINT: the running job is released back to the queue (its attempt is not counted) and
 // the worker exits; a second signal exits at once.
+import os from 'node:os';
 import { checkDatabase, closeDb, db } from '@/lib/db/knex';
 import { jobKinds } from '@/lib/jobs/kinds';
 import { defaultWorkerId, startWorker } from '@/lib/jobs/worker';
@@ -33,6 +35,14 @@ async function main(): Promise<number> {
     return 2;
   }
   const once = args.includes('--once');
+  // Decompositions are batch work: run them at a lower CPU priority so that, on a machine shared with
+  // the web app, votes and pages stay quick (threads the engine starts later inherit it on Linux).
+  const nice = intEnv('QUORUM_WORKER_NICE', 10, 0);
+  try {
+    if (nice > 0) os.setPriority(Math.min(nice, 19));
+  } catch (err) {
+    process.stderr.write(`worker: could not lower its CPU priority (${(err as Error).message}); running at normal priority\n`);
+  }
   const leaseMs = intEnv('QUORUM_JOB_LEASE_MS', 30_000, 200);
   const pollMs = intEnv('QUORUM_JOB_POLL_MS', 500, 10);
   const retryBaseMs = intEnv('QUORUM_JOB_RETRY_BASE_MS', 5_000, 0);
