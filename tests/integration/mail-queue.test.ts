@@ -5,11 +5,10 @@
  * the last failure drops the sealed copy too. (Issue: "the outbox keeps no live links".)
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { spawn, type ChildProcess } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
 import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
-import net from 'node:net';
 import { createHash } from 'node:crypto';
 import { closeDb, db } from '@/lib/db/knex';
 import { claimJob } from '@/lib/jobs';
@@ -21,20 +20,13 @@ import { queueMail } from '@/lib/jobs/queue-mail';
 import { sealMail } from '@/lib/mail/seal';
 import { SEND_MAIL } from '@/lib/mail/payloads';
 import { createUser, uniqueSuffix } from './helpers/factories';
+import { freePort, startMailCatcher } from './helpers/mail-catcher';
 
 let server: ChildProcess;
 let dir: string;
 let port: number;
 const quiet = { info() {}, warn() {}, error() {} };
 
-async function freePort(): Promise<number> {
-  return new Promise((resolve) => {
-    const s = net.createServer().listen(0, '127.0.0.1', () => {
-      const p = (s.address() as net.AddressInfo).port;
-      s.close(() => resolve(p));
-    });
-  });
-}
 
 /** Claims and runs send-mail jobs until `jobId` is no longer queued; returns its final row. */
 async function runUntilDone(jobId: number) {
@@ -50,15 +42,7 @@ async function runUntilDone(jobId: number) {
 
 beforeAll(async () => {
   dir = await mkdtemp(path.join(tmpdir(), 'quorum-mailq-'));
-  port = await freePort();
-  server = spawn(process.execPath, ['--import', 'tsx', 'scripts/mail-server.ts'], {
-    env: { ...process.env, QUORUM_MAIL_PORT: String(port), QUORUM_MAIL_DIR: dir },
-    stdio: ['ignore', 'pipe', 'inherit'],
-  });
-  await new Promise<void>((resolve, reject) => {
-    server.stdout!.on('data', (d: Buffer) => d.toString().includes('fake SMTP server') && resolve());
-    server.on('exit', (code) => reject(new Error(`mail server exited with ${code}`)));
-  });
+  ({ port, server } = await startMailCatcher(dir));
   process.env.SMTP_PORT = String(port);
 });
 
