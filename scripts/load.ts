@@ -16,7 +16,8 @@
  *    highest acknowledged version is the stored version, with the label sent with it.
  *
  * Settings: LOAD_SECONDS (realistic phase, default 60), LOAD_STEP_SECONDS (each ramp step, 10),
- * LOAD_RATES (ramp, votes/s, default 25,50,100,200,400), LOAD_PORT (3190), QUORUM_NEXT_DIST.
+ * LOAD_RATES (ramp, votes/s, default 25,50,100,200,400), LOAD_PORT (3190), QUORUM_NEXT_DIST,
+ * LOAD_PROFILE_DIR (the server writes a V8 CPU profile there on exit).
  * The machine may be shared: the figures are only as good as the idle CPU.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -86,8 +87,8 @@ async function prepare(uploads: string) {
   }
 }
 
-function start(args: string[], env: Record<string, string>, name: string): ChildProcess {
-  const child = spawn(process.execPath, ['--conditions=react-server', '--import', 'tsx', ...args], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+function start(args: string[], env: Record<string, string>, name: string, flags: string[] = []): ChildProcess {
+  const child = spawn(process.execPath, [...flags, '--conditions=react-server', '--import', 'tsx', ...args], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
   child.stderr!.on('data', (b: Buffer) => process.stderr.write(`[${name}] ${b}`));
   child.stdout!.resume();
   children.push(child);
@@ -215,12 +216,14 @@ async function main() {
     console.error(`load: no production build in ${dist}/ — run \`npx next build\` first`);
     process.exit(2);
   }
+  // LOAD_PROFILE_DIR: the server writes a V8 CPU profile there when it exits (open it in Chrome's DevTools)
+  const profileFlags = process.env.LOAD_PROFILE_DIR ? ['--cpu-prof', `--cpu-prof-dir=${path.resolve(process.env.LOAD_PROFILE_DIR)}`] : [];
   const uploads = await mkdtemp(path.join(os.tmpdir(), 'quorum-load-'));
   try {
     log(`preparing ${DB_NAME}: ${RATERS} raters, ${RATERS / RATERS_PER_RUN} ready runs, 6 queued decompositions`);
     const raters = await prepare(uploads);
     const env = { QUORUM_DB_NAME: DB_NAME, QUORUM_UPLOADS_DIR: uploads, NEXTAUTH_SECRET: 'load-test-secret-'.padEnd(48, 'x'), NEXTAUTH_URL: BASE };
-    start(['scripts/serve.ts'], { ...env, QUORUM_HOST: '127.0.0.1', PORT: String(PORT), QUORUM_SKIP_MIGRATE: '1', QUORUM_TRUST_PROXY: '1' }, 'server');
+    start(['scripts/serve.ts'], { ...env, QUORUM_HOST: '127.0.0.1', PORT: String(PORT), QUORUM_SKIP_MIGRATE: '1', QUORUM_TRUST_PROXY: '1' }, 'server', profileFlags);
     await waitForHealth();
     for (const [i, r] of raters.entries()) await signIn(r, i);
     log(`${raters.length} raters signed in; starting two workers`);

@@ -17,8 +17,12 @@ export async function recomputeDecision(trx: Knex.Transaction | Knex, { componen
     .where('c.id', componentId)
     .first('r.id as runId', 's.consensus_rule as rule', 's.raters_per_run as ratersPerRun', 's.noise_kinds as noiseKinds');
   if (!ctx) return;
+  // The row exists before it is locked: a locking read of a missing row takes a gap lock, and votes
+  // on neighbouring components would then deadlock on their inserts.
+  const [inserted] = await trx('decisions').insert({ component_id: componentId, run_id: ctx.runId, method: 'pending' }).onConflict('component_id').ignore();
+  const created = Number(inserted) > 0;
   const existing = await trx('decisions').where({ component_id: componentId }).forUpdate().first('id', 'method');
-  if (existing && (existing.method === 'reconciled' || existing.method === 'override')) return;
+  if (existing.method === 'reconciled' || existing.method === 'override') return;
 
   const [{ assigned }] = await trx('assignments').where({ run_id: ctx.runId }).count({ assigned: '*' });
   const expected = Number(assigned) || Number(ctx.ratersPerRun);
@@ -39,8 +43,8 @@ export async function recomputeDecision(trx: Knex.Transaction | Knex, { componen
     reason: null,
     decided_at: decision.method === 'pending' ? null : trx.fn.now(3),
   };
-  if (existing) await trx('decisions').where({ id: existing.id }).update({ ...row, version: trx.raw('version + 1') });
-  else await trx('decisions').insert({ component_id: componentId, run_id: ctx.runId, ...row });
+  // a decision created just now keeps its first version
+  await trx('decisions').where({ id: existing.id }).update(created ? row : { ...row, version: trx.raw('version + 1') });
 }
 
 /** Recomputes every component of a run (after assignments change). */

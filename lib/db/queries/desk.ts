@@ -69,7 +69,14 @@ export async function findAssignedRun(
       'd.mean_key as meanKey',
       'd.mask_key as maskKey',
     );
-  if (forUpdate) q.forUpdate();
+  if (forUpdate) {
+    // Lock this rater's assignment row alone (it serialises the rater's writes on the run), then read
+    // the run, study and decomposition under shared locks: raters of one study vote side by side,
+    // while a release (which locks the study row exclusively) waits for votes in flight and they for it.
+    const own = await trx('assignments').where({ run_id: runId, rater_id: user.id }).forUpdate().first('id');
+    if (!own) throw notAssigned(runId);
+    q.forShare();
+  }
   const row = await q;
   if (!row) throw notAssigned(runId);
   const dropped = droppedVolumesOf(row);

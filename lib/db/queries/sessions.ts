@@ -1,7 +1,7 @@
 import 'server-only';
 import type { Knex } from 'knex';
 import { db } from '@/lib/db/knex';
-import { findUserById, type UserRow } from './users';
+import { normalise as normaliseUser, publicColumns, type UserRow } from './users';
 
 /** How long an ended session id is remembered: the session lifetime (12 h) and an hour to spare. */
 const REMEMBER_ENDED_HOURS = 13;
@@ -15,16 +15,16 @@ export async function sessionVersionOf({ id }: { id: number }): Promise<number> 
 /**
  * The signed-in user of a session, or null when the session has ended: the account is missing or
  * deactivated, its session version moved on since the token was issued, or this session id was
- * signed out. One round trip.
+ * signed out. One round trip, which also reads the user.
  */
 export async function findSessionUser({ id, sid, sv }: { id: number; sid: string; sv: number }): Promise<UserRow | null> {
-  const row = await db('users as u')
-    .where('u.id', id)
-    .where('u.active', true)
-    .where('u.session_version', sv)
+  const row = await db('users')
+    .where('id', id)
+    .where('active', true)
+    .where('session_version', sv)
     .whereNotExists(db('ended_sessions').where({ sid }).select(db.raw('1')))
-    .first('u.id');
-  return row ? findUserById({ id }) : null;
+    .first(publicColumns);
+  return normaliseUser(row);
 }
 
 /** Ends one session (sign-out); forgets ids whose tokens have expired anyway. */

@@ -12,7 +12,8 @@ export type UserRow = {
   createdAt: Date;
 };
 
-const publicColumns = [
+/** The columns of a UserRow (never the password hash). */
+export const publicColumns = [
   'id',
   'email',
   'name',
@@ -22,7 +23,7 @@ const publicColumns = [
   'created_at as createdAt',
 ] as const;
 
-function normalise(row: Record<string, unknown> | undefined): UserRow | null {
+export function normalise(row: Record<string, unknown> | undefined): UserRow | null {
   if (!row) return null;
   return { ...(row as unknown as UserRow), active: Boolean(row.active) };
 }

@@ -114,7 +114,10 @@ export async function saveVote({
   return db.transaction(async (trx) => {
     // Locking the assignment serialises every vote write of this rater on this run.
     const run = await findAssignedRun({ user, runId, forUpdate: true }, trx);
-    const component = await trx('components').where({ id: componentId, decomposition_id: run.decompositionId }).first('id', 'idx');
+    // Locking the component serialises the votes on it: its decision is recomputed from all of them.
+    // Every read before this one is a locking read, so this transaction's snapshot (taken at its first
+    // plain read, below) already holds the votes committed by the raters who held the lock before.
+    const component = await trx('components').where({ id: componentId, decomposition_id: run.decompositionId }).forUpdate().first('id', 'idx');
     if (!component) {
       throw new AppError('not_found', `Component ${componentId} is not a component of run ${runId}. Vote on the components shown on this run's desk.`);
     }
@@ -140,7 +143,9 @@ export async function saveVote({
       throw new AppError('validation', `The vote is not valid (${field}): ${msg}.`, fields);
     }
 
-    const existing = (await trx('votes as v').where({ 'v.component_id': componentId, 'v.rater_id': user.id }).forUpdate().first(voteColumns)) as
+    // no locking read: the component and assignment locks above already guard this row, and a locking
+    // read of a missing row would take a gap lock that deadlocks votes on neighbouring components
+    const existing = (await trx('votes as v').where({ 'v.component_id': componentId, 'v.rater_id': user.id }).first(voteColumns)) as
       | VoteRow
       | undefined;
     const before: VoteFields | null = existing
