@@ -100,6 +100,12 @@ function databaseUnavailable(err: unknown): boolean {
   return false;
 }
 
+/** True when the client went away while its request body was being read (Node's "aborted", ECONNRESET). */
+function clientAborted(err: unknown): boolean {
+  const e = err as { code?: string; message?: string; fatal?: boolean } | undefined;
+  return e?.code === 'ECONNRESET' && e.fatal !== true && /^aborted$/i.test(e.message ?? '');
+}
+
 /** Turns any thrown value into a safe response: AppErrors as they are, anything else logged and generic. */
 export function errorResponse(err: unknown, context: string): Response {
   if (err instanceof AppError) return err.toResponse();
@@ -107,6 +113,11 @@ export function errorResponse(err: unknown, context: string): Response {
   if (databaseUnavailable(err)) {
     console.error(`[${context}] database unavailable:`, err);
     return new AppError('unavailable', 'The database is not reachable right now. Try again in a moment.').toResponse();
+  }
+  if (clientAborted(err)) {
+    // nobody reads this answer; one line in the log, not an unexpected error with its stack
+    console.warn(`[${context}] the client closed the connection before its request arrived in full`);
+    return new AppError('bad_request', 'The request was cut off before it arrived in full. Send it again.').toResponse();
   }
   const fault = storageFaultKind(err);
   if (fault) {
