@@ -6,23 +6,16 @@ import 'server-only';
  * hash, revocation, expiry, that the owner is active and still has the read permissions, and
  * records last_used_at.
  */
-import { createHash, randomBytes } from 'node:crypto';
+import { createHash } from 'node:crypto';
 import { can } from './permissions';
 import type { Role } from './roles';
-import { findTokenByHash, insertAccessToken, touchAccessToken } from '@/lib/db/queries/access-tokens';
+import { findTokenByHash, touchAccessToken } from '@/lib/db/queries/access-tokens';
 import { AppError } from '@/lib/errors';
 
 export const TOKEN_SCOPE = 'releases:read';
-const PREFIX = 'qrm_';
+export const TOKEN_PREFIX = 'qrm_';
 
 export const hashToken = (token: string) => createHash('sha256').update(token, 'utf8').digest('hex');
-
-export async function createAccessToken({ userId, name, expiresInDays }: { userId: number; name: string; expiresInDays?: number | null }) {
-  const token = PREFIX + randomBytes(32).toString('base64url');
-  const expiresAt = expiresInDays ? new Date(Date.now() + expiresInDays * 86400_000) : null;
-  const id = await insertAccessToken({ userId, name, tokenHash: hashToken(token), tokenPrefix: token.slice(0, 10), scope: TOKEN_SCOPE, expiresAt });
-  return { id, token, prefix: token.slice(0, 10), scope: TOKEN_SCOPE, expiresAt };
-}
 
 export type TokenUser = { id: number; role: Role; name: string; tokenId: number };
 

@@ -1,4 +1,5 @@
 import 'server-only';
+import type { Knex } from 'knex';
 import { db } from '@/lib/db/knex';
 
 export type AccessTokenRow = {
@@ -19,14 +20,17 @@ export async function listAccessTokens({ userId }: { userId: number }): Promise<
   return db('personal_access_tokens').where({ user_id: userId }).orderBy('id', 'desc').select(COLUMNS);
 }
 
-export async function insertAccessToken(t: { userId: number; name: string; tokenHash: string; tokenPrefix: string; scope: string; expiresAt: Date | null }): Promise<number> {
-  const [id] = await db('personal_access_tokens').insert({ user_id: t.userId, name: t.name, token_hash: t.tokenHash, token_prefix: t.tokenPrefix, scope: t.scope, expires_at: t.expiresAt });
+export async function insertAccessToken(
+  t: { userId: number; name: string; tokenHash: string; tokenPrefix: string; scope: string; expiresAt: Date | null },
+  trx: Knex | Knex.Transaction = db,
+): Promise<number> {
+  const [id] = await trx('personal_access_tokens').insert({ user_id: t.userId, name: t.name, token_hash: t.tokenHash, token_prefix: t.tokenPrefix, scope: t.scope, expires_at: t.expiresAt });
   return Number(id);
 }
 
 /** Revokes one of the user's own tokens; false when there is no such live token. */
-export async function revokeAccessToken({ userId, tokenId }: { userId: number; tokenId: number }): Promise<boolean> {
-  const n = await db('personal_access_tokens').where({ id: tokenId, user_id: userId }).whereNull('revoked_at').update({ revoked_at: db.raw('NOW(3)') });
+export async function revokeAccessToken({ userId, tokenId }: { userId: number; tokenId: number }, trx: Knex | Knex.Transaction = db): Promise<boolean> {
+  const n = await trx('personal_access_tokens').where({ id: tokenId, user_id: userId }).whereNull('revoked_at').update({ revoked_at: trx.raw('NOW(3)') });
   return n > 0;
 }
 

@@ -1,8 +1,7 @@
 import { z } from 'zod';
 import { handler } from '@/lib/api/handler';
-import { createAccessToken } from '@/lib/auth/access-tokens';
 import { listAccessTokens } from '@/lib/db/queries/access-tokens';
-import { recordAudit } from '@/lib/db/queries/audit';
+import { issueToken } from '@/lib/tokens/issue-token';
 import { wellFormed } from '@/lib/text';
 
 const body = z.object({
@@ -15,7 +14,6 @@ export const GET = handler({ permission: 'tokens.manage', what: 'The token list'
 
 // POST /api/account/tokens – creates a read-only token (releases:read); the secret is in this answer only
 export const POST = handler({ permission: 'tokens.manage', body, what: 'The token' }, async ({ user, body }) => {
-  const created = await createAccessToken({ userId: user.id, name: body.name, expiresInDays: body.expiresInDays ?? null });
-  await recordAudit({ actorId: user.id, action: 'token.create', targetType: 'personal_access_token', targetId: created.id, detail: { name: body.name, scope: created.scope } });
+  const created = await issueToken({ userId: user.id, name: body.name, expiresInDays: body.expiresInDays ?? null });
   return Response.json(created, { status: 201 });
 });
