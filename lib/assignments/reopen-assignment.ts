@@ -6,6 +6,10 @@ import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { isRunReleased } from '@/lib/db/queries/desk';
 import { findRunStudy, inAssignmentsTransaction, lockAssignment, markAssignmentReopened } from '@/lib/db/queries/assignments';
 import type { UserRow } from '@/lib/db/queries/users';
+import { queueMail } from '@/lib/jobs/queue-mail';
+import { facilityName, publicBaseUrl } from '@/lib/mail/config';
+import { runReopenedMail } from '@/lib/mail/templates/run-reopened';
+import { notificationsEnabled } from '@/lib/notifications/config';
 
 /**
  * A lead reopens a rater's submitted run so that the rater may change their votes again (issue 13
@@ -13,9 +17,10 @@ import type { UserRow } from '@/lib/db/queries/users';
  * never after release. The votes as first submitted stay in submitted_votes, which agreement
  * reads; every later change is audited as a vote change after reopening. The reopen itself is
  * audited with the lead's reason. The rater sees the run among their open work again and submits
- * it once more when done.
+ * it once more when done; they are told by e-mail (queued in the same transaction, sent by the
+ * worker's send-mail job) unless notifications are off.
  */
-export async function reopenAssignment({ user, runId, raterId, reason, ip = null }: { user: Pick<UserRow, 'id' | 'role'>; runId: number; raterId: number; reason: string; ip?: string | null }) {
+export async function reopenAssignment({ user, runId, raterId, reason, ip = null }: { user: Pick<UserRow, 'id' | 'role' | 'name'>; runId: number; raterId: number; reason: string; ip?: string | null }) {
   const run = await findRunStudy({ runId });
   const access = run ? await findStudyAccess({ user, studyId: run.studyId }) : null;
   if (!run || !access) throw notFound('The run');
@@ -43,6 +48,10 @@ export async function reopenAssignment({ user, runId, raterId, reason, ip = null
       },
       trx,
     );
+    if (a.raterActive && notificationsEnabled()) {
+      const content = runReopenedMail({ facility: facilityName(), name: a.raterName, leadName: user.name, studyName: access.name, runName: run.name, reason, url: `${publicBaseUrl()}/runs/${runId}/rate` });
+      await queueMail(trx, { to: a.raterEmail, template: 'run-reopened', content, secrets: [] });
+    }
     return { runId, raterId, raterName: a.raterName, reopenedAt: at.toISOString(), reopenCount: a.reopenCount + 1 };
   });
 }

@@ -301,8 +301,8 @@ export async function lockAssignment(trx: Trx, { runId, raterId }: { runId: numb
     .join('users as u', 'u.id', 'a.rater_id')
     .where({ 'a.run_id': runId, 'a.rater_id': raterId })
     .forUpdate()
-    .first('a.id', 'u.name as raterName', 'a.submitted_at as submittedAt', 'a.first_submitted_at as firstSubmittedAt', 'a.reopen_count as reopenCount');
-  return a ? { id: Number(a.id), raterName: String(a.raterName), submittedAt: (a.submittedAt as Date | null) ?? null, firstSubmittedAt: (a.firstSubmittedAt as Date | null) ?? null, reopenCount: Number(a.reopenCount) } : null;
+    .first('a.id', 'u.name as raterName', 'u.email as raterEmail', 'u.active as raterActive', 'a.submitted_at as submittedAt', 'a.first_submitted_at as firstSubmittedAt', 'a.reopen_count as reopenCount');
+  return a ? { id: Number(a.id), raterName: String(a.raterName), raterEmail: String(a.raterEmail), raterActive: Boolean(a.raterActive), submittedAt: (a.submittedAt as Date | null) ?? null, firstSubmittedAt: (a.firstSubmittedAt as Date | null) ?? null, reopenCount: Number(a.reopenCount) } : null;
 }
 
 /** Reopens a submitted assignment: the rater may change their votes again until they resubmit. */
