@@ -9,10 +9,10 @@
 //   of lib/jobs/executors/settings.ts.
 // SIGTERM / SIGINT: the running job is released back to the queue (its attempt is not counted) and
 // the worker exits; a second signal exits at once.
-import os from 'node:os';
 import { checkDatabase, closeDb, db } from '@/lib/db/knex';
 import { jobKinds } from '@/lib/jobs/kinds';
 import { defaultWorkerId, startWorker } from '@/lib/jobs/worker';
+import { lowerProcessPriority } from '@/lib/jobs/cpu-priority';
 import { executorName, slurmSettings, workerConcurrency } from '@/lib/jobs/executors/settings';
 import { cancelOrphanedClusterJobs } from '@/lib/jobs/executors/cancel-orphans';
 
@@ -36,10 +36,10 @@ async function main(): Promise<number> {
   }
   const once = args.includes('--once');
   // Decompositions are batch work: run them at a lower CPU priority so that, on a machine shared with
-  // the web app, votes and pages stay quick (threads the engine starts later inherit it on Linux).
+  // the web app, votes and pages stay quick (every thread; threads the engine starts later inherit it).
   const nice = intEnv('QUORUM_WORKER_NICE', 10, 0);
   try {
-    if (nice > 0) os.setPriority(Math.min(nice, 19));
+    if (nice > 0) lowerProcessPriority(nice);
   } catch (err) {
     process.stderr.write(`worker: could not lower its CPU priority (${(err as Error).message}); running at normal priority\n`);
   }
