@@ -87,8 +87,14 @@ async function prepare(uploads: string) {
   }
 }
 
-function start(args: string[], env: Record<string, string>, name: string, flags: string[] = []): ChildProcess {
-  const child = spawn(process.execPath, [...flags, '--conditions=react-server', '--import', 'tsx', ...args], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+/** Starts a child; `ownSession` puts it in its own session (setsid), as a separately started service would be. */
+function start(args: string[], env: Record<string, string>, name: string, { flags = [] as string[], ownSession = false } = {}): ChildProcess {
+  const child = spawn(process.execPath, [...flags, '--conditions=react-server', '--import', 'tsx', ...args], {
+    cwd: root,
+    env: { ...process.env, ...env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+    detached: ownSession,
+  });
   child.stderr!.on('data', (b: Buffer) => process.stderr.write(`[${name}] ${b}`));
   child.stdout!.resume();
   children.push(child);
@@ -223,11 +229,13 @@ async function main() {
     log(`preparing ${DB_NAME}: ${RATERS} raters, ${RATERS / RATERS_PER_RUN} ready runs, 6 queued decompositions`);
     const raters = await prepare(uploads);
     const env = { QUORUM_DB_NAME: DB_NAME, QUORUM_UPLOADS_DIR: uploads, NEXTAUTH_SECRET: 'load-test-secret-'.padEnd(48, 'x'), NEXTAUTH_URL: BASE };
-    start(['scripts/serve.ts'], { ...env, QUORUM_HOST: '127.0.0.1', PORT: String(PORT), QUORUM_SKIP_MIGRATE: '1', QUORUM_TRUST_PROXY: '1' }, 'server', profileFlags);
+    start(['scripts/serve.ts'], { ...env, QUORUM_HOST: '127.0.0.1', PORT: String(PORT), QUORUM_SKIP_MIGRATE: '1', QUORUM_TRUST_PROXY: '1' }, 'server', { flags: profileFlags });
     await waitForHealth();
     for (const [i, r] of raters.entries()) await signIn(r, i);
     log(`${raters.length} raters signed in; starting two workers`);
-    for (const w of ['load-w1', 'load-w2']) start(['scripts/worker.ts'], { ...env, QUORUM_WORKER_ID: w, QUORUM_DECOMPOSE_THREADS: '1' }, w);
+    // the workers run as a facility runs them, as their own service (own session): they lower their
+    // priority, and their session group's (lib/jobs/cpu-priority.ts)
+    for (const w of ['load-w1', 'load-w2']) start(['scripts/worker.ts'], { ...env, QUORUM_WORKER_ID: w, QUORUM_DECOMPOSE_THREADS: '1' }, w, { ownSession: true });
 
     // warm-up (not measured): every rater opens their desk's votes and votes once, as on arrival
     const warm: Ack[] = [];

@@ -39,7 +39,10 @@ async function main(): Promise<number> {
   // the web app, votes and pages stay quick (every thread; threads the engine starts later inherit it).
   const nice = intEnv('QUORUM_WORKER_NICE', 10, 0);
   try {
-    if (nice > 0) lowerProcessPriority(nice);
+    if (nice > 0) {
+      const lowered = lowerProcessPriority(nice);
+      process.stdout.write(`worker: CPU priority lowered to nice ${nice} (${lowered.threads} threads${lowered.sessionGroup ? ', and its session group' : ''})\n`);
+    }
   } catch (err) {
     process.stderr.write(`worker: could not lower its CPU priority (${(err as Error).message}); running at normal priority\n`);
   }
