@@ -8,10 +8,10 @@ import { db, parseJson, toJson } from '@/lib/db/knex';
 import { AppError, notFound } from '@/lib/errors';
 import { recordAudit } from './audit';
 import { isRunReleased } from './desk';
-import { calibrationGate, calibrationSettings, calibrationThreshold, scoreRater, setCalibrationThreshold, studyLabels } from './calibration-gate';
+import { calibrationGate, calibrationSettings, calibrationThreshold, scoreRater, studyLabels } from './calibration-gate';
 import { calibrationRounds, type CalibrationRoundEntry } from './calibration-rounds';
 
-export { calibrationGate, calibrationThreshold, scoreRater, setCalibrationThreshold };
+export { calibrationGate, calibrationThreshold, scoreRater };
 import { findStudyAccess } from './study-access';
 import { leadsStudy } from '@/lib/auth/permissions';
 import type { UserRow } from './users';

@@ -17,7 +17,7 @@ import { resolveDbSettings } from '@/lib/db/config';
 import { createReadyRun } from './ready-run';
 
 const REASONS = { noise: 'Rim at the brain edge that follows the motion trace', signal: 'Grey-matter network with a slow time course' } as const;
-export const REFERENCE = ['noise', 'signal', 'signal', 'noise', 'signal', 'signal'] as const;
+const REFERENCE = ['noise', 'signal', 'signal', 'noise', 'signal', 'signal'] as const;
 
 async function main() {
   const which = process.argv[2];
