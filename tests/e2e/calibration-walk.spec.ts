@@ -140,7 +140,8 @@ test('a lead trains suggestions, turns them on and sorts Reconcile by the modelâ
   const enabled = panel.getByTestId('suggestions-enabled');
   await expect(enabled).toBeEnabled();
   await expect(enabled).not.toBeChecked();
-  await enabled.check();
+  // a controlled checkbox: it shows the server's state once the change is saved and read back
+  await enabled.click();
   await expect(enabled).toBeChecked();
   await expect.poll(() => sql<{ on: number }>(`SELECT suggestions_enabled AS \`on\` FROM studies WHERE id = ${s.studyId}`)[0]!.on).toBe(1);
   // the score job (queued by training) stores a suggestion for each component of the live run
