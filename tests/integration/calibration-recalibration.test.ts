@@ -141,6 +141,8 @@ describe('re-calibration every N weeks', () => {
     expect(await db('votes').where({ run_id: cal.runId, rater_id: due }).count({ n: '*' }).first()).toEqual({ n: 0 });
     const rounds = await db('calibration_rounds').where({ study_id: s.studyId, rater_id: due }).select('round', 'set_name', 'components', 'ac1', 'sensitivity');
     expect(rounds).toEqual([{ round: 1, set_name: 'Autumn reference set', components: 6, ac1: 1, sensitivity: 1 }]);
+    // while the new round is open, the finished one still stands: no loss of live work
+    expect(await calibrationGate({ studyId: s.studyId, raterId: due })).toEqual({ gated: true, passes: true, reason: null });
     const queue = await listQueueForRater({ raterId: due });
     expect(queue.filter((q) => q.runId === cal.runId).map((q) => ({ cal: q.isCalibration, submitted: q.submittedAt }))).toEqual([{ cal: true, submitted: null }]);
     const audit = await db('audit_log').where({ study_id: s.studyId, action: 'calibration.recalibration_assigned' }).select('target_id');

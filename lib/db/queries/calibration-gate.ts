@@ -5,7 +5,7 @@ import type { Knex } from 'knex';
 import { db, parseJson } from '@/lib/db/knex';
 import { gateVerdict, isGated, type CalibrationThreshold, type GateVerdict } from '@/lib/agreement/threshold-gate';
 import { sensitivityByKind } from '@/lib/agreement/kind-sensitivity';
-import { scoreAgainstReference } from '@/lib/agreement/reference-score';
+import { scoreAgainstReference, type CalibrationScore } from '@/lib/agreement/reference-score';
 
 export async function studyLabels(trx: Knex | Knex.Transaction, studyId: number) {
   const s = await trx('studies').where({ id: studyId }).first('label_set as labelSet', 'noise_kinds as noiseKinds');
@@ -68,6 +68,13 @@ export async function calibrationGate({ studyId, raterId }: { studyId: number; r
   const t = await calibrationThreshold({ studyId }, trx);
   if (!isGated(t)) return gateVerdict(null, t);
   const { score } = await scoreRater({ studyId, userId: raterId }, trx);
+  if (score.n === 0) {
+    // a re-calibration round in progress (votes cleared, nothing submitted yet): the last finished
+    // round still stands, so a certified rater keeps their live work while re-calibrating
+    const last = await trx('calibration_rounds').where({ study_id: studyId, rater_id: raterId }).orderBy('round', 'desc').first('score');
+    const previous = last ? parseJson<CalibrationScore>(last.score, null) : null;
+    if (previous) return gateVerdict(previous, t);
+  }
   return gateVerdict(score, t);
 }
 

@@ -2,7 +2,7 @@ import 'server-only';
 import type { Knex } from 'knex';
 import { bidsName, distinctRunNames } from '@/lib/bids';
 import { scoreAgainstReference, type CalibrationScore } from '@/lib/agreement/reference-score';
-import { gateVerdict, type CalibrationThreshold, type GateVerdict } from '@/lib/agreement/threshold-gate';
+import { type CalibrationThreshold, type GateVerdict } from '@/lib/agreement/threshold-gate';
 import type { KindSensitivity } from '@/lib/agreement/kind-sensitivity';
 import { db, parseJson, toJson } from '@/lib/db/knex';
 import { AppError, notFound } from '@/lib/errors';
@@ -165,7 +165,7 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
       submittedRuns,
       score,
       byKind,
-      gate: gateVerdict(submittedRuns ? score : null, threshold),
+      gate: await calibrationGate({ studyId, raterId: Number(m.id) }),
       history: await calibrationHistory({ studyId, userId: Number(m.id) }),
       rounds: await calibrationRounds({ studyId, userId: Number(m.id) }),
       certification: m.certId
@@ -305,7 +305,7 @@ export async function myCalibration({ user, studyId }: { user: Caller; studyId: 
   if (!access) throw notFound('The study');
   const { score, byKind, submittedRuns } = await scoreRater({ studyId, userId: user.id });
   const cert = await db('rater_certifications').where({ study_id: studyId, user_id: user.id }).first('passed', 'certified_at as certifiedAt');
-  const gate = gateVerdict(submittedRuns ? score : null, await calibrationThreshold({ studyId }));
+  const gate = await calibrationGate({ studyId, raterId: user.id });
   return { submittedRuns, score, byKind, gate, certification: cert ? { passed: Boolean(cert.passed), certifiedAt: cert.certifiedAt ?? null } : null };
 }
 
