@@ -95,6 +95,21 @@ test('a new rater is calibrated on the named set, reads their result, and stays 
   expect((await res.json()).error.message).toContain(why);
   await lead.dispose();
   expect(sql(`SELECT COUNT(*) AS n FROM assignments WHERE run_id = ${s.liveRunId} AND rater_id = ${s.newRaterId}`)).toEqual([{ n: 0 }]);
+
+  // the lead's calibration page: the rater's first round in the history table and plot, with the threshold lines
+  await page.context().clearCookies();
+  await signIn.open();
+  await signIn.signIn(DEMO.lead);
+  await expect(page.getByTestId('home-heading')).toBeVisible();
+  await page.goto(`/studies/${s.studyId}/calibration`);
+  await expect(page.getByTestId('calibration-set-name')).toHaveValue('Autumn reference set');
+  const rounds = page.getByTestId(`calibration-rounds-${s.newRaterId}`);
+  await expect(rounds.getByTestId('calibration-round')).toHaveCount(1);
+  await expect(rounds.getByTestId('calibration-round')).toContainText('1 (current)');
+  await expect(rounds.getByTestId('calibration-round')).toContainText('0.50');
+  await expect(rounds.getByTestId('rounds-threshold-ac1')).toHaveCount(1);
+  await expect(rounds.getByTestId('rounds-threshold-sensitivity')).toHaveCount(1);
+  await expect(page.getByTestId(`calibration-rater-${s.newRaterId}`).getByTestId('calibration-gate')).toContainText(why);
 });
 
 async function rateAndSubmit(ctx: APIRequestContext, runId: number, componentIds: number[], labelFor: (i: number) => string) {
