@@ -158,7 +158,7 @@ test('a lead trains suggestions, turns them on and sorts Reconcile by the modelâ
   // a controlled checkbox: it shows the server's state once the change is saved and read back
   await enabled.click();
   await expect(enabled).toBeChecked();
-  await expect.poll(() => sql<{ on: number }>(`SELECT suggestions_enabled AS \`on\` FROM studies WHERE id = ${s.studyId}`)[0]!.on).toBe(1);
+  await expect.poll(() => Boolean(sql<{ on: unknown }>(`SELECT suggestions_enabled AS \`on\` FROM studies WHERE id = ${s.studyId}`)[0]!.on)).toBe(true);
   // the score job (queued by training) stores a suggestion for each component of the live run
   await expect
     .poll(() => Number(sql<{ n: number }>(`SELECT COUNT(*) AS n FROM suggestions g JOIN studies st ON st.suggestion_model_id = g.model_id WHERE st.id = ${s.studyId} AND g.component_id IN (${s.componentIds.join(',')})`)[0]!.n), { timeout: 60_000 })
