@@ -33,6 +33,7 @@ const { claimJob } = await import('@/lib/jobs');
 const { jobKinds } = await import('@/lib/jobs/kinds');
 const { runClaimedJob } = await import('@/lib/jobs/runner');
 const thresholdRoute = await import('@/app/api/studies/[id]/calibration/threshold/route');
+const certRoute = await import('@/app/api/studies/[id]/calibration/certifications/route');
 
 const REFERENCE = ['noise', 'noise', 'noise', 'signal', 'signal', 'signal'];
 const WEEK = 7 * 24 * 3600 * 1000;
@@ -192,5 +193,13 @@ describe('re-calibration every N weeks', () => {
     const next = await db('jobs').where({ kind: 'recalibrate', status: 'queued' }).select('id', 'run_after');
     expect(next).toHaveLength(1);
     expect(new Date(next[0].run_after).getTime()).toBeGreaterThan(Date.now());
+  });
+
+  it('a certification in a study with an interval queues the daily check again when it was cancelled', async () => {
+    await db('jobs').where({ kind: 'recalibrate', status: 'queued' }).update({ status: 'cancelled' });
+    actAs(s.leadId);
+    const res = await callRoute(certRoute.POST, { method: 'POST', url: '/', params: { id: String(s.studyId) }, body: { userId: s.raterIds[0], passed: true } });
+    expect(res.status, JSON.stringify(res.json)).toBe(200);
+    expect(await db('jobs').where({ kind: 'recalibrate', status: 'queued' }).count({ n: '*' }).first()).toEqual({ n: 1 });
   });
 });
