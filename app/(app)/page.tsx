@@ -1,6 +1,7 @@
 import type { Metadata } from 'next';
 import { requirePageUser } from '@/lib/auth/session';
 import { listQueueForRater } from '@/lib/db/queries/work-queue';
+import { raterGateNotices } from '@/lib/db/queries/calibration-gate';
 import { listStudiesForUser } from '@/lib/db/queries/studies';
 import { listUsers } from '@/lib/db/queries/users';
 import { RaterQueue } from '@/components/home/rater-queue';
@@ -23,7 +24,7 @@ export default async function HomePage() {
       <h1 className="text-xl font-semibold" data-testid="home-heading">
         {HEADINGS[user.role]}
       </h1>
-      {user.role === 'rater' ? <RaterQueue items={await listQueueForRater({ raterId: user.id })} /> : null}
+      {user.role === 'rater' ? <RaterQueue items={await listQueueForRater({ raterId: user.id })} held={await raterGateNotices({ raterId: user.id })} /> : null}
       {user.role === 'lead' ? (
         <StudyList title="Studies you lead" studies={await listStudiesForUser({ user })} empty="You lead no study yet." />
       ) : null}

@@ -6,6 +6,7 @@ import { Notice } from '@/components/ui/notice';
 import { Panel } from '@/components/ui/panel';
 import { formatStat } from '@/components/agreement/format';
 import { ThresholdForm } from './threshold-form';
+import { RoundHistory } from './round-history';
 import { useCalibration, useCalibrationAction, type CalibrationRaterView, type CalibrationRunView, type CalibrationView } from './use-calibration';
 
 const input = 'rounded border border-line-strong bg-ground-sunken px-2 py-1 text-xs text-ink';
@@ -120,7 +121,7 @@ export function CalibrationClient({ studyId, initial }: { studyId: number; initi
 
       <Panel title="Raters">
         <div className="mb-3">
-          <ThresholdForm studyId={studyId} threshold={data.threshold ?? { minAc1: null, minSensitivity: null }} />
+          <ThresholdForm studyId={studyId} threshold={data.threshold ?? { minAc1: null, minSensitivity: null }} recalibrationWeeks={data.recalibrationWeeks ?? null} />
         </div>
         {data.raters.length ? (
           <table className="w-full text-sm">
@@ -161,6 +162,7 @@ export function CalibrationClient({ studyId, initial }: { studyId: number; initi
                           over time (AC1 / noise sens.): {r.history.map((h) => `${h.submittedAt.slice(0, 10)} ${formatStat(h.score.gwetAC1, 2)} / ${formatStat(h.score.noise.sensitivity, 2)}${h.stillCalibration ? '' : ' (unmarked)'}`).join(' → ')}
                         </span>
                       ) : null}
+                      {r.rounds?.length ? <RoundHistory rounds={r.rounds} raterId={r.id} minAc1={data.threshold?.minAc1 ?? null} minSensitivity={data.threshold?.minSensitivity ?? null} /> : null}
                       {r.byKind?.length ? (
                         <span className="block text-ink-faint" data-testid="calibration-by-kind">
                           by kind: {r.byKind.map((k) => `${k.kind} ${k.detected}/${k.n}`).join(', ')}

@@ -5,6 +5,7 @@ import type { StatResult } from '@/lib/agreement';
 import { deleteJson, getJson, postJson } from '@/lib/api/client';
 import type { CalibrationThreshold, GateVerdict } from '@/lib/agreement/threshold-gate';
 import type { KindSensitivity } from '@/lib/agreement/kind-sensitivity';
+import type { CalibrationRoundEntry } from '@/lib/db/queries/calibration-rounds';
 
 /** What GET /api/studies/:id/calibration returns (dates as ISO strings, as JSON carries them). */
 export type CalibrationScoreView = {
@@ -25,6 +26,7 @@ export type CalibrationRaterView = {
   byKind?: KindSensitivity[];
   gate?: GateVerdict;
   history?: Array<{ runId: number; runName: string; submittedAt: string; stillCalibration: boolean; score: CalibrationScoreView }>;
+  rounds?: CalibrationRoundEntry[];
   certification: { passed: boolean; certifiedAt: string | null } | null;
 };
 export type CalibrationView = {
@@ -33,6 +35,7 @@ export type CalibrationView = {
   candidates: Array<{ runId: number; runName: string }>;
   raters: CalibrationRaterView[];
   threshold?: CalibrationThreshold;
+  recalibrationWeeks?: number | null;
 };
 
 export const calibrationKey = (studyId: number) => ['study-calibration', studyId] as const;

@@ -1,5 +1,7 @@
 import Link from 'next/link';
 import type { QueueItem } from '@/lib/db/queries/work-queue';
+import type { RaterGateNotice } from '@/lib/db/queries/calibration-gate';
+import { Notice } from '@/components/ui/notice';
 import { Panel } from '@/components/ui/panel';
 import { bidsName } from '@/lib/bids';
 
@@ -9,7 +11,10 @@ function RunRow({ item }: { item: QueueItem }) {
     <li className="flex items-center gap-4 py-2" data-testid="queue-item">
       <div className="min-w-0 flex-1">
         <p className="truncate font-mono text-sm">{bidsName(item)}</p>
-        <p className="text-xs text-ink-muted">{item.studyName}</p>
+        <p className="text-xs text-ink-muted">
+          {item.studyName}
+          {item.isCalibration ? <span className="ml-2 rounded border border-line-strong px-1 text-[11px] text-ink" data-testid="queue-calibration">calibration</span> : null}
+        </p>
       </div>
       <div className="w-40">
         <div className="h-1.5 rounded bg-ground-sunken" aria-hidden>
@@ -27,11 +32,17 @@ function RunRow({ item }: { item: QueueItem }) {
   );
 }
 
-export function RaterQueue({ items }: { items: QueueItem[] }) {
+export function RaterQueue({ items, held = [] }: { items: QueueItem[]; held?: RaterGateNotice[] }) {
   const open = items.filter((i) => !i.submittedAt);
   const done = items.filter((i) => i.submittedAt);
   return (
     <div className="flex flex-col gap-6">
+      {held.map((h) => (
+        <Notice key={h.studyId} testId="calibration-gate-notice">
+          {h.studyName}: no live runs for you yet: {h.reason.replace(/^has not /, 'you have not ')} (the study&apos;s calibration threshold). Rate the calibration runs in your queue; your
+          result after each one shows where you differ from the reference.
+        </Notice>
+      ))}
       <Panel title="My queue">
         {open.length === 0 ? (
           <p className="text-sm text-ink-muted" data-testid="queue-empty">

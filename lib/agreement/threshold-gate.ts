@@ -9,7 +9,8 @@ import type { StatResult } from './result';
 /** The part of a calibration score the gate reads (lib/calibration/score.ts CalibrationScore fits). */
 type GateScore = { n: number; gwetAC1: StatResult; noise: { sensitivity: StatResult } };
 
-export type CalibrationThreshold = { minAc1: number | null; minSensitivity: number | null };
+/** setName: the lead's name for the study's calibration set (reasons name it); optional, null = unnamed. */
+export type CalibrationThreshold = { minAc1: number | null; minSensitivity: number | null; setName?: string | null };
 
 export type GateVerdict = { gated: boolean; passes: boolean; reason: string | null };
 
@@ -19,7 +20,10 @@ export function isGated(t: CalibrationThreshold): boolean {
 
 export function gateVerdict(score: GateScore | null, t: CalibrationThreshold): GateVerdict {
   if (!isGated(t)) return { gated: false, passes: true, reason: null };
-  if (!score || score.n === 0) return { gated: true, passes: false, reason: 'has not submitted a calibration run with reference labels yet' };
+  const set = t.setName ? `the calibration set “${t.setName}”` : null;
+  if (!score || score.n === 0) {
+    return { gated: true, passes: false, reason: set ? `has not submitted a run of ${set} yet` : 'has not submitted a calibration run with reference labels yet' };
+  }
   const misses: string[] = [];
   if (t.minAc1 !== null) {
     const v = score.gwetAC1.value;
@@ -31,5 +35,6 @@ export function gateVerdict(score: GateScore | null, t: CalibrationThreshold): G
     if (v === null) misses.push(`noise sensitivity is undefined (${score.noise.sensitivity.reason ?? 'no reference noise'}), threshold ${t.minSensitivity.toFixed(2)}`);
     else if (v < t.minSensitivity) misses.push(`noise sensitivity ${v.toFixed(2)} is below ${t.minSensitivity.toFixed(2)}`);
   }
-  return misses.length ? { gated: true, passes: false, reason: misses.join('; ') } : { gated: true, passes: true, reason: null };
+  if (!misses.length) return { gated: true, passes: true, reason: null };
+  return { gated: true, passes: false, reason: set ? `${misses.join('; ')} on ${set}` : misses.join('; ') };
 }

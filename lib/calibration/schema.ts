@@ -34,5 +34,22 @@ export const certifySchema = z.object({ userId: id('a rater'), passed: z.boolean
 
 const share = (what: string) => z.number({ message: `${what}: a number from 0 to 1, or null for no threshold.` }).min(0, { message: `${what} is at least 0.` }).max(1, { message: `${what} is at most 1.` }).nullable();
 
-/** PUT /api/studies/:id/calibration/threshold — what a rater must reach on the calibration set before live runs. */
-export const calibrationThresholdSchema = z.object({ minAc1: share('Minimum AC1'), minSensitivity: share('Minimum noise sensitivity') }).strict();
+/**
+ * PUT /api/studies/:id/calibration/threshold — what a rater must reach on the calibration set before
+ * live runs; optionally the set's name (empty: unnamed) and re-calibration every N weeks (null: none).
+ * Left out, the name and the interval stay as they are.
+ */
+export const calibrationThresholdSchema = z
+  .object({
+    minAc1: share('Minimum AC1'),
+    minSensitivity: share('Minimum noise sensitivity'),
+    setName: z.string({ message: 'The calibration set’s name is text.' }).trim().max(80, { message: 'Name the calibration set in at most 80 characters.' }).nullable().optional().transform((v) => (v === undefined ? undefined : v || null)),
+    recalibrationWeeks: z
+      .number({ message: 'Re-calibration: a whole number of weeks from 1 to 104, or null for none.' })
+      .int({ message: 'Re-calibration: a whole number of weeks from 1 to 104, or null for none.' })
+      .min(1, { message: 'Re-calibration: at least every week.' })
+      .max(104, { message: 'Re-calibration: at most every 104 weeks.' })
+      .nullable()
+      .optional(),
+  })
+  .strict();

@@ -5,6 +5,7 @@
 import { z } from 'zod';
 import { denoisePayloadSchema } from '@/lib/denoise/payload';
 import { scoreSuggestionsPayloadSchema, trainSuggestionsPayloadSchema } from '@/lib/suggestions/payload';
+import { recalibratePayloadSchema } from '@/lib/calibration/payload';
 import {
   notifyAssignmentsPayloadSchema,
   notifyOverduePayloadSchema,
@@ -52,6 +53,7 @@ export const jobPayloadSchemas = {
   'send-mail': sendMailPayloadSchema,
   'train-suggestions': trainSuggestionsPayloadSchema,
   'score-suggestions': scoreSuggestionsPayloadSchema,
+  recalibrate: recalibratePayloadSchema,
 } as const;
 
 export type JobKindName = keyof typeof jobPayloadSchemas;

@@ -54,7 +54,7 @@ describe('calibration threshold', () => {
     const bad = await callRoute(thresholdRoute.PUT, { method: 'PUT', url: '/', params: { id: String(s.studyId) }, body: { minAc1: 1.5, minSensitivity: null } });
     expect(bad.status).toBe(422);
     const ok = await callRoute(thresholdRoute.PUT, { method: 'PUT', url: '/', params: { id: String(s.studyId) }, body: { minAc1: 0.8, minSensitivity: 0.85 } });
-    expect(ok.json).toEqual({ minAc1: 0.8, minSensitivity: 0.85 });
+    expect(ok.json).toEqual({ minAc1: 0.8, minSensitivity: 0.85, setName: null, recalibrationWeeks: null });
     actAs(s.raterIds[0]!);
     expect((await callRoute(thresholdRoute.PUT, { method: 'PUT', url: '/', params: { id: String(s.studyId) }, body: { minAc1: 0, minSensitivity: 0 } })).status).toBe(403);
   });
@@ -77,7 +77,8 @@ describe('calibration threshold', () => {
   it('the lead’s overview shows each rater’s gate and noise sensitivity per reference kind', async () => {
     const { listCalibration } = await import('@/lib/db/queries/calibration');
     const o = await listCalibration({ user: { id: s.leadId, role: 'lead' } as never, studyId: s.studyId });
-    expect(o.threshold).toEqual({ minAc1: 0.8, minSensitivity: 0.85 });
+    expect(o.threshold).toEqual({ minAc1: 0.8, minSensitivity: 0.85, setName: null });
+    expect(o.recalibrationWeeks).toBeNull();
     const b = o.raters.find((r) => r.id === s.raterIds[1])!;
     expect(b.gate).toMatchObject({ gated: true, passes: false });
     expect(b.byKind).toEqual([{ kind: 'motion', n: 2, detected: 0, sensitivity: { value: 0, n: 2 } }, { kind: 'unspecified', n: 1, detected: 0, sensitivity: { value: 0, n: 1 } }]);

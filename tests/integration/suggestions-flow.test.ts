@@ -28,6 +28,8 @@ const studySuggestionsRoute = await import('@/app/api/studies/[id]/suggestions/r
 const trainRoute = await import('@/app/api/studies/[id]/suggestions/train/route');
 const modelRoute = await import('@/app/api/studies/[id]/suggestions/model/route');
 const voteRoute = await import('@/app/api/runs/[id]/votes/[componentId]/route');
+const releasesRoute = await import('@/app/api/studies/[id]/releases/route');
+const archiveRoute = await import('@/app/api/releases/[releaseId]/archive/route');
 
 const quiet = { info() {}, warn() {}, error() {} };
 async function runNext(kind: string) {
@@ -148,5 +150,44 @@ describe('never anchoring: a suggestion reaches a rater only after their own vot
     const res = await get();
     expect(res.status).toBe(404);
     expect(JSON.stringify(res.json)).not.toContain('pNoise');
+  });
+});
+
+describe('the release ZIP carries the model in use', () => {
+  it('with suggestions on, a release ZIP holds the model file, whose content is the exported model JSON', async () => {
+    const { execFileSync } = await import('node:child_process');
+    const { mkdtemp, readFile, readdir, rm, writeFile } = await import('node:fs/promises');
+    const os = await import('node:os');
+    const path = await import('node:path');
+    expect(Boolean((await db('studies').where({ id: studyId }).first('suggestions_enabled')).suggestions_enabled)).toBe(true);
+    // every component of the first run decided (invented labels), so the run can be released on its own
+    const r = runs[0]!;
+    for (const [i, componentId] of r.componentIds.entries()) {
+      await db('decisions').insert({ component_id: componentId, run_id: r.runId, label: i % 3 === 1 ? 'noise' : 'signal', method: 'reconciled', reason: 'test', decided_by: lead })
+        .onConflict('component_id').merge(['label', 'method', 'reason', 'decided_by']);
+    }
+    actAs(lead);
+    const created = await callRoute(releasesRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/releases`, params: { id: String(studyId) }, body: { runId: r.runId } });
+    expect(created.status, JSON.stringify(created.json)).toBe(201);
+    const releaseId = Number(created.json.releaseId);
+    const exported = await callRoute(modelRoute.GET, { url: '/', params: { id: String(studyId) } });
+    const res = await archiveRoute.GET(new Request(`http://localhost/api/releases/${releaseId}/archive`), { params: Promise.resolve({ releaseId: String(releaseId) }) });
+    expect(res.status).toBe(200);
+    const dir = await mkdtemp(path.join(os.tmpdir(), 'quorum-model-zip-'));
+    try {
+      const zip = path.join(dir, 'release.zip');
+      await writeFile(zip, Buffer.from(await res.arrayBuffer()));
+      execFileSync('unzip', ['-q', zip, '-d', path.join(dir, 'x')]); // Debian's unzip reads the archive, not our code
+      const [root] = await readdir(path.join(dir, 'x'));
+      const names = await readdir(path.join(dir, 'x', root!), { recursive: true });
+      const modelFiles = names.filter((n) => String(n).endsWith('_desc-suggestions_model.json'));
+      expect(modelFiles).toHaveLength(1);
+      const inZip = JSON.parse(await readFile(path.join(dir, 'x', root!, String(modelFiles[0])), 'utf8'));
+      // the exported model JSON, plus the release's sidecar fields (GeneratedBy, Release, Caution, format)
+      for (const key of Object.keys(exported.json)) expect(inZip[key], key).toEqual(exported.json[key]);
+      expect(inZip.Release).toMatchObject({ StudyId: studyId, ReleaseId: releaseId });
+    } finally {
+      await rm(dir, { recursive: true, force: true });
+    }
   });
 });

@@ -16,4 +16,10 @@ describe('gateVerdict', () => {
     expect(gateVerdict(score(0.9, null), T)).toMatchObject({ passes: false, reason: expect.stringMatching(/noise sensitivity is undefined \(no reference noise\)/) });
     expect(gateVerdict(null, T).reason).toMatch(/has not submitted/);
   });
+  it('a named calibration set is named in the reason', () => {
+    const named = { ...T, setName: 'Autumn reference set' };
+    expect(gateVerdict(score(0.79, 0.9), named).reason).toBe('AC1 0.79 is below 0.80 on the calibration set “Autumn reference set”');
+    expect(gateVerdict(null, named).reason).toBe('has not submitted a run of the calibration set “Autumn reference set” yet');
+    expect(gateVerdict(score(0.8, 0.85), named)).toEqual({ gated: true, passes: true, reason: null });
+  });
 });

@@ -2,15 +2,16 @@ import 'server-only';
 import type { Knex } from 'knex';
 import { bidsName, distinctRunNames } from '@/lib/bids';
 import { scoreAgainstReference, type CalibrationScore } from '@/lib/agreement/reference-score';
-import { gateVerdict, type CalibrationThreshold, type GateVerdict } from '@/lib/agreement/threshold-gate';
+import { type CalibrationThreshold, type GateVerdict } from '@/lib/agreement/threshold-gate';
 import type { KindSensitivity } from '@/lib/agreement/kind-sensitivity';
 import { db, parseJson, toJson } from '@/lib/db/knex';
 import { AppError, notFound } from '@/lib/errors';
 import { recordAudit } from './audit';
 import { isRunReleased } from './desk';
-import { calibrationGate, calibrationThreshold, scoreRater, setCalibrationThreshold, studyLabels } from './calibration-gate';
+import { calibrationGate, calibrationSettings, calibrationThreshold, scoreRater, studyLabels } from './calibration-gate';
+import { calibrationRounds, type CalibrationRoundEntry } from './calibration-rounds';
 
-export { calibrationGate, calibrationThreshold, scoreRater, setCalibrationThreshold };
+export { calibrationGate, calibrationThreshold, scoreRater };
 import { findStudyAccess } from './study-access';
 import { leadsStudy } from '@/lib/auth/permissions';
 import type { UserRow } from './users';
@@ -45,6 +46,8 @@ export type CalibrationRater = {
   gate: GateVerdict;
   /** One score per submitted calibration run, oldest first (drift over time). */
   history: CalibrationHistoryEntry[];
+  /** One pooled score per calibration round (re-calibration), oldest first. */
+  rounds: CalibrationRoundEntry[];
   certification: CalibrationCertification | null;
 };
 export type CalibrationOverview = {
@@ -56,6 +59,8 @@ export type CalibrationOverview = {
   candidates: Array<{ runId: number; runName: string }>;
   raters: CalibrationRater[];
   threshold: CalibrationThreshold;
+  /** Certified raters get the set again every N weeks (null: no re-calibration). */
+  recalibrationWeeks: number | null;
 };
 
 const notLead = () => new AppError('forbidden', 'Only a lead of this study (or the facility admin) manages its calibration set.');
@@ -160,8 +165,9 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
       submittedRuns,
       score,
       byKind,
-      gate: gateVerdict(submittedRuns ? score : null, threshold),
+      gate: await calibrationGate({ studyId, raterId: Number(m.id) }),
       history: await calibrationHistory({ studyId, userId: Number(m.id) }),
+      rounds: await calibrationRounds({ studyId, userId: Number(m.id) }),
       certification: m.certId
         ? { passed: Boolean(m.passed), certifiedBy: m.certifiedBy == null ? null : Number(m.certifiedBy), certifiedAt: m.certifiedAt ?? null, scores: parseJson<CalibrationScore>(m.scores, null) }
         : null,
@@ -170,7 +176,8 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
   // two runs with the same entities read apart in the pickers: "… (run #12)"
   const names = new Map(distinctRunNames([...runs, ...candidates].map((r) => ({ runId: r.runId, name: r.runName }))).map((r) => [r.runId, r.name]));
   const named = <T extends { runId: number; runName: string }>(r: T): T => ({ ...r, runName: names.get(r.runId) ?? r.runName });
-  return { studyName: access.name, categories, noiseKinds, runs: runs.map(named), candidates: candidates.map(named), raters, threshold };
+  const { recalibrationWeeks } = await calibrationSettings({ studyId });
+  return { studyName: access.name, categories, noiseKinds, runs: runs.map(named), candidates: candidates.map(named), raters, threshold, recalibrationWeeks };
 }
 
 /** Marks a ready, unreleased run of the study as a calibration run (it leaves agreement and releases). */
@@ -298,7 +305,7 @@ export async function myCalibration({ user, studyId }: { user: Caller; studyId: 
   if (!access) throw notFound('The study');
   const { score, byKind, submittedRuns } = await scoreRater({ studyId, userId: user.id });
   const cert = await db('rater_certifications').where({ study_id: studyId, user_id: user.id }).first('passed', 'certified_at as certifiedAt');
-  const gate = gateVerdict(submittedRuns ? score : null, await calibrationThreshold({ studyId }));
+  const gate = await calibrationGate({ studyId, raterId: user.id });
   return { submittedRuns, score, byKind, gate, certification: cert ? { passed: Boolean(cert.passed), certifiedAt: cert.certifiedAt ?? null } : null };
 }
 

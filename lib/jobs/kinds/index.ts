@@ -8,6 +8,7 @@ import { notifyOverdueKind } from './notify-overdue';
 import { sendMailKind } from './send-mail';
 import { scoreSuggestionsKind } from './score-suggestions';
 import { trainSuggestionsKind } from './train-suggestions';
+import { recalibrateKind } from './recalibrate';
 
 export const jobKinds: Readonly<Record<string, JobKind>> = {
   [decomposeKind.kind]: decomposeKind as unknown as JobKind,
@@ -18,4 +19,5 @@ export const jobKinds: Readonly<Record<string, JobKind>> = {
   [sendMailKind.kind]: sendMailKind as unknown as JobKind,
   [trainSuggestionsKind.kind]: trainSuggestionsKind as unknown as JobKind,
   [scoreSuggestionsKind.kind]: scoreSuggestionsKind as unknown as JobKind,
+  [recalibrateKind.kind]: recalibrateKind as unknown as JobKind,
 };

@@ -3,9 +3,12 @@ import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
 import { calibrationResult } from '@/lib/db/queries/calibration';
+import { calibrationGate, calibrationSettings } from '@/lib/db/queries/calibration-gate';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { labelName, noiseKindName } from '@/lib/studies/labels';
 import { Panel } from '@/components/ui/panel';
+import { loadRunShapes } from '@/lib/db/queries/reconcile-run';
+import { CalibrationResultViewer, type ResultRow } from '@/components/calibration/result-viewer';
 
 export const metadata: Metadata = { title: 'Calibration result' };
 
@@ -20,9 +23,18 @@ export default async function CalibrationResultPage({ params }: { params: Promis
   if (!access) notFound();
   const result = await calibrationResult({ studyId, runId, raterId: user.id });
   if (!result) notFound();
+  const settings = await calibrationSettings({ studyId });
+  const gate = await calibrationGate({ studyId, raterId: user.id });
   const label = (l: string | null, k: string | null) => (l ? `${labelName(l)}${l === 'noise' && k ? ` (${noiseKindName(k)})` : ''}` : '—');
   const agree = result.components.filter((c) => c.myLabel && c.referenceLabel && c.myLabel === c.referenceLabel).length;
   const scored = result.components.filter((c) => c.myLabel && c.referenceLabel).length;
+  const pct = (v: number | null | undefined) => (v == null ? '—' : `${Math.round(v * 100)} %`);
+  const rows: ResultRow[] = result.components.map((c) => ({
+    componentId: c.componentId, idx: c.idx, mine: label(c.myLabel, c.myKind), reference: label(c.referenceLabel, c.referenceKind), reason: c.reason,
+    differs: Boolean(c.myLabel && c.referenceLabel && c.myLabel !== c.referenceLabel), hf: pct(c.features.highFrequencyPower), edge: pct(c.features.edgeFraction),
+  }));
+  // the rater is assigned to the run and has submitted it (calibrationResult checked): the desk's shapes for the viewer
+  const shapes = await loadRunShapes({ runId });
   return (
     <div className="flex flex-col gap-6">
       <div>
@@ -30,39 +42,24 @@ export default async function CalibrationResultPage({ params }: { params: Promis
           <Link href={`/studies/${studyId}`} className="hover:underline">{access.name}</Link>
         </p>
         <h1 className="text-xl font-semibold" data-testid="calibration-result-heading">Your calibration result: {result.runName}</h1>
+        {settings.setName ? <p className="text-sm text-ink-muted" data-testid="calibration-result-set">Part of the calibration set “{settings.setName}”.</p> : null}
         <p className="text-sm text-ink-muted" data-testid="calibration-result-summary">
           You agreed with the reference on {agree} of {scored} components. Go through the ones that differ: the reference label and the lead&apos;s reason say why.
         </p>
       </div>
+      {gate.gated ? (
+        <p className={`text-sm ${gate.passes ? 'text-lumen-strong' : 'text-alarm'}`} data-testid="calibration-result-gate">
+          {gate.passes
+            ? 'You reach the study’s calibration threshold: live runs can be assigned to you.'
+            : `No live runs yet: ${(gate.reason ?? '').replace(/^has not /, 'you have not ')} (the study’s calibration threshold).`}
+        </p>
+      ) : null}
       <Panel title="Component by component">
-        <table className="w-full text-sm" data-testid="calibration-result-table">
-          <thead className="text-left text-xs text-ink-faint">
-            <tr>
-              <th className="pb-1 pr-3 font-medium">Component</th>
-              <th className="pb-1 pr-3 font-medium">Your label</th>
-              <th className="pb-1 pr-3 font-medium">Reference</th>
-              <th className="pb-1 pr-3 font-medium">Lead&apos;s reason</th>
-              <th className="pb-1 pr-3 text-right font-medium">Power &gt; 0.1 Hz</th>
-              <th className="pb-1 pr-3 text-right font-medium">At brain edge</th>
-            </tr>
-          </thead>
-          <tbody>
-            {result.components.map((c) => {
-              const differs = c.myLabel && c.referenceLabel && c.myLabel !== c.referenceLabel;
-              const f = (v: number | null | undefined) => (v == null ? '—' : `${Math.round(v * 100)} %`);
-              return (
-                <tr key={c.componentId} className={`border-t border-line ${differs ? 'bg-alarm/10' : ''}`} data-testid={`calibration-result-${c.idx}`} data-differs={differs ? 'true' : 'false'}>
-                  <td className="py-1.5 pr-3 tabular-nums">{c.idx}</td>
-                  <td className="py-1.5 pr-3">{label(c.myLabel, c.myKind)}</td>
-                  <td className="py-1.5 pr-3">{label(c.referenceLabel, c.referenceKind)}</td>
-                  <td className="py-1.5 pr-3 text-ink-muted">{c.reason ?? '—'}</td>
-                  <td className="py-1.5 pr-3 text-right tabular-nums">{f(c.features.highFrequencyPower)}</td>
-                  <td className="py-1.5 pr-3 text-right tabular-nums">{f(c.features.edgeFraction)}</td>
-                </tr>
-              );
-            })}
-          </tbody>
-        </table>
+        {shapes ? (
+          <CalibrationResultViewer run={shapes.run} components={shapes.components} rows={rows} />
+        ) : (
+          <p className="text-sm text-ink-muted">This run has no current decomposition to show.</p>
+        )}
       </Panel>
     </div>
   );
