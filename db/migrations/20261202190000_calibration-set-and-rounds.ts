@@ -5,8 +5,9 @@
  * - studies.recalibration_weeks: certified raters get the calibration set again every N weeks
  *   (the `recalibrate` job); NULL = no re-calibration.
  * - calibration_rounds: one row per finished calibration round of a rater that a re-calibration
- *   closed (its pooled score against the reference at that time), so the history survives the
- *   rater's votes being cleared for the next round. The round in progress is computed live.
+ *   closed (its pooled score against the reference at that time) and the rater's votes of that
+ *   round (votes: component id, label, noise kind, confidence, note, time), so nothing is lost when
+ *   they are cleared for the next round. The round in progress is computed live.
  */
 import type { Knex } from 'knex';
 import { createdAt, tableDefaults } from '../schema-helpers';
@@ -28,6 +29,7 @@ export async function up(knex: Knex): Promise<void> {
     t.double('ac1').nullable();
     t.double('sensitivity').nullable();
     t.json('score').notNullable();
+    t.json('votes').notNullable();
     createdAt(knex, t);
     t.unique(['study_id', 'rater_id', 'round'], { indexName: 'calibration_rounds_study_rater_round_unique' });
   });

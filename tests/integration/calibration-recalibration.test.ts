@@ -133,6 +133,8 @@ describe('re-calibration every N weeks', () => {
 
   it('assigns the set again once: the finished round is kept, the votes cleared, the run back in the rater’s queue', async () => {
     const [due] = s.raterIds as [number];
+    const before = await db('votes').where({ run_id: cal.runId, rater_id: due }).orderBy('component_id').select('component_id as componentId', 'label', 'noise_kind as noiseKind');
+    expect(before.length).toBeGreaterThan(0);
     const first = await assignDueRecalibrations(db, { now: NOW });
     expect(first.started.filter((x) => x.studyId === s.studyId)).toEqual([{ studyId: s.studyId, raterId: due, round: 2, runIds: [cal.runId] }]);
     const a = await db('assignments').where({ run_id: cal.runId, rater_id: due }).select('submitted_at', 'due_at');
@@ -142,6 +144,10 @@ describe('re-calibration every N weeks', () => {
     expect(await db('votes').where({ run_id: cal.runId, rater_id: due }).count({ n: '*' }).first()).toEqual({ n: 0 });
     const rounds = await db('calibration_rounds').where({ study_id: s.studyId, rater_id: due }).select('round', 'set_name', 'components', 'ac1', 'sensitivity');
     expect(rounds).toEqual([{ round: 1, set_name: 'Autumn reference set', components: 6, ac1: 1, sensitivity: 1 }]);
+    // the cleared votes are kept with the round: nothing a rater saved is lost
+    const kept = await db('calibration_rounds').where({ study_id: s.studyId, rater_id: due, round: 1 }).first('votes');
+    const keptVotes = (typeof kept.votes === 'string' ? JSON.parse(kept.votes) : kept.votes) as Array<{ componentId: number; label: string; noiseKind: string | null }>;
+    expect(keptVotes.map(({ componentId, label, noiseKind }) => ({ componentId, label, noiseKind }))).toEqual(before);
     // while the new round is open, the finished one still stands: no loss of live work
     expect(await calibrationGate({ studyId: s.studyId, raterId: due })).toEqual({ gated: true, passes: true, reason: null });
     const queue = await listQueueForRater({ raterId: due });

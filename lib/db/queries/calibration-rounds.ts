@@ -71,7 +71,7 @@ async function setIsComplete(trx: Knex | Knex.Transaction, studyId: number): Pro
 /**
  * Starts the next round for one rater, inside the caller's transaction, when it is still due (the
  * rater's calibration assignments are locked first, so two workers cannot both start it): stores
- * the finished round's score, clears the rater's votes on the set and reopens or adds every
+ * the finished round's score and votes, clears the rater's votes on the set and reopens or adds every
  * assignment. Returns null when not due (already open, or too recent).
  */
 export async function startRecalibrationRound(
@@ -89,11 +89,18 @@ export async function startRecalibrationRound(
   const { score } = await scoreRater({ studyId, userId: raterId }, trx);
   const last = await trx('calibration_rounds').where({ study_id: studyId, rater_id: raterId }).max({ round: 'round' }).first();
   const round = Number(last?.round ?? 0) + 1;
+  const components = trx('components as c').join('decompositions as d', 'd.id', 'c.decomposition_id').whereIn('d.run_id', runIds).select('c.id');
+  // the round's votes are kept with its score before they are cleared for the next round
+  const votes = await trx('votes')
+    .where({ rater_id: raterId })
+    .whereIn('component_id', components.clone())
+    .orderBy('component_id')
+    .select('component_id as componentId', 'run_id as runId', 'label', 'noise_kind as noiseKind', 'confidence', 'note', 'updated_at as votedAt');
   await trx('calibration_rounds').insert({
     study_id: studyId, rater_id: raterId, round, set_name: study.setName ?? null, submitted_at: state.lastSubmittedAt,
     components: score.n, ac1: score.gwetAC1.value, sensitivity: score.noise.sensitivity.value, score: toJson(score),
+    votes: toJson(votes.map((v) => ({ ...v, confidence: v.confidence == null ? null : Number(v.confidence) }))),
   });
-  const components = trx('components as c').join('decompositions as d', 'd.id', 'c.decomposition_id').whereIn('d.run_id', runIds).select('c.id');
   await trx('votes').where({ rater_id: raterId }).whereIn('component_id', components.clone()).delete();
   await trx('submitted_votes').where({ rater_id: raterId }).whereIn('component_id', components.clone()).delete();
   const had = new Set(state.rows.map((a) => Number(a.runId)));
