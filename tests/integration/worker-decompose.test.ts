@@ -2,7 +2,8 @@
 // idempotent re-runs, a lost lease, failures) and with worker processes (two workers, SIGKILL
 // mid-job, cancellation, SIGTERM release).
 import { existsSync } from 'node:fs';
-import { rm, stat, truncate, writeFile } from 'node:fs/promises';
+import { createHash } from 'node:crypto';
+import { readFile, rm, stat, truncate, writeFile } from 'node:fs/promises';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { blobToFloat32, closeDb, db, parseJson } from '@/lib/db/knex';
 import { cancelJob, claimJob, getJob, latestJobForRun, requeueExpiredLeases } from '@/lib/jobs';
@@ -60,6 +61,9 @@ describe('decompose in process', () => {
     expect(more).toHaveLength(0);
     expect(d.k).toBeGreaterThanOrEqual(2);
     expect(job!.result).toMatchObject({ decompositionId: d.id, k: d.k });
+    // the component maps' SHA-256 and size are kept with the decomposition, so a release ships them without hashing again
+    const mapFile = await readFile(pathFor(d.components_key));
+    expect({ sha256: d.components_sha256, bytes: Number(d.components_bytes) }).toEqual({ sha256: createHash('sha256').update(mapFile).digest('hex'), bytes: mapFile.length });
     const params = parseJson<Record<string, unknown>>(d.parameters)!;
     expect(params).toMatchObject({ mask: 'automatic', dropVolumes: 0, varianceNorm: true, detrend: false, dimMethod: 'iid-mdl', seed: 1, contrast: 'logcosh' });
     const summary = parseJson<Record<string, unknown>>(d.summary)!;
