@@ -558,6 +558,46 @@ describe('pipeline API with personal access tokens', () => {
   });
 });
 
+describe('a release job that can no longer go through', () => {
+  const newest = async () => Number((await db('releases').where({ study_id: studyId, run_key: 0 }).max('version as v').first())?.v);
+
+  it('a decision reopened after the request: the job fails at once with the reason, and nothing is released', async () => {
+    actAs(u('lead'));
+    const before = await newest();
+    const asked = await release();
+    expect(asked.status, JSON.stringify(asked.json)).toBe(202);
+    const componentId = runs[0]!.componentIds[0]!;
+    const kept = await db('decisions').where({ component_id: componentId }).first('label', 'noise_kind', 'method');
+    await db('decisions').where({ component_id: componentId }).update({ label: null, noise_kind: null, method: 'pending' });
+    try {
+      const res = await buildRequestedRelease(db, asked);
+      expect(res.json.jobStatus).toBe('failed');
+      expect(res.json.jobMessage).toMatch(/have no final decision yet \(1 pending/);
+      expect(await db('jobs').where({ id: asked.json.jobId }).first('attempts')).toEqual({ attempts: 1 }); // not retried
+      expect(await newest()).toBe(before);
+    } finally {
+      await db('decisions').where({ component_id: componentId }).update(kept);
+    }
+  });
+
+  it('component maps whose size no longer matches the stored checksum: the job fails saying what to do', async () => {
+    actAs(u('lead'));
+    const before = await newest();
+    const dec = await db('decompositions').where({ run_id: runs[0]!.runId, is_current: true }).first('id', 'components_bytes');
+    expect(dec.components_bytes).not.toBeNull(); // kept by the first release
+    await db('decompositions').where({ id: dec.id }).update({ components_bytes: Number(dec.components_bytes) + 1 });
+    try {
+      const res = await buildRequestedRelease(db, await release());
+      expect(res.json.jobStatus).toBe('failed');
+      expect(res.json.jobMessage).toContain(`The component maps of run ${runs[0]!.runId} are ${dec.components_bytes} bytes on storage but ${Number(dec.components_bytes) + 1} bytes were stored`);
+      expect(res.json.jobMessage).toContain('decompose the run again');
+      expect(await newest()).toBe(before);
+    } finally {
+      await db('decompositions').where({ id: dec.id }).update({ components_bytes: dec.components_bytes });
+    }
+  });
+});
+
 describe('runs whose files would share names', () => {
   it('refuses a release when two runs have the same BIDS entities, naming both', async () => {
     const twin = await createReadyRun(db, { studyId, createdBy: u('lead'), raterIds: [u('rater1')], size: 'tiny', seed: 31, sub: 'rel01', components: 4 });
