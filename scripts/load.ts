@@ -59,7 +59,7 @@ async function prepare(uploads: string) {
   const { hashPassword } = await import('@/lib/auth/password');
   const { createReadyRun } = await import('../tests/e2e/helpers/ready-run');
   const { createRun, createStudyWithRaters, writePhantomRunFile } = await import('../tests/integration/helpers/factories');
-  const { enqueueDecomposition } = await import('@/lib/jobs/kinds/decompose');
+  const { queueDecomposition } = await import('@/lib/runs/queue-job');
   const db = createDb();
   try {
     await db.migrate.latest({ migrationSource });
@@ -79,7 +79,7 @@ async function prepare(uploads: string) {
     for (let i = 0; i < 6; i++) {
       const file = await writePhantomRunFile({ size: 'small', seed: 500 + i });
       const runId = await createRun(db, { studyId, createdBy: leadId, file, sub: `work${i}` });
-      await enqueueDecomposition(db, { runId });
+      await queueDecomposition(db, { runId });
     }
     return raters;
   } finally {

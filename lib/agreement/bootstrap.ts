@@ -1,5 +1,5 @@
 import { AgreementError } from './errors';
-import { createPrng } from './prng';
+import { createRng } from '@/lib/random';
 import type { StatResult } from './result';
 import type { ItemSelection, RatingsTable } from './table';
 
@@ -75,7 +75,7 @@ export function bootstrapVector(
   if (nItems < 1) {
     return Array.from({ length: nStats }, () => ({ lower: null, upper: null, level, resamples, used: 0, skipped: resamples, seed, reason: 'no items' }));
   }
-  const rng = createPrng(seed);
+  const rng = createRng(seed, 'golden-xor'); // the scheme released intervals were computed with
   const idx = new Int32Array(nItems);
   const row = new Float64Array(nStats);
   const values = Array.from({ length: nStats }, () => new Float64Array(resamples));

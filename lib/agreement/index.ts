@@ -19,7 +19,6 @@ export {
   bootstrapCI, bootstrapMany, bootstrapVector, bootstrapTableStat, DEFAULT_RESAMPLES, DEFAULT_SEED,
   type BootstrapOptions, type ConfidenceInterval, type ResampleEvaluator,
 } from './bootstrap';
-export { createPrng, type Prng } from './prng';
 export { landisKochBand, type AgreementBand } from './bands';
 export { studyAgreement, type StudyAgreement, type StudyAgreementInput, type StudyItem, type StatWithCI } from './study';
 export { parseRatingsText, parseDelimited, detectFormat, type RatingsFileFormat } from './ratings-file';

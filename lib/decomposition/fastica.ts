@@ -1,7 +1,7 @@
 // Spatial FastICA, symmetric approach, on whitened k × V data.
 import { symmetricEigen } from './eigen-symmetric';
 import { DecompositionError } from './errors';
-import { gaussianSource } from './random';
+import { createRng } from '@/lib/random';
 import { KernelPool, sharedFloat32, sharedFloat64 } from './worker-pool';
 
 export type Contrast = 'logcosh' | 'exp' | 'cube';
@@ -132,7 +132,7 @@ export async function fastIca(z: Float32Array, k: number, V: number, pool: Kerne
   if (opts.init) {
     w = symmetricDecorrelation(opts.init, k);
   } else {
-    const rnd = gaussianSource(seed);
+    const rnd = createRng(seed, 'direct').gauss; // 'direct': a stored decomposition's seed reproduces it
     w = new Float64Array(k * k);
     for (let i = 0; i < k * k; i++) w[i] = rnd();
     w = symmetricDecorrelation(w, k);

@@ -15,7 +15,6 @@ export { amariIndex } from './amari';
 export { orientComponents, type OrientedComponents } from './orient';
 export { buildDataMatrix, meanImage, type DataMatrix, type RunImage } from './data-matrix';
 export { KernelPool, sharedFloat32, sharedFloat64, splitRange } from './worker-pool';
-export { mulberry32, gaussianSource } from './random';
 export {
   componentFeatures, componentSpectra, componentTimecourse, decompositionSummary, featuresTsv, mapsVolume, spectraTsv, timecoursesTsv,
 } from './component-outputs';

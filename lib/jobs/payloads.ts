@@ -12,6 +12,7 @@ import {
   notifyVotesCompletePayloadSchema,
 } from '@/lib/notifications/payloads';
 import { sendMailPayloadSchema } from '@/lib/mail/payloads';
+import { releasePayloadSchema } from '@/lib/releases/payload';
 
 /** Overrides of the study protocol for one decomposition (all optional). */
 export const decompositionOptionsSchema = z
@@ -47,6 +48,7 @@ export type DecomposePayload = z.infer<typeof decomposePayloadSchema>;
 export const jobPayloadSchemas = {
   decompose: decomposePayloadSchema,
   denoise: denoisePayloadSchema,
+  release: releasePayloadSchema,
   'notify-assignments': notifyAssignmentsPayloadSchema,
   'notify-votes-complete': notifyVotesCompletePayloadSchema,
   'notify-overdue': notifyOverduePayloadSchema,

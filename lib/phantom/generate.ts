@@ -1,7 +1,8 @@
 // Generates a synthetic 4D fMRI run, volume by volume, straight into one Float32Array.
 import { headModel } from './head-model';
 import { simulateMotion } from './motion';
-import { childSeed, createRng, normalQuantileTable } from './random';
+import { childSeed, createRng } from '@/lib/random';
+import { normalQuantileTable } from './normal-quantiles';
 import { sizeSpec } from './sizes';
 import { buildRealisticSources, gaussianKernel, NOISE_SMOOTHING_SIGMA_VOXELS, noiseAr1Field, REALISTIC_NOISE_FRACTION, smoothSeparable } from './realistic';
 import { buildSources, MAP_FLOOR } from './sources';

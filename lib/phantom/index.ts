@@ -2,7 +2,7 @@
 export { generatePhantom, smooth3, THERMAL_NOISE_FRACTION } from './generate';
 export { headModel, voxelToMm, BASELINE, TISSUE, BRAIN_SEMI_AXES_MM, type HeadModel } from './head-model';
 export { phantomToNiftiInput, truthMapsToNiftiInput, truthSummary, type PhantomNiftiOptions } from './nifti-input';
-export { createRng, childSeed, normalQuantileTable, type Rng } from './random';
+export { normalQuantileTable } from './normal-quantiles';
 export { PHANTOM_SIZES, sizeSpec, type PhantomSizeSpec } from './sizes';
 export { NETWORKS, MAP_FLOOR } from './sources';
 export { bandLimitedNoise, zscore } from './time-courses';

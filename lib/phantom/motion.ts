@@ -1,5 +1,5 @@
 // Simulated rigid head motion: slow drift plus a few sudden jerks, and the rim time course it drives.
-import type { Rng } from './random';
+import type { Rng } from '@/lib/random';
 import { bandLimitedNoise, zscore } from './time-courses';
 
 export interface MotionParameters {

@@ -3,7 +3,7 @@ import type { HeadModel } from './head-model';
 import { BRAIN_SEMI_AXES_MM, TISSUE, voxelToMm } from './head-model';
 import type { MotionParameters } from './motion';
 import { rimTimecourse } from './motion';
-import { childSeed, createRng, type Rng } from './random';
+import { childSeed, createRng, type Rng } from '@/lib/random';
 import { bandLimitedNoise, scale, sliceDropout, zscore } from './time-courses';
 import type { PhantomSource } from './types';
 

@@ -1,5 +1,5 @@
 // Source time courses of the phantom: band-limited random signals built from DFT-bin sinusoids.
-import type { Rng } from './random';
+import type { Rng } from '@/lib/random';
 
 /**
  * Band-limited Gaussian-like noise: Σ_k A_k cos(2π f_k t + φ_k) over the DFT frequencies

@@ -1,13 +1,21 @@
 import 'server-only';
 /**
- * Releasing a study (or one run): checks that every component in scope has a final decision,
- * then in one transaction (the study row locked, so versions never collide) freezes the decisions
- * into release_decisions under the next version number, writes the release's text files to a fresh
- * storage directory hashing each one, hashes the component-map NIfTI it will ship, stores the
- * manifest and appends the audit entry. Old releases stay as they were.
+ * Releasing a study (or one run), in two steps (issue 12 item 3):
+ * - requestRelease (the request): checks the lead, the scope and that every component in scope has
+ *   a final decision, then queues a `release` job (lib/jobs/kinds/release.ts), or returns the open
+ *   one of the same scope, so two clicks make one release.
+ * - buildRelease (the worker): takes the component maps' stored checksums (hashing once the ones
+ *   stored before checksums were kept), computes the agreement report with its bootstrap outside
+ *   any transaction, then, in the transaction that completes the job (the study row locked, so
+ *   versions never collide), freezes the decisions into release_decisions under the next version
+ *   number, writes the release's text files to a fresh storage directory hashing each one, stores
+ *   the manifest and the report and appends the audit entry. Old releases stay as they were.
  */
 import { createHash } from 'node:crypto';
 import { writeFile } from 'node:fs/promises';
+import { enqueueJob, JobError } from '@/lib/jobs';
+import { checksumOfKey } from '@/lib/storage/checksum';
+import type { ReleasePayload } from './payload';
 import type { Knex } from 'knex';
 import { db, toJson } from '@/lib/db/knex';
 import { bidsName } from '@/lib/bids';
@@ -18,7 +26,7 @@ import { leadsStudy } from '@/lib/auth/permissions';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { loadRatingFacts, loadStudyRatings, type RatingFacts } from '@/lib/db/queries/agreement';
 import {
-  loadExportRuns, releaseReadiness, type ExportRun, type ManifestFile, type ManifestRun, type ReleaseManifest, type Readiness,
+  loadExportRuns, lockStudy, openReleaseJob, releaseReadiness, storeMapChecksum, type ExportRun, type ManifestFile, type ManifestRun, type ReleaseManifest, type Readiness,
 } from '@/lib/db/queries/releases';
 import { buildAgreementReport } from '@/lib/reports/agreement-report';
 import { agreementReportCsv } from '@/lib/reports/agreement-csv';
@@ -28,7 +36,7 @@ import { noiseList, type UncertainPolicy } from '@/lib/exports/noise-list';
 import { FEATURE_COLUMNS, featureColumnName, featureColumns, mapFileName, runExportFiles, type TextFile } from '@/lib/exports/run-files';
 import { toTsv } from '@/lib/exports/tabular';
 import { EXPORT_FORMAT, EXPORT_FORMAT_SIDECAR } from '@/lib/exports/format';
-import { childKey, ensureDirFor, newKey, readStream, removeKey } from '@/lib/storage';
+import { childKey, ensureDirFor, newKey, removeKey, sizeOf } from '@/lib/storage';
 import { SOFTWARE_VERSION } from './version';
 import { activeSuggestionModel } from '@/lib/db/queries/suggestions';
 import { suggestionModelDocument } from '@/lib/suggestions/model-document';
@@ -50,14 +58,24 @@ export function refusalOf(r: Readiness, studyId: number): string | null {
 
 const sha256 = (text: string | Buffer) => createHash('sha256').update(text).digest('hex');
 
-async function hashKey(key: string): Promise<{ sha256: string; bytes: number }> {
-  const h = createHash('sha256');
-  let bytes = 0;
-  for await (const chunk of readStream(key)) {
-    h.update(chunk as Buffer);
-    bytes += (chunk as Buffer).length;
+type MapChecksum = { sha256: string; bytes: number };
+
+/**
+ * The component-map checksum of a run's decomposition: the one stored with it, after checking the
+ * file still has the stored size (a full re-hash would cost what storing it saved); hashed once and
+ * stored when the decomposition predates stored checksums.
+ */
+async function mapChecksum(r: ExportRun): Promise<MapChecksum> {
+  if (r.componentsSha256 && r.componentsBytes != null) {
+    const bytes = await sizeOf(r.componentsKey!);
+    if (bytes !== r.componentsBytes) {
+      throw new AppError('conflict', `The component maps of run ${r.runId} are ${bytes} bytes on storage but ${r.componentsBytes} bytes were stored with its decomposition; decompose the run again, then release.`);
+    }
+    return { sha256: r.componentsSha256, bytes };
   }
-  return { sha256: h.digest('hex'), bytes };
+  const c = await checksumOfKey(r.componentsKey!);
+  await storeMapChecksum(r.decompositionId, c);
+  return c;
 }
 
 const median = (xs: number[]) => {
@@ -99,7 +117,12 @@ export function methodsInputOf(runs: ExportRun[], study: Record<string, unknown>
 
 export type CreatedRelease = { releaseId: number; version: number; manifest: ReleaseManifest };
 
-export async function createRelease({ user, studyId, runId = null, notes = null, ip = null }: { user: Pick<UserRow, 'id' | 'role' | 'name'>; studyId: number; runId?: number | null; notes?: string | null; ip?: string | null }): Promise<CreatedRelease> {
+/**
+ * The request: a lead asks for a release of the study (or one run). Refuses (409) with the reason
+ * when decisions are incomplete; otherwise queues the release job, or returns the open job of the
+ * same scope (`existing: true`) so a second click makes no second release.
+ */
+export async function requestRelease({ user, studyId, runId = null, notes = null, ip = null }: { user: Pick<UserRow, 'id' | 'role' | 'name'>; studyId: number; runId?: number | null; notes?: string | null; ip?: string | null }): Promise<{ jobId: number; existing: boolean }> {
   const access = await findStudyAccess({ user, studyId });
   if (!access) throw notFound('The study');
   if (!leadsStudy(access)) throw forbidden('releasing this study (only its leads may)');
@@ -107,33 +130,83 @@ export async function createRelease({ user, studyId, runId = null, notes = null,
     const run = await db('runs').where({ id: runId, study_id: studyId }).first('id');
     if (!run) throw notFound('The run');
   }
+  return db.transaction(async (trx) => {
+    if (!(await lockStudy(trx, studyId))) throw notFound('The study');
+    const open = await openReleaseJob({ studyId, runId }, trx);
+    if (open) return { jobId: open, existing: true };
+    const refusal = refusalOf(await releaseReadiness({ studyId, runId }, trx), studyId);
+    if (refusal) throw new AppError('conflict', refusal);
+    const clash = nameClash(await loadExportRuns({ studyId, runId }, trx, { timecourses: false }));
+    if (clash) throw new AppError('conflict', clash);
+    const jobId = await enqueueJob(trx, { kind: 'release', payload: { studyId, runId, notes, ip }, studyId, createdBy: user.id });
+    await trx('jobs').where({ id: jobId }).update({ stage: 'queued', percent: 0, message: 'Waiting for a worker' });
+    return { jobId, existing: false };
+  });
+}
+
+/** Why the runs' files would collide (two runs with the same BIDS entities), or null. */
+function nameClash(runs: Pick<ExportRun, 'runId' | 'sub' | 'ses' | 'task' | 'acq' | 'runLabel'>[]): string | null {
+  const seen = new Map<string, number>();
+  for (const r of runs) {
+    const stem = bidsName({ sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, runLabel: r.runLabel });
+    const other = seen.get(stem);
+    if (other !== undefined) return `Runs ${other} and ${r.runId} have the same BIDS entities (${stem}), so their files would share names; correct the labels of one of them on the study page, then release.`;
+    seen.set(stem, r.runId);
+  }
+  return null;
+}
+
+/** What buildRelease needs from the job running it (lib/jobs' JobContext fits). */
+export interface ReleaseJobHooks {
+  progress(stage: string, percent: number): Promise<void>;
+  /** Runs `write` in the transaction that completes the job. */
+  commit(write: (trx: Knex.Transaction) => Promise<CreatedRelease>): Promise<CreatedRelease>;
+}
+
+/** The worker's part: builds the release a request queued. Throws AppError (conflict) when the scope can no longer be released. */
+export async function buildRelease(p: ReleasePayload & { actorId: number }, job: ReleaseJobHooks): Promise<CreatedRelease> {
+  const { studyId, runId, notes, ip } = p;
+  const user = await db('users').where({ id: p.actorId }).first('id', 'name');
+  if (!user) throw new AppError('conflict', 'The lead who asked for this release no longer has an account; ask again.');
+  await job.progress('checking', 2);
   const refusal = refusalOf(await releaseReadiness({ studyId, runId }), studyId);
   if (refusal) throw new AppError('conflict', refusal);
 
+  // the heavy part, outside any transaction: map checksums and the agreement report's bootstrap
+  const planned = await loadExportRuns({ studyId, runId }, db, { timecourses: false });
+  const maps = new Map<number, MapChecksum>();
+  for (const [i, r] of planned.entries()) {
+    if (r.componentsKey) maps.set(r.runId, await mapChecksum(r));
+    await job.progress('checksums', 5 + (35 * (i + 1)) / planned.length);
+  }
+  await job.progress('statistics', 40);
+  const runIds = planned.map((r) => r.runId);
+  const report = buildAgreementReport(await loadStudyRatings({ studyId, runIds }), BOOTSTRAP);
+  const facts = await loadRatingFacts({ studyId, runIds });
+  await job.progress('writing', 80);
+
   const dirKey = newKey('releases');
   try {
-    return await db.transaction(async (trx) => {
+    return await job.commit(async (trx) => {
       const study = await trx('studies').where({ id: studyId }).forUpdate().first();
+      if (!study) throw new AppError('conflict', 'The study no longer exists.');
       const readiness = await releaseReadiness({ studyId, runId }, trx);
       const again = refusalOf(readiness, studyId);
       if (again) throw new AppError('conflict', again);
+      const runs = await loadExportRuns({ studyId, runId }, trx);
+      const same = runs.length === planned.length && runs.every((r, i) => r.runId === planned[i]!.runId && r.decompositionId === planned[i]!.decompositionId);
+      if (!same) throw new JobError('The study changed while its release was being built (a run was added, removed or decomposed again); building it again.');
       const last = await trx('releases').where({ study_id: studyId, run_key: runId ?? 0 }).max('version as v').first();
       const version = Number(last?.v ?? 0) + 1;
       const [id] = await trx('releases').insert({ study_id: studyId, run_id: runId, version, released_by: user.id, notes });
       const releaseId = Number(id);
       const released = await trx('releases').where({ id: releaseId }).first('released_at');
-      const runs = await loadExportRuns({ studyId, runId }, trx);
-      const seen = new Map<string, number>();
-      for (const r of runs) {
-        const stem = bidsName({ sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, runLabel: r.runLabel });
-        const other = seen.get(stem);
-        if (other !== undefined) throw new AppError('conflict', `Runs ${other} and ${r.runId} have the same BIDS entities (${stem}), so their files would share names; correct the labels of one of them on the study page, then release.`);
-        seen.set(stem, r.runId);
-      }
+      const clash = nameClash(runs);
+      if (clash) throw new AppError('conflict', clash);
       const rows = runs.flatMap((r) => r.components.map((c) => ({ release_id: releaseId, component_id: c.componentId, run_id: r.runId, idx: c.idx, label: c.label!, noise_kind: c.noiseKind, method: c.method as never })));
       for (let i = 0; i < rows.length; i += 200) await trx('release_decisions').insert(rows.slice(i, i + 200));
-      const manifest = await writeReleaseFiles(trx, { dirKey, study, runs, releaseId, version, releasedAt: (released.released_at as Date).toISOString(), user, runId, notes, excluded: runId ? [] : readiness.notReady });
-      await trx('releases').where({ id: releaseId }).update({ manifest: toJson(manifest) });
+      const manifest = await writeReleaseFiles(trx, { dirKey, study, runs, maps, report, facts, releaseId, version, releasedAt: (released.released_at as Date).toISOString(), user, runId, notes, excluded: runId ? [] : readiness.notReady });
+      await trx('releases').where({ id: releaseId }).update({ manifest: toJson(manifest), agreement_report: toJson(report) });
       await recordAudit(
         {
           actorId: user.id,
@@ -156,7 +229,7 @@ export async function createRelease({ user, studyId, runId = null, notes = null,
 
 async function writeReleaseFiles(
   trx: Knex.Transaction,
-  o: { dirKey: string; study: Record<string, unknown>; runs: ExportRun[]; releaseId: number; version: number; releasedAt: string; user: Pick<UserRow, 'id' | 'name'>; runId: number | null; notes: string | null; excluded: { runId: number; status: string }[] },
+  o: { dirKey: string; study: Record<string, unknown>; runs: ExportRun[]; maps: Map<number, MapChecksum>; report: ReturnType<typeof buildAgreementReport>; facts: RatingFacts; releaseId: number; version: number; releasedAt: string; user: Pick<UserRow, 'id' | 'name'>; runId: number | null; notes: string | null; excluded: { runId: number; status: string }[] },
 ): Promise<ReleaseManifest> {
   const studyId = Number(o.study.id);
   const labelSet = (typeof o.study.label_set === 'string' ? JSON.parse(o.study.label_set as string) : o.study.label_set) as string[];
@@ -182,8 +255,8 @@ async function writeReleaseFiles(
     const dir = [`sub-${r.sub}`, r.ses ? `ses-${r.ses}` : null].filter(Boolean).join('/');
     const comps = r.components.map((c) => ({ ...c, votes: c.votes.map((v) => ({ raterCode: codeOf.get(v.raterId)!, label: v.label, noiseKind: v.noiseKind })) }));
     for (const f of runExportFiles({ stem, entities, trSeconds: r.trSeconds, labelSet, uncertainInExport: policy, components: comps, release: stamp })) await put(dir, f, r.runId);
-    if (r.componentsKey) {
-      const h = await hashKey(r.componentsKey);
+    const h = o.maps.get(r.runId);
+    if (r.componentsKey && h) {
       files.push({ path: `${dir}/${mapFileName(stem)}`, name: mapFileName(stem), ...h, runId: r.runId, key: r.componentsKey });
     }
     const counts: Record<string, number> = {};
@@ -213,14 +286,13 @@ async function writeReleaseFiles(
     }),
   }, null);
 
-  const ratings = await loadStudyRatings({ studyId, runIds: o.runs.map((r) => r.runId) });
-  const report = buildAgreementReport(ratings, BOOTSTRAP);
+  const report = o.report;
   const nameOf = (id: string) => `${codeOf.get(Number(id)) ?? id} (${names.get(Number(id)) ?? 'rater'})`;
   await put('', { name: `${prefix}_desc-agreement_report.json`, content: js({ Description: 'Inter-rater agreement of the released runs (statistics with percentile-bootstrap 95% CIs over components).', bootstrap: BOOTSTRAP, raterCodes: Object.fromEntries(raterIds.map((id) => [String(id), codeOf.get(id)])), report, ...sidecarMeta }) }, null);
   await put('', { name: `${prefix}_desc-agreement_report.csv`, content: agreementReportCsv(report, nameOf) }, null);
   const suggestionModel = await activeSuggestionModel({ studyId }, trx);
   if (suggestionModel) await put('', { name: `${prefix}_desc-suggestions_model.json`, content: js({ ...suggestionModelDocument(suggestionModel), ...sidecarMeta }) }, null);
-  await put('', { name: `${prefix}_desc-methods_report.md`, content: methodsMarkdown(methodsInputOf(o.runs, o.study, report, await loadRatingFacts({ studyId, runIds: o.runs.map((r) => r.runId) }))) }, null);
+  await put('', { name: `${prefix}_desc-methods_report.md`, content: methodsMarkdown(methodsInputOf(o.runs, o.study, report, o.facts)) }, null);
 
   return {
     format: EXPORT_FORMAT,

@@ -42,7 +42,7 @@ export async function queueRun({ user, runId, settings }: { user: Actor; runId: 
     if (status === 'queued' || status === 'processing') {
       throw new AppError('conflict', `The run is already ${status}. Wait for it to finish or cancel it first.`);
     }
-    await queueDecomposition(trx, { runId, studyId: run.studyId, createdBy: user.id, options: decompositionOptionsFor(settings) });
+    await queueDecomposition(trx, { runId, createdBy: user.id, options: decompositionOptionsFor(settings) });
     await recordAudit({ actorId: user.id, action: status === 'uploaded' ? 'run.queue' : 'run.redecompose', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { from: status, settings: settings ?? null } }, trx);
   });
   return rowFor(user, run.studyId, runId);
@@ -58,7 +58,7 @@ export async function retryRun({ user, runId }: { user: Actor; runId: number }):
     }
     const last = await trx('jobs').where({ run_id: runId, kind: 'decompose' }).orderBy('id', 'desc').first('payload');
     const payload = last ? (parseJson<{ decompositionOptions?: DecompositionOptionsInput }>(last.payload, {}) ?? {}) : {};
-    await queueDecomposition(trx, { runId, studyId: run.studyId, createdBy: user.id, options: payload.decompositionOptions });
+    await queueDecomposition(trx, { runId, createdBy: user.id, options: payload.decompositionOptions });
     await recordAudit({ actorId: user.id, action: 'run.retry', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { from: status } }, trx);
   });
   return rowFor(user, run.studyId, runId);

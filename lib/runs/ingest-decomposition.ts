@@ -11,6 +11,7 @@ import { componentsHeaderFields, volumeHeaderFields } from '@/lib/decomposition/
 import type { DecompositionResult } from '@/lib/decomposition/pipeline';
 import { writeNiftiFile, type NiftiHeader } from '@/lib/nifti';
 import { childKey, ensureDirFor, newKey, pathFor, removeKey } from '@/lib/storage';
+import { checksumOfKey } from '@/lib/storage/checksum';
 
 export interface ComponentRow {
   /** 1..k by variance explained. */
@@ -103,7 +104,8 @@ export { decompositionSummary } from '@/lib/decomposition/component-outputs';
 
 /**
  * In the caller's transaction: marks the run's earlier decompositions not current, inserts the new
- * decomposition and its k component rows, and sets the run ready. Returns the decomposition id.
+ * decomposition (with the component-map file's SHA-256 and size, which releases ship) and its k
+ * component rows, and sets the run ready. Returns the decomposition id.
  */
 export async function storeDecomposition(
   trx: Knex.Transaction,
@@ -115,12 +117,15 @@ export async function storeDecomposition(
     components: ComponentRow[];
   },
 ): Promise<number> {
+  const maps = await checksumOfKey(d.files.componentsKey);
   await trx('decompositions').where({ run_id: d.runId, is_current: true }).update({ is_current: false });
   const [id] = await trx('decompositions').insert({
     run_id: d.runId,
     parameters: toJson(d.parameters),
     summary: toJson(d.summary),
     components_key: d.files.componentsKey,
+    components_sha256: maps.sha256,
+    components_bytes: maps.bytes,
     mean_key: d.files.meanKey,
     mask_key: d.files.maskKey,
     k: d.components.length,

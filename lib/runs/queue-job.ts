@@ -1,6 +1,10 @@
-import 'server-only';
+/**
+ * Queuing a run's decomposition: the one function production (lib/runs/actions.ts, upload.ts) and
+ * tests and scripts (load, bench) use. No `server-only` here: the bench script runs without the
+ * react-server condition.
+ */
 import type { Knex } from 'knex';
-import { enqueueJob, type DecompositionOptionsInput } from '@/lib/jobs';
+import { enqueueJob, PermanentJobError, type DecompositionOptionsInput } from '@/lib/jobs';
 import type { DecomposeSettings } from './schema';
 
 /** The job payload's overrides for settings chosen in the runs table (fixed N, variance fraction or another method). */
@@ -12,21 +16,32 @@ export function decompositionOptionsFor(settings?: DecomposeSettings): Decomposi
 }
 
 /**
- * Queues a decompose job for a run (lib/jobs' enqueueJob) and marks the run queued, inside the
- * caller's transaction. `options` override the study's protocol for a re-decomposition.
+ * Queues a decompose job for a run (lib/jobs' enqueueJob) and marks the run queued, in one
+ * transaction (a savepoint inside the caller's transaction when given one). The run row is locked;
+ * when a decompose job for the run is already queued or running, that job's id is returned
+ * (`existing: true`) instead of adding another. `options` override the study's protocol for a
+ * re-decomposition.
  */
 export async function queueDecomposition(
-  trx: Knex.Transaction,
-  { runId, studyId, createdBy, options }: { runId: number; studyId: number; createdBy: number; options?: DecompositionOptionsInput },
-): Promise<number> {
-  const jobId = await enqueueJob(trx, {
-    kind: 'decompose',
-    payload: { runId, ...(options ? { decompositionOptions: options } : {}) },
-    runId,
-    studyId,
-    createdBy,
+  db: Knex,
+  { runId, createdBy = null, options, priority, maxAttempts }: { runId: number; createdBy?: number | null; options?: DecompositionOptionsInput; priority?: number; maxAttempts?: number },
+): Promise<{ jobId: number; existing: boolean }> {
+  return db.transaction(async (trx) => {
+    const run = await trx('runs').select('id', 'study_id').where({ id: runId }).forUpdate().first();
+    if (!run) throw new PermanentJobError(`Run ${runId} does not exist.`);
+    const active = await trx('jobs').select('id').where({ run_id: runId, kind: 'decompose' }).whereIn('status', ['queued', 'running']).first();
+    if (active) return { jobId: Number(active.id), existing: true };
+    const jobId = await enqueueJob(trx, {
+      kind: 'decompose',
+      payload: { runId, ...(options ? { decompositionOptions: options } : {}) },
+      runId,
+      studyId: Number(run.study_id),
+      createdBy,
+      priority,
+      maxAttempts,
+    });
+    await trx('jobs').where({ id: jobId }).update({ stage: 'queued', percent: 0, message: 'Waiting for a worker' });
+    await trx('runs').where({ id: runId }).update({ status: 'queued', status_message: null });
+    return { jobId, existing: false };
   });
-  await trx('jobs').where({ id: jobId }).update({ stage: 'queued', percent: 0, message: 'Waiting for a worker' });
-  await trx('runs').where({ id: runId }).update({ status: 'queued', status_message: null });
-  return jobId;
 }

@@ -115,7 +115,7 @@ export async function uploadRun({ user, studyId, query, raw }: { user: Actor; st
         created_by: user.id,
       });
       await recordAudit({ actorId: user.id, action: 'run.upload', targetType: 'run', targetId: id, studyId, detail: { name: query.name, sha256: received.sha256, bytes: received.sizeBytes } }, trx);
-      if (query.queue) await queueDecomposition(trx, { runId: Number(id), studyId, createdBy: user.id });
+      if (query.queue) await queueDecomposition(trx, { runId: Number(id), createdBy: user.id });
       // the file goes into storage only once its row is written, inside the same transaction: a
       // failed move rolls the row back, a failed commit removes the file (catch below)
       await moveIntoStore(received.tempFile, key);

@@ -7,13 +7,13 @@
  * Subjects are shuffled with a seeded generator and dealt round-robin into k folds (k is lowered to the
  * number of subjects when there are fewer).
  */
-import { createPrng } from '@/lib/agreement';
+import { createRng } from '@/lib/random';
 
 /** fold[i] ∈ 0..k−1 for each row; rows with the same subject share a fold. */
 export function subjectFolds(subjects: readonly string[], k: number, seed = 1): { fold: number[]; k: number } {
   const unique = [...new Set(subjects)].sort();
   const folds = Math.max(1, Math.min(k, unique.length));
-  const rng = createPrng(seed);
+  const rng = createRng(seed, 'golden-xor'); // the folds stored model evaluations were made with
   for (let i = unique.length - 1; i > 0; i--) {
     const j = rng.int(i + 1);
     [unique[i], unique[j]] = [unique[j]!, unique[i]!];

@@ -1,7 +1,8 @@
 // Agreement bench: studyAgreement on 200 runs × 60 components × 3 raters (6 raters in the study,
 // 3 per run, ~2% missing votes) with 1000 bootstrap resamples of the headline statistics. Target ≤ 1 s.
 import { performance } from 'node:perf_hooks';
-import { createPrng, studyAgreement, type StudyItem } from '@/lib/agreement';
+import { studyAgreement, type StudyItem } from '@/lib/agreement';
+import { createRng } from '@/lib/random';
 
 const RUNS = 200;
 const COMPONENTS = 60;
@@ -9,7 +10,7 @@ const RATERS = ['ana', 'ben', 'chen', 'dara', 'eli', 'fay'];
 const LABELS = ['signal', 'noise', 'uncertain'] as const;
 
 function makeItems(seed: number): StudyItem[] {
-  const rng = createPrng(seed);
+  const rng = createRng(seed, 'golden-xor');
   const items: StudyItem[] = [];
   for (let run = 0; run < RUNS; run++) {
     const pool = [...RATERS];

@@ -41,7 +41,7 @@ export async function main(): Promise<void> {
   const { generatePhantom, phantomToNiftiInput } = await import('@/lib/phantom');
   const { writeNiftiFile } = await import('@/lib/nifti');
   const { ensureDirFor, newKey } = await import('@/lib/storage');
-  const { enqueueDecomposition } = await import('@/lib/jobs/kinds/decompose');
+  const { queueDecomposition } = await import('@/lib/runs/queue-job');
 
   const slurmWasRunning = (() => {
     try {
@@ -68,7 +68,7 @@ export async function main(): Promise<void> {
       await db('jobs').del();
       const load0 = loadavg()[0]!;
       const t0 = performance.now();
-      for (const runId of runIds) await enqueueDecomposition(db, { runId });
+      for (const runId of runIds) await queueDecomposition(db, { runId });
       const code = await runWorker({ QUORUM_UPLOADS_DIR: uploads, QUORUM_DB_NAME: settings.database, ...env });
       const wall = (performance.now() - t0) / 1000;
       // from the first job's creation to the last one's completion, on the database's clock

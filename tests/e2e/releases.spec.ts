@@ -83,6 +83,19 @@ test('a lead releases the study, downloads the ZIP with a verified manifest, and
   await expect(page.getByTestId('print-report')).toBeVisible();
   await page.emulateMedia({ media: 'print' });
   await expect(page.getByTestId('print-report')).toBeHidden();
+  const decisionsNow = (await page.getByTestId('report-decisions').textContent()) ?? '';
+  const ratersNow = (await page.getByTestId('report-raters').textContent()) ?? '';
+
+  // the release's own report shows the statistics its release job stored: nothing changed since, so
+  // they are the figures of the current state
+  await page.emulateMedia({ media: 'screen' });
+  await releases.open(studyId);
+  await page.getByRole('link', { name: 'Report for this release' }).first().click();
+  await expect(page.getByTestId('report-scope')).toContainText('Release version 1');
+  await expect(page.getByTestId('report-runs')).toHaveText('1');
+  await expect(page.getByTestId('report-decisions')).toHaveText(decisionsNow);
+  await expect(page.getByTestId('report-raters')).toHaveText(ratersNow);
+  await expect(page.getByTestId('methods-paragraph')).toContainText('1000 resamples, seed 1');
 });
 
 test('an observer sees the release and its checksums but no Release action', async ({ page }) => {

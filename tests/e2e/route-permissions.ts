@@ -89,6 +89,7 @@ export const ROUTES: RouteCase[] = [
   // releases and exports (addresses of rows that do not exist: allowed roles get 404, never a write)
   { file: 'studies/[id]/releases/route.ts', method: 'GET', url: '/api/studies/999999/releases', allowed: ['admin', 'lead', 'observer'] },
   { file: 'studies/[id]/releases/route.ts', method: 'POST', url: '/api/studies/999999/releases', allowed: ['admin', 'lead'] },
+  { file: 'studies/[id]/releases/jobs/[jobId]/route.ts', method: 'GET', url: '/api/studies/999999/releases/jobs/1', allowed: ['admin', 'lead', 'observer'] },
   { file: 'releases/[releaseId]/route.ts', method: 'GET', url: '/api/releases/999999', allowed: ['admin', 'lead', 'observer'] },
   { file: 'releases/[releaseId]/archive/route.ts', method: 'GET', url: '/api/releases/999999/archive', allowed: ['admin', 'lead', 'observer'] },
   { file: 'releases/[releaseId]/files/[name]/route.ts', method: 'GET', url: '/api/releases/999999/files/manifest.json', allowed: ['admin', 'lead', 'observer'] },

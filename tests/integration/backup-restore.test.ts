@@ -26,7 +26,8 @@ const { migrationSource } = await import('../../knexfile');
 const { db, closeDb } = await import('@/lib/db/knex');
 const { seedDemo } = await import('@/db/seeds/demo');
 const { createReadyRun } = await import('../e2e/helpers/ready-run');
-const { createRelease } = await import('@/lib/releases/create-release');
+const { requestRelease } = await import('@/lib/releases/create-release');
+const { runReleaseJobs } = await import('./helpers/release-jobs');
 
 const root = path.resolve(import.meta.dirname, '../..');
 const run = promisify(execFile);
@@ -62,7 +63,8 @@ beforeAll(async () => {
     await db('decisions').insert({ component_id: componentId, run_id: ready.runId, label, noise_kind: label === 'noise' ? 'motion' : null, method: 'unanimous' });
   }
   await db('assignments').where({ run_id: ready.runId }).update({ submitted_at: db.fn.now(3) });
-  await createRelease({ user: { id: u('lead'), role: 'lead', name: 'Priya Nandakumar' }, studyId: seeded.studyId, runId: ready.runId, notes: 'backup test' });
+  await requestRelease({ user: { id: u('lead'), role: 'lead', name: 'Priya Nandakumar' }, studyId: seeded.studyId, runId: ready.runId, notes: 'backup test' });
+  expect((await runReleaseJobs(db)).map((j) => j.outcome)).toEqual(['succeeded']);
 });
 
 afterAll(async () => {

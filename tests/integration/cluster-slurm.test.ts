@@ -12,7 +12,7 @@ import path from 'node:path';
 import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { closeDb, db, parseJson } from '@/lib/db/knex';
 import { cancelJob, getJob } from '@/lib/jobs';
-import { enqueueDecomposition } from '@/lib/jobs/kinds/decompose';
+import { queueDecomposition } from '@/lib/runs/queue-job';
 import { enqueueDenoise } from '@/lib/db/queries/exports';
 import type { DenoiseResult } from '@/lib/denoise/payload';
 import { pathFor } from '@/lib/storage';
@@ -91,7 +91,7 @@ beforeEach(async () => {
 describe.skipIf(skipWhy !== null)('decompose through Slurm', () => {
   it('a run is decomposed on the cluster and becomes rateable with exactly one set of components', { timeout: 300_000 }, async () => {
     const { runId } = await createPhantomRun(db, { size: 'tiny', raters: 2, raters_per_run: 2 });
-    const { jobId } = await enqueueDecomposition(db, { runId });
+    const { jobId } = await queueDecomposition(db, { runId });
     const w = slurmWorker();
     const exit = await w.exited;
     expect(exit.code, w.lines.join('\n')).toBe(0);
@@ -120,7 +120,7 @@ describe.skipIf(skipWhy !== null)('decompose through Slurm', () => {
 
   it('a cluster job killed by its time limit ends failed with that reason', { timeout: 400_000 }, async () => {
     const { runId } = await createPhantomRun(db, { size: 'tiny', raters: 1 });
-    const { jobId } = await enqueueDecomposition(db, { runId });
+    const { jobId } = await queueDecomposition(db, { runId });
     // Slurm's smallest limit is one minute; the gate never opens, so the limit ends the job
     const w = slurmWorker({ QUORUM_SLURM_TIME: '00:01:00', QUORUM_SLURM_SETUP: gateLine(path.join(uploads.dir, 'never')) });
     const exit = await w.exited;
@@ -137,7 +137,7 @@ describe.skipIf(skipWhy !== null)('decompose through Slurm', () => {
 
   it('cancelling the job in Quorum cancels the cluster job (scancel)', { timeout: 300_000 }, async () => {
     const { runId } = await createPhantomRun(db, { size: 'tiny', raters: 1 });
-    const { jobId } = await enqueueDecomposition(db, { runId });
+    const { jobId } = await queueDecomposition(db, { runId });
     const w = slurmWorker({ QUORUM_SLURM_SETUP: gateLine(path.join(uploads.dir, 'never')) });
     // the runs table's words while the cluster job runs: node and elapsed time
     const seen = await waitFor(async () => {
@@ -159,7 +159,7 @@ describe.skipIf(skipWhy !== null)('decompose through Slurm', () => {
 
   it('a worker killed while its cluster job runs: a new worker re-attaches, never submits again, and imports once', { timeout: 300_000 }, async () => {
     const { runId } = await createPhantomRun(db, { size: 'tiny', raters: 1 });
-    const { jobId } = await enqueueDecomposition(db, { runId });
+    const { jobId } = await queueDecomposition(db, { runId });
     const gate = path.join(uploads.dir, `gate-${jobId}`);
     const lease = { QUORUM_JOB_LEASE_MS: '1500', QUORUM_SLURM_SETUP: gateLine(gate) };
     const before = knownIds();
@@ -192,7 +192,7 @@ describe.skipIf(skipWhy !== null)('decompose through Slurm', () => {
 
   it('a job cancelled while its worker was dead: the next worker cancels the orphaned cluster job', { timeout: 300_000 }, async () => {
     const { runId } = await createPhantomRun(db, { size: 'tiny', raters: 1 });
-    const { jobId } = await enqueueDecomposition(db, { runId });
+    const { jobId } = await queueDecomposition(db, { runId });
     const env = { QUORUM_JOB_LEASE_MS: '1500', QUORUM_SLURM_SETUP: gateLine(path.join(uploads.dir, 'never')) };
     const first = slurmWorker(env, []);
     const r1 = await waitFor(async () => {
@@ -215,7 +215,7 @@ describe.skipIf(skipWhy !== null)('decompose through Slurm', () => {
 describe.skipIf(skipWhy !== null)('denoise through Slurm', () => {
   it('a denoise job run on the cluster stores the very file the worker itself writes', { timeout: 400_000 }, async () => {
     const { runId, studyId, leadId } = await createPhantomRun(db, { size: 'tiny', raters: 1 });
-    await enqueueDecomposition(db, { runId });
+    await queueDecomposition(db, { runId });
     const d = await slurmWorker().exited;
     expect(d.code).toBe(0);
     const dec = await db('decompositions').where({ run_id: runId, is_current: true }).first('id', 'k');
@@ -268,7 +268,7 @@ describe.skipIf(skipWhy !== null)('runs that arrive together go as one job array
     const runs = [];
     for (let i = 0; i < 3; i++) runs.push(await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 11 + i }));
     const jobIds = [];
-    for (const r of runs) jobIds.push((await enqueueDecomposition(db, { runId: r.runId })).jobId);
+    for (const r of runs) jobIds.push((await queueDecomposition(db, { runId: r.runId })).jobId);
     const w = slurmWorker(arrayEnv(3));
     const exit = await w.exited;
     expect(exit.code, w.lines.join('\n')).toBe(0);
@@ -301,8 +301,8 @@ describe.skipIf(skipWhy !== null)('runs that arrive together go as one job array
   it('cancelling one run of an array cancels only its task (scancel <array>_<task>)', { timeout: 400_000 }, async () => {
     const a = await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 21 });
     const b = await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 22 });
-    const ja = (await enqueueDecomposition(db, { runId: a.runId })).jobId;
-    const jb = (await enqueueDecomposition(db, { runId: b.runId })).jobId;
+    const ja = (await queueDecomposition(db, { runId: a.runId })).jobId;
+    const jb = (await queueDecomposition(db, { runId: b.runId })).jobId;
     const gate = path.join(uploads.dir, `gate-array-${ja}`);
     const w = slurmWorker(arrayEnv(2, { QUORUM_SLURM_SETUP: gateLine(gate) }));
     const running = await waitFor(async () => {
@@ -330,7 +330,7 @@ describe.skipIf(skipWhy !== null)('re-attaching to array tasks', () => {
   it('a worker killed while its array runs: the next worker re-attaches to each task, submits nothing, and imports each run once', { timeout: 400_000 }, async () => {
     const a = await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 31 });
     const b = await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 32 });
-    const jobIds = [(await enqueueDecomposition(db, { runId: a.runId })).jobId, (await enqueueDecomposition(db, { runId: b.runId })).jobId];
+    const jobIds = [(await queueDecomposition(db, { runId: a.runId })).jobId, (await queueDecomposition(db, { runId: b.runId })).jobId];
     const gate = path.join(uploads.dir, `gate-reattach-${jobIds[0]}`);
     const env = { QUORUM_SLURM_ARRAY_MAX: '2', QUORUM_SLURM_ARRAY_WAIT_MS: '600000', QUORUM_JOB_LEASE_MS: '1500', QUORUM_SLURM_SETUP: gateLine(gate) };
     const first = slurmWorker(env, []);

@@ -35,8 +35,8 @@ type Seen = { status: string; job: { stage: string | null; percent: number | nul
 describe('run progress while a worker decomposes', () => {
   it('says what the worker does (not "Waiting for a worker") and moves through the ICA stage iteration by iteration', async () => {
     await db('jobs').del();
-    const { runId, studyId, leadId } = await createPhantomRun(db, { size: 'tiny', raters: 1 });
-    const jobId = await db.transaction((trx) => queueDecomposition(trx, { runId, studyId, createdBy: leadId, options: { restarts: 3 } }));
+    const { runId, leadId } = await createPhantomRun(db, { size: 'tiny', raters: 1 });
+    const { jobId } = await queueDecomposition(db, { runId, createdBy: leadId, options: { restarts: 3 } });
     actAs(leadId);
     const ask = async (): Promise<Seen> => {
       const r = await callRoute(progressRoute.GET, { url: `/api/runs/${runId}/progress`, params: { id: String(runId) } });

@@ -38,6 +38,8 @@ const { claimJob, completeJob, getJob, reportProgress, requeueExpiredLeases } = 
 const { runClaimedJob } = await import('@/lib/jobs/runner');
 const { jobKinds } = await import('@/lib/jobs/kinds');
 const releasesRoute = await import('@/app/api/studies/[id]/releases/route');
+const releaseJobRoute = await import('@/app/api/studies/[id]/releases/jobs/[jobId]/route');
+const { buildRequestedRelease } = await import('./helpers/release-jobs');
 const releaseRoute = await import('@/app/api/releases/[releaseId]/route');
 const archiveRoute = await import('@/app/api/releases/[releaseId]/archive/route');
 const fileRoute = await import('@/app/api/releases/[releaseId]/files/[name]/route');
@@ -138,9 +140,21 @@ describe('a study release', () => {
     actAs(u('lead'));
     // a forged X-Forwarded-For without a trusted proxy must not reach the audit log (issue 13 item 10)
     delete process.env.QUORUM_TRUST_PROXY;
-    const res = await release({ notes: 'Friday release' }, { 'x-forwarded-for': '6.6.6.6' });
-    expect(res.status, JSON.stringify(res.json)).toBe(201);
+    const asked = await release({ notes: 'Friday release' }, { 'x-forwarded-for': '6.6.6.6' });
+    // the request only queues the release job (202); nothing is released until the worker ran it
+    expect(asked.status, JSON.stringify(asked.json)).toBe(202);
+    expect(await db('releases').where({ study_id: studyId }).count('* as n').first()).toMatchObject({ n: 0 });
+    const progress = await callRoute(releaseJobRoute.GET, { url: `/api/studies/${studyId}/releases/jobs/${asked.json.jobId}`, params: { id: String(studyId), jobId: String(asked.json.jobId) } });
+    expect(progress.json).toMatchObject({ status: 'queued', message: 'Waiting for a worker', release: null });
+    // a second click while it waits joins the same job: two clicks, one release
+    const again = await release({ notes: 'Friday release' });
+    expect(again.json).toEqual({ jobId: asked.json.jobId, existing: true });
+    const res = await buildRequestedRelease(db, asked);
+    expect(res.json.jobStatus, res.json.jobMessage).toBe('succeeded');
     expect(res.json.version).toBe(1);
+    expect(await db('releases').where({ study_id: studyId }).count('* as n').first()).toMatchObject({ n: 1 });
+    const finished = await callRoute(releaseJobRoute.GET, { url: `/api/studies/${studyId}/releases/jobs/${asked.json.jobId}`, params: { id: String(studyId), jobId: String(asked.json.jobId) } });
+    expect(finished.json).toMatchObject({ status: 'succeeded', release: { releaseId: res.json.releaseId, version: 1 } });
     releaseId = res.json.releaseId;
     manifest = (await db('releases').where({ id: releaseId }).first('manifest')).manifest;
     manifest = typeof manifest === 'string' ? JSON.parse(manifest) : manifest;
@@ -157,6 +171,23 @@ describe('a study release', () => {
     expect(audit.actor_id).toBe(u('lead'));
     expect(audit.study_id).toBe(studyId);
     expect(audit.ip).toBeNull(); // the forged X-Forwarded-For was not believed
+  });
+
+  it('ships each run\'s component maps with the checksum kept on the decomposition (hashed once when it had none) and stores the report it computed', async () => {
+    for (const run of runs) {
+      const entry = manifest.runs.find((r: any) => r.runId === run.runId);
+      const map = manifest.files.find((f: any) => f.runId === run.runId && f.name.endsWith('_desc-sources_components.nii.gz'));
+      const bytes = await readFile(pathFor(map.key));
+      // the test runs' decompositions were stored without a checksum: the release job hashed the file and kept it
+      const dec = await db('decompositions').where({ id: entry.decompositionId }).first('components_sha256', 'components_bytes');
+      expect(dec).toEqual({ components_sha256: sha(bytes), components_bytes: bytes.length });
+      expect(map).toMatchObject({ sha256: sha(bytes), bytes: bytes.length });
+    }
+    // the report page reads the statistics the job computed: the same report the release's JSON file holds
+    const file = manifest.files.find((f: any) => f.name.endsWith('_desc-agreement_report.json'));
+    const shipped = JSON.parse(await readFile(pathFor(file.key), 'utf8'));
+    const row = await db('releases').where({ id: releaseId }).first('agreement_report');
+    expect(JSON.parse(row.agreement_report)).toEqual(shipped.report);
   });
 
   it('writes per-run files whose content matches the database, with sidecars describing every column and the caution', async () => {
@@ -276,8 +307,8 @@ describe('a study release', () => {
     await db('decisions').where({ component_id: runs[1]!.componentIds[0] }).update({ label: 'noise', noise_kind: 'motion', method: 'override', reason: 'Lead: second look' });
     const detail1 = await callRoute(releaseRoute.GET, { url: `/api/releases/${releaseId}`, params: { releaseId: String(releaseId) } });
     expect(detail1.json.changedSince).toBe(1);
-    const res = await release();
-    expect(res.status).toBe(201);
+    const res = await buildRequestedRelease(db, await release());
+    expect(res.status).toBe(202);
     expect(res.json.version).toBe(2);
     const list = await callRoute(releasesRoute.GET, { url: `/api/studies/${studyId}/releases`, params: { id: String(studyId) } });
     expect(list.json.releases.map((r: any) => r.version)).toEqual([2, 1]);
@@ -287,7 +318,7 @@ describe('a study release', () => {
     expect(old.status).toBe(200);
     expect((await bytesOf(old)).length).toBeGreaterThan(1000);
     // a run release has its own version sequence
-    const runRelease = await release({ runId: runs[0]!.runId });
+    const runRelease = await buildRequestedRelease(db, await release({ runId: runs[0]!.runId }));
     expect(runRelease.json.version).toBe(1);
   });
 
@@ -524,6 +555,46 @@ describe('pipeline API with personal access tokens', () => {
     const revoked = await v1(token);
     expect(revoked.status).toBe(401);
     expect((await revoked.json()).error.message).toMatch(/revoked/);
+  });
+});
+
+describe('a release job that can no longer go through', () => {
+  const newest = async () => Number((await db('releases').where({ study_id: studyId, run_key: 0 }).max('version as v').first())?.v);
+
+  it('a decision reopened after the request: the job fails at once with the reason, and nothing is released', async () => {
+    actAs(u('lead'));
+    const before = await newest();
+    const asked = await release();
+    expect(asked.status, JSON.stringify(asked.json)).toBe(202);
+    const componentId = runs[0]!.componentIds[0]!;
+    const kept = await db('decisions').where({ component_id: componentId }).first('label', 'noise_kind', 'method');
+    await db('decisions').where({ component_id: componentId }).update({ label: null, noise_kind: null, method: 'pending' });
+    try {
+      const res = await buildRequestedRelease(db, asked);
+      expect(res.json.jobStatus).toBe('failed');
+      expect(res.json.jobMessage).toMatch(/have no final decision yet \(1 pending/);
+      expect(await db('jobs').where({ id: asked.json.jobId }).first('attempts')).toEqual({ attempts: 1 }); // not retried
+      expect(await newest()).toBe(before);
+    } finally {
+      await db('decisions').where({ component_id: componentId }).update(kept);
+    }
+  });
+
+  it('component maps whose size no longer matches the stored checksum: the job fails saying what to do', async () => {
+    actAs(u('lead'));
+    const before = await newest();
+    const dec = await db('decompositions').where({ run_id: runs[0]!.runId, is_current: true }).first('id', 'components_bytes');
+    expect(dec.components_bytes).not.toBeNull(); // kept by the first release
+    await db('decompositions').where({ id: dec.id }).update({ components_bytes: Number(dec.components_bytes) + 1 });
+    try {
+      const res = await buildRequestedRelease(db, await release());
+      expect(res.json.jobStatus).toBe('failed');
+      expect(res.json.jobMessage).toContain(`The component maps of run ${runs[0]!.runId} are ${dec.components_bytes} bytes on storage but ${Number(dec.components_bytes) + 1} bytes were stored`);
+      expect(res.json.jobMessage).toContain('decompose the run again');
+      expect(await newest()).toBe(before);
+    } finally {
+      await db('decompositions').where({ id: dec.id }).update({ components_bytes: dec.components_bytes });
+    }
   });
 });
 

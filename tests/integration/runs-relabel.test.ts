@@ -23,6 +23,7 @@ const { seedDemo } = await import('@/db/seeds/demo');
 const { createReadyRun } = await import('../e2e/helpers/ready-run');
 const runRoute = await import('@/app/api/runs/[id]/route');
 const releasesRoute = await import('@/app/api/studies/[id]/releases/route');
+const { buildRequestedRelease } = await import('./helpers/release-jobs');
 
 let users: Record<string, number>;
 let studyId: number;
@@ -92,8 +93,10 @@ describe('correcting the labels of one of two runs with the same entities', () =
     const detail = typeof audit.detail === 'string' ? JSON.parse(audit.detail) : audit.detail;
     expect(audit.actor_id).toBe(u('lead'));
     expect(detail).toEqual({ from: 'sub-twin01_ses-1_task-rest', to: 'sub-twin01_ses-1_task-rest_run-2' });
-    const rel = await release();
-    expect(rel.status, JSON.stringify(rel.json)).toBe(201);
+    // the request queues the release (202); the worker's job builds it
+    const rel = await buildRequestedRelease(db, await release());
+    expect(rel.status, JSON.stringify(rel.json)).toBe(202);
+    expect(rel.json.jobStatus, rel.json.jobMessage).toBe('succeeded');
     const manifest = (await db('releases').where({ id: rel.json.releaseId }).first('manifest')).manifest;
     const stems = (typeof manifest === 'string' ? JSON.parse(manifest) : manifest).runs.map((r: { stem: string }) => r.stem).sort();
     expect(stems).toEqual(['sub-twin01_ses-1_task-rest', 'sub-twin01_ses-1_task-rest_run-2']);

@@ -34,7 +34,7 @@ process.env.QUORUM_UPLOADS_DIR = mountPoint;
 const { db, closeDb, parseJson } = await import('@/lib/db/knex');
 const { recentStorageFaults } = await import('@/lib/db/queries/storage-use');
 const { createStudyWithRaters, writePhantomRunFile, createRun } = await import('./helpers/factories');
-const { enqueueDecomposition } = await import('@/lib/jobs/kinds/decompose');
+const { queueDecomposition } = await import('@/lib/runs/queue-job');
 const { claimJob, getJob } = await import('@/lib/jobs');
 const { jobKinds } = await import('@/lib/jobs/kinds');
 const { runClaimedJob } = await import('@/lib/jobs/runner');
@@ -97,7 +97,7 @@ describe.skipIf(!mounted)('storage faults', () => {
     const runId = await createRun(db, { studyId: study.studyId, createdBy: study.leadId, file });
     execFileSync('mount', ['-o', 'remount,ro', mountPoint]);
     const since = await lastAuditId();
-    const { jobId } = await enqueueDecomposition(db, { runId, maxAttempts: 1 });
+    const { jobId } = await queueDecomposition(db, { runId, maxAttempts: 1 });
     // jobs other test files left queued wait until this one is claimed
     await db('jobs').where({ status: 'queued' }).whereNot({ id: jobId }).update({ run_after: db.raw('NOW(3) + INTERVAL 1 DAY') });
     const job = await claimJob(db, { workerId: 'fault-test', leaseMs: 30_000, kinds: Object.keys(jobKinds) });

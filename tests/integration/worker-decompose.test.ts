@@ -2,12 +2,13 @@
 // idempotent re-runs, a lost lease, failures) and with worker processes (two workers, SIGKILL
 // mid-job, cancellation, SIGTERM release).
 import { existsSync } from 'node:fs';
-import { rm, stat, truncate, writeFile } from 'node:fs/promises';
+import { createHash } from 'node:crypto';
+import { readFile, rm, stat, truncate, writeFile } from 'node:fs/promises';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { blobToFloat32, closeDb, db, parseJson } from '@/lib/db/knex';
 import { cancelJob, claimJob, getJob, latestJobForRun, requeueExpiredLeases } from '@/lib/jobs';
 import { jobKinds } from '@/lib/jobs/kinds';
-import { enqueueDecomposition } from '@/lib/jobs/kinds/decompose';
+import { queueDecomposition } from '@/lib/runs/queue-job';
 import { runClaimedJob } from '@/lib/jobs/runner';
 import { readNiftiFile, writeNiftiFile } from '@/lib/nifti';
 import { generatePhantom, phantomToNiftiInput } from '@/lib/phantom';
@@ -45,10 +46,10 @@ async function currentDecompositions(runId: number) {
 describe('decompose in process', () => {
   it('decomposes a phantom run: run ready, k components with blobs and features, files on the run grid, raters assigned', async () => {
     const { runId, raterIds, file } = await createPhantomRun(db, { raters: 3, raters_per_run: 2 });
-    const { jobId, existing } = await enqueueDecomposition(db, { runId });
+    const { jobId, existing } = await queueDecomposition(db, { runId });
     expect(existing).toBe(false);
     expect((await db('runs').where({ id: runId }).first()).status).toBe('queued');
-    expect((await enqueueDecomposition(db, { runId })).jobId).toBe(jobId);
+    expect((await queueDecomposition(db, { runId })).jobId).toBe(jobId);
 
     expect(await runNext()).toBe('succeeded');
     const job = await getJob(db, jobId);
@@ -60,6 +61,9 @@ describe('decompose in process', () => {
     expect(more).toHaveLength(0);
     expect(d.k).toBeGreaterThanOrEqual(2);
     expect(job!.result).toMatchObject({ decompositionId: d.id, k: d.k });
+    // the component maps' SHA-256 and size are kept with the decomposition, so a release ships them without hashing again
+    const mapFile = await readFile(pathFor(d.components_key));
+    expect({ sha256: d.components_sha256, bytes: Number(d.components_bytes) }).toEqual({ sha256: createHash('sha256').update(mapFile).digest('hex'), bytes: mapFile.length });
     const params = parseJson<Record<string, unknown>>(d.parameters)!;
     expect(params).toMatchObject({ mask: 'automatic', dropVolumes: 0, varianceNorm: true, detrend: false, dimMethod: 'iid-mdl', seed: 1, contrast: 'logcosh' });
     const summary = parseJson<Record<string, unknown>>(d.summary)!;
@@ -107,7 +111,7 @@ describe('decompose in process', () => {
     );
     await writeFile(await ensureDirFor(motionKey), `# tx ty tz rx ry rz\n${rows.join('\n')}\n`);
     await db('runs').where({ id: runId }).update({ mask_key: maskKey, motion_key: motionKey, motion_order: 'tx,ty,tz,rx,ry,rz', motion_rotation_units: 'degrees' });
-    await enqueueDecomposition(db, { runId });
+    await queueDecomposition(db, { runId });
     expect(await runNext()).toBe('succeeded');
     const [d] = await currentDecompositions(runId);
     expect(d.k).toBe(5);
@@ -132,7 +136,7 @@ describe('decompose in process', () => {
     const motionKey = newKey('motion', '.txt');
     await writeFile(await ensureDirFor(motionKey), '0 0 0 0 0 0\n0 0 0 0 0 0\n');
     await db('runs').where({ id: runId }).update({ motion_key: motionKey, motion_order: 'rx,ry,rz,tx,ty,tz', motion_rotation_units: 'radians' });
-    const { jobId } = await enqueueDecomposition(db, { runId });
+    const { jobId } = await queueDecomposition(db, { runId });
     expect(await runNext()).toBe('failed');
     const job = await getJob(db, jobId);
     expect(job!.attempts).toBe(1);
@@ -146,7 +150,7 @@ describe('decompose in process', () => {
       const phantom = generatePhantom({ size: 'tiny', seed: 1 });
       phantom.data.fill(fill);
       await writeNiftiFile(pathFor((await db('runs').where({ id: runId }).first('file_key')).file_key), phantomToNiftiInput(phantom));
-      const { jobId } = await enqueueDecomposition(db, { runId, maxAttempts: 3 });
+      const { jobId } = await queueDecomposition(db, { runId, maxAttempts: 3 });
       expect(await runNext()).toBe('failed');
       const job = await getJob(db, jobId);
       expect(job).toMatchObject({ status: 'failed', attempts: 1 });
@@ -157,10 +161,10 @@ describe('decompose in process', () => {
 
   it('a second decomposition replaces the current one and keeps the assignments', async () => {
     const { runId } = await createPhantomRun(db, { raters: 2 });
-    await enqueueDecomposition(db, { runId });
+    await queueDecomposition(db, { runId });
     expect(await runNext()).toBe('succeeded');
     const [first] = await currentDecompositions(runId);
-    await enqueueDecomposition(db, { runId, decompositionOptions: { components: 4, seed: 7 } });
+    await queueDecomposition(db, { runId, options: { components: 4, seed: 7 } });
     expect(await runNext()).toBe('succeeded');
     const current = await currentDecompositions(runId);
     expect(current).toHaveLength(1);
@@ -174,7 +178,7 @@ describe('decompose in process', () => {
 
   it('a worker that lost its lease writes nothing; the worker that took over writes one set of components', async () => {
     const { runId } = await createPhantomRun(db);
-    const { jobId } = await enqueueDecomposition(db, { runId });
+    const { jobId } = await queueDecomposition(db, { runId });
     const slow = await claimJob(db, { workerId: 'slow', leaseMs: 10_000 });
     // the slow worker's lease expires and another worker takes the job
     await db('jobs').where({ id: jobId }).update({ lease_expires_at: db.raw('NOW(3) - INTERVAL 1 SECOND') });
@@ -195,7 +199,7 @@ describe('decompose in process', () => {
   it('a missing run file fails after the configured attempts with a readable message on the job and the run', async () => {
     const { runId, file } = await createPhantomRun(db);
     await rm(pathFor(file.fileKey));
-    const { jobId } = await enqueueDecomposition(db, { runId, maxAttempts: 2 });
+    const { jobId } = await queueDecomposition(db, { runId, maxAttempts: 2 });
     expect(await runNext()).toBe('retry');
     expect((await getJob(db, jobId))!.message).toMatch(/^Attempt 1 of 2 failed: The run's file is missing from storage/);
     expect(await runNext()).toBe('failed');
@@ -209,7 +213,7 @@ describe('decompose in process', () => {
 
   it('a run that no longer exists fails at once', async () => {
     const { runId } = await createPhantomRun(db);
-    const { jobId } = await enqueueDecomposition(db, { runId });
+    const { jobId } = await queueDecomposition(db, { runId });
     // a job whose run row vanished without the cascade (e.g. payload pointing elsewhere)
     await db('jobs').where({ id: jobId }).update({ payload: JSON.stringify({ runId: 2_000_000_000 }), run_id: null });
     expect(await runNext()).toBe('failed');
@@ -245,7 +249,7 @@ describe('worker processes', () => {
     const runs: number[] = [];
     for (let i = 0; i < 4; i++) {
       const { runId } = await createPhantomRun(db, { seed: 10 + i });
-      await enqueueDecomposition(db, { runId });
+      await queueDecomposition(db, { runId });
       runs.push(runId);
     }
     const w1 = spawnWorker({ uploadsDir: uploads.dir });
@@ -270,7 +274,7 @@ describe('worker processes', () => {
 
   it('a worker killed with SIGKILL mid-job: after the lease expires another worker finishes it once', async () => {
     const { runId } = await createPhantomRun(db, { size: 'small' });
-    const { jobId } = await enqueueDecomposition(db, { runId });
+    const { jobId } = await queueDecomposition(db, { runId });
     const env = { QUORUM_JOB_LEASE_MS: '2000' };
     const victim = spawnWorker({ uploadsDir: uploads.dir, env });
     await waitFor(async () => {
@@ -298,9 +302,9 @@ describe('worker processes', () => {
     const bad = await createPhantomRun(db);
     const full = pathFor(bad.file.fileKey);
     await truncate(full, Math.floor((await stat(full)).size / 2));
-    const badJob = await enqueueDecomposition(db, { runId: bad.runId, maxAttempts: 2 });
+    const badJob = await queueDecomposition(db, { runId: bad.runId, maxAttempts: 2 });
     const cancelled = await createPhantomRun(db);
-    const cancelledJob = await enqueueDecomposition(db, { runId: cancelled.runId });
+    const cancelledJob = await queueDecomposition(db, { runId: cancelled.runId });
     expect(await cancelJob(db, cancelledJob.jobId)).toBe('cancelled');
 
     const w = spawnWorker({ uploadsDir: uploads.dir, env: { QUORUM_JOB_RETRY_BASE_MS: '0' } });
@@ -318,7 +322,7 @@ describe('worker processes', () => {
 
   it('SIGTERM releases the running job without counting the attempt', async () => {
     const { runId } = await createPhantomRun(db, { size: 'small' });
-    const { jobId } = await enqueueDecomposition(db, { runId });
+    const { jobId } = await queueDecomposition(db, { runId });
     const w = spawnWorker({ uploadsDir: uploads.dir, args: [] });
     await waitFor(async () => (await getJob(db, jobId))?.status === 'running', { everyMs: 10 });
     w.child.kill('SIGTERM');

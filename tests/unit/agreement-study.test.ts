@@ -2,15 +2,16 @@
 // (which are themselves checked against statsmodels 0.13.5 / numpy references and published examples).
 import { describe, expect, it } from 'vitest';
 import {
-  bootstrapTableStat, cohenKappa, createPrng, detection, fleissKappa, gwetAC1, krippendorffAlpha, pabak, percentAgreement,
+  bootstrapTableStat, cohenKappa, detection, fleissKappa, gwetAC1, krippendorffAlpha, pabak, percentAgreement,
   ratingsTableFromVotes, referenceConfusion, studyAgreement, type StudyItem, type Vote,
 } from '@/lib/agreement';
+import { createRng } from '@/lib/random';
 
 const LABELS = ['signal', 'noise', 'uncertain'];
 const RATERS = ['ana', 'ben', 'chen', 'dara'];
 
 function makeStudy(seed: number): StudyItem[] {
-  const rng = createPrng(seed);
+  const rng = createRng(seed, 'golden-xor');
   const items: StudyItem[] = [];
   for (let run = 0; run < 6; run++) {
     const panel = RATERS.filter((_, j) => j !== run % 4); // 3 of 4 raters per run

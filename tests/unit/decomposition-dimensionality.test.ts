@@ -6,7 +6,7 @@ import {
 } from '@/lib/decomposition/dimensionality';
 import { temporalCovariance } from '@/lib/decomposition/covariance';
 import { temporalPca } from '@/lib/decomposition/pca';
-import { gaussianSource } from '@/lib/decomposition/random';
+import { createRng } from '@/lib/random';
 import { KernelPool, sharedFloat32 } from '@/lib/decomposition/worker-pool';
 
 interface MinkaFixture {
@@ -18,7 +18,7 @@ const fixture = JSON.parse(readFileSync('tests/fixtures/decomposition/minka-mle.
 
 /** Eigenvalues of the sample covariance of k strong Gaussian sources + unit white noise in p dims, n samples. */
 async function knownRankSpectrum(p: number, k: number, n: number, seed: number): Promise<Float64Array> {
-  const g = gaussianSource(seed);
+  const g = createRng(seed, 'direct').gauss;
   const load = Array.from({ length: k }, () => Float64Array.from({ length: p }, () => 3 * g()));
   const x = sharedFloat32(p * n);
   for (let v = 0; v < n; v++) {

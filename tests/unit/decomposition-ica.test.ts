@@ -4,7 +4,7 @@ import { amariIndex } from '@/lib/decomposition/amari';
 import { temporalCovariance } from '@/lib/decomposition/covariance';
 import { fastIca, symmetricDecorrelation, type Contrast } from '@/lib/decomposition/fastica';
 import { temporalPca } from '@/lib/decomposition/pca';
-import { gaussianSource, mulberry32 } from '@/lib/decomposition/random';
+import { createRng } from '@/lib/random';
 import { whiten, whitenedCovariance } from '@/lib/decomposition/whitening';
 import { KernelPool, sharedFloat32 } from '@/lib/decomposition/worker-pool';
 import { gramChunk } from '@/lib/decomposition/kernels';
@@ -21,7 +21,7 @@ afterAll(async () => {
 
 /** k sources × V samples: alternately Laplace (super-Gaussian) and uniform (sub-Gaussian), unit variance. */
 function sources(k: number, V: number, seed: number): Float64Array {
-  const u = mulberry32(seed);
+  const u = createRng(seed, 'direct').next;
   const s = new Float64Array(k * V);
   for (let i = 0; i < k; i++) {
     for (let v = 0; v < V; v++) {
@@ -36,7 +36,7 @@ function sources(k: number, V: number, seed: number): Float64Array {
 
 /** x = A·s (+ an offset per row), time-major Float32Array T × V shared; returns A (T × k). */
 function mix(s: Float64Array, k: number, V: number, T: number, seed: number): { x: Float32Array; a: Float64Array } {
-  const g = gaussianSource(seed);
+  const g = createRng(seed, 'direct').gauss;
   const a = new Float64Array(T * k);
   for (let i = 0; i < T * k; i++) a[i] = g();
   const x = sharedFloat32(T * V);
@@ -141,7 +141,7 @@ describe('FastICA (Hyvärinen 1999; Hyvärinen & Oja 2000) recovers known Laplac
 describe('Gram kernel', () => {
   it('matches a naive double loop for T not a multiple of 4, across voxel blocks', () => {
     const T = 7, V = 700;
-    const u = mulberry32(9);
+    const u = createRng(9, 'direct').next;
     const x = new Float32Array(T * V).map(() => u() - 0.5);
     const out = new Float64Array(T * T);
     gramChunk(x, T, V, 0, 300, out);

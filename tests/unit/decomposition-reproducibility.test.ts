@@ -3,12 +3,12 @@
 import { describe, expect, it } from 'vitest';
 import { symmetricDecorrelation } from '@/lib/decomposition/fastica';
 import { iidSubsampling } from '@/lib/decomposition/iid-subsampling';
-import { gaussianSource } from '@/lib/decomposition/random';
+import { createRng } from '@/lib/random';
 import { clusterEstimates, matchToCentrotypes } from '@/lib/decomposition/reproducibility';
 import { gaussianKernel, smoothSeparable } from '@/lib/phantom';
 
 function randomOrthogonal(k: number, seed: number): Float64Array {
-  const g = gaussianSource(seed);
+  const g = createRng(seed, 'direct').gauss;
   return symmetricDecorrelation(Float64Array.from({ length: k * k }, () => g()), k);
 }
 
@@ -66,7 +66,7 @@ describe('iidSubsampling', () => {
     const dims: [number, number, number] = [40, 40, 24];
     const n = dims[0] * dims[1] * dims[2];
     const T = 12;
-    const g = gaussianSource(5);
+    const g = createRng(5, 'direct').gauss;
     const kernel = gaussianKernel(1);
     const x = new Float32Array(T * n);
     for (let t = 0; t < T; t++) {

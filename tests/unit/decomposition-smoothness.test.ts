@@ -1,11 +1,11 @@
 // Spatial smoothness estimate behind the effective sample count of the dimensionality estimate.
 import { describe, expect, it } from 'vitest';
 import { estimateSmoothness } from '@/lib/decomposition/smoothness';
-import { gaussianSource } from '@/lib/decomposition/random';
+import { createRng } from '@/lib/random';
 
 /** White noise volumes smoothed by a separable sampled Gaussian of SD sigma voxels (x fastest). */
 function smoothNoise(n: number, T: number, sigma: number, seed: number): Float32Array {
-  const g = gaussianSource(seed);
+  const g = createRng(seed, 'direct').gauss;
   const r = Math.ceil(4 * sigma);
   const kern = Array.from({ length: 2 * r + 1 }, (_, i) => Math.exp(-((i - r) ** 2) / (2 * sigma * sigma)));
   const nv = n * n * n;
@@ -45,7 +45,7 @@ describe('estimateSmoothness', () => {
   });
   it('gives FWHM 1 and V effective samples for white noise', () => {
     const n = 16, T = 4;
-    const g = gaussianSource(2);
+    const g = createRng(2, 'direct').gauss;
     const V = n * n * n;
     const x = Float32Array.from({ length: T * V }, () => g());
     const est = estimateSmoothness(x, T, V, Int32Array.from({ length: V }, (_, i) => i), [n, n, n]);

@@ -1,5 +1,5 @@
 // Synthetic runs for the decomposition tests (invented data; not a check value).
-import { gaussianSource, mulberry32 } from '@/lib/decomposition/random';
+import { createRng } from '@/lib/random';
 import type { RunImage } from '@/lib/decomposition/data-matrix';
 
 export interface SyntheticRun {
@@ -36,8 +36,8 @@ export function syntheticRun(opts: { dims?: [number, number, number]; T?: number
   const T = opts.T ?? 80;
   const k = opts.k ?? 4;
   const noise = opts.noise ?? 0.5;
-  const u = mulberry32(opts.seed ?? 7);
-  const g = gaussianSource((opts.seed ?? 7) + 1000);
+  const u = createRng(opts.seed ?? 7, 'direct').next;
+  const g = createRng((opts.seed ?? 7) + 1000, 'direct').gauss;
   const [nx, ny, nz] = dims;
   const n = nx * ny * nz;
   const maps: Float64Array[] = [];

@@ -1,7 +1,7 @@
 // Subject-wise cross-validation of the suggestion model: no subject in both the training and the
 // test part of any split; imputation of undefined features stated and learnt from training rows only.
 import { describe, expect, it } from 'vitest';
-import { createPrng } from '@/lib/agreement';
+import { createRng } from '@/lib/random';
 import { columnNames, defineFeatures, toRow } from '@/lib/suggestions/feature-vector';
 import { outOfFold, trainSuggestionModel, type TrainingRow } from '@/lib/suggestions/cross-validate';
 import { predictNoise } from '@/lib/suggestions/model';
@@ -9,7 +9,7 @@ import { subjectFolds } from '@/lib/suggestions/subject-folds';
 
 /** Invented rows: noise has high-frequency power and edge fraction, signal a low one; a few nulls. */
 function rows(subjects: number, perSubject: number, seed = 3): TrainingRow[] {
-  const rng = createPrng(seed);
+  const rng = createRng(seed, 'golden-xor');
   const out: TrainingRow[] = [];
   for (let s = 0; s < subjects; s++) {
     for (let c = 0; c < perSubject; c++) {
@@ -99,7 +99,7 @@ describe('trainSuggestionModel', () => {
 
 describe('feature importance', () => {
   it('the forest ranks the one informative feature first and its weights sum to 1', () => {
-    const rng = createPrng(9);
+    const rng = createRng(9, 'golden-xor');
     const data: TrainingRow[] = Array.from({ length: 160 }, (_, i) => {
       const noise = i % 2 === 0;
       return { subject: `s${i % 8}`, label: noise ? 'noise' : 'signal', features: { spikeScore: (noise ? 5 : 2) + rng.next(), kurtosis: rng.next(), skewness: rng.next() } };

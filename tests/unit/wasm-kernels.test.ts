@@ -6,14 +6,14 @@ import { gramChunk, icaChunk, projectChunk, unmixChunk } from '@/lib/decompositi
 import { wasmGramChunk, wasmIcaChunk, wasmMemory, wasmProjectChunk, wasmUnmixChunk } from '@/lib/decomposition/wasm-kernels';
 import { KernelPool, kernelInstance, sharedFloat32 } from '@/lib/decomposition/worker-pool';
 import { fastIca, symmetricDecorrelation } from '@/lib/decomposition/fastica';
-import { gaussianSource, mulberry32 } from '@/lib/decomposition/random';
+import { createRng } from '@/lib/random';
 // @ts-expect-error — plain ES module without types
 import { compileKernels } from '../../scripts/build-kernels.mjs';
 
 const ex = kernelInstance();
 
 function randomF32(n: number, seed: number): Float32Array {
-  const g = gaussianSource(seed);
+  const g = createRng(seed, 'direct').gauss;
   return Float32Array.from({ length: n }, () => g());
 }
 function maxAbsDiff(a: ArrayLike<number>, b: ArrayLike<number>): number {
@@ -131,7 +131,7 @@ describe('FastICA with WebAssembly kernels', () => {
 
   // Whitened mixture of k Laplacian (super-Gaussian) sources over V voxels.
   function mixture(k: number, V: number): Float32Array {
-    const rnd = mulberry32(11);
+    const rnd = createRng(11, 'direct').next;
     const z = sharedFloat32(k * V);
     for (let i = 0; i < k * V; i++) {
       const u = rnd() - 0.5;

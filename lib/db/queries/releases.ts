@@ -72,6 +72,9 @@ export type ExportRun = {
   parameters: Record<string, unknown>;
   summary: Record<string, unknown>;
   componentsKey: string | null;
+  /** SHA-256 and size of the component-map file, stored with the decomposition (null for older ones). */
+  componentsSha256: string | null;
+  componentsBytes: number | null;
   maskKey: string | null;
   k: number;
   components: {
@@ -94,7 +97,7 @@ export async function loadExportRuns(s: ReleaseScope, q: Knex | Knex.Transaction
     .orderBy(['r.sub', 'r.ses', 'r.task', 'r.run_label', 'r.id'])
     .select(
       'r.id as runId', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel', 'r.tr_seconds as trSeconds', 'r.motion_key as motionKey',
-      'd.id as decompositionId', 'd.parameters', 'd.summary', 'd.components_key as componentsKey', 'd.mask_key as maskKey', 'd.k',
+      'd.id as decompositionId', 'd.parameters', 'd.summary', 'd.components_key as componentsKey', 'd.components_sha256 as componentsSha256', 'd.components_bytes as componentsBytes', 'd.mask_key as maskKey', 'd.k',
     );
   if (!runs.length) return [];
   const decIds = runs.map((r: { decompositionId: number }) => r.decompositionId);
@@ -131,6 +134,8 @@ export async function loadExportRuns(s: ReleaseScope, q: Knex | Knex.Transaction
     parameters: parseJson<Record<string, unknown>>(r.parameters, {}) ?? {},
     summary: parseJson<Record<string, unknown>>(r.summary, {}) ?? {},
     componentsKey: (r.componentsKey as string) ?? null,
+    componentsSha256: (r.componentsSha256 as string) ?? null,
+    componentsBytes: r.componentsBytes == null ? null : Number(r.componentsBytes),
     maskKey: (r.maskKey as string) ?? null,
     k: Number(r.k),
     components: comps
@@ -233,4 +238,41 @@ export async function changedSinceRelease({ releaseId }: { releaseId: number }):
     })
     .first(db.raw('COUNT(*) as n'));
   return Number(row?.n ?? 0);
+}
+
+/** Stores the component-map checksum of a decomposition stored before checksums were kept. */
+export async function storeMapChecksum(decompositionId: number, c: { sha256: string; bytes: number }, q: Knex | Knex.Transaction = db): Promise<void> {
+  await q('decompositions').where({ id: decompositionId }).whereNull('components_sha256').update({ components_sha256: c.sha256, components_bytes: c.bytes });
+}
+
+/** The open (queued or running) release job of a scope (of any scope when runId is undefined), if any: a second request joins it. */
+export async function openReleaseJob({ studyId, runId }: ReleaseScope, q: Knex | Knex.Transaction = db): Promise<number | null> {
+  const rows = await q('jobs').where({ kind: 'release', study_id: studyId }).whereIn('status', ['queued', 'running']).orderBy('id').select('id', 'payload');
+  const same = rows.find((r: { payload: unknown }) => runId === undefined || (parseJson<{ runId?: number | null }>(r.payload, {})?.runId ?? null) === (runId ?? null));
+  return same ? Number(same.id) : null;
+}
+
+/** Locks the study row for the rest of the transaction (releases of one study are requested one at a time). */
+export async function lockStudy(trx: Knex.Transaction, studyId: number): Promise<boolean> {
+  return Boolean(await trx('studies').where({ id: studyId }).forUpdate().first('id'));
+}
+
+/** The agreement report a release's job computed (JSON of lib/reports/agreement-report.ts), or null for older releases. */
+export async function storedAgreementReport({ releaseId }: { releaseId: number }): Promise<unknown | null> {
+  const row = await db('releases').where({ id: releaseId }).first('agreement_report');
+  return row?.agreement_report ? parseJson(row.agreement_report, null) : null;
+}
+
+/** A release job of a study as its page follows it (null when there is no such job). */
+export async function findReleaseJob({ studyId, jobId }: { studyId: number; jobId: number }) {
+  const row = await db('jobs').where({ id: jobId, kind: 'release', study_id: studyId }).first('id', 'status', 'stage', 'percent', 'message', 'result');
+  if (!row) return null;
+  return {
+    jobId: Number(row.id),
+    status: String(row.status) as 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled',
+    stage: (row.stage as string | null) ?? null,
+    percent: row.percent == null ? null : Number(row.percent),
+    message: (row.message as string | null) ?? null,
+    release: row.status === 'succeeded' ? parseJson<{ releaseId: number; version: number; files: number }>(row.result, null) : null,
+  };
 }

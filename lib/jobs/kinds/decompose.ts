@@ -7,7 +7,6 @@
  * Progress stages: reading, masking, pca, ica, features, writing.
  */
 import { readFile, stat } from 'node:fs/promises';
-import type { Knex } from 'knex';
 import { dropInitialVolumes, parseMotionFile, type MotionOrder, type MotionParams } from '@/lib/decomposition/motion';
 import { decomposeRun, type DecomposeOptions } from '@/lib/decomposition/pipeline';
 import { DEFAULT_DIM_METHOD } from '@/lib/decomposition/dimensionality';
@@ -24,7 +23,6 @@ import { pathFor, removeKey } from '@/lib/storage';
 import { storageFaultKind } from '@/lib/storage/faults';
 import { JobError, PermanentJobError } from '../errors';
 import { decomposePayloadSchema, type DecomposePayload } from '../payloads';
-import { enqueueJob } from '../queue';
 import { defineJobKind } from '../types';
 import { decomposeOnSlurm } from '../executors/decompose-on-slurm';
 import { executorName, slurmSettings } from '../executors/settings';
@@ -295,34 +293,3 @@ export const decomposeKind = defineJobKind({
   },
 });
 
-/**
- * For route handlers: queues a decomposition of a run and sets the run's status to queued, in one
- * transaction. When a decompose job for the run is already queued or running, returns that job's
- * id instead of adding another.
- */
-export async function enqueueDecomposition(
-  db: Knex,
-  opts: { runId: number; createdBy?: number | null; decompositionOptions?: DecomposePayload['decompositionOptions']; priority?: number; maxAttempts?: number },
-): Promise<{ jobId: number; existing: boolean }> {
-  return db.transaction(async (trx) => {
-    const run = await trx('runs').select('id', 'study_id').where({ id: opts.runId }).forUpdate().first();
-    if (!run) throw new PermanentJobError(`Run ${opts.runId} does not exist.`);
-    const active = await trx('jobs')
-      .select('id')
-      .where({ run_id: opts.runId, kind: 'decompose' })
-      .whereIn('status', ['queued', 'running'])
-      .first();
-    if (active) return { jobId: Number(active.id), existing: true };
-    const jobId = await enqueueJob(trx, {
-      kind: 'decompose',
-      payload: { runId: opts.runId, ...(opts.decompositionOptions ? { decompositionOptions: opts.decompositionOptions } : {}) },
-      runId: opts.runId,
-      studyId: Number(run.study_id),
-      createdBy: opts.createdBy ?? null,
-      priority: opts.priority,
-      maxAttempts: opts.maxAttempts,
-    });
-    await trx('runs').where({ id: opts.runId }).update({ status: 'queued', status_message: null });
-    return { jobId, existing: false };
-  });
-}

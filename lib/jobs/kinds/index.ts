@@ -2,6 +2,7 @@
 import type { JobKind } from '../types';
 import { decomposeKind } from './decompose';
 import { denoiseKind } from './denoise';
+import { releaseKind } from './release';
 import { notifyAssignmentsKind } from './notify-assignments';
 import { notifyVotesCompleteKind } from './notify-votes-complete';
 import { notifyOverdueKind } from './notify-overdue';
@@ -13,6 +14,7 @@ import { recalibrateKind } from './recalibrate';
 export const jobKinds: Readonly<Record<string, JobKind>> = {
   [decomposeKind.kind]: decomposeKind as unknown as JobKind,
   [denoiseKind.kind]: denoiseKind as unknown as JobKind,
+  [releaseKind.kind]: releaseKind as unknown as JobKind,
   [notifyAssignmentsKind.kind]: notifyAssignmentsKind as unknown as JobKind,
   [notifyVotesCompleteKind.kind]: notifyVotesCompleteKind as unknown as JobKind,
   [notifyOverdueKind.kind]: notifyOverdueKind as unknown as JobKind,

@@ -22,9 +22,10 @@ export class ReleasesPage {
     await expect(dialog).toBeHidden();
   }
 
+  /** Releases and waits until the worker's release job has built it (the page follows the job). */
   async release() {
     await this.clickReleaseAndConfirm();
-    await expect(this.page.getByTestId('release-message')).toContainText('Released as version');
+    await expect(this.page.getByTestId('release-message')).toContainText('Released as version', { timeout: 60_000 });
   }
 
   /** Clicks "Download ZIP" of a version and saves the file; returns its path. */

@@ -5,7 +5,7 @@ import { requirePageUser } from '@/lib/auth/session';
 import { can } from '@/lib/auth/permissions';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { leadsStudy } from '@/lib/auth/permissions';
-import { changedSinceRelease, listReleases, releaseReadiness, runReadiness } from '@/lib/db/queries/releases';
+import { changedSinceRelease, listReleases, openReleaseJob, releaseReadiness, runReadiness } from '@/lib/db/queries/releases';
 import { bidsName, distinctRunNames } from '@/lib/bids';
 import { refusalOf } from '@/lib/releases/create-release';
 import { Panel } from '@/components/ui/panel';
@@ -29,6 +29,8 @@ export default async function ReleasesPage({ params }: { params: Promise<{ id: s
   const perRun = isLead ? distinctRunNames((await runReadiness({ studyId })).map((r) => ({ runId: r.runId, name: bidsName(r), components: r.components, waiting: r.waiting }))) : [];
   const latestStudy = releases.find((r) => r.runId == null);
   const changed = latestStudy ? await changedSinceRelease({ releaseId: latestStudy.id }) : 0;
+  // a release the worker is still building (asked for before this page was opened) is followed too
+  const building = isLead ? await openReleaseJob({ studyId }) : null;
 
   return (
     <div className="flex flex-col gap-6">
@@ -50,7 +52,7 @@ export default async function ReleasesPage({ params }: { params: Promise<{ id: s
           {readiness.notReady.length ? ` ${readiness.notReady.length} run(s) are not ready and will not be part of a release.` : ''}
           {latestStudy && changed ? ` ${changed} decision(s) changed since version ${latestStudy.version}: release again to publish them.` : ''}
         </p>
-        {isLead ? <ReleaseAction studyId={studyId} studyName={access.name} refusal={refusal} pending={readiness.pending + readiness.undecided} runs={perRun} studyRuns={readiness.runs} studyComponents={readiness.components} /> : <p className="text-sm text-ink-muted">Only the study&apos;s leads release.</p>}
+        {isLead ? <ReleaseAction studyId={studyId} studyName={access.name} refusal={refusal} pending={readiness.pending + readiness.undecided} runs={perRun} studyRuns={readiness.runs} studyComponents={readiness.components} buildingJobId={building} /> : <p className="text-sm text-ink-muted">Only the study&apos;s leads release.</p>}
       </Panel>
 
       {releases.length === 0 ? (

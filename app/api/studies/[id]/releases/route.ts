@@ -3,7 +3,7 @@ import { auditAddress } from '@/lib/auth/client-address';
 import { handler } from '@/lib/api/handler';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { listReleases, releaseReadiness } from '@/lib/db/queries/releases';
-import { createRelease, publicManifest, refusalOf } from '@/lib/releases/create-release';
+import { publicManifest, refusalOf, requestRelease } from '@/lib/releases/create-release';
 import { notFound } from '@/lib/errors';
 import { createReleaseSchema } from './schema';
 
@@ -22,8 +22,10 @@ export const GET = handler({ permission: 'releases.read', params, what: 'The rel
   };
 });
 
-// POST /api/studies/:id/releases – a lead releases the study (or one run with {runId}); 409 with the reason when decisions are incomplete
+// POST /api/studies/:id/releases – a lead releases the study (or one run with {runId}): 202 with the
+// release job's id (the worker builds it; GET …/releases/jobs/:jobId follows it), the open job of the
+// same scope when there is one; 409 with the reason when decisions are incomplete
 export const POST = handler({ permission: 'releases.create', params, body: createReleaseSchema, what: 'The release' }, async ({ user, params, body, req }) => {
-  const created = await createRelease({ user, studyId: params.id, runId: body.runId ?? null, notes: body.notes || null, ip: auditAddress(req) });
-  return Response.json({ releaseId: created.releaseId, version: created.version, files: created.manifest.files.length }, { status: 201 });
+  const { jobId, existing } = await requestRelease({ user, studyId: params.id, runId: body.runId ?? null, notes: body.notes || null, ip: auditAddress(req) });
+  return Response.json({ jobId, existing }, { status: 202 });
 });
