@@ -53,6 +53,13 @@ export function refusalOf(r: Readiness, studyId: number): string | null {
       `Decide them in Reconcile (/studies/${studyId}/reconcile) or wait for the raters, then release.`
     );
   }
+  if (r.reopened.length > 0) {
+    const who = r.reopened.map((x) => `${x.raterName} (run ${x.runId})`).join(', ');
+    return (
+      `A lead reopened ${r.reopened.length === 1 ? 'a run' : 'runs'} for ${who}, who ${r.reopened.length === 1 ? 'has' : 'have'} not submitted again: ` +
+      'their votes may still change the decisions. Release once they have submitted, or take the run from them on the study page.'
+    );
+  }
   return null;
 }
 

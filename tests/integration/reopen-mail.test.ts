@@ -2,7 +2,8 @@
  * A lead reopens a rater's submitted run: the rater is told by e-mail (lib/assignments/
  * reopen-assignment.ts queues it in the reopening's transaction; the worker's send-mail job sends it
  * through the local mail catcher). The mail names the run, the lead and the reason and links to the
- * rating desk. A deactivated rater gets none; a refused reopening queues none.
+ * rating desk. A deactivated rater gets none; a refused reopening queues none. While a reopened
+ * rater has not submitted again, the run cannot be released (their votes may still change).
  */
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import type { ChildProcess } from 'node:child_process';
@@ -32,10 +33,13 @@ const { createStudyWithRaters } = await import('./helpers/factories');
 const { createReadyRun } = await import('../e2e/helpers/ready-run');
 const { startMailCatcher } = await import('./helpers/mail-catcher');
 const reopenRoute = await import('@/app/api/runs/[id]/assignments/[raterId]/reopen/route');
+const { releaseReadiness } = await import('@/lib/db/queries/releases');
+const { refusalOf, requestRelease } = await import('@/lib/releases/create-release');
 
 let server: ChildProcess;
 let mailDir: string;
 let leadId: number;
+let studyId: number;
 let raters: number[];
 let run: Awaited<ReturnType<typeof createReadyRun>>;
 const quiet = { info() {}, warn() {}, error() {} };
@@ -47,6 +51,7 @@ beforeAll(async () => {
   process.env.SMTP_PORT = String(port);
   const s = await createStudyWithRaters(db, { raters: 2, raters_per_run: 2 });
   leadId = s.leadId;
+  studyId = s.studyId;
   raters = s.raterIds;
   run = await createReadyRun(db, { studyId: s.studyId, createdBy: leadId, raterIds: raters, seed: 41, components: 4, sub: 'reopenmail' });
   await db('assignments').where({ run_id: run.runId }).update({ submitted_at: db.fn.now(3), first_submitted_at: db.fn.now(3) });
@@ -95,5 +100,18 @@ describe('reopening a submitted run', () => {
     await db('users').where({ id: raters[1] }).update({ active: false });
     expect((await reopen(raters[1], 'One more look at the motion components.')).status).toBe(200);
     expect((await outboxFor(raters[1])).rows).toHaveLength(0);
+  });
+
+  it('a run reopened for a rater who has not submitted again cannot be released; once they submit, that reason is gone', async () => {
+    const refusal = () => releaseReadiness({ studyId, runId: run.runId }).then((r) => refusalOf(r, studyId));
+    // every component decided by the lead, so only the reopening stands in the way
+    await db('decisions').where({ run_id: run.runId }).delete();
+    await db('decisions').insert(run.componentIds.map((c) => ({ component_id: c, run_id: run.runId, label: 'signal', method: 'override', decided_by: leadId, decided_at: db.fn.now(3) })));
+    expect(await refusal()).toMatch(/reopened runs for .*\(run \d+\), .*\(run \d+\), who have not submitted again/);
+    const lead = await db('users').where({ id: leadId }).first('id', 'role', 'name');
+    await expect(requestRelease({ user: lead, studyId, runId: run.runId })).rejects.toMatchObject({ code: 'conflict', message: expect.stringMatching(/Release once they have submitted/) });
+
+    await db('assignments').where({ run_id: run.runId }).update({ submitted_at: db.fn.now(3) });
+    expect(await refusal()).toBeNull();
   });
 });

@@ -23,6 +23,8 @@ export type Readiness = {
   undecided: number;
   /** Runs of the study that are not ready (still decomposing, failed): not part of a study release. */
   notReady: { runId: number; status: string }[];
+  /** Raters a lead reopened a run for who have not submitted it again (their votes may still change). */
+  reopened: { runId: number; raterName: string }[];
 };
 
 /** Whether every component in the scope has a final decision (none pending, none missing). */
@@ -38,12 +40,22 @@ export async function releaseReadiness(s: ReleaseScope, q: Knex | Knex.Transacti
     );
   const notReadyQ = q('runs').where({ study_id: s.studyId, is_calibration: false }).whereNot('status', 'ready').select('id as runId', 'status');
   const notReady = s.runId ? (await notReadyQ.where('id', s.runId)) : await notReadyQ;
+  const reopenedQ = q('assignments as a')
+    .join('runs as r', 'r.id', 'a.run_id')
+    .join('users as u', 'u.id', 'a.rater_id')
+    .where({ 'r.study_id': s.studyId, 'r.is_calibration': false })
+    .whereNotNull('a.reopened_at')
+    .whereNull('a.submitted_at')
+    .orderBy(['a.run_id', 'u.name'])
+    .select('a.run_id as runId', 'u.name as raterName');
+  const reopened = s.runId ? await reopenedQ.where('a.run_id', s.runId) : await reopenedQ;
   return {
     runs: Number(row?.runs ?? 0),
     components: Number(row?.components ?? 0),
     pending: Number(row?.pending ?? 0),
     undecided: Number(row?.undecided ?? 0),
     notReady: notReady.map((r: { runId: number; status: string }) => ({ runId: Number(r.runId), status: r.status })),
+    reopened: reopened.map((r: { runId: number; raterName: string }) => ({ runId: Number(r.runId), raterName: String(r.raterName) })),
   };
 }
 
