@@ -4,7 +4,7 @@
  * worker (lib/jobs/queue-mail.ts). Nothing is said about whether the address has an account.
  */
 import { findAccountForReset } from '@/lib/db/queries/people';
-import { createPasswordReset } from '@/lib/db/queries/invitations';
+import { createPasswordReset } from './create-password-reset';
 import { inTransaction } from '@/lib/db/transaction';
 import { queueMail } from '@/lib/jobs/queue-mail';
 import { passwordResetMail } from '@/lib/mail/templates/password-reset';

@@ -1,6 +1,6 @@
 import { handler } from '@/lib/api/handler';
 import { idParams } from '@/lib/invitations/schema';
-import { revokeInvitation } from '@/lib/db/queries/invitations';
+import { revokeInvitation } from '@/lib/invitations/revoke-invitation';
 import { db } from '@/lib/db/knex';
 import { notFound } from '@/lib/errors';
 

@@ -3,7 +3,8 @@ import { handler } from '@/lib/api/handler';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { leadsStudy } from '@/lib/auth/permissions';
 import { findRelease, releaseReadiness } from '@/lib/db/queries/releases';
-import { enqueueDenoise, listDenoiseJobs, runHasMotion, runStudy } from '@/lib/db/queries/exports';
+import { listDenoiseJobs, runHasMotion, runStudy } from '@/lib/db/queries/exports';
+import { enqueueDenoise } from '@/lib/jobs/queue-denoise';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { AppError, forbidden, notFound } from '@/lib/errors';
 

@@ -1,7 +1,8 @@
 import { handler } from '@/lib/api/handler';
 import { memberSchema, studyIdParams } from '@/lib/studies/schema';
 import { findManagedStudy, findStudyForUser } from '@/lib/db/queries/studies';
-import { addMember, listMembers } from '@/lib/db/queries/members';
+import { listMembers } from '@/lib/db/queries/members';
+import { addMember } from '@/lib/members/add-member';
 import { forbidden, notFound } from '@/lib/errors';
 
 // GET /api/studies/:id/members – the study's members and their study roles (members of the study, admins)

@@ -1,7 +1,7 @@
 import { handler } from '@/lib/api/handler';
 import { studyParamsSchema } from '@/lib/assignments/schema';
 import { db } from '@/lib/db/knex';
-import { requireLedStudy } from '@/lib/db/queries/assignments';
+import { requireLedStudy } from '@/lib/assignments/lead-rules';
 import { listOverdue } from '@/lib/notifications/overdue';
 
 // GET /api/studies/:id/overdue – assignments of the study past their due date and not submitted (leads of the study, admins)

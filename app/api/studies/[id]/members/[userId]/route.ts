@@ -1,7 +1,7 @@
 import { handler } from '@/lib/api/handler';
 import { memberParams } from '@/lib/studies/schema';
 import { findManagedStudy, findStudyForUser } from '@/lib/db/queries/studies';
-import { removeMember } from '@/lib/db/queries/members';
+import { removeMember } from '@/lib/members/remove-member';
 import { forbidden, notFound } from '@/lib/errors';
 
 // DELETE /api/studies/:id/members/:userId – remove a member (never the last lead)
