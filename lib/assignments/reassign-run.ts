@@ -4,7 +4,7 @@ import { findAssignmentOfRater, insertAssignment, isAssigned } from '@/lib/db/qu
 import { recordAudit } from '@/lib/db/queries/audit';
 import { inTransaction } from '@/lib/db/transaction';
 import { AppError } from '@/lib/errors';
-import { afterAssignmentsCreated } from '@/lib/notifications/enqueue';
+import { afterAssignmentsCreated } from '@/lib/jobs/queue-notifications';
 import { lockLedRun, requireCalibrated, requireStudyRater, type Caller } from './lead-rules';
 import { removeInTrx } from './remove-rater';
 

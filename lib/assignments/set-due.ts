@@ -3,7 +3,7 @@ import { lockStudyRuns, updateOpenDue, updateRunDue } from '@/lib/db/queries/ass
 import { recordAudit } from '@/lib/db/queries/audit';
 import { inTransaction } from '@/lib/db/transaction';
 import { notFound } from '@/lib/errors';
-import { ensureDailyOverdue } from '@/lib/notifications/enqueue';
+import { ensureDailyOverdue } from '@/lib/jobs/queue-notifications';
 import { lockLedRun, requireLedStudy, type Caller } from './lead-rules';
 
 /** Sets (or clears) the due date of one rater's assignment, or of every open assignment of a run. Audited. */

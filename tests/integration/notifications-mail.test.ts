@@ -15,7 +15,7 @@ import { claimJob } from '@/lib/jobs';
 import { jobKinds } from '@/lib/jobs/kinds';
 import { runClaimedJob } from '@/lib/jobs/runner';
 import { listMail, mailTo, type StoredMail } from '@/lib/mail/mailbox';
-import { afterAssignmentsCreated, queueVotesCompleteCheck } from '@/lib/notifications/enqueue';
+import { afterAssignmentsCreated, queueVotesCompleteCheck } from '@/lib/jobs/queue-notifications';
 import { NOTIFY_ASSIGNMENTS, NOTIFY_OVERDUE, NOTIFY_VOTES_COMPLETE } from '@/lib/notifications/payloads';
 import { assignRaters } from '@/lib/runs/assign-raters';
 import { createStudyWithRaters, uniqueSuffix } from './helpers/factories';

@@ -1,5 +1,5 @@
 import 'server-only';
-import { decompositionWarnings } from '@/lib/runs/decomposition-warnings';
+import { decompositionWarnings } from '@/lib/decomposition/warnings';
 import { db, parseJson } from '@/lib/db/knex';
 import { componentsOfDecomposition, droppedVolumesOf, readRunMotion } from './desk';
 import { bidsName } from '@/lib/bids';

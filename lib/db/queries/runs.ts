@@ -1,12 +1,12 @@
 import 'server-only';
 import type { Knex } from 'knex';
 import { db, parseJson } from '@/lib/db/knex';
-import { decompositionWarnings, type DecompositionWarning } from '@/lib/runs/decomposition-warnings';
+import { decompositionWarnings, type DecompositionWarning } from '@/lib/decomposition/warnings';
 import type { UserRow } from './users';
 import { runAgreements } from './agreement';
 import { findStudyAccess } from './study-access';
 import { isRunReleased } from './desk';
-import type { JobStatus } from '@/lib/jobs/status';
+import type { JobStatus } from '@/lib/db/job-status';
 
 export type RunStatus = 'uploaded' | 'queued' | 'processing' | 'ready' | 'failed' | 'cancelled';
 

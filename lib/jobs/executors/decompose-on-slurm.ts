@@ -12,7 +12,7 @@ import { assignRaters } from '@/lib/runs/assign-raters';
 import { copyDecompositionFiles, ImportError, readDecompositionDir } from '@/lib/runs/import-decomposition';
 import { storeDecomposition } from '@/lib/runs/ingest-decomposition';
 import { queueScoringOfNewRun } from '../kinds/score-suggestions';
-import { afterAssignmentsCreated } from '@/lib/notifications/enqueue';
+import { afterAssignmentsCreated } from '@/lib/jobs/queue-notifications';
 import { pathFor, removeKey } from '@/lib/storage';
 import { PermanentJobError } from '../errors';
 import type { JobContext } from '../types';

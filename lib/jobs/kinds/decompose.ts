@@ -13,7 +13,7 @@ import { decomposeRun, type DecomposeOptions } from '@/lib/decomposition/pipelin
 import { DEFAULT_DIM_METHOD } from '@/lib/decomposition/dimensionality';
 import { readNiftiFile, type NiftiImage } from '@/lib/nifti';
 import { assignRaters, type AssignRatersResult } from '@/lib/runs/assign-raters';
-import { afterAssignmentsCreated } from '@/lib/notifications/enqueue';
+import { afterAssignmentsCreated } from '@/lib/jobs/queue-notifications';
 import {
   componentRows,
   decompositionSummary,
