@@ -166,3 +166,8 @@ export async function findStudyName({ studyId }: { studyId: number }): Promise<s
   const row = await db('studies').where({ id: studyId }).first('name');
   return row ? String(row.name) : null;
 }
+
+/** Who sent an invitation (undefined when there is no invitation with that id). */
+export async function findInvitationSender({ id }: { id: number }): Promise<{ invitedBy: number | null } | undefined> {
+  return db('invitations').where({ id, kind: 'invite' }).first('invited_by as invitedBy');
+}
