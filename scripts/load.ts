@@ -58,7 +58,7 @@ async function prepare(uploads: string) {
   const { hashPassword } = await import('@/lib/auth/password');
   const { createReadyRun } = await import('../tests/e2e/helpers/ready-run');
   const { createRun, createStudyWithRaters, writePhantomRunFile } = await import('../tests/integration/helpers/factories');
-  const { enqueueDecomposition } = await import('@/lib/jobs/kinds/decompose');
+  const { enqueueDecomposition } = await import('@/lib/worker/kinds/decompose');
   const db = createDb();
   try {
     await db.migrate.latest({ migrationSource });

@@ -41,7 +41,7 @@ export async function main(): Promise<void> {
   const { generatePhantom, phantomToNiftiInput } = await import('@/lib/phantom');
   const { writeNiftiFile } = await import('@/lib/nifti');
   const { ensureDirFor, newKey } = await import('@/lib/storage');
-  const { enqueueDecomposition } = await import('@/lib/jobs/kinds/decompose');
+  const { enqueueDecomposition } = await import('@/lib/worker/kinds/decompose');
 
   const slurmWasRunning = (() => {
     try {

@@ -12,7 +12,7 @@ import path from 'node:path';
 import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { closeDb, db, parseJson } from '@/lib/db/knex';
 import { cancelJob, getJob } from '@/lib/jobs';
-import { enqueueDecomposition } from '@/lib/jobs/kinds/decompose';
+import { enqueueDecomposition } from '@/lib/worker/kinds/decompose';
 import { enqueueDenoise } from '@/lib/jobs/queue-denoise';
 import type { DenoiseResult } from '@/lib/denoise/payload';
 import { pathFor } from '@/lib/storage';

@@ -22,9 +22,9 @@ import {
 } from '@/lib/runs/ingest-decomposition';
 import { pathFor, removeKey } from '@/lib/storage';
 import { storageFaultKind } from '@/lib/storage/faults';
-import { JobError, PermanentJobError } from '../errors';
-import { decomposePayloadSchema, type DecomposePayload } from '../payloads';
-import { enqueueJob } from '../queue';
+import { JobError, PermanentJobError } from '@/lib/jobs/errors';
+import { decomposePayloadSchema, type DecomposePayload } from '@/lib/jobs/payloads';
+import { enqueueJob } from '@/lib/jobs/queue';
 import { defineJobKind } from '../types';
 import { decomposeOnSlurm } from '../executors/decompose-on-slurm';
 import { executorName, slurmSettings } from '../executors/settings';

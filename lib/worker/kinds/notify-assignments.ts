@@ -6,7 +6,7 @@
  */
 import { sendAssignmentNotices } from '@/lib/notifications/send-assignments';
 import { notifyAssignmentsPayloadSchema, NOTIFY_ASSIGNMENTS } from '@/lib/notifications/payloads';
-import { JobError } from '../errors';
+import { JobError } from '@/lib/jobs/errors';
 import { defineJobKind } from '../types';
 
 export const notifyAssignmentsKind = defineJobKind({

@@ -14,7 +14,7 @@ import { storeDecomposition } from '@/lib/runs/ingest-decomposition';
 import { queueScoringOfNewRun } from '../kinds/score-suggestions';
 import { afterAssignmentsCreated } from '@/lib/jobs/queue-notifications';
 import { pathFor, removeKey } from '@/lib/storage';
-import { PermanentJobError } from '../errors';
+import { PermanentJobError } from '@/lib/jobs/errors';
 import type { JobContext } from '../types';
 import { clusterPathFor, runOnSlurm } from './run-on-slurm';
 import type { SlurmSettings } from './settings';
