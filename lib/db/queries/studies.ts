@@ -150,19 +150,6 @@ export async function findStudyForUser({ user, studyId }: { user: Pick<UserRow, 
   };
 }
 
-/** The study when the user may manage it (an admin, or a lead member with the lead role), else null. */
-export async function findManagedStudy({ user, studyId }: { user: Pick<UserRow, 'id' | 'role'>; studyId: number }): Promise<StudyDetail | null> {
-  const query = db('studies as s').where('s.id', studyId).andWhere('s.archived', false).first(studyColumns);
-  if (user.role !== 'admin') {
-    if (user.role !== 'lead') return null;
-    query.whereExists(
-      db('study_members as m').whereRaw('m.study_id = s.id').andWhere({ 'm.user_id': user.id, 'm.study_role': 'lead' }).select(db.raw('1')),
-    );
-  }
-  const row = await query;
-  return row ? toStudy(row) : null;
-}
-
 function protocolRow(v: Partial<StudyValues>): Record<string, unknown> {
   const row: Record<string, unknown> = {};
   if (v.name !== undefined) row.name = v.name;
@@ -204,4 +191,10 @@ export async function writeProtocol(trx: Knex.Transaction, { studyId, values }: 
 /** Whether an update carries any protocol field. */
 export function changesProtocol(values: StudyUpdate): boolean {
   return Object.keys(protocolRow(values)).length > 0;
+}
+
+/** A study's stored row as it is (every column, snake_case), for the methods paragraph and the report; no access check: callers scope. */
+// eslint-disable-next-line @typescript-eslint/no-explicit-any -- the raw row, read column by column by its callers
+export async function findStudyRow({ studyId }: { studyId: number }): Promise<Record<string, any> | undefined> {
+  return db('studies').where({ id: studyId }).first();
 }
