@@ -234,7 +234,7 @@ async function main() {
     for (const [i, r] of raters.entries()) await signIn(r, i);
     log(`${raters.length} raters signed in; starting two workers`);
     // the workers run as a facility runs them, as their own service (own session): they lower their
-    // priority, and their session group's (lib/jobs/cpu-priority.ts)
+    // priority, and their session group's (lib/worker/cpu-priority.ts)
     for (const w of ['load-w1', 'load-w2']) start(['scripts/worker.ts'], { ...env, QUORUM_WORKER_ID: w, QUORUM_DECOMPOSE_THREADS: '1' }, w, { ownSession: true });
 
     // warm-up (not measured): every rater opens their desk's votes and votes once, as on arrival

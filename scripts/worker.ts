@@ -6,15 +6,15 @@
 //   QUORUM_WORKER_NICE (10: the worker's CPU priority, 0 = normal, up to 19 = lowest),
 //   the database settings of lib/db/config.ts and QUORUM_UPLOADS_DIR (the shared storage root);
 //   QUORUM_EXECUTOR (local | slurm), QUORUM_WORKER_CONCURRENCY and the QUORUM_SLURM_* settings
-//   of lib/jobs/executors/settings.ts.
+//   of lib/worker/executors/settings.ts.
 // SIGTERM / SIGINT: the running job is released back to the queue (its attempt is not counted) and
 // the worker exits; a second signal exits at once.
 import { checkDatabase, closeDb, db } from '@/lib/db/knex';
-import { jobKinds } from '@/lib/jobs/kinds';
-import { defaultWorkerId, startWorker } from '@/lib/jobs/worker';
-import { lowerProcessPriority } from '@/lib/jobs/cpu-priority';
-import { executorName, slurmSettings, workerConcurrency } from '@/lib/jobs/executors/settings';
-import { cancelOrphanedClusterJobs } from '@/lib/jobs/executors/cancel-orphans';
+import { jobKinds } from '@/lib/worker/kinds';
+import { defaultWorkerId, startWorker } from '@/lib/worker/worker';
+import { lowerProcessPriority } from '@/lib/worker/cpu-priority';
+import { executorName, slurmSettings, workerConcurrency } from '@/lib/worker/executors/settings';
+import { cancelOrphanedClusterJobs } from '@/lib/worker/executors/cancel-orphans';
 
 function intEnv(name: string, fallback: number, min: number): number {
   const raw = process.env[name];

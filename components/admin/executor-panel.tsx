@@ -1,4 +1,4 @@
-import type { ExecutorStatus } from '@/lib/jobs/executors/executor-status';
+import type { ExecutorStatus } from '@/lib/worker/executors/executor-status';
 import { Notice } from '@/components/ui/notice';
 
 /** Facility page: where decompose and denoise jobs run, with which settings, and whether the cluster answers. */

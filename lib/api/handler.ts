@@ -4,7 +4,8 @@ import { requireUser } from '@/lib/auth/session';
 import { leadsStudy, type Access, type Action } from '@/lib/auth/permissions';
 import { findRunAccess, findStudyAccess } from '@/lib/db/queries/study-access';
 import type { UserRow } from '@/lib/db/queries/users';
-import { AppError, errorResponse, forbidden, notFound } from '@/lib/errors';
+import { AppError, forbidden, notFound } from '@/lib/errors';
+import { errorResponse } from './error-response';
 import { checkOrigin, readJsonBody } from './request-guards';
 
 type Schema = z.ZodType;

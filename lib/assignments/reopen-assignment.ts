@@ -4,7 +4,8 @@ import { AppError, notFound } from '@/lib/errors';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { isRunReleased } from '@/lib/db/queries/desk';
-import { findRunStudy, inAssignmentsTransaction, lockAssignment, markAssignmentReopened } from '@/lib/db/queries/assignments';
+import { findRunStudy, lockAssignment, markAssignmentReopened } from '@/lib/db/queries/assignments';
+import { inTransaction } from '@/lib/db/transaction';
 import type { UserRow } from '@/lib/db/queries/users';
 import { queueMail } from '@/lib/jobs/queue-mail';
 import { facilityName, publicBaseUrl } from '@/lib/mail/config';
@@ -25,7 +26,7 @@ export async function reopenAssignment({ user, runId, raterId, reason, ip = null
   const access = run ? await findStudyAccess({ user, studyId: run.studyId }) : null;
   if (!run || !access) throw notFound('The run');
   if (!leadsStudy(access)) throw new AppError('forbidden', "Only a lead of this study (or the facility admin) reopens a rater's submitted run.");
-  return inAssignmentsTransaction(async (trx) => {
+  return inTransaction(async (trx) => {
     const a = await lockAssignment(trx, { runId, raterId });
     if (!a) throw notFound('That assignment');
     if (await isRunReleased({ runId }, trx)) {

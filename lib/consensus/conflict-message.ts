@@ -1,5 +1,5 @@
 import { labelName, noiseKindName } from '@/lib/studies/labels';
-import type { DecisionConflict } from '@/lib/db/queries/reconcile';
+import type { DecisionConflict } from './schema';
 
 /** What a lead is told when another lead (or a changed vote) decided the component first. */
 export function conflictMessage(current: DecisionConflict['conflict']): string {

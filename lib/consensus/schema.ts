@@ -17,3 +17,6 @@ export const reconcileQuerySchema = z.object({
   noiseKind: z.string().max(32).optional(),
   include: z.enum(['pending', 'all']).default('pending'),
 });
+
+/** The decision a lead is shown when theirs was refused because it changed since they saw it (409). */
+export type DecisionConflict = { conflict: { label: string | null; noiseKind: string | null; method: string; decidedBy: string | null } };

@@ -6,3 +6,6 @@ import { db } from './knex';
 export function inTransaction<T>(work: (trx: Knex.Transaction) => Promise<T>): Promise<T> {
   return db.transaction(work);
 }
+
+/** The transaction a use case passes to the query functions it calls (opaque outside lib/db). */
+export type Trx = Knex.Transaction;

@@ -4,7 +4,7 @@
  */
 import { z } from 'zod';
 import { denoisePayloadSchema } from '@/lib/denoise/payload';
-import { scoreSuggestionsPayloadSchema, trainSuggestionsPayloadSchema } from '@/lib/suggestions/payload';
+import { scoreSuggestionsPayloadSchema, trainSuggestionsPayloadSchema } from './suggestion-payloads';
 import { recalibratePayloadSchema } from '@/lib/calibration/payload';
 import {
   notifyAssignmentsPayloadSchema,

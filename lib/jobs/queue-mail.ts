@@ -1,6 +1,6 @@
 /**
  * Queues an e-mail that carries a one-time link (invitation, password reset) for the send-mail job
- * (./kinds/send-mail.ts): sent by the worker with retries, never from the request. The
+ * (lib/worker/kinds/send-mail.ts): sent by the worker with retries, never from the request. The
  * outbox's readable copy has the links removed; the full message is sealed (lib/mail/seal.ts) until sent.
  */
 import type { Knex } from 'knex';

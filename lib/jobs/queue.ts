@@ -15,7 +15,7 @@ import type { Knex } from 'knex';
 import { parseJson, toJson } from '@/lib/db/knex';
 import { describePayloadIssues, isJobKind, jobPayloadSchemas, type JobKindName, type JobPayload } from './payloads';
 
-import type { JobStatus } from './status';
+import type { JobStatus } from '@/lib/db/job-status';
 export type { JobStatus };
 
 export interface Job {

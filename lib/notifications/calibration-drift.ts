@@ -4,7 +4,7 @@
  * lead of the study, once per calibration submission (a row in `notifications`, kind
  * calibration.drift, payload { studyId, raterId, key } with key = the rater's latest calibration
  * submission). Raters with no submitted calibration run are not a drop and are not reported.
- * Runs inside the votes-complete check (lib/jobs/kinds/notify-votes-complete.ts).
+ * Runs inside the votes-complete check (lib/worker/kinds/notify-votes-complete.ts).
  */
 import type { Knex } from 'knex';
 import { isGated } from '@/lib/agreement/threshold-gate';

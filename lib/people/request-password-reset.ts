@@ -1,10 +1,10 @@
 /**
  * Use case: someone asks for a password reset link. For an active account, a new one-time link
- * (earlier unused ones are withdrawn, lib/db/queries/invitations.ts) is queued as an e-mail for the
+ * (earlier unused ones are withdrawn, ./create-password-reset.ts) is queued as an e-mail for the
  * worker (lib/jobs/queue-mail.ts). Nothing is said about whether the address has an account.
  */
 import { findAccountForReset } from '@/lib/db/queries/people';
-import { createPasswordReset } from '@/lib/db/queries/invitations';
+import { createPasswordReset } from './create-password-reset';
 import { inTransaction } from '@/lib/db/transaction';
 import { queueMail } from '@/lib/jobs/queue-mail';
 import { passwordResetMail } from '@/lib/mail/templates/password-reset';

@@ -2,7 +2,7 @@ import 'server-only';
 /**
  * Releasing a study (or one run), in two steps (issue 12 item 3):
  * - requestRelease (the request): checks the lead, the scope and that every component in scope has
- *   a final decision, then queues a `release` job (lib/jobs/kinds/release.ts), or returns the open
+ *   a final decision, then queues a `release` job (lib/worker/kinds/release.ts), or returns the open
  *   one of the same scope, so two clicks make one release.
  * - buildRelease (the worker): takes the component maps' stored checksums (hashing once the ones
  *   stored before checksums were kept), computes the agreement report with its bootstrap outside

@@ -12,7 +12,7 @@ import { parseBidsName } from '@/lib/bids';
 import { readNiftiHeaderFile } from '@/lib/nifti';
 import { removeKey } from '@/lib/storage';
 import { recordAudit } from '@/lib/db/queries/audit';
-import { afterAssignmentsCreated } from '@/lib/notifications/enqueue';
+import { afterAssignmentsCreated } from '@/lib/jobs/queue-notifications';
 import { assignRaters } from './assign-raters';
 import { storeDecomposition } from './ingest-decomposition';
 import { copyDecompositionFiles, readDecompositionDir } from './import-decomposition';

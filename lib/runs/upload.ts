@@ -14,7 +14,7 @@ import { MotionFileError, parseMotionFile } from '@/lib/decomposition/motion';
 import { moveIntoStore, newKey, pathFor, removeKey, tempPath } from '@/lib/storage';
 import { bidsName } from '@/lib/bids';
 import { AppError, forbidden, notFound } from '@/lib/errors';
-import { findManagedStudy, findStudyForUser } from '@/lib/db/queries/studies';
+import { findStudyForUser } from '@/lib/db/queries/studies';
 import { findManagedRun, findRunBySha, listRunsForStudy, type RunListItem, type RunRecord } from '@/lib/db/queries/runs';
 import { recordAudit } from '@/lib/db/queries/audit';
 import type { UserRow } from '@/lib/db/queries/users';
@@ -35,12 +35,10 @@ export function contentLengthOf(req: Request): number | null {
 
 /** The study when the user may upload to it; otherwise 403 (a member without the lead study role) or 404. */
 async function studyForUpload(user: Actor, studyId: number) {
-  const study = await findManagedStudy({ user, studyId });
-  if (study) return study;
-  if (await findStudyForUser({ user, studyId })) {
-    throw forbidden('uploading to this study: only its leads and the facility admin may');
-  }
-  throw notFound('The study');
+  const access = await findStudyForUser({ user, studyId });
+  if (!access) throw notFound('The study');
+  if (!access.canManage) throw forbidden('uploading to this study: only its leads and the facility admin may');
+  return access.study;
 }
 
 /** A run the user may change; otherwise 403 (they can see it) or 404. */

@@ -18,7 +18,7 @@ vi.mock('next-auth', async (importOriginal) => ({
 const { db, closeDb, toJson, parseJson } = await import('@/lib/db/knex');
 const { createStudyWithRaters, uniqueSuffix } = await import('./helpers/factories');
 const { assignRaters } = await import('@/lib/runs/assign-raters');
-const { addRaterToRun } = await import('@/lib/db/queries/assignments');
+const { addRaterToRun } = await import('@/lib/assignments/add-rater');
 const thresholdRoute = await import('@/app/api/studies/[id]/calibration/threshold/route');
 
 const REFERENCE = ['noise', 'noise', 'noise', 'signal', 'signal', 'signal'];

@@ -30,8 +30,8 @@ const { calibrationGate } = await import('@/lib/db/queries/calibration-gate');
 const { sendDriftNotices } = await import('@/lib/notifications/calibration-drift');
 const { listMail } = await import('@/lib/mail/mailbox');
 const { claimJob } = await import('@/lib/jobs');
-const { jobKinds } = await import('@/lib/jobs/kinds');
-const { runClaimedJob } = await import('@/lib/jobs/runner');
+const { jobKinds } = await import('@/lib/worker/kinds');
+const { runClaimedJob } = await import('@/lib/worker/runner');
 const thresholdRoute = await import('@/app/api/studies/[id]/calibration/threshold/route');
 const certRoute = await import('@/app/api/studies/[id]/calibration/certifications/route');
 

@@ -13,7 +13,7 @@ import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it } from
 import { closeDb, db, parseJson } from '@/lib/db/knex';
 import { cancelJob, getJob } from '@/lib/jobs';
 import { queueDecomposition } from '@/lib/runs/queue-job';
-import { enqueueDenoise } from '@/lib/db/queries/exports';
+import { enqueueDenoise } from '@/lib/jobs/queue-denoise';
 import type { DenoiseResult } from '@/lib/denoise/payload';
 import { pathFor } from '@/lib/storage';
 import { createPhantomRun, useTempUploads } from './helpers/factories';

@@ -18,7 +18,7 @@ const { db, closeDb, parseJson, toJson } = await import('@/lib/db/knex');
 const { createReadyRun } = await import('../e2e/helpers/ready-run');
 const { createStudyWithRaters } = await import('./helpers/factories');
 const { loadDeskComponents, submitRun } = await import('@/lib/db/queries/desk');
-const { saveVote } = await import('@/lib/db/queries/votes');
+const { saveVote } = await import('@/lib/votes/save-vote');
 const { listReconcileItems } = await import('@/lib/db/queries/reconcile');
 
 let study: Awaited<ReturnType<typeof createStudyWithRaters>>;

@@ -11,7 +11,8 @@ import { AppError } from '@/lib/errors';
 import { inviteSchema } from '@/lib/invitations/schema';
 import { sendInvitation } from '@/lib/invitations/send-invitation';
 import { assignRaters } from '@/lib/runs/assign-raters';
-import { addRaterToRun, listStudyAssignments } from '@/lib/db/queries/assignments';
+import { addRaterToRun } from '@/lib/assignments/add-rater';
+import { listStudyAssignments } from '@/lib/assignments/list-study-assignments';
 import { addMember, createRun, createStudyWithRaters, createUser, uniqueSuffix } from './helpers/factories';
 
 let study: Awaited<ReturnType<typeof createStudyWithRaters>>;

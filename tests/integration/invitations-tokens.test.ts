@@ -10,15 +10,12 @@ import { AppError } from '@/lib/errors';
 import { hashToken, inviteTtlMs, linkState, looksLikeToken, newToken, RESET_TTL_MS } from '@/lib/auth/tokens';
 import { hashPassword, verifyPassword } from '@/lib/auth/password';
 import { clearFailures, lockedFor, MAX_FAILURES, recordFailure } from '@/lib/auth/throttle';
-import {
-  acceptInvitation,
-  completePasswordReset,
-  createInvitation,
-  createPasswordReset,
-  describeLink,
-  findLinkByToken,
-  revokeInvitation,
-} from '@/lib/db/queries/invitations';
+import { acceptInvitation } from '@/lib/invitations/accept-invitation';
+import { createInvitation } from '@/lib/invitations/create-invitation';
+import { describeLink, findLinkByToken } from '@/lib/invitations/find-link';
+import { revokeInvitation } from '@/lib/invitations/revoke-invitation';
+import { completePasswordReset } from '@/lib/people/complete-password-reset';
+import { createPasswordReset } from '@/lib/people/create-password-reset';
 
 const tag = randomBytes(3).toString('hex');
 const addr = (name: string) => `${name}-${tag}@fernhollow.example`;

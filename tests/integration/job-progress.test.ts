@@ -13,12 +13,12 @@ vi.mock('next-auth', async (importOriginal) => ({
 
 const { db, closeDb } = await import('@/lib/db/knex');
 const { claimJob } = await import('@/lib/jobs');
-const { jobKinds } = await import('@/lib/jobs/kinds');
-const { runClaimedJob } = await import('@/lib/jobs/runner');
+const { jobKinds } = await import('@/lib/worker/kinds');
+const { runClaimedJob } = await import('@/lib/worker/runner');
 const { queueDecomposition } = await import('@/lib/runs/queue-job');
 const { createPhantomRun, useTempUploads } = await import('./helpers/factories');
 const progressRoute = await import('@/app/api/runs/[id]/progress/route');
-type JobKind = import('@/lib/jobs/types').JobKind;
+type JobKind = import('@/lib/worker/types').JobKind;
 
 let uploads: Awaited<ReturnType<typeof useTempUploads>>;
 beforeAll(async () => {

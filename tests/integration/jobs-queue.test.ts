@@ -2,7 +2,7 @@
 // leases, progress, retries, cancellation, the expired-lease sweep and release.
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { closeDb, createDb, db } from '@/lib/db/knex';
-import { defineJobKind } from '@/lib/jobs/types';
+import { defineJobKind } from '@/lib/worker/types';
 import {
   cancelJob,
   claimJob,
@@ -16,7 +16,7 @@ import {
   reportProgress,
   requeueExpiredLeases,
 } from '@/lib/jobs';
-import { runClaimedJob } from '@/lib/jobs/runner';
+import { runClaimedJob } from '@/lib/worker/runner';
 import { decomposePayloadSchema } from '@/lib/jobs/payloads';
 import { createPhantomRun, useTempUploads } from './helpers/factories';
 

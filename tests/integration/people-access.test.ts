@@ -15,7 +15,8 @@ vi.mock('next-auth', async (importOriginal) => ({
 
 import { db, parseJson } from '@/lib/db/knex';
 import { AppError } from '@/lib/errors';
-import { LAST_ADMIN_MESSAGE, listMemberships, listPeople, updateAccess } from '@/lib/db/queries/people';
+import { listMemberships, listPeople } from '@/lib/db/queries/people';
+import { LAST_ADMIN_MESSAGE, updateAccess } from '@/lib/people/update-access';
 import { getCurrentUser, requireUser } from '@/lib/auth/session';
 
 const tag = randomBytes(3).toString('hex');

@@ -25,8 +25,8 @@ process.env.QUORUM_PUBLIC_URL = 'http://quorum.test';
 
 const { db, closeDb } = await import('@/lib/db/knex');
 const { claimJob } = await import('@/lib/jobs');
-const { jobKinds } = await import('@/lib/jobs/kinds');
-const { runClaimedJob } = await import('@/lib/jobs/runner');
+const { jobKinds } = await import('@/lib/worker/kinds');
+const { runClaimedJob } = await import('@/lib/worker/runner');
 const { waitForMail } = await import('@/lib/mail/mailbox');
 const { SEND_MAIL } = await import('@/lib/mail/payloads');
 const { createStudyWithRaters } = await import('./helpers/factories');

@@ -27,7 +27,7 @@ import path from 'node:path';
 import { gunzipSync, gzipSync } from 'node:zlib';
 import { db } from '@/lib/db/knex';
 import { AppError } from '@/lib/errors';
-import { createStudy } from '@/lib/db/queries/studies';
+import { createStudy } from '@/lib/studies/create-study';
 import { STUDY_DEFAULTS } from '@/lib/studies/schema';
 import { attachMask, attachMotion, uploadRun, type RawBody } from '@/lib/runs/upload';
 import { queueRun } from '@/lib/runs/actions';

@@ -3,13 +3,13 @@
 // (Debian bookworm's slurmctld) captured on this project's test cluster (scripts/slurm.sh); the
 // duration format is Slurm's documented "[days-]hours:minutes:seconds" (sbatch(1), --time).
 import { describe, expect, it } from 'vitest';
-import { DEFAULT_TEMPLATE, renderBatchScript, shellQuote } from '@/lib/jobs/executors/batch-script';
-import { clusterFailure, elapsedText, isTerminal, pendingReason } from '@/lib/jobs/executors/cluster-failure';
-import { decomposeFlags } from '@/lib/jobs/executors/decompose-on-slurm';
-import { timecoursesTsv } from '@/lib/jobs/executors/denoise-on-slurm';
-import { ExecutorSettingsError, slurmSettings } from '@/lib/jobs/executors/settings';
+import { DEFAULT_TEMPLATE, renderBatchScript, shellQuote } from '@/lib/worker/executors/batch-script';
+import { clusterFailure, elapsedText, isTerminal, pendingReason } from '@/lib/worker/executors/cluster-failure';
+import { decomposeFlags } from '@/lib/worker/executors/decompose-on-slurm';
+import { timecoursesTsv } from '@/lib/worker/executors/denoise-on-slurm';
+import { ExecutorSettingsError, slurmSettings } from '@/lib/worker/executors/settings';
 import { parseTsv } from '@/lib/exports/tabular';
-import { parseScontrol, slurmSeconds } from '@/lib/jobs/executors/slurm-commands';
+import { parseScontrol, slurmSeconds } from '@/lib/worker/executors/slurm-commands';
 import { JobError, PermanentJobError } from '@/lib/jobs/errors';
 import { icaRunFraction } from '@/lib/decomposition/pipeline';
 

@@ -1,12 +1,13 @@
 /**
- * errorResponse (lib/errors.ts): what a thrown value becomes. A client that closes the connection
+ * errorResponse (lib/api/error-response.ts): what a thrown value becomes. A client that closes the connection
  * while its body is read makes Node's request stream fail with Error('aborted'), code ECONNRESET
  * (Node.js documentation, http.IncomingMessage 'aborted' / ECONNRESET "Connection reset by peer");
  * that is not a server fault: one warning line, no stack, and a 400 nobody will read. The same code
  * from the database driver (a fatal connection error) still means the database is unavailable.
  */
 import { afterEach, describe, expect, it, vi } from 'vitest';
-import { AppError, errorResponse } from '@/lib/errors';
+import { AppError } from '@/lib/errors';
+import { errorResponse } from '@/lib/api/error-response';
 
 afterEach(() => vi.restoreAllMocks());
 

@@ -1,6 +1,6 @@
 // Reading a stored decomposition summary's warnings back for the runs table and the desk.
 import { describe, expect, it } from 'vitest';
-import { decompositionWarnings, WARNING_SHORT } from '@/lib/runs/decomposition-warnings';
+import { decompositionWarnings, WARNING_SHORT } from '@/lib/decomposition/warnings';
 
 describe('decompositionWarnings', () => {
   const w = { code: 'dimension_at_bound', message: 'The automatic number of components reached its search bound.' };

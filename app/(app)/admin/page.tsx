@@ -7,7 +7,7 @@ import { Panel } from '@/components/ui/panel';
 import { AdminTabs } from '@/components/admin/admin-tabs';
 import { PeopleTable, type PersonView } from '@/components/admin/people-table';
 import { ExecutorPanel } from '@/components/admin/executor-panel';
-import { executorStatus } from '@/lib/jobs/executors/executor-status';
+import { executorStatus } from '@/lib/worker/executors/executor-status';
 
 export const metadata: Metadata = { title: 'Facility' };
 

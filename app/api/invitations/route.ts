@@ -1,6 +1,6 @@
 import { handler } from '@/lib/api/handler';
 import { inviteSchema } from '@/lib/invitations/schema';
-import { listInvitations } from '@/lib/db/queries/invitations';
+import { listInvitations } from '@/lib/invitations/list-invitations';
 import { auditAddress } from '@/lib/auth/client-address';
 import { facilityName, publicBaseUrl } from '@/lib/mail/config';
 import { sendInvitation } from '@/lib/invitations/send-invitation';

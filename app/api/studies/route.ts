@@ -1,6 +1,7 @@
 import { handler } from '@/lib/api/handler';
 import { studySchema } from '@/lib/studies/schema';
-import { createStudy, listStudiesForUser } from '@/lib/db/queries/studies';
+import { listStudiesForUser } from '@/lib/db/queries/studies';
+import { createStudy } from '@/lib/studies/create-study';
 
 // GET /api/studies – the studies the caller may see (admins: all; others: their memberships)
 export const GET = handler({ permission: 'studies.read' }, async ({ user }) => ({ studies: await listStudiesForUser({ user }) }));

@@ -1,5 +1,5 @@
 import 'server-only';
-import { decompositionWarnings } from '@/lib/runs/decomposition-warnings';
+import { decompositionWarnings } from '@/lib/decomposition/warnings';
 import type { Knex } from 'knex';
 import { readFile } from 'node:fs/promises';
 import { blobToFloat32, db, parseJson } from '@/lib/db/knex';
@@ -8,7 +8,7 @@ import { bidsName } from '@/lib/bids';
 import { pathFor } from '@/lib/storage';
 import { dropInitialVolumes, framewiseDisplacement, parseMotionFile } from '@/lib/decomposition/motion';
 import { recordAudit } from './audit';
-import { queueVotesCompleteCheck } from '@/lib/notifications/enqueue';
+import { queueVotesCompleteCheck } from '@/lib/jobs/queue-notifications';
 import type { ComponentsPayload, DeskComponent, DeskRun } from '@/lib/desk/types';
 import { arrangeForDesk, isLowReproducibility, type ReproducibilityRule } from '@/lib/desk/reproducibility';
 import { recomputeDecision } from '@/lib/consensus/recompute';

@@ -1,7 +1,7 @@
 import 'server-only';
 import { db, parseJson } from '@/lib/db/knex';
-import { denoisePayloadSchema, type DenoisePayload, type DenoiseResult } from '@/lib/denoise/payload';
-import { enqueueJob } from '@/lib/jobs/queue';
+import type { Knex } from 'knex';
+import type { DenoisePayload, DenoiseResult } from '@/lib/denoise/payload';
 
 export type DenoiseJob = {
   jobId: number;
@@ -15,22 +15,11 @@ export type DenoiseJob = {
   createdAt: Date;
 };
 
-/**
- * Queues a denoise job for a run (an identical queued or running request returns that job).
- * The row is written here rather than through lib/jobs' enqueueJob because the jobs helper's
- * payload registry (lib/jobs/payloads.ts) does not list `denoise` yet; the payload is validated
- * with the same schema the worker's kind uses, and the worker validates it again when it claims.
- */
-export async function enqueueDenoise({ payload, studyId, createdBy }: { payload: DenoisePayload; studyId: number; createdBy: number }): Promise<{ jobId: number; existing: boolean }> {
-  const data = denoisePayloadSchema.parse(payload);
-  return db.transaction(async (trx) => {
-    await trx('runs').where({ id: data.runId }).forUpdate().first('id');
-    const active = await trx('jobs').where({ run_id: data.runId, kind: 'denoise' }).whereIn('status', ['queued', 'running']).select('id', 'payload');
-    const same = active.find((j: { payload: unknown }) => JSON.stringify(parseJson(j.payload)) === JSON.stringify(data));
-    if (same) return { jobId: Number(same.id), existing: true };
-    const id = await enqueueJob(trx, { kind: 'denoise', payload: data, runId: data.runId, studyId, createdBy });
-    return { jobId: Number(id), existing: false };
-  });
+/** Locks the run row (serialises denoise requests for one run) and returns the payloads of its queued or running denoise jobs. */
+export async function lockActiveDenoiseJobs(trx: Knex.Transaction, { runId }: { runId: number }): Promise<{ jobId: number; payload: unknown }[]> {
+  await trx('runs').where({ id: runId }).forUpdate().first('id');
+  const active = await trx('jobs').where({ run_id: runId, kind: 'denoise' }).whereIn('status', ['queued', 'running']).select('id', 'payload');
+  return active.map((j: { id: number; payload: unknown }) => ({ jobId: Number(j.id), payload: parseJson(j.payload) }));
 }
 
 const COLUMNS = ['id', 'run_id', 'status', 'stage', 'percent', 'message', 'payload', 'result', 'created_at'];

@@ -1,11 +1,8 @@
 import 'server-only';
 import type { Knex } from 'knex';
 import { db } from '@/lib/db/knex';
-import { recordAudit } from './audit';
-import { AppError, notFound } from '@/lib/errors';
-import { mayHoldStudyRole, type Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/auth/roles';
 import type { StudyRole } from '@/lib/studies/labels';
-import type { UserRow } from './users';
 
 export type StudyMember = {
   userId: number;
@@ -26,57 +23,32 @@ export async function listMembers({ studyId }: { studyId: number }): Promise<Stu
   return rows.map((r) => ({ ...r, userId: Number(r.userId) }));
 }
 
-/**
- * Adds an existing, active account to a study by e-mail, or changes its study role. The account's
- * facility role must allow the study role. Audited.
- */
-export async function addMember({ actor, studyId, email, studyRole }: { actor: Pick<UserRow, 'id'>; studyId: number; email: string; studyRole: StudyRole }): Promise<StudyMember> {
-  const account = await db('users').where({ email: email.trim().toLowerCase() }).first('id', 'name', 'role', 'active');
-  if (!account || !account.active) {
-    throw new AppError('not_found', `No active account has the e-mail ${email}. Ask the facility admin to invite that person first.`, {
-      email: ['No active account has this e-mail.'],
-    });
-  }
-  if (!mayHoldStudyRole(account.role, studyRole)) {
-    throw new AppError(
-      'validation',
-      `${account.name} has the facility role "${account.role}", which cannot be a study ${studyRole}. Choose another study role or ask the facility admin to change the account's role.`,
-      { studyRole: [`A ${account.role} account cannot be a study ${studyRole}.`] },
-    );
-  }
-  await db.transaction(async (trx: Knex.Transaction) => {
-    const existing = await trx('study_members').where({ study_id: studyId, user_id: account.id }).forUpdate().first('study_role');
-    if (existing && existing.study_role === 'lead' && studyRole !== 'lead') await assertAnotherLead(trx, studyId, account.id);
-    await trx('study_members')
-      .insert({ study_id: studyId, user_id: account.id, study_role: studyRole, added_by: actor.id })
-      .onConflict(['study_id', 'user_id'])
-      .merge(['study_role']);
-    await recordAudit(
-      { actorId: actor.id, action: existing ? 'study.member_role' : 'study.member_add', targetType: 'user', targetId: account.id, studyId, detail: { studyRole, before: existing?.study_role ?? null } },
-      trx,
-    );
-  });
-  const member = (await listMembers({ studyId })).find((m) => m.userId === Number(account.id));
-  if (!member) throw notFound('The member');
-  return member;
+/** An account by e-mail, for adding it to a study. */
+export async function findAccountForMembership({ email }: { email: string }): Promise<{ id: number; name: string; role: Role; active: boolean } | undefined> {
+  return db('users').where({ email: email.trim().toLowerCase() }).first('id', 'name', 'role', 'active');
 }
 
-async function assertAnotherLead(trx: Knex.Transaction, studyId: number, userId: number) {
+/** The member's study role, the row locked for the caller's transaction. */
+export async function lockMembership(trx: Knex.Transaction, { studyId, userId }: { studyId: number; userId: number }): Promise<{ study_role: StudyRole } | undefined> {
+  return trx('study_members').where({ study_id: studyId, user_id: userId }).forUpdate().first('study_role');
+}
+
+/** How many leads the study has besides `userId`. */
+export async function countOtherLeads(trx: Knex.Transaction, { studyId, userId }: { studyId: number; userId: number }): Promise<number> {
   const others = await trx('study_members').where({ study_id: studyId, study_role: 'lead' }).whereNot({ user_id: userId }).count({ n: '*' });
-  if (Number(others[0].n) === 0) {
-    throw new AppError('conflict', 'This is the study\'s only lead. Add another lead first, then change or remove this one.');
-  }
+  return Number(others[0].n);
 }
 
-/** Removes a member (never the last lead). Their assignments and votes stay. Audited. */
-export async function removeMember({ actor, studyId, userId }: { actor: Pick<UserRow, 'id'>; studyId: number; userId: number }): Promise<void> {
-  await db.transaction(async (trx: Knex.Transaction) => {
-    const existing = await trx('study_members').where({ study_id: studyId, user_id: userId }).forUpdate().first('study_role');
-    if (!existing) throw notFound('The member');
-    if (existing.study_role === 'lead') await assertAnotherLead(trx, studyId, userId);
-    await trx('study_members').where({ study_id: studyId, user_id: userId }).delete();
-    await recordAudit({ actorId: actor.id, action: 'study.member_remove', targetType: 'user', targetId: userId, studyId, detail: { studyRole: existing.study_role } }, trx);
-  });
+/** Adds a member, or changes the study role of one. */
+export async function upsertMembership(trx: Knex.Transaction, { studyId, userId, studyRole, addedBy }: { studyId: number; userId: number; studyRole: StudyRole; addedBy: number }): Promise<void> {
+  await trx('study_members')
+    .insert({ study_id: studyId, user_id: userId, study_role: studyRole, added_by: addedBy })
+    .onConflict(['study_id', 'user_id'])
+    .merge(['study_role']);
+}
+
+export async function deleteMembership(trx: Knex.Transaction, { studyId, userId }: { studyId: number; userId: number }): Promise<void> {
+  await trx('study_members').where({ study_id: studyId, user_id: userId }).delete();
 }
 
 export type AccountCandidate = { userId: number; name: string; email: string; role: Role; studyRole: StudyRole | null };

@@ -1,8 +1,7 @@
 import 'server-only';
 import { db } from '@/lib/db/knex';
-import { recordAudit } from '@/lib/db/queries/audit';
+import type { Knex } from 'knex';
 import type { Role } from '@/lib/auth/roles';
-import { AppError } from '@/lib/errors';
 
 export type Membership = { userId: number; studyId: number; studyName: string; studyRole: 'lead' | 'rater' | 'observer' };
 
@@ -56,49 +55,20 @@ export async function accountExists({ email }: { email: string }): Promise<boole
   return Boolean(await db('users').where({ email }).first('id'));
 }
 
-export const LAST_ADMIN_MESSAGE =
-  'This is the last active facility admin. Make another person a facility admin first, then change or deactivate this account.';
+/** The active admins' ids, every row locked (the same order for every caller). */
+export async function lockActiveAdmins(trx: Knex.Transaction): Promise<number[]> {
+  const admins: { id: number }[] = await trx('users').where({ role: 'admin', active: true }).orderBy('id').forUpdate().select('id');
+  return admins.map((a) => a.id);
+}
 
-/**
- * Changes a user's role and/or active flag, refusing (409) to leave the facility without an
- * active admin. The admin rows are locked, so two admins demoting each other at once cannot both
- * succeed. Records one audit entry per change.
- */
-export async function updateAccess({
-  actorId,
-  userId,
-  role,
-  active,
-  ip = null,
-}: {
-  actorId: number;
-  userId: number;
-  role?: Role;
-  active?: boolean;
-  ip?: string | null;
-}): Promise<{ id: number; role: Role; active: boolean }> {
-  return db.transaction(async (trx) => {
-    // lock every active admin row first (same order for every caller), then the target
-    const admins: { id: number }[] = await trx('users').where({ role: 'admin', active: true }).orderBy('id').forUpdate().select('id');
-    const target = await trx('users').where({ id: userId }).forUpdate().first('id', 'role', 'active', 'email');
-    if (!target) throw new AppError('not_found', 'That person was not found.');
-    const before = { role: target.role as Role, active: Boolean(target.active) };
-    const after = { role: role ?? before.role, active: active ?? before.active };
-    const wasActiveAdmin = before.role === 'admin' && before.active;
-    const staysActiveAdmin = after.role === 'admin' && after.active;
-    if (wasActiveAdmin && !staysActiveAdmin && admins.filter((a) => a.id !== userId).length === 0) {
-      throw new AppError('conflict', LAST_ADMIN_MESSAGE);
-    }
-    if (after.role === before.role && after.active === before.active) return { id: userId, ...after };
-    // deactivation ends every session; reactivation leaves the version raised, so they stay ended
-    const endSessions = before.active && !after.active ? { session_version: trx.raw('session_version + 1') } : {};
-    await trx('users').where({ id: userId }).update({ role: after.role, active: after.active, ...endSessions, updated_at: trx.fn.now(3) });
-    if (after.role !== before.role) {
-      await recordAudit({ actorId, action: 'user.role_changed', targetType: 'user', targetId: userId, detail: { email: target.email, from: before.role, to: after.role }, ip }, trx);
-    }
-    if (after.active !== before.active) {
-      await recordAudit({ actorId, action: after.active ? 'user.reactivated' : 'user.deactivated', targetType: 'user', targetId: userId, detail: { email: target.email }, ip }, trx);
-    }
-    return { id: userId, ...after };
-  });
+/** A user's role, active flag and e-mail, the row locked. */
+export async function lockAccount(trx: Knex.Transaction, { userId }: { userId: number }): Promise<{ id: number; role: Role; active: boolean; email: string } | null> {
+  const target = await trx('users').where({ id: userId }).forUpdate().first('id', 'role', 'active', 'email');
+  return target ? { id: target.id, role: target.role as Role, active: Boolean(target.active), email: target.email } : null;
+}
+
+/** Writes a user's role and active flag; `endSessions` raises the session version (signs them out everywhere). */
+export async function writeAccess(trx: Knex.Transaction, { userId, role, active, endSessions }: { userId: number; role: Role; active: boolean; endSessions: boolean }): Promise<void> {
+  const bump = endSessions ? { session_version: trx.raw('session_version + 1') } : {};
+  await trx('users').where({ id: userId }).update({ role, active, ...bump, updated_at: trx.fn.now(3) });
 }

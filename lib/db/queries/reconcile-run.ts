@@ -1,26 +1,9 @@
 import 'server-only';
-import { decompositionWarnings } from '@/lib/runs/decomposition-warnings';
+import { decompositionWarnings } from '@/lib/decomposition/warnings';
 import { db, parseJson } from '@/lib/db/knex';
 import { componentsOfDecomposition, droppedVolumesOf, readRunMotion } from './desk';
 import { bidsName } from '@/lib/bids';
-import { AppError } from '@/lib/errors';
 import type { DeskRun } from '@/lib/desk/types';
-import type { UserRow } from './users';
-import { findStudyAccess } from './study-access';
-import { leadsStudy } from '@/lib/auth/permissions';
-
-
-/**
- * A run's current decomposition as a study lead sees it in Reconcile: the same shapes the
- * rating desk draws (maps, time courses, spectra, features), reached through leading the study
- * instead of an assignment. 404 when the run is not in a study the caller leads.
- */
-export async function loadRunForReconcile({ user, runId }: { user: Pick<UserRow, 'id' | 'role'>; runId: number }) {
-  const shapes = await loadRunShapes({ runId });
-  const access = shapes ? await findStudyAccess({ user, studyId: shapes.run.studyId }) : null;
-  if (!shapes || !leadsStudy(access)) throw new AppError('not_found', `Run ${runId} is not in a study you lead.`);
-  return shapes;
-}
 
 /** A run's current decomposition in the desk's shapes, with its files' storage keys; null without one. No access check: callers scope. */
 export async function loadRunShapes({ runId }: { runId: number }) {

@@ -1,8 +1,6 @@
 import 'server-only';
 import { db, parseJson } from '@/lib/db/knex';
-import { recordAudit } from './audit';
-import { AppError } from '@/lib/errors';
-import type { LeadDecisionInput } from '@/lib/consensus/schema';
+import type { Knex } from 'knex';
 
 export type ReconcileVote = { raterId: number; raterName: string; label: string; noiseKind: string | null; confidence: number | null; note: string | null };
 export type ReconcileItem = {
@@ -86,70 +84,35 @@ export async function listReconcileItems({ studyId, runId, noiseKind, include }:
   }));
 }
 
-export type DecisionConflict = { conflict: { label: string | null; noiseKind: string | null; method: string; decidedBy: string | null } };
-type RecordedDecision = { componentId: number; method: string; label: string; noiseKind: string | null };
+/** The component's run, index and its study's labels and noise kinds, when it is in the study's current decomposition. */
+export async function findDecisionContext(trx: Knex.Transaction, { studyId, componentId }: { studyId: number; componentId: number }): Promise<{ runId: number; idx: number; labels: string[]; kinds: string[] } | null> {
+  const ctx = await trx('components as c')
+    .join('decompositions as d', 'd.id', 'c.decomposition_id')
+    .join('runs as r', 'r.id', 'd.run_id')
+    .join('studies as s', 's.id', 'r.study_id')
+    .where({ 'c.id': componentId, 'r.study_id': studyId, 'd.is_current': true })
+    .first('r.id as runId', 'c.idx', 's.label_set as labelSet', 's.noise_kinds as noiseKinds');
+  if (!ctx) return null;
+  return { runId: ctx.runId, idx: ctx.idx, labels: parseJson<string[]>(ctx.labelSet, []) ?? [], kinds: parseJson<string[]>(ctx.noiseKinds, []) ?? [] };
+}
 
-/**
- * Records a lead's decision on a component of their study (reconciled when it was pending, an
- * override of an automatic decision otherwise), with the reason, in one transaction with its audit
- * entry. Releases keep the decisions they froze; a change after a release needs a new release.
- * With `baseVersion`, a decision that changed since the lead saw it is not touched: the attempt is
- * audited (decision.conflict) and the current decision returned as `conflict`.
- */
-export async function recordLeadDecision({ studyId, leadId, input }: { studyId: number; leadId: number; input: LeadDecisionInput }): Promise<RecordedDecision | DecisionConflict> {
-  return db.transaction(async (trx): Promise<RecordedDecision | DecisionConflict> => {
-    const ctx = await trx('components as c')
-      .join('decompositions as d', 'd.id', 'c.decomposition_id')
-      .join('runs as r', 'r.id', 'd.run_id')
-      .join('studies as s', 's.id', 'r.study_id')
-      .where({ 'c.id': input.componentId, 'r.study_id': studyId, 'd.is_current': true })
-      .first('r.id as runId', 'c.idx', 's.label_set as labelSet', 's.noise_kinds as noiseKinds');
-    if (!ctx) throw new AppError('not_found', 'That component is not part of this study (or its decomposition was replaced).');
-    const labels = parseJson<string[]>(ctx.labelSet, []) ?? [];
-    const kinds = parseJson<string[]>(ctx.noiseKinds, []) ?? [];
-    if (!labels.includes(input.label)) {
-      throw new AppError('validation', `"${input.label}" is not one of this study's labels (${labels.join(', ')}).`, { label: ['Choose one of the study’s labels.'] });
-    }
-    const noiseKind = input.label === 'noise' ? input.noiseKind ?? null : null;
-    if (noiseKind && !kinds.includes(noiseKind)) {
-      throw new AppError('validation', `"${noiseKind}" is not one of this study's noise kinds.`, { noiseKind: ['Choose one of the study’s noise kinds.'] });
-    }
-    const existing = await trx('decisions as x')
-      .leftJoin('users as u', 'u.id', 'x.decided_by')
-      .where({ 'x.component_id': input.componentId })
-      .forUpdate()
-      .first('x.id', 'x.method', 'x.label', 'x.noise_kind as noiseKind', 'x.version', 'u.name as decidedBy');
-    if (input.baseVersion !== undefined && (existing?.version ?? 0) !== input.baseVersion) {
-      // another lead (or a changed vote) got there first: refuse, and keep the attempt in the audit log
-      const current = { label: existing?.label ?? null, noiseKind: existing?.noiseKind ?? null, method: existing?.method ?? 'pending', decidedBy: existing?.decidedBy ?? null };
-      await recordAudit(
-        {
-          actorId: leadId,
-          action: 'decision.conflict',
-          targetType: 'component',
-          targetId: input.componentId,
-          studyId,
-          detail: { runId: ctx.runId, index: ctx.idx, baseVersion: input.baseVersion, version: existing?.version ?? 0, current, refused: { label: input.label, noiseKind, reason: input.reason } },
-        },
-        trx,
-      );
-      return { conflict: current };
-    }
-    const method = !existing || existing.method === 'pending' ? 'reconciled' : existing.method === 'reconciled' ? 'reconciled' : 'override';
-    const row = { label: input.label, noise_kind: noiseKind, method, decided_by: leadId, reason: input.reason, decided_at: trx.fn.now(3) };
-    if (existing) await trx('decisions').where({ id: existing.id }).update({ ...row, version: trx.raw('version + 1') });
-    else await trx('decisions').insert({ component_id: input.componentId, run_id: ctx.runId, ...row, version: 1 });
-    await recordAudit(
-      {
-        actorId: leadId,
-        action: method === 'override' ? 'decision.override' : 'decision.reconcile',
-        targetType: 'component',
-        targetId: input.componentId,
-        studyId,
-        detail: { runId: ctx.runId, index: ctx.idx, before: existing ? { label: existing.label, noiseKind: existing.noiseKind, method: existing.method } : null, label: input.label, noiseKind, reason: input.reason },
-      },
-      trx,
-    );
-    return { componentId: input.componentId, method, label: input.label, noiseKind };
-  });
+export type StoredDecision = { id: number; method: string; label: string | null; noiseKind: string | null; version: number; decidedBy: string | null };
+
+/** The component's decision row, locked for the caller's transaction. */
+export async function lockDecision(trx: Knex.Transaction, { componentId }: { componentId: number }): Promise<StoredDecision | undefined> {
+  return trx('decisions as x')
+    .leftJoin('users as u', 'u.id', 'x.decided_by')
+    .where({ 'x.component_id': componentId })
+    .forUpdate()
+    .first('x.id', 'x.method', 'x.label', 'x.noise_kind as noiseKind', 'x.version', 'u.name as decidedBy');
+}
+
+/** Writes a lead's decision: updates the row (raising its version) or inserts version 1. */
+export async function writeLeadDecision(
+  trx: Knex.Transaction,
+  { existingId, componentId, runId, label, noiseKind, method, leadId, reason }: { existingId: number | null; componentId: number; runId: number; label: string; noiseKind: string | null; method: string; leadId: number; reason: string },
+): Promise<void> {
+  const row = { label, noise_kind: noiseKind, method, decided_by: leadId, reason, decided_at: trx.fn.now(3) };
+  if (existingId != null) await trx('decisions').where({ id: existingId }).update({ ...row, version: trx.raw('version + 1') });
+  else await trx('decisions').insert({ component_id: componentId, run_id: runId, ...row, version: 1 });
 }

@@ -1,12 +1,11 @@
 import 'server-only';
 import type { Knex } from 'knex';
 import { db, parseJson } from '@/lib/db/knex';
-import { decompositionWarnings, type DecompositionWarning } from '@/lib/runs/decomposition-warnings';
+import { decompositionWarnings, type DecompositionWarning } from '@/lib/decomposition/warnings';
 import type { UserRow } from './users';
 import { runAgreements } from './agreement';
 import { findStudyAccess } from './study-access';
-import { isRunReleased } from './desk';
-import type { JobStatus } from '@/lib/jobs/status';
+import type { JobStatus } from '@/lib/db/job-status';
 
 export type RunStatus = 'uploaded' | 'queued' | 'processing' | 'ready' | 'failed' | 'cancelled';
 
@@ -260,26 +259,15 @@ export async function findRunWithEntities(
   return (await q.orderBy('r.id').first(recordColumns)) ?? null;
 }
 
-export type EntitiesChange = { outcome: 'released' } | { outcome: 'taken'; other: RunRecord } | { outcome: 'unchanged' } | { outcome: 'changed' };
+type Entities = { sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null };
 
-/**
- * Sets a run's BIDS entities in one transaction (the run row locked): not when the run is in a
- * release, not when another run of the study has them. `alsoInTransaction` runs after the update
- * in the same transaction (the caller's audit entry).
- */
-export async function changeRunEntities(
-  { runId, studyId, entities }: { runId: number; studyId: number; entities: { sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null } },
-  alsoInTransaction: (trx: Knex.Transaction) => Promise<void>,
-): Promise<EntitiesChange> {
-  return db.transaction(async (trx) => {
-    const row = await trx('runs').where({ id: runId }).forUpdate().first('sub', 'ses', 'task', 'acq', 'run_label');
-    if (await isRunReleased({ runId }, trx)) return { outcome: 'released' as const };
-    const other = await findRunWithEntities({ studyId, entities, exceptRunId: runId }, trx);
-    if (other) return { outcome: 'taken' as const, other };
-    const same = row.sub === entities.sub && (row.ses || null) === entities.ses && (row.task || null) === entities.task && (row.acq || null) === entities.acq && (row.run_label || null) === entities.runLabel;
-    if (same) return { outcome: 'unchanged' as const };
-    await trx('runs').where({ id: runId }).update({ sub: entities.sub, ses: entities.ses, task: entities.task, acq: entities.acq, run_label: entities.runLabel });
-    await alsoInTransaction(trx);
-    return { outcome: 'changed' as const };
-  });
+/** A run's BIDS entities, the row locked for the caller's transaction. */
+export async function lockRunEntities(trx: Knex.Transaction, { runId }: { runId: number }): Promise<Entities> {
+  const row = await trx('runs').where({ id: runId }).forUpdate().first('sub', 'ses', 'task', 'acq', 'run_label');
+  return { sub: row.sub, ses: row.ses || null, task: row.task || null, acq: row.acq || null, runLabel: row.run_label || null };
+}
+
+/** Writes a run's BIDS entities. */
+export async function writeRunEntities(trx: Knex.Transaction, { runId, entities }: { runId: number; entities: Entities }): Promise<void> {
+  await trx('runs').where({ id: runId }).update({ sub: entities.sub, ses: entities.ses, task: entities.task, acq: entities.acq, run_label: entities.runLabel });
 }

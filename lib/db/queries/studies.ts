@@ -3,7 +3,6 @@ import { db } from '@/lib/db/knex';
 import type { UserRow } from './users';
 import type { Knex } from 'knex';
 import { parseJson, toJson } from '@/lib/db/knex';
-import { recordAudit } from './audit';
 import type { StudyRole, ConsensusRule, DimSetting, LowReproducibilityPolicy, NoiseKindKey } from '@/lib/studies/labels';
 import type { StudyValues, StudyUpdate } from '@/lib/studies/schema';
 import { managesStudy } from '@/lib/auth/permissions';
@@ -151,19 +150,6 @@ export async function findStudyForUser({ user, studyId }: { user: Pick<UserRow, 
   };
 }
 
-/** The study when the user may manage it (an admin, or a lead member with the lead role), else null. */
-export async function findManagedStudy({ user, studyId }: { user: Pick<UserRow, 'id' | 'role'>; studyId: number }): Promise<StudyDetail | null> {
-  const query = db('studies as s').where('s.id', studyId).andWhere('s.archived', false).first(studyColumns);
-  if (user.role !== 'admin') {
-    if (user.role !== 'lead') return null;
-    query.whereExists(
-      db('study_members as m').whereRaw('m.study_id = s.id').andWhere({ 'm.user_id': user.id, 'm.study_role': 'lead' }).select(db.raw('1')),
-    );
-  }
-  const row = await query;
-  return row ? toStudy(row) : null;
-}
-
 function protocolRow(v: Partial<StudyValues>): Record<string, unknown> {
   const row: Record<string, unknown> = {};
   if (v.name !== undefined) row.name = v.name;
@@ -187,22 +173,28 @@ function protocolRow(v: Partial<StudyValues>): Record<string, unknown> {
   return row;
 }
 
-/** Creates a study; its creator becomes its lead member. Audited. */
-export async function createStudy({ user, values }: { user: Pick<UserRow, 'id'>; values: StudyValues }): Promise<number> {
-  return db.transaction(async (trx: Knex.Transaction) => {
-    const [id] = await trx('studies').insert({ ...protocolRow(values), created_by: user.id });
-    await trx('study_members').insert({ study_id: id, user_id: user.id, study_role: 'lead', added_by: user.id });
-    await recordAudit({ actorId: user.id, action: 'study.create', targetType: 'study', targetId: id, studyId: id, detail: { name: values.name } }, trx);
-    return Number(id);
-  });
+/** Writes a study and makes its creator a lead member; returns its id. */
+export async function insertStudy(trx: Knex.Transaction, { createdBy, values }: { createdBy: number; values: StudyValues }): Promise<number> {
+  const [id] = await trx('studies').insert({ ...protocolRow(values), created_by: createdBy });
+  await trx('study_members').insert({ study_id: id, user_id: createdBy, study_role: 'lead', added_by: createdBy });
+  return Number(id);
 }
 
-/** Changes a study's protocol (the caller has checked it may manage the study). Audited with the changed fields. */
-export async function updateStudy({ user, studyId, values }: { user: Pick<UserRow, 'id'>; studyId: number; values: StudyUpdate }): Promise<void> {
+/** Writes the given protocol fields of a study; returns false when there was nothing to change. */
+export async function writeProtocol(trx: Knex.Transaction, { studyId, values }: { studyId: number; values: StudyUpdate }): Promise<boolean> {
   const row = protocolRow(values);
-  if (Object.keys(row).length === 0) return;
-  await db.transaction(async (trx: Knex.Transaction) => {
-    await trx('studies').where({ id: studyId }).update(row);
-    await recordAudit({ actorId: user.id, action: 'study.update', targetType: 'study', targetId: studyId, studyId, detail: { changed: Object.keys(values) } }, trx);
-  });
+  if (Object.keys(row).length === 0) return false;
+  await trx('studies').where({ id: studyId }).update(row);
+  return true;
+}
+
+/** Whether an update carries any protocol field. */
+export function changesProtocol(values: StudyUpdate): boolean {
+  return Object.keys(protocolRow(values)).length > 0;
+}
+
+/** A study's stored row as it is (every column, snake_case), for the methods paragraph and the report; no access check: callers scope. */
+// eslint-disable-next-line @typescript-eslint/no-explicit-any -- the raw row, read column by column by its callers
+export async function findStudyRow({ studyId }: { studyId: number }): Promise<Record<string, any> | undefined> {
+  return db('studies').where({ id: studyId }).first();
 }

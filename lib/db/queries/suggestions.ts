@@ -1,4 +1,4 @@
-// No `server-only` here: the worker's suggestion jobs (lib/jobs/kinds/*-suggestions.ts) use these queries outside Next.js.
+// No `server-only` here: the worker's suggestion jobs (lib/worker/kinds/*-suggestions.ts) use these queries outside Next.js.
 import type { Knex } from 'knex';
 import { db, parseJson, toJson } from '@/lib/db/knex';
 import type { ModelReport, RaterSuggestion, RawFeatures, StoredModel, SuggestionModelJson, TrainingRecord, TrainingSource } from '@/lib/suggestions/types';

@@ -5,8 +5,8 @@
 import type { Knex } from 'knex';
 import { parseJson } from '@/lib/db/knex';
 import { claimJob } from '@/lib/jobs/queue';
-import { runClaimedJob, type RunOutcome } from '@/lib/jobs/runner';
-import { jobKinds } from '@/lib/jobs/kinds';
+import { runClaimedJob, type RunOutcome } from '@/lib/worker/runner';
+import { jobKinds } from '@/lib/worker/kinds';
 
 const logger = { info: () => {}, warn: () => {}, error: (m: string) => console.error(m) };
 

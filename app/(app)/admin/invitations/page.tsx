@@ -1,6 +1,6 @@
 import type { Metadata } from 'next';
 import { requirePageUser } from '@/lib/auth/session';
-import { listInvitations } from '@/lib/db/queries/invitations';
+import { listInvitations } from '@/lib/invitations/list-invitations';
 import { invitableStudies } from '@/lib/db/queries/people';
 import { ROLES, type Role } from '@/lib/auth/roles';
 import { inviteTtlMs } from '@/lib/auth/tokens';

@@ -1,5 +1,5 @@
 import type { Metadata } from 'next';
-import { describeLink, findLinkByToken } from '@/lib/db/queries/invitations';
+import { describeLink, findLinkByToken } from '@/lib/invitations/find-link';
 import { looksLikeToken } from '@/lib/auth/tokens';
 import { ROLE_LABELS } from '@/lib/auth/roles';
 import { LinkRefused } from '@/components/admin/link-refused';

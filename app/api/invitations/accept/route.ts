@@ -1,6 +1,6 @@
 import { handler } from '@/lib/api/handler';
 import { acceptSchema } from '@/lib/invitations/schema';
-import { acceptInvitation } from '@/lib/db/queries/invitations';
+import { acceptInvitation } from '@/lib/invitations/accept-invitation';
 import { hashPassword } from '@/lib/auth/password';
 import { countAttempts, lockedFor } from '@/lib/auth/throttle';
 import { addressKey, auditAddress } from '@/lib/auth/client-address';

@@ -1,6 +1,6 @@
 import { handler } from '@/lib/api/handler';
 import { resetCompleteSchema } from '../schema';
-import { completePasswordReset } from '@/lib/db/queries/invitations';
+import { completePasswordReset } from '@/lib/people/complete-password-reset';
 import { hashPassword } from '@/lib/auth/password';
 import { countAttempts, lockedFor } from '@/lib/auth/throttle';
 import { addressKey, auditAddress } from '@/lib/auth/client-address';

@@ -2,7 +2,7 @@ import type { Metadata } from 'next';
 import Link from 'next/link';
 import { forbidden, notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
-import { listStudyAssignments } from '@/lib/db/queries/assignments';
+import { listStudyAssignments } from '@/lib/assignments/list-study-assignments';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { leadsStudy } from '@/lib/auth/permissions';
 import { AssignmentsTable } from '@/components/assignments/assignments-table';

@@ -3,7 +3,7 @@ import { readFile } from 'node:fs/promises';
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
-import { db } from '@/lib/db/knex';
+import { findStudyRow } from '@/lib/db/queries/studies';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { loadRatingFacts, loadStudyRatings } from '@/lib/db/queries/agreement';
 import { findRelease, loadExportRuns, releaseDecisions, storedAgreementReport } from '@/lib/db/queries/releases';
@@ -34,7 +34,7 @@ export default async function ReportPage({ params, searchParams }: { params: Pro
   const release = releaseParam ? await findRelease({ releaseId: Number(releaseParam) }) : null;
   if (releaseParam && (!release || release.studyId !== studyId || !release.manifest)) notFound();
 
-  const study = await db('studies').where({ id: studyId }).first();
+  const study = (await findStudyRow({ studyId }))!;
   const runIds = release ? release.manifest!.runs.map((r) => r.runId) : undefined;
   // a release's statistics were computed once by its release job; releases made before that was
   // stored, and the current state, are computed here
@@ -59,7 +59,7 @@ export default async function ReportPage({ params, searchParams }: { params: Pro
     const md = file ? await readFile(pathFor(file.key), 'utf8').catch(() => '') : '';
     methods = md.split('\n').filter((l) => l && !l.startsWith('#') && !l.startsWith('- ')).join(' ');
   } else {
-    const runs = await loadExportRuns({ studyId }, db, { timecourses: false });
+    const runs = await loadExportRuns({ studyId }, undefined, { timecourses: false });
     methods = runs.length ? methodsParagraph(methodsInputOf(runs, study, report, await loadRatingFacts({ studyId }))) : 'No run has a finished decomposition yet.';
   }
   const names = new Map(report.raters.map((r) => [String(r.id), r.name]));

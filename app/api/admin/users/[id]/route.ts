@@ -1,6 +1,6 @@
 import { handler } from '@/lib/api/handler';
 import { accessChangeSchema, userIdParams } from '@/lib/people/schema';
-import { updateAccess } from '@/lib/db/queries/people';
+import { updateAccess } from '@/lib/people/update-access';
 import { auditAddress } from '@/lib/auth/client-address';
 
 // PATCH /api/admin/users/:id – change a person's role or (de)activate them; the last active admin stays (409)

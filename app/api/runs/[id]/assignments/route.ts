@@ -1,7 +1,8 @@
 import { handler } from '@/lib/api/handler';
 import { addRaterSchema, runDueSchema, runParamsSchema } from '@/lib/assignments/schema';
 import { auditAddress } from '@/lib/auth/client-address';
-import { addRaterToRun, setRunDue } from '@/lib/db/queries/assignments';
+import { addRaterToRun } from '@/lib/assignments/add-rater';
+import { setRunDue } from '@/lib/assignments/set-due';
 
 // POST /api/runs/:id/assignments – a lead adds a rater of the study to the run (decisions recomputed)
 export const POST = handler({ permission: 'runs.manage', params: runParamsSchema, body: addRaterSchema, what: 'The assignment' }, async ({ req, user, params, body }) =>

@@ -1,7 +1,8 @@
 import { handler } from '@/lib/api/handler';
 import { bulkDueSchema, studyParamsSchema } from '@/lib/assignments/schema';
 import { auditAddress } from '@/lib/auth/client-address';
-import { listStudyAssignments, setStudyDue } from '@/lib/db/queries/assignments';
+import { listStudyAssignments } from '@/lib/assignments/list-study-assignments';
+import { setStudyDue } from '@/lib/assignments/set-due';
 
 // GET /api/studies/:id/assignments – runs × assigned raters with progress, and the study's raters (leads of the study, admins)
 export const GET = handler({ permission: 'runs.manage', params: studyParamsSchema }, async ({ user, params }) =>

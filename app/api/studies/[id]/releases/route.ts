@@ -1,18 +1,14 @@
 import { z } from 'zod';
 import { auditAddress } from '@/lib/auth/client-address';
 import { handler } from '@/lib/api/handler';
-import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { listReleases, releaseReadiness } from '@/lib/db/queries/releases';
 import { publicManifest, refusalOf, requestRelease } from '@/lib/releases/create-release';
-import { notFound } from '@/lib/errors';
 import { createReleaseSchema } from './schema';
 
 const params = z.object({ id: z.coerce.number().int().positive() });
 
 // GET /api/studies/:id/releases – the study's releases (newest first) and whether it can be released now
-export const GET = handler({ permission: 'releases.read', params, what: 'The releases request' }, async ({ user, params }) => {
-  const access = await findStudyAccess({ user, studyId: params.id });
-  if (!access) throw notFound('The study');
+export const GET = handler({ permission: 'releases.read', params, what: 'The releases request', scope: 'study' }, async ({ access, params }) => {
   const readiness = await releaseReadiness({ studyId: params.id });
   const releases = await listReleases({ studyId: params.id });
   return {

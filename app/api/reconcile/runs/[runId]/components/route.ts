@@ -1,5 +1,5 @@
 import { handler } from '@/lib/api/handler';
-import { loadRunForReconcile } from '@/lib/db/queries/reconcile-run';
+import { loadRunForReconcile } from '@/lib/consensus/load-run-for-reconcile';
 import { reconcileRunParams } from '@/lib/consensus/reconcile-params';
 
 // GET /api/reconcile/runs/:runId/components – a run's components for the lead reconciling it

@@ -1,7 +1,9 @@
 import { handler } from '@/lib/api/handler';
 import { changeAssignmentSchema, removeRaterQuerySchema, runRaterParamsSchema } from '@/lib/assignments/schema';
 import { auditAddress } from '@/lib/auth/client-address';
-import { reassignRun, removeRaterFromRun, setRunDue } from '@/lib/db/queries/assignments';
+import { reassignRun } from '@/lib/assignments/reassign-run';
+import { removeRaterFromRun } from '@/lib/assignments/remove-rater';
+import { setRunDue } from '@/lib/assignments/set-due';
 
 // PATCH /api/runs/:id/assignments/:raterId – reassign the rater's place to another rater, and/or set this rater's due date
 export const PATCH = handler({ permission: 'runs.manage', params: runRaterParamsSchema, body: changeAssignmentSchema, what: 'The assignment' }, async ({ req, user, params, body }) => {

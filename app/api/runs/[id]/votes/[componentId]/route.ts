@@ -1,6 +1,6 @@
 import { handler } from '@/lib/api/handler';
 import { voteChangeSchema, voteParamsSchema } from '@/lib/desk/schemas';
-import { saveVote } from '@/lib/db/queries/votes';
+import { saveVote } from '@/lib/votes/save-vote';
 import { auditAddress as clientIp } from '@/lib/auth/client-address';
 
 // PUT /api/runs/:id/votes/:componentId – record the caller's vote (fields merged, version-checked)

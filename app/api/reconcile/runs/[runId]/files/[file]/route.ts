@@ -1,5 +1,5 @@
 import { handler } from '@/lib/api/handler';
-import { loadRunForReconcile } from '@/lib/db/queries/reconcile-run';
+import { loadRunForReconcile } from '@/lib/consensus/load-run-for-reconcile';
 import { reconcileFileParams } from '@/lib/consensus/reconcile-params';
 import { storedFileResponse } from '@/lib/storage/respond';
 import { AppError } from '@/lib/errors';

@@ -3,7 +3,7 @@
  * help (JobError, retried) or not (PermanentJobError). Slurm's job states are documented in
  * squeue(1) "JOB STATE CODES" (Slurm 22.05).
  */
-import { JobError, PermanentJobError } from '../errors';
+import { JobError, PermanentJobError } from '@/lib/jobs/errors';
 import type { ClusterJobState } from './slurm-commands';
 
 const TERMINAL = new Set(['COMPLETED', 'FAILED', 'TIMEOUT', 'OUT_OF_MEMORY', 'NODE_FAIL', 'BOOT_FAIL', 'CANCELLED', 'DEADLINE', 'PREEMPTED', 'SPECIAL_EXIT', 'REVOKED']);

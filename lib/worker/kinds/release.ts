@@ -9,7 +9,7 @@
 import { AppError } from '@/lib/errors';
 import { buildRelease } from '@/lib/releases/create-release';
 import { releasePayloadSchema, type ReleaseJobResult } from '@/lib/releases/payload';
-import { PermanentJobError } from '../errors';
+import { PermanentJobError } from '@/lib/jobs/errors';
 import { defineJobKind } from '../types';
 
 export const releaseKind = defineJobKind({

@@ -4,9 +4,9 @@
  * kind is already queued, so many assignments made within the batch window share one job.
  */
 import type { Knex } from 'knex';
-import { enqueueJob } from '@/lib/jobs/queue';
-import { notificationsEnabled, notifyBatchMs, overdueHourUtc, msUntilNextHourUtc } from './config';
-import { NOTIFY_ASSIGNMENTS, NOTIFY_OVERDUE, NOTIFY_VOTES_COMPLETE, type NotifyKind } from './payloads';
+import { enqueueJob } from './queue';
+import { notificationsEnabled, notifyBatchMs, overdueHourUtc, msUntilNextHourUtc } from '@/lib/notifications/config';
+import { NOTIFY_ASSIGNMENTS, NOTIFY_OVERDUE, NOTIFY_VOTES_COMPLETE, type NotifyKind } from '@/lib/notifications/payloads';
 
 /** Notification jobs run after the work they report on. */
 const PRIORITY = -1;

@@ -8,7 +8,7 @@ import { findOutboxMail, markMailFailed, markMailSent } from '@/lib/db/queries/m
 import { openMail } from '@/lib/mail/seal';
 import { sendMailPayloadSchema, SEND_MAIL } from '@/lib/mail/payloads';
 import { sendMail } from '@/lib/mail/transport';
-import { JobError, PermanentJobError } from '../errors';
+import { JobError, PermanentJobError } from '@/lib/jobs/errors';
 import { defineJobKind } from '../types';
 
 export const sendMailKind = defineJobKind({

@@ -17,7 +17,7 @@ import { denoisePayloadSchema, type DenoiseResult } from '@/lib/denoise/payload'
 import { noiseList, type UncertainPolicy } from '@/lib/exports/noise-list';
 import { readNiftiFile } from '@/lib/nifti';
 import { ensureDirFor, newKey, pathFor, removeKey } from '@/lib/storage';
-import { JobError, PermanentJobError } from '../errors';
+import { JobError, PermanentJobError } from '@/lib/jobs/errors';
 import { denoiseOnSlurm } from '../executors/denoise-on-slurm';
 import { executorName, slurmSettings } from '../executors/settings';
 import { defineJobKind } from '../types';

@@ -1,5 +1,5 @@
 /**
- * lowerProcessPriority (lib/jobs/cpu-priority.ts) lowers every thread of the process, not only the
+ * lowerProcessPriority (lib/worker/cpu-priority.ts) lowers every thread of the process, not only the
  * calling one. Read back from Linux itself: field 19 of /proc/<pid>/task/<tid>/stat is the nice
  * value (proc(5), /proc/pid/stat); /proc/<pid>/autogroup ends with the session group's nice value
  * (sched(7), "The autogroup feature"). A child process starts a worker thread, then lowers its priority.
@@ -25,7 +25,7 @@ w.on('online', async () => {
 });
 `;
 
-const modulePath = new URL('../../lib/jobs/cpu-priority.ts', import.meta.url).pathname;
+const modulePath = new URL('../../lib/worker/cpu-priority.ts', import.meta.url).pathname;
 
 describe.runIf(process.platform === 'linux')('lowerProcessPriority', () => {
   it('every thread of the process runs at the lowered nice value, threads started before it included', () => {

@@ -5,7 +5,7 @@
  * once assignments exist.
  */
 import { notifyOverduePayloadSchema, NOTIFY_OVERDUE } from '@/lib/notifications/payloads';
-import { ensureDailyOverdue } from '@/lib/notifications/enqueue';
+import { ensureDailyOverdue } from '@/lib/jobs/queue-notifications';
 import { sendOverdueSummaries } from '@/lib/notifications/overdue';
 import { defineJobKind } from '../types';
 

@@ -6,9 +6,9 @@
  */
 import type { Knex } from 'knex';
 import { toJson } from '@/lib/db/knex';
-import { JobCancelled, LeaseLost, PermanentJobError, isStopSignal } from './errors';
-import { describePayloadIssues } from './payloads';
-import { clip, completeJob, failJob, getJob, lockOwnedJob, renewLease, reportProgress, type Job } from './queue';
+import { JobCancelled, LeaseLost, PermanentJobError, isStopSignal } from '@/lib/jobs/errors';
+import { describePayloadIssues } from '@/lib/jobs/payloads';
+import { clip, completeJob, failJob, getJob, lockOwnedJob, renewLease, reportProgress, type Job } from '@/lib/jobs/queue';
 import type { JobContext, JobKind, JobLogger } from './types';
 
 export type RunOutcome = 'succeeded' | 'retry' | 'failed' | 'cancelled' | 'lost';

@@ -12,7 +12,7 @@ import { decomposeRun, type DecomposeOptions } from '@/lib/decomposition/pipelin
 import { DEFAULT_DIM_METHOD } from '@/lib/decomposition/dimensionality';
 import { readNiftiFile, type NiftiImage } from '@/lib/nifti';
 import { assignRaters, type AssignRatersResult } from '@/lib/runs/assign-raters';
-import { afterAssignmentsCreated } from '@/lib/notifications/enqueue';
+import { afterAssignmentsCreated } from '@/lib/jobs/queue-notifications';
 import {
   componentRows,
   decompositionSummary,
@@ -21,8 +21,8 @@ import {
 } from '@/lib/runs/ingest-decomposition';
 import { pathFor, removeKey } from '@/lib/storage';
 import { storageFaultKind } from '@/lib/storage/faults';
-import { JobError, PermanentJobError } from '../errors';
-import { decomposePayloadSchema, type DecomposePayload } from '../payloads';
+import { JobError, PermanentJobError } from '@/lib/jobs/errors';
+import { decomposePayloadSchema, type DecomposePayload } from '@/lib/jobs/payloads';
 import { defineJobKind } from '../types';
 import { decomposeOnSlurm } from '../executors/decompose-on-slurm';
 import { executorName, slurmSettings } from '../executors/settings';

@@ -7,8 +7,8 @@
 import type { Knex } from 'knex';
 import { activeSuggestionModel, componentsToScore, insertSuggestions } from '@/lib/db/queries/suggestions';
 import { scoreComponents } from '@/lib/suggestions/score-components';
-import { scoreSuggestionsPayloadSchema } from '@/lib/suggestions/payload';
-import { enqueueJob } from '../queue';
+import { scoreSuggestionsPayloadSchema } from '@/lib/jobs/suggestion-payloads';
+import { enqueueJob } from '@/lib/jobs/queue';
 import { defineJobKind } from '../types';
 
 export const scoreSuggestionsKind = defineJobKind({

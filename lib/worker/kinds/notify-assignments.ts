@@ -1,12 +1,12 @@
 /**
- * Job kind `notify-assignments` (payload {}): queued by lib/notifications/enqueue.ts when
+ * Job kind `notify-assignments` (payload {}): queued by lib/jobs/queue-notifications.ts when
  * assignments are created, to start QUORUM_NOTIFY_BATCH_MS later, so every assignment made in that
  * window reaches each rater as one e-mail (lib/notifications/send-assignments.ts). A delivery that
  * failed leaves those assignments unnotified and retries the job.
  */
 import { sendAssignmentNotices } from '@/lib/notifications/send-assignments';
 import { notifyAssignmentsPayloadSchema, NOTIFY_ASSIGNMENTS } from '@/lib/notifications/payloads';
-import { JobError } from '../errors';
+import { JobError } from '@/lib/jobs/errors';
 import { defineJobKind } from '../types';
 
 export const notifyAssignmentsKind = defineJobKind({

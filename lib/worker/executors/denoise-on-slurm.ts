@@ -10,7 +10,7 @@ import { createReadStream } from 'node:fs';
 import { copyFile, mkdir, rm, stat, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import { ensureDirFor, newKey } from '@/lib/storage';
-import { PermanentJobError } from '../errors';
+import { PermanentJobError } from '@/lib/jobs/errors';
 import type { JobContext } from '../types';
 import { clusterPathFor, runOnSlurm } from './run-on-slurm';
 import type { SlurmSettings } from './settings';

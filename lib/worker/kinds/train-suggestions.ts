@@ -7,9 +7,9 @@
  */
 import { insertSuggestionModel, trainingData } from '@/lib/db/queries/suggestions';
 import { trainSuggestionModel } from '@/lib/suggestions/cross-validate';
-import { trainSuggestionsPayloadSchema } from '@/lib/suggestions/payload';
-import { PermanentJobError } from '../errors';
-import { enqueueJob } from '../queue';
+import { trainSuggestionsPayloadSchema } from '@/lib/jobs/suggestion-payloads';
+import { PermanentJobError } from '@/lib/jobs/errors';
+import { enqueueJob } from '@/lib/jobs/queue';
 import { defineJobKind } from '../types';
 
 export const trainSuggestionsKind = defineJobKind({

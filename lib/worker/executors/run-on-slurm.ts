@@ -12,7 +12,7 @@ import { randomBytes } from 'node:crypto';
 import { mkdir, readFile, rm, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import { storageRoot } from '@/lib/storage';
-import { JobCancelled, JobError, isStopSignal } from '../errors';
+import { JobCancelled, JobError, isStopSignal } from '@/lib/jobs/errors';
 import type { JobContext } from '../types';
 import { loadTemplate, renderBatchScript, shellQuote } from './batch-script';
 import { clusterFailure, elapsedText, isTerminal, pendingReason } from './cluster-failure';

@@ -1,7 +1,7 @@
 // What a job kind is and what it gets when it runs.
 import type { Knex } from 'knex';
 import type { z } from 'zod';
-import type { Job } from './queue';
+import type { Job } from '@/lib/jobs/queue';
 
 export interface JobLogger {
   info(message: string): void;

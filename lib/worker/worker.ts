@@ -6,7 +6,7 @@
 import { hostname } from 'node:os';
 import { randomBytes } from 'node:crypto';
 import type { Knex } from 'knex';
-import { claimJob, releaseJob, requeueExpiredLeases, type Job } from './queue';
+import { claimJob, releaseJob, requeueExpiredLeases, type Job } from '@/lib/jobs/queue';
 import { readableMessage, runClaimedJob, type RunOutcome } from './runner';
 import type { JobKind, JobLogger } from './types';
 

@@ -6,7 +6,7 @@
  */
 import { votesCompleteScanMs } from '@/lib/notifications/config';
 import { notifyVotesCompletePayloadSchema, NOTIFY_VOTES_COMPLETE } from '@/lib/notifications/payloads';
-import { ensureNotifyJob } from '@/lib/notifications/enqueue';
+import { ensureNotifyJob } from '@/lib/jobs/queue-notifications';
 import { ratingsOpen, sendVotesCompleteNotices } from '@/lib/notifications/votes-complete';
 import { sendDriftNotices } from '@/lib/notifications/calibration-drift';
 import { defineJobKind } from '../types';
