@@ -10,7 +10,7 @@
 import type { Knex } from 'knex';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { dueRecalibrations, startRecalibrationRound } from '@/lib/db/queries/calibration-rounds';
-import { afterAssignmentsCreated } from '@/lib/notifications/enqueue';
+import { afterAssignmentsCreated } from '@/lib/jobs/queue-notifications';
 
 const DUE_DAYS = 14;
 

@@ -82,9 +82,11 @@ describe('reopening a submitted run', () => {
     const job = await db('jobs').where({ kind: SEND_MAIL }).whereRaw("JSON_VALUE(payload, '$.outboxId') = ?", [rows[0].id]).first('id');
     expect(job, 'a send-mail job for the outbox row').toBeTruthy();
     await db('jobs').where({ id: job.id }).update({ run_after: db.raw('NOW(3)') });
-    const claimed = await claimJob(db, { workerId: 'reopen-mail-test', leaseMs: 10_000, kinds: [SEND_MAIL] });
-    expect(claimed?.id).toBe(Number(job.id));
-    await runClaimedJob(db, claimed!, { workerId: 'reopen-mail-test', leaseMs: 10_000, kinds: jobKinds, logger: quiet, retryBaseMs: 0 });
+    // as the worker does: send-mail jobs in queue order (earlier test files may have left some) until ours ran
+    for (let claimed; (claimed = await claimJob(db, { workerId: 'reopen-mail-test', leaseMs: 10_000, kinds: [SEND_MAIL] })); ) {
+      await runClaimedJob(db, claimed, { workerId: 'reopen-mail-test', leaseMs: 10_000, kinds: jobKinds, logger: quiet, retryBaseMs: 0 });
+      if (claimed.id === Number(job.id)) break;
+    }
     expect((await db('jobs').where({ id: job.id }).first('status')).status).toBe('succeeded');
 
     const mail = await waitForMail({ to: email, dir: mailDir, subject: /is open for you again/ });

@@ -17,6 +17,7 @@ vi.mock('next-auth', async (importOriginal) => ({
 const factories = await import('./helpers/factories');
 const { createStudyWithRaters, createUser } = factories;
 const uploads = await factories.useTempUploads();
+const { buildRequestedRelease } = await import('./helpers/release-jobs');
 const { db, closeDb, parseJson } = await import('@/lib/db/knex');
 const { claimJob } = await import('@/lib/jobs');
 const { jobKinds } = await import('@/lib/worker/kinds');
@@ -167,8 +168,10 @@ describe('the release ZIP carries the model in use', () => {
         .onConflict('component_id').merge(['label', 'method', 'reason', 'decided_by']);
     }
     actAs(lead);
-    const created = await callRoute(releasesRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/releases`, params: { id: String(studyId) }, body: { runId: r.runId } });
-    expect(created.status, JSON.stringify(created.json)).toBe(201);
+    const requested = await callRoute(releasesRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/releases`, params: { id: String(studyId) }, body: { runId: r.runId } });
+    expect(requested.status, JSON.stringify(requested.json)).toBe(202);
+    const created = await buildRequestedRelease(db, requested); // the worker's release job, run here
+    expect(created.json.jobStatus, JSON.stringify(created.json)).toBe('succeeded');
     const releaseId = Number(created.json.releaseId);
     const exported = await callRoute(modelRoute.GET, { url: '/', params: { id: String(studyId) } });
     const res = await archiveRoute.GET(new Request(`http://localhost/api/releases/${releaseId}/archive`), { params: Promise.resolve({ releaseId: String(releaseId) }) });
