@@ -12,7 +12,8 @@
 // not running). Its database (BENCH_DESK_DB, default quorum_e2e_bench) and files (.data/bench-uploads)
 // are kept between runs so the 80-component decomposition is made once; BENCH_DESK_FRESH=1 remakes it.
 // Settings: BENCH_DESK_PORT (3590), BENCH_DESK_SWITCHES (40), BENCH_DESK_K (80), BENCH_DESK_SIZE (S),
-// BENCH_DESK_PROFILE=1 (also prints where the page's main thread spends its time during the switches).
+// BENCH_DESK_PROFILE=1 (also prints where the page's main thread spends its time during the load and
+// the switches), BENCH_DESK_SCREENSHOT=<file.png> (a picture of the loaded desk).
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import { existsSync } from 'node:fs';
@@ -173,6 +174,7 @@ export async function main(): Promise<void> {
     const loadProfile = loadCdp ? ((await loadCdp.send('Profiler.stop')) as { profile: Profile }).profile : null;
     await loadCdp?.detach();
     const warm = await loadDesk(page, run.runId);
+    if (process.env.BENCH_DESK_SCREENSHOT) await page.screenshot({ path: process.env.BENCH_DESK_SCREENSHOT, fullPage: true });
     await page.keyboard.press('Home');
     await page.getByTestId('desk-position').filter({ hasText: `Component 1 of ${run.k}` }).waitFor();
     const cdp = process.env.BENCH_DESK_PROFILE === '1' ? await context.newCDPSession(page) : null;
