@@ -50,7 +50,7 @@ export const SpectrumChart = memo(function SpectrumChart({
     () => ({
       legend: { show: false },
       cursor: { show: false },
-      padding: [6, 10, 0, 0],
+      padding: [6, 18, 0, 0], // room on the right for the last frequency label
       scales: { x: { time: false, auto: false, range: [0, nyquist] }, y: { range: niceRange(4) } },
       axes: [niceAxis({ count: 6, size: 26 }), niceAxis({ count: 4, size: 40, label: 'power (a.u.²/Hz)' })],
       series: [{}, { stroke: CHART.trace, width: 1.25, points: { show: false } }],
