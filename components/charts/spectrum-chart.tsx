@@ -1,12 +1,38 @@
 'use client';
 import { memo, useMemo } from 'react';
-import { CartesianGrid, Line, LineChart, ReferenceLine, ResponsiveContainer, XAxis, YAxis } from 'recharts';
+import type uPlot from 'uplot';
 import { CHART } from './theme';
-import { niceTicks, tickFormatter } from './ticks';
+import { FONT, UplotChart, niceAxis, niceRange } from './uplot-chart';
+
+/** A dashed or solid vertical line at frequency `f` with a label beside it, inside the plot area. */
+function referenceLine(u: uPlot, f: number, text: string, dashed: boolean, side: 'left' | 'right') {
+  const ctx = u.ctx;
+  const x = Math.round(u.valToPos(f, 'x', true));
+  const { top, height, left, width } = u.bbox;
+  if (x < left - 1 || x > left + width + 1) return;
+  ctx.save();
+  ctx.strokeStyle = CHART.reference;
+  ctx.lineWidth = 1;
+  ctx.setLineDash(dashed ? [3, 3] : []);
+  ctx.beginPath();
+  ctx.moveTo(x + 0.5, top);
+  ctx.lineTo(x + 0.5, top + height);
+  ctx.stroke();
+  const pr = uPlotRatio();
+  ctx.font = FONT.replace('10px', `${10 * pr}px`);
+  ctx.fillStyle = CHART.reference;
+  ctx.textBaseline = 'top';
+  ctx.textAlign = side === 'left' ? 'right' : 'left';
+  ctx.fillText(text, x + (side === 'left' ? -3 : 3) * pr, top + 2 * pr);
+  ctx.restore();
+}
+
+const uPlotRatio = () => (typeof devicePixelRatio === 'number' ? devicePixelRatio : 1);
 
 /**
- * A component's power spectrum in Hz, from 0 to the Nyquist limit 1/(2·TR), with a reference
- * line at 0.1 Hz (above it, power is more often physiological or scanner noise).
+ * A component's power spectrum in Hz, from 0 to the Nyquist limit 1/(2·TR), with a dashed line at
+ * 0.1 Hz (above it, power is more often physiological or scanner noise) and the Nyquist limit
+ * labelled inside the plot. Power in a.u.²/Hz on the y axis (label beside the ticks, not over them).
  */
 export const SpectrumChart = memo(function SpectrumChart({
   frequencies,
@@ -14,44 +40,35 @@ export const SpectrumChart = memo(function SpectrumChart({
   trSeconds,
   height = 150,
 }: {
-  frequencies: number[];
-  power: number[];
+  frequencies: ArrayLike<number>;
+  power: ArrayLike<number>;
   trSeconds: number;
   height?: number;
 }) {
   const nyquist = 1 / (2 * trSeconds);
-  const data = useMemo(() => frequencies.map((f, i) => ({ f, p: power[i] ?? 0 })), [frequencies, power]);
-  const yTicks = useMemo(() => niceTicks(0, Math.max(0, ...power), 4), [power]);
-  const xTicks = useMemo(() => niceTicks(0, nyquist, 6).filter((f) => f <= nyquist + 1e-9), [nyquist]);
+  const options = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
+    () => ({
+      legend: { show: false },
+      cursor: { show: false },
+      padding: [6, 18, 0, 0], // room on the right for the last frequency label
+      scales: { x: { time: false, auto: false, range: [0, nyquist] }, y: { range: niceRange(4) } },
+      axes: [niceAxis({ count: 6, size: 26 }), niceAxis({ count: 4, size: 40, label: 'power (a.u.²/Hz)' })],
+      series: [{}, { stroke: CHART.trace, width: 1.25, points: { show: false } }],
+      hooks: {
+        draw: [
+          (u) => {
+            referenceLine(u, 0.1, '0.1 Hz', true, 'right');
+            referenceLine(u, nyquist, `Nyquist ${nyquist.toFixed(3)} Hz`, false, 'left');
+          },
+        ],
+      },
+    }),
+    [nyquist],
+  );
+  const data = useMemo<uPlot.AlignedData>(() => [frequencies as number[], power as number[]], [frequencies, power]);
   return (
-    <div style={{ height }} data-testid="spectrum-chart" aria-label="Power spectrum" role="img">
-      <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 300, height }}>
-        <LineChart data={data} margin={{ top: 6, right: 10, bottom: 0, left: -18 }}>
-          <CartesianGrid stroke={CHART.grid} vertical={false} />
-          <XAxis
-            dataKey="f"
-            type="number"
-            domain={[0, nyquist]}
-            ticks={xTicks}
-            tick={CHART.tick}
-            stroke={CHART.axis}
-            tickFormatter={tickFormatter(xTicks)}
-            unit=" Hz"
-          />
-          <YAxis
-            domain={[yTicks[0] ?? 0, yTicks.at(-1) ?? 1]}
-            ticks={yTicks}
-            tick={CHART.tick}
-            stroke={CHART.axis}
-            width={52}
-            tickFormatter={tickFormatter(yTicks)}
-            label={{ value: 'power (a.u.²/Hz)', angle: -90, position: 'insideLeft', fill: CHART.reference, fontSize: 10, dx: 14, dy: 40 }}
-          />
-          <ReferenceLine x={0.1} stroke={CHART.reference} strokeDasharray="3 3" label={{ value: '0.1 Hz', position: 'insideTopRight', fill: CHART.reference, fontSize: 10 }} />
-          <ReferenceLine x={nyquist} stroke={CHART.reference} label={{ value: `Nyquist ${nyquist.toFixed(3)} Hz`, position: 'insideTopLeft', fill: CHART.reference, fontSize: 10 }} />
-          <Line dataKey="p" stroke={CHART.trace} strokeWidth={1.25} dot={false} isAnimationActive={false} />
-        </LineChart>
-      </ResponsiveContainer>
+    <div data-testid="spectrum-chart" aria-label={`Power spectrum (a.u.²/Hz) from 0 to the Nyquist limit ${nyquist.toFixed(3)} Hz`} role="img">
+      <UplotChart options={options} data={data} height={height} />
     </div>
   );
 });

@@ -1,29 +1,23 @@
 'use client';
-import { memo, useMemo, useState } from 'react';
-import { CartesianGrid, Line, LineChart, ReferenceArea, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
+import { memo, useLayoutEffect, useMemo, useRef, useState } from 'react';
+import type uPlot from 'uplot';
 import { CHART } from './theme';
-import { niceTicks, tickFormatter } from './ticks';
+import { UplotChart, niceAxis, niceRange } from './uplot-chart';
 
 /** A time range in seconds of acquisition time (null: the whole run). */
 export type TimeRange = [number, number] | null;
 
-type Point = { s: number; v: number; vol: number };
-
-function HoverBox({ active, payload }: { active?: boolean; payload?: { payload: Point }[] }) {
-  const p = active ? payload?.[0]?.payload : undefined;
-  if (!p) return null;
-  return (
-    <div className="rounded border border-line-strong bg-ground-raised px-2 py-1 font-mono text-[11px] text-ink" data-testid="timecourse-hover">
-      volume {p.vol} · {p.s.toFixed(1)} s · {p.v.toFixed(3)}
-    </div>
-  );
+/** Acquisition times (s) of the kept volumes: (dropped + t) · TR. */
+function timesOf(n: number, trSeconds: number, droppedVolumes: number): number[] {
+  return Array.from({ length: n }, (_, t) => (droppedVolumes + t) * trSeconds);
 }
 
 /**
  * A component's time course against acquisition time: x = (dropped volumes + t) · TR seconds.
  * The dropped initial volumes are a grey band from 0 s; hovering shows the volume index (0-based,
  * counted from the first acquired volume) and its time; dragging across the chart zooms to that
- * range (`range`/`onRange`, shared with the motion traces below it).
+ * range (`range`/`onRange`, shared with the motion traces below it). Drawn on a canvas (uPlot):
+ * a new component only replaces the series.
  */
 export const TimecourseChart = memo(function TimecourseChart({
   values,
@@ -33,69 +27,82 @@ export const TimecourseChart = memo(function TimecourseChart({
   onRange,
   height = 150,
 }: {
-  values: number[];
+  values: ArrayLike<number>;
   trSeconds: number;
   droppedVolumes: number;
   range?: TimeRange;
   onRange?: (r: TimeRange) => void;
   height?: number;
 }) {
-  const data = useMemo<Point[]>(() => values.map((v, t) => ({ s: (droppedVolumes + t) * trSeconds, v, vol: droppedVolumes + t })), [values, trSeconds, droppedVolumes]);
-  const end = (droppedVolumes + Math.max(values.length - 1, 0)) * trSeconds;
-  const domain = useMemo<[number, number]>(() => range ?? [0, end], [range, end]);
-  const shown = useMemo(() => (range ? data.filter((d) => d.s >= range[0] && d.s <= range[1]) : data), [data, range]);
-  const yTicks = useMemo(() => (shown.length ? niceTicks(Math.min(...shown.map((d) => d.v)), Math.max(...shown.map((d) => d.v)), 4) : [0, 1]), [shown]);
-  const xTicks = useMemo(() => niceTicks(domain[0], domain[1], 6).filter((s) => s >= domain[0] - 1e-9 && s <= domain[1] + 1e-9), [domain]);
-  const [drag, setDrag] = useState<{ a: number; b: number } | null>(null);
-  const finish = () => {
-    if (drag && onRange && Math.abs(drag.b - drag.a) >= 2 * trSeconds) onRange([Math.min(drag.a, drag.b), Math.max(drag.a, drag.b)]);
-    setDrag(null);
-  };
+  const n = values.length;
+  const end = (droppedVolumes + Math.max(n - 1, 0)) * trSeconds;
+  const from = range ? range[0] : 0;
+  const to = range ? range[1] : end;
+  const times = useMemo(() => timesOf(n, trSeconds, droppedVolumes), [n, trSeconds, droppedVolumes]);
+  const data = useMemo<uPlot.AlignedData>(() => [times, values as number[]], [times, values]);
+  const [hover, setHover] = useState<number | null>(null);
+  const onRangeRef = useRef(onRange);
+  useLayoutEffect(() => {
+    onRangeRef.current = onRange;
+  });
+
+  const options = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
+    () => ({
+      legend: { show: false },
+      padding: [6, 8, 0, 0],
+      cursor: {
+        y: false,
+        points: { show: false },
+        drag: { x: true, y: false, setScale: false },
+      },
+      select: { show: true, left: 0, top: 0, width: 0, height: 0 },
+      scales: { x: { time: false, auto: false, range: [from, Math.max(to, from + trSeconds)] }, y: { range: niceRange(4) } },
+      axes: [niceAxis({ count: 6, size: 26 }), niceAxis({ count: 4, size: 44 })],
+      series: [{}, { stroke: CHART.trace, width: 1.25, points: { show: false } }],
+      hooks: {
+        drawAxes: [
+          (u) => {
+            if (droppedVolumes <= 0) return;
+            const x0 = u.valToPos(Math.max(from, 0), 'x', true);
+            const x1 = u.valToPos(Math.min(droppedVolumes * trSeconds, to), 'x', true);
+            if (x1 <= x0) return;
+            u.ctx.save();
+            u.ctx.fillStyle = CHART.axis;
+            u.ctx.globalAlpha = 0.25;
+            u.ctx.fillRect(x0, u.bbox.top, x1 - x0, u.bbox.height);
+            u.ctx.restore();
+          },
+        ],
+        setCursor: [(u) => setHover(u.cursor.idx ?? null)],
+        setSelect: [
+          (u) => {
+            const { left, width } = u.select;
+            if (width <= 0) return;
+            const a = u.posToVal(left, 'x');
+            const b = u.posToVal(left + width, 'x');
+            u.setSelect({ left: 0, top: 0, width: 0, height: 0 }, false);
+            if (onRangeRef.current && b - a >= 2 * trSeconds) onRangeRef.current([a, b]);
+          },
+        ],
+      },
+    }),
+    [from, to, trSeconds, droppedVolumes],
+  );
+  const i = hover != null && hover >= 0 && hover < n ? hover : null;
   return (
-    <div style={{ height }} data-testid="timecourse-chart" data-range={range ? `${range[0].toFixed(1)}-${range[1].toFixed(1)}` : ''} aria-label="Time course" role="img" className="select-none">
-      <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 600, height }}>
-        <LineChart
-          data={shown}
-          margin={{ top: 6, right: 8, bottom: 0, left: -18 }}
-          onMouseDown={(e) => {
-            const s = Number(e?.activeLabel);
-            if (onRange && Number.isFinite(s)) setDrag({ a: s, b: s });
-          }}
-          onMouseMove={(e) => {
-            const s = Number(e?.activeLabel);
-            if (drag && Number.isFinite(s)) setDrag({ ...drag, b: s });
-          }}
-          onMouseUp={finish}
-          onMouseLeave={() => setDrag(null)}
-        >
-          <CartesianGrid stroke={CHART.grid} vertical={false} />
-          {droppedVolumes > 0 && domain[0] < droppedVolumes * trSeconds ? (
-            <ReferenceArea x1={domain[0]} x2={droppedVolumes * trSeconds} fill={CHART.axis} fillOpacity={0.25} ifOverflow="hidden" label={{ value: 'dropped', fill: CHART.tick.fill, fontSize: 9, position: 'insideTop' }} />
-          ) : null}
-          <XAxis
-            dataKey="s"
-            type="number"
-            domain={domain}
-            ticks={xTicks}
-            allowDataOverflow
-            tick={CHART.tick}
-            stroke={CHART.axis}
-            tickFormatter={tickFormatter(xTicks)}
-            unit=" s"
-          />
-          <YAxis
-            domain={[yTicks[0] ?? 0, yTicks.at(-1) ?? 1]}
-            ticks={yTicks}
-            tick={CHART.tick}
-            stroke={CHART.axis}
-            width={44}
-            tickFormatter={tickFormatter(yTicks)}
-          />
-          <Tooltip content={<HoverBox />} isAnimationActive={false} cursor={{ stroke: CHART.reference, strokeWidth: 1 }} />
-          {drag ? <ReferenceArea x1={drag.a} x2={drag.b} fill={CHART.reference} fillOpacity={0.2} /> : null}
-          <Line dataKey="v" stroke={CHART.trace} strokeWidth={1.25} dot={false} isAnimationActive={false} />
-        </LineChart>
-      </ResponsiveContainer>
+    <div
+      className="relative select-none"
+      data-testid="timecourse-chart"
+      data-range={range ? `${range[0].toFixed(1)}-${range[1].toFixed(1)}` : ''}
+      aria-label={`Time course over ${n} volumes of ${trSeconds} s`}
+      role="img"
+    >
+      <UplotChart options={options} data={data} height={height} />
+      {i != null ? (
+        <div className="pointer-events-none absolute right-2 top-1 rounded border border-line-strong bg-ground-raised px-2 py-1 font-mono text-[11px] text-ink" data-testid="timecourse-hover">
+          volume {droppedVolumes + i} · {((droppedVolumes + i) * trSeconds).toFixed(1)} s · {Number(values[i]).toFixed(3)}
+        </div>
+      ) : null}
     </div>
   );
 });

@@ -14,6 +14,7 @@ const SIGN_TEXT = { both: '± both', positive: '+ only', negative: '− only' } 
 export const MapPanel = memo(function MapPanel({
   meanUrl,
   componentsUrl,
+  structuralUrl = null,
   frame,
   peakZ,
   prefs,
@@ -24,6 +25,8 @@ export const MapPanel = memo(function MapPanel({
 }: {
   meanUrl: string;
   componentsUrl: string;
+  /** The run's structural underlay, when a lead attached one: offered instead of the mean image. */
+  structuralUrl?: string | null;
   frame: number;
   /** The component's peak |z| from its features (scales the colours), if known. */
   peakZ: number | null;
@@ -48,6 +51,7 @@ export const MapPanel = memo(function MapPanel({
         <VolumeViewer
           meanUrl={meanUrl}
           componentsUrl={componentsUrl}
+          underlayUrl={structuralUrl && prefs.underlay === 'structural' ? structuralUrl : meanUrl}
           frame={frame}
           threshold={prefs.threshold}
           maxZ={top}
@@ -138,6 +142,22 @@ export const MapPanel = memo(function MapPanel({
         <button type="button" onClick={() => setOverlay({ sign: nextSign(overlay.sign) })} className="rounded border border-line-strong px-2 py-0.5" data-testid="overlay-sign">
           {SIGN_TEXT[overlay.sign]} (V)
         </button>
+        {structuralUrl ? (
+          <div role="group" aria-label="Underlay" className="flex overflow-hidden rounded border border-line-strong">
+            {(['mean', 'structural'] as const).map((u) => (
+              <button
+                key={u}
+                type="button"
+                aria-pressed={prefs.underlay === u}
+                onClick={() => setPrefs((p) => ({ ...p, underlay: u }))}
+                data-testid={`underlay-${u}`}
+                className={`px-2 py-0.5 ${prefs.underlay === u ? 'bg-ground-raised text-ink' : 'text-ink-muted'}`}
+              >
+                {u === 'mean' ? 'mean image' : 'structural'}
+              </button>
+            ))}
+          </div>
+        ) : null}
         <button type="button" onClick={() => api.current?.nextCluster()} className="rounded border border-line-strong px-2 py-0.5" data-testid="next-peak">
           next peak (P)
         </button>

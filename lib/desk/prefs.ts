@@ -11,6 +11,8 @@ export type DeskPrefs = {
   /** The six motion parameters under the time course. */
   showMotion: boolean;
   overlay: { visible: boolean; opacity: number; sign: Sign };
+  /** The image under the map: the run's mean image, or the structural image a lead attached (when there is one). */
+  underlay: 'mean' | 'structural';
 };
 
 const KEY = 'quorum.desk.prefs.v1';
@@ -21,6 +23,7 @@ export const DEFAULT_PREFS: DeskPrefs = {
   autoAdvance: false,
   showMotion: false,
   overlay: { visible: true, opacity: 1, sign: 'both' },
+  underlay: 'mean',
 };
 
 function loadPrefs(): DeskPrefs {

@@ -28,7 +28,7 @@ export type VoteChange = z.infer<typeof voteChangeSchema>;
 /** PUT /api/runs/:id/desk — where the rater is. */
 export const deskPositionSchema = z.object({ componentIdx: z.number().int().min(1) }).strict();
 
-export const RUN_FILES = ['components.nii.gz', 'mean.nii.gz', 'mask.nii.gz'] as const;
+export const RUN_FILES = ['components.nii.gz', 'mean.nii.gz', 'mask.nii.gz', 'structural.nii.gz'] as const;
 export const fileParamsSchema = runParamsSchema.extend({
   file: z.enum(RUN_FILES, { message: `must be one of ${RUN_FILES.join(', ')}` }),
 });

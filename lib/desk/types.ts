@@ -40,11 +40,20 @@ export type DeskRun = {
   framewiseDisplacement: number[] | null;
   /** The six motion parameters per kept volume: translations x, y, z (mm) and rotations x, y, z (degrees), when the run has them. */
   motion?: { translations: number[][]; rotationsDeg: number[][] } | null;
+  /** The structural underlay a lead attached (on the run's grid), or null; `version` changes with each upload (part of its address). */
+  structural?: { name: string; version: string } | null;
   /** Where the rater stopped (1-based component number), or null before the first visit. */
   lastComponentIdx: number | null;
   /** The study's rule for components below its reproducibility threshold, and how many it hid. */
   reproducibility: { threshold: number; policy: 'flag' | 'last' | 'hide'; hidden: number };
 };
+
+/** The structural underlay's address part and its name, from its storage key (a new upload is a new address). */
+export function structuralOf(key: string | null | undefined, name: string | null | undefined): DeskRun['structural'] {
+  if (!key) return null;
+  const version = key.replace(/^.*\//, '').replace(/\..*$/, '').slice(0, 16);
+  return { name: name ?? 'structural image', version };
+}
 
 export type ComponentsPayload = { run: DeskRun; components: DeskComponent[] };
 

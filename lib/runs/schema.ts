@@ -107,6 +107,8 @@ export function maxImageBytes(env: Record<string, string | undefined> = process.
 
 /** A motion table is small text: refuse more than this. */
 export const MAX_MOTION_BYTES = 8 * 1024 * 1024;
+/** Largest structural underlay accepted, as sent and as its header describes it (on a functional grid it is a few MB). */
+export const MAX_STRUCTURAL_BYTES = 64 * 1024 * 1024;
 
 export function formatBytes(n: number): string {
   if (n >= 1024 ** 3) return `${(n / 1024 ** 3).toFixed(1)} GB`;

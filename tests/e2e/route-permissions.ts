@@ -58,6 +58,7 @@ export const ROUTES: RouteCase[] = [
   { file: 'runs/[id]/route.ts', method: 'PATCH', url: '/api/runs/999999', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/route.ts', method: 'DELETE', url: '/api/runs/999999', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/mask/route.ts', method: 'PUT', url: '/api/runs/999999/mask', allowed: ['admin', 'lead'] },
+  { file: 'runs/[id]/structural/route.ts', method: 'PUT', url: '/api/runs/999999/structural', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/motion/route.ts', method: 'PUT', url: '/api/runs/999999/motion', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/queue/route.ts', method: 'POST', url: '/api/runs/999999/queue', allowed: ['admin', 'lead'] },
   { file: 'runs/[id]/retry/route.ts', method: 'POST', url: '/api/runs/999999/retry', allowed: ['admin', 'lead'] },

@@ -9,7 +9,7 @@ import { pathFor } from '@/lib/storage';
 import { dropInitialVolumes, framewiseDisplacement, parseMotionFile } from '@/lib/decomposition/motion';
 import { recordAudit } from './audit';
 import { queueVotesCompleteCheck } from '@/lib/jobs/queue-notifications';
-import type { ComponentsPayload, DeskComponent, DeskRun } from '@/lib/desk/types';
+import { structuralOf, type ComponentsPayload, type DeskComponent, type DeskRun } from '@/lib/desk/types';
 import { arrangeForDesk, isLowReproducibility, type ReproducibilityRule } from '@/lib/desk/reproducibility';
 import { recomputeDecision } from '@/lib/consensus/recompute';
 import type { LowReproducibilityPolicy } from '@/lib/studies/labels';
@@ -53,6 +53,8 @@ export async function findAssignedRun(
       'r.motion_key as motionKey',
       'r.motion_order as motionOrder',
       'r.motion_rotation_units as motionRotationUnits',
+      'r.structural_key as structuralKey',
+      'r.structural_name as structuralName',
       's.id as studyId',
       's.name as studyName',
       's.label_set as labelSet',
@@ -182,6 +184,7 @@ export async function loadDeskComponents({ user, runId }: { user: Caller; runId:
       labelSet: run.labelSet,
       noiseKinds: run.noiseKinds,
       ...(await readRunMotion(run).then((m) => ({ framewiseDisplacement: m.fd, motion: m.motion }))),
+      structural: structuralOf(run.structuralKey, run.structuralName),
       lastComponentIdx: run.lastComponentIdx == null ? null : Number(run.lastComponentIdx),
       reproducibility: { ...run.reproducibilityRule, hidden },
     },
@@ -190,10 +193,10 @@ export async function loadDeskComponents({ user, runId }: { user: Caller; runId:
 }
 
 /** The storage key of one of the run's decomposition files, for the assigned rater. */
-export async function findRunFileKey({ user, runId, file }: { user: Caller; runId: number; file: 'components.nii.gz' | 'mean.nii.gz' | 'mask.nii.gz' }) {
+export async function findRunFileKey({ user, runId, file }: { user: Caller; runId: number; file: 'components.nii.gz' | 'mean.nii.gz' | 'mask.nii.gz' | 'structural.nii.gz' }) {
   const run = await findAssignedRun({ user, runId });
-  const key = file === 'components.nii.gz' ? run.componentsKey : file === 'mean.nii.gz' ? run.meanKey : run.maskKey;
-  if (!key) throw new AppError('not_found', `Run ${runId} has no ${file} yet; its decomposition did not write it.`);
+  const key = file === 'components.nii.gz' ? run.componentsKey : file === 'mean.nii.gz' ? run.meanKey : file === 'mask.nii.gz' ? run.maskKey : run.structuralKey;
+  if (!key) throw new AppError('not_found', file === 'structural.nii.gz' ? `Run ${runId} has no structural image; a study lead can attach one.` : `Run ${runId} has no ${file} yet; its decomposition did not write it.`);
   return { key: key as string, decompositionId: run.decompositionId as number };
 }
 

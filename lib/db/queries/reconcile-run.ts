@@ -3,7 +3,7 @@ import { decompositionWarnings } from '@/lib/decomposition/warnings';
 import { db, parseJson } from '@/lib/db/knex';
 import { componentsOfDecomposition, droppedVolumesOf, readRunMotion } from './desk';
 import { bidsName } from '@/lib/bids';
-import type { DeskRun } from '@/lib/desk/types';
+import { structuralOf, type DeskRun } from '@/lib/desk/types';
 
 /** A run's current decomposition in the desk's shapes, with its files' storage keys; null without one. No access check: callers scope. */
 export async function loadRunShapes({ runId }: { runId: number }) {
@@ -26,6 +26,8 @@ export async function loadRunShapes({ runId }: { runId: number }) {
       'r.motion_key as motionKey',
       'r.motion_order as motionOrder',
       'r.motion_rotation_units as motionRotationUnits',
+      'r.structural_key as structuralKey',
+      'r.structural_name as structuralName',
       's.label_set as labelSet',
       's.noise_kinds as noiseKinds',
       's.reproducibility_threshold as reproducibilityThreshold',
@@ -54,6 +56,7 @@ export async function loadRunShapes({ runId }: { runId: number }) {
     noiseKinds: parseJson<string[]>(run.noiseKinds, []) ?? [],
     framewiseDisplacement: fd,
     motion,
+    structural: structuralOf(run.structuralKey, run.structuralName),
     lastComponentIdx: null,
     // the lead sees every component; the rule is carried so the feature panel can flag low ones
     reproducibility: {
@@ -62,6 +65,6 @@ export async function loadRunShapes({ runId }: { runId: number }) {
       hidden: 0,
     },
   };
-  const files = { 'components.nii.gz': run.componentsKey, 'mean.nii.gz': run.meanKey, 'mask.nii.gz': run.maskKey } as Record<string, string | null>;
+  const files = { 'components.nii.gz': run.componentsKey, 'mean.nii.gz': run.meanKey, 'mask.nii.gz': run.maskKey, 'structural.nii.gz': run.structuralKey } as Record<string, string | null>;
   return { run: deskRun, components, files };
 }

@@ -5,10 +5,6 @@ export class DeskPage {
   constructor(readonly page: Page) {}
 
   async open(runId: number) {
-    // the desk records its timings (window.__deskTimings…) only for tests
-    await this.page.addInitScript(() => {
-      window.__quorumTestHooks = true;
-    });
     await this.page.goto(`/runs/${runId}/rate`);
     await this.ready();
   }
@@ -41,15 +37,5 @@ export class DeskPage {
 
   async waitSaved() {
     await expect(this.syncStatus()).toHaveText('All votes saved');
-  }
-
-  /** Key press → new component drawn, ms, as the desk measured them. */
-  async timings(): Promise<number[]> {
-    return this.page.evaluate(() => window.__deskTimings ?? []);
-  }
-
-  /** Key press → React committed and the viewer issued its draw calls, ms. */
-  async issuedTimings(): Promise<number[]> {
-    return this.page.evaluate(() => window.__deskTimingsIssued ?? []);
   }
 }

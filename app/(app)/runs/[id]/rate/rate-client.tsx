@@ -1,6 +1,6 @@
 'use client';
 import Link from 'next/link';
-import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { postJson } from '@/lib/api/client';
 import { commandFor } from '@/lib/desk/keys';
@@ -23,17 +23,7 @@ import { ComponentStrip, visibleIndices, type StripFilter } from '@/components/d
 import { VerdictPanel } from '@/components/desk/verdict-panel';
 import { OthersVotes } from '@/components/desk/others-votes';
 import { Notice } from '@/components/ui/notice';
-
-declare global {
-  interface Window {
-    /** Set by the browser tests (addInitScript) before the page loads; the timings below are recorded only then. */
-    __quorumTestHooks?: boolean;
-    /** Key press → new component painted (map, time course, spectrum), ms (read by the browser test). */
-    __deskTimings?: number[];
-    /** Key press → React committed and the viewer issued its draw calls, ms. */
-    __deskTimingsIssued?: number[];
-  }
-}
+import { markSwitch, measureSwitch } from '@/lib/desk/switch-timing';
 
 export function RateClient({
   runId,
@@ -83,7 +73,7 @@ export function RateClient({
   const [viewerError, setViewerError] = useState<string | null>(null);
   const [submitState, setSubmitState] = useState<{ busy: boolean; message: string | null }>({ busy: false, message: null });
   const noteRef = useRef<HTMLTextAreaElement>(null);
-  const navStart = useRef<{ frame: number; t: number } | null>(null);
+  const navStart = useRef<{ frame: number } | null>(null);
 
   const component = components[index];
   const vote = votes.get(component.id);
@@ -104,8 +94,8 @@ export function RateClient({
   const goTo = useCallback(
     (next: number) => {
       if (next < 0 || next >= ids.length) return;
-      performance.mark('desk:nav');
-      navStart.current = { frame: components[next]!.idx - 1, t: performance.now() };
+      markSwitch();
+      navStart.current = { frame: components[next]!.idx - 1 };
       remember(next + 1);
       setIndex(next);
     },
@@ -115,15 +105,14 @@ export function RateClient({
   const onDrawn = useCallback((frame: number, phase: 'issued' | 'painted') => {
     const start = navStart.current;
     if (!start || start.frame !== frame) return;
-    const ms = performance.now() - start.t;
-    if (phase === 'issued') {
-      if (window.__quorumTestHooks) (window.__deskTimingsIssued ??= []).push(ms);
-      return;
-    }
-    navStart.current = null;
-    performance.measure('desk:next', 'desk:nav');
-    if (window.__quorumTestHooks) (window.__deskTimings ??= []).push(ms);
+    if (phase === 'painted') navStart.current = null;
+    measureSwitch(phase);
   }, []);
+
+  // React has committed the new component (children's layout effects run before this one)
+  useLayoutEffect(() => {
+    if (navStart.current?.frame === component.idx - 1) measureSwitch('committed');
+  }, [component.idx]);
 
   const order = useMemo(() => visibleIndices(ids, filter, votes, flags, index), [ids, filter, votes, flags, index]);
   const goToNumber = useCallback(
@@ -321,6 +310,7 @@ export function RateClient({
           <MapPanel
             meanUrl={`${files}/mean.nii.gz?d=${run.decompositionId}`}
             componentsUrl={`${files}/components.nii.gz?d=${run.decompositionId}`}
+            structuralUrl={run.structural ? `${files}/structural.nii.gz?s=${run.structural.version}` : null}
             frame={component.idx - 1}
             peakZ={peak}
             prefs={prefs}

@@ -15,6 +15,7 @@ import { ComponentStrip } from '@/components/desk/component-strip';
 import { HelpOverlay } from '@/components/desk/help-overlay';
 import { isLowReproducibility } from '@/lib/desk/reproducibility';
 import { Notice } from '@/components/ui/notice';
+import { StructuralUpload } from '@/components/runs/structural-upload';
 
 type Votes = { assigned: number; submitted: number; votes: OtherVote[] } | null;
 const NO_VOTES = new Map();
@@ -112,6 +113,7 @@ export function ViewClient({ run, components, role, votes }: { run: DeskRun; com
           <MapPanel
             meanUrl={`${files}/mean.nii.gz?d=${run.decompositionId}`}
             componentsUrl={`${files}/components.nii.gz?d=${run.decompositionId}`}
+            structuralUrl={run.structural ? `${files}/structural.nii.gz?s=${run.structural.version}` : null}
             frame={component.idx - 1}
             peakZ={peak}
             prefs={prefs}
@@ -132,6 +134,7 @@ export function ViewClient({ run, components, role, votes }: { run: DeskRun; com
             )
           ) : null}
           <FeaturePanel component={component} k={run.k} reproducibilityThreshold={run.reproducibility.threshold} />
+          {role === 'lead' ? <StructuralUpload runId={run.runId} current={run.structural?.name ?? null} /> : null}
         </aside>
       </div>
       {help ? <HelpOverlay labelSet={[]} noiseKinds={[]} onClose={() => setHelp(false)} readOnly /> : null}

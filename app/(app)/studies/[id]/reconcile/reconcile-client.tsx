@@ -1,12 +1,14 @@
 'use client';
 import Link from 'next/link';
-import { useMemo, useState } from 'react';
+import { useMemo, useRef, useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { postJson } from '@/lib/api/client';
 import { bidsName } from '@/lib/bids';
 import { labelName, noiseKindName } from '@/lib/studies/labels';
 import type { ReconcileItem } from '@/lib/db/queries/reconcile';
-import { VolumeViewer } from '@/components/viewer';
+import type { ViewerApi } from '@/components/viewer';
+import { MapPanel } from '@/components/desk/map-panel';
+import { useDeskPrefs } from '@/lib/desk/prefs';
 import { TimecourseChart } from '@/components/charts/timecourse-chart';
 import { SpectrumChart } from '@/components/charts/spectrum-chart';
 import { FeaturePanel } from '@/components/desk/feature-panel';
@@ -27,6 +29,8 @@ const METHOD_NAMES: Record<string, string> = {
 export function ReconcileClient({ studyId, studyName, initialItems }: { studyId: number; studyName: string; initialItems: ReconcileItem[] }) {
   const queryClient = useQueryClient();
   const [include, setInclude] = useState<'pending' | 'all'>('pending');
+  const [prefs, setPrefs] = useDeskPrefs();
+  const viewerApi = useRef<ViewerApi | null>(null);
   const [runFilter, setRunFilter] = useState<number | undefined>();
   const [kindFilter, setKindFilter] = useState<string | undefined>();
   const [order, setOrder] = useState<'run' | 'disagreement'>('run');
@@ -176,16 +180,16 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
           <section className="flex min-w-0 flex-col gap-3" aria-label="The component">
             {item && run && component ? (
               <>
-                <div className="h-[380px] overflow-hidden rounded border border-line bg-ground-sunken">
-                  <VolumeViewer
-                    meanUrl={`/api/reconcile/runs/${run.runId}/files/mean.nii.gz?d=${run.decompositionId}`}
-                    componentsUrl={`/api/reconcile/runs/${run.runId}/files/components.nii.gz?d=${run.decompositionId}`}
-                    frame={component.idx - 1}
-                    threshold={2.5}
-                    maxZ={Math.max(4.5, Math.min(Number(component.features.peakZ ?? 8), 15))}
-                    layout="multiplanar"
-                  />
-                </div>
+                {/* the desk's map panel with the desk's view settings: same layout, mosaic arrangement, threshold and colour bar */}
+                <MapPanel
+                  meanUrl={`/api/reconcile/runs/${run.runId}/files/mean.nii.gz?d=${run.decompositionId}`}
+                  componentsUrl={`/api/reconcile/runs/${run.runId}/files/components.nii.gz?d=${run.decompositionId}`}
+                  frame={component.idx - 1}
+                  peakZ={component.features.peakZ == null ? null : Math.abs(Number(component.features.peakZ))}
+                  prefs={prefs}
+                  setPrefs={setPrefs}
+                  api={viewerApi}
+                />
                 <figure className="rounded border border-line bg-ground-raised p-2">
                   <figcaption className="text-xs text-ink-muted">Time course (s)</figcaption>
                   <TimecourseChart values={component.timecourse} trSeconds={run.trSeconds} droppedVolumes={run.droppedVolumes} />
