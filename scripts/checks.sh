@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # npm run checks: the static checks that run before the tests (type-check, lint, the dependency
-# rule, dead exports). Prints each one's verdict; writes .data/test-results/checks.json
+# rule, dead exports, formatting). Prints each one's verdict; writes .data/test-results/checks.json
 # ({ "typecheck": "passed", ... }) for scripts/lib/test-summary.mjs, which counts each as one
 # passed or failed check. Exit code 1 if any failed.
 set -uo pipefail
@@ -28,6 +28,7 @@ check typecheck 'tsc --noEmit over the whole tree' npx tsc --noEmit
 check lint 'ESLint (Next core web vitals, react-hooks, TypeScript)' npx eslint --max-warnings 0 .
 check deps 'dependency rule (app → lib/<domain> → lib/db/queries → knex)' npx depcruise app components lib db scripts --ignore-known
 check knip 'dead exports and unused dependencies' npx knip --no-progress
+check format 'Prettier (.prettierrc.json, width 140; npm run format fixes it)' npx prettier --check --log-level warn .
 
 (IFS=,; echo "{${results[*]}}") > "$out"
 exit $status
