@@ -22,7 +22,13 @@ module.exports = {
       from: { path: '^lib/db/queries/' },
       to: {
         path: '^(lib|app|components)/',
-        pathNot: ['^lib/db/', '^lib/(nifti|decomposition|agreement|phantom)/', '^lib/[^/]+/(schema|types|labels|roles|keys|status)\\.ts$', '^lib/auth/(roles|permissions)\\.ts$', '^lib/bids\\.ts$'],
+        pathNot: [
+          '^lib/db/',
+          '^lib/(nifti|decomposition|agreement|phantom)/',
+          '^lib/[^/]+/(schema|types|labels|roles|keys|status)\\.ts$',
+          '^lib/auth/(roles|permissions)\\.ts$',
+          '^lib/bids\\.ts$',
+        ],
       },
     },
     {

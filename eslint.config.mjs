@@ -7,9 +7,18 @@ const config = [
   ...nextVitals,
   ...nextTypescript,
   {
-    ignores: ['node_modules/**', '.next/**', '.next-*/**', '.data/**', 'uploads/**', 'next-env.d.ts', 'test-results/**', 'playwright-report/**',
+    ignores: [
+      'node_modules/**',
+      '.next/**',
+      '.next-*/**',
+      '.data/**',
+      'uploads/**',
+      'next-env.d.ts',
+      'test-results/**',
+      'playwright-report/**',
       // AssemblyScript (compiled to WebAssembly by scripts/build-kernels.mjs), not TypeScript for ESLint's parser
-      'lib/decomposition/wasm/*.as.ts'],
+      'lib/decomposition/wasm/*.as.ts',
+    ],
   },
   {
     linterOptions: { reportUnusedDisableDirectives: 'error' },

@@ -11,7 +11,9 @@ export default defineConfig({
   fullyParallel: false,
   workers: 1,
   retries: 0,
-  reporter: process.env.CI ? [['list'], ['json', { outputFile: '.data/test-results/playwright.json' }]] : [['list'], ['json', { outputFile: '.data/test-results/playwright.json' }]],
+  reporter: process.env.CI
+    ? [['list'], ['json', { outputFile: '.data/test-results/playwright.json' }]]
+    : [['list'], ['json', { outputFile: '.data/test-results/playwright.json' }]],
   globalSetup: './tests/e2e/guard.ts',
   use: {
     baseURL: `http://localhost:${port}`,

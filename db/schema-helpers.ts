@@ -16,7 +16,5 @@ export function createdAt(knex: Knex, t: Knex.CreateTableBuilder) {
 }
 
 export function updatedAt(knex: Knex, t: Knex.CreateTableBuilder) {
-  t.datetime('updated_at', { precision: 3 })
-    .notNullable()
-    .defaultTo(knex.raw('CURRENT_TIMESTAMP(3) ON UPDATE CURRENT_TIMESTAMP(3)'));
+  t.datetime('updated_at', { precision: 3 }).notNullable().defaultTo(knex.raw('CURRENT_TIMESTAMP(3) ON UPDATE CURRENT_TIMESTAMP(3)'));
 }

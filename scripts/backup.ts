@@ -25,7 +25,10 @@ function run(cmd: string, args: string[], opts: { env?: NodeJS.ProcessEnv; cwd?:
     if (out) child.stdout!.pipe(out);
     child.on('error', reject);
     child.on('close', (code) => {
-      const done = () => (code === 0 ? resolve() : reject(new Error(`${path.basename(cmd)} failed (exit ${code}): ${err.trim().split('\n').slice(-3).join(' ')}`)));
+      const done = () =>
+        code === 0
+          ? resolve()
+          : reject(new Error(`${path.basename(cmd)} failed (exit ${code}): ${err.trim().split('\n').slice(-3).join(' ')}`));
       if (out) out.end(done);
       else done();
     });
@@ -42,16 +45,33 @@ async function main(): Promise<void> {
   const { values } = parseArgs({ options: { out: { type: 'string' } } });
   const settings = resolveDbSettings();
   const { dump } = clientPrograms();
-  const stamp = new Date().toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z');
+  const stamp = new Date()
+    .toISOString()
+    .replace(/[-:]/g, '')
+    .replace(/\.\d+Z$/, 'Z');
   const base = path.resolve(values.out ?? process.env.QUORUM_BACKUP_DIR ?? '.data/backups');
   const dir = path.join(base, `quorum-${stamp}`);
   await mkdir(dir, { recursive: true });
 
   const { args, env } = connection(settings);
-  await run(dump, [...args, '--single-transaction', '--quick', '--routines', '--triggers', '--hex-blob', '--no-tablespaces', '--default-character-set=utf8mb4', settings.database], {
-    env,
-    stdoutTo: path.join(dir, DATABASE_FILE),
-  });
+  await run(
+    dump,
+    [
+      ...args,
+      '--single-transaction',
+      '--quick',
+      '--routines',
+      '--triggers',
+      '--hex-blob',
+      '--no-tablespaces',
+      '--default-character-set=utf8mb4',
+      settings.database,
+    ],
+    {
+      env,
+      stdoutTo: path.join(dir, DATABASE_FILE),
+    },
+  );
 
   const root = storageRoot();
   await mkdir(root, { recursive: true });

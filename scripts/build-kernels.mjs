@@ -16,12 +16,30 @@ export async function compileKernels() {
   let binary = null;
   const stderr = [];
   const { error } = await asc.main(
-    [source, '--outFile', 'kernels.wasm', '-O3', '--noAssert', '--runtime', 'stub', '--enable', 'simd,relaxed-simd', '--initialMemory', '2'],
+    [
+      source,
+      '--outFile',
+      'kernels.wasm',
+      '-O3',
+      '--noAssert',
+      '--runtime',
+      'stub',
+      '--enable',
+      'simd,relaxed-simd',
+      '--initialMemory',
+      '2',
+    ],
     {
       readFile: (name, baseDir) => {
-        try { return readFileSync(path.resolve(root, baseDir, name), 'utf8'); } catch { return null; }
+        try {
+          return readFileSync(path.resolve(root, baseDir, name), 'utf8');
+        } catch {
+          return null;
+        }
       },
-      writeFile: (name, contents) => { if (name.endsWith('.wasm')) binary = contents; },
+      writeFile: (name, contents) => {
+        if (name.endsWith('.wasm')) binary = contents;
+      },
       listFiles: () => [],
       stdout: { write: () => {} },
       stderr: { write: (s) => stderr.push(String(s)) },
@@ -34,7 +52,11 @@ export async function compileKernels() {
 if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {
   const fresh = await compileKernels();
   let current = null;
-  try { current = readFileSync(target); } catch { /* missing */ }
+  try {
+    current = readFileSync(target);
+  } catch {
+    /* missing */
+  }
   const same = current !== null && Buffer.compare(current, fresh) === 0;
   if (process.argv.includes('--check')) {
     if (!same) {

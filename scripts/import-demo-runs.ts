@@ -38,18 +38,37 @@ async function main(): Promise<number> {
   const dir = path.resolve('.data/demo-runs', `${values.size}-${values.runs}`);
   if (!existsSync(path.join(dir, 'dataset_description.json'))) {
     console.log(`writing ${values.runs} synthetic ${values.size} runs to ${dir}`);
-    execFileSync('node', ['--import', 'tsx', 'scripts/make-demo-data.ts', '--out', dir, '--size', String(values.size), '--runs', String(values.runs)], { stdio: ['ignore', 'ignore', 'inherit'] });
+    execFileSync(
+      'node',
+      ['--import', 'tsx', 'scripts/make-demo-data.ts', '--out', dir, '--size', String(values.size), '--runs', String(values.runs)],
+      { stdio: ['ignore', 'ignore', 'inherit'] },
+    );
   }
   const user = { id: Number(lead.id), role: lead.role };
-  const runs = readdirSync(dir).filter((f) => f.endsWith('_bold.nii.gz')).sort();
+  const runs = readdirSync(dir)
+    .filter((f) => f.endsWith('_bold.nii.gz'))
+    .sort();
   for (const name of runs) {
     const entities = parseBidsName(name);
     if (!entities) continue;
-    const query = { name, sub: entities.sub, ses: entities.ses ?? '', task: entities.task ?? '', acq: entities.acq ?? '', run: entities.runLabel ?? '', queue: false };
+    const query = {
+      name,
+      sub: entities.sub,
+      ses: entities.ses ?? '',
+      task: entities.task ?? '',
+      acq: entities.acq ?? '',
+      run: entities.runLabel ?? '',
+      queue: false,
+    };
     const run = await uploadRun({ user, studyId: Number(study.id), query, raw: raw(path.join(dir, name)) });
     const motion = path.join(dir, name.replace('_bold.nii.gz', '_desc-motion_timeseries.tsv'));
     if (existsSync(motion)) {
-      await attachMotion({ user, runId: run.id, query: { name: path.basename(motion), order: 'trans-first', units: 'radians' }, raw: raw(motion) });
+      await attachMotion({
+        user,
+        runId: run.id,
+        query: { name: path.basename(motion), order: 'trans-first', units: 'radians' },
+        raw: raw(motion),
+      });
     }
     await queueRun({ user, runId: run.id });
     console.log(`imported ${name} as run ${run.id} (queued)`);

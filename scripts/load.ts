@@ -78,7 +78,15 @@ async function prepare(uploads: string) {
     const raters: Rater[] = [];
     for (let r = 0; r < RATERS; r += RATERS_PER_RUN) {
       const group = raterIds.slice(r, r + RATERS_PER_RUN);
-      const run = await createReadyRun(db, { studyId, createdBy: leadId, raterIds: group, size: 'tiny', seed: 100 + r, components: 12, sub: `load${r}` });
+      const run = await createReadyRun(db, {
+        studyId,
+        createdBy: leadId,
+        raterIds: group,
+        size: 'tiny',
+        seed: 100 + r,
+        components: 12,
+        sub: `load${r}`,
+      });
       for (const id of group) {
         const { email } = await db('users').where({ id }).first('email');
         raters.push({ id, email, cookie: '', runId: run.runId, components: run.componentIds, next: 0 });
@@ -97,7 +105,12 @@ async function prepare(uploads: string) {
 }
 
 /** Starts a child; `ownSession` puts it in its own session (setsid), as a separately started service would be. */
-function start(args: string[], env: Record<string, string>, name: string, { flags = [] as string[], ownSession = false } = {}): ChildProcess {
+function start(
+  args: string[],
+  env: Record<string, string>,
+  name: string,
+  { flags = [] as string[], ownSession = false } = {},
+): ChildProcess {
   const child = spawn(process.execPath, [...flags, '--conditions=react-server', '--import', 'tsx', ...args], {
     cwd: root,
     env: { ...process.env, ...env },
@@ -112,7 +125,10 @@ function start(args: string[], env: Record<string, string>, name: string, { flag
 
 async function waitForHealth() {
   for (;;) {
-    const ok = await fetch(`${BASE}/api/health`).then((r) => r.ok, () => false);
+    const ok = await fetch(`${BASE}/api/health`).then(
+      (r) => r.ok,
+      () => false,
+    );
     if (ok) return;
     await new Promise((r) => setTimeout(r, 250));
   }
@@ -120,7 +136,10 @@ async function waitForHealth() {
 
 async function signIn(rater: Rater, i: number) {
   const csrfRes = await fetch(`${BASE}/api/auth/csrf`);
-  const csrfCookie = csrfRes.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
+  const csrfCookie = csrfRes.headers
+    .getSetCookie()
+    .map((c) => c.split(';')[0])
+    .join('; ');
   const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
   const res = await fetch(`${BASE}/api/auth/callback/credentials`, {
     method: 'POST',
@@ -143,37 +162,40 @@ function voteLoad(raters: Rater[], opts: { rate: number; seconds: number; connec
   let turn = 0;
   let finished!: () => void;
   const ended = new Promise<void>((resolve) => (finished = resolve));
-  const instance = autocannon({
-    url: BASE,
-    connections: opts.connections,
-    overallRate: opts.rate,
-    duration: opts.seconds,
-    requests: [
-      {
-        setupRequest: (req: autocannon.Request, context: object) => {
-          const rater = raters[turn++ % raters.length];
-          const componentId = rater.components[rater.next++ % rater.components.length];
-          const label = LABELS[(rater.next + rater.id) % LABELS.length];
-          const key = `${rater.id}:${componentId}`;
-          (context as { sent?: Sent }).sent = { raterId: rater.id, componentId, label };
-          return {
-            ...req,
-            method: 'PUT',
-            path: `/api/runs/${rater.runId}/votes/${componentId}`,
-            headers: { cookie: rater.cookie, 'content-type': 'application/json', origin: BASE },
-            body: JSON.stringify({ label, noiseKind: label === 'noise' ? 'motion' : null, baseVersion: versions.get(key) ?? 0 }),
-          };
+  const instance = autocannon(
+    {
+      url: BASE,
+      connections: opts.connections,
+      overallRate: opts.rate,
+      duration: opts.seconds,
+      requests: [
+        {
+          setupRequest: (req: autocannon.Request, context: object) => {
+            const rater = raters[turn++ % raters.length];
+            const componentId = rater.components[rater.next++ % rater.components.length];
+            const label = LABELS[(rater.next + rater.id) % LABELS.length];
+            const key = `${rater.id}:${componentId}`;
+            (context as { sent?: Sent }).sent = { raterId: rater.id, componentId, label };
+            return {
+              ...req,
+              method: 'PUT',
+              path: `/api/runs/${rater.runId}/votes/${componentId}`,
+              headers: { cookie: rater.cookie, 'content-type': 'application/json', origin: BASE },
+              body: JSON.stringify({ label, noiseKind: label === 'noise' ? 'motion' : null, baseVersion: versions.get(key) ?? 0 }),
+            };
+          },
+          onResponse: (status: number, body: string, context: object) => {
+            const sent = (context as { sent: Sent }).sent;
+            if (status !== 200) return;
+            const vote = (JSON.parse(body) as { vote: { version: number; label: string } }).vote;
+            versions.set(`${sent.raterId}:${sent.componentId}`, vote.version);
+            acks.push({ ...sent, version: vote.version, label: vote.label });
+          },
         },
-        onResponse: (status: number, body: string, context: object) => {
-          const sent = (context as { sent: Sent }).sent;
-          if (status !== 200) return;
-          const vote = (JSON.parse(body) as { vote: { version: number; label: string } }).vote;
-          versions.set(`${sent.raterId}:${sent.componentId}`, vote.version);
-          acks.push({ ...sent, version: vote.version, label: vote.label });
-        },
-      },
-    ],
-  }, () => finished());
+      ],
+    },
+    () => finished(),
+  );
   instance.on('response', (_client: unknown, status: number, _bytes: number, ms: number) => samples.push({ status, ms }));
   instance.on('reqError', () => samples.push({ status: 0, ms: NaN }));
   return ended;
@@ -182,14 +204,24 @@ function voteLoad(raters: Rater[], opts: { rate: number; seconds: number; connec
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 /** One HTTP request on `agent` (node:http); resolves with the status and body. */
-function send(agent: http.Agent, method: string, urlPath: string, headers: Record<string, string>, body?: string): Promise<{ status: number; text: string }> {
+function send(
+  agent: http.Agent,
+  method: string,
+  urlPath: string,
+  headers: Record<string, string>,
+  body?: string,
+): Promise<{ status: number; text: string }> {
   return new Promise((resolve, reject) => {
-    const req = http.request(`${BASE}${urlPath}`, { method, agent, headers: body ? { ...headers, 'content-length': String(Buffer.byteLength(body)) } : headers }, (res) => {
-      const chunks: Buffer[] = [];
-      res.on('data', (c: Buffer) => chunks.push(c));
-      res.on('end', () => resolve({ status: res.statusCode ?? 0, text: Buffer.concat(chunks).toString('utf8') }));
-      res.on('error', reject);
-    });
+    const req = http.request(
+      `${BASE}${urlPath}`,
+      { method, agent, headers: body ? { ...headers, 'content-length': String(Buffer.byteLength(body)) } : headers },
+      (res) => {
+        const chunks: Buffer[] = [];
+        res.on('data', (c: Buffer) => chunks.push(c));
+        res.on('end', () => resolve({ status: res.statusCode ?? 0, text: Buffer.concat(chunks).toString('utf8') }));
+        res.on('error', reject);
+      },
+    );
     req.on('error', reject);
     req.end(body);
   });
@@ -211,7 +243,13 @@ async function raterAtPace(rater: Rater, until: number, acks: Ack[], votes: Samp
       const body = JSON.stringify({ label, noiseKind: label === 'noise' ? 'motion' : null, baseVersion: versions.get(key) ?? 0 });
       const t0 = performance.now();
       try {
-        const res = await send(agent, 'PUT', `/api/runs/${rater.runId}/votes/${componentId}`, { cookie: rater.cookie, 'content-type': 'application/json', origin: BASE }, body);
+        const res = await send(
+          agent,
+          'PUT',
+          `/api/runs/${rater.runId}/votes/${componentId}`,
+          { cookie: rater.cookie, 'content-type': 'application/json', origin: BASE },
+          body,
+        );
         votes.push({ status: res.status, ms: performance.now() - t0 });
         if (res.status === 200) {
           const vote = (JSON.parse(res.text) as { vote: { version: number; label: string } }).vote;
@@ -242,7 +280,11 @@ async function decompositionStates(): Promise<string> {
   const { createDb } = await import('@/lib/db/knex');
   const db = createDb();
   try {
-    const jobs: { status: string; n: number }[] = await db('jobs').where({ kind: 'decompose' }).select('status').count({ n: '*' }).groupBy('status');
+    const jobs: { status: string; n: number }[] = await db('jobs')
+      .where({ kind: 'decompose' })
+      .select('status')
+      .count({ n: '*' })
+      .groupBy('status');
     return jobs.map((j) => `${j.n} ${j.status}`).join(', ');
   } finally {
     await db.destroy();
@@ -263,7 +305,8 @@ async function checkAcknowledged(acks: Ack[]): Promise<{ checked: number; lost: 
     const lost: string[] = [];
     for (const [key, a] of latest) {
       const row = stored.get(key);
-      if (!row || row.version !== a.version || row.label !== a.label) lost.push(`${key}: acknowledged v${a.version} ${a.label}, stored ${row ? `v${row.version} ${row.label}` : 'nothing'}`);
+      if (!row || row.version !== a.version || row.label !== a.label)
+        lost.push(`${key}: acknowledged v${a.version} ${a.label}, stored ${row ? `v${row.version} ${row.label}` : 'nothing'}`);
     }
     return { checked: latest.size, lost };
   } finally {
@@ -283,14 +326,25 @@ async function main() {
   try {
     log(`preparing ${DB_NAME}: ${RATERS} raters, ${RATERS / RATERS_PER_RUN} ready runs, 6 queued decompositions`);
     const raters = await prepare(uploads);
-    const env = { QUORUM_DB_NAME: DB_NAME, QUORUM_UPLOADS_DIR: uploads, NEXTAUTH_SECRET: 'load-test-secret-'.padEnd(48, 'x'), NEXTAUTH_URL: BASE };
-    start(['scripts/serve.ts'], { ...env, QUORUM_HOST: '127.0.0.1', PORT: String(PORT), QUORUM_SKIP_MIGRATE: '1', QUORUM_TRUST_PROXY: '1' }, 'server', { flags: profileFlags });
+    const env = {
+      QUORUM_DB_NAME: DB_NAME,
+      QUORUM_UPLOADS_DIR: uploads,
+      NEXTAUTH_SECRET: 'load-test-secret-'.padEnd(48, 'x'),
+      NEXTAUTH_URL: BASE,
+    };
+    start(
+      ['scripts/serve.ts'],
+      { ...env, QUORUM_HOST: '127.0.0.1', PORT: String(PORT), QUORUM_SKIP_MIGRATE: '1', QUORUM_TRUST_PROXY: '1' },
+      'server',
+      { flags: profileFlags },
+    );
     await waitForHealth();
     for (const [i, r] of raters.entries()) await signIn(r, i);
     log(`${raters.length} raters signed in; starting two workers`);
     // the workers run as a facility runs them, as their own service (own session): they lower their
     // priority, and their session group's (lib/worker/cpu-priority.ts)
-    for (const w of ['load-w1', 'load-w2']) start(['scripts/worker.ts'], { ...env, QUORUM_WORKER_ID: w, QUORUM_DECOMPOSE_THREADS: '1' }, w, { ownSession: true });
+    for (const w of ['load-w1', 'load-w2'])
+      start(['scripts/worker.ts'], { ...env, QUORUM_WORKER_ID: w, QUORUM_DECOMPOSE_THREADS: '1' }, w, { ownSession: true });
 
     // warm-up (not measured): every rater opens their desk's votes and votes once, as on arrival
     const warm: Ack[] = [];
@@ -313,15 +367,21 @@ async function main() {
     const votes: Sample[] = [];
     const reads: Sample[] = [];
     log(`  decompositions when the phase started: ${await decompositionStates()}`);
-    log(`realistic phase: ${SECONDS} s, ${RATERS} raters each voting after a 2–5 s pause (≈ ${(RATERS / MEAN_VOTE_GAP_S).toFixed(0)} votes/s), their desks reading after ~1 vote in 4, while two workers decompose`);
+    log(
+      `realistic phase: ${SECONDS} s, ${RATERS} raters each voting after a 2–5 s pause (≈ ${(RATERS / MEAN_VOTE_GAP_S).toFixed(0)} votes/s), their desks reading after ~1 vote in 4, while two workers decompose`,
+    );
     const random = createRng(20261202, 'hashed').next;
     const until = Date.now() + SECONDS * 1000;
     await Promise.all(raters.map((r) => raterAtPace(r, until, acks, votes, reads, random)));
     const v = summarise(votes, SECONDS);
     const r = summarise(reads, SECONDS);
     log(`  decompositions when the phase ended: ${await decompositionStates()}`);
-    log(`  votes: ${v.count} (${v.rate.toFixed(1)}/s)  p50 ${v.p50.toFixed(1)} ms  p95 ${v.p95.toFixed(1)} ms  p99 ${v.p99.toFixed(1)} ms  errors ${v.errors}`);
-    log(`  reads: ${r.count} (${r.rate.toFixed(1)}/s)  p50 ${r.p50.toFixed(1)} ms  p95 ${r.p95.toFixed(1)} ms  p99 ${r.p99.toFixed(1)} ms  errors ${r.errors}`);
+    log(
+      `  votes: ${v.count} (${v.rate.toFixed(1)}/s)  p50 ${v.p50.toFixed(1)} ms  p95 ${v.p95.toFixed(1)} ms  p99 ${v.p99.toFixed(1)} ms  errors ${v.errors}`,
+    );
+    log(
+      `  reads: ${r.count} (${r.rate.toFixed(1)}/s)  p50 ${r.p50.toFixed(1)} ms  p95 ${r.p95.toFixed(1)} ms  p99 ${r.p99.toFixed(1)} ms  errors ${r.errors}`,
+    );
 
     // ramp: votes only, 50 connections, rising rates
     log('ramp (votes, 50 connections):');
@@ -330,7 +390,9 @@ async function main() {
       const samples: Sample[] = [];
       await voteLoad(raters, { rate, seconds: STEP_SECONDS, connections: RATERS }, acks, samples);
       const s = summarise(samples, STEP_SECONDS);
-      log(`  asked ${rate}/s → ${s.rate.toFixed(1)}/s  p50 ${s.p50.toFixed(1)} ms  p95 ${s.p95.toFixed(1)} ms  p99 ${s.p99.toFixed(1)} ms  errors ${s.errors}`);
+      log(
+        `  asked ${rate}/s → ${s.rate.toFixed(1)}/s  p50 ${s.p50.toFixed(1)} ms  p95 ${s.p95.toFixed(1)} ms  p99 ${s.p99.toFixed(1)} ms  errors ${s.errors}`,
+      );
       limit = Math.max(limit, s.rate);
       if (s.rate < 0.9 * rate || s.errors > 0 || s.p95 > 1000) break;
     }
@@ -340,13 +402,20 @@ async function main() {
     log(`acknowledged votes: ${acks.length} (${checked} rater × component pairs checked), lost: ${lost.length}`);
     for (const l of lost.slice(0, 10)) log(`  LOST ${l}`);
     log(`decompositions during the test: ${await decompositionStates()}`);
-    log(`os: ${os.cpus().length} cores, load average ${os.loadavg().map((x) => x.toFixed(2)).join(' ')} (the machine may be shared)`);
+    log(
+      `os: ${os.cpus().length} cores, load average ${os
+        .loadavg()
+        .map((x) => x.toFixed(2))
+        .join(' ')} (the machine may be shared)`,
+    );
     const ok = v.p95 <= 100 && v.errors === 0 && r.errors === 0 && lost.length === 0;
     log(ok ? 'target met: vote p95 ≤ 100 ms, 0 errors, 0 lost' : 'TARGET MISSED (vote p95 ≤ 100 ms, 0 errors, 0 lost)');
     process.exitCode = ok ? 0 : 1;
   } finally {
     for (const c of children) c.kill('SIGTERM');
-    await Promise.all(children.map((c) => (c.exitCode !== null || c.signalCode ? Promise.resolve() : new Promise((r) => c.once('exit', r)))));
+    await Promise.all(
+      children.map((c) => (c.exitCode !== null || c.signalCode ? Promise.resolve() : new Promise((r) => c.once('exit', r)))),
+    );
     await rm(uploads, { recursive: true, force: true });
   }
 }

@@ -20,14 +20,7 @@ import path from 'node:path';
 import { parseArgs } from 'node:util';
 import { gzipSync } from 'node:zlib';
 import { encodeNifti1, writeNiftiFile } from '@/lib/nifti';
-import {
-  generatePhantom,
-  phantomToNiftiInput,
-  truthMapsToNiftiInput,
-  truthSummary,
-  type Phantom,
-  type PhantomSize,
-} from '@/lib/phantom';
+import { generatePhantom, phantomToNiftiInput, truthMapsToNiftiInput, truthSummary, type Phantom, type PhantomSize } from '@/lib/phantom';
 
 const STUDY = 'Evening light and sleep — resting state';
 const FACILITY = 'Fernhollow Imaging Core';
@@ -142,14 +135,22 @@ async function main(): Promise<number> {
   const putText = (name: string, text: string) => put(name, (p) => writeFile(p, text));
 
   const fixture = values.fixture === true;
-  if (!fixture) await putText(
-    'dataset_description.json',
-    JSON.stringify(
-      { Name: `${STUDY} (synthetic)`, BIDSVersion: '1.9.0', DatasetType: 'raw', Authors: [FACILITY], GeneratedBy: [{ Name: 'Quorum demo-data generator' }], HowToAcknowledge: CAUTION },
-      null,
-      2,
-    ) + '\n',
-  );
+  if (!fixture)
+    await putText(
+      'dataset_description.json',
+      JSON.stringify(
+        {
+          Name: `${STUDY} (synthetic)`,
+          BIDSVersion: '1.9.0',
+          DatasetType: 'raw',
+          Authors: [FACILITY],
+          GeneratedBy: [{ Name: 'Quorum demo-data generator' }],
+          HowToAcknowledge: CAUTION,
+        },
+        null,
+        2,
+      ) + '\n',
+    );
 
   let dims: number[] = [];
   let trSeconds = 0;
@@ -163,10 +164,16 @@ async function main(): Promise<number> {
     trSeconds = p.trSeconds;
     const description = `Quorum phantom ${size} seed ${runSeed} (synthetic)`;
     await put(`${base}_bold.nii.gz`, (f) => writeNiftiFile(f, phantomToNiftiInput(p, { datatype, description })));
-    await putText(`${base}_bold.json`, JSON.stringify({ RepetitionTime: p.trSeconds, TaskName: 'rest', Description: CAUTION }, null, 2) + '\n');
+    await putText(
+      `${base}_bold.json`,
+      JSON.stringify({ RepetitionTime: p.trSeconds, TaskName: 'rest', Description: CAUTION }, null, 2) + '\n',
+    );
     await putText(`${base}_desc-motion_timeseries.tsv`, motionTsv(p));
     await putText(`${base}_desc-motion_timeseries.json`, JSON.stringify(MOTION_SIDECAR, null, 2) + '\n');
-    await putText(`${base}_desc-truth_components.json`, JSON.stringify({ ...truthSummary(p), study: STUDY, run: base, caution: CAUTION }) + '\n');
+    await putText(
+      `${base}_desc-truth_components.json`,
+      JSON.stringify({ ...truthSummary(p), study: STUDY, run: base, caution: CAUTION }) + '\n',
+    );
     await put(`${base}_desc-truth_maps.nii.gz`, (f) => writeNiftiFile(f, truthMapsToNiftiInput(p)));
     runs.push({ base, seed: runSeed, seconds: Number(((performance.now() - t0) / 1000).toFixed(2)) });
   }
@@ -202,7 +209,7 @@ async function main(): Promise<number> {
 main().then(
   (code) => process.exit(code),
   (err) => {
-    process.stderr.write(`make-demo-data: ${err instanceof Error ? err.stack ?? err.message : String(err)}\n`);
+    process.stderr.write(`make-demo-data: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}\n`);
     process.exit(1);
   },
 );

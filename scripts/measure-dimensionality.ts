@@ -14,16 +14,20 @@ import { generatePhantom, phantomToNiftiInput, type Phantom, type PhantomSize } 
 
 function pearson(a: ArrayLike<number>, b: ArrayLike<number>): number {
   const n = a.length;
-  let ma = 0, mb = 0;
+  let ma = 0,
+    mb = 0;
   for (let i = 0; i < n; i++) {
     ma += a[i]!;
     mb += b[i]!;
   }
   ma /= n;
   mb /= n;
-  let sab = 0, saa = 0, sbb = 0;
+  let sab = 0,
+    saa = 0,
+    sbb = 0;
   for (let i = 0; i < n; i++) {
-    const x = a[i]! - ma, y = b[i]! - mb;
+    const x = a[i]! - ma,
+      y = b[i]! - mb;
     sab += x * y;
     saa += x * x;
     sbb += y * y;
@@ -36,7 +40,8 @@ function matches(p: Phantom, r: DecompositionResult) {
   const V = r.voxelsInMask;
   return p.truth.sources.map((s) => {
     const truth = Array.from(r.maskIndices, (i) => s.map[i]!);
-    let best = 0, component = -1;
+    let best = 0,
+      component = -1;
     for (let c = 0; c < r.k; c++) {
       const v = Math.abs(pearson(truth, r.maps.subarray(c * V, (c + 1) * V)));
       if (v > best) [best, component] = [v, c];
@@ -53,7 +58,14 @@ const median = (xs: number[]) => {
 const f2 = (x: number) => (Number.isFinite(x) ? x.toFixed(2) : '—');
 
 async function main() {
-  const { values } = parseArgs({ options: { runs: { type: 'string', default: 'XS:1,S:1' }, restarts: { type: 'string', default: '5' }, threads: { type: 'string', default: '2' }, methods: { type: 'string' } } });
+  const { values } = parseArgs({
+    options: {
+      runs: { type: 'string', default: 'XS:1,S:1' },
+      restarts: { type: 'string', default: '5' },
+      threads: { type: 'string', default: '2' },
+      methods: { type: 'string' },
+    },
+  });
   const only = values.methods ? new Set(values.methods.split(',')) : null;
   const restarts = Number(values.restarts);
   const threads = Number(values.threads);
@@ -66,7 +78,18 @@ async function main() {
     const auto = await decomposeRun(input, { restarts: 1, threads });
     const bound = auto.dimension.range[1];
     const estimates = auto.dimension.estimates;
-    console.log(JSON.stringify({ run: `${size}:${seed}`, voxels: auto.voxelsInMask, timepoints: auto.timepoints, sources: p.truth.sources.length, bound, estimates, iidSubsampling: auto.iidSubsampling, smoothnessEffectiveSamples: Math.round(auto.smoothness.effectiveSamples) }));
+    console.log(
+      JSON.stringify({
+        run: `${size}:${seed}`,
+        voxels: auto.voxelsInMask,
+        timepoints: auto.timepoints,
+        sources: p.truth.sources.length,
+        bound,
+        estimates,
+        iidSubsampling: auto.iidSubsampling,
+        smoothnessEffectiveSamples: Math.round(auto.smoothness.effectiveSamples),
+      }),
+    );
     const byK = new Map<number, string[]>();
     for (const [method, k] of Object.entries(estimates)) {
       if (only && !only.has(method)) continue;
@@ -83,12 +106,22 @@ async function main() {
       const trueRep = [...sourceComponents].map((c) => rep[c]!);
       const otherRep = rep.filter((_, c) => !sourceComponents.has(c));
       const row = {
-        run: `${size}:${seed}`, methods, k, medianReproducibility: median(rep), atLeast08: rep.filter((v) => v >= 0.8).length,
-        sourcesFound: found.length, trueSourceReproducibility: median(trueRep), otherReproducibility: median(otherRep),
-        seconds: Number(((performance.now() - t0) / 1000).toFixed(1)), converged: r.converged, restartsConverged: r.restarts?.converged,
+        run: `${size}:${seed}`,
+        methods,
+        k,
+        medianReproducibility: median(rep),
+        atLeast08: rep.filter((v) => v >= 0.8).length,
+        sourcesFound: found.length,
+        trueSourceReproducibility: median(trueRep),
+        otherReproducibility: median(otherRep),
+        seconds: Number(((performance.now() - t0) / 1000).toFixed(1)),
+        converged: r.converged,
+        restartsConverged: r.restarts?.converged,
       };
       console.log(JSON.stringify(row));
-      table.push(`${row.run.padEnd(10)} ${methods.join('/').padEnd(8)} ${String(k).padStart(3)}  ${f2(row.medianReproducibility).padStart(12)}  ${String(row.atLeast08).padStart(4)}   ${String(found.length).padStart(15)}  ${f2(row.trueSourceReproducibility).padStart(24)}  ${f2(row.otherReproducibility).padStart(18)}`);
+      table.push(
+        `${row.run.padEnd(10)} ${methods.join('/').padEnd(8)} ${String(k).padStart(3)}  ${f2(row.medianReproducibility).padStart(12)}  ${String(row.atLeast08).padStart(4)}   ${String(found.length).padStart(15)}  ${f2(row.trueSourceReproducibility).padStart(24)}  ${f2(row.otherReproducibility).padStart(18)}`,
+      );
     }
   }
   console.log(table.join('\n'));

@@ -22,7 +22,11 @@ function run(cmd: string, args: string[], opts: { env?: NodeJS.ProcessEnv; stdin
     child.stderr!.on('data', (d) => (err += d));
     if (opts.stdinFrom) createReadStream(opts.stdinFrom).pipe(child.stdin!);
     child.on('error', reject);
-    child.on('close', (code) => (code === 0 ? resolve() : reject(new Error(`${path.basename(cmd)} failed (exit ${code}): ${err.trim().split('\n').slice(-3).join(' ')}`))));
+    child.on('close', (code) =>
+      code === 0
+        ? resolve()
+        : reject(new Error(`${path.basename(cmd)} failed (exit ${code}): ${err.trim().split('\n').slice(-3).join(' ')}`)),
+    );
   });
 }
 
@@ -36,7 +40,8 @@ async function main(): Promise<void> {
   for (const name of [DATABASE_FILE, UPLOADS_FILE]) {
     const expected = manifest.files[name]?.sha256;
     const full = path.join(dir, name);
-    if (!expected || !existsSync(full) || (await sha256File(full)) !== expected) fail(`restore: ${name} is missing or damaged (sha256 differs from the manifest); nothing was changed`, 3);
+    if (!expected || !existsSync(full) || (await sha256File(full)) !== expected)
+      fail(`restore: ${name} is missing or damaged (sha256 differs from the manifest); nothing was changed`, 3);
   }
 
   const settings = resolveDbSettings();
@@ -49,7 +54,10 @@ async function main(): Promise<void> {
     ).map((r: { name: string }) => r.name);
     const storageUsed = existsSync(root) && (await readdir(root)).length > 0;
     if ((tables.length || storageUsed) && !values.yes) {
-      fail(`restore: database \`${settings.database}\` has ${tables.length} tables${storageUsed ? ` and ${root} is not empty` : ''}; add --yes to replace them`, 2);
+      fail(
+        `restore: database \`${settings.database}\` has ${tables.length} tables${storageUsed ? ` and ${root} is not empty` : ''}; add --yes to replace them`,
+        2,
+      );
     }
     await conn.transaction(async (trx) => {
       await trx.raw('SET FOREIGN_KEY_CHECKS = 0');
@@ -64,7 +72,10 @@ async function main(): Promise<void> {
 
   let keptAside: string | null = null;
   if (existsSync(root) && (await readdir(root)).length > 0) {
-    keptAside = `${root}.before-restore-${new Date().toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z')}`;
+    keptAside = `${root}.before-restore-${new Date()
+      .toISOString()
+      .replace(/[-:]/g, '')
+      .replace(/\.\d+Z$/, 'Z')}`;
     await rename(root, keptAside);
   }
   await mkdir(root, { recursive: true });

@@ -10,9 +10,7 @@ import { seedDemo, DEMO_PASSWORD, DEMO_USERS } from '@/db/seeds/demo';
 async function main(): Promise<void> {
   const settings = resolveDbSettings();
   await checkDatabase(db, settings);
-  const [{ n }] = await db('information_schema.tables')
-    .where({ table_schema: settings.database, table_name: 'users' })
-    .count({ n: '*' });
+  const [{ n }] = await db('information_schema.tables').where({ table_schema: settings.database, table_name: 'users' }).count({ n: '*' });
   if (Number(n) === 0) throw new Error(`database \`${settings.database}\` has no schema yet — run \`npm run migrate\` first`);
   const result = await seedDemo(db);
   console.log(

@@ -40,7 +40,9 @@ async function main(): Promise<void> {
     console.log(applied.length ? `quorum: applied ${applied.length} migration(s)` : 'quorum: database schema is current');
   }
   const { sweepUploadLeftovers } = await import('@/lib/storage/sweep');
-  await sweepUploadLeftovers({ log: (line) => console.log(`quorum: ${line}`) }).catch((err) => console.error('quorum: sweeping uploads/tmp failed:', err));
+  await sweepUploadLeftovers({ log: (line) => console.log(`quorum: ${line}`) }).catch((err) =>
+    console.error('quorum: sweeping uploads/tmp failed:', err),
+  );
 
   const next = (await import('next')).default;
   const app = next({ dev: false, dir: root, hostname: settings.host, port: settings.port });
@@ -52,7 +54,9 @@ async function main(): Promise<void> {
   });
   server.on('error', (err) => fail(`cannot listen on ${settings.host}:${settings.port}: ${err.message}`, 4));
   server.listen(settings.port, settings.host, () => {
-    console.log(`quorum: serving on http://${settings.host.includes(':') ? `[${settings.host}]` : settings.host}:${settings.port}${settings.demo ? ' (demo)' : ''}`);
+    console.log(
+      `quorum: serving on http://${settings.host.includes(':') ? `[${settings.host}]` : settings.host}:${settings.port}${settings.demo ? ' (demo)' : ''}`,
+    );
   });
   const sweeper = setInterval(() => void sweepUploadLeftovers({}).catch(() => undefined), 60 * 60 * 1000);
   sweeper.unref();

@@ -41,7 +41,9 @@ async function main(): Promise<number> {
   try {
     if (nice > 0) {
       const lowered = lowerProcessPriority(nice);
-      process.stdout.write(`worker: CPU priority lowered to nice ${nice} (${lowered.threads} threads${lowered.sessionGroup ? ', and its session group' : ''})\n`);
+      process.stdout.write(
+        `worker: CPU priority lowered to nice ${nice} (${lowered.threads} threads${lowered.sessionGroup ? ', and its session group' : ''})\n`,
+      );
     }
   } catch (err) {
     process.stderr.write(`worker: could not lower its CPU priority (${(err as Error).message}); running at normal priority\n`);
@@ -72,15 +74,25 @@ async function main(): Promise<number> {
     return 1;
   }
 
-  console.log(`worker ${workerId}: ready (kinds ${Object.keys(jobKinds).join(', ')}; lease ${leaseMs} ms; executor ${executor}; ${concurrency} at once${once ? '; --once' : ''})`);
+  console.log(
+    `worker ${workerId}: ready (kinds ${Object.keys(jobKinds).join(', ')}; lease ${leaseMs} ms; executor ${executor}; ${concurrency} at once${once ? '; --once' : ''})`,
+  );
   const worker = startWorker({
-    db, kinds: jobKinds, workerId, leaseMs, pollMs, retryBaseMs, once, concurrency,
-    onSweep: executorName() === 'slurm'
-      ? async () => {
-          const ids = await cancelOrphanedClusterJobs(db);
-          return ids.length ? `cancelled cluster job ${ids.join(', ')} (their Quorum jobs were cancelled while queued)` : null;
-        }
-      : undefined,
+    db,
+    kinds: jobKinds,
+    workerId,
+    leaseMs,
+    pollMs,
+    retryBaseMs,
+    once,
+    concurrency,
+    onSweep:
+      executorName() === 'slurm'
+        ? async () => {
+            const ids = await cancelOrphanedClusterJobs(db);
+            return ids.length ? `cancelled cluster job ${ids.join(', ')} (their Quorum jobs were cancelled while queued)` : null;
+          }
+        : undefined,
   });
 
   let signals = 0;

@@ -7,7 +7,9 @@ export default async function SignedInLayout({ children }: { children: React.Rea
   return (
     <>
       <AppNav user={user} />
-      <main className="mx-auto w-full max-w-7xl flex-1 px-4 py-6"><QueryProvider>{children}</QueryProvider></main>
+      <main className="mx-auto w-full max-w-7xl flex-1 px-4 py-6">
+        <QueryProvider>{children}</QueryProvider>
+      </main>
     </>
   );
 }

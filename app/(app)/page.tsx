@@ -24,7 +24,9 @@ export default async function HomePage() {
       <h1 className="text-xl font-semibold" data-testid="home-heading">
         {HEADINGS[user.role]}
       </h1>
-      {user.role === 'rater' ? <RaterQueue items={await listQueueForRater({ raterId: user.id })} held={await raterGateNotices({ raterId: user.id })} /> : null}
+      {user.role === 'rater' ? (
+        <RaterQueue items={await listQueueForRater({ raterId: user.id })} held={await raterGateNotices({ raterId: user.id })} />
+      ) : null}
       {user.role === 'lead' ? (
         <StudyList title="Studies you lead" studies={await listStudiesForUser({ user })} empty="You lead no study yet." />
       ) : null}

@@ -86,14 +86,26 @@ export function AuditFilters({ initial, choices }: { initial: Values; choices: C
         <label htmlFor="audit-from" className="text-ink-muted">
           From (UTC)
         </label>
-        <input id="audit-from" type="date" className={`${input} ${formState.errors.from ? 'border-alarm' : 'border-line-strong'}`} {...register('from')} {...described('from')} />
+        <input
+          id="audit-from"
+          type="date"
+          className={`${input} ${formState.errors.from ? 'border-alarm' : 'border-line-strong'}`}
+          {...register('from')}
+          {...described('from')}
+        />
         {err('from')}
       </div>
       <div className="flex flex-col gap-1">
         <label htmlFor="audit-to" className="text-ink-muted">
           To (UTC)
         </label>
-        <input id="audit-to" type="date" className={`${input} ${formState.errors.to ? 'border-alarm' : 'border-line-strong'}`} {...register('to')} {...described('to')} />
+        <input
+          id="audit-to"
+          type="date"
+          className={`${input} ${formState.errors.to ? 'border-alarm' : 'border-line-strong'}`}
+          {...register('to')}
+          {...described('to')}
+        />
         {err('to')}
       </div>
       <Button type="submit" data-testid="audit-apply">

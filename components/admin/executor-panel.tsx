@@ -8,7 +8,11 @@ export function ExecutorPanel({ status }: { status: ExecutorStatus }) {
       <p className="text-sm text-ink">
         Decompose and denoise jobs run{' '}
         <strong data-testid="executor-name">
-          {status.executor === 'slurm' ? 'on the Slurm cluster' : status.executor === 'local' ? "on the worker's own machine" : 'nowhere until the setting is fixed'}
+          {status.executor === 'slurm'
+            ? 'on the Slurm cluster'
+            : status.executor === 'local'
+              ? "on the worker's own machine"
+              : 'nowhere until the setting is fixed'}
         </strong>{' '}
         (QUORUM_EXECUTOR).
       </p>

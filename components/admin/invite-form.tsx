@@ -11,7 +11,13 @@ import { Field } from '@/components/ui/field';
 import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/notice';
 
-function SelectField({ label, name, error, children, ...props }: React.SelectHTMLAttributes<HTMLSelectElement> & { label: string; name: string; error?: string }) {
+function SelectField({
+  label,
+  name,
+  error,
+  children,
+  ...props
+}: React.SelectHTMLAttributes<HTMLSelectElement> & { label: string; name: string; error?: string }) {
   const id = `field-${name}`;
   return (
     <div className="flex flex-col gap-1">
@@ -38,7 +44,15 @@ function SelectField({ label, name, error, children, ...props }: React.SelectHTM
 }
 
 /** Invite a person by e-mail with a role (and optionally a study). Leads see only rater and observer. */
-export function InviteForm({ roles, studies, studyRoles }: { roles: Role[]; studies: { id: number; name: string }[]; studyRoles: string[] }) {
+export function InviteForm({
+  roles,
+  studies,
+  studyRoles,
+}: {
+  roles: Role[];
+  studies: { id: number; name: string }[];
+  studyRoles: string[];
+}) {
   const router = useRouter();
   const [result, setResult] = useState<{ kind: 'ok' | 'error'; text: string } | null>(null);
   // a pending invitation to the same address: the server's words, and the values to send again on "Replace it"
@@ -79,15 +93,38 @@ export function InviteForm({ roles, studies, studyRoles }: { roles: Role[]; stud
         </Notice>
       ) : null}
       {replace ? (
-        <div role="alertdialog" aria-labelledby="replace-title" className="rounded border border-alarm/60 bg-alarm/10 p-3 text-sm" data-testid="invite-replace">
-          <p id="replace-title" className="font-semibold">Replace the pending invitation?</p>
-          <p className="mt-1 text-ink-muted" data-testid="invite-replace-text">{replace.text}</p>
+        <div
+          role="alertdialog"
+          aria-labelledby="replace-title"
+          className="rounded border border-alarm/60 bg-alarm/10 p-3 text-sm"
+          data-testid="invite-replace"
+        >
+          <p id="replace-title" className="font-semibold">
+            Replace the pending invitation?
+          </p>
+          <p className="mt-1 text-ink-muted" data-testid="invite-replace-text">
+            {replace.text}
+          </p>
           <p className="mt-1 text-ink-muted">The withdrawal is recorded in the audit log; the old link stops working.</p>
           <div className="mt-2 flex gap-2">
-            <Button type="button" variant="danger" disabled={formState.isSubmitting} data-testid="invite-replace-yes" onClick={() => void send({ ...replace.values, replace: true })}>
+            <Button
+              type="button"
+              variant="danger"
+              disabled={formState.isSubmitting}
+              data-testid="invite-replace-yes"
+              onClick={() => void send({ ...replace.values, replace: true })}
+            >
               Withdraw it and send this one
             </Button>
-            <Button type="button" variant="quiet" data-testid="invite-replace-no" onClick={() => { setReplace(null); setResult({ kind: 'ok', text: 'Nothing was sent; the pending invitation stays as it was.' }); }}>
+            <Button
+              type="button"
+              variant="quiet"
+              data-testid="invite-replace-no"
+              onClick={() => {
+                setReplace(null);
+                setResult({ kind: 'ok', text: 'Nothing was sent; the pending invitation stays as it was.' });
+              }}
+            >
               Keep the pending one
             </Button>
           </div>

@@ -45,7 +45,11 @@ export function PeopleTable({ people, currentUserId }: { people: PersonView[]; c
     const result = await patchAccess(person.id, change);
     setBusy(null);
     if (!result.ok) return setMessage({ kind: 'error', text: result.message });
-    const what = change.role ? `${person.name} is now ${ROLE_LABELS[change.role].toLowerCase()}.` : change.active ? `${person.name} is active again.` : `${person.name} is deactivated; their sessions stop working now.`;
+    const what = change.role
+      ? `${person.name} is now ${ROLE_LABELS[change.role].toLowerCase()}.`
+      : change.active
+        ? `${person.name} is active again.`
+        : `${person.name} is deactivated; their sessions stop working now.`;
     setMessage({ kind: 'ok', text: what });
     router.refresh();
   }
@@ -91,7 +95,11 @@ export function PeopleTable({ people, currentUserId }: { people: PersonView[]; c
         id: 'status',
         header: 'Status',
         filterFn: 'equalsString',
-        cell: (c) => <span className={c.getValue() === 'active' ? 'text-ink' : 'text-alarm'} data-testid={`status-${c.row.original.email}`}>{c.getValue()}</span>,
+        cell: (c) => (
+          <span className={c.getValue() === 'active' ? 'text-ink' : 'text-alarm'} data-testid={`status-${c.row.original.email}`}>
+            {c.getValue()}
+          </span>
+        ),
       }),
       col.accessor('lastSignInAt', {
         header: 'Last sign-in (UTC)',
@@ -112,15 +120,30 @@ export function PeopleTable({ people, currentUserId }: { people: PersonView[]; c
           const p = c.row.original;
           return p.active ? (
             <span className="flex gap-2">
-              <Button variant="quiet" data-testid={`sign-out-everywhere-${p.email}`} disabled={busy === p.id} onClick={() => signOutEverywhere(p)}>
+              <Button
+                variant="quiet"
+                data-testid={`sign-out-everywhere-${p.email}`}
+                disabled={busy === p.id}
+                onClick={() => signOutEverywhere(p)}
+              >
                 Sign out everywhere
               </Button>
-              <Button variant="danger" data-testid={`deactivate-${p.email}`} disabled={busy === p.id} onClick={() => change(p, { active: false })}>
+              <Button
+                variant="danger"
+                data-testid={`deactivate-${p.email}`}
+                disabled={busy === p.id}
+                onClick={() => change(p, { active: false })}
+              >
                 {p.id === currentUserId ? 'Deactivate me' : 'Deactivate'}
               </Button>
             </span>
           ) : (
-            <Button variant="quiet" data-testid={`reactivate-${p.email}`} disabled={busy === p.id} onClick={() => change(p, { active: true })}>
+            <Button
+              variant="quiet"
+              data-testid={`reactivate-${p.email}`}
+              disabled={busy === p.id}
+              onClick={() => change(p, { active: true })}
+            >
               Reactivate
             </Button>
           );
@@ -206,7 +229,11 @@ export function PeopleTable({ people, currentUserId }: { people: PersonView[]; c
                 {hg.headers.map((h) => {
                   const sorted = h.column.getIsSorted();
                   return (
-                    <th key={h.id} className="py-1 pr-3 font-medium" aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}>
+                    <th
+                      key={h.id}
+                      className="py-1 pr-3 font-medium"
+                      aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}
+                    >
                       {h.column.getCanSort() ? (
                         <button type="button" className="hover:text-ink" onClick={h.column.getToggleSortingHandler()}>
                           {flexRender(h.column.columnDef.header, h.getContext())}

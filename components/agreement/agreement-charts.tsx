@@ -46,7 +46,15 @@ export function WeeklyChart({ data }: { data: WeekPoint[] }) {
           <Tooltip contentStyle={tooltipStyle} formatter={(v) => (typeof v === 'number' ? v.toFixed(3) : String(v))} />
           <Legend wrapperStyle={LEGEND} verticalAlign="top" height={22} />
           <Line dataKey="alpha" name="Krippendorff's α" stroke={ACCENT} dot isAnimationActive={false} connectNulls />
-          <Line dataKey="percent" name="agreement (share of agreeing pairs)" stroke="#9aa4b2" strokeDasharray="4 3" dot={false} isAnimationActive={false} connectNulls />
+          <Line
+            dataKey="percent"
+            name="agreement (share of agreeing pairs)"
+            stroke="#9aa4b2"
+            strokeDasharray="4 3"
+            dot={false}
+            isAnimationActive={false}
+            connectNulls
+          />
         </LineChart>
       </ResponsiveContainer>
     </div>

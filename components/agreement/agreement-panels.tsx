@@ -17,7 +17,15 @@ export function RaterPairsPanel({ summary, nameOf }: { summary: StudyAgreement; 
 }
 
 /** Each rater against the decisions: κ and noise rate, with noise sensitivity/specificity when `detailed`. */
-export function RatersVsDecisionsPanel({ summary, nameOf, detailed = false }: { summary: StudyAgreement; nameOf: NameOf; detailed?: boolean }) {
+export function RatersVsDecisionsPanel({
+  summary,
+  nameOf,
+  detailed = false,
+}: {
+  summary: StudyAgreement;
+  nameOf: NameOf;
+  detailed?: boolean;
+}) {
   return (
     <Panel title="Each rater against the decisions">
       <table className="mb-3 w-full text-sm" data-testid="vs-decision">
@@ -42,7 +50,9 @@ export function RatersVsDecisionsPanel({ summary, nameOf, detailed = false }: { 
           ))}
         </tbody>
       </table>
-      <NoiseRateChart data={summary.vsDecision.map((r) => ({ name: nameOf(r.rater), noiseRate: r.noiseRate.value, kappa: r.cohenKappa.value }))} />
+      <NoiseRateChart
+        data={summary.vsDecision.map((r) => ({ name: nameOf(r.rater), noiseRate: r.noiseRate.value, kappa: r.cohenKappa.value }))}
+      />
     </Panel>
   );
 }
@@ -50,7 +60,9 @@ export function RatersVsDecisionsPanel({ summary, nameOf, detailed = false }: { 
 export function WeeklyPanel({ weeks }: { weeks: AgreementReport['weeks'] }) {
   return (
     <Panel title="Over time (by week of the last vote)">
-      <WeeklyChart data={weeks.map((w) => ({ week: w.week, alpha: w.krippendorffAlpha.value, percent: w.percentAgreement.value, items: w.items }))} />
+      <WeeklyChart
+        data={weeks.map((w) => ({ week: w.week, alpha: w.krippendorffAlpha.value, percent: w.percentAgreement.value, items: w.items }))}
+      />
     </Panel>
   );
 }
@@ -64,9 +76,7 @@ export function RunsTable({ runs }: { runs: AgreementReport['runs'] }) {
           <tr key={r.runId}>
             <td className="font-mono">{r.name}</td>
             <td className="text-right font-mono">{formatStat(r.krippendorffAlpha, 2)}</td>
-            <td className="text-right text-ink-faint">
-              {countOf(r.items, 'component')}
-            </td>
+            <td className="text-right text-ink-faint">{countOf(r.items, 'component')}</td>
           </tr>
         ))}
       </tbody>

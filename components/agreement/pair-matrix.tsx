@@ -2,7 +2,15 @@ import type { StudyAgreement } from '@/lib/agreement';
 import { formatStat, heat } from './format';
 
 /** Cohen's κ for every rater pair as a symmetric heatmap table. */
-export function PairMatrix({ pairs, raters, nameOf }: { pairs: StudyAgreement['pairs']; raters: readonly string[]; nameOf: (id: string) => string }) {
+export function PairMatrix({
+  pairs,
+  raters,
+  nameOf,
+}: {
+  pairs: StudyAgreement['pairs'];
+  raters: readonly string[];
+  nameOf: (id: string) => string;
+}) {
   const key = (a: string, b: string) => (a < b ? `${a}|${b}` : `${b}|${a}`);
   const byKey = new Map(pairs.map((p) => [key(p.raterA, p.raterB), p]));
   return (
@@ -27,7 +35,12 @@ export function PairMatrix({ pairs, raters, nameOf }: { pairs: StudyAgreement['p
             {raters.map((b) => {
               const p = a === b ? null : byKey.get(key(a, b));
               return (
-                <td key={b} className="h-10 w-20 border border-line text-center font-mono" style={{ background: heat(p?.cohenKappa.value ?? null) }} title={p ? `${p.n} shared components; ${p.cohenKappa.reason ?? p.cohenKappa.band ?? ''}` : undefined}>
+                <td
+                  key={b}
+                  className="h-10 w-20 border border-line text-center font-mono"
+                  style={{ background: heat(p?.cohenKappa.value ?? null) }}
+                  title={p ? `${p.n} shared components; ${p.cohenKappa.reason ?? p.cohenKappa.band ?? ''}` : undefined}
+                >
                   {a === b ? '' : p ? formatStat(p.cohenKappa, 2) : '·'}
                 </td>
               );

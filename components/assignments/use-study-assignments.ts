@@ -4,8 +4,24 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { callJson, dataOrThrow, getJson } from '@/lib/api/client';
 
 /** What GET /api/studies/:id/assignments returns (dates as ISO strings, as JSON carries them). */
-export type AssignmentCell = { raterId: number; raterName: string; dueAt: string | null; labelled: number; submittedAt: string | null; reopenCount: number; notifiedAt: string | null; overdue: boolean };
-export type AssignmentRow = { runId: number; runName: string; status: string; total: number; pending: number; assignments: AssignmentCell[] };
+export type AssignmentCell = {
+  raterId: number;
+  raterName: string;
+  dueAt: string | null;
+  labelled: number;
+  submittedAt: string | null;
+  reopenCount: number;
+  notifiedAt: string | null;
+  overdue: boolean;
+};
+export type AssignmentRow = {
+  runId: number;
+  runName: string;
+  status: string;
+  total: number;
+  pending: number;
+  assignments: AssignmentCell[];
+};
 export type RaterOption = { id: number; name: string; open: number; certified: boolean | null };
 export type StudyAssignments = { runs: AssignmentRow[]; raters: RaterOption[] };
 

@@ -7,7 +7,16 @@ import { MapPanel } from '@/components/desk/map-panel';
 import { ChartsPanel } from '@/components/desk/charts-panel';
 import { Notice } from '@/components/ui/notice';
 
-export type ResultRow = { componentId: number; idx: number; mine: string; reference: string; reason: string | null; differs: boolean; hf: string; edge: string };
+export type ResultRow = {
+  componentId: number;
+  idx: number;
+  mine: string;
+  reference: string;
+  reason: string | null;
+  differs: boolean;
+  hf: string;
+  edge: string;
+};
 
 /**
  * The rater's calibration result, component by component, with the desk's read-only viewer and
@@ -44,7 +53,13 @@ export function CalibrationResultViewer({ run, components, rows }: { run: DeskRu
               data-differs={c.differs ? 'true' : 'false'}
             >
               <td className="py-1.5 pr-3 tabular-nums">
-                <button type="button" className="text-lumen hover:text-lumen-strong" onClick={() => setPicked(c.componentId)} aria-pressed={c.componentId === component?.id} data-testid="calibration-result-show">
+                <button
+                  type="button"
+                  className="text-lumen hover:text-lumen-strong"
+                  onClick={() => setPicked(c.componentId)}
+                  aria-pressed={c.componentId === component?.id}
+                  data-testid="calibration-result-show"
+                >
                   {c.idx}
                 </button>
               </td>
@@ -62,7 +77,11 @@ export function CalibrationResultViewer({ run, components, rows }: { run: DeskRu
           <p className="font-mono text-sm" data-testid="desk-position">
             Component <span className="text-ink">{component.idx}</span> of {run.k}
           </p>
-          {viewerError ? <Notice kind="error" testId="viewer-error">{viewerError}</Notice> : null}
+          {viewerError ? (
+            <Notice kind="error" testId="viewer-error">
+              {viewerError}
+            </Notice>
+          ) : null}
           <MapPanel
             meanUrl={`${files}/mean.nii.gz?d=${run.decompositionId}`}
             componentsUrl={`${files}/components.nii.gz?d=${run.decompositionId}`}
@@ -73,7 +92,12 @@ export function CalibrationResultViewer({ run, components, rows }: { run: DeskRu
             api={api}
             onError={setViewerError}
           />
-          <ChartsPanel run={run} component={component} showMotion={prefs.showMotion} onShowMotion={(on) => setPrefs((p) => ({ ...p, showMotion: on }))} />
+          <ChartsPanel
+            run={run}
+            component={component}
+            showMotion={prefs.showMotion}
+            onShowMotion={(on) => setPrefs((p) => ({ ...p, showMotion: on }))}
+          />
         </div>
       ) : null}
     </div>

@@ -16,7 +16,15 @@ export type CalibrationScoreView = {
   noise: { sensitivity: StatResult; specificity: StatResult };
 };
 export type CalibrationAssignmentView = { raterId: number; raterName: string; labelled: number; submittedAt: string | null };
-export type CalibrationRunView = { runId: number; runName: string; status: string; total: number; referenced: number; pending: number; assignments: CalibrationAssignmentView[] };
+export type CalibrationRunView = {
+  runId: number;
+  runName: string;
+  status: string;
+  total: number;
+  referenced: number;
+  pending: number;
+  assignments: CalibrationAssignmentView[];
+};
 export type CalibrationRaterView = {
   id: number;
   name: string;

@@ -30,7 +30,14 @@ export const MotionChart = memo(function MotionChart({
       <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 600, height }}>
         <AreaChart data={shown} margin={{ top: 2, right: 8, bottom: 0, left: -18 }}>
           <XAxis dataKey="s" type="number" domain={domain} allowDataOverflow hide />
-          <YAxis domain={[yTicks[0] ?? 0, yTicks.at(-1) ?? 1]} ticks={yTicks} tick={CHART.tick} stroke={CHART.axis} width={44} tickFormatter={tickFormatter(yTicks)} />
+          <YAxis
+            domain={[yTicks[0] ?? 0, yTicks.at(-1) ?? 1]}
+            ticks={yTicks}
+            tick={CHART.tick}
+            stroke={CHART.axis}
+            width={44}
+            tickFormatter={tickFormatter(yTicks)}
+          />
           <Area dataKey="v" stroke={CHART.fd} fill={CHART.fd} fillOpacity={0.25} strokeWidth={1} isAnimationActive={false} />
         </AreaChart>
       </ResponsiveContainer>

@@ -29,7 +29,10 @@ function Traces({
   testId: string;
 }) {
   const n = series[0]?.length ?? 0;
-  const data = useMemo(() => Array.from({ length: n }, (_, t) => ({ s: (droppedVolumes + t) * trSeconds, a: series[0][t], b: series[1][t], c: series[2][t] })), [series, n, trSeconds, droppedVolumes]);
+  const data = useMemo(
+    () => Array.from({ length: n }, (_, t) => ({ s: (droppedVolumes + t) * trSeconds, a: series[0][t], b: series[1][t], c: series[2][t] })),
+    [series, n, trSeconds, droppedVolumes],
+  );
   const domain: [number, number] = range ?? [0, (droppedVolumes + Math.max(n - 1, 0)) * trSeconds];
   const shown = useMemo(() => (range ? data.filter((d) => d.s >= range[0] && d.s <= range[1]) : data), [data, range]);
   const yTicks = useMemo(() => {
@@ -54,7 +57,14 @@ function Traces({
         <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 600, height: 56 }}>
           <LineChart data={shown} margin={{ top: 2, right: 8, bottom: 0, left: -18 }}>
             <XAxis dataKey="s" type="number" domain={domain} allowDataOverflow hide />
-            <YAxis domain={[yTicks[0] ?? 0, yTicks.at(-1) ?? 1]} ticks={yTicks} tick={CHART.tick} stroke={CHART.axis} width={44} tickFormatter={tickFormatter(yTicks)} />
+            <YAxis
+              domain={[yTicks[0] ?? 0, yTicks.at(-1) ?? 1]}
+              ticks={yTicks}
+              tick={CHART.tick}
+              stroke={CHART.axis}
+              width={44}
+              tickFormatter={tickFormatter(yTicks)}
+            />
             {(['a', 'b', 'c'] as const).map((k, i) => (
               <Line key={k} dataKey={k} stroke={COLOURS[i]} strokeWidth={1} dot={false} isAnimationActive={false} />
             ))}

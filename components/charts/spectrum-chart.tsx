@@ -67,7 +67,11 @@ export const SpectrumChart = memo(function SpectrumChart({
   );
   const data = useMemo<uPlot.AlignedData>(() => [frequencies as number[], power as number[]], [frequencies, power]);
   return (
-    <div data-testid="spectrum-chart" aria-label={`Power spectrum (a.u.²/Hz) from 0 to the Nyquist limit ${nyquist.toFixed(3)} Hz`} role="img">
+    <div
+      data-testid="spectrum-chart"
+      aria-label={`Power spectrum (a.u.²/Hz) from 0 to the Nyquist limit ${nyquist.toFixed(3)} Hz`}
+      role="img"
+    >
       <UplotChart options={options} data={data} height={height} />
     </div>
   );

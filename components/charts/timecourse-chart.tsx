@@ -99,7 +99,10 @@ export const TimecourseChart = memo(function TimecourseChart({
     >
       <UplotChart options={options} data={data} height={height} />
       {i != null ? (
-        <div className="pointer-events-none absolute right-2 top-1 rounded border border-line-strong bg-ground-raised px-2 py-1 font-mono text-[11px] text-ink" data-testid="timecourse-hover">
+        <div
+          className="pointer-events-none absolute right-2 top-1 rounded border border-line-strong bg-ground-raised px-2 py-1 font-mono text-[11px] text-ink"
+          data-testid="timecourse-hover"
+        >
           volume {droppedVolumes + i} · {((droppedVolumes + i) * trSeconds).toFixed(1)} s · {Number(values[i]).toFixed(3)}
         </div>
       ) : null}

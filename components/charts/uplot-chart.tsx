@@ -23,7 +23,9 @@ export function niceAxis(opts: { count: number; size?: number; label?: string; s
     ticks: { stroke: CHART.axis, width: 1, size: 4 },
     grid: { stroke: CHART.grid, width: 1 },
     splits: (_u, _axis, min, max) => {
-      const ticks = niceTicks(min, max, opts.count).filter((v) => v >= min - 1e-9 * Math.abs(max - min) && v <= max + 1e-9 * Math.abs(max - min));
+      const ticks = niceTicks(min, max, opts.count).filter(
+        (v) => v >= min - 1e-9 * Math.abs(max - min) && v <= max + 1e-9 * Math.abs(max - min),
+      );
       labels = tickFormatter(ticks);
       return ticks;
     },
@@ -45,7 +47,17 @@ export function niceRange(count: number): uPlot.Range.Function {
  * (memoise them) and gets new series with `setData` — a few milliseconds for 1,200 points, where
  * an SVG chart rebuilt its whole element tree on every component.
  */
-export function UplotChart({ options, data, height, onReady }: { options: Omit<Options, 'width' | 'height'>; data: AlignedData; height: number; onReady?: (u: uPlot | null) => void }) {
+export function UplotChart({
+  options,
+  data,
+  height,
+  onReady,
+}: {
+  options: Omit<Options, 'width' | 'height'>;
+  data: AlignedData;
+  height: number;
+  onReady?: (u: uPlot | null) => void;
+}) {
   const box = useRef<HTMLDivElement>(null);
   const plot = useRef<uPlot | null>(null);
   const dataRef = useRef(data);

@@ -10,7 +10,17 @@ import type { DeskComponent, DeskRun } from '@/lib/desk/types';
  * The component's time course (drag to zoom; the framewise displacement and, on request, the six
  * motion parameters under it on the same axis) and its power spectrum.
  */
-export function ChartsPanel({ run, component, showMotion, onShowMotion }: { run: DeskRun; component: DeskComponent; showMotion: boolean; onShowMotion: (on: boolean) => void }) {
+export function ChartsPanel({
+  run,
+  component,
+  showMotion,
+  onShowMotion,
+}: {
+  run: DeskRun;
+  component: DeskComponent;
+  showMotion: boolean;
+  onShowMotion: (on: boolean) => void;
+}) {
   const [range, setRange] = useState<TimeRange>(null);
   const common = { trSeconds: run.trSeconds, droppedVolumes: run.droppedVolumes, range };
   return (
@@ -20,13 +30,24 @@ export function ChartsPanel({ run, component, showMotion, onShowMotion }: { run:
           <span className="uppercase tracking-wider">Time course · s</span>
           <span>drag across to zoom</span>
           {range ? (
-            <button type="button" onClick={() => setRange(null)} className="rounded border border-line-strong px-1.5 text-ink" data-testid="timecourse-reset">
+            <button
+              type="button"
+              onClick={() => setRange(null)}
+              className="rounded border border-line-strong px-1.5 text-ink"
+              data-testid="timecourse-reset"
+            >
               whole run
             </button>
           ) : null}
           {run.motion ? (
             <label className="ml-auto flex items-center gap-1">
-              <input type="checkbox" checked={showMotion} onChange={(e) => onShowMotion(e.target.checked)} className="accent-lumen" data-testid="motion-toggle" />
+              <input
+                type="checkbox"
+                checked={showMotion}
+                onChange={(e) => onShowMotion(e.target.checked)}
+                className="accent-lumen"
+                data-testid="motion-toggle"
+              />
               motion parameters
             </label>
           ) : null}

@@ -16,10 +16,17 @@ const FILTERS: { value: StripFilter; text: string }[] = [
 ];
 
 /** Which list positions a filter keeps (the current one always stays, so the rater never loses her place). */
-export function visibleIndices(ids: number[], filter: StripFilter, votes: Map<number, ShownVote>, flags: Set<number>, current: number): number[] {
+export function visibleIndices(
+  ids: number[],
+  filter: StripFilter,
+  votes: Map<number, ShownVote>,
+  flags: Set<number>,
+  current: number,
+): number[] {
   const out: number[] = [];
   ids.forEach((id, i) => {
-    if (i === current || filter === 'all' || (filter === 'unlabelled' && !votes.get(id)?.label) || (filter === 'flagged' && flags.has(id))) out.push(i);
+    if (i === current || filter === 'all' || (filter === 'unlabelled' && !votes.get(id)?.label) || (filter === 'flagged' && flags.has(id)))
+      out.push(i);
   });
   return out;
 }
@@ -61,7 +68,11 @@ export const ComponentStrip = memo(function ComponentStrip({
   return (
     <div className="flex flex-wrap items-start gap-2">
       {onFilter ? (
-        <div role="group" aria-label="Show in the strip" className="flex shrink-0 overflow-hidden rounded border border-line-strong text-xs">
+        <div
+          role="group"
+          aria-label="Show in the strip"
+          className="flex shrink-0 overflow-hidden rounded border border-line-strong text-xs"
+        >
           {FILTERS.map((f) => (
             <button
               key={f.value}
@@ -76,7 +87,13 @@ export const ComponentStrip = memo(function ComponentStrip({
           ))}
         </div>
       ) : null}
-      <nav ref={navRef} aria-label="Components" className="flex min-w-0 flex-1 flex-wrap gap-px" data-testid="component-strip" data-filter={filter}>
+      <nav
+        ref={navRef}
+        aria-label="Components"
+        className="flex min-w-0 flex-1 flex-wrap gap-px"
+        data-testid="component-strip"
+        data-filter={filter}
+      >
         {shown.map((i) => {
           const id = ids[i];
           const label = votes.get(id)?.label;
@@ -101,7 +118,12 @@ export const ComponentStrip = memo(function ComponentStrip({
               } ${i === current ? 'ring-2 ring-ink ring-offset-1 ring-offset-ground' : ''} ${low ? 'underline decoration-alarm decoration-2 underline-offset-1' : ''}`}
             >
               {n}
-              {flagged ? <span aria-hidden className="absolute right-0 top-0 h-0 w-0 border-l-[5px] border-t-[5px] border-l-transparent border-t-alarm" /> : null}
+              {flagged ? (
+                <span
+                  aria-hidden
+                  className="absolute right-0 top-0 h-0 w-0 border-l-[5px] border-t-[5px] border-l-transparent border-t-alarm"
+                />
+              ) : null}
             </button>
           );
         })}

@@ -7,7 +7,15 @@ import type { DeskComponent } from '@/lib/desk/types';
  * undefined feature shows "—" with the reason it is undefined; reproducibility comes first and is
  * flagged when it is below the study's threshold.
  */
-export function FeaturePanel({ component, k, reproducibilityThreshold }: { component: DeskComponent; k: number; reproducibilityThreshold?: number }) {
+export function FeaturePanel({
+  component,
+  k,
+  reproducibilityThreshold,
+}: {
+  component: DeskComponent;
+  k: number;
+  reproducibilityThreshold?: number;
+}) {
   const low = reproducibilityThreshold !== undefined && isLowReproducibility(component.features, reproducibilityThreshold);
   return (
     <section aria-labelledby="features-heading" className="rounded border border-line bg-ground-raised" data-testid="feature-panel">
@@ -16,12 +24,18 @@ export function FeaturePanel({ component, k, reproducibilityThreshold }: { compo
           Features
         </h2>
         <p className="font-mono text-xs text-ink-muted">
-          <span data-testid="variance-explained">{(component.varianceExplained * 100).toFixed(1)} %</span> of variance · {component.idx} of {k}
+          <span data-testid="variance-explained">{(component.varianceExplained * 100).toFixed(1)} %</span> of variance · {component.idx} of{' '}
+          {k}
         </p>
       </header>
       {low ? (
-        <p className="border-b border-line bg-alarm/10 px-3 py-1 text-[11px] leading-snug text-alarm" data-testid="reproducibility-flag" role="note">
-          Low reproducibility: below the study&rsquo;s {reproducibilityThreshold!.toFixed(2)}. This component did not come back reliably when the decomposition was re-run; rate it with care.
+        <p
+          className="border-b border-line bg-alarm/10 px-3 py-1 text-[11px] leading-snug text-alarm"
+          data-testid="reproducibility-flag"
+          role="note"
+        >
+          Low reproducibility: below the study&rsquo;s {reproducibilityThreshold!.toFixed(2)}. This component did not come back reliably
+          when the decomposition was re-run; rate it with care.
         </p>
       ) : null}
       <dl className="divide-y divide-line/60">
@@ -40,7 +54,9 @@ export function FeaturePanel({ component, k, reproducibilityThreshold }: { compo
               >
                 {shown}
               </dd>
-              <p className="col-span-2 hidden text-[11px] leading-snug text-ink-muted group-hover:block group-focus-within:block">{explain}</p>
+              <p className="col-span-2 hidden text-[11px] leading-snug text-ink-muted group-hover:block group-focus-within:block">
+                {explain}
+              </p>
             </div>
           );
         })}

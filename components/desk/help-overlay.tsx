@@ -4,7 +4,17 @@ import { helpRows } from '@/lib/desk/keys';
 import { labelName, noiseKindName } from '@/lib/studies/labels';
 
 /** The keyboard help (?), a modal dialog generated from the desk's key map. */
-export function HelpOverlay({ labelSet, noiseKinds, onClose, readOnly = false }: { labelSet: string[]; noiseKinds: string[]; onClose: () => void; readOnly?: boolean }) {
+export function HelpOverlay({
+  labelSet,
+  noiseKinds,
+  onClose,
+  readOnly = false,
+}: {
+  labelSet: string[];
+  noiseKinds: string[];
+  onClose: () => void;
+  readOnly?: boolean;
+}) {
   const ref = useRef<HTMLDivElement>(null);
   useEffect(() => ref.current?.focus(), []);
   return (
@@ -37,7 +47,10 @@ export function HelpOverlay({ labelSet, noiseKinds, onClose, readOnly = false }:
                     <tr key={r.does}>
                       <td className="w-28 py-0.5 pr-2 align-top">
                         {r.keys.map((k) => (
-                          <kbd key={k} className="mr-1 inline-block min-w-6 rounded border border-line-strong bg-ground-sunken px-1.5 text-center font-mono text-xs text-ink">
+                          <kbd
+                            key={k}
+                            className="mr-1 inline-block min-w-6 rounded border border-line-strong bg-ground-sunken px-1.5 text-center font-mono text-xs text-ink"
+                          >
                             {k}
                           </kbd>
                         ))}

@@ -36,9 +36,12 @@ export const MapPanel = memo(function MapPanel({
   onDrawn?: (frame: number, phase: 'issued' | 'painted') => void;
   onError?: (message: string) => void;
 }) {
-  const setApi = useCallback((a: ViewerApi | null) => {
-    api.current = a;
-  }, [api]);
+  const setApi = useCallback(
+    (a: ViewerApi | null) => {
+      api.current = a;
+    },
+    [api],
+  );
   const [location, setLocation] = useState<ViewerLocation | null>(null);
   const [info, setInfo] = useState<FrameInfo | null>(null);
   const top = Math.max(prefs.threshold + 2, Math.min(peakZ || 8, 15));
@@ -83,7 +86,13 @@ export const MapPanel = memo(function MapPanel({
             {prefs.threshold.toFixed(1)}
           </span>
         </label>
-        <ColourBar threshold={prefs.threshold} top={top} maxAbsZ={shownInfo?.maxAbsZ ?? null} sign={overlay.sign} visible={overlay.visible} />
+        <ColourBar
+          threshold={prefs.threshold}
+          top={top}
+          maxAbsZ={shownInfo?.maxAbsZ ?? null}
+          sign={overlay.sign}
+          visible={overlay.visible}
+        />
       </div>
       <div className="flex flex-wrap items-center gap-x-3 gap-y-1 text-xs text-ink-muted">
         <div role="group" aria-label="Layout" className="flex overflow-hidden rounded border border-line-strong">
@@ -139,7 +148,12 @@ export const MapPanel = memo(function MapPanel({
             {Math.round(overlay.opacity * 100)}%
           </span>
         </label>
-        <button type="button" onClick={() => setOverlay({ sign: nextSign(overlay.sign) })} className="rounded border border-line-strong px-2 py-0.5" data-testid="overlay-sign">
+        <button
+          type="button"
+          onClick={() => setOverlay({ sign: nextSign(overlay.sign) })}
+          className="rounded border border-line-strong px-2 py-0.5"
+          data-testid="overlay-sign"
+        >
           {SIGN_TEXT[overlay.sign]} (V)
         </button>
         {structuralUrl ? (
@@ -158,10 +172,20 @@ export const MapPanel = memo(function MapPanel({
             ))}
           </div>
         ) : null}
-        <button type="button" onClick={() => api.current?.nextCluster()} className="rounded border border-line-strong px-2 py-0.5" data-testid="next-peak">
+        <button
+          type="button"
+          onClick={() => api.current?.nextCluster()}
+          className="rounded border border-line-strong px-2 py-0.5"
+          data-testid="next-peak"
+        >
           next peak (P)
         </button>
-        <span className="font-mono" data-testid="cluster-readout" data-cluster={shownInfo?.cluster ?? ''} data-clusters={shownInfo?.clusters ?? ''}>
+        <span
+          className="font-mono"
+          data-testid="cluster-readout"
+          data-cluster={shownInfo?.cluster ?? ''}
+          data-clusters={shownInfo?.clusters ?? ''}
+        >
           {!shownInfo
             ? ''
             : shownInfo.clusters === 0
@@ -171,7 +195,9 @@ export const MapPanel = memo(function MapPanel({
                 : `${shownInfo.clusters} clusters`}
         </span>
         <span className="ml-auto font-mono" data-testid="crosshair-readout">
-          {location ? `${location.mm.map((v) => v.toFixed(0)).join(', ')} mm · z ${location.z == null ? '—' : location.z.toFixed(2)}` : 'click the map to read z'}
+          {location
+            ? `${location.mm.map((v) => v.toFixed(0)).join(', ')} mm · z ${location.z == null ? '—' : location.z.toFixed(2)}`
+            : 'click the map to read z'}
         </span>
       </div>
     </div>

@@ -26,7 +26,10 @@ type Props = {
 };
 
 /** Label, noise kind, confidence and note of the current component — every control also on a key. */
-export const VerdictPanel = forwardRef<HTMLTextAreaElement, Props>(function VerdictPanel({ vote, labelSet, noiseKinds, disabled, onChange, onNoteDone }, noteRef) {
+export const VerdictPanel = forwardRef<HTMLTextAreaElement, Props>(function VerdictPanel(
+  { vote, labelSet, noiseKinds, disabled, onChange, onNoteDone },
+  noteRef,
+) {
   const keys = labelKeys(labelSet);
   const [note, setNote] = useState(vote?.note ?? '');
   const stored = vote?.note ?? '';

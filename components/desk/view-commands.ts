@@ -57,7 +57,10 @@ export function applyViewCommand(
       return true;
     case 'opacityDown':
     case 'opacityUp':
-      setPrefs((p) => ({ ...p, overlay: { ...p.overlay, visible: true, opacity: stepOpacity(p.overlay.opacity, cmd.type === 'opacityUp' ? 1 : -1) } }));
+      setPrefs((p) => ({
+        ...p,
+        overlay: { ...p.overlay, visible: true, opacity: stepOpacity(p.overlay.opacity, cmd.type === 'opacityUp' ? 1 : -1) },
+      }));
       return true;
     case 'nextCluster':
       viewer?.nextCluster();

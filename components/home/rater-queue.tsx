@@ -13,7 +13,11 @@ function RunRow({ item }: { item: QueueItem }) {
         <p className="truncate font-mono text-sm">{bidsName(item)}</p>
         <p className="text-xs text-ink-muted">
           {item.studyName}
-          {item.isCalibration ? <span className="ml-2 rounded border border-line-strong px-1 text-[11px] text-ink" data-testid="queue-calibration">calibration</span> : null}
+          {item.isCalibration ? (
+            <span className="ml-2 rounded border border-line-strong px-1 text-[11px] text-ink" data-testid="queue-calibration">
+              calibration
+            </span>
+          ) : null}
         </p>
       </div>
       <div className="w-40">
@@ -39,8 +43,8 @@ export function RaterQueue({ items, held = [] }: { items: QueueItem[]; held?: Ra
     <div className="flex flex-col gap-6">
       {held.map((h) => (
         <Notice key={h.studyId} testId="calibration-gate-notice">
-          {h.studyName}: no live runs for you yet: {h.reason.replace(/^has not /, 'you have not ')} (the study&apos;s calibration threshold). Rate the calibration runs in your queue; your
-          result after each one shows where you differ from the reference.
+          {h.studyName}: no live runs for you yet: {h.reason.replace(/^has not /, 'you have not ')} (the study&apos;s calibration
+          threshold). Rate the calibration runs in your queue; your result after each one shows where you differ from the reference.
         </Notice>
       ))}
       <Panel title="My queue">
@@ -49,7 +53,11 @@ export function RaterQueue({ items, held = [] }: { items: QueueItem[]; held?: Ra
             Nothing is waiting for you. New runs appear here when a study lead assigns them.
           </p>
         ) : (
-          <ul className="divide-y divide-line">{open.map((i) => <RunRow key={i.runId} item={i} />)}</ul>
+          <ul className="divide-y divide-line">
+            {open.map((i) => (
+              <RunRow key={i.runId} item={i} />
+            ))}
+          </ul>
         )}
       </Panel>
       {done.length ? (
@@ -62,13 +70,23 @@ export function RaterQueue({ items, held = [] }: { items: QueueItem[]; held?: Ra
                   <p className="text-xs text-ink-muted">{i.studyName}</p>
                 </div>
                 {i.isCalibration ? (
-                  <Link href={`/studies/${i.studyId}/calibration/result/${i.runId}`} className="text-xs text-lumen hover:text-lumen-strong" data-testid="calibration-result-link">
+                  <Link
+                    href={`/studies/${i.studyId}/calibration/result/${i.runId}`}
+                    className="text-xs text-lumen hover:text-lumen-strong"
+                    data-testid="calibration-result-link"
+                  >
                     Your calibration result
                   </Link>
                 ) : null}
-                <span className="ml-auto text-xs text-ink-muted">submitted {i.submittedAt?.toISOString().replace('T', ' ').slice(0, 16)} UTC</span>
+                <span className="ml-auto text-xs text-ink-muted">
+                  submitted {i.submittedAt?.toISOString().replace('T', ' ').slice(0, 16)} UTC
+                </span>
                 {/* the desk shows a submitted run with the rater's votes, frozen unless a lead reopens it for them */}
-                <Link href={`/runs/${i.runId}/rate`} className="rounded border border-line-strong px-3 py-1 text-xs text-ink hover:bg-ground-raised" data-testid="submitted-open">
+                <Link
+                  href={`/runs/${i.runId}/rate`}
+                  className="rounded border border-line-strong px-3 py-1 text-xs text-ink hover:bg-ground-raised"
+                  data-testid="submitted-open"
+                >
                   Open
                 </Link>
               </li>

@@ -11,7 +11,11 @@ async function unwrap<T>(p: Promise<{ ok: true; data: T } | { ok: false; message
 }
 
 /** The lead's queue for a study, with optional run / noise-kind filters. */
-export function useReconcileItems(studyId: number, filters: { runId?: number; noiseKind?: string; include: 'pending' | 'all' }, initial?: ReconcileItem[]) {
+export function useReconcileItems(
+  studyId: number,
+  filters: { runId?: number; noiseKind?: string; include: 'pending' | 'all' },
+  initial?: ReconcileItem[],
+) {
   const q = new URLSearchParams({ include: filters.include });
   if (filters.runId) q.set('runId', String(filters.runId));
   if (filters.noiseKind) q.set('noiseKind', filters.noiseKind);

@@ -10,9 +10,15 @@ export function VotesSideBySide({ votes }: { votes: ReconcileVote[] }) {
       <caption className="sr-only">The raters&apos; votes on this component</caption>
       <thead className="text-xs text-ink-faint">
         <tr>
-          <th scope="col" className="text-left font-medium">Rater</th>
-          <th scope="col" className="text-left font-medium">Vote</th>
-          <th scope="col" className="text-right font-medium">Confidence</th>
+          <th scope="col" className="text-left font-medium">
+            Rater
+          </th>
+          <th scope="col" className="text-left font-medium">
+            Vote
+          </th>
+          <th scope="col" className="text-right font-medium">
+            Confidence
+          </th>
         </tr>
       </thead>
       <tbody className="divide-y divide-line">

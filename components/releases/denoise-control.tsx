@@ -44,14 +44,25 @@ export function DenoiseControl({ runId, releaseId, canRequest }: { runId: number
     <div className="flex flex-wrap items-center gap-2 text-xs" data-testid={`denoise-${runId}`}>
       {canRequest ? (
         <>
-          <select aria-label="Regression" value={mode} onChange={(e) => setMode(e.target.value as 'partial' | 'full')} className="rounded border border-line-strong bg-ground-sunken px-1 py-0.5">
+          <select
+            aria-label="Regression"
+            value={mode}
+            onChange={(e) => setMode(e.target.value as 'partial' | 'full')}
+            className="rounded border border-line-strong bg-ground-sunken px-1 py-0.5"
+          >
             <option value="partial">partial (fit all, remove noise part)</option>
             <option value="full">full (noise courses only)</option>
           </select>
           <label className="flex items-center gap-1">
             <input type="checkbox" checked={motion} onChange={(e) => setMotion(e.target.checked)} /> + motion
           </label>
-          <Button variant="quiet" className="px-2 py-0.5 text-xs" onClick={() => request.mutate()} disabled={request.isPending} data-testid={`denoise-request-${runId}`}>
+          <Button
+            variant="quiet"
+            className="px-2 py-0.5 text-xs"
+            onClick={() => request.mutate()}
+            disabled={request.isPending}
+            data-testid={`denoise-request-${runId}`}
+          >
             Denoise
           </Button>
         </>
@@ -59,7 +70,12 @@ export function DenoiseControl({ runId, releaseId, canRequest }: { runId: number
       {request.error ? <span className="text-alarm">{request.error.message}</span> : null}
       {latest ? (
         latest.file ? (
-          <a href={latest.file.url} className="text-lumen hover:text-lumen-strong" data-testid={`denoise-download-${runId}`} title={`sha256 ${latest.file.sha256}`}>
+          <a
+            href={latest.file.url}
+            className="text-lumen hover:text-lumen-strong"
+            data-testid={`denoise-download-${runId}`}
+            title={`sha256 ${latest.file.sha256}`}
+          >
             {latest.file.name} ({(latest.file.bytes / 1e6).toFixed(1)} MB)
           </a>
         ) : (

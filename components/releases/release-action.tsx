@@ -15,7 +15,14 @@ import { ConfirmDialog } from '@/components/ui/confirm-dialog';
  */
 export type ReleasableRun = { runId: number; name: string; components: number; waiting: number };
 
-type ReleaseJob = { jobId: number; status: string; stage: string | null; percent: number | null; message: string | null; release: { releaseId: number; version: number; files: number } | null };
+type ReleaseJob = {
+  jobId: number;
+  status: string;
+  stage: string | null;
+  percent: number | null;
+  message: string | null;
+  release: { releaseId: number; version: number; files: number } | null;
+};
 
 const STAGES: Record<string, string> = {
   queued: 'waiting for a worker',
@@ -25,7 +32,25 @@ const STAGES: Record<string, string> = {
   writing: 'writing the files',
 };
 
-export function ReleaseAction({ studyId, studyName, refusal, pending, runs, studyRuns, studyComponents, buildingJobId = null }: { studyId: number; studyName: string; refusal: string | null; pending: number; runs: ReleasableRun[]; studyRuns: number; studyComponents: number; buildingJobId?: number | null }) {
+export function ReleaseAction({
+  studyId,
+  studyName,
+  refusal,
+  pending,
+  runs,
+  studyRuns,
+  studyComponents,
+  buildingJobId = null,
+}: {
+  studyId: number;
+  studyName: string;
+  refusal: string | null;
+  pending: number;
+  runs: ReleasableRun[];
+  studyRuns: number;
+  studyComponents: number;
+  buildingJobId?: number | null;
+}) {
   const router = useRouter();
   const [notes, setNotes] = useState('');
   const [runId, setRunId] = useState('');
@@ -45,7 +70,10 @@ export function ReleaseAction({ studyId, studyName, refusal, pending, runs, stud
     },
     refetchInterval: (q) => (!q.state.data || q.state.data.status === 'queued' || q.state.data.status === 'running' ? 1000 : false),
   });
-  const done = jobId != null && job.data && job.data.jobId === jobId && ['succeeded', 'failed', 'cancelled'].includes(job.data.status) ? job.data : null;
+  const done =
+    jobId != null && job.data && job.data.jobId === jobId && ['succeeded', 'failed', 'cancelled'].includes(job.data.status)
+      ? job.data
+      : null;
   const building = jobId != null && !done;
   const progress = building && job.data ? job.data : null;
   const shown: { kind: 'error' | 'ok'; text: string } | null =
@@ -59,14 +87,20 @@ export function ReleaseAction({ studyId, studyName, refusal, pending, runs, stud
   const chosen = runs.find((r) => String(r.runId) === runId);
   const scope = chosen
     ? { what: `the run ${chosen.name}`, count: `its ${chosen.components} component${chosen.components === 1 ? '' : 's'}` }
-    : { what: `the study ${studyName}`, count: `${studyRuns} run${studyRuns === 1 ? '' : 's'} with ${studyComponents} component${studyComponents === 1 ? '' : 's'}` };
+    : {
+        what: `the study ${studyName}`,
+        count: `${studyRuns} run${studyRuns === 1 ? '' : 's'} with ${studyComponents} component${studyComponents === 1 ? '' : 's'}`,
+      };
 
   async function release() {
     setConfirming(false);
     setBusy(true);
     setMessage(null);
     setJobId(null);
-    const res = await postJson<{ jobId: number; existing: boolean }>(`/api/studies/${studyId}/releases`, { ...(notes ? { notes } : {}), ...(runId ? { runId: Number(runId) } : {}) });
+    const res = await postJson<{ jobId: number; existing: boolean }>(`/api/studies/${studyId}/releases`, {
+      ...(notes ? { notes } : {}),
+      ...(runId ? { runId: Number(runId) } : {}),
+    });
     setBusy(false);
     if (!res.ok) return setMessage({ kind: 'error', text: res.message });
     setJobId(res.data.jobId);
@@ -87,7 +121,13 @@ export function ReleaseAction({ studyId, studyName, refusal, pending, runs, stud
       ) : null}
       <label className="flex flex-col gap-1 text-sm" htmlFor="release-scope">
         <span className="text-ink-muted">What to release</span>
-        <select id="release-scope" value={runId} onChange={(e) => setRunId(e.target.value)} className="rounded border border-line-strong bg-ground-sunken px-2 py-1" data-testid="release-scope">
+        <select
+          id="release-scope"
+          value={runId}
+          onChange={(e) => setRunId(e.target.value)}
+          className="rounded border border-line-strong bg-ground-sunken px-2 py-1"
+          data-testid="release-scope"
+        >
           <option value="">The whole study</option>
           {runs.map((r) => (
             <option key={r.runId} value={r.runId}>
@@ -98,7 +138,13 @@ export function ReleaseAction({ studyId, studyName, refusal, pending, runs, stud
       </label>
       <label className="flex flex-col gap-1 text-sm" htmlFor="release-notes">
         <span className="text-ink-muted">Notes for this release (optional)</span>
-        <input id="release-notes" value={notes} onChange={(e) => setNotes(e.target.value)} maxLength={2000} className="rounded border border-line-strong bg-ground-sunken px-2 py-1" />
+        <input
+          id="release-notes"
+          value={notes}
+          onChange={(e) => setNotes(e.target.value)}
+          maxLength={2000}
+          className="rounded border border-line-strong bg-ground-sunken px-2 py-1"
+        />
       </label>
       <div>
         <Button onClick={() => setConfirming(true)} disabled={busy || building} data-testid="release-button">
@@ -107,11 +153,17 @@ export function ReleaseAction({ studyId, studyName, refusal, pending, runs, stud
       </div>
       {building ? (
         <Notice kind="info" testId="release-progress">
-          Building the release: {progress ? (STAGES[progress.stage ?? ''] ?? progress.stage ?? 'waiting for a worker') : 'waiting for a worker'}
-          {progress?.percent != null && progress.status === 'running' ? ` (${Math.round(progress.percent)} %)` : ''}. The page shows it when it is ready.
+          Building the release:{' '}
+          {progress ? (STAGES[progress.stage ?? ''] ?? progress.stage ?? 'waiting for a worker') : 'waiting for a worker'}
+          {progress?.percent != null && progress.status === 'running' ? ` (${Math.round(progress.percent)} %)` : ''}. The page shows it when
+          it is ready.
         </Notice>
       ) : null}
-      {shown ? <Notice kind={shown.kind} testId="release-message">{shown.text}</Notice> : null}
+      {shown ? (
+        <Notice kind={shown.kind} testId="release-message">
+          {shown.text}
+        </Notice>
+      ) : null}
       <ConfirmDialog
         open={confirming}
         title={chosen ? 'Release this run?' : 'Release the study?'}
@@ -120,7 +172,9 @@ export function ReleaseAction({ studyId, studyName, refusal, pending, runs, stud
         onCancel={() => setConfirming(false)}
         testId="release-confirm"
       >
-        <p>You are releasing {scope.what}: {scope.count}, as the next version.</p>
+        <p>
+          You are releasing {scope.what}: {scope.count}, as the next version.
+        </p>
         <p>
           Every vote on the released runs is frozen: raters can no longer change them, and the release&apos;s noise lists, tables and report
           never change. Pipelines asking for the latest release get this version.

@@ -17,7 +17,13 @@ type Entities = Record<(typeof FIELDS)[number], string>;
  */
 export function RunLabelsForm({ run, studyId, onDone }: { run: RunListItem; studyId: number; onDone: () => void }) {
   const client = useQueryClient();
-  const [values, setValues] = useState<Entities>({ sub: run.sub, ses: run.ses ?? '', task: run.task ?? '', acq: run.acq ?? '', run: run.runLabel ?? '' });
+  const [values, setValues] = useState<Entities>({
+    sub: run.sub,
+    ses: run.ses ?? '',
+    task: run.task ?? '',
+    acq: run.acq ?? '',
+    run: run.runLabel ?? '',
+  });
   const [message, setMessage] = useState<string | null>(null);
   const [pending, setPending] = useState(false);
   const preview = bidsName({ sub: values.sub || '?', ses: values.ses, task: values.task, acq: values.acq, runLabel: values.run });
@@ -58,10 +64,18 @@ export function RunLabelsForm({ run, studyId, onDone }: { run: RunListItem; stud
       </div>
       <p className="font-mono text-ink-faint">{preview}</p>
       <div className="flex gap-1">
-        <Button type="submit" disabled={pending} data-testid="run-labels-save">Save labels</Button>
-        <Button type="button" variant="quiet" onClick={onDone}>Keep</Button>
+        <Button type="submit" disabled={pending} data-testid="run-labels-save">
+          Save labels
+        </Button>
+        <Button type="button" variant="quiet" onClick={onDone}>
+          Keep
+        </Button>
       </div>
-      {message ? <p className="max-w-72 text-alarm" role="alert" data-testid="run-labels-error">{message}</p> : null}
+      {message ? (
+        <p className="max-w-72 text-alarm" role="alert" data-testid="run-labels-error">
+          {message}
+        </p>
+      ) : null}
     </form>
   );
 }

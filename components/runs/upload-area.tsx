@@ -48,7 +48,13 @@ function entityErrors(e: Entities): Partial<Record<keyof Entities, string>> {
 
 /** The files in a dropped item: a folder is walked (all levels), a file is itself. */
 async function filesOfEntry(entry: FileSystemEntry): Promise<File[]> {
-  if (entry.isFile) return new Promise((resolve) => (entry as FileSystemFileEntry).file((f) => resolve([f]), () => resolve([])));
+  if (entry.isFile)
+    return new Promise((resolve) =>
+      (entry as FileSystemFileEntry).file(
+        (f) => resolve([f]),
+        () => resolve([]),
+      ),
+    );
   const reader = (entry as FileSystemDirectoryEntry).createReader();
   const children: FileSystemEntry[] = [];
   // readEntries answers in batches until it returns an empty one
@@ -61,10 +67,15 @@ async function filesOfEntry(entry: FileSystemEntry): Promise<File[]> {
 }
 
 /** Stems already taken: the study's runs, and the cards before this one. */
-function clashOf(item: Item, items: Item[], existing: Pick<RunListItem, 'id' | 'sub' | 'ses' | 'task' | 'acq' | 'runLabel' | 'originalName'>[]): string | null {
+function clashOf(
+  item: Item,
+  items: Item[],
+  existing: Pick<RunListItem, 'id' | 'sub' | 'ses' | 'task' | 'acq' | 'runLabel' | 'originalName'>[],
+): string | null {
   const stem = stemOf(item.entities);
   const run = existing.find((r) => bidsName(r) === stem);
-  if (run) return `${stem} is already run #${run.id} of this study (uploaded as ${run.originalName}). Two runs with the same labels cannot both be released: change a label here, e.g. the run number.`;
+  if (run)
+    return `${stem} is already run #${run.id} of this study (uploaded as ${run.originalName}). Two runs with the same labels cannot both be released: change a label here, e.g. the run number.`;
   const earlier = items.slice(0, items.indexOf(item)).find((o) => o.phase === 'pending' && stemOf(o.entities) === stem);
   if (earlier) return `${stem} is also the labels of ${earlier.file.name} above. Change a label of one of them, e.g. the run number.`;
   return null;
@@ -104,11 +115,21 @@ export function UploadArea({ studyId, maxBytes, existing = [] }: { studyId: numb
     setIgnored(grouped.ignored.map((f) => f.name));
     const added: Item[] = grouped.runs.map(({ file, motion, mask, sidecar }, i) => {
       const parsed = parseBidsName(file.name);
-      const problem = fileNameProblem(file.name, 'image') ?? (file.size > maxBytes ? `The file is ${formatBytes(file.size)}, over this facility's upload limit of ${formatBytes(maxBytes)}.` : null);
+      const problem =
+        fileNameProblem(file.name, 'image') ??
+        (file.size > maxBytes
+          ? `The file is ${formatBytes(file.size)}, over this facility's upload limit of ${formatBytes(maxBytes)}.`
+          : null);
       return {
         key: `${Date.now()}-${i}-${file.name}`,
         file,
-        entities: { sub: parsed?.sub ?? '', ses: parsed?.ses ?? '', task: parsed?.task ?? '', acq: parsed?.acq ?? '', run: parsed?.runLabel ?? '' },
+        entities: {
+          sub: parsed?.sub ?? '',
+          ses: parsed?.ses ?? '',
+          task: parsed?.task ?? '',
+          acq: parsed?.acq ?? '',
+          run: parsed?.runLabel ?? '',
+        },
         mask,
         motion,
         sidecar,
@@ -136,7 +157,9 @@ export function UploadArea({ studyId, maxBytes, existing = [] }: { studyId: numb
     const params = new URLSearchParams({ name: item.file.name, sub: e.sub, ses: e.ses, task: e.task, acq: e.acq, run: e.run });
     const attachments = Boolean(item.mask || item.motion);
     if (!attachments) params.set('queue', 'true');
-    const result = await sendFile<{ run: { id: number } }>('POST', `/api/studies/${studyId}/runs?${params}`, item.file, (f) => update(item.key, { progress: f }));
+    const result = await sendFile<{ run: { id: number } }>('POST', `/api/studies/${studyId}/runs?${params}`, item.file, (f) =>
+      update(item.key, { progress: f }),
+    );
     if (!result.ok) {
       update(item.key, { phase: 'refused', message: result.message });
       return;
@@ -214,11 +237,16 @@ export function UploadArea({ studyId, maxBytes, existing = [] }: { studyId: numb
       >
         <p>Drop preprocessed 4D runs here (.nii or .nii.gz), one or many at once, or a whole BIDS folder.</p>
         <p className="text-xs text-ink-faint">
-          BIDS entities are read from each file name; check them before uploading. In a folder, each run&apos;s motion table and mask are found by name. Limit {formatBytes(maxBytes)} per file.
+          BIDS entities are read from each file name; check them before uploading. In a folder, each run&apos;s motion table and mask are
+          found by name. Limit {formatBytes(maxBytes)} per file.
         </p>
         <div className="flex gap-2">
-          <Button type="button" variant="quiet" onClick={() => input.current?.click()}>Choose files…</Button>
-          <Button type="button" variant="quiet" onClick={() => folderInput.current?.click()}>Choose a folder…</Button>
+          <Button type="button" variant="quiet" onClick={() => input.current?.click()}>
+            Choose files…
+          </Button>
+          <Button type="button" variant="quiet" onClick={() => folderInput.current?.click()}>
+            Choose a folder…
+          </Button>
         </div>
         <input
           ref={input}
@@ -257,7 +285,14 @@ export function UploadArea({ studyId, maxBytes, existing = [] }: { studyId: numb
       {items.length ? (
         <ul className="flex flex-col gap-2">
           {items.map((it) => (
-            <UploadCard key={it.key} item={it} clash={it.phase === 'pending' ? clashOf(it, items, existing) : null} update={update} onQueue={queue} onRemove={() => setItems((l) => l.filter((x) => x.key !== it.key))} />
+            <UploadCard
+              key={it.key}
+              item={it}
+              clash={it.phase === 'pending' ? clashOf(it, items, existing) : null}
+              update={update}
+              onQueue={queue}
+              onRemove={() => setItems((l) => l.filter((x) => x.key !== it.key))}
+            />
           ))}
         </ul>
       ) : null}
@@ -267,7 +302,11 @@ export function UploadArea({ studyId, maxBytes, existing = [] }: { studyId: numb
           <Button type="button" onClick={askThenUpload} disabled={busy || pendingCount === 0} data-testid="upload-start">
             {busy ? 'Uploading…' : `Upload ${pendingCount} run${pendingCount === 1 ? '' : 's'}`}
           </Button>
-          {invalidCount ? <p className="text-xs text-alarm">{invalidCount} file{invalidCount === 1 ? '' : 's'} need a valid subject label first.</p> : null}
+          {invalidCount ? (
+            <p className="text-xs text-alarm">
+              {invalidCount} file{invalidCount === 1 ? '' : 's'} need a valid subject label first.
+            </p>
+          ) : null}
         </div>
       ) : null}
       <ConfirmDialog
@@ -280,9 +319,13 @@ export function UploadArea({ studyId, maxBytes, existing = [] }: { studyId: numb
         testId="upload-clash-confirm"
       >
         <p>
-          {clashes.length} run{clashes.length === 1 ? ' has' : 's have'} the same BIDS labels as another run: {clashes.map((it) => stemOf(it.entities)).join(', ')}.
+          {clashes.length} run{clashes.length === 1 ? ' has' : 's have'} the same BIDS labels as another run:{' '}
+          {clashes.map((it) => stemOf(it.entities)).join(', ')}.
         </p>
-        <p>Their released files would share names, so the study cannot be released until a lead changes the labels of one of them (Labels… in the runs table).</p>
+        <p>
+          Their released files would share names, so the study cannot be released until a lead changes the labels of one of them (Labels… in
+          the runs table).
+        </p>
       </ConfirmDialog>
     </div>
   );
@@ -297,14 +340,28 @@ const PHASE_TEXT: Record<Phase, string> = {
   attention: 'Uploaded — needs attention',
 };
 
-function UploadCard({ item, clash, update, onQueue, onRemove }: { item: Item; clash: string | null; update: (key: string, patch: Partial<Item>) => void; onQueue: (item: Item, runId: number) => Promise<void>; onRemove: () => void }) {
+function UploadCard({
+  item,
+  clash,
+  update,
+  onQueue,
+  onRemove,
+}: {
+  item: Item;
+  clash: string | null;
+  update: (key: string, patch: Partial<Item>) => void;
+  onQueue: (item: Item, runId: number) => Promise<void>;
+  onRemove: () => void;
+}) {
   const editable = item.phase === 'pending';
   const errors = entityErrors(item.entities);
   const id = (f: string) => `upload-${item.key}-${f}`;
   return (
     <li className="rounded border border-line bg-ground-sunken p-3 text-sm" data-testid="upload-item" data-file={item.file.name}>
       <div className="flex flex-wrap items-center justify-between gap-2">
-        <p className="font-mono text-xs">{item.file.name} <span className="text-ink-faint">({formatBytes(item.file.size)})</span></p>
+        <p className="font-mono text-xs">
+          {item.file.name} <span className="text-ink-faint">({formatBytes(item.file.size)})</span>
+        </p>
         <p data-testid="upload-status" data-phase={item.phase} className={item.phase === 'refused' ? 'text-alarm' : 'text-ink-muted'}>
           {PHASE_TEXT[item.phase]}
         </p>
@@ -313,7 +370,9 @@ function UploadCard({ item, clash, update, onQueue, onRemove }: { item: Item; cl
         <div className="mt-2 flex flex-wrap items-start gap-2">
           {ENTITY_FIELDS.map((f) => (
             <div key={f.key} className="flex flex-col">
-              <label htmlFor={id(f.key)} className="text-xs text-ink-faint">{f.label}</label>
+              <label htmlFor={id(f.key)} className="text-xs text-ink-faint">
+                {f.label}
+              </label>
               <input
                 id={id(f.key)}
                 value={item.entities[f.key]}
@@ -323,55 +382,122 @@ function UploadCard({ item, clash, update, onQueue, onRemove }: { item: Item; cl
                 className={`w-24 rounded border bg-ground px-2 py-1 font-mono text-xs ${errors[f.key] ? 'border-alarm' : 'border-line-strong'}`}
                 data-testid={`entity-${f.key}`}
               />
-              {errors[f.key] ? <p id={id(`${f.key}-error`)} className="max-w-48 text-xs text-alarm">{errors[f.key]}</p> : null}
+              {errors[f.key] ? (
+                <p id={id(`${f.key}-error`)} className="max-w-48 text-xs text-alarm">
+                  {errors[f.key]}
+                </p>
+              ) : null}
             </div>
           ))}
           <div className="flex flex-col">
-            <label htmlFor={id('mask')} className="text-xs text-ink-faint">Brain mask (optional)</label>
-            <input id={id('mask')} type="file" accept=".nii,.gz" className="text-xs" onChange={(e) => update(item.key, { mask: e.target.files?.[0] ?? null })} />
+            <label htmlFor={id('mask')} className="text-xs text-ink-faint">
+              Brain mask (optional)
+            </label>
+            <input
+              id={id('mask')}
+              type="file"
+              accept=".nii,.gz"
+              className="text-xs"
+              onChange={(e) => update(item.key, { mask: e.target.files?.[0] ?? null })}
+            />
           </div>
           <div className="flex flex-col gap-1">
-            <label htmlFor={id('motion')} className="text-xs text-ink-faint">Motion parameters (optional; translations in mm)</label>
-            <input id={id('motion')} type="file" accept=".tsv,.txt,.csv,.par" className="text-xs" onChange={(e) => update(item.key, { motion: e.target.files?.[0] ?? null })} />
+            <label htmlFor={id('motion')} className="text-xs text-ink-faint">
+              Motion parameters (optional; translations in mm)
+            </label>
+            <input
+              id={id('motion')}
+              type="file"
+              accept=".tsv,.txt,.csv,.par"
+              className="text-xs"
+              onChange={(e) => update(item.key, { motion: e.target.files?.[0] ?? null })}
+            />
             {item.motion ? (
               <div className="flex gap-2">
-                <select aria-label="Motion column order" value={item.motionOrder} onChange={(e) => update(item.key, { motionOrder: e.target.value as Item['motionOrder'] })} className="rounded border border-line-strong bg-ground px-1 text-xs">
+                <select
+                  aria-label="Motion column order"
+                  value={item.motionOrder}
+                  onChange={(e) => update(item.key, { motionOrder: e.target.value as Item['motionOrder'] })}
+                  className="rounded border border-line-strong bg-ground px-1 text-xs"
+                >
                   {MOTION_ORDERS.map((o) => (
-                    <option key={o} value={o}>{MOTION_ORDER_NAMES[o]}</option>
+                    <option key={o} value={o}>
+                      {MOTION_ORDER_NAMES[o]}
+                    </option>
                   ))}
                 </select>
-                <select aria-label="Rotation units" value={item.motionUnits} onChange={(e) => update(item.key, { motionUnits: e.target.value as Item['motionUnits'] })} className="rounded border border-line-strong bg-ground px-1 text-xs">
+                <select
+                  aria-label="Rotation units"
+                  value={item.motionUnits}
+                  onChange={(e) => update(item.key, { motionUnits: e.target.value as Item['motionUnits'] })}
+                  className="rounded border border-line-strong bg-ground px-1 text-xs"
+                >
                   <option value="radians">rotations in radians</option>
                   <option value="degrees">rotations in degrees</option>
                 </select>
               </div>
             ) : null}
           </div>
-          <Button type="button" variant="quiet" onClick={onRemove} className="ml-auto">Remove</Button>
+          <Button type="button" variant="quiet" onClick={onRemove} className="ml-auto">
+            Remove
+          </Button>
         </div>
       ) : (
-        <p className="mt-1 font-mono text-xs text-ink-faint">{bidsName({ sub: item.entities.sub || '?', ses: item.entities.ses, task: item.entities.task, acq: item.entities.acq, runLabel: item.entities.run })}</p>
+        <p className="mt-1 font-mono text-xs text-ink-faint">
+          {bidsName({
+            sub: item.entities.sub || '?',
+            ses: item.entities.ses,
+            task: item.entities.task,
+            acq: item.entities.acq,
+            runLabel: item.entities.run,
+          })}
+        </p>
       )}
       {item.phase !== 'pending' && item.phase !== 'refused' ? (
-        <div className="mt-2 h-1.5 w-full overflow-hidden rounded bg-ground-raised" role="progressbar" aria-label={`Upload of ${item.file.name}`} aria-valuemin={0} aria-valuemax={100} aria-valuenow={Math.round(item.progress * 100)} data-testid="upload-progress">
+        <div
+          className="mt-2 h-1.5 w-full overflow-hidden rounded bg-ground-raised"
+          role="progressbar"
+          aria-label={`Upload of ${item.file.name}`}
+          aria-valuemin={0}
+          aria-valuemax={100}
+          aria-valuenow={Math.round(item.progress * 100)}
+          data-testid="upload-progress"
+        >
           <div className="h-full bg-lumen transition-all" style={{ width: `${Math.round(item.progress * 100)}%` }} />
         </div>
       ) : null}
       {editable && (item.motion || item.mask || item.sidecar) ? (
         <p className="mt-1 text-xs text-ink-faint" data-testid="upload-companions">
-          Found beside it: {[item.motion ? `motion table ${item.motion.name}` : null, item.mask ? `mask ${item.mask.name}` : null, item.sidecar ? `sidecar ${item.sidecar.name}` : null].filter(Boolean).join('; ')}
+          Found beside it:{' '}
+          {[
+            item.motion ? `motion table ${item.motion.name}` : null,
+            item.mask ? `mask ${item.mask.name}` : null,
+            item.sidecar ? `sidecar ${item.sidecar.name}` : null,
+          ]
+            .filter(Boolean)
+            .join('; ')}
         </p>
       ) : null}
       {clash ? (
-        <p className="mt-2 text-xs text-alarm" role="status" data-testid="upload-duplicate">{clash}</p>
+        <p className="mt-2 text-xs text-alarm" role="status" data-testid="upload-duplicate">
+          {clash}
+        </p>
       ) : null}
       {item.message ? (
-        <p className="mt-2 text-xs text-alarm" role="alert" data-testid="upload-error">{item.message}</p>
+        <p className="mt-2 text-xs text-alarm" role="alert" data-testid="upload-error">
+          {item.message}
+        </p>
       ) : null}
       {item.phase === 'attention' && item.runId ? (
-        <Button type="button" variant="quiet" className="mt-2" onClick={() => onQueue(item, item.runId!)}>Start decomposition without it</Button>
+        <Button type="button" variant="quiet" className="mt-2" onClick={() => onQueue(item, item.runId!)}>
+          Start decomposition without it
+        </Button>
       ) : null}
-      {item.phase === 'refused' ? <Button type="button" variant="quiet" className="mt-2" onClick={onRemove}>Dismiss</Button> : null}
+      {item.phase === 'refused' ? (
+        <Button type="button" variant="quiet" className="mt-2" onClick={onRemove}>
+          Dismiss
+        </Button>
+      ) : null}
     </li>
   );
 }

@@ -7,7 +7,13 @@ export type UploadResult<T> = { ok: true; data: T } | { ok: false; status: numbe
  * Sends one file as the raw request body with XMLHttpRequest, so the browser reports upload
  * progress (fetch cannot). `onProgress` gets 0..1. Resolves (never rejects) with the outcome.
  */
-export function sendFile<T>(method: 'POST' | 'PUT', url: string, file: Blob, onProgress?: (fraction: number) => void, signal?: AbortSignal): Promise<UploadResult<T>> {
+export function sendFile<T>(
+  method: 'POST' | 'PUT',
+  url: string,
+  file: Blob,
+  onProgress?: (fraction: number) => void,
+  signal?: AbortSignal,
+): Promise<UploadResult<T>> {
   return new Promise((resolve) => {
     const xhr = new XMLHttpRequest();
     xhr.open(method, url);

@@ -19,6 +19,7 @@ export function useStudyRuns(studyId: number, initialData: StudyRunsData) {
       if (!r.ok) throw new Error(r.message);
       return r.data;
     },
-    refetchInterval: (query) => (query.state.data?.runs.some((run) => run.status === 'queued' || run.status === 'processing') ? 1_500 : false),
+    refetchInterval: (query) =>
+      query.state.data?.runs.some((run) => run.status === 'queued' || run.status === 'processing') ? 1_500 : false,
   });
 }

@@ -27,14 +27,18 @@ function AccountPicker({ studyId, studyRole, onPick }: { studyId: number; studyR
     queryKey: ['member-candidates', studyId, term],
     enabled: term.length >= 2,
     queryFn: async () => {
-      const r = await getJson<{ accounts: Candidate[]; more: boolean }>(`/api/studies/${studyId}/members/candidates?q=${encodeURIComponent(term)}`);
+      const r = await getJson<{ accounts: Candidate[]; more: boolean }>(
+        `/api/studies/${studyId}/members/candidates?q=${encodeURIComponent(term)}`,
+      );
       if (!r.ok) throw new Error(r.message);
       return r.data;
     },
   });
   return (
     <div className="flex flex-col gap-1" data-testid="account-picker">
-      <label htmlFor="member-search" className="text-sm text-ink-muted">Find an account (name or e-mail)</label>
+      <label htmlFor="member-search" className="text-sm text-ink-muted">
+        Find an account (name or e-mail)
+      </label>
       <input
         id="member-search"
         role="combobox"
@@ -49,9 +53,19 @@ function AccountPicker({ studyId, studyRole, onPick }: { studyId: number; studyR
         data-testid="member-search"
       />
       {term.length >= 2 ? (
-        <ul id="member-search-results" role="listbox" aria-label="Accounts found" className="max-h-64 overflow-y-auto rounded border border-line text-sm" data-testid="member-search-results">
+        <ul
+          id="member-search-results"
+          role="listbox"
+          aria-label="Accounts found"
+          className="max-h-64 overflow-y-auto rounded border border-line text-sm"
+          data-testid="member-search-results"
+        >
           {found.isError ? <li className="px-2 py-1 text-alarm">{(found.error as Error).message}</li> : null}
-          {found.data?.accounts.length === 0 ? <li className="px-2 py-1 text-ink-muted">No active account matches “{term}”. Invite the person instead (Facility → Invitations).</li> : null}
+          {found.data?.accounts.length === 0 ? (
+            <li className="px-2 py-1 text-ink-muted">
+              No active account matches “{term}”. Invite the person instead (Facility → Invitations).
+            </li>
+          ) : null}
           {found.data?.accounts.map((c) => {
             const allowed = mayHoldStudyRole(c.role, studyRole);
             return (
@@ -69,12 +83,18 @@ function AccountPicker({ studyId, studyRole, onPick }: { studyId: number; studyR
                 >
                   <span className="font-medium">{c.name}</span>
                   <span className="text-ink-muted">{c.email}</span>
-                  <span className="text-xs text-ink-faint">{ROLE_LABELS[c.role]}{c.studyRole ? ` · already ${STUDY_ROLE_NAMES[c.studyRole].toLowerCase()} here` : ''}{allowed ? '' : ` · cannot be a study ${studyRole}`}</span>
+                  <span className="text-xs text-ink-faint">
+                    {ROLE_LABELS[c.role]}
+                    {c.studyRole ? ` · already ${STUDY_ROLE_NAMES[c.studyRole].toLowerCase()} here` : ''}
+                    {allowed ? '' : ` · cannot be a study ${studyRole}`}
+                  </span>
                 </button>
               </li>
             );
           })}
-          {found.data?.more ? <li className="px-2 py-1 text-xs text-ink-muted">More accounts match; type more of the name or e-mail.</li> : null}
+          {found.data?.more ? (
+            <li className="px-2 py-1 text-xs text-ink-muted">More accounts match; type more of the name or e-mail.</li>
+          ) : null}
         </ul>
       ) : null}
     </div>
@@ -95,7 +115,10 @@ export function MembersPanel({ studyId, initial, canManage }: { studyId: number;
       return r.data.members;
     },
   });
-  const { register, handleSubmit, formState, setError, reset, setValue, control } = useForm<MemberInput>({ resolver: zodResolver(memberSchema), defaultValues: { email: '', studyRole: 'rater' } });
+  const { register, handleSubmit, formState, setError, reset, setValue, control } = useForm<MemberInput>({
+    resolver: zodResolver(memberSchema),
+    defaultValues: { email: '', studyRole: 'rater' },
+  });
   const chosenRole = (useWatch({ control, name: 'studyRole' }) ?? 'rater') as StudyRole;
   const remove = useMutation({
     mutationFn: async (userId: number) => {
@@ -123,7 +146,12 @@ export function MembersPanel({ studyId, initial, canManage }: { studyId: number;
       {failure ? <Notice kind="error">{failure}</Notice> : null}
       <table className="w-full text-sm" data-testid="members-table">
         <thead className="text-left text-ink-muted">
-          <tr><th className="py-1">Name</th><th>E-mail</th><th>Study role</th><th /></tr>
+          <tr>
+            <th className="py-1">Name</th>
+            <th>E-mail</th>
+            <th>Study role</th>
+            <th />
+          </tr>
         </thead>
         <tbody className="divide-y divide-line">
           {members.data.map((m) => (
@@ -133,7 +161,13 @@ export function MembersPanel({ studyId, initial, canManage }: { studyId: number;
               <td>{STUDY_ROLE_NAMES[m.studyRole]}</td>
               <td className="text-right">
                 {canManage ? (
-                  <Button variant="quiet" type="button" onClick={() => remove.mutate(m.userId)} disabled={remove.isPending} aria-label={`Remove ${m.name}`}>
+                  <Button
+                    variant="quiet"
+                    type="button"
+                    onClick={() => remove.mutate(m.userId)}
+                    disabled={remove.isPending}
+                    aria-label={`Remove ${m.name}`}
+                  >
                     Remove
                   </Button>
                 ) : null}
@@ -151,15 +185,25 @@ export function MembersPanel({ studyId, initial, canManage }: { studyId: number;
             <Field label="E-mail of an existing account" type="email" {...register('email')} error={formState.errors.email?.message} />
           </div>
           <div className="flex flex-col gap-1">
-            <label htmlFor="member-role" className="text-sm text-ink-muted">Study role</label>
-            <select id="member-role" className="rounded border border-line-strong bg-ground-sunken px-3 py-2 text-sm" {...register('studyRole')}>
+            <label htmlFor="member-role" className="text-sm text-ink-muted">
+              Study role
+            </label>
+            <select
+              id="member-role"
+              className="rounded border border-line-strong bg-ground-sunken px-3 py-2 text-sm"
+              {...register('studyRole')}
+            >
               {STUDY_ROLES.map((r) => (
-                <option key={r} value={r}>{STUDY_ROLE_NAMES[r]}</option>
+                <option key={r} value={r}>
+                  {STUDY_ROLE_NAMES[r]}
+                </option>
               ))}
             </select>
             {formState.errors.studyRole ? <p className="text-xs text-alarm">{formState.errors.studyRole.message}</p> : null}
           </div>
-          <Button type="submit" disabled={formState.isSubmitting}>Add member</Button>
+          <Button type="submit" disabled={formState.isSubmitting}>
+            Add member
+          </Button>
         </form>
       ) : null}
     </div>

@@ -17,7 +17,9 @@ export function StudyProgressSummary({ progress }: { progress: StudyProgress }) 
       {ORDER.map((s) => (
         <div key={s} className="rounded border border-line px-3 py-2">
           <dt className="text-xs text-ink-faint">{NAMES[s]}</dt>
-          <dd className="text-lg font-semibold" data-testid={`progress-${s}`}>{progress.runsByStatus[s]}</dd>
+          <dd className="text-lg font-semibold" data-testid={`progress-${s}`}>
+            {progress.runsByStatus[s]}
+          </dd>
         </div>
       ))}
       <div className="rounded border border-line px-3 py-2">
@@ -28,7 +30,9 @@ export function StudyProgressSummary({ progress }: { progress: StudyProgress }) 
       </div>
       <div className="rounded border border-line px-3 py-2">
         <dt className="text-xs text-ink-faint">Open disagreements</dt>
-        <dd className="text-lg font-semibold" data-testid="progress-disagreements">{progress.openDisagreements ?? '—'}</dd>
+        <dd className="text-lg font-semibold" data-testid="progress-disagreements">
+          {progress.openDisagreements ?? '—'}
+        </dd>
       </div>
     </dl>
   );

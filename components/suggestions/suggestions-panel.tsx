@@ -60,7 +60,13 @@ export function SuggestionsPanel({ studyId, canManage, raters }: { studyId: numb
               {m ? 'Train again from released decisions' : 'Train from released decisions'}
             </Button>
             <label className="flex items-center gap-2">
-              <input type="checkbox" checked={!!d?.enabled} disabled={!m || toggle.isPending} onChange={(e) => toggle.mutate(e.target.checked)} data-testid="suggestions-enabled" />
+              <input
+                type="checkbox"
+                checked={!!d?.enabled}
+                disabled={!m || toggle.isPending}
+                onChange={(e) => toggle.mutate(e.target.checked)}
+                data-testid="suggestions-enabled"
+              />
               Show suggestions to raters, each only after their own vote
             </label>
             {train.error ? <span className="text-alarm">{train.error.message}</span> : null}
@@ -75,14 +81,20 @@ export function SuggestionsPanel({ studyId, canManage, raters }: { studyId: numb
           </p>
         ) : null}
         {!m || !rep ? (
-          <p className="text-ink-muted" data-testid="suggestions-none">No model yet: a lead trains one from released decisions.</p>
+          <p className="text-ink-muted" data-testid="suggestions-none">
+            No model yet: a lead trains one from released decisions.
+          </p>
         ) : (
           <>
             <p data-testid="suggestions-model">
-              Model version {m.version}: {rep.chosen}, chosen by {rep.folds}-fold cross-validation with folds by subject ({rep.subjects} subjects, {rep.n} components,{' '}
-              {rep.noise} noise) from {m.training.releases.length} release{m.training.releases.length === 1 ? '' : 's'}
-              {m.training.skipped ? `; ${m.training.skipped} decisions neither signal nor noise left out` : ''}. Operating point: noise when P(noise) ≥ {rep.threshold}.{' '}
-              <a className="text-lumen hover:text-lumen-strong" href={`/api/studies/${studyId}/suggestions/model`}>Model as JSON</a>
+              Model version {m.version}: {rep.chosen}, chosen by {rep.folds}-fold cross-validation with folds by subject ({rep.subjects}{' '}
+              subjects, {rep.n} components, {rep.noise} noise) from {m.training.releases.length} release
+              {m.training.releases.length === 1 ? '' : 's'}
+              {m.training.skipped ? `; ${m.training.skipped} decisions neither signal nor noise left out` : ''}. Operating point: noise when
+              P(noise) ≥ {rep.threshold}.{' '}
+              <a className="text-lumen hover:text-lumen-strong" href={`/api/studies/${studyId}/suggestions/model`}>
+                Model as JSON
+              </a>
             </p>
             <div className="grid gap-4 lg:grid-cols-3">
               <table className="w-full" data-testid="suggestions-vs-raters">
@@ -113,8 +125,8 @@ export function SuggestionsPanel({ studyId, canManage, raters }: { studyId: numb
                 <tfoot className="text-xs text-ink-muted">
                   <tr>
                     <td colSpan={4} className="pt-2">
-                      Model: accuracy {f2(rep.score.percentAgreement)}, AC1 {f2(rep.score.gwetAC1)}. Raters are scored on this study’s decisions, the model on the released
-                      decisions it was cross-validated on.
+                      Model: accuracy {f2(rep.score.percentAgreement)}, AC1 {f2(rep.score.gwetAC1)}. Raters are scored on this study’s
+                      decisions, the model on the released decisions it was cross-validated on.
                     </td>
                   </tr>
                 </tfoot>

@@ -8,11 +8,7 @@ const styles: Record<Variant, string> = {
   danger: 'border border-alarm/60 text-alarm hover:bg-alarm/10',
 };
 
-export function Button({
-  variant = 'primary',
-  className = '',
-  ...props
-}: ButtonHTMLAttributes<HTMLButtonElement> & { variant?: Variant }) {
+export function Button({ variant = 'primary', className = '', ...props }: ButtonHTMLAttributes<HTMLButtonElement> & { variant?: Variant }) {
   return (
     <button
       {...props}

@@ -59,13 +59,23 @@ export function ConfirmDialog({
     >
       {open ? (
         <div className="flex flex-col gap-3 p-4 text-sm">
-          <h2 id={`${id}-title`} className="text-base font-semibold">{title}</h2>
-          <div id={`${id}-body`} className="flex flex-col gap-2 text-ink-muted">{children}</div>
+          <h2 id={`${id}-title`} className="text-base font-semibold">
+            {title}
+          </h2>
+          <div id={`${id}-body`} className="flex flex-col gap-2 text-ink-muted">
+            {children}
+          </div>
           <div className="mt-1 flex justify-end gap-2">
             <Button data-dialog-cancel type="button" variant="quiet" onClick={onCancel} disabled={busy} data-testid={`${testId}-cancel`}>
               {cancelLabel}
             </Button>
-            <Button type="button" variant={danger ? 'danger' : 'primary'} onClick={onConfirm} disabled={busy} data-testid={`${testId}-confirm`}>
+            <Button
+              type="button"
+              variant={danger ? 'danger' : 'primary'}
+              onClick={onConfirm}
+              disabled={busy}
+              data-testid={`${testId}-confirm`}
+            >
               {confirmLabel}
             </Button>
           </div>

@@ -1,4 +1,14 @@
-export function Panel({ title, children, className = '', actions }: { title?: string; children: React.ReactNode; className?: string; actions?: React.ReactNode }) {
+export function Panel({
+  title,
+  children,
+  className = '',
+  actions,
+}: {
+  title?: string;
+  children: React.ReactNode;
+  className?: string;
+  actions?: React.ReactNode;
+}) {
   return (
     <section className={`rounded-lg border border-line bg-ground-raised ${className}`}>
       {title ? (

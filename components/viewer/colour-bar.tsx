@@ -8,11 +8,28 @@ const f1 = (v: number) => v.toFixed(1);
  * threshold to the top of the scale (|z| above it takes the top colour), and the largest |z| of
  * the shown component ("—" until the map is read).
  */
-export function ColourBar({ threshold, top, maxAbsZ, sign, visible }: { threshold: number; top: number; maxAbsZ: number | null; sign: Sign; visible: boolean }) {
+export function ColourBar({
+  threshold,
+  top,
+  maxAbsZ,
+  sign,
+  visible,
+}: {
+  threshold: number;
+  top: number;
+  maxAbsZ: number | null;
+  sign: Sign;
+  visible: boolean;
+}) {
   const neg = sign !== 'positive';
   const pos = sign !== 'negative';
   return (
-    <div className={`flex items-center gap-1.5 font-mono text-[11px] ${visible ? '' : 'opacity-40'}`} data-testid="colour-bar" data-sign={sign} data-visible={visible}>
+    <div
+      className={`flex items-center gap-1.5 font-mono text-[11px] ${visible ? '' : 'opacity-40'}`}
+      data-testid="colour-bar"
+      data-sign={sign}
+      data-visible={visible}
+    >
       {neg ? (
         <>
           <span data-testid="colour-bar-neg-top">−{f1(top)}</span>
@@ -31,7 +48,10 @@ export function ColourBar({ threshold, top, maxAbsZ, sign, visible }: { threshol
         </>
       ) : null}
       <span className="ml-2 text-ink-muted">
-        max |z| <span className="text-ink" data-testid="colour-bar-max">{maxAbsZ == null ? '—' : maxAbsZ.toFixed(2)}</span>
+        max |z|{' '}
+        <span className="text-ink" data-testid="colour-bar-max">
+          {maxAbsZ == null ? '—' : maxAbsZ.toFixed(2)}
+        </span>
       </span>
       {!visible ? <span className="text-ink-muted">(map off · O)</span> : null}
     </div>

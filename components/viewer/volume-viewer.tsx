@@ -10,7 +10,14 @@ export type ViewerPlane = 'axial' | 'coronal' | 'sagittal';
 export type ViewerLocation = { mm: [number, number, number]; vox: [number, number, number]; z: number | null };
 export type OverlaySettings = { visible: boolean; opacity: number; sign: Sign };
 /** What the viewer found in the shown component: its clusters above the threshold and which one the crosshair is on. */
-export type FrameInfo = { frame: number; maxAbsZ: number | null; clusters: number; cluster: number | null; peakZ: number | null; peakMm: [number, number, number] | null };
+export type FrameInfo = {
+  frame: number;
+  maxAbsZ: number | null;
+  clusters: number;
+  cluster: number | null;
+  peakZ: number | null;
+  peakMm: [number, number, number] | null;
+};
 
 /** Commands the desk sends to the viewer (keys). */
 export type ViewerApi = {
@@ -146,7 +153,12 @@ export default function VolumeViewer(props: VolumeViewerProps) {
   const underlayShown = useRef<string | null>(null);
   const [underlayReady, setUnderlayReady] = useState<string | null>(null);
   const latest = useRef(props);
-  const clustersRef = useRef<{ frame: number; list: Cluster[]; at: number; maxAbsZ: number | null }>({ frame: -1, list: [], at: -1, maxAbsZ: null });
+  const clustersRef = useRef<{ frame: number; list: Cluster[]; at: number; maxAbsZ: number | null }>({
+    frame: -1,
+    list: [],
+    at: -1,
+    maxAbsZ: null,
+  });
   useLayoutEffect(() => {
     latest.current = props;
   });
@@ -253,7 +265,14 @@ export default function VolumeViewer(props: VolumeViewerProps) {
         const v = nv.volumes[0];
         const min = v.extentsMinOrtho ?? [-90, -110, -60];
         const max = v.extentsMaxOrtho ?? [90, 90, 80];
-        const plan = planMosaic({ viewW: canvas.clientWidth, viewH: canvas.clientHeight, sliceW: max[0] - min[0], sliceH: max[1] - min[1], zMin: min[2], zMax: max[2] });
+        const plan = planMosaic({
+          viewW: canvas.clientWidth,
+          viewH: canvas.clientHeight,
+          sliceW: max[0] - min[0],
+          sliceH: max[1] - min[1],
+          zMin: min[2],
+          zMax: max[2],
+        });
         nv.setSliceMosaicString(mosaicSpec(plan));
       } else {
         nv.setSliceMosaicString('');
@@ -367,13 +386,26 @@ export default function VolumeViewer(props: VolumeViewerProps) {
 
   return (
     <div className="relative h-full w-full">
-      <canvas ref={canvasRef} data-testid="viewer-canvas" data-zoom="1" className="block h-full w-full" aria-label="Component map over the mean image" role="img" />
+      <canvas
+        ref={canvasRef}
+        data-testid="viewer-canvas"
+        data-zoom="1"
+        className="block h-full w-full"
+        aria-label="Component map over the mean image"
+        role="img"
+      />
       {!ready ? (
         <p className="absolute inset-0 flex items-center justify-center text-sm text-ink-muted" data-testid="viewer-loading">
           Loading the run&apos;s maps…
         </p>
       ) : (
-        <span hidden data-testid="viewer-ready" data-underlay={underlayReady === underlayUrl ? (props.underlayUrl && props.underlayUrl !== props.meanUrl ? 'structural' : 'mean') : 'loading'} />
+        <span
+          hidden
+          data-testid="viewer-ready"
+          data-underlay={
+            underlayReady === underlayUrl ? (props.underlayUrl && props.underlayUrl !== props.meanUrl ? 'structural' : 'mean') : 'loading'
+          }
+        />
       )}
     </div>
   );

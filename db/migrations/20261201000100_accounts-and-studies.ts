@@ -7,7 +7,6 @@
 import type { Knex } from 'knex';
 import { createdAt, tableDefaults, updatedAt } from '../schema-helpers';
 
-
 export async function up(knex: Knex): Promise<void> {
   await knex.schema.createTable('users', (t) => {
     tableDefaults(t);

@@ -49,8 +49,13 @@ export async function up(knex: Knex): Promise<void> {
   await knex.schema.createTable('decisions', (t) => {
     tableDefaults(t);
     t.increments('id');
-    t.integer('component_id').unsigned().notNullable().unique('decisions_component_unique')
-      .references('id').inTable('components').onDelete('CASCADE');
+    t.integer('component_id')
+      .unsigned()
+      .notNullable()
+      .unique('decisions_component_unique')
+      .references('id')
+      .inTable('components')
+      .onDelete('CASCADE');
     t.integer('run_id').unsigned().notNullable().references('id').inTable('runs').onDelete('CASCADE');
     t.specificType('label', LABEL).nullable(); // null while pending
     t.specificType('noise_kind', KIND).nullable();
@@ -66,8 +71,13 @@ export async function up(knex: Knex): Promise<void> {
   await knex.schema.createTable('reference_labels', (t) => {
     tableDefaults(t);
     t.increments('id');
-    t.integer('component_id').unsigned().notNullable().unique('reference_labels_component_unique')
-      .references('id').inTable('components').onDelete('CASCADE');
+    t.integer('component_id')
+      .unsigned()
+      .notNullable()
+      .unique('reference_labels_component_unique')
+      .references('id')
+      .inTable('components')
+      .onDelete('CASCADE');
     t.specificType('label', LABEL).notNullable();
     t.specificType('noise_kind', KIND).nullable();
     t.integer('set_by').unsigned().nullable().references('id').inTable('users').onDelete('SET NULL');

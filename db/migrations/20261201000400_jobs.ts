@@ -8,7 +8,6 @@
 import type { Knex } from 'knex';
 import { createdAt, tableDefaults, updatedAt } from '../schema-helpers';
 
-
 export async function up(knex: Knex): Promise<void> {
   await knex.schema.createTable('jobs', (t) => {
     tableDefaults(t);

@@ -7,7 +7,6 @@
 import type { Knex } from 'knex';
 import { tableDefaults } from '../schema-helpers';
 
-
 export async function up(knex: Knex): Promise<void> {
   await knex.schema.createTable('releases', (t) => {
     tableDefaults(t);

@@ -6,7 +6,6 @@
 import type { Knex } from 'knex';
 import { createdAt, tableDefaults } from '../schema-helpers';
 
-
 export async function up(knex: Knex): Promise<void> {
   await knex.schema.createTable('audit_log', (t) => {
     tableDefaults(t);

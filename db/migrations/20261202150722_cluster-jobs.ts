@@ -22,6 +22,16 @@ export async function up(knex: Knex): Promise<void> {
 
 export async function down(knex: Knex): Promise<void> {
   await knex.schema.alterTable('jobs', (t) => {
-    for (const c of ['executor', 'cluster_name', 'cluster_job_id', 'cluster_state', 'cluster_reason', 'cluster_node', 'cluster_elapsed_s', 'cluster_checked_at']) t.dropColumn(c);
+    for (const c of [
+      'executor',
+      'cluster_name',
+      'cluster_job_id',
+      'cluster_state',
+      'cluster_reason',
+      'cluster_node',
+      'cluster_elapsed_s',
+      'cluster_checked_at',
+    ])
+      t.dropColumn(c);
   });
 }

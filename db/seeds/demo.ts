@@ -42,14 +42,15 @@ export interface DemoSeedResult {
 /** Creates or refreshes the demo accounts, study and memberships. */
 export async function seedDemo(db: Knex): Promise<DemoSeedResult> {
   const existing = await db('users')
-    .whereIn('email', DEMO_USERS.map((u) => u.email))
+    .whereIn(
+      'email',
+      DEMO_USERS.map((u) => u.email),
+    )
     .select('id', 'email', 'password_hash');
   const byEmail = new Map(existing.map((r: { id: number; email: string; password_hash: string | null }) => [r.email.toLowerCase(), r]));
   const needHash = DEMO_USERS.filter((u) => !byEmail.has(u.email));
   // one salted hash per account (bcrypt, ~0.2 s each), computed before the transaction opens
-  const hashes = new Map(
-    await Promise.all(needHash.map(async (u) => [u.email, await hashPassword(DEMO_PASSWORD)] as const)),
-  );
+  const hashes = new Map(await Promise.all(needHash.map(async (u) => [u.email, await hashPassword(DEMO_PASSWORD)] as const)));
 
   return db.transaction(async (trx) => {
     const users: Record<string, number> = {};

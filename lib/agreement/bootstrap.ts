@@ -37,7 +37,8 @@ function options(opts: BootstrapOptions | undefined) {
   const resamples = opts?.resamples ?? DEFAULT_RESAMPLES;
   const seed = opts?.seed ?? DEFAULT_SEED;
   const level = opts?.level ?? 0.95;
-  if (!Number.isInteger(resamples) || resamples < 1) throw new AgreementError('bad_input', `bootstrap resamples must be a positive integer, got ${resamples}`);
+  if (!Number.isInteger(resamples) || resamples < 1)
+    throw new AgreementError('bad_input', `bootstrap resamples must be a positive integer, got ${resamples}`);
   if (!Number.isFinite(seed)) throw new AgreementError('bad_input', `bootstrap seed must be a number, got ${seed}`);
   if (!(level > 0 && level < 1)) throw new AgreementError('bad_input', `interval level must be in (0, 1), got ${level}`);
   return { resamples, seed, level };
@@ -58,7 +59,15 @@ function interval(values: Float64Array, used: number, resamples: number, seed: n
   }
   const sorted = values.subarray(0, used).sort();
   const tail = (1 - level) / 2;
-  return { lower: quantileSorted(sorted, used, tail), upper: quantileSorted(sorted, used, 1 - tail), level, resamples, used, skipped, seed };
+  return {
+    lower: quantileSorted(sorted, used, tail),
+    upper: quantileSorted(sorted, used, 1 - tail),
+    level,
+    resamples,
+    used,
+    skipped,
+    seed,
+  };
 }
 
 /**
@@ -69,11 +78,23 @@ function interval(values: Float64Array, used: number, resamples: number, seed: n
  * values. Buffers are allocated once; `evaluate` must not keep `idx` or `out`.
  */
 export function bootstrapVector(
-  nItems: number, nStats: number, evaluate: (idx: Int32Array, len: number, out: Float64Array) => void, opts?: BootstrapOptions,
+  nItems: number,
+  nStats: number,
+  evaluate: (idx: Int32Array, len: number, out: Float64Array) => void,
+  opts?: BootstrapOptions,
 ): ConfidenceInterval[] {
   const { resamples, seed, level } = options(opts);
   if (nItems < 1) {
-    return Array.from({ length: nStats }, () => ({ lower: null, upper: null, level, resamples, used: 0, skipped: resamples, seed, reason: 'no items' }));
+    return Array.from({ length: nStats }, () => ({
+      lower: null,
+      upper: null,
+      level,
+      resamples,
+      used: 0,
+      skipped: resamples,
+      seed,
+      reason: 'no items',
+    }));
   }
   const rng = createRng(seed, 'golden-xor'); // the scheme released intervals were computed with
   const idx = new Int32Array(nItems);
@@ -91,16 +112,23 @@ export function bootstrapVector(
 
 /** Like bootstrapVector, with one named evaluator per statistic (all see the same resamples). */
 export function bootstrapMany<K extends string>(
-  nItems: number, evaluators: Record<K, ResampleEvaluator>, opts?: BootstrapOptions,
+  nItems: number,
+  evaluators: Record<K, ResampleEvaluator>,
+  opts?: BootstrapOptions,
 ): Record<K, ConfidenceInterval> {
   const names = Object.keys(evaluators) as K[];
   const fns = names.map((name) => evaluators[name]);
-  const cis = bootstrapVector(nItems, names.length, (idx, len, out) => {
-    for (let f = 0; f < fns.length; f++) {
-      const v = fns[f](idx, len);
-      out[f] = v === null ? NaN : v;
-    }
-  }, opts);
+  const cis = bootstrapVector(
+    nItems,
+    names.length,
+    (idx, len, out) => {
+      for (let f = 0; f < fns.length; f++) {
+        const v = fns[f](idx, len);
+        out[f] = v === null ? NaN : v;
+      }
+    },
+    opts,
+  );
   const res = {} as Record<K, ConfidenceInterval>;
   names.forEach((name, f) => (res[name] = cis[f]));
   return res;
@@ -117,7 +145,9 @@ export function bootstrapCI(nItems: number, evaluate: ResampleEvaluator, opts?: 
  * fastest path (studyAgreement uses allocation-free kernels).
  */
 export function bootstrapTableStat(
-  table: RatingsTable, stat: (table: RatingsTable, sel: ItemSelection) => StatResult, opts?: BootstrapOptions,
+  table: RatingsTable,
+  stat: (table: RatingsTable, sel: ItemSelection) => StatResult,
+  opts?: BootstrapOptions,
 ): ConfidenceInterval {
   return bootstrapCI(table.nItems, (idx) => stat(table, { items: idx }).value, opts);
 }

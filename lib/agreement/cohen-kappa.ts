@@ -43,19 +43,21 @@ export function weightedKappaFromFlat(flat: Float64Array, k: number, n: number, 
   if (n < 2) return undefinedStat(REASON_FEW_ITEMS, n);
   const rows = new Float64Array(k);
   const cols = new Float64Array(k);
-  for (let c = 0; c < k; c++) for (let d = 0; d < k; d++) {
-    rows[c] += flat[c * k + d];
-    cols[d] += flat[c * k + d];
-  }
+  for (let c = 0; c < k; c++)
+    for (let d = 0; d < k; d++) {
+      rows[c] += flat[c * k + d];
+      cols[d] += flat[c * k + d];
+    }
   // Work with disagreement weights v = 1 − w (exact zeros on the diagonal): κ_w = 1 − Σ v x / Σ v e.
   let obs = 0;
   let exp = 0;
-  for (let c = 0; c < k; c++) for (let d = 0; d < k; d++) {
-    const dist = Math.abs(c - d) / (k - 1);
-    const v = weights === 'linear' ? dist : dist * dist;
-    obs += v * flat[c * k + d];
-    exp += (v * rows[c] * cols[d]) / n;
-  }
+  for (let c = 0; c < k; c++)
+    for (let d = 0; d < k; d++) {
+      const dist = Math.abs(c - d) / (k - 1);
+      const v = weights === 'linear' ? dist : dist * dist;
+      obs += v * flat[c * k + d];
+      exp += (v * rows[c] * cols[d]) / n;
+    }
   if (exp < EPS * n) return undefinedStat(REASON_ONE_CATEGORY, n);
   return defined(1 - obs / exp, n);
 }
@@ -78,7 +80,11 @@ export function cohenKappa(table: RatingsTable, a: string | number, b: string | 
 
 /** Weighted κ of two raters over the items both labelled (categories taken as ordered). */
 export function weightedKappa(
-  table: RatingsTable, a: string | number, b: string | number, weights: KappaWeights, sel?: ItemSelection,
+  table: RatingsTable,
+  a: string | number,
+  b: string | number,
+  weights: KappaWeights,
+  sel?: ItemSelection,
 ): StatResult {
   const { flat, k, n } = pairFlat(table, a, b, sel);
   return weightedKappaFromFlat(flat, k, n, weights);

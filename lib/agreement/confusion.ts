@@ -16,9 +16,16 @@ export type ConfusionMatrix = {
  * `rowCodes[i*rowStride + rowCol]`, `colCodes[i*colStride + colCol]`. Allocation-free.
  */
 export function fillConfusion(
-  rowCodes: Int16Array, rowStride: number, rowCol: number,
-  colCodes: Int16Array, colStride: number, colCol: number,
-  k: number, idx: Int32Array, len: number, out: Float64Array,
+  rowCodes: Int16Array,
+  rowStride: number,
+  rowCol: number,
+  colCodes: Int16Array,
+  colStride: number,
+  colCol: number,
+  k: number,
+  idx: Int32Array,
+  len: number,
+  out: Float64Array,
 ): number {
   out.fill(0);
   let n = 0;
@@ -67,7 +74,10 @@ export function encodeReference(table: RatingsTable, reference: ReadonlyArray<st
 
 /** Confusion matrix of one rater (rows) against the reference labels, e.g. the decisions (columns). */
 export function referenceConfusion(
-  table: RatingsTable, rater: string | number, reference: ReadonlyArray<string | null | undefined>, sel?: ItemSelection,
+  table: RatingsTable,
+  rater: string | number,
+  reference: ReadonlyArray<string | null | undefined>,
+  sel?: ItemSelection,
 ): ConfusionMatrix {
   const j = raterIndex(table, rater);
   const ref = encodeReference(table, reference);
@@ -83,7 +93,10 @@ export type Detection = {
   sensitivity: StatResult;
   /** TN / (TN + FP): of the reference's negative items, the share the rater did not flag. */
   specificity: StatResult;
-  tp: number; fp: number; fn: number; tn: number;
+  tp: number;
+  fp: number;
+  fn: number;
+  tn: number;
 };
 
 /**
@@ -94,7 +107,10 @@ export type Detection = {
  * Sensitivity and specificity: common practice, no source.
  */
 export function detectionFromFlat(flat: Float64Array, k: number, positive: number): Detection {
-  let tp = 0, fp = 0, fn = 0, tn = 0;
+  let tp = 0,
+    fp = 0,
+    fn = 0,
+    tn = 0;
   for (let x = 0; x < k; x++) {
     for (let y = 0; y < k; y++) {
       const v = flat[x * k + y];
@@ -107,7 +123,10 @@ export function detectionFromFlat(flat: Float64Array, k: number, positive: numbe
   return {
     sensitivity: tp + fn > 0 ? defined(tp / (tp + fn), tp + fn) : undefinedStat('the reference has no positive items', 0),
     specificity: tn + fp > 0 ? defined(tn / (tn + fp), tn + fp) : undefinedStat('the reference has no negative items', 0),
-    tp, fp, fn, tn,
+    tp,
+    fp,
+    fn,
+    tn,
   };
 }
 

@@ -1,11 +1,6 @@
 /** Reasons the agreement library refuses an input; each AgreementError carries one. */
 export type AgreementErrorCode =
-  | 'too_few_raters'
-  | 'too_few_categories'
-  | 'unknown_category'
-  | 'unknown_rater'
-  | 'duplicate_vote'
-  | 'bad_input';
+  'too_few_raters' | 'too_few_categories' | 'unknown_category' | 'unknown_rater' | 'duplicate_vote' | 'bad_input';
 
 /**
  * Typed error for inputs the agreement statistics cannot work with at all (as opposed to a

@@ -170,7 +170,8 @@ export function compressItems(t: ItemTerms): { patterns: ItemTerms; patternOf: I
     return out;
   };
   const patterns: ItemTerms = {
-    n: P, k,
+    n: P,
+    k,
     votes: Int32Array.from(reps.map((i) => t.votes[i])),
     counts: pick(t.counts, k),
     agree: pick(t.agree, 1),
@@ -189,7 +190,11 @@ export function accumulateWeightedItemSums(t: ItemTerms, weight: Float64Array, o
   out.shareSum.fill(0);
   out.specificNum.fill(0);
   out.specificDen.fill(0);
-  let pairable = 0, agreeSum = 0, occSum = 0, fleissItems = 0, fleissAgreeSum = 0;
+  let pairable = 0,
+    agreeSum = 0,
+    occSum = 0,
+    fleissItems = 0,
+    fleissAgreeSum = 0;
   for (let i = 0; i < n; i++) {
     const w = weight[i];
     const m = votes[i];

@@ -9,8 +9,12 @@
  * Noise detection: 'noise' is positive, every other label — 'uncertain' included — is negative.
  */
 import {
-  cohenKappaFromFlat, detection, pairGwetAC1FromFlat, pairPercentAgreementFromFlat,
-  type ConfusionMatrix, type StatResult,
+  cohenKappaFromFlat,
+  detection,
+  pairGwetAC1FromFlat,
+  pairPercentAgreementFromFlat,
+  type ConfusionMatrix,
+  type StatResult,
 } from '@/lib/agreement';
 
 /** One component: what the rater said and what the reference says. */
@@ -33,7 +37,10 @@ export type CalibrationScore = {
 const noNoise = (n: number): CalibrationScore['noise'] => ({
   sensitivity: { value: null, reason: 'the label set has no "noise" category', n },
   specificity: { value: null, reason: 'the label set has no "noise" category', n },
-  tp: 0, fp: 0, fn: 0, tn: 0,
+  tp: 0,
+  fp: 0,
+  fn: 0,
+  tn: 0,
 });
 
 /** Percent agreement, Cohen's κ, Gwet's AC1 and noise sensitivity/specificity of a rater vs the reference. */

@@ -22,5 +22,4 @@ export function undefinedStat(reason: string, n: number): StatResult {
 }
 
 export const REASON_FEW_ITEMS = 'fewer than 2 items with at least 2 votes';
-export const REASON_ONE_CATEGORY =
-  'only one category was used, so chance agreement is 1 and the chance-corrected coefficient is undefined';
+export const REASON_ONE_CATEGORY = 'only one category was used, so chance agreement is 1 and the chance-corrected coefficient is undefined';

@@ -46,7 +46,13 @@ export type StudyAgreement = {
     gwetAC1: StatWithCI;
     specificAgreement: Record<string, StatResult>;
   };
-  pairs: Array<{ raterA: string; raterB: string; n: number; cohenKappa: StatResult & { band: AgreementBand | null }; percentAgreement: StatResult }>;
+  pairs: Array<{
+    raterA: string;
+    raterB: string;
+    n: number;
+    cohenKappa: StatResult & { band: AgreementBand | null };
+    percentAgreement: StatResult;
+  }>;
   vsDecision: Array<{
     rater: string;
     n: number;
@@ -100,17 +106,22 @@ export function studyAgreement(input: StudyAgreementInput): StudyAgreement {
     const { patterns, patternOf } = compressItems(terms);
     const weight = new Float64Array(patterns.n);
     const scratch = newItemSums(k);
-    cis = bootstrapVector(n, 5, (idx, len, out) => {
-      weight.fill(0);
-      for (let s = 0; s < len; s++) weight[patternOf[idx[s]]] += 1;
-      accumulateWeightedItemSums(patterns, weight, scratch, false);
-      const pa = scratch.pairable >= 2 ? scratch.agreeSum / scratch.pairable : NaN;
-      out[0] = pa;
-      out[1] = fleissKappaFromSums(scratch, terms.fleissVotes).value ?? NaN;
-      out[2] = krippendorffAlphaFromSums(scratch).value ?? NaN;
-      out[3] = (k * pa - 1) / (k - 1);
-      out[4] = gwetAC1FromSums(scratch).value ?? NaN;
-    }, input.bootstrap);
+    cis = bootstrapVector(
+      n,
+      5,
+      (idx, len, out) => {
+        weight.fill(0);
+        for (let s = 0; s < len; s++) weight[patternOf[idx[s]]] += 1;
+        accumulateWeightedItemSums(patterns, weight, scratch, false);
+        const pa = scratch.pairable >= 2 ? scratch.agreeSum / scratch.pairable : NaN;
+        out[0] = pa;
+        out[1] = fleissKappaFromSums(scratch, terms.fleissVotes).value ?? NaN;
+        out[2] = krippendorffAlphaFromSums(scratch).value ?? NaN;
+        out[3] = (k * pa - 1) / (k - 1);
+        out[4] = gwetAC1FromSums(scratch).value ?? NaN;
+      },
+      input.bootstrap,
+    );
   }
 
   const overall: StudyAgreement['overall'] = {
@@ -131,7 +142,9 @@ export function studyAgreement(input: StudyAgreementInput): StudyAgreement {
       if (m === 0) continue;
       const kappa = cohenKappaFromFlat(flat, k, m);
       pairs.push({
-        raterA: table.raters[a], raterB: table.raters[b], n: m,
+        raterA: table.raters[a],
+        raterB: table.raters[b],
+        n: m,
         cohenKappa: { ...kappa, band: bandOrNull(kappa.value) },
         percentAgreement: pairPercentAgreementFromFlat(flat, k, m),
       });
@@ -146,7 +159,10 @@ export function studyAgreement(input: StudyAgreementInput): StudyAgreement {
     const p = table.categories.indexOf(positive);
     if (p < 0) throw new AgreementError('unknown_category', `positive category "${positive}" is not one of ${table.categories.join(', ')}`);
     const byId = new Map(input.items.map((it) => [it.id, it.decision ?? null]));
-    const ref = encodeReference(table, table.items.map((id) => byId.get(id) ?? null));
+    const ref = encodeReference(
+      table,
+      table.items.map((id) => byId.get(id) ?? null),
+    );
     for (let j = 0; j < r; j++) {
       const m = fillConfusion(table.codes, r, j, ref, 1, 0, k, all, n, flat);
       if (m === 0) continue;
@@ -161,7 +177,8 @@ export function studyAgreement(input: StudyAgreementInput): StudyAgreement {
         if (c === p) pos++;
       }
       vsDecision.push({
-        rater: table.raters[j], n: m,
+        rater: table.raters[j],
+        n: m,
         cohenKappa: { ...kappa, band: bandOrNull(kappa.value) },
         sensitivity: det.sensitivity,
         specificity: det.specificity,
@@ -187,10 +204,16 @@ export function studyAgreement(input: StudyAgreementInput): StudyAgreement {
     accumulateItemSums(terms, idx, idx.length, runSums);
     let raters = 0;
     for (let j = 0; j < r; j++) {
-      for (let t = 0; t < idx.length; t++) if (table.codes[idx[t] * r + j] !== MISSING) { raters++; break; }
+      for (let t = 0; t < idx.length; t++)
+        if (table.codes[idx[t] * r + j] !== MISSING) {
+          raters++;
+          break;
+        }
     }
     runs.push({
-      runId, items: idx.length, raters,
+      runId,
+      items: idx.length,
+      raters,
       krippendorffAlpha: krippendorffAlphaFromSums(runSums),
       percentAgreement: percentAgreementFromSums(runSums),
     });

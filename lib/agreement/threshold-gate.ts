@@ -22,7 +22,11 @@ export function gateVerdict(score: GateScore | null, t: CalibrationThreshold): G
   if (!isGated(t)) return { gated: false, passes: true, reason: null };
   const set = t.setName ? `the calibration set “${t.setName}”` : null;
   if (!score || score.n === 0) {
-    return { gated: true, passes: false, reason: set ? `has not submitted a run of ${set} yet` : 'has not submitted a calibration run with reference labels yet' };
+    return {
+      gated: true,
+      passes: false,
+      reason: set ? `has not submitted a run of ${set} yet` : 'has not submitted a calibration run with reference labels yet',
+    };
   }
   const misses: string[] = [];
   if (t.minAc1 !== null) {
@@ -32,7 +36,10 @@ export function gateVerdict(score: GateScore | null, t: CalibrationThreshold): G
   }
   if (t.minSensitivity !== null) {
     const v = score.noise.sensitivity.value;
-    if (v === null) misses.push(`noise sensitivity is undefined (${score.noise.sensitivity.reason ?? 'no reference noise'}), threshold ${t.minSensitivity.toFixed(2)}`);
+    if (v === null)
+      misses.push(
+        `noise sensitivity is undefined (${score.noise.sensitivity.reason ?? 'no reference noise'}), threshold ${t.minSensitivity.toFixed(2)}`,
+      );
     else if (v < t.minSensitivity) misses.push(`noise sensitivity ${v.toFixed(2)} is below ${t.minSensitivity.toFixed(2)}`);
   }
   if (!misses.length) return { gated: true, passes: true, reason: null };

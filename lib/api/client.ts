@@ -1,7 +1,5 @@
 /** Result of a JSON call from the browser: ok with data, or the server's message and field errors. */
-export type ApiResult<T> =
-  | { ok: true; data: T }
-  | { ok: false; status: number; message: string; fields?: Record<string, string[]> };
+export type ApiResult<T> = { ok: true; data: T } | { ok: false; status: number; message: string; fields?: Record<string, string[]> };
 
 /** The one browser JSON call: sends `body` as JSON when given, reads the server's `{ error }` shape. */
 export async function callJson<T>(method: 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE', url: string, body?: unknown): Promise<ApiResult<T>> {

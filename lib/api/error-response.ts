@@ -18,11 +18,16 @@ const DB_DOWN_CODES = new Set([
 const DB_NETWORK_CODES = new Set(['ECONNRESET', 'EPIPE', 'ETIMEDOUT']);
 // mysql2 throws these without a code when a pooled connection died with the server (e.g. the
 // ROLLBACK of a transaction that was in flight when the database stopped)
-const DB_DOWN_MESSAGES = /Can't add new command when connection is in closed state|Connection lost: The server closed the connection|Pool is closed/;
+const DB_DOWN_MESSAGES =
+  /Can't add new command when connection is in closed state|Connection lost: The server closed the connection|Pool is closed/;
 
 /** True when `err` (or what it wraps) says the database cannot be reached right now. */
 function databaseUnavailable(err: unknown): boolean {
-  for (let e = err as { code?: string; name?: string; message?: string; fatal?: boolean; cause?: unknown } | undefined, depth = 0; e && depth < 4; e = e.cause as typeof e, depth++) {
+  for (
+    let e = err as { code?: string; name?: string; message?: string; fatal?: boolean; cause?: unknown } | undefined, depth = 0;
+    e && depth < 4;
+    e = e.cause as typeof e, depth++
+  ) {
     if (e.code && DB_DOWN_CODES.has(e.code)) return true;
     if (e.code && e.fatal === true && DB_NETWORK_CODES.has(e.code)) return true;
     if (e.name === 'KnexTimeoutError') return true;
@@ -54,7 +59,12 @@ export function errorResponse(err: unknown, context: string): Response {
   if (fault) {
     console.error(`[${context}] storage fault:`, err);
     // the admin's alert (Facility page); best effort, the person's answer does not wait for it
-    void recordAudit({ actorId: null, action: 'storage.fault', targetType: 'storage', detail: { kind: fault, code: (err as { code?: string }).code, where: context } }).catch((e) => console.error('[storage fault] could not record the alert:', e));
+    void recordAudit({
+      actorId: null,
+      action: 'storage.fault',
+      targetType: 'storage',
+      detail: { kind: fault, code: (err as { code?: string }).code, where: context },
+    }).catch((e) => console.error('[storage fault] could not record the alert:', e));
     return new AppError(fault === 'full' ? 'insufficient_storage' : 'unavailable', STORAGE_FAULT_MESSAGES[fault]).toResponse();
   }
   console.error(`[${context}] unexpected error:`, err);

@@ -54,7 +54,11 @@ function parse<S extends Schema | undefined>(schema: S, value: unknown, what: st
 }
 
 /** Loads the Access of a scoped request, or throws 404 (not the caller's to see) / 403 (not a lead). */
-async function scopedAccess(spec: Pick<HandlerSpec<unknown, unknown, unknown>, 'scope' | 'studyRule' | 'denied'>, user: UserRow, params: unknown): Promise<ScopedAccess> {
+async function scopedAccess(
+  spec: Pick<HandlerSpec<unknown, unknown, unknown>, 'scope' | 'studyRule' | 'denied'>,
+  user: UserRow,
+  params: unknown,
+): Promise<ScopedAccess> {
   const id = Number((params as { id?: unknown } | undefined)?.id);
   if (!Number.isInteger(id) || id <= 0) throw new AppError('validation', 'The address needs a numeric id.');
   const access = spec.scope === 'run' ? await findRunAccess({ user, runId: id }) : await findStudyAccess({ user, studyId: id });
@@ -79,7 +83,9 @@ export function handler<
   Sc extends 'study' | 'run' | undefined = undefined,
 >(
   spec: HandlerSpec<Q, B, P> & { permission: Perm; scope?: Sc },
-  fn: (ctx: HandlerContext<Q, B, P, Perm extends 'public' ? UserRow | null : UserRow, Sc extends 'study' | 'run' ? ScopedAccess : null>) => Promise<Response | unknown>,
+  fn: (
+    ctx: HandlerContext<Q, B, P, Perm extends 'public' ? UserRow | null : UserRow, Sc extends 'study' | 'run' ? ScopedAccess : null>,
+  ) => Promise<Response | unknown>,
 ) {
   return async (req: Request, context: RouteContext): Promise<Response> => {
     try {

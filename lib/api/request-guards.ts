@@ -64,7 +64,10 @@ function isJson(type: string): boolean {
 /** Reads at most `limit` bytes of the body; throws too_large (413) as soon as it is exceeded, without reading the rest. */
 async function readCapped(req: Request, limit: number): Promise<string> {
   const tooLarge = () =>
-    new AppError('too_large', `The request body is larger than ${Math.round(limit / 1024)} KB. Send less at once (for long lists, split them).`);
+    new AppError(
+      'too_large',
+      `The request body is larger than ${Math.round(limit / 1024)} KB. Send less at once (for long lists, split them).`,
+    );
   const declared = Number(req.headers.get('content-length'));
   if (Number.isFinite(declared) && declared > limit) {
     await req.body?.cancel().catch(() => {});
@@ -95,7 +98,10 @@ export async function readJsonBody(req: Request, limit = MAX_JSON_BODY_BYTES): P
   const type = req.headers.get('content-type') ?? '';
   if (type && !isJson(type)) {
     await req.body?.cancel().catch(() => {});
-    throw new AppError('unsupported_media_type', `This address takes JSON (Content-Type: application/json), not ${type.split(';')[0]!.trim()}.`);
+    throw new AppError(
+      'unsupported_media_type',
+      `This address takes JSON (Content-Type: application/json), not ${type.split(';')[0]!.trim()}.`,
+    );
   }
   const text = await readCapped(req, limit);
   if (!text.trim()) return {};

@@ -12,7 +12,19 @@ import { lockLedRun, requireCalibrated, requireStudyRater, type Caller } from '.
  * once, since the number of expected votes grew (a run whose decisions were complete goes back to
  * waiting for the new rater under most rules). Audited; the rater is e-mailed in the next batch.
  */
-export async function addRaterToRun({ user, runId, raterId, dueAt, ip }: { user: Caller; runId: number; raterId: number; dueAt?: Date | null; ip?: string | null }) {
+export async function addRaterToRun({
+  user,
+  runId,
+  raterId,
+  dueAt,
+  ip,
+}: {
+  user: Caller;
+  runId: number;
+  raterId: number;
+  dueAt?: Date | null;
+  ip?: string | null;
+}) {
   return inTransaction(async (trx) => {
     const run = await lockLedRun(trx, { user, runId });
     if (run.status !== 'ready') throw new AppError('conflict', `Run ${run.name} is ${run.status}; raters are assigned once it is ready.`);
@@ -26,7 +38,15 @@ export async function addRaterToRun({ user, runId, raterId, dueAt, ip }: { user:
     await recomputeRunDecisions(trx, { runId });
     const pendingAfter = await countPendingDecisions(trx, runId);
     await recordAudit(
-      { actorId: user.id, action: 'assignment.add', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { raterId, raterName: rater.name, dueAt: dueAt ?? null, pendingBefore, pendingAfter }, ip },
+      {
+        actorId: user.id,
+        action: 'assignment.add',
+        targetType: 'run',
+        targetId: runId,
+        studyId: run.studyId,
+        detail: { raterId, raterName: rater.name, dueAt: dueAt ?? null, pendingBefore, pendingAfter },
+        ip,
+      },
       trx,
     );
     await afterAssignmentsCreated(trx, { studyId: run.studyId });

@@ -34,15 +34,30 @@ export async function lockLedRun(trx: Trx, { user, runId }: { user: Caller; runI
 /** An active rater member of the study (study role rater), or a 422 naming the problem. */
 export async function requireStudyRater(trx: Trx, { studyId, raterId, field }: { studyId: number; raterId: number; field: string }) {
   const row = await findStudyRaterMember(trx, { studyId, raterId });
-  if (!row) throw new AppError('validation', 'That person is not a rater of this study. Add them as a rater under Protocol and members first.', { [field]: ['not a rater of this study'] });
+  if (!row)
+    throw new AppError('validation', 'That person is not a rater of this study. Add them as a rater under Protocol and members first.', {
+      [field]: ['not a rater of this study'],
+    });
   if (!row.active) throw new AppError('validation', `${row.name}'s account is deactivated.`, { [field]: ['deactivated account'] });
-  if (!VOTING_ROLES.includes(row.role)) throw new AppError('validation', `${row.name}'s account (${row.role}) may not vote, so it cannot rate runs. Ask the facility admin to change the account's role.`, { [field]: ['account may not vote'] });
+  if (!VOTING_ROLES.includes(row.role))
+    throw new AppError(
+      'validation',
+      `${row.name}'s account (${row.role}) may not vote, so it cannot rate runs. Ask the facility admin to change the account's role.`,
+      { [field]: ['account may not vote'] },
+    );
   return { id: Number(row.id), name: String(row.name) };
 }
 
 /** Refuses a live run to a rater under the study's calibration threshold, saying why. */
-export async function requireCalibrated(trx: Trx, { studyId, runId, rater, raterId }: { studyId: number; runId: number; rater: { name: string }; raterId: number }) {
+export async function requireCalibrated(
+  trx: Trx,
+  { studyId, runId, rater, raterId }: { studyId: number; runId: number; rater: { name: string }; raterId: number },
+) {
   if (await isCalibrationRun(trx, { runId })) return;
   const gate = await calibrationGate({ studyId, raterId }, trx);
-  if (!gate.passes) throw new AppError('conflict', `${rater.name} cannot take live runs yet: ${gate.reason} (the study's calibration threshold). Assign them a calibration run, or change the threshold on the calibration page.`);
+  if (!gate.passes)
+    throw new AppError(
+      'conflict',
+      `${rater.name} cannot take live runs yet: ${gate.reason} (the study's calibration threshold). Assign them a calibration run, or change the threshold on the calibration page.`,
+    );
 }

@@ -13,11 +13,28 @@ import { removeInTrx } from './remove-rater';
  * is given), in one transaction: confirmation rules as for removal, decisions recomputed, one
  * audit entry, the new rater e-mailed in the next batch.
  */
-export async function reassignRun({ user, runId, fromRaterId, toRaterId, dueAt, confirm, ip }: { user: Caller; runId: number; fromRaterId: number; toRaterId: number; dueAt?: Date | null; confirm: boolean; ip?: string | null }) {
+export async function reassignRun({
+  user,
+  runId,
+  fromRaterId,
+  toRaterId,
+  dueAt,
+  confirm,
+  ip,
+}: {
+  user: Caller;
+  runId: number;
+  fromRaterId: number;
+  toRaterId: number;
+  dueAt?: Date | null;
+  confirm: boolean;
+  ip?: string | null;
+}) {
   return inTransaction(async (trx) => {
     const run = await lockLedRun(trx, { user, runId });
     if (run.status !== 'ready') throw new AppError('conflict', `Run ${run.name} is ${run.status}; raters are assigned once it is ready.`);
-    if (fromRaterId === toRaterId) throw new AppError('validation', 'Choose a different rater to take over.', { replaceWith: ['same rater'] });
+    if (fromRaterId === toRaterId)
+      throw new AppError('validation', 'Choose a different rater to take over.', { replaceWith: ['same rater'] });
     const to = await requireStudyRater(trx, { studyId: run.studyId, raterId: toRaterId, field: 'replaceWith' });
     if (await isAssigned(trx, { runId, raterId: toRaterId })) {
       throw new AppError('conflict', `${to.name} is already assigned to ${run.name}.`);
@@ -29,7 +46,15 @@ export async function reassignRun({ user, runId, fromRaterId, toRaterId, dueAt, 
     await insertAssignment(trx, { runId, raterId: toRaterId, assignedBy: user.id, dueAt: due });
     await recomputeRunDecisions(trx, { runId });
     await recordAudit(
-      { actorId: user.id, action: 'assignment.reassign', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { fromRaterId, fromName: removed.name, toRaterId, toName: to.name, votesKept: removed.votes, dueAt: due }, ip },
+      {
+        actorId: user.id,
+        action: 'assignment.reassign',
+        targetType: 'run',
+        targetId: runId,
+        studyId: run.studyId,
+        detail: { fromRaterId, fromName: removed.name, toRaterId, toName: to.name, votesKept: removed.votes, dueAt: due },
+        ip,
+      },
       trx,
     );
     await afterAssignmentsCreated(trx, { studyId: run.studyId });

@@ -12,12 +12,17 @@ function removalConsequence(name: string, votes: number): string {
 }
 
 /** Deletes a rater's assignment on a locked run; with votes only when the lead confirmed (409 otherwise). */
-export async function removeInTrx(trx: Trx, { run, raterId, confirm }: { run: { id: number; name: string }; raterId: number; confirm: boolean }) {
+export async function removeInTrx(
+  trx: Trx,
+  { run, raterId, confirm }: { run: { id: number; name: string }; raterId: number; confirm: boolean },
+) {
   const a = await findAssignmentOfRater(trx, { runId: run.id, raterId });
   if (!a) throw notFound('That assignment');
   const votes = await countRaterVotes(trx, { runId: run.id, raterId });
   if (votes > 0 && !confirm) {
-    throw new AppError('conflict', `${removalConsequence(a.name, votes)} Confirm to remove them.`, { confirm: ['required: the rater has votes on this run'] });
+    throw new AppError('conflict', `${removalConsequence(a.name, votes)} Confirm to remove them.`, {
+      confirm: ['required: the rater has votes on this run'],
+    });
   }
   await deleteAssignment(trx, { assignmentId: a.id });
   return { name: String(a.name), votes, submittedAt: a.submittedAt ?? null, dueAt: a.dueAt ?? null };
@@ -27,13 +32,33 @@ export async function removeInTrx(trx: Trx, { run, raterId, confirm }: { run: { 
  * Removes a rater from a run. When they have votes the lead must confirm (409 otherwise); the
  * votes stay in the database but the rater no longer counts. Decisions are recomputed; audited.
  */
-export async function removeRaterFromRun({ user, runId, raterId, confirm, ip }: { user: Caller; runId: number; raterId: number; confirm: boolean; ip?: string | null }) {
+export async function removeRaterFromRun({
+  user,
+  runId,
+  raterId,
+  confirm,
+  ip,
+}: {
+  user: Caller;
+  runId: number;
+  raterId: number;
+  confirm: boolean;
+  ip?: string | null;
+}) {
   return inTransaction(async (trx) => {
     const run = await lockLedRun(trx, { user, runId });
     const removed = await removeInTrx(trx, { run, raterId, confirm });
     await recomputeRunDecisions(trx, { runId });
     await recordAudit(
-      { actorId: user.id, action: 'assignment.remove', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { raterId, raterName: removed.name, votesKept: removed.votes, submittedAt: removed.submittedAt }, ip },
+      {
+        actorId: user.id,
+        action: 'assignment.remove',
+        targetType: 'run',
+        targetId: runId,
+        studyId: run.studyId,
+        detail: { raterId, raterName: removed.name, votesKept: removed.votes, submittedAt: removed.submittedAt },
+        ip,
+      },
       trx,
     );
     return { runId, raterId, votesKept: removed.votes };

@@ -21,11 +21,24 @@ import { notificationsEnabled } from '@/lib/notifications/config';
  * it once more when done; they are told by e-mail (queued in the same transaction, sent by the
  * worker's send-mail job) unless notifications are off.
  */
-export async function reopenAssignment({ user, runId, raterId, reason, ip = null }: { user: Pick<UserRow, 'id' | 'role' | 'name'>; runId: number; raterId: number; reason: string; ip?: string | null }) {
+export async function reopenAssignment({
+  user,
+  runId,
+  raterId,
+  reason,
+  ip = null,
+}: {
+  user: Pick<UserRow, 'id' | 'role' | 'name'>;
+  runId: number;
+  raterId: number;
+  reason: string;
+  ip?: string | null;
+}) {
   const run = await findRunStudy({ runId });
   const access = run ? await findStudyAccess({ user, studyId: run.studyId }) : null;
   if (!run || !access) throw notFound('The run');
-  if (!leadsStudy(access)) throw new AppError('forbidden', "Only a lead of this study (or the facility admin) reopens a rater's submitted run.");
+  if (!leadsStudy(access))
+    throw new AppError('forbidden', "Only a lead of this study (or the facility admin) reopens a rater's submitted run.");
   return inTransaction(async (trx) => {
     const a = await lockAssignment(trx, { runId, raterId });
     if (!a) throw notFound('That assignment');
@@ -33,7 +46,10 @@ export async function reopenAssignment({ user, runId, raterId, reason, ip = null
       throw new AppError('conflict', `Run ${run.name} has been released; its votes are frozen for good. Nothing was reopened.`);
     }
     if (!a.submittedAt) {
-      throw new AppError('conflict', `${a.raterName} has not submitted ${run.name}${a.reopenCount ? ' since it was last reopened' : ''}, so there is nothing to reopen: they can still change their votes.`);
+      throw new AppError(
+        'conflict',
+        `${a.raterName} has not submitted ${run.name}${a.reopenCount ? ' since it was last reopened' : ''}, so there is nothing to reopen: they can still change their votes.`,
+      );
     }
     const at = new Date();
     await markAssignmentReopened(trx, { assignmentId: a.id, by: user.id, at });
@@ -44,13 +60,28 @@ export async function reopenAssignment({ user, runId, raterId, reason, ip = null
         targetType: 'run',
         targetId: runId,
         studyId: run.studyId,
-        detail: { raterId, raterName: a.raterName, reason, submittedAt: a.submittedAt, firstSubmittedAt: a.firstSubmittedAt, reopenCount: a.reopenCount + 1 },
+        detail: {
+          raterId,
+          raterName: a.raterName,
+          reason,
+          submittedAt: a.submittedAt,
+          firstSubmittedAt: a.firstSubmittedAt,
+          reopenCount: a.reopenCount + 1,
+        },
         ip,
       },
       trx,
     );
     if (a.raterActive && notificationsEnabled()) {
-      const content = runReopenedMail({ facility: facilityName(), name: a.raterName, leadName: user.name, studyName: access.name, runName: run.name, reason, url: `${publicBaseUrl()}/runs/${runId}/rate` });
+      const content = runReopenedMail({
+        facility: facilityName(),
+        name: a.raterName,
+        leadName: user.name,
+        studyName: access.name,
+        runName: run.name,
+        reason,
+        url: `${publicBaseUrl()}/runs/${runId}/rate`,
+      });
       await queueMail(trx, { to: a.raterEmail, template: 'run-reopened', content, secrets: [] });
     }
     return { runId, raterId, raterName: a.raterName, reopenedAt: at.toISOString(), reopenCount: a.reopenCount + 1 };

@@ -5,11 +5,20 @@
  */
 import { z } from 'zod';
 
-const id = (what: string) => z.coerce.number({ message: `Choose ${what}.` }).int({ message: `Choose ${what}.` }).positive({ message: `Choose ${what}.` });
+const id = (what: string) =>
+  z.coerce
+    .number({ message: `Choose ${what}.` })
+    .int({ message: `Choose ${what}.` })
+    .positive({ message: `Choose ${what}.` });
 
 /** "2026-12-08" → 2026-12-08T23:59:59.999Z; an ISO instant as given; "" / null → null. */
 export const dueAtSchema = z
-  .union([z.null(), z.literal(''), z.iso.date({ message: 'Enter the due date as a day, e.g. 2026-12-08.' }), z.iso.datetime({ offset: true, message: 'Enter the due date as a day, e.g. 2026-12-08.' })])
+  .union([
+    z.null(),
+    z.literal(''),
+    z.iso.date({ message: 'Enter the due date as a day, e.g. 2026-12-08.' }),
+    z.iso.datetime({ offset: true, message: 'Enter the due date as a day, e.g. 2026-12-08.' }),
+  ])
   .transform((v) => (!v ? null : /^\d{4}-\d{2}-\d{2}$/.test(v) ? new Date(`${v}T23:59:59.999Z`) : new Date(v)));
 
 /** POST /api/runs/:id/assignments — add a rater to a run. */
@@ -21,12 +30,24 @@ export const addRaterSchema = z.object({ raterId: id('a rater'), dueAt: dueAtSch
  * replaced has votes on the run.
  */
 export const changeAssignmentSchema = z
-  .object({ replaceWith: id('the rater who takes over').optional(), dueAt: dueAtSchema.optional(), confirm: z.boolean().optional().default(false) })
+  .object({
+    replaceWith: id('the rater who takes over').optional(),
+    dueAt: dueAtSchema.optional(),
+    confirm: z.boolean().optional().default(false),
+  })
   .strict()
-  .refine((v) => v.replaceWith !== undefined || v.dueAt !== undefined, { message: 'Give a rater to take over or a due date.', path: ['replaceWith'] });
+  .refine((v) => v.replaceWith !== undefined || v.dueAt !== undefined, {
+    message: 'Give a rater to take over or a due date.',
+    path: ['replaceWith'],
+  });
 
 /** DELETE /api/runs/:id/assignments/:raterId?confirm=1 — confirm is required when the rater has votes. */
-export const removeRaterQuerySchema = z.object({ confirm: z.enum(['1', 'true', '0', 'false']).optional().transform((v) => v === '1' || v === 'true') });
+export const removeRaterQuerySchema = z.object({
+  confirm: z
+    .enum(['1', 'true', '0', 'false'])
+    .optional()
+    .transform((v) => v === '1' || v === 'true'),
+});
 
 /** POST /api/runs/:id/assignments/:raterId/reopen — the lead's reason is kept in the audit log. */
 export const reopenSchema = z
@@ -44,10 +65,18 @@ export const runDueSchema = z.object({ dueAt: dueAtSchema }).strict();
 
 /** PATCH /api/studies/:id/assignments — one due date for every rater of many runs (open work only). */
 export const bulkDueSchema = z
-  .object({ runIds: z.array(z.coerce.number().int().positive()).min(1, { message: 'Choose at least one run.' }).max(1000, { message: 'At most 1000 runs at once.' }), dueAt: dueAtSchema })
+  .object({
+    runIds: z
+      .array(z.coerce.number().int().positive())
+      .min(1, { message: 'Choose at least one run.' })
+      .max(1000, { message: 'At most 1000 runs at once.' }),
+    dueAt: dueAtSchema,
+  })
   .strict();
 
 /** Route addresses. */
 export const studyParamsSchema = z.object({ id: z.coerce.number().int().positive({ message: 'must be a study number' }) });
 export const runParamsSchema = z.object({ id: z.coerce.number().int().positive({ message: 'must be a run number' }) });
-export const runRaterParamsSchema = runParamsSchema.extend({ raterId: z.coerce.number().int().positive({ message: 'must be a rater number' }) });
+export const runRaterParamsSchema = runParamsSchema.extend({
+  raterId: z.coerce.number().int().positive({ message: 'must be a rater number' }),
+});

@@ -3,14 +3,26 @@ import { z } from 'zod';
 const optionalId = z.preprocess((v) => (v === '' || v === null ? undefined : v), z.coerce.number().int().positive().optional());
 const optionalDate = z.preprocess(
   (v) => (v === '' || v === null ? undefined : v),
-  z.string().max(10).regex(/^\d{4}-\d{2}-\d{2}$/, { message: 'Use a date like 2026-12-01.' }).optional(),
+  z
+    .string()
+    .max(10)
+    .regex(/^\d{4}-\d{2}-\d{2}$/, { message: 'Use a date like 2026-12-01.' })
+    .optional(),
 );
 
 /** Filters of the audit log (query string of the list and the CSV export, and the filter form). */
 export const auditFilterSchema = z
   .object({
     actorId: optionalId,
-    action: z.preprocess((v) => (v === '' ? undefined : v), z.string().trim().max(64).regex(/^[a-z0-9_.]+$/, { message: 'Actions look like "user.role_changed".' }).optional()),
+    action: z.preprocess(
+      (v) => (v === '' ? undefined : v),
+      z
+        .string()
+        .trim()
+        .max(64)
+        .regex(/^[a-z0-9_.]+$/, { message: 'Actions look like "user.role_changed".' })
+        .optional(),
+    ),
     studyId: optionalId,
     from: optionalDate,
     to: optionalDate,

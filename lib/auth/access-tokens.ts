@@ -32,10 +32,11 @@ export async function authenticateBearer(req: Request): Promise<TokenUser> {
   const row = await findTokenByHash({ tokenHash: hashToken(m[1]!) });
   if (!row) throw bearerError('The access token is not valid.');
   if (row.revokedAt) throw bearerError('The access token was revoked; create a new one on your account page.');
-  if (row.expiresAt && new Date(row.expiresAt).getTime() < Date.now()) throw bearerError('The access token has expired; create a new one on your account page.');
+  if (row.expiresAt && new Date(row.expiresAt).getTime() < Date.now())
+    throw bearerError('The access token has expired; create a new one on your account page.');
   if (!row.active) throw bearerError('The account of this access token is deactivated.');
   if (row.scope !== TOKEN_SCOPE || !can(row.role, 'releases.read') || !can(row.role, 'exports.download')) {
-    throw new AppError('forbidden', 'This token\'s account may not read releases.');
+    throw new AppError('forbidden', "This token's account may not read releases.");
   }
   await touchAccessToken({ tokenId: Number(row.id) });
   return { id: Number(row.userId), role: row.role, name: row.name, tokenId: Number(row.id) };
@@ -44,7 +45,12 @@ export async function authenticateBearer(req: Request): Promise<TokenUser> {
 /** The answer to any writing method on the token API. */
 export function readOnlyResponse(): Response {
   return Response.json(
-    { error: { code: 'method_not_allowed', message: 'The pipeline API is read-only: access tokens can only GET released noise lists and files.' } },
+    {
+      error: {
+        code: 'method_not_allowed',
+        message: 'The pipeline API is read-only: access tokens can only GET released noise lists and files.',
+      },
+    },
     { status: 405, headers: { Allow: 'GET' } },
   );
 }

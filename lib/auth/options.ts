@@ -24,7 +24,8 @@ import { endSession, sessionVersionOf } from '@/lib/db/queries/sessions';
 import { recordAudit } from '@/lib/db/queries/audit';
 
 export const SIGN_IN_WRONG = 'E-mail or password is wrong.';
-export const SIGN_IN_UNAVAILABLE = 'Signing in is not possible right now. Try again in a few minutes; if it persists, tell the facility admin.';
+export const SIGN_IN_UNAVAILABLE =
+  'Signing in is not possible right now. Try again in a few minutes; if it persists, tell the facility admin.';
 
 // A real hash to compare against for unknown accounts, so timing does not reveal which addresses exist.
 let dummyHash: Promise<string> | undefined;
@@ -44,7 +45,10 @@ async function authorizeCredentials(credentials: Record<string, string> | undefi
   const throttles: [ThrottleKey, ThrottlePolicy][] =
     address === 'direct'
       ? [[`account:${email}`, ACCOUNT_POLICY]]
-      : [[pairKey(email, address), PAIR_POLICY], [`ip:${address}`, ADDRESS_POLICY]];
+      : [
+          [pairKey(email, address), PAIR_POLICY],
+          [`ip:${address}`, ADDRESS_POLICY],
+        ];
   const wait = Math.max(...(await Promise.all(throttles.map(([key]) => lockedFor(key)))));
   if (wait > 0) throw new SignInRefusal(`Too many failed sign-ins. Try again in ${waitText(wait)}.`);
   const found = await findCredentialsByEmail({ email });

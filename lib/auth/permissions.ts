@@ -31,15 +31,7 @@ export const ACTIONS = [
 export type Action = (typeof ACTIONS)[number];
 
 const everyone: Action[] = ['account.read', 'account.update'];
-const reader: Action[] = [
-  ...everyone,
-  'tokens.manage',
-  'studies.read',
-  'runs.read',
-  'agreement.read',
-  'releases.read',
-  'exports.download',
-];
+const reader: Action[] = [...everyone, 'tokens.manage', 'studies.read', 'runs.read', 'agreement.read', 'releases.read', 'exports.download'];
 
 export const PERMISSIONS: Record<Role, ReadonlySet<Action>> = {
   admin: new Set<Action>(ACTIONS),

@@ -23,12 +23,7 @@ export const ADDRESS_POLICY: ThrottlePolicy = { free: 10, baseSec: 1, capSec: 90
 /** One account when the address is unknown (no proxy, no peer address): slows, never locks out (≤ 30 s). */
 export const ACCOUNT_POLICY: ThrottlePolicy = { free: 5, baseSec: 1, capSec: 30, windowSec: 3600 };
 
-export type ThrottleKey =
-  | `ip:${string}`
-  | `account:${string}`
-  | `pair:${string}`
-  | `invite:${string}`
-  | `reset:${string}`;
+export type ThrottleKey = `ip:${string}` | `account:${string}` | `pair:${string}` | `invite:${string}` | `reset:${string}`;
 
 /** Keys are stored as given when short; long ones (a 254-character e-mail…) as prefix + sha256. */
 function stored(key: ThrottleKey): string {
@@ -44,7 +39,10 @@ export function pairKey(email: string, address: string): ThrottleKey {
 
 /** Milliseconds until the key may try again (0 = not locked). */
 export async function lockedFor(key: ThrottleKey): Promise<number> {
-  const row = await db('sign_in_throttles').select('locked_until').where({ key: stored(key) }).first();
+  const row = await db('sign_in_throttles')
+    .select('locked_until')
+    .where({ key: stored(key) })
+    .first();
   const until = row?.locked_until ? new Date(row.locked_until).getTime() : 0;
   return Math.max(0, until - Date.now());
 }
@@ -74,7 +72,9 @@ export async function countAttempts(keys: readonly ThrottleKey[]): Promise<void>
 }
 
 export async function clearFailures(key: ThrottleKey): Promise<void> {
-  await db('sign_in_throttles').where({ key: stored(key) }).delete();
+  await db('sign_in_throttles')
+    .where({ key: stored(key) })
+    .delete();
 }
 
 /** "8 seconds", "3 minutes": how long to wait, for people. */

@@ -43,7 +43,10 @@ export function linkState(row: LinkRow | null | undefined, now: Date = new Date(
 }
 
 function day(at: Date): string {
-  return at.toLocaleString('en-GB', { day: 'numeric', month: 'long', year: 'numeric', hour: '2-digit', minute: '2-digit', timeZone: 'UTC' }) + ' UTC';
+  return (
+    at.toLocaleString('en-GB', { day: 'numeric', month: 'long', year: 'numeric', hour: '2-digit', minute: '2-digit', timeZone: 'UTC' }) +
+    ' UTC'
+  );
 }
 
 /**
@@ -76,4 +79,3 @@ export function linkRefusal({
       return `This link is not valid. Check that you copied the whole address, or ${again}.`;
   }
 }
-

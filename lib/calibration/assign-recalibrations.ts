@@ -21,10 +21,23 @@ export async function assignDueRecalibrations(db: Knex, { now = new Date() }: { 
     const r = await db.transaction(async (trx) => {
       const res = await startRecalibrationRound(trx, { studyId: d.studyId, raterId: d.raterId, now, dueAt });
       if (res) {
-        await recordAudit({
-          actorId: null, action: 'calibration.recalibration_assigned', targetType: 'user', targetId: d.raterId, studyId: d.studyId,
-          detail: { closedRound: res.round, ac1: res.closed.ac1, noiseSensitivity: res.closed.sensitivity, runIds: res.runIds, weeks: d.weeks },
-        }, trx);
+        await recordAudit(
+          {
+            actorId: null,
+            action: 'calibration.recalibration_assigned',
+            targetType: 'user',
+            targetId: d.raterId,
+            studyId: d.studyId,
+            detail: {
+              closedRound: res.round,
+              ac1: res.closed.ac1,
+              noiseSensitivity: res.closed.sensitivity,
+              runIds: res.runIds,
+              weeks: d.weeks,
+            },
+          },
+          trx,
+        );
       }
       return res;
     });

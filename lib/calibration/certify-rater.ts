@@ -10,8 +10,15 @@ import { calibrationSettings } from '@/lib/db/queries/calibration-gate';
 import { inTransaction } from '@/lib/db/transaction';
 import { ensureRecalibrationJob } from './recalibration-job';
 
-export async function certifyRater(input: { user: { id: number; role: Role }; studyId: number; userId: number; passed: boolean; ip?: string | null }) {
+export async function certifyRater(input: {
+  user: { id: number; role: Role };
+  studyId: number;
+  userId: number;
+  passed: boolean;
+  ip?: string | null;
+}) {
   const result = await storeCertification(input);
-  if (result.passed && (await calibrationSettings({ studyId: input.studyId })).recalibrationWeeks != null) await inTransaction((trx) => ensureRecalibrationJob(trx));
+  if (result.passed && (await calibrationSettings({ studyId: input.studyId })).recalibrationWeeks != null)
+    await inTransaction((trx) => ensureRecalibrationJob(trx));
   return result;
 }

@@ -11,19 +11,40 @@ import { ensureRecalibrationJob } from '@/lib/calibration/recalibration-job';
 
 type SettingsChange = { minAc1: number | null; minSensitivity: number | null; setName?: string | null; recalibrationWeeks?: number | null };
 
-export async function readThreshold({ user, studyId }: { user: { id: number; role: Role }; studyId: number }): Promise<CalibrationSettings> {
+export async function readThreshold({
+  user,
+  studyId,
+}: {
+  user: { id: number; role: Role };
+  studyId: number;
+}): Promise<CalibrationSettings> {
   const access = await findStudyAccess({ user, studyId });
   if (!access) throw notFound('The study');
   return calibrationSettings({ studyId });
 }
 
-export async function changeThreshold({ user, studyId, threshold }: { user: { id: number; role: Role }; studyId: number; threshold: SettingsChange }): Promise<CalibrationSettings> {
+export async function changeThreshold({
+  user,
+  studyId,
+  threshold,
+}: {
+  user: { id: number; role: Role };
+  studyId: number;
+  threshold: SettingsChange;
+}): Promise<CalibrationSettings> {
   const access = await findStudyAccess({ user, studyId });
   if (!access) throw notFound('The study');
   if (!leadsStudy(access)) throw forbidden('changing the calibration threshold (only the study’s leads may)');
   await setCalibrationThreshold({ studyId, threshold });
   const settings = await calibrationSettings({ studyId });
-  await recordAudit({ actorId: user.id, action: 'calibration.threshold', targetType: 'study', targetId: studyId, studyId, detail: settings });
+  await recordAudit({
+    actorId: user.id,
+    action: 'calibration.threshold',
+    targetType: 'study',
+    targetId: studyId,
+    studyId,
+    detail: settings,
+  });
   // the daily re-calibration check runs while any study has an interval
   if (settings.recalibrationWeeks != null) await inTransaction((trx) => ensureRecalibrationJob(trx));
   return settings;

@@ -11,5 +11,10 @@ import { RECALIBRATE } from './payload';
 export async function ensureRecalibrationJob(db: Knex, { delayMs }: { delayMs?: number } = {}): Promise<number> {
   const queued = await db('jobs').where({ kind: RECALIBRATE, status: 'queued' }).orderBy('id').first('id');
   if (queued) return Number(queued.id);
-  return enqueueJob(db, { kind: RECALIBRATE, payload: { repeat: true }, priority: -1, delayMs: delayMs ?? msUntilNextHourUtc(overdueHourUtc()) });
+  return enqueueJob(db, {
+    kind: RECALIBRATE,
+    payload: { repeat: true },
+    priority: -1,
+    delayMs: delayMs ?? msUntilNextHourUtc(overdueHourUtc()),
+  });
 }

@@ -5,7 +5,11 @@
  */
 import { z } from 'zod';
 
-const id = (what: string) => z.coerce.number({ message: `Choose ${what}.` }).int({ message: `Choose ${what}.` }).positive({ message: `Choose ${what}.` });
+const id = (what: string) =>
+  z.coerce
+    .number({ message: `Choose ${what}.` })
+    .int({ message: `Choose ${what}.` })
+    .positive({ message: `Choose ${what}.` });
 
 /** /api/studies/:id/calibration… */
 export const studyParamsSchema = z.object({ id: id('a study') });
@@ -21,7 +25,13 @@ export const setReferenceSchema = z
   .object({
     componentId: id('a component'),
     label: z.string().trim().min(1, { message: 'Choose a label.' }).max(32),
-    noiseKind: z.string().trim().max(32).nullable().optional().transform((v) => v || null),
+    noiseKind: z
+      .string()
+      .trim()
+      .max(32)
+      .nullable()
+      .optional()
+      .transform((v) => v || null),
   })
   .strict();
 export const referenceSchema = z.union([adoptReferencesSchema, setReferenceSchema]);
@@ -32,7 +42,12 @@ export const assignCalibrationSchema = z.object({ raterId: id('a rater') }).stri
 /** POST /api/studies/:id/calibration/certifications — the lead's verdict on a rater (scores stored with it). */
 export const certifySchema = z.object({ userId: id('a rater'), passed: z.boolean({ message: 'Say whether the rater passed.' }) }).strict();
 
-const share = (what: string) => z.number({ message: `${what}: a number from 0 to 1, or null for no threshold.` }).min(0, { message: `${what} is at least 0.` }).max(1, { message: `${what} is at most 1.` }).nullable();
+const share = (what: string) =>
+  z
+    .number({ message: `${what}: a number from 0 to 1, or null for no threshold.` })
+    .min(0, { message: `${what} is at least 0.` })
+    .max(1, { message: `${what} is at most 1.` })
+    .nullable();
 
 /**
  * PUT /api/studies/:id/calibration/threshold — what a rater must reach on the calibration set before
@@ -43,7 +58,13 @@ export const calibrationThresholdSchema = z
   .object({
     minAc1: share('Minimum AC1'),
     minSensitivity: share('Minimum noise sensitivity'),
-    setName: z.string({ message: 'The calibration set’s name is text.' }).trim().max(80, { message: 'Name the calibration set in at most 80 characters.' }).nullable().optional().transform((v) => (v === undefined ? undefined : v || null)),
+    setName: z
+      .string({ message: 'The calibration set’s name is text.' })
+      .trim()
+      .max(80, { message: 'Name the calibration set in at most 80 characters.' })
+      .nullable()
+      .optional()
+      .transform((v) => (v === undefined ? undefined : v || null)),
     recalibrationWeeks: z
       .number({ message: 'Re-calibration: a whole number of weeks from 1 to 104, or null for none.' })
       .int({ message: 'Re-calibration: a whole number of weeks from 1 to 104, or null for none.' })

@@ -12,7 +12,17 @@ import { calibrationRunInfo, clearCalibrationFlag, scoreRater } from '@/lib/db/q
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { AppError, forbidden, notFound } from '@/lib/errors';
 
-export async function unmarkCalibrationRun({ user, studyId, runId, ip = null }: { user: { id: number; role: Role }; studyId: number; runId: number; ip?: string | null }) {
+export async function unmarkCalibrationRun({
+  user,
+  studyId,
+  runId,
+  ip = null,
+}: {
+  user: { id: number; role: Role };
+  studyId: number;
+  runId: number;
+  ip?: string | null;
+}) {
   const access = await findStudyAccess({ user, studyId });
   if (!access) throw notFound('The study');
   if (!leadsStudy(access)) throw forbidden('changing the calibration set (only the study’s leads may)');
@@ -22,9 +32,23 @@ export async function unmarkCalibrationRun({ user, studyId, runId, ip = null }: 
   const scoresBefore = [];
   for (const raterId of run.raterIds) {
     const { score, submittedRuns } = await scoreRater({ studyId, userId: raterId });
-    scoresBefore.push({ raterId, submittedRuns, n: score.n, gwetAC1: score.gwetAC1.value, noiseSensitivity: score.noise.sensitivity.value });
+    scoresBefore.push({
+      raterId,
+      submittedRuns,
+      n: score.n,
+      gwetAC1: score.gwetAC1.value,
+      noiseSensitivity: score.noise.sensitivity.value,
+    });
   }
   await clearCalibrationFlag({ studyId, runId });
-  await recordAudit({ actorId: user.id, action: 'calibration.run_unmarked', targetType: 'run', targetId: runId, studyId, detail: { run: run.name, scoresBefore }, ip });
+  await recordAudit({
+    actorId: user.id,
+    action: 'calibration.run_unmarked',
+    targetType: 'run',
+    targetId: runId,
+    studyId,
+    detail: { run: run.name, scoresBefore },
+    ip,
+  });
   return { runId, unmarked: true };
 }

@@ -19,7 +19,10 @@ export async function recomputeDecision(trx: Knex.Transaction | Knex, { componen
   if (!ctx) return;
   // The row exists before it is locked: a locking read of a missing row takes a gap lock, and votes
   // on neighbouring components would then deadlock on their inserts.
-  const [inserted] = await trx('decisions').insert({ component_id: componentId, run_id: ctx.runId, method: 'pending' }).onConflict('component_id').ignore();
+  const [inserted] = await trx('decisions')
+    .insert({ component_id: componentId, run_id: ctx.runId, method: 'pending' })
+    .onConflict('component_id')
+    .ignore();
   const created = Number(inserted) > 0;
   const existing = await trx('decisions').where({ component_id: componentId }).forUpdate().first('id', 'method');
   if (existing.method === 'reconciled' || existing.method === 'override') return;
@@ -44,7 +47,9 @@ export async function recomputeDecision(trx: Knex.Transaction | Knex, { componen
     decided_at: decision.method === 'pending' ? null : trx.fn.now(3),
   };
   // a decision created just now keeps its first version
-  await trx('decisions').where({ id: existing.id }).update(created ? row : { ...row, version: trx.raw('version + 1') });
+  await trx('decisions')
+    .where({ id: existing.id })
+    .update(created ? row : { ...row, version: trx.raw('version + 1') });
 }
 
 /** Recomputes every component of a run (after assignments change). */

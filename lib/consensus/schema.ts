@@ -6,7 +6,12 @@ export const leadDecisionSchema = z.object({
   componentId: z.coerce.number().int().positive(),
   label: z.string().min(1).max(32),
   noiseKind: z.string().min(1).max(32).nullish(),
-  reason: z.string().trim().min(3, { message: 'Give a reason (a few words) — it goes into the audit log and the export.' }).max(2000).refine(...wellFormed('The reason')),
+  reason: z
+    .string()
+    .trim()
+    .min(3, { message: 'Give a reason (a few words) — it goes into the audit log and the export.' })
+    .max(2000)
+    .refine(...wellFormed('The reason')),
   /** The decision's version the lead saw (reconcile list); a decision changed since then is refused with 409. */
   baseVersion: z.coerce.number().int().min(0).max(2_147_483_647).optional(),
 });

@@ -69,8 +69,7 @@ export function resolveDbSettings(env: Env = process.env): DbSettings {
   if (!/^[A-Za-z0-9_$-]{1,64}$/.test(settings.database)) {
     throw new Error(`database name "${settings.database}" is not a plain identifier`);
   }
-  const displayUrl =
-    `mysql://${encodeURIComponent(settings.user)}:***@${settings.host}:${settings.port}/` + settings.database;
+  const displayUrl = `mysql://${encodeURIComponent(settings.user)}:***@${settings.host}:${settings.port}/` + settings.database;
   return { ...settings, displayUrl };
 }
 
@@ -91,10 +90,7 @@ export function unreachableMessage(s: Pick<DbSettings, 'host' | 'port' | 'extern
  * holding JSON, another driver setting) read it with `parseJson` from '@/lib/db/knex', which
  * passes parsed values through. Writes must be strings: `toJson(value)`.
  */
-export function typeCast(
-  field: { type: string; length: number; string(): string | null },
-  next: () => unknown,
-): unknown {
+export function typeCast(field: { type: string; length: number; string(): string | null }, next: () => unknown): unknown {
   if (field.type === 'TINY' && field.length === 1) {
     const v = field.string();
     return v === null ? null : v === '1';

@@ -9,14 +9,7 @@
  * them with `toJson`; DATETIME(3) columns are UTC and arrive as Date objects.
  */
 import knex, { type Knex } from 'knex';
-import {
-  connectionOptions,
-  knexLog,
-  poolOptions,
-  resolveDbSettings,
-  unreachableMessage,
-  type DbSettings,
-} from './config';
+import { connectionOptions, knexLog, poolOptions, resolveDbSettings, unreachableMessage, type DbSettings } from './config';
 
 /** Creates a separate knex instance (scripts and tests that need another database). */
 export function createDb(settings: DbSettings = resolveDbSettings()): Knex {

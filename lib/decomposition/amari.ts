@@ -12,7 +12,8 @@ export function amariIndex(p: Float64Array | number[][], k?: number): number {
   if (n < 2) return 0;
   let e = 0;
   for (let i = 0; i < n; i++) {
-    let mx = 0, s = 0;
+    let mx = 0,
+      s = 0;
     for (let j = 0; j < n; j++) {
       const v = at(i, j);
       s += v;
@@ -21,7 +22,8 @@ export function amariIndex(p: Float64Array | number[][], k?: number): number {
     e += s / mx - 1;
   }
   for (let j = 0; j < n; j++) {
-    let mx = 0, s = 0;
+    let mx = 0,
+      s = 0;
     for (let i = 0; i < n; i++) {
       const v = at(i, j);
       s += v;

@@ -35,11 +35,7 @@ export const DEFAULT_MASK_THRESHOLD_FRACTION = 0.2;
  * Layout: `mean` is a full volume, index x + nx·(y + ny·z) (x fastest); intensities in the
  * image's own units. Returns a Uint8Array of the same layout, 1 = brain.
  */
-export function autoBrainMask(
-  mean: Float32Array,
-  dims: [number, number, number],
-  opts: { thresholdFraction?: number } = {},
-): Uint8Array {
+export function autoBrainMask(mean: Float32Array, dims: [number, number, number], opts: { thresholdFraction?: number } = {}): Uint8Array {
   const n = volumeSize(dims);
   if (mean.length !== n) {
     throw new BrainMaskError(
@@ -76,10 +72,7 @@ export function autoBrainMask(
   }
   const { labels, sizes } = labelComponents(candidate, dims, 6);
   if (sizes.length === 0) {
-    throw new BrainMaskError(
-      'empty_mask',
-      'No voxel lies above the automatic threshold; lower thresholdFraction or upload a brain mask.',
-    );
+    throw new BrainMaskError('empty_mask', 'No voxel lies above the automatic threshold; lower thresholdFraction or upload a brain mask.');
   }
   let best = 0;
   for (let l = 1; l < sizes.length; l++) if (sizes[l] > sizes[best]) best = l;

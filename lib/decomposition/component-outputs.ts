@@ -29,27 +29,26 @@ export function componentSpectra(r: DecompositionResult): { frequencies: Float64
  * (dropped initial volumes already removed, see dropInitialVolumes), so it lines up with the time
  * courses.
  */
-export function componentFeatures(
-  r: DecompositionResult, motion?: MotionParams,
-  spectra = componentSpectra(r),
-): ComponentFeatures[] {
+export function componentFeatures(r: DecompositionResult, motion?: MotionParams, spectra = componentSpectra(r)): ComponentFeatures[] {
   const m = motion;
   const V = r.voxelsInMask;
   const out: ComponentFeatures[] = [];
   const edge = brainEdge(r.maskIndices, r.dims, { meanImage: r.meanImage });
   for (let c = 0; c < r.k; c++) {
-    out.push(computeComponentFeatures({
-      map: r.maps.subarray(c * V, (c + 1) * V),
-      maskIndices: r.maskIndices,
-      dims: r.dims,
-      timecourse: componentTimecourse(r, c),
-      trSeconds: r.trSeconds,
-      motion: m,
-      spectrum: { frequencies: spectra.frequencies, power: spectra.power[c]! },
-      meanImage: r.meanImage,
-      edge,
-      reproducibility: r.reproducibility ? r.reproducibility[c]! : null,
-    }));
+    out.push(
+      computeComponentFeatures({
+        map: r.maps.subarray(c * V, (c + 1) * V),
+        maskIndices: r.maskIndices,
+        dims: r.dims,
+        timecourse: componentTimecourse(r, c),
+        trSeconds: r.trSeconds,
+        motion: m,
+        spectrum: { frequencies: spectra.frequencies, power: spectra.power[c]! },
+        meanImage: r.meanImage,
+        edge,
+        reproducibility: r.reproducibility ? r.reproducibility[c]! : null,
+      }),
+    );
   }
   return out;
 }
@@ -60,7 +59,8 @@ export function mapsVolume(r: DecompositionResult): Float32Array {
   const V = r.voxelsInMask;
   const out = new Float32Array(n * r.k);
   for (let c = 0; c < r.k; c++) {
-    const so = c * V, vo = c * n;
+    const so = c * V,
+      vo = c * n;
     for (let j = 0; j < V; j++) out[vo + r.maskIndices[j]!] = r.maps[so + j]!;
   }
   return out;
@@ -81,7 +81,11 @@ export function decompositionSummary(r: DecompositionResult) {
     dimensionEstimates: r.dimension.estimates,
     dimensionCurve: r.dimension.curve,
     iidSubsampling: r.iidSubsampling
-      ? { ...r.iidSubsampling, lagCorrelation: r.iidSubsampling.lagCorrelation.map(round), entropyDeficit: r.iidSubsampling.entropyDeficit.map(round) }
+      ? {
+          ...r.iidSubsampling,
+          lagCorrelation: r.iidSubsampling.lagCorrelation.map(round),
+          entropyDeficit: r.iidSubsampling.entropyDeficit.map(round),
+        }
       : null,
     effectiveSamples: round(r.dimension.effectiveSamples),
     smoothnessFwhmVoxels: r.smoothness.fwhmVoxels.map(round),
@@ -94,9 +98,7 @@ export function decompositionSummary(r: DecompositionResult) {
     converged: r.converged,
     /** Per component (component order), 0–1; null when restarts were off. */
     reproducibility: r.reproducibility ? Array.from(r.reproducibility, (v) => Number(v.toFixed(4))) : null,
-    restarts: r.restarts
-      ? { ...r.restarts, centrotypeSimilarity: r.restarts.centrotypeSimilarity.map((v) => Number(v.toFixed(4))) }
-      : null,
+    restarts: r.restarts ? { ...r.restarts, centrotypeSimilarity: r.restarts.centrotypeSimilarity.map((v) => Number(v.toFixed(4))) } : null,
     warnings: r.warnings,
     seed: r.seed,
     requestedSeed: r.requestedSeed,

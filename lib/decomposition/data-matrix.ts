@@ -55,7 +55,9 @@ export interface DataMatrix {
  * accumulation.
  */
 export function buildDataMatrix(
-  image: RunImage, indices: Int32Array, drop: number,
+  image: RunImage,
+  indices: Int32Array,
+  drop: number,
   opts: { detrend: boolean; varianceNorm: boolean; meanAccumulator?: { sum: Float64Array; nonFinite: Uint8Array } },
 ): DataMatrix {
   const T = image.nt - drop;
@@ -111,7 +113,8 @@ export function buildDataMatrix(
     if (sd[j]! > 1e-6 * (Math.abs(mean[j]!) + 1e-12) && sd[j]! > 0) keep.push(j);
   }
   const zeroVarianceVoxels = V - keep.length;
-  if (keep.length === 0) throw new DecompositionError('empty_mask', 'Every in-mask voxel has a constant time series; there is nothing to decompose.');
+  if (keep.length === 0)
+    throw new DecompositionError('empty_mask', 'Every in-mask voxel has a constant time series; there is nothing to decompose.');
   const scale = new Float64Array(V).fill(1);
   if (opts.varianceNorm) for (let j = 0; j < V; j++) scale[j] = sd[j]! > 0 ? 1 / sd[j]! : 1;
   let xs = x;
@@ -120,7 +123,8 @@ export function buildDataMatrix(
     // In-place forward compaction: the write position never passes the read position.
     const V2 = keep.length;
     for (let t = 0; t < T; t++) {
-      const src = t * V, dst = t * V2;
+      const src = t * V,
+        dst = t * V2;
       for (let q = 0; q < V2; q++) x[dst + q] = x[src + keep[q]!]! * scale[keep[q]!]!;
     }
     xs = x.subarray(0, T * V2);

@@ -18,8 +18,8 @@ export const MAX_COMPONENTS = 100;
  */
 export function logGamma(x: number): number {
   const c = [
-    0.99999999999980993, 676.5203681218851, -1259.1392167224028, 771.32342877765313, -176.61502916214059,
-    12.507343278686905, -0.13857109526572012, 9.9843695780195716e-6, 1.5056327351493116e-7,
+    0.99999999999980993, 676.5203681218851, -1259.1392167224028, 771.32342877765313, -176.61502916214059, 12.507343278686905,
+    -0.13857109526572012, 9.9843695780195716e-6, 1.5056327351493116e-7,
   ];
   if (x < 0.5) return Math.log(Math.PI / Math.abs(Math.sin(Math.PI * x))) - logGamma(1 - x);
   const xm = x - 1;
@@ -89,7 +89,12 @@ export function minkaDimension(spectrum: ArrayLike<number>, n: number, maxRank =
  * AIC(k) = 2 L(k) + 2 k (2p − k); MDL(k) = L(k) + ½ k (2p − k) ln N. Returns the minimising k
  * (at least 1) among k ≤ maxRank. spectrum: descending eigenvalues, all > 0; n: samples.
  */
-export function informationCriterionDimension(spectrum: ArrayLike<number>, n: number, criterion: 'aic' | 'mdl', maxRank = Infinity): number {
+export function informationCriterionDimension(
+  spectrum: ArrayLike<number>,
+  n: number,
+  criterion: 'aic' | 'mdl',
+  maxRank = Infinity,
+): number {
   const scores = informationCriterionScores(spectrum, n, criterion, maxRank);
   let best = 1;
   for (let k = 2; k < scores.length; k++) if (scores[k]! < scores[best]!) best = k;
@@ -97,7 +102,12 @@ export function informationCriterionDimension(spectrum: ArrayLike<number>, n: nu
 }
 
 /** AIC(k) or MDL(k) of informationCriterionDimension for k = 1 … min(p − 1, maxRank) (index k; index 0 unused, NaN). */
-export function informationCriterionScores(spectrum: ArrayLike<number>, n: number, criterion: 'aic' | 'mdl', maxRank = Infinity): Float64Array {
+export function informationCriterionScores(
+  spectrum: ArrayLike<number>,
+  n: number,
+  criterion: 'aic' | 'mdl',
+  maxRank = Infinity,
+): Float64Array {
   const p = spectrum.length;
   const out = new Float64Array(Math.max(2, Math.min(p - 1, maxRank) + 1)).fill(NaN);
   // Suffix sums of λ and ln λ give each L(k) in O(1).
@@ -120,7 +130,8 @@ export function informationCriterionScores(spectrum: ArrayLike<number>, n: numbe
 
 /** Smallest k whose leading eigenvalues hold at least `fraction` of the total (0 < fraction ≤ 1). */
 export function varianceFractionDimension(spectrum: ArrayLike<number>, fraction: number): number {
-  if (!(fraction > 0 && fraction <= 1)) throw new DecompositionError('bad_option', `A variance fraction must lie in (0, 1]; got ${fraction}.`);
+  if (!(fraction > 0 && fraction <= 1))
+    throw new DecompositionError('bad_option', `A variance fraction must lie in (0, 1]; got ${fraction}.`);
   let total = 0;
   for (let i = 0; i < spectrum.length; i++) total += spectrum[i]!;
   let acc = 0;
@@ -191,9 +202,20 @@ export function chooseDimension(spectrum: Float64Array, opts: DimensionInput): D
     if (!Number.isInteger(k) || k < 1 || k > rank) {
       throw new DecompositionError('bad_option', `components must be an integer from 1 to ${rank} (the data's rank); got ${k}.`);
     }
-    return { k, method: 'fixed', estimated: k, range: [1, rank], atBound: false, effectiveSamples: opts.effectiveSamples, iidSamples, estimates: {}, curve: [] };
+    return {
+      k,
+      method: 'fixed',
+      estimated: k,
+      range: [1, rank],
+      atBound: false,
+      effectiveSamples: opts.effectiveSamples,
+      iidSamples,
+      estimates: {},
+      curve: [],
+    };
   }
-  if (rank < 3) throw new DecompositionError('rank_deficient', `The data have numerical rank ${rank}; at least 3 independent time points are needed.`);
+  if (rank < 3)
+    throw new DecompositionError('rank_deficient', `The data have numerical rank ${rank}; at least 3 independent time points are needed.`);
   const s = spectrum.subarray(0, rank);
   const n = opts.effectiveSamples;
   const argmin = (c: Float64Array) => {
@@ -230,7 +252,10 @@ export function chooseDimension(spectrum: Float64Array, opts: DimensionInput): D
     const sign = m === 'laplace' ? -1 : 1;
     curve = Array.from(curves[m]!.subarray(1), (v) => Number((sign * v).toPrecision(8)));
   } else {
-    throw new DecompositionError('bad_option', `Unknown dimensionality method ${JSON.stringify(m)}; use iid-mdl, iid-aic, laplace, aic, mdl or {variance: F}.`);
+    throw new DecompositionError(
+      'bad_option',
+      `Unknown dimensionality method ${JSON.stringify(m)}; use iid-mdl, iid-aic, laplace, aic, mdl or {variance: F}.`,
+    );
   }
   const k = Math.min(hi, Math.max(lo, estimated));
   return { k, method, estimated, range: [lo, hi], atBound: estimated >= hi, effectiveSamples: n, iidSamples, estimates, curve };

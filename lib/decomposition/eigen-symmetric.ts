@@ -23,7 +23,7 @@ function tred2(n: number, e: Float64Array, d: Float64Array, V: Float64Array): vo
   let f: number, g: number, h: number, i: number, j: number, k: number, hh: number, scale: number;
 
   for (j = 0; j < n; j++) {
-    d[j] = V[(j) * n + (n - 1)];
+    d[j] = V[j * n + (n - 1)];
   }
 
   for (i = n - 1; i > 0; i--) {
@@ -36,9 +36,9 @@ function tred2(n: number, e: Float64Array, d: Float64Array, V: Float64Array): vo
     if (scale === 0) {
       e[i] = d[i - 1];
       for (j = 0; j < i; j++) {
-        d[j] = V[(j) * n + (i - 1)];
-        V[(j) * n + (i)] = 0;
-        V[(i) * n + (j)] = 0;
+        d[j] = V[j * n + (i - 1)];
+        V[j * n + i] = 0;
+        V[i * n + j] = 0;
       }
     } else {
       for (k = 0; k < i; k++) {
@@ -61,11 +61,11 @@ function tred2(n: number, e: Float64Array, d: Float64Array, V: Float64Array): vo
 
       for (j = 0; j < i; j++) {
         f = d[j];
-        V[(i) * n + (j)] = f;
-        g = e[j] + V[(j) * n + (j)] * f;
+        V[i * n + j] = f;
+        g = e[j] + V[j * n + j] * f;
         for (k = j + 1; k <= i - 1; k++) {
-          g += V[(j) * n + (k)] * d[k];
-          e[k] += V[(j) * n + (k)] * f;
+          g += V[j * n + k] * d[k];
+          e[k] += V[j * n + k] * f;
         }
         e[j] = g;
       }
@@ -85,43 +85,43 @@ function tred2(n: number, e: Float64Array, d: Float64Array, V: Float64Array): vo
         f = d[j];
         g = e[j];
         for (k = j; k <= i - 1; k++) {
-          V[(j) * n + (k)] = V[(j) * n + (k)] - (f * e[k] + g * d[k]);
+          V[j * n + k] = V[j * n + k] - (f * e[k] + g * d[k]);
         }
-        d[j] = V[(j) * n + (i - 1)];
-        V[(j) * n + (i)] = 0;
+        d[j] = V[j * n + (i - 1)];
+        V[j * n + i] = 0;
       }
     }
     d[i] = h;
   }
 
   for (i = 0; i < n - 1; i++) {
-    V[(i) * n + (n - 1)] = V[(i) * n + (i)];
-    V[(i) * n + (i)] = 1;
+    V[i * n + (n - 1)] = V[i * n + i];
+    V[i * n + i] = 1;
     h = d[i + 1];
     if (h !== 0) {
       for (k = 0; k <= i; k++) {
-        d[k] = V[(i + 1) * n + (k)] / h;
+        d[k] = V[(i + 1) * n + k] / h;
       }
 
       for (j = 0; j <= i; j++) {
         g = 0;
         for (k = 0; k <= i; k++) {
-          g += V[(i + 1) * n + (k)] * V[(j) * n + (k)];
+          g += V[(i + 1) * n + k] * V[j * n + k];
         }
         for (k = 0; k <= i; k++) {
-          V[(j) * n + (k)] = V[(j) * n + (k)] - g * d[k];
+          V[j * n + k] = V[j * n + k] - g * d[k];
         }
       }
     }
 
     for (k = 0; k <= i; k++) {
-      V[(i + 1) * n + (k)] = 0;
+      V[(i + 1) * n + k] = 0;
     }
   }
 
   for (j = 0; j < n; j++) {
-    d[j] = V[(j) * n + (n - 1)];
-    V[(j) * n + (n - 1)] = 0;
+    d[j] = V[j * n + (n - 1)];
+    V[j * n + (n - 1)] = 0;
   }
 
   V[(n - 1) * n + (n - 1)] = 1;
@@ -195,9 +195,9 @@ function tql2(n: number, e: Float64Array, d: Float64Array, V: Float64Array): voi
           d[i + 1] = h + s * (c * g + s * d[i]);
 
           for (k = 0; k < n; k++) {
-            h = V[(i + 1) * n + (k)];
-            V[(i + 1) * n + (k)] = s * V[(i) * n + (k)] + c * h;
-            V[(i) * n + (k)] = c * V[(i) * n + (k)] - s * h;
+            h = V[(i + 1) * n + k];
+            V[(i + 1) * n + k] = s * V[i * n + k] + c * h;
+            V[i * n + k] = c * V[i * n + k] - s * h;
           }
         }
 
@@ -224,9 +224,9 @@ function tql2(n: number, e: Float64Array, d: Float64Array, V: Float64Array): voi
       d[k] = d[i];
       d[i] = p;
       for (j = 0; j < n; j++) {
-        p = V[(i) * n + (j)];
-        V[(i) * n + (j)] = V[(k) * n + (j)];
-        V[(k) * n + (j)] = p;
+        p = V[i * n + j];
+        V[i * n + j] = V[k * n + j];
+        V[k * n + j] = p;
       }
     }
   }

@@ -63,7 +63,8 @@ export function symmetricDecorrelation(w: Float64Array, k: number): Float64Array
   for (let i = 0; i < k; i++) {
     for (let j = i; j < k; j++) {
       let s = 0;
-      const oi = i * k, oj = j * k;
+      const oi = i * k,
+        oj = j * k;
       for (let l = 0; l < k; l++) s += w[oi + l]! * w[oj + l]!;
       m[i * k + j] = s;
       m[j * k + i] = s;
@@ -77,7 +78,8 @@ export function symmetricDecorrelation(w: Float64Array, k: number): Float64Array
     const sc = 1 / Math.sqrt(Math.sqrt(Math.max(values[l]!, 1e-300)));
     for (let i = 0; i < k; i++) u[i] = vectors[l * k + i]! * sc;
     for (let i = 0; i < k; i++) {
-      const ui = u[i]!, o = i * k;
+      const ui = u[i]!,
+        o = i * k;
       for (let j = i; j < k; j++) r[o + j] += ui * u[j]!;
     }
   }
@@ -86,7 +88,8 @@ export function symmetricDecorrelation(w: Float64Array, k: number): Float64Array
   for (let i = 0; i < k; i++) {
     const o = i * k;
     for (let l = 0; l < k; l++) {
-      const ril = r[o + l]!, ol = l * k;
+      const ril = r[o + l]!,
+        ol = l * k;
       for (let j = 0; j < k; j++) out[o + j] += ril * w[ol + j]!;
     }
   }
@@ -111,9 +114,11 @@ export async function fastIca(z: Float32Array, k: number, V: number, pool: Kerne
   const maxIter = opts.maxIter ?? 200;
   const seed = (opts.seed ?? 1) >>> 0;
   const retry = opts.retry ?? true;
-  if (opts.init && opts.init.length !== k * k) throw new DecompositionError('bad_option', `init must hold k × k = ${k * k} values; got ${opts.init.length}.`);
+  if (opts.init && opts.init.length !== k * k)
+    throw new DecompositionError('bad_option', `init must hold k × k = ${k * k} values; got ${opts.init.length}.`);
   if (!(tol > 0)) throw new DecompositionError('bad_option', `tol must be positive; got ${tol}.`);
-  if (!(Number.isInteger(maxIter) && maxIter >= 1)) throw new DecompositionError('bad_option', `maxIter must be a positive integer; got ${maxIter}.`);
+  if (!(Number.isInteger(maxIter) && maxIter >= 1))
+    throw new DecompositionError('bad_option', `maxIter must be a positive integer; got ${maxIter}.`);
 
   const warm = opts.warmStartVoxels ?? 32768;
   // Warm start on an evenly strided voxel subset when the data are much larger than it.
@@ -124,7 +129,8 @@ export async function fastIca(z: Float32Array, k: number, V: number, pool: Kerne
     Vs = Math.ceil(V / stride);
     zSub = sharedFloat32(k * Vs);
     for (let i = 0; i < k; i++) {
-      const src = i * V, dst = i * Vs;
+      const src = i * V,
+        dst = i * Vs;
       for (let q = 0; q < Vs; q++) zSub[dst + q] = z[src + q * stride]!;
     }
   }
@@ -155,14 +161,30 @@ export async function fastIca(z: Float32Array, k: number, V: number, pool: Kerne
     iterations += full.iterations;
     attempts = 2;
   }
-  return { w: full.w, iterations, warmStartIterations: warmIterations, warmStartVoxels: zSub ? Vs : 0, converged: full.converged, seed, attempts };
+  return {
+    w: full.w,
+    iterations,
+    warmStartIterations: warmIterations,
+    warmStartVoxels: zSub ? Vs : 0,
+    converged: full.converged,
+    seed,
+    attempts,
+  };
 }
 
 let iterationRuns = 0;
 
 /** Fixed-point iterations from w until convergence or maxIter (see fastIca). */
 async function iterateFastIca(
-  z: Float32Array, k: number, V: number, pool: KernelPool, w0: Float64Array, code: number, alpha: number, tol: number, maxIter: number,
+  z: Float32Array,
+  k: number,
+  V: number,
+  pool: KernelPool,
+  w0: Float64Array,
+  code: number,
+  alpha: number,
+  tol: number,
+  maxIter: number,
   onIteration?: (iteration: number, change: number) => void,
 ): Promise<{ w: Float64Array; iterations: number; converged: boolean }> {
   const parts = pool.partition(V);

@@ -14,7 +14,8 @@ export interface FeatureHint {
 
 export const NOT_AVAILABLE = '—';
 
-const SPATIAL_UNDEFINED = 'No voxels stand out from the rest of this map (fewer than 10 beyond its adaptive threshold), so where its strong voxels lie is undefined. Broad, even maps such as slow drifts often look like this.';
+const SPATIAL_UNDEFINED =
+  'No voxels stand out from the rest of this map (fewer than 10 beyond its adaptive threshold), so where its strong voxels lie is undefined. Broad, even maps such as slow drifts often look like this.';
 const MOTION_UNDEFINED = 'The run has no motion table, or the series is constant.';
 
 /** Fixed-decimals formatter; null or non-finite values show as a dash. */
@@ -76,7 +77,7 @@ export const featureHints: Record<keyof ComponentFeatures, FeatureHint> = {
   mapThresholdZ: {
     label: 'Map threshold',
     unit: '|z|',
-    hint: 'The |z| this map\'s voxels must pass to count as strong (the spatial features above use it). It adapts to each map: 2.5 robust SDs from the map\'s median.',
+    hint: "The |z| this map's voxels must pass to count as strong (the spatial features above use it). It adapts to each map: 2.5 robust SDs from the map's median.",
     whenUndefined: SPATIAL_UNDEFINED,
     format: fixed(2),
   },

@@ -202,9 +202,18 @@ export function highFrequencyFraction(frequencies: Float64Array, power: Float64A
   return total > 0 ? high / total : 0;
 }
 
-type SpatialFeatures = Pick<ComponentFeatures, 'edgeFraction' | 'clusterCount' | 'largestClusterVoxels' | 'largestClusterFraction' | 'mapThresholdZ'>;
+type SpatialFeatures = Pick<
+  ComponentFeatures,
+  'edgeFraction' | 'clusterCount' | 'largestClusterVoxels' | 'largestClusterFraction' | 'mapThresholdZ'
+>;
 
-const UNDEFINED_SPATIAL: SpatialFeatures = { edgeFraction: null, clusterCount: null, largestClusterVoxels: null, largestClusterFraction: null, mapThresholdZ: null };
+const UNDEFINED_SPATIAL: SpatialFeatures = {
+  edgeFraction: null,
+  clusterCount: null,
+  largestClusterVoxels: null,
+  largestClusterFraction: null,
+  mapThresholdZ: null,
+};
 
 /** Edge fraction and cluster features of a map on its adaptive threshold; see computeComponentFeatures. */
 function spatialFeatures(
@@ -412,8 +421,10 @@ export function stepScore(tc: ArrayLike<number>): number | null {
   }
   let best: number | null = null;
   for (let k = m; k <= n - m; k++) {
-    const nb = k, na = n - k;
-    const sb = s1[k], sa = s1[n] - s1[k];
+    const nb = k,
+      na = n - k;
+    const sb = s1[k],
+      sa = s1[n] - s1[k];
     const ssb = s2[k] - (sb * sb) / nb;
     const ssa = s2[n] - s2[k] - (sa * sa) / na;
     const pooled = Math.sqrt(Math.max(0, ssb + ssa) / (n - 2));
@@ -445,14 +456,17 @@ export function trendR2(tc: ArrayLike<number>): number | null {
   let qm = 0;
   for (let i = 0; i < n; i++) qm += q[i];
   qm /= n;
-  let q1 = 0, p11 = 0;
+  let q1 = 0,
+    p11 = 0;
   for (let i = 0; i < n; i++) {
     q[i] -= qm;
     q1 += q[i] * p1[i];
     p11 += p1[i] * p1[i];
   }
   for (let i = 0; i < n; i++) q[i] -= (q1 / p11) * p1[i];
-  let y1 = 0, y2 = 0, p22 = 0;
+  let y1 = 0,
+    y2 = 0,
+    p22 = 0;
   for (let i = 0; i < n; i++) {
     const y = tc[i] - mean;
     y1 += y * p1[i];

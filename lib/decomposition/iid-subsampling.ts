@@ -30,7 +30,15 @@ export interface IidSubsampling {
  * volume of the time-major T × V data x (demeaned per voxel, so products are covariances).
  */
 export function lagCorrelation(
-  x: Float32Array, T: number, V: number, lookup: Int32Array, maskIndices: Int32Array, dims: [number, number, number], axis: number, lag: number, maxVolumes = 24,
+  x: Float32Array,
+  T: number,
+  V: number,
+  lookup: Int32Array,
+  maskIndices: Int32Array,
+  dims: [number, number, number],
+  axis: number,
+  lag: number,
+  maxVolumes = 24,
 ): number {
   const size = dims[axis]!;
   const stride = axis === 0 ? 1 : axis === 1 ? dims[0] : dims[0] * dims[1];
@@ -48,7 +56,9 @@ export function lagCorrelation(
   }
   if (a.length < 10) return 0;
   const step = Math.max(1, Math.ceil(T / maxVolumes));
-  let sxy = 0, sxx = 0, syy = 0;
+  let sxy = 0,
+    sxx = 0,
+    syy = 0;
   for (let t = 0; t < T; t += step) {
     const off = t * V;
     for (let q = 0; q < a.length; q++) {
@@ -70,7 +80,15 @@ export function lagCorrelation(
  * (x − μ1ᵀ ≈ dewhitening·z, whitening.ts). Returns nS × V (nS ≤ maxVolumes evenly spaced volumes).
  */
 export function residualVolumes(
-  x: Float32Array, T: number, V: number, mu: Float64Array, z: Float32Array, dewhitening: Float64Array, kz: number, m: number, maxVolumes = 24,
+  x: Float32Array,
+  T: number,
+  V: number,
+  mu: Float64Array,
+  z: Float32Array,
+  dewhitening: Float64Array,
+  kz: number,
+  m: number,
+  maxVolumes = 24,
 ): { residual: Float32Array; volumes: number } {
   const step = Math.max(1, Math.ceil(T / maxVolumes));
   const times: number[] = [];
@@ -103,7 +121,12 @@ export function residualVolumes(
  * full-volume index.
  */
 export function iidSubsampling(
-  x: Float32Array, T: number, V: number, maskIndices: Int32Array, dims: [number, number, number], minSamples: number,
+  x: Float32Array,
+  T: number,
+  V: number,
+  maskIndices: Int32Array,
+  dims: [number, number, number],
+  minSamples: number,
 ): IidSubsampling {
   const [nx, ny, nz] = dims;
   const lookup = new Int32Array(nx * ny * nz).fill(-1);
@@ -129,7 +152,9 @@ export function iidSubsampling(
     const out: number[] = [];
     for (let j = 0; j < V; j++) {
       const lin = maskIndices[j]!;
-      const i = lin % nx, y = Math.floor(lin / nx) % ny, z = Math.floor(lin / (nx * ny));
+      const i = lin % nx,
+        y = Math.floor(lin / nx) % ny,
+        z = Math.floor(lin / (nx * ny));
       if ((i - off[0]!) % d[0] === 0 && (y - off[1]!) % d[1] === 0 && (z - off[2]!) % d[2] === 0) out.push(j);
     }
     return Int32Array.from(out);

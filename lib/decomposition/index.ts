@@ -3,8 +3,15 @@
 export { decomposeRun, type DecomposeInput, type DecomposeOptions, type DecompositionResult, type ProgressCallback } from './pipeline';
 export { DecompositionError, type DecompositionErrorCode } from './errors';
 export {
-  chooseDimension, minkaDimension, minkaLogEvidence, informationCriterionDimension, varianceFractionDimension,
-  numericalRank, logGamma, type DimMethod, type DimensionChoice,
+  chooseDimension,
+  minkaDimension,
+  minkaLogEvidence,
+  informationCriterionDimension,
+  varianceFractionDimension,
+  numericalRank,
+  logGamma,
+  type DimMethod,
+  type DimensionChoice,
 } from './dimensionality';
 export { estimateSmoothness, type SmoothnessEstimate } from './smoothness';
 export { temporalCovariance, type TemporalCovariance } from './covariance';
@@ -16,5 +23,12 @@ export { orientComponents, type OrientedComponents } from './orient';
 export { buildDataMatrix, meanImage, type DataMatrix, type RunImage } from './data-matrix';
 export { KernelPool, sharedFloat32, sharedFloat64, splitRange } from './worker-pool';
 export {
-  componentFeatures, componentSpectra, componentTimecourse, decompositionSummary, featuresTsv, mapsVolume, spectraTsv, timecoursesTsv,
+  componentFeatures,
+  componentSpectra,
+  componentTimecourse,
+  decompositionSummary,
+  featuresTsv,
+  mapsVolume,
+  spectraTsv,
+  timecoursesTsv,
 } from './component-outputs';

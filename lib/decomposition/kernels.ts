@@ -14,27 +14,77 @@ export function gramChunk(x: Float32Array, T: number, V: number, v0: number, v1:
   for (let vb = v0; vb < v1; vb += NB) {
     const ve = vb + NB < v1 ? vb + NB : v1;
     for (let a = 0; a < T4; a += 4) {
-      const ra0 = a * V, ra1 = ra0 + V, ra2 = ra1 + V, ra3 = ra2 + V;
+      const ra0 = a * V,
+        ra1 = ra0 + V,
+        ra2 = ra1 + V,
+        ra3 = ra2 + V;
       for (let b = a; b < T4; b += 4) {
-        const rb0 = b * V, rb1 = rb0 + V, rb2 = rb1 + V, rb3 = rb2 + V;
-        let s00 = 0, s01 = 0, s02 = 0, s03 = 0, s10 = 0, s11 = 0, s12 = 0, s13 = 0;
-        let s20 = 0, s21 = 0, s22 = 0, s23 = 0, s30 = 0, s31 = 0, s32 = 0, s33 = 0;
+        const rb0 = b * V,
+          rb1 = rb0 + V,
+          rb2 = rb1 + V,
+          rb3 = rb2 + V;
+        let s00 = 0,
+          s01 = 0,
+          s02 = 0,
+          s03 = 0,
+          s10 = 0,
+          s11 = 0,
+          s12 = 0,
+          s13 = 0;
+        let s20 = 0,
+          s21 = 0,
+          s22 = 0,
+          s23 = 0,
+          s30 = 0,
+          s31 = 0,
+          s32 = 0,
+          s33 = 0;
         for (let v = vb; v < ve; v++) {
-          const x0 = x[ra0 + v], x1 = x[ra1 + v], x2 = x[ra2 + v], x3 = x[ra3 + v];
-          const y0 = x[rb0 + v], y1 = x[rb1 + v], y2 = x[rb2 + v], y3 = x[rb3 + v];
-          s00 += x0 * y0; s01 += x0 * y1; s02 += x0 * y2; s03 += x0 * y3;
-          s10 += x1 * y0; s11 += x1 * y1; s12 += x1 * y2; s13 += x1 * y3;
-          s20 += x2 * y0; s21 += x2 * y1; s22 += x2 * y2; s23 += x2 * y3;
-          s30 += x3 * y0; s31 += x3 * y1; s32 += x3 * y2; s33 += x3 * y3;
+          const x0 = x[ra0 + v],
+            x1 = x[ra1 + v],
+            x2 = x[ra2 + v],
+            x3 = x[ra3 + v];
+          const y0 = x[rb0 + v],
+            y1 = x[rb1 + v],
+            y2 = x[rb2 + v],
+            y3 = x[rb3 + v];
+          s00 += x0 * y0;
+          s01 += x0 * y1;
+          s02 += x0 * y2;
+          s03 += x0 * y3;
+          s10 += x1 * y0;
+          s11 += x1 * y1;
+          s12 += x1 * y2;
+          s13 += x1 * y3;
+          s20 += x2 * y0;
+          s21 += x2 * y1;
+          s22 += x2 * y2;
+          s23 += x2 * y3;
+          s30 += x3 * y0;
+          s31 += x3 * y1;
+          s32 += x3 * y2;
+          s33 += x3 * y3;
         }
         let o = a * T + b;
-        out[o] += s00; out[o + 1] += s01; out[o + 2] += s02; out[o + 3] += s03;
+        out[o] += s00;
+        out[o + 1] += s01;
+        out[o + 2] += s02;
+        out[o + 3] += s03;
         o += T;
-        out[o] += s10; out[o + 1] += s11; out[o + 2] += s12; out[o + 3] += s13;
+        out[o] += s10;
+        out[o + 1] += s11;
+        out[o + 2] += s12;
+        out[o + 3] += s13;
         o += T;
-        out[o] += s20; out[o + 1] += s21; out[o + 2] += s22; out[o + 3] += s23;
+        out[o] += s20;
+        out[o + 1] += s21;
+        out[o + 2] += s22;
+        out[o + 3] += s23;
         o += T;
-        out[o] += s30; out[o + 1] += s31; out[o + 2] += s32; out[o + 3] += s33;
+        out[o] += s30;
+        out[o + 1] += s31;
+        out[o + 2] += s32;
+        out[o + 3] += s33;
       }
     }
     // Remaining pairs touching the last T mod 4 time points.
@@ -58,8 +108,15 @@ export function gramChunk(x: Float32Array, T: number, V: number, v0: number, v1:
  * at a time.
  */
 export function projectChunk(
-  x: Float32Array, T: number, V: number, p: Float64Array, c: Float64Array, k: number,
-  v0: number, v1: number, z: Float32Array,
+  x: Float32Array,
+  T: number,
+  V: number,
+  p: Float64Array,
+  c: Float64Array,
+  k: number,
+  v0: number,
+  v1: number,
+  z: Float32Array,
 ): void {
   const NB = 256;
   const acc = new Float64Array(4 * NB);
@@ -100,8 +157,16 @@ export function projectChunk(
  * gp: Float64Array k (both accumulated, not cleared).
  */
 export function icaChunk(
-  z: Float32Array, k: number, V: number, w: Float64Array, contrast: number, alpha: number,
-  v0: number, v1: number, G: Float64Array, gp: Float64Array,
+  z: Float32Array,
+  k: number,
+  V: number,
+  w: Float64Array,
+  contrast: number,
+  alpha: number,
+  v0: number,
+  v1: number,
+  G: Float64Array,
+  gp: Float64Array,
 ): void {
   const NB = 256;
   const y = new Float64Array(k * NB);

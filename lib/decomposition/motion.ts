@@ -40,10 +40,7 @@ export function parseMotionFile(
     throw new MotionFileError('bad_option', `Motion column order must be 'rot-first' or 'trans-first', got '${String(opts.order)}'.`);
   }
   if (opts.rotationUnits !== 'radians' && opts.rotationUnits !== 'degrees') {
-    throw new MotionFileError(
-      'bad_option',
-      `Rotation units must be 'radians' or 'degrees', got '${String(opts.rotationUnits)}'.`,
-    );
+    throw new MotionFileError('bad_option', `Rotation units must be 'radians' or 'degrees', got '${String(opts.rotationUnits)}'.`);
   }
   // a cell is quoted back to the person, but never more than 40 characters of it (a 7 MB cell once was)
   const shownCell = (cell: string) => (cell.length > 40 ? `${cell.slice(0, 40)}… (${cell.length} characters)` : cell);

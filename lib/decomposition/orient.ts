@@ -22,7 +22,14 @@ export interface OrientedComponents {
  * s: unmixed maps, component-major Float32Array k × V; a: time courses T × k row-major;
  * totalSumSquares: Σ over voxels and volumes of the centred data squared.
  */
-export function orientComponents(s: Float32Array, a: Float64Array, k: number, V: number, T: number, totalSumSquares: number): OrientedComponents {
+export function orientComponents(
+  s: Float32Array,
+  a: Float64Array,
+  k: number,
+  V: number,
+  T: number,
+  totalSumSquares: number,
+): OrientedComponents {
   const mean = new Float64Array(k);
   const sd = new Float64Array(k);
   const skew = new Float64Array(k);
@@ -31,7 +38,8 @@ export function orientComponents(s: Float32Array, a: Float64Array, k: number, V:
     let m = 0;
     for (let v = 0; v < V; v++) m += s[o + v]!;
     m /= V;
-    let m2 = 0, m3 = 0;
+    let m2 = 0,
+      m3 = 0;
     for (let v = 0; v < V; v++) {
       const d = s[o + v]! - m;
       m2 += d * d;
@@ -62,7 +70,8 @@ export function orientComponents(s: Float32Array, a: Float64Array, k: number, V:
     const sign = skew[i]! < 0 ? -1 : 1;
     flipped.push(sign < 0);
     const scale = sd[i]! > 0 ? sd[i]! : 1;
-    const si = i * V, so = r * V;
+    const si = i * V,
+      so = r * V;
     for (let v = 0; v < V; v++) maps[so + v] = (sign * (s[si + v]! - mean[i]!)) / scale;
     for (let t = 0; t < T; t++) tcs[t * k + r] = sign * scale * a[t * k + i]!;
     outEv[r] = ev[i]!;

@@ -172,7 +172,11 @@ const MIN_TIMEPOINTS = 10;
  * from its last estimate and is then kept and flagged → maps oriented to a positive heavy tail,
  * ordered by variance explained, z-scored. See DecompositionResult for layouts.
  */
-export async function decomposeRun(input: DecomposeInput, options: DecomposeOptions = {}, onProgress?: ProgressCallback): Promise<DecompositionResult> {
+export async function decomposeRun(
+  input: DecomposeInput,
+  options: DecomposeOptions = {},
+  onProgress?: ProgressCallback,
+): Promise<DecompositionResult> {
   const t0 = performance.now();
   const seconds: Record<string, number> = {};
   let mark = t0;
@@ -190,35 +194,50 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
   const dimMethod = options.dimMethod ?? DEFAULT_DIM_METHOD;
   const restarts = options.restarts ?? DEFAULT_RESTARTS;
   const restartVoxels = options.restartVoxels ?? 16384;
-  if (!Number.isInteger(restarts) || restarts < 1 || restarts > 50) throw new DecompositionError('bad_option', `restarts must be a whole number from 1 to 50; got ${restarts}.`);
-  if (!Number.isInteger(restartVoxels) || restartVoxels < 0) throw new DecompositionError('bad_option', `restartVoxels must be a non-negative integer; got ${restartVoxels}.`);
+  if (!Number.isInteger(restarts) || restarts < 1 || restarts > 50)
+    throw new DecompositionError('bad_option', `restarts must be a whole number from 1 to 50; got ${restarts}.`);
+  if (!Number.isInteger(restartVoxels) || restartVoxels < 0)
+    throw new DecompositionError('bad_option', `restartVoxels must be a non-negative integer; got ${restartVoxels}.`);
   const requestedSeed = options.seed ?? 1;
   const contrast = options.contrast ?? 'logcosh';
   const tol = options.tol ?? 1e-4;
   const maxIter = options.maxIter ?? 200;
   if (!Number.isInteger(drop) || drop < 0) throw new DecompositionError('bad_option', `drop must be a non-negative integer; got ${drop}.`);
-  if (!Number.isInteger(requestedSeed) || requestedSeed < 0) throw new DecompositionError('bad_option', `seed must be a non-negative integer; got ${requestedSeed}.`);
+  if (!Number.isInteger(requestedSeed) || requestedSeed < 0)
+    throw new DecompositionError('bad_option', `seed must be a non-negative integer; got ${requestedSeed}.`);
   const T = image.nt - drop;
   if (T < MIN_TIMEPOINTS) {
-    throw new DecompositionError('too_few_volumes', `The run has ${image.nt} volumes; after dropping ${drop} only ${T} remain, and at least ${MIN_TIMEPOINTS} are needed.`);
+    throw new DecompositionError(
+      'too_few_volumes',
+      `The run has ${image.nt} volumes; after dropping ${drop} only ${T} remain, and at least ${MIN_TIMEPOINTS} are needed.`,
+    );
   }
   const tr = image.header.trSeconds;
-  if (tr === null || !(tr > 0)) throw new DecompositionError('bad_input', 'The run has no positive repetition time (pixdim[4]); fix the header before decomposing.');
+  if (tr === null || !(tr > 0))
+    throw new DecompositionError('bad_input', 'The run has no positive repetition time (pixdim[4]); fix the header before decomposing.');
   const dims: [number, number, number] = [image.nx, image.ny, image.nz];
   const nVox = image.voxelsPerVolume;
 
   let mean: Float32Array;
   let mask: Uint8Array;
-  let inMask = 0, nonFiniteVoxels = 0;
+  let inMask = 0,
+    nonFiniteVoxels = 0;
   let dm: DataMatrix;
   if (input.mask) {
     // One pass: extract the mask's voxels and accumulate the mean image together.
     if (input.mask.length !== nVox) {
-      throw new DecompositionError('grid_mismatch', `The mask has ${input.mask.length} voxels but the run's volumes have ${nVox} (${dims.join(' × ')}); use a mask on the run's grid.`);
+      throw new DecompositionError(
+        'grid_mismatch',
+        `The mask has ${input.mask.length} voxels but the run's volumes have ${nVox} (${dims.join(' × ')}); use a mask on the run's grid.`,
+      );
     }
     mask = input.mask;
     for (let i = 0; i < nVox; i++) if (mask[i]) inMask++;
-    if (inMask === 0) throw new DecompositionError('empty_mask', 'The mask is empty; supply a mask with brain voxels or let the automatic mask run on the mean image.');
+    if (inMask === 0)
+      throw new DecompositionError(
+        'empty_mask',
+        'The mask is empty; supply a mask with brain voxels or let the automatic mask run on the mean image.',
+      );
     const candidates = new Int32Array(inMask);
     for (let i = 0, j = 0; i < nVox; i++) if (mask[i]) candidates[j++] = i;
     const acc = { sum: new Float64Array(nVox), nonFinite: new Uint8Array(nVox) };
@@ -249,7 +268,10 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
   }
   const { x, V, maskIndices } = dm;
   if (V <= T) {
-    throw new DecompositionError('empty_mask', `Only ${V} usable in-mask voxels for ${T} time points; spatial ICA needs more voxels than volumes.`);
+    throw new DecompositionError(
+      'empty_mask',
+      `Only ${V} usable in-mask voxels for ${T} time points; spatial ICA needs more voxels than volumes.`,
+    );
   }
   stage('matrix', 25);
 
@@ -305,12 +327,18 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
     let restartSummary: Omit<RestartSummary, 'clusterSizes' | 'centrotypeSimilarity'> | null = null;
     let rowCluster: { sizes: Int32Array; cluster: Int32Array; similarity: Float64Array } | null = null;
     if (restarts <= 1) {
-      ica = await fastIca(wh.z, k, V, pool, { ...icaOptions, seed: requestedSeed, warmStartVoxels: options.warmStartVoxels, onIteration: icaProgress(0, `${k} components`) });
+      ica = await fastIca(wh.z, k, V, pool, {
+        ...icaOptions,
+        seed: requestedSeed,
+        warmStartVoxels: options.warmStartVoxels,
+        onIteration: icaProgress(0, `${k} components`),
+      });
     } else {
       // Restarts on an evenly strided voxel subset (the whitened space is shared, so their estimates
       // compare by dot products), then one run on all voxels from the clusters' centrotypes.
       const stride = restartVoxels > 0 && V > 2 * restartVoxels ? Math.floor(V / restartVoxels) : 1;
-      let zr = wh.z, Vr = V;
+      let zr = wh.z,
+        Vr = V;
       if (stride > 1) {
         Vr = Math.ceil(V / stride);
         zr = sharedFloat32(k * Vr);
@@ -328,8 +356,17 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
         );
         onProgress?.('ica', 60 + (30 * (r + 1)) / icaRuns, `restart ${r + 1} of ${restarts} done`);
       }
-      const clusters = clusterEstimates(runs.map((r) => r.w), k);
-      ica = await fastIca(wh.z, k, V, pool, { ...icaOptions, seed: requestedSeed, init: clusters.centrotypes, warmStartVoxels: 0, onIteration: icaProgress(restarts, 'final run on all voxels') });
+      const clusters = clusterEstimates(
+        runs.map((r) => r.w),
+        k,
+      );
+      ica = await fastIca(wh.z, k, V, pool, {
+        ...icaOptions,
+        seed: requestedSeed,
+        init: clusters.centrotypes,
+        warmStartVoxels: 0,
+        onIteration: icaProgress(restarts, 'final run on all voxels'),
+      });
       const match = matchToCentrotypes(ica.w, clusters.centrotypes, k);
       reproByRow = Float64Array.from(match.cluster, (c) => clusters.index[c]!);
       rowCluster = { sizes: clusters.sizes, cluster: match.cluster, similarity: match.similarity };
@@ -360,14 +397,16 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
     }
     const oriented = orientComponents(s, a, k, V, T, cov.totalSumSquares);
     const reproducibility = reproByRow ? Float64Array.from(oriented.order, (i) => reproByRow![i]!) : null;
-    const restartsOut: RestartSummary | null = restartSummary && rowCluster
-      ? {
-          ...restartSummary,
-          clusterSizes: Array.from(oriented.order, (i) => rowCluster!.sizes[rowCluster!.cluster[i]!]!),
-          centrotypeSimilarity: Array.from(oriented.order, (i) => rowCluster!.similarity[i]!),
-        }
-      : null;
-    let kept = 0, total = 0;
+    const restartsOut: RestartSummary | null =
+      restartSummary && rowCluster
+        ? {
+            ...restartSummary,
+            clusterSizes: Array.from(oriented.order, (i) => rowCluster!.sizes[rowCluster!.cluster[i]!]!),
+            centrotypeSimilarity: Array.from(oriented.order, (i) => rowCluster!.similarity[i]!),
+          }
+        : null;
+    let kept = 0,
+      total = 0;
     for (let i = 0; i < T; i++) {
       total += pca.eigenvalues[i]!;
       if (i < k) kept += pca.eigenvalues[i]!;
@@ -389,7 +428,13 @@ export async function decomposeRun(input: DecomposeInput, options: DecomposeOpti
       dimension,
       smoothness,
       iidSubsampling: iid
-        ? { depth: iid.depth, lagCorrelation: iid.lagCorrelation, entropyDeficit: iid.entropyDeficit, limitedBySamples: iid.limitedBySamples, samples: iid.voxels.length }
+        ? {
+            depth: iid.depth,
+            lagCorrelation: iid.lagCorrelation,
+            entropyDeficit: iid.entropyDeficit,
+            limitedBySamples: iid.limitedBySamples,
+            samples: iid.voxels.length,
+          }
         : null,
       reproducibility,
       restarts: restartsOut,

@@ -31,7 +31,7 @@ export interface EstimateClusters {
 export function clusterEstimates(estimates: Float64Array[], k: number): EstimateClusters {
   const R = estimates.length;
   const n = R * k;
-  const rows = (i: number) => estimates[Math.floor(i / k)]!.subarray((i % k) * k, (i % k + 1) * k);
+  const rows = (i: number) => estimates[Math.floor(i / k)]!.subarray((i % k) * k, ((i % k) + 1) * k);
   const sim = new Float64Array(n * n);
   for (let a = 0; a < n; a++) {
     const wa = rows(a);
@@ -50,7 +50,9 @@ export function clusterEstimates(estimates: Float64Array[], k: number): Estimate
   const parent = Int32Array.from({ length: n }, (_, i) => i);
   let clusters = n;
   while (clusters > k) {
-    let best = -Infinity, ba = -1, bb = -1;
+    let best = -Infinity,
+      ba = -1,
+      bb = -1;
     for (let a = 0; a < n; a++) {
       if (!alive[a]) continue;
       for (let b = a + 1; b < n; b++) {
@@ -63,7 +65,8 @@ export function clusterEstimates(estimates: Float64Array[], k: number): Estimate
         }
       }
     }
-    const sa = size[ba]!, sb = size[bb]!;
+    const sa = size[ba]!,
+      sb = size[bb]!;
     for (let c = 0; c < n; c++) {
       if (!alive[c] || c === ba || c === bb) continue;
       const v = (sa * link[ba * n + c]! + sb * link[bb * n + c]!) / (sa + sb);
@@ -84,7 +87,8 @@ export function clusterEstimates(estimates: Float64Array[], k: number): Estimate
   roots.forEach((root, c) => {
     const members: number[] = [];
     for (let i = 0; i < n; i++) if (parent[i] === root) members.push(i);
-    let bestSum = -Infinity, centre = members[0]!;
+    let bestSum = -Infinity,
+      centre = members[0]!;
     let inSum = 0;
     for (const a of members) {
       let s = 0;
@@ -117,11 +121,16 @@ export function clusterEstimates(estimates: Float64Array[], k: number): Estimate
  * similar to (|dot|), and that similarity — how the final, polished components inherit their
  * clusters' reproducibility. Returns cluster indices and similarities, length k.
  */
-export function matchToCentrotypes(w: Float64Array, centrotypes: Float64Array, k: number): { cluster: Int32Array; similarity: Float64Array } {
+export function matchToCentrotypes(
+  w: Float64Array,
+  centrotypes: Float64Array,
+  k: number,
+): { cluster: Int32Array; similarity: Float64Array } {
   const cluster = new Int32Array(k);
   const similarity = new Float64Array(k);
   for (let i = 0; i < k; i++) {
-    let best = -1, bc = 0;
+    let best = -1,
+      bc = 0;
     for (let c = 0; c < k; c++) {
       let d = 0;
       for (let l = 0; l < k; l++) d += w[i * k + l]! * centrotypes[c * k + l]!;

@@ -20,7 +20,12 @@ export interface SmoothnessEstimate {
  * x: time-major Float32Array T × V; maskIndices: in-mask voxel → full-volume linear index (x fastest).
  */
 export function estimateSmoothness(
-  x: Float32Array, T: number, V: number, maskIndices: Int32Array, dims: [number, number, number], maxVolumes = 48,
+  x: Float32Array,
+  T: number,
+  V: number,
+  maskIndices: Int32Array,
+  dims: [number, number, number],
+  maxVolumes = 48,
 ): SmoothnessEstimate {
   const [nx, ny, nz] = dims;
   const lookup = new Int32Array(nx * ny * nz).fill(-1);
@@ -46,7 +51,9 @@ export function estimateSmoothness(
       }
     }
     if (pairsA.length < 10) continue;
-    let sxy = 0, sxx = 0, syy = 0;
+    let sxy = 0,
+      sxx = 0,
+      syy = 0;
     for (let t = 0; t < T; t += step) {
       const off = t * V;
       for (let q = 0; q < pairsA.length; q++) {

@@ -50,9 +50,7 @@ export function powerSpectrum(
 ): { frequencies: Float64Array; power: Float64Array } {
   const t = tc.length;
   if (!Number.isFinite(trSeconds) || trSeconds <= 0) {
-    throw new SpectrumError(
-      `TR must be a positive number of seconds, got ${trSeconds}; check pixdim[4] and xyzt_units of the run.`,
-    );
+    throw new SpectrumError(`TR must be a positive number of seconds, got ${trSeconds}; check pixdim[4] and xyzt_units of the run.`);
   }
   if (t < 2) {
     throw new SpectrumError(`A power spectrum needs at least 2 time points, got ${t}.`);
@@ -64,9 +62,7 @@ export function powerSpectrum(
   }
   const nperseg = opts.segmentLength ?? defaultSegmentLength(t);
   if (!Number.isInteger(nperseg) || nperseg < 2 || nperseg > t) {
-    throw new SpectrumError(
-      `segmentLength must be an integer between 2 and the number of time points (${t}), got ${nperseg}.`,
-    );
+    throw new SpectrumError(`segmentLength must be an integer between 2 and the number of time points (${t}), got ${nperseg}.`);
   }
   const fs = 1 / trSeconds;
   const noverlap = Math.floor(nperseg / 2);

@@ -26,6 +26,12 @@ export function decompositionWarnings(value: unknown): DecompositionWarning[] {
   const list = Array.isArray(parsed) ? parsed : parsed && typeof parsed === 'object' ? (parsed as { warnings?: unknown }).warnings : null;
   if (!Array.isArray(list)) return [];
   return list
-    .filter((w): w is DecompositionWarning => !!w && typeof w === 'object' && typeof (w as DecompositionWarning).code === 'string' && typeof (w as DecompositionWarning).message === 'string')
+    .filter(
+      (w): w is DecompositionWarning =>
+        !!w &&
+        typeof w === 'object' &&
+        typeof (w as DecompositionWarning).code === 'string' &&
+        typeof (w as DecompositionWarning).message === 'string',
+    )
     .map((w) => ({ code: w.code, message: w.message }));
 }

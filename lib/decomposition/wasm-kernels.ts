@@ -11,7 +11,18 @@ export interface KernelExports {
   memory: WebAssembly.Memory;
   gram(x: number, Tp: number, n: number, out: number): void;
   project(x: number, T: number, n: number, p: number, c: number, kp: number, z: number): void;
-  ica(z: number, kp: number, stride: number, nBlocks: number, w: number, contrast: number, alpha: number, G: number, gp: number, y: number): void;
+  ica(
+    z: number,
+    kp: number,
+    stride: number,
+    nBlocks: number,
+    w: number,
+    contrast: number,
+    alpha: number,
+    G: number,
+    gp: number,
+    y: number,
+  ): void;
   unmix(z: number, kp: number, stride: number, nBlocks: number, w: number, s: number): void;
   tanhInPlace(p: number, n: number): void;
 }
@@ -53,9 +64,11 @@ export function wasmGramChunk(ex: KernelExports, x: Float32Array, T: number, V: 
   const n = v1 - v0;
   const ne = (n + 3) & ~3;
   const Tp = (T + 3) & ~3;
-  const xp = 65536, op = xp + Tp * ne * 4;
+  const xp = 65536,
+    op = xp + Tp * ne * 4;
   const { f32, f64 } = wasmMemory(ex, Tp * ne * 4 + Tp * Tp * 8);
-  const xo = xp / 4, oo = op / 8;
+  const xo = xp / 4,
+    oo = op / 8;
   for (let t = 0; t < T; t++) {
     f32.set(x.subarray(t * V + v0, t * V + v1), xo + t * ne);
     f32.fill(0, xo + t * ne + n, xo + (t + 1) * ne);
@@ -68,16 +81,30 @@ export function wasmGramChunk(ex: KernelExports, x: Float32Array, T: number, V: 
 
 /** projectChunk of kernels.ts on WebAssembly: float64 throughout, rounded to float32 on copy-out. */
 export function wasmProjectChunk(
-  ex: KernelExports, x: Float32Array, T: number, V: number, p: Float64Array, c: Float64Array, k: number,
-  v0: number, v1: number, z: Float32Array,
+  ex: KernelExports,
+  x: Float32Array,
+  T: number,
+  V: number,
+  p: Float64Array,
+  c: Float64Array,
+  k: number,
+  v0: number,
+  v1: number,
+  z: Float32Array,
 ): void {
   wasmCache(ex).key = null;
   const n = v1 - v0;
   const ne = (n + 3) & ~3;
   const kp = (k + 3) & ~3;
-  const xp = 65536, pp = xp + T * ne * 8, cp = pp + kp * T * 8, zp = cp + kp * 8;
+  const xp = 65536,
+    pp = xp + T * ne * 8,
+    cp = pp + kp * T * 8,
+    zp = cp + kp * 8;
   const { f64 } = wasmMemory(ex, T * ne * 8 + kp * T * 8 + kp * 8 + kp * ne * 8);
-  const xo = xp / 8, po = pp / 8, co = cp / 8, zo = zp / 8;
+  const xo = xp / 8,
+    po = pp / 8,
+    co = cp / 8,
+    zo = zp / 8;
   for (let t = 0; t < T; t++) {
     f64.set(x.subarray(t * V + v0, t * V + v1), xo + t * ne);
     f64.fill(0, xo + t * ne + n, xo + (t + 1) * ne);
@@ -96,8 +123,18 @@ export function wasmProjectChunk(
  * range copied in by the first call is reused (wasmCache) — FastICA's iterations pass one key.
  */
 export function wasmIcaChunk(
-  ex: KernelExports, z: Float32Array, k: number, V: number, w: Float64Array, contrast: number, alpha: number,
-  v0: number, v1: number, G: Float64Array, gp: Float64Array, cacheKey?: string,
+  ex: KernelExports,
+  z: Float32Array,
+  k: number,
+  V: number,
+  w: Float64Array,
+  contrast: number,
+  alpha: number,
+  v0: number,
+  v1: number,
+  G: Float64Array,
+  gp: Float64Array,
+  cacheKey?: string,
 ): void {
   const NB = 64;
   const n = v1 - v0;
@@ -105,7 +142,11 @@ export function wasmIcaChunk(
   const stride = nBlocks * NB;
   const kp = (k + 3) & ~3;
   // Scratch (W, G, gp, y) first, then the z range(s).
-  const wp = 65536, Gp = wp + kp * kp * 16, gpp = Gp + kp * kp * 8, yp = gpp + kp * 8, scratchEnd = yp + kp * NB * 4;
+  const wp = 65536,
+    Gp = wp + kp * kp * 16,
+    gpp = Gp + kp * kp * 8,
+    yp = gpp + kp * 8,
+    scratchEnd = yp + kp * NB * 4;
   const zBytes = kp * stride * 4;
   const st = wasmCache(ex);
   let zp = scratchEnd;
@@ -129,7 +170,10 @@ export function wasmIcaChunk(
     st.key = null;
   }
   const { f32, f64 } = wasmMemory(ex, zp + zBytes - 65536);
-  const zo = zp / 4, wo = wp / 4, Go = Gp / 8, gpo = gpp / 8;
+  const zo = zp / 4,
+    wo = wp / 4,
+    Go = Gp / 8,
+    gpo = gpp / 8;
   if (copy) {
     for (let i = 0; i < k; i++) {
       f32.set(z.subarray(i * V + v0, i * V + v1), zo + i * stride);
@@ -141,8 +185,12 @@ export function wasmIcaChunk(
   f32.fill(0, wo, wo + 4 * kp * kp);
   for (let i = 0; i < k; i++) {
     for (let j = 0; j < k; j++) {
-      const v = w[i * k + j]!, o = wo + 4 * (i * kp + j);
-      f32[o] = v; f32[o + 1] = v; f32[o + 2] = v; f32[o + 3] = v;
+      const v = w[i * k + j]!,
+        o = wo + 4 * (i * kp + j);
+      f32[o] = v;
+      f32[o + 1] = v;
+      f32[o + 2] = v;
+      f32[o + 3] = v;
     }
   }
   f64.fill(0, Go, gpo + kp);
@@ -157,16 +205,29 @@ export function wasmIcaChunk(
 }
 
 /** unmixChunk of kernels.ts on WebAssembly (float32, W rounded to float32, fused multiply-adds). */
-export function wasmUnmixChunk(ex: KernelExports, z: Float32Array, k: number, V: number, w: Float64Array, v0: number, v1: number, s: Float32Array): void {
+export function wasmUnmixChunk(
+  ex: KernelExports,
+  z: Float32Array,
+  k: number,
+  V: number,
+  w: Float64Array,
+  v0: number,
+  v1: number,
+  s: Float32Array,
+): void {
   wasmCache(ex).key = null;
   const NB = 64;
   const n = v1 - v0;
   const nBlocks = Math.ceil(n / NB);
   const stride = nBlocks * NB;
   const kp = (k + 3) & ~3;
-  const zp = 65536, wp = zp + kp * stride * 4, sp = wp + kp * kp * 16;
+  const zp = 65536,
+    wp = zp + kp * stride * 4,
+    sp = wp + kp * kp * 16;
   const { f32 } = wasmMemory(ex, 2 * kp * stride * 4 + kp * kp * 16);
-  const zo = zp / 4, wo = wp / 4, so = sp / 4;
+  const zo = zp / 4,
+    wo = wp / 4,
+    so = sp / 4;
   for (let i = 0; i < k; i++) {
     f32.set(z.subarray(i * V + v0, i * V + v1), zo + i * stride);
     f32.fill(0, zo + i * stride + n, zo + (i + 1) * stride);
@@ -176,8 +237,12 @@ export function wasmUnmixChunk(ex: KernelExports, z: Float32Array, k: number, V:
   f32.fill(0, wo, wo + 4 * kp * kp);
   for (let i = 0; i < k; i++) {
     for (let j = 0; j < k; j++) {
-      const v = w[i * k + j]!, o = wo + 4 * (i * kp + j);
-      f32[o] = v; f32[o + 1] = v; f32[o + 2] = v; f32[o + 3] = v;
+      const v = w[i * k + j]!,
+        o = wo + 4 * (i * kp + j);
+      f32[o] = v;
+      f32[o + 1] = v;
+      f32[o + 2] = v;
+      f32[o + 3] = v;
     }
   }
   ex.unmix(zp, kp, stride, nBlocks, wp, sp);

@@ -20,7 +20,14 @@ export interface Whitened {
  * eigenvalues descending; mu: spatial mean per time point (length T).
  */
 export async function whiten(
-  x: Float32Array, T: number, V: number, vectors: Float64Array, eigenvalues: Float64Array, mu: Float64Array, k: number, pool: KernelPool,
+  x: Float32Array,
+  T: number,
+  V: number,
+  vectors: Float64Array,
+  eigenvalues: Float64Array,
+  mu: Float64Array,
+  k: number,
+  pool: KernelPool,
 ): Promise<Whitened> {
   const p = new Float64Array(k * T);
   const dw = new Float64Array(T * k);
@@ -48,7 +55,8 @@ export function whitenedCovariance(z: Float32Array, k: number, V: number): Float
   for (let i = 0; i < k; i++) {
     for (let j = i; j < k; j++) {
       let s = 0;
-      const oi = i * V, oj = j * V;
+      const oi = i * V,
+        oj = j * V;
       for (let v = 0; v < V; v++) s += z[oi + v]! * z[oj + v]!;
       out[i * k + j] = s / V;
       out[j * k + i] = s / V;

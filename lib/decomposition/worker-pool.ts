@@ -17,7 +17,10 @@ import { DecompositionError } from './errors';
 const KERNELS = { gramChunk, icaChunk, projectChunk, unmixChunk } as const;
 export type KernelName = keyof typeof KERNELS;
 const WASM_KERNELS: Record<KernelName, (ex: KernelExports, ...a: never[]) => void> = {
-  gramChunk: wasmGramChunk, icaChunk: wasmIcaChunk, projectChunk: wasmProjectChunk, unmixChunk: wasmUnmixChunk,
+  gramChunk: wasmGramChunk,
+  icaChunk: wasmIcaChunk,
+  projectChunk: wasmProjectChunk,
+  unmixChunk: wasmUnmixChunk,
 };
 
 /** Kernel set: 'wasm' = WebAssembly SIMD (default), 'js' = the reference loops of kernels.ts. */
@@ -47,7 +50,11 @@ export function kernelModule(): WebAssembly.Module | null {
 /** A fresh instance of kernels.wasm (its own memory), for this thread. */
 export function kernelInstance(): KernelExports {
   const m = kernelModule();
-  if (!m) throw new DecompositionError('worker_failed', 'The WebAssembly kernels (lib/decomposition/wasm/kernels.wasm) are missing; run npm run build:kernels.');
+  if (!m)
+    throw new DecompositionError(
+      'worker_failed',
+      'The WebAssembly kernels (lib/decomposition/wasm/kernels.wasm) are missing; run npm run build:kernels.',
+    );
   return new WebAssembly.Instance(m, {}).exports as unknown as KernelExports;
 }
 
@@ -64,14 +71,17 @@ export function kernelBackend(): KernelBackend {
   if (kernelModule()) return 'wasm';
   if (!warnedNoWasm) {
     warnedNoWasm = true;
-    process.emitWarning('lib/decomposition/wasm/kernels.wasm could not be loaded; the decomposition runs the slower JavaScript kernels (run npm run build:kernels).');
+    process.emitWarning(
+      'lib/decomposition/wasm/kernels.wasm could not be loaded; the decomposition runs the slower JavaScript kernels (run npm run build:kernels).',
+    );
   }
   return 'js';
 }
 let warnedNoWasm = false;
 
 function workerSource(backend: KernelBackend): string {
-  const set: Record<string, (...args: never[]) => unknown> = backend === 'wasm' ? { ...WASM_KERNELS, wasmMemory, wasmCache } : { ...KERNELS };
+  const set: Record<string, (...args: never[]) => unknown> =
+    backend === 'wasm' ? { ...WASM_KERNELS, wasmMemory, wasmCache } : { ...KERNELS };
   const defs = Object.entries(set)
     .map(([name, fn]) => `const ${name} = (${fn.toString()});`)
     .join('\n');
@@ -131,7 +141,10 @@ export class KernelPool {
     this.threads = n;
     this.backend = opts.kernels ?? kernelBackend();
     if (this.backend === 'wasm' && !kernelModule()) {
-      throw new DecompositionError('worker_failed', 'The WebAssembly kernels (lib/decomposition/wasm/kernels.wasm) are missing; run npm run build:kernels.');
+      throw new DecompositionError(
+        'worker_failed',
+        'The WebAssembly kernels (lib/decomposition/wasm/kernels.wasm) are missing; run npm run build:kernels.',
+      );
     }
     if (n > 1) {
       try {
@@ -147,7 +160,8 @@ export class KernelPool {
             else p.reject(new DecompositionError('worker_failed', `A decomposition worker failed: ${m.message}`));
           });
           w.on('error', (err) => {
-            for (const p of this.pending.values()) p.reject(new DecompositionError('worker_failed', `A decomposition worker crashed: ${err.message}`));
+            for (const p of this.pending.values())
+              p.reject(new DecompositionError('worker_failed', `A decomposition worker crashed: ${err.message}`));
             this.pending.clear();
           });
           w.unref();
@@ -192,14 +206,14 @@ export class KernelPool {
     for (const w of this.workers) w.ref();
     try {
       await Promise.all(
-      parts.map(
-        (r, i) =>
-          new Promise<void>((resolve, reject) => {
-            const id = this.nextId++;
-            this.pending.set(id, { resolve, reject });
-            this.workers[i % this.workers.length]!.postMessage({ id, op, args: argsFor(r, i) });
-          }),
-      ),
+        parts.map(
+          (r, i) =>
+            new Promise<void>((resolve, reject) => {
+              const id = this.nextId++;
+              this.pending.set(id, { resolve, reject });
+              this.workers[i % this.workers.length]!.postMessage({ id, op, args: argsFor(r, i) });
+            }),
+        ),
       );
     } finally {
       for (const w of this.workers) w.unref();
@@ -212,4 +226,3 @@ export class KernelPool {
     await Promise.all(ws.map((w) => w.terminate()));
   }
 }
-

@@ -43,7 +43,8 @@ export interface DenoiseImageResult {
 /** Six motion parameters as a time-major T × 6 block (tx, ty, tz, rx, ry, rz). */
 export function motionRegressors(motion: MotionParams, T: number): { values: Float64Array; m: number; names: string[] } {
   const cols = [...motion.translations, ...motion.rotations];
-  if (cols.length !== 6 || cols.some((c) => c.length !== T)) throw new RegressionError(`The motion table must give 6 columns of ${T} rows (after dropped volumes).`);
+  if (cols.length !== 6 || cols.some((c) => c.length !== T))
+    throw new RegressionError(`The motion table must give 6 columns of ${T} rows (after dropped volumes).`);
   const values = new Float64Array(T * 6);
   for (let t = 0; t < T; t++) for (let j = 0; j < 6; j++) values[t * 6 + j] = cols[j]![t]!;
   return { values, m: 6, names: ['motion_trans_x', 'motion_trans_y', 'motion_trans_z', 'motion_rot_x', 'motion_rot_y', 'motion_rot_z'] };
@@ -73,7 +74,9 @@ export async function denoiseImage(input: DenoiseImageInput): Promise<DenoiseIma
   const T = image.nt - drop;
   if (T < 2) throw new RegressionError(`The run has ${image.nt} volumes and ${drop} are dropped; nothing is left to denoise.`);
   if (input.timecourses.length !== T * input.k) {
-    throw new RegressionError(`The component time courses have ${input.timecourses.length / Math.max(1, input.k)} time points but the run has ${T} after dropping ${drop} volumes.`);
+    throw new RegressionError(
+      `The component time courses have ${input.timecourses.length / Math.max(1, input.k)} time points but the run has ${T} after dropping ${drop} volumes.`,
+    );
   }
   const design = buildDesign({
     timecourses: input.timecourses,
@@ -84,7 +87,8 @@ export async function denoiseImage(input: DenoiseImageInput): Promise<DenoiseIma
     extra: input.motion ? motionRegressors(input.motion, T) : undefined,
   });
   const N = image.voxelsPerVolume;
-  if (input.mask && input.mask.length !== N) throw new RegressionError(`The mask has ${input.mask.length} voxels; the run's volumes have ${N}.`);
+  if (input.mask && input.mask.length !== N)
+    throw new RegressionError(`The mask has ${input.mask.length} voxels; the run's volumes have ${N}.`);
   const idx: number[] = [];
   for (let i = 0; i < N; i++) if (!input.mask || input.mask[i]) idx.push(i);
   const where = Int32Array.from(idx);

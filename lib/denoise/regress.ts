@@ -55,18 +55,24 @@ export class RegressionError extends Error {
 /** Builds the design matrix and its pseudo-inverse for a mode and a noise list. */
 export function buildDesign(input: DesignInput): Design {
   const { T, k, mode } = input;
-  if (input.timecourses.length !== T * k) throw new RegressionError(`The time courses hold ${input.timecourses.length} values; T × k = ${T} × ${k} needs ${T * k}.`);
+  if (input.timecourses.length !== T * k)
+    throw new RegressionError(`The time courses hold ${input.timecourses.length} values; T × k = ${T} × ${k} needs ${T * k}.`);
   const noise = [...new Set(input.noise)].sort((a, b) => a - b);
   for (const n of noise) {
     if (!Number.isInteger(n) || n < 1 || n > k) throw new RegressionError(`Component ${n} is not between 1 and ${k}.`);
   }
   const comps = mode === 'partial' ? Array.from({ length: k }, (_, c) => c + 1) : noise;
   const m = input.extra?.m ?? 0;
-  if (input.extra && input.extra.values.length !== T * m) throw new RegressionError(`The extra regressors hold ${input.extra.values.length} values; T × m = ${T} × ${m} needs ${T * m}.`);
+  if (input.extra && input.extra.values.length !== T * m)
+    throw new RegressionError(`The extra regressors hold ${input.extra.values.length} values; T × m = ${T} × ${m} needs ${T * m}.`);
   const p = 1 + comps.length + m;
   if (p > T) throw new RegressionError(`${p} regressors cannot be fitted to ${T} time points.`);
   const X = new Float64Array(T * p);
-  const columns = ['intercept', ...comps.map((c) => `component_${c}`), ...Array.from({ length: m }, (_, j) => input.extra?.names?.[j] ?? `extra_${j + 1}`)];
+  const columns = [
+    'intercept',
+    ...comps.map((c) => `component_${c}`),
+    ...Array.from({ length: m }, (_, j) => input.extra?.names?.[j] ?? `extra_${j + 1}`),
+  ];
   for (let t = 0; t < T; t++) {
     const row = t * p;
     X[row] = 1;

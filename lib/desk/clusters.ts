@@ -32,7 +32,8 @@ export function findClusters(
   const n = nx * ny * nz;
   const seen = new Uint8Array(n);
   const stack = new Int32Array(n);
-  const passes = (v: number) => Number.isFinite(v) && (sign === 'positive' ? v >= threshold : sign === 'negative' ? v <= -threshold : Math.abs(v) >= threshold);
+  const passes = (v: number) =>
+    Number.isFinite(v) && (sign === 'positive' ? v >= threshold : sign === 'negative' ? v <= -threshold : Math.abs(v) >= threshold);
   const out: Cluster[] = [];
   for (let start = 0; start < n; start++) {
     if (seen[start]) continue;

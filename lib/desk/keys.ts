@@ -53,7 +53,10 @@ export function labelKeys(labelSet: string[]): Record<string, string> {
 }
 
 /** Turns a keydown into a desk command (null: not ours). Modifier keys other than Shift are left to the browser, except Ctrl/⌘+Enter. */
-export function commandFor(e: Pick<KeyboardEvent, 'key' | 'code' | 'shiftKey' | 'ctrlKey' | 'metaKey' | 'altKey'>, labelSet: string[]): DeskCommand | null {
+export function commandFor(
+  e: Pick<KeyboardEvent, 'key' | 'code' | 'shiftKey' | 'ctrlKey' | 'metaKey' | 'altKey'>,
+  labelSet: string[],
+): DeskCommand | null {
   if ((e.ctrlKey || e.metaKey) && e.key === 'Enter') return { type: 'submit' };
   if (e.ctrlKey || e.metaKey || e.altKey) return null;
   const digit = /^Digit([1-9])$/.exec(e.code)?.[1] ?? /^Numpad([1-9])$/.exec(e.code)?.[1];
@@ -128,7 +131,12 @@ export function commandFor(e: Pick<KeyboardEvent, 'key' | 'code' | 'shiftKey' | 
 }
 
 /** Rows of the help overlay. */
-export function helpRows(labelSet: string[], noiseKinds: string[], names: { label: (k: string) => string; kind: (k: string) => string }, readOnly = false) {
+export function helpRows(
+  labelSet: string[],
+  noiseKinds: string[],
+  names: { label: (k: string) => string; kind: (k: string) => string },
+  readOnly = false,
+) {
   const keys = labelKeys(labelSet);
   const rows = [
     {

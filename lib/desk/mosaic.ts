@@ -50,6 +50,12 @@ export function planMosaic({
 export function mosaicSpec(plan: MosaicPlan): string {
   const rows: string[] = [];
   const top = [...plan.slicesMm].reverse();
-  for (let r = 0; r < plan.rows; r++) rows.push(`A ${top.slice(r * plan.cols, (r + 1) * plan.cols).map((z) => z.toFixed(1)).join(' ')}`);
+  for (let r = 0; r < plan.rows; r++)
+    rows.push(
+      `A ${top
+        .slice(r * plan.cols, (r + 1) * plan.cols)
+        .map((z) => z.toFixed(1))
+        .join(' ')}`,
+    );
   return `L+ ${rows.join(' ; ')}`;
 }

@@ -15,8 +15,19 @@ export const voteChangeSchema = z
   .object({
     label: z.string().trim().min(1).max(32).optional(),
     noiseKind: z.string().trim().min(1).max(32).nullable().optional(),
-    confidence: z.number().int().min(1, { message: 'confidence is 1 (low) to 5 (high)' }).max(5, { message: 'confidence is 1 (low) to 5 (high)' }).nullable().optional(),
-    note: z.string().max(2000, { message: 'a note holds at most 2000 characters' }).refine(...wellFormed('the note')).nullable().optional(),
+    confidence: z
+      .number()
+      .int()
+      .min(1, { message: 'confidence is 1 (low) to 5 (high)' })
+      .max(5, { message: 'confidence is 1 (low) to 5 (high)' })
+      .nullable()
+      .optional(),
+    note: z
+      .string()
+      .max(2000, { message: 'a note holds at most 2000 characters' })
+      .refine(...wellFormed('the note'))
+      .nullable()
+      .optional(),
     baseVersion: z.number().int().min(0),
   })
   .strict()

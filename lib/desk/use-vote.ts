@@ -145,9 +145,12 @@ export function useVotes({ runId, userId, initialData }: { runId: number; userId
       channel.current = null;
     };
   }, [userId, runId, applyServerVote]);
-  useEffect(() => () => {
-    if (timer.current) clearTimeout(timer.current);
-  }, []);
+  useEffect(
+    () => () => {
+      if (timer.current) clearTimeout(timer.current);
+    },
+    [],
+  );
 
   const data = query.data;
   const votes = useMemo(() => {

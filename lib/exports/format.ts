@@ -11,7 +11,8 @@ export const EXPORT_FORMAT = 'quorum-release/2' as const;
 export const EXPORT_FORMAT_SIDECAR = {
   ExportFormat: {
     Version: EXPORT_FORMAT,
-    Changes: 'Version 2 names the per-component decision table desc-decisions (desc-verdicts in version 1) and guards text cells against spreadsheet formulas.',
+    Changes:
+      'Version 2 names the per-component decision table desc-decisions (desc-verdicts in version 1) and guards text cells against spreadsheet formulas.',
   },
   FormulaGuard: FORMULA_GUARD_NOTE,
 } as const;

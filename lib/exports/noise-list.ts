@@ -10,7 +10,10 @@ export function isRemoved(label: string | null, policy: UncertainPolicy): boolea
 }
 
 export function noiseList(decisions: readonly { idx: number; label: string | null }[], policy: UncertainPolicy): number[] {
-  return decisions.filter((d) => isRemoved(d.label, policy)).map((d) => d.idx).sort((a, b) => a - b);
+  return decisions
+    .filter((d) => isRemoved(d.label, policy))
+    .map((d) => d.idx)
+    .sort((a, b) => a - b);
 }
 
 /** "1,4,7" (empty string for none), the one-line form for scripts. */

@@ -44,18 +44,23 @@ export type TextFile = { name: string; content: string };
  * values are written "n/a" (never 0): see computeComponentFeatures in lib/decomposition/features.ts.
  */
 export const FEATURE_COLUMNS: Record<string, string> = {
-  reproducibility: 'Cross-restart reproducibility of the component (0..1): how closely the decomposition found it again from other starting points; n/a when it ran without restarts.',
+  reproducibility:
+    'Cross-restart reproducibility of the component (0..1): how closely the decomposition found it again from other starting points; n/a when it ran without restarts.',
   highFrequencyPower: 'Fraction of the time course power above 0.1 Hz (0..1).',
-  edgeFraction: 'Fraction of the map\'s supra-threshold voxels on the brain edge: within one voxel of a voxel outside the mask or darker than the brain-mask threshold in the mean image (0..1); n/a when fewer than 10 voxels pass the map\'s threshold.',
-  clusterCount: 'Number of 26-connected clusters of at least 10 supra-threshold voxels; n/a when fewer than 10 voxels pass the map\'s threshold.',
+  edgeFraction:
+    "Fraction of the map's supra-threshold voxels on the brain edge: within one voxel of a voxel outside the mask or darker than the brain-mask threshold in the mean image (0..1); n/a when fewer than 10 voxels pass the map's threshold.",
+  clusterCount:
+    "Number of 26-connected clusters of at least 10 supra-threshold voxels; n/a when fewer than 10 voxels pass the map's threshold.",
   largestClusterVoxels: 'Voxels in the largest supra-threshold cluster; n/a as above.',
   largestClusterFraction: 'Largest cluster as a fraction of all supra-threshold voxels (0..1); n/a as above.',
-  mapThresholdZ: 'The map\'s adaptive threshold in |z|: voxels more than 2.5 robust SDs (1.4826 × median absolute deviation) from the map\'s median are supra-threshold; n/a when fewer than 10 voxels pass it.',
+  mapThresholdZ:
+    "The map's adaptive threshold in |z|: voxels more than 2.5 robust SDs (1.4826 × median absolute deviation) from the map's median are supra-threshold; n/a when fewer than 10 voxels pass it.",
   kurtosis: 'Excess kurtosis of the z-map over in-mask voxels.',
   skewness: 'Skewness of the z-map over in-mask voxels.',
   peakZ: 'Largest |z| of the map.',
   spikeScore: 'Largest robust z-score of a frame-to-frame jump of the time course (spikiness).',
-  stepScore: 'Largest shift of the time course mean at any split point, in pooled within-side SDs (a step); n/a when the run is too short to split.',
+  stepScore:
+    'Largest shift of the time course mean at any split point, in pooled within-side SDs (a step); n/a when the run is too short to split.',
   trendR2: 'R² of a constant + linear + quadratic trend fitted to the time course (slow drift, 0..1); n/a for a constant time course.',
   motionCorrelation: 'Largest |Pearson r| of the time course with the motion parameters and their derivatives; n/a without motion.',
   fdCorrelation: 'Pearson r of the time course with framewise displacement (Power et al. 2012, 50 mm sphere); n/a without motion.',
@@ -65,14 +70,24 @@ export const FEATURE_COLUMNS: Record<string, string> = {
 
 const snake = (s: string) => s.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`);
 
-function sidecar(description: string, columns: Record<string, { Description: string; Levels?: Record<string, string>; Units?: string }>, input: RunExportInput, extra: Record<string, unknown> = {}) {
+function sidecar(
+  description: string,
+  columns: Record<string, { Description: string; Levels?: Record<string, string>; Units?: string }>,
+  input: RunExportInput,
+  extra: Record<string, unknown> = {},
+) {
   return {
     ...columns,
     Description: description,
     Run: input.entities,
     ...extra,
     GeneratedBy: { Name: 'Quorum', Version: input.release.software },
-    Release: { StudyId: input.release.studyId, ReleaseId: input.release.releaseId, Version: input.release.version, ReleasedAt: input.release.releasedAt },
+    Release: {
+      StudyId: input.release.studyId,
+      ReleaseId: input.release.releaseId,
+      Version: input.release.version,
+      ReleasedAt: input.release.releasedAt,
+    },
     Caution: EXPORT_CAUTION,
     ...EXPORT_FORMAT_SIDECAR,
   };
@@ -97,7 +112,18 @@ export function runExportFiles(input: RunExportInput): TextFile[] {
 
   // decisions
   const voteCols = labelSet.map((l) => `votes_${l}`);
-  const header = ['component', 'label', 'noise_kind', 'decided_by', 'in_noise_list', ...voteCols, 'votes_total', 'rater_labels', 'lead_reason', 'variance_explained'];
+  const header = [
+    'component',
+    'label',
+    'noise_kind',
+    'decided_by',
+    'in_noise_list',
+    ...voteCols,
+    'votes_total',
+    'rater_labels',
+    'lead_reason',
+    'variance_explained',
+  ];
   const rows: Cell[][] = comps.map((c) => [
     c.idx,
     c.label,
@@ -106,7 +132,12 @@ export function runExportFiles(input: RunExportInput): TextFile[] {
     isRemoved(c.label, policy),
     ...labelSet.map((l) => c.votes.filter((v) => v.label === l).length),
     c.votes.length,
-    c.votes.length ? [...c.votes].sort((a, b) => a.raterCode.localeCompare(b.raterCode, 'en', { numeric: true })).map((v) => `${v.raterCode}=${v.label}${v.noiseKind ? `/${v.noiseKind}` : ''}`).join(';') : null,
+    c.votes.length
+      ? [...c.votes]
+          .sort((a, b) => a.raterCode.localeCompare(b.raterCode, 'en', { numeric: true }))
+          .map((v) => `${v.raterCode}=${v.label}${v.noiseKind ? `/${v.noiseKind}` : ''}`)
+          .join(';')
+      : null,
     c.reason,
     c.varianceExplained,
   ]);
@@ -114,34 +145,62 @@ export function runExportFiles(input: RunExportInput): TextFile[] {
   files.push({
     name: `${stem}_desc-decisions_components.json`,
     content: json(
-      sidecar('The released decision on every component of the run, how it was reached and the votes behind it.', {
-        component: { Description: 'Component number, 1..k, ordered by variance explained (1 = most).' },
-        label: { Description: 'The decided label.', Levels: Object.fromEntries(labelSet.map((l) => [l, `decided ${l}`])) },
-        noise_kind: { Description: 'The decided kind of noise (n/a unless the label is noise).' },
-        decided_by: { Description: 'How the decision was reached.', Levels: METHOD_LEVELS },
-        in_noise_list: { Description: `1 when the component is in the run's noise list, else 0. ${rule}`, Levels: { '1': 'removed', '0': 'kept' } },
-        ...Object.fromEntries(labelSet.map((l) => [`votes_${l}`, { Description: `Number of submitted votes "${l}" for the component.` }])),
-        votes_total: { Description: 'Number of submitted votes for the component.' },
-        rater_labels: { Description: 'Each rater\'s vote as CODE=label or CODE=label/noise_kind, separated by ";". Codes (R1, R2, …) are listed in the study\'s desc-raters table.' },
-        lead_reason: { Description: 'The reason the study lead recorded when deciding (n/a for unanimous or majority decisions).' },
-        variance_explained: { Description: 'Fraction of the run\'s variance explained by the component (0..1).' },
-      }, input, { NoiseListRule: rule }),
+      sidecar(
+        'The released decision on every component of the run, how it was reached and the votes behind it.',
+        {
+          component: { Description: 'Component number, 1..k, ordered by variance explained (1 = most).' },
+          label: { Description: 'The decided label.', Levels: Object.fromEntries(labelSet.map((l) => [l, `decided ${l}`])) },
+          noise_kind: { Description: 'The decided kind of noise (n/a unless the label is noise).' },
+          decided_by: { Description: 'How the decision was reached.', Levels: METHOD_LEVELS },
+          in_noise_list: {
+            Description: `1 when the component is in the run's noise list, else 0. ${rule}`,
+            Levels: { '1': 'removed', '0': 'kept' },
+          },
+          ...Object.fromEntries(
+            labelSet.map((l) => [`votes_${l}`, { Description: `Number of submitted votes "${l}" for the component.` }]),
+          ),
+          votes_total: { Description: 'Number of submitted votes for the component.' },
+          rater_labels: {
+            Description:
+              'Each rater\'s vote as CODE=label or CODE=label/noise_kind, separated by ";". Codes (R1, R2, …) are listed in the study\'s desc-raters table.',
+          },
+          lead_reason: { Description: 'The reason the study lead recorded when deciding (n/a for unanimous or majority decisions).' },
+          variance_explained: { Description: "Fraction of the run's variance explained by the component (0..1)." },
+        },
+        input,
+        { NoiseListRule: rule },
+      ),
     ),
   });
 
   // noise list
   files.push({
     name: `${stem}_desc-noiselist_components.tsv`,
-    content: toTsv(['component', 'label', 'noise_kind'], comps.filter((c) => isRemoved(c.label, policy)).map((c) => [c.idx, c.label, c.noiseKind])),
+    content: toTsv(
+      ['component', 'label', 'noise_kind'],
+      comps.filter((c) => isRemoved(c.label, policy)).map((c) => [c.idx, c.label, c.noiseKind]),
+    ),
   });
   files.push({
     name: `${stem}_desc-noiselist_components.json`,
     content: json(
-      sidecar('The components to remove from the run (the noise list). The same numbers are on one comma-separated line in the .txt file of the same name.', {
-        component: { Description: 'Component number to remove, 1-based, as in the desc-decisions table and the volumes of the desc-sources NIfTI.' },
-        label: { Description: 'The decided label (noise, or uncertain when the study removes uncertain components).' },
-        noise_kind: { Description: 'The decided kind of noise (n/a when none was given).' },
-      }, input, { NoiseListRule: rule, ComponentCount: comps.length, NoiseCount: noise.length, OneLineFile: `${stem}_desc-noiselist_components.txt` }),
+      sidecar(
+        'The components to remove from the run (the noise list). The same numbers are on one comma-separated line in the .txt file of the same name.',
+        {
+          component: {
+            Description: 'Component number to remove, 1-based, as in the desc-decisions table and the volumes of the desc-sources NIfTI.',
+          },
+          label: { Description: 'The decided label (noise, or uncertain when the study removes uncertain components).' },
+          noise_kind: { Description: 'The decided kind of noise (n/a when none was given).' },
+        },
+        input,
+        {
+          NoiseListRule: rule,
+          ComponentCount: comps.length,
+          NoiseCount: noise.length,
+          OneLineFile: `${stem}_desc-noiselist_components.txt`,
+        },
+      ),
     ),
   });
   files.push({ name: `${stem}_desc-noiselist_components.txt`, content: noiseListLine(noise) + '\n' });
@@ -155,11 +214,18 @@ export function runExportFiles(input: RunExportInput): TextFile[] {
   files.push({
     name: `${stem}_desc-sources_timeseries.json`,
     content: json(
-      sidecar('Component time courses: one column per component, one row per kept volume (initial volumes dropped by the decomposition are not included).', Object.fromEntries(comps.map((c) => [`component_${c.idx}`, { Description: `Time course of component ${c.idx} (arbitrary units, mean about 0).` }])), input, {
-        RepetitionTime: input.trSeconds,
-        SamplingFrequency: input.trSeconds ? 1 / input.trSeconds : null,
-        Rows: T,
-      }),
+      sidecar(
+        'Component time courses: one column per component, one row per kept volume (initial volumes dropped by the decomposition are not included).',
+        Object.fromEntries(
+          comps.map((c) => [`component_${c.idx}`, { Description: `Time course of component ${c.idx} (arbitrary units, mean about 0).` }]),
+        ),
+        input,
+        {
+          RepetitionTime: input.trSeconds,
+          SamplingFrequency: input.trSeconds ? 1 / input.trSeconds : null,
+          Rows: T,
+        },
+      ),
     ),
   });
 
@@ -172,18 +238,33 @@ export function runExportFiles(input: RunExportInput): TextFile[] {
       comps.map((c) => [c.idx, ...featureKeys.map((k) => c.features[k] ?? null), c.varianceExplained, c.label, c.noiseKind, c.method]),
     ),
   });
-  files.push({ name: `${stem}_desc-ratedfeatures_components.json`, content: json(sidecar('Component features with the released decision: a training table for automatic classifiers.', featureColumns(labelSet), input, { NoiseListRule: rule })) });
+  files.push({
+    name: `${stem}_desc-ratedfeatures_components.json`,
+    content: json(
+      sidecar(
+        'Component features with the released decision: a training table for automatic classifiers.',
+        featureColumns(labelSet),
+        input,
+        { NoiseListRule: rule },
+      ),
+    ),
+  });
 
   // z-maps sidecar (the NIfTI itself is copied from the decomposition)
   files.push({
     name: `${stem}_desc-sources_components.json`,
     content: json(
-      sidecar('Component spatial maps as one 4D NIfTI-1 (float32, gzip): volume c (1-based) is component c, z-scored, oriented so the heavy tail is positive; 0 outside the decomposition mask.', {}, input, {
-        Volumes: comps.length,
-        Units: 'z',
-        NoiseList: noise,
-        NoiseListRule: rule,
-      }),
+      sidecar(
+        'Component spatial maps as one 4D NIfTI-1 (float32, gzip): volume c (1-based) is component c, z-scored, oriented so the heavy tail is positive; 0 outside the decomposition mask.',
+        {},
+        input,
+        {
+          Volumes: comps.length,
+          Units: 'z',
+          NoiseList: noise,
+          NoiseListRule: rule,
+        },
+      ),
     ),
   });
   return files;
@@ -193,7 +274,7 @@ export function featureColumns(labelSet: string[]) {
   return {
     component: { Description: 'Component number, 1..k, by variance explained.' },
     ...Object.fromEntries(Object.entries(FEATURE_COLUMNS).map(([k, d]) => [snake(k), { Description: d }])),
-    variance_explained: { Description: 'Fraction of the run\'s variance explained by the component (0..1).' },
+    variance_explained: { Description: "Fraction of the run's variance explained by the component (0..1)." },
     label: { Description: 'The released decision.', Levels: Object.fromEntries(labelSet.map((l) => [l, `decided ${l}`])) },
     noise_kind: { Description: 'The decided kind of noise (n/a unless noise).' },
     decided_by: { Description: 'How the decision was reached.', Levels: METHOD_LEVELS },

@@ -56,7 +56,10 @@ export class TabularParseError extends Error {}
 export function parseDelimitedText(text: string, format: 'csv' | 'tsv'): string[][] {
   const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
   if (format === 'tsv') {
-    return body.split(/\r?\n/).filter((l) => l.trim() !== '').map((l) => l.split('\t'));
+    return body
+      .split(/\r?\n/)
+      .filter((l) => l.trim() !== '')
+      .map((l) => l.split('\t'));
   }
   const rows: string[][] = [];
   let row: string[] = [];
@@ -65,12 +68,16 @@ export function parseDelimitedText(text: string, format: 'csv' | 'tsv'): string[
   for (let i = 0; i < body.length; i++) {
     const ch = body[i];
     if (quoted) {
-      if (ch === '"' && body[i + 1] === '"') { field += '"'; i++; }
-      else if (ch === '"') quoted = false;
+      if (ch === '"' && body[i + 1] === '"') {
+        field += '"';
+        i++;
+      } else if (ch === '"') quoted = false;
       else field += ch;
     } else if (ch === '"' && field === '') quoted = true;
-    else if (ch === ',') { row.push(field); field = ''; }
-    else if (ch === '\n' || ch === '\r') {
+    else if (ch === ',') {
+      row.push(field);
+      field = '';
+    } else if (ch === '\n' || ch === '\r') {
       if (ch === '\r' && body[i + 1] === '\n') i++;
       row.push(field);
       if (row.some((f) => f.trim() !== '')) rows.push(row);
@@ -89,7 +96,10 @@ export function parseDelimitedText(text: string, format: 'csv' | 'tsv'): string[
  * comments; blank lines are skipped).
  */
 export function parseTsv(text: string): { header: string[]; rows: string[][] } {
-  const uncommented = text.split(/\r?\n/).filter((l) => !l.startsWith('#')).join('\n');
+  const uncommented = text
+    .split(/\r?\n/)
+    .filter((l) => !l.startsWith('#'))
+    .join('\n');
   const [head, ...rest] = parseDelimitedText(uncommented, 'tsv');
   return { header: head ?? [''], rows: rest };
 }

@@ -30,7 +30,15 @@ export async function acceptInvitation({
     const userId = await insertInvitedAccount(trx, { link, name, passwordHash });
     await markLinkUsed(trx, { id: link.id, now, userId });
     await recordAudit(
-      { actorId: userId, action: 'invitation.accepted', targetType: 'invitation', targetId: link.id, studyId: link.studyId, detail: { email: link.email, role: link.role }, ip },
+      {
+        actorId: userId,
+        action: 'invitation.accepted',
+        targetType: 'invitation',
+        targetId: link.id,
+        studyId: link.studyId,
+        detail: { email: link.email, role: link.role },
+        ip,
+      },
       trx,
     );
     return { userId, email: link.email };

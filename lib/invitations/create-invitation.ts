@@ -35,7 +35,14 @@ export async function createInvitation({
     if (earlier.length) await markLinksRevoked(trx, { ids: earlier.map((e) => e.id), now });
     const inserted = await insertInvitation(trx, { tokenHash: hash, email, role, studyId, studyRole, invitedBy, expiresAt, now });
     await recordAudit(
-      { actorId: invitedBy, action: 'invitation.sent', targetType: 'invitation', targetId: inserted, studyId, detail: { email, role, studyRole } },
+      {
+        actorId: invitedBy,
+        action: 'invitation.sent',
+        targetType: 'invitation',
+        targetId: inserted,
+        studyId,
+        detail: { email, role, studyRole },
+      },
       trx,
     );
     for (const e of earlier) {

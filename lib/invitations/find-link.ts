@@ -8,7 +8,11 @@ export async function findLinkByToken({ token, kind }: { token: string; kind: 'i
 }
 
 /** The state of the link and, when it cannot be used, the message to show. */
-export function describeLink(link: LinkRecord | null, kind: 'invite' | 'reset', now = new Date()): { state: LinkState; message: string | null } {
+export function describeLink(
+  link: LinkRecord | null,
+  kind: 'invite' | 'reset',
+  now = new Date(),
+): { state: LinkState; message: string | null } {
   const state = linkState(link, now);
   if (state === 'valid') return { state, message: null };
   return {

@@ -5,7 +5,9 @@ import { listInvitationLinks, type LinkRecord } from '@/lib/db/queries/invitatio
 export type InvitationListItem = LinkRecord & { state: LinkState };
 
 /** Invitations for the facility page, newest first (admins see all; others only their own), with their state. */
-export async function listInvitations({ invitedBy, limit = 200 }: { invitedBy?: number; limit?: number } = {}): Promise<InvitationListItem[]> {
+export async function listInvitations({ invitedBy, limit = 200 }: { invitedBy?: number; limit?: number } = {}): Promise<
+  InvitationListItem[]
+> {
   const rows = await listInvitationLinks({ invitedBy, limit });
   const now = new Date();
   return rows.map((r) => ({ ...r, state: linkState(r, now) }));

@@ -9,7 +9,17 @@ export async function revokeInvitation({ id, actorId, now = new Date() }: { id: 
     const row = await lockUnusedInvitation(trx, { id });
     if (!row) return false;
     await markLinksRevoked(trx, { ids: [id], now });
-    await recordAudit({ actorId, action: 'invitation.revoked', targetType: 'invitation', targetId: id, studyId: row.study_id, detail: { email: row.email } }, trx);
+    await recordAudit(
+      {
+        actorId,
+        action: 'invitation.revoked',
+        targetType: 'invitation',
+        targetId: id,
+        studyId: row.study_id,
+        detail: { email: row.email },
+      },
+      trx,
+    );
     return true;
   });
 }

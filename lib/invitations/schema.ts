@@ -16,7 +16,8 @@ export const inviteSchema = z
   .refine((v) => !v.studyId || v.studyRole, { path: ['studyRole'], message: 'Choose the role in the study.' })
   // the same rule as adding a member (issue 13 item 8): an observer account is never a study rater
   .superRefine((v, ctx) => {
-    if (v.studyId && v.studyRole && !mayHoldStudyRole(v.role, v.studyRole)) ctx.addIssue({ code: 'custom', path: ['studyRole'], message: studyRoleRefusal(v.role, v.studyRole) });
+    if (v.studyId && v.studyRole && !mayHoldStudyRole(v.role, v.studyRole))
+      ctx.addIssue({ code: 'custom', path: ['studyRole'], message: studyRoleRefusal(v.role, v.studyRole) });
   });
 export type InviteInput = z.input<typeof inviteSchema>;
 
@@ -40,7 +41,10 @@ export const acceptSchema = acceptFields.extend({ token: z.string().min(1).max(2
 /** The new-password form of a reset link. */
 export const resetFormSchema = acceptFields.omit({ name: true }).refine(samePasswords, differ);
 export type ResetFormInput = z.input<typeof resetFormSchema>;
-export const resetCompleteSchema = acceptFields.omit({ name: true }).extend({ token: z.string().min(1).max(200) }).refine(samePasswords, differ);
+export const resetCompleteSchema = acceptFields
+  .omit({ name: true })
+  .extend({ token: z.string().min(1).max(200) })
+  .refine(samePasswords, differ);
 
 /** The forgot-password form. */
 export const resetRequestSchema = z.object({ email: emailSchema });

@@ -53,15 +53,31 @@ function pendingRefusal(email: string, pending: LinkRecord, next: string): AppEr
  * The mail is queued for the worker's send-mail job (lib/jobs/queue-mail.ts: retried, and the outbox
  * keeps no live link).
  */
-export async function sendInvitation({ user, input, baseUrl, facility, ip = null }: { user: Pick<UserRow, 'id' | 'role' | 'name'>; input: InvitationRequest; baseUrl: string; facility: string; ip?: string | null }): Promise<InvitationOutcome> {
+export async function sendInvitation({
+  user,
+  input,
+  baseUrl,
+  facility,
+  ip = null,
+}: {
+  user: Pick<UserRow, 'id' | 'role' | 'name'>;
+  input: InvitationRequest;
+  baseUrl: string;
+  facility: string;
+  ip?: string | null;
+}): Promise<InvitationOutcome> {
   if (user.role !== 'admin') {
-    if (input.role !== 'rater' && input.role !== 'observer') throw new AppError('forbidden', 'Study leads may invite raters and observers; ask the facility admin for other roles.');
+    if (input.role !== 'rater' && input.role !== 'observer')
+      throw new AppError('forbidden', 'Study leads may invite raters and observers; ask the facility admin for other roles.');
     if (input.studyRole === 'lead') throw new AppError('forbidden', 'Study leads may add raters and observers to their studies.');
-    if (input.studyId && !leadsStudy(await findStudyAccess({ user, studyId: input.studyId }))) throw new AppError('forbidden', 'You can invite people only to studies you lead.');
+    if (input.studyId && !leadsStudy(await findStudyAccess({ user, studyId: input.studyId })))
+      throw new AppError('forbidden', 'You can invite people only to studies you lead.');
   }
   const studyRole = input.studyId ? (input.studyRole ?? null) : null;
   if (studyRole && !mayHoldStudyRole(input.role, studyRole)) {
-    throw new AppError('validation', `The invitation is not valid (studyRole): ${studyRoleRefusal(input.role, studyRole)}`, { studyRole: [studyRoleRefusal(input.role, studyRole)] });
+    throw new AppError('validation', `The invitation is not valid (studyRole): ${studyRoleRefusal(input.role, studyRole)}`, {
+      studyRole: [studyRoleRefusal(input.role, studyRole)],
+    });
   }
   let studyName: string | null = null;
   if (input.studyId) {
@@ -70,18 +86,34 @@ export async function sendInvitation({ user, input, baseUrl, facility, ip = null
   }
   const key = `invite:email:${input.email}` as const;
   const wait = await lockedFor(key);
-  if (wait > 0) throw new AppError('too_many_requests', `Too many invitations to this address. Try again in ${Math.ceil(wait / 60000)} minutes.`);
+  if (wait > 0)
+    throw new AppError('too_many_requests', `Too many invitations to this address. Try again in ${Math.ceil(wait / 60000)} minutes.`);
 
   if (await accountExists({ email: input.email })) {
     await countAttempts([key]);
-    await recordAudit({ actorId: user.id, action: 'invitation.existing_account', targetType: 'email', targetId: null, studyId: input.studyId ?? null, detail: { email: input.email }, ip });
-    const content = existingAccountMail({ facility, inviterName: user.name, signInUrl: `${baseUrl}/sign-in`, forgotUrl: `${baseUrl}/reset-password` });
+    await recordAudit({
+      actorId: user.id,
+      action: 'invitation.existing_account',
+      targetType: 'email',
+      targetId: null,
+      studyId: input.studyId ?? null,
+      detail: { email: input.email },
+      ip,
+    });
+    const content = existingAccountMail({
+      facility,
+      inviterName: user.name,
+      signInUrl: `${baseUrl}/sign-in`,
+      forgotUrl: `${baseUrl}/reset-password`,
+    });
     await inTransaction((trx) => queueMail(trx, { to: input.email, template: 'existing-account', content, secrets: [] }));
     return {
       outcome: 'existing_account',
       message:
         `${input.email} already has an account, so no invitation was sent; they were e-mailed a reminder to sign in. ` +
-        (studyName ? `To give them a place in ${studyName}, add them under the study's members.` : 'To give them a place in a study, add them under that study\'s members.'),
+        (studyName
+          ? `To give them a place in ${studyName}, add them under the study's members.`
+          : "To give them a place in a study, add them under that study's members."),
     };
   }
   const offer = offerText(input.role, studyName, studyRole);
@@ -89,9 +121,23 @@ export async function sendInvitation({ user, input, baseUrl, facility, ip = null
   if (pending && !input.replace) throw pendingRefusal(input.email, pending, offer);
 
   await countAttempts([key]);
-  const { token, expiresAt } = await createInvitation({ email: input.email, role: input.role, studyId: input.studyId ?? null, studyRole, invitedBy: user.id });
+  const { token, expiresAt } = await createInvitation({
+    email: input.email,
+    role: input.role,
+    studyId: input.studyId ?? null,
+    studyRole,
+    invitedBy: user.id,
+  });
   const url = `${baseUrl}/invitations/${token}`;
-  const content = invitationMail({ facility, inviterName: user.name, role: input.role, studyName, studyRole: studyRole ?? undefined, url, expiresAt });
+  const content = invitationMail({
+    facility,
+    inviterName: user.name,
+    role: input.role,
+    studyName,
+    studyRole: studyRole ?? undefined,
+    url,
+    expiresAt,
+  });
   await inTransaction((trx) => queueMail(trx, { to: input.email, template: 'invite', content, secrets: [url, token] }));
   return {
     outcome: pending ? 'replaced' : 'sent',

@@ -6,11 +6,7 @@ import { z } from 'zod';
 import { denoisePayloadSchema } from '@/lib/denoise/payload';
 import { scoreSuggestionsPayloadSchema, trainSuggestionsPayloadSchema } from './suggestion-payloads';
 import { recalibratePayloadSchema } from '@/lib/calibration/payload';
-import {
-  notifyAssignmentsPayloadSchema,
-  notifyOverduePayloadSchema,
-  notifyVotesCompletePayloadSchema,
-} from '@/lib/notifications/payloads';
+import { notifyAssignmentsPayloadSchema, notifyOverduePayloadSchema, notifyVotesCompletePayloadSchema } from '@/lib/notifications/payloads';
 import { sendMailPayloadSchema } from '@/lib/mail/payloads';
 import { releasePayloadSchema } from '@/lib/releases/payload';
 
@@ -24,7 +20,12 @@ export const decompositionOptionsSchema = z
     restarts: z.number().int().min(1).max(50).optional(),
     /** Keep this fraction of variance (0 < F < 1); replaces dimMethod. */
     varianceFraction: z.number().gt(0).lt(1).optional(),
-    seed: z.number().int().min(0).max(2 ** 31 - 1).optional(),
+    seed: z
+      .number()
+      .int()
+      .min(0)
+      .max(2 ** 31 - 1)
+      .optional(),
     contrast: z.enum(['logcosh', 'exp', 'cube']).optional(),
     tol: z.number().positive().max(0.1).optional(),
     maxIter: z.number().int().min(1).max(10_000).optional(),
@@ -67,7 +68,5 @@ export function isJobKind(kind: string): kind is JobKindName {
 
 /** One line naming every problem of a payload, e.g. "runId: expected number, received string". */
 export function describePayloadIssues(error: z.ZodError): string {
-  return error.issues
-    .map((i) => `${i.path.length ? i.path.join('.') : 'payload'}: ${i.message}`)
-    .join('; ');
+  return error.issues.map((i) => `${i.path.length ? i.path.join('.') : 'payload'}: ${i.message}`).join('; ');
 }

@@ -9,7 +9,15 @@ import { denoisePayloadSchema, type DenoisePayload } from '@/lib/denoise/payload
  * The payload is validated with the same schema the worker's kind uses, and the worker validates
  * it again when it claims.
  */
-export async function enqueueDenoise({ payload, studyId, createdBy }: { payload: DenoisePayload; studyId: number; createdBy: number }): Promise<{ jobId: number; existing: boolean }> {
+export async function enqueueDenoise({
+  payload,
+  studyId,
+  createdBy,
+}: {
+  payload: DenoisePayload;
+  studyId: number;
+  createdBy: number;
+}): Promise<{ jobId: number; existing: boolean }> {
   const data = denoisePayloadSchema.parse(payload);
   return inTransaction(async (trx) => {
     const active = await lockActiveDenoiseJobs(trx, { runId: data.runId });

@@ -15,7 +15,10 @@ export async function queueMail(
   { to, template, content, secrets }: { to: string; template: string; content: MailContent; secrets: readonly string[] },
 ): Promise<{ outboxId: number; jobId: number }> {
   const readable = withoutSecrets(content, secrets);
-  const outboxId = await insertQueuedMail({ to, template, subject: readable.subject, text: readable.text, html: readable.html, sealed: sealMail(content) }, trx);
+  const outboxId = await insertQueuedMail(
+    { to, template, subject: readable.subject, text: readable.text, html: readable.html, sealed: sealMail(content) },
+    trx,
+  );
   const jobId = await enqueueJob(trx, { kind: SEND_MAIL, payload: { outboxId }, maxAttempts: 5 });
   return { outboxId, jobId };
 }

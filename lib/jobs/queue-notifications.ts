@@ -18,7 +18,13 @@ const PRIORITY = -1;
  */
 export async function ensureNotifyJob(
   db: Knex,
-  { kind, delayMs, payload = {}, studyId = null, sooner = false }: { kind: NotifyKind; delayMs: number; payload?: Record<string, unknown>; studyId?: number | null; sooner?: boolean },
+  {
+    kind,
+    delayMs,
+    payload = {},
+    studyId = null,
+    sooner = false,
+  }: { kind: NotifyKind; delayMs: number; payload?: Record<string, unknown>; studyId?: number | null; sooner?: boolean },
 ): Promise<{ jobId: number; existing: boolean } | null> {
   if (!notificationsEnabled()) return null;
   const queued = await db('jobs').where({ kind, status: 'queued' }).orderBy('id').first('id');

@@ -43,9 +43,27 @@ export interface Job {
 }
 
 const COLUMNS = [
-  'id', 'kind', 'payload', 'status', 'priority', 'attempts', 'max_attempts', 'lease_owner', 'lease_expires_at',
-  'run_after', 'stage', 'percent', 'message', 'error', 'result', 'run_id', 'study_id', 'created_by', 'created_at',
-  'started_at', 'finished_at',
+  'id',
+  'kind',
+  'payload',
+  'status',
+  'priority',
+  'attempts',
+  'max_attempts',
+  'lease_owner',
+  'lease_expires_at',
+  'run_after',
+  'stage',
+  'percent',
+  'message',
+  'error',
+  'result',
+  'run_id',
+  'study_id',
+  'created_by',
+  'created_at',
+  'started_at',
+  'finished_at',
 ] as const;
 
 type JobRow = Record<(typeof COLUMNS)[number], unknown>;
@@ -114,7 +132,8 @@ export async function enqueueJob<K extends JobKindName>(db: Knex, opts: EnqueueO
     throw new JobPayloadError(`The payload of a ${opts.kind} job is not valid: ${describePayloadIssues(parsed.error)}.`);
   }
   const maxAttempts = opts.maxAttempts ?? 3;
-  if (!Number.isInteger(maxAttempts) || maxAttempts < 1) throw new JobPayloadError(`maxAttempts must be a whole number ≥ 1; got ${maxAttempts}.`);
+  if (!Number.isInteger(maxAttempts) || maxAttempts < 1)
+    throw new JobPayloadError(`maxAttempts must be a whole number ≥ 1; got ${maxAttempts}.`);
   const [id] = await db('jobs').insert({
     kind: opts.kind,
     payload: toJson(parsed.data),
@@ -296,11 +315,7 @@ export async function failJob(
   f: { message: string; error?: string | null; permanent?: boolean; retryBaseMs?: number },
 ): Promise<FailOutcome> {
   return db.transaction(async (trx) => {
-    const row = await trx('jobs')
-      .select('status', 'lease_owner', 'attempts', 'max_attempts', 'run_id')
-      .where({ id })
-      .forUpdate()
-      .first();
+    const row = await trx('jobs').select('status', 'lease_owner', 'attempts', 'max_attempts', 'run_id').where({ id }).forUpdate().first();
     if (!row || row.status !== 'running' || row.lease_owner !== workerId) return 'lost';
     const attempts = Number(row.attempts);
     const max = Number(row.max_attempts);
@@ -411,7 +426,9 @@ export async function requeueExpiredLeases(db: Knex): Promise<{ requeued: number
             lease_expires_at: null,
             run_after: trx.raw('NOW(3)'),
             stage: 'queued',
-            message: clip(`Attempt ${attempts} stopped: worker ${r.lease_owner ?? '?'} stopped responding (lease expired); it will run again.`),
+            message: clip(
+              `Attempt ${attempts} stopped: worker ${r.lease_owner ?? '?'} stopped responding (lease expired); it will run again.`,
+            ),
           });
         if (r.run_id !== null) {
           await trx('runs').where({ id: r.run_id, status: 'processing' }).update({ status: 'queued' });

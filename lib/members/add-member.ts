@@ -12,7 +12,17 @@ import { assertAnotherLead } from './only-lead';
  * Adds an existing, active account to a study by e-mail, or changes its study role. The account's
  * facility role must allow the study role. Audited.
  */
-export async function addMember({ actor, studyId, email, studyRole }: { actor: Pick<UserRow, 'id'>; studyId: number; email: string; studyRole: StudyRole }): Promise<StudyMember> {
+export async function addMember({
+  actor,
+  studyId,
+  email,
+  studyRole,
+}: {
+  actor: Pick<UserRow, 'id'>;
+  studyId: number;
+  email: string;
+  studyRole: StudyRole;
+}): Promise<StudyMember> {
   const account = await findAccountForMembership({ email });
   if (!account || !account.active) {
     throw new AppError('not_found', `No active account has the e-mail ${email}. Ask the facility admin to invite that person first.`, {
@@ -31,7 +41,14 @@ export async function addMember({ actor, studyId, email, studyRole }: { actor: P
     if (existing && existing.study_role === 'lead' && studyRole !== 'lead') await assertAnotherLead(trx, studyId, account.id);
     await upsertMembership(trx, { studyId, userId: account.id, studyRole, addedBy: actor.id });
     await recordAudit(
-      { actorId: actor.id, action: existing ? 'study.member_role' : 'study.member_add', targetType: 'user', targetId: account.id, studyId, detail: { studyRole, before: existing?.study_role ?? null } },
+      {
+        actorId: actor.id,
+        action: existing ? 'study.member_role' : 'study.member_add',
+        targetType: 'user',
+        targetId: account.id,
+        studyId,
+        detail: { studyRole, before: existing?.study_role ?? null },
+      },
       trx,
     );
   });

@@ -1,14 +1,6 @@
 /** Reasons a NIfTI file can be refused; each NiftiError carries one. */
 export type NiftiErrorCode =
-  | 'not_nifti'
-  | 'truncated'
-  | 'bad_header'
-  | 'unsupported_datatype'
-  | 'bad_dims'
-  | 'too_large'
-  | 'not_4d'
-  | 'grid_mismatch'
-  | 'bad_input';
+  'not_nifti' | 'truncated' | 'bad_header' | 'unsupported_datatype' | 'bad_dims' | 'too_large' | 'not_4d' | 'grid_mismatch' | 'bad_input';
 
 /**
  * Typed error for everything the NIfTI library refuses. The message says what is wrong and what

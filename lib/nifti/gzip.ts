@@ -11,9 +11,15 @@ export function isGzip(bytes: Uint8Array): boolean {
 function zlibFailure(err: unknown, what: string): NiftiError {
   const code = (err as { code?: string }).code;
   if (code === 'Z_BUF_ERROR') {
-    return new NiftiError('truncated', `The compressed ${what} ends early (the gzip stream is cut off). Re-export or re-upload the complete file.`);
+    return new NiftiError(
+      'truncated',
+      `The compressed ${what} ends early (the gzip stream is cut off). Re-export or re-upload the complete file.`,
+    );
   }
-  return new NiftiError('not_nifti', `The gzip data of the ${what} is corrupt (${(err as Error).message}). Re-export or re-upload the file.`);
+  return new NiftiError(
+    'not_nifti',
+    `The gzip data of the ${what} is corrupt (${(err as Error).message}). Re-export or re-upload the file.`,
+  );
 }
 
 /**
@@ -44,13 +50,19 @@ export function gunzipPrefix(bytes: Uint8Array, want: number): Uint8Array {
  */
 export function gunzipBounded(bytes: Uint8Array, maxBytes: number): Uint8Array {
   if (maxBytes > bufferConstants.MAX_LENGTH) {
-    throw new NiftiError('too_large', `The image needs ${maxBytes} bytes once decompressed, more than one buffer can hold here (${bufferConstants.MAX_LENGTH}). Split the run or upload it uncompressed.`);
+    throw new NiftiError(
+      'too_large',
+      `The image needs ${maxBytes} bytes once decompressed, more than one buffer can hold here (${bufferConstants.MAX_LENGTH}). Split the run or upload it uncompressed.`,
+    );
   }
   try {
     return gunzipSync(bytes, { maxOutputLength: maxBytes });
   } catch (err) {
     if ((err as { code?: string }).code === 'ERR_BUFFER_TOO_LARGE') {
-      throw new NiftiError('too_large', `The compressed file decompresses to more than the ${maxBytes} bytes its NIfTI header implies. The file is damaged or not what it claims; re-export it.`);
+      throw new NiftiError(
+        'too_large',
+        `The compressed file decompresses to more than the ${maxBytes} bytes its NIfTI header implies. The file is damaged or not what it claims; re-export it.`,
+      );
     }
     throw zlibFailure(err, 'image');
   }

@@ -2,15 +2,7 @@
 // for the comparison with nifti-reader-js 0.8.0 and nibabel 5.0.0).
 // Field layout and codes: nifti1.h and nifti2.h (NIfTI Data Format Working Group).
 import { diagonalAffine, quaternionToAffine, type Affine } from './affine';
-import {
-  DATATYPES,
-  NIFTI1_HEADER_SIZE,
-  NIFTI1_SWAPPED,
-  NIFTI2_HEADER_SIZE,
-  NIFTI2_SWAPPED,
-  SPACE_UNITS,
-  TIME_UNITS,
-} from './codes';
+import { DATATYPES, NIFTI1_HEADER_SIZE, NIFTI1_SWAPPED, NIFTI2_HEADER_SIZE, NIFTI2_SWAPPED, SPACE_UNITS, TIME_UNITS } from './codes';
 import { NiftiError } from './errors';
 import { gunzipPrefix, isGzip } from './gzip';
 import { N1, N2 } from './header-layout';
@@ -60,7 +52,10 @@ function ascii(bytes: Uint8Array, offset: number, length: number): string {
 
 function detectVersion(bytes: Uint8Array): { version: 1 | 2; le: boolean } {
   if (bytes.length < 4) {
-    throw new NiftiError('not_nifti', `The data is only ${bytes.length} bytes long, too short to be a NIfTI file. Upload a .nii or .nii.gz image.`);
+    throw new NiftiError(
+      'not_nifti',
+      `The data is only ${bytes.length} bytes long, too short to be a NIfTI file. Upload a .nii or .nii.gz image.`,
+    );
   }
   const v = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   const le = v.getInt32(0, true);
@@ -71,9 +66,15 @@ function detectVersion(bytes: Uint8Array): { version: 1 | 2; le: boolean } {
   const magic1 = bytes.length >= 348 ? ascii(bytes, N1.magic, 4) : '';
   const magic2 = bytes.length >= 8 ? ascii(bytes, N2.magic, 4) : '';
   if (magic1 === 'n+1' || magic1 === 'ni1' || magic2 === 'n+2' || magic2 === 'ni2') {
-    throw new NiftiError('bad_header', `The NIfTI header size field (sizeof_hdr) reads ${le}; it must be 348 (NIfTI-1) or 540 (NIfTI-2). The header is damaged; re-export the file.`);
+    throw new NiftiError(
+      'bad_header',
+      `The NIfTI header size field (sizeof_hdr) reads ${le}; it must be 348 (NIfTI-1) or 540 (NIfTI-2). The header is damaged; re-export the file.`,
+    );
   }
-  throw new NiftiError('not_nifti', 'This is not a NIfTI file (the first bytes hold neither a NIfTI-1 nor a NIfTI-2 header). Upload a .nii or .nii.gz image.');
+  throw new NiftiError(
+    'not_nifti',
+    'This is not a NIfTI file (the first bytes hold neither a NIfTI-1 nor a NIfTI-2 header). Upload a .nii or .nii.gz image.',
+  );
 }
 
 /**
@@ -86,7 +87,10 @@ export function parseNiftiHeader(input: Uint8Array): NiftiHeader {
   const { version, le } = detectVersion(bytes);
   const size = version === 1 ? NIFTI1_HEADER_SIZE : NIFTI2_HEADER_SIZE;
   if (bytes.length < size) {
-    throw new NiftiError('truncated', `The file is truncated: a NIfTI-${version} header needs ${size} bytes but only ${bytes.length} are present. Re-export or re-upload the complete file.`);
+    throw new NiftiError(
+      'truncated',
+      `The file is truncated: a NIfTI-${version} header needs ${size} bytes but only ${bytes.length} are present. Re-export or re-upload the complete file.`,
+    );
   }
   const v = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   const i16 = (o: number) => v.getInt16(o, le);
@@ -96,7 +100,10 @@ export function parseNiftiHeader(input: Uint8Array): NiftiHeader {
   const i64 = (o: number) => {
     const big = v.getBigInt64(o, le);
     if (big > BigInt(Number.MAX_SAFE_INTEGER) || big < -BigInt(Number.MAX_SAFE_INTEGER)) {
-      throw new NiftiError('bad_dims', `A NIfTI-2 size field at byte ${o} holds ${big}, beyond any real image. The header is damaged; re-export the file.`);
+      throw new NiftiError(
+        'bad_dims',
+        `A NIfTI-2 size field at byte ${o} holds ${big}, beyond any real image. The header is damaged; re-export the file.`,
+      );
     }
     return Number(big);
   };
@@ -135,10 +142,16 @@ export function parseNiftiHeader(input: Uint8Array): NiftiHeader {
     intentCode = i16(N1.intent_code);
     intentName = ascii(bytes, N1.intent_name, 16);
     if (magic === 'ni1') {
-      throw new NiftiError('bad_header', 'This is the header of a two-file NIfTI pair (magic "ni1"), whose voxels live in a separate file. Convert it to a single-file .nii or .nii.gz and upload that.');
+      throw new NiftiError(
+        'bad_header',
+        'This is the header of a two-file NIfTI pair (magic "ni1"), whose voxels live in a separate file. Convert it to a single-file .nii or .nii.gz and upload that.',
+      );
     }
     if (magic !== 'n+1') {
-      throw new NiftiError('bad_header', `The NIfTI-1 magic string reads ${JSON.stringify(magic)}; it must be "n+1". The header is damaged or not NIfTI; re-export the file.`);
+      throw new NiftiError(
+        'bad_header',
+        `The NIfTI-1 magic string reads ${JSON.stringify(magic)}; it must be "n+1". The header is damaged or not NIfTI; re-export the file.`,
+      );
     }
   } else {
     magic = ascii(bytes, N2.magic, 4);
@@ -159,40 +172,64 @@ export function parseNiftiHeader(input: Uint8Array): NiftiHeader {
     intentCode = i32(N2.intent_code);
     intentName = ascii(bytes, N2.intent_name, 16);
     if (magic === 'ni2') {
-      throw new NiftiError('bad_header', 'This is the header of a two-file NIfTI-2 pair (magic "ni2"), whose voxels live in a separate file. Convert it to a single-file .nii or .nii.gz and upload that.');
+      throw new NiftiError(
+        'bad_header',
+        'This is the header of a two-file NIfTI-2 pair (magic "ni2"), whose voxels live in a separate file. Convert it to a single-file .nii or .nii.gz and upload that.',
+      );
     }
     // nifti2.h: magic "n+2\0" followed by \r\n\032\n (detects text-mode transfer damage).
     if (magic !== 'n+2' || tail.join(',') !== '13,10,26,10') {
-      throw new NiftiError('bad_header', `The NIfTI-2 magic string is wrong (${JSON.stringify(magic)}, tail ${tail.join(' ')}); it must be "n+2\\0\\r\\n\\032\\n". The file was damaged, e.g. by a text-mode transfer; re-export it.`);
+      throw new NiftiError(
+        'bad_header',
+        `The NIfTI-2 magic string is wrong (${JSON.stringify(magic)}, tail ${tail.join(' ')}); it must be "n+2\\0\\r\\n\\032\\n". The file was damaged, e.g. by a text-mode transfer; re-export it.`,
+      );
     }
   }
 
   // dims: dim[0] = rank 1..7, each used dim ≥ 1 (nifti1.h).
   const rank = dim[0];
   if (!(rank >= 1 && rank <= 7)) {
-    throw new NiftiError('bad_dims', `The header's dim[0] (number of dimensions) is ${rank}; it must be 1 to 7. The header is damaged; re-export the file.`);
+    throw new NiftiError(
+      'bad_dims',
+      `The header's dim[0] (number of dimensions) is ${rank}; it must be 1 to 7. The header is damaged; re-export the file.`,
+    );
   }
   const dims = dim.slice(1, rank + 1);
   if (dims.some((d) => !(d >= 1))) {
-    throw new NiftiError('bad_dims', `The image dimensions ${JSON.stringify(dims)} include a size below 1. The header is damaged; re-export the file.`);
+    throw new NiftiError(
+      'bad_dims',
+      `The image dimensions ${JSON.stringify(dims)} include a size below 1. The header is damaged; re-export the file.`,
+    );
   }
   if (dims.slice(4).some((d) => d > 1)) {
-    throw new NiftiError('bad_dims', `The image has ${rank} dimensions ${JSON.stringify(dims)}; only 3D and 4D (x, y, z, time) images are supported. Split it into 4D runs.`);
+    throw new NiftiError(
+      'bad_dims',
+      `The image has ${rank} dimensions ${JSON.stringify(dims)}; only 3D and 4D (x, y, z, time) images are supported. Split it into 4D runs.`,
+    );
   }
 
   const dt = DATATYPES[datatypeCode];
   if (!dt) {
-    throw new NiftiError('unsupported_datatype', `The header's datatype code ${datatypeCode} is not a NIfTI datatype. The header is damaged; re-export the file.`);
+    throw new NiftiError(
+      'unsupported_datatype',
+      `The header's datatype code ${datatypeCode} is not a NIfTI datatype. The header is damaged; re-export the file.`,
+    );
   }
   if (!dt.supported) {
-    throw new NiftiError('unsupported_datatype', `The image's datatype is ${dt.name} (code ${datatypeCode}), which Quorum does not read; it needs real scalar voxels (uint8, int8, int16, uint16, int32, uint32, float32 or float64). Convert the image, e.g. to float32.`);
+    throw new NiftiError(
+      'unsupported_datatype',
+      `The image's datatype is ${dt.name} (code ${datatypeCode}), which Quorum does not read; it needs real scalar voxels (uint8, int8, int16, uint16, int32, uint32, float32 or float64). Convert the image, e.g. to float32.`,
+    );
   }
 
   const minOffset = size + 4;
   let voxOffset = rawVoxOffset;
   if (voxOffset === 0) voxOffset = minOffset; // some writers leave 0 in single files (common practice, no source)
   if (!Number.isInteger(voxOffset) || voxOffset < minOffset) {
-    throw new NiftiError('bad_header', `The header's vox_offset is ${rawVoxOffset}; a single-file NIfTI-${version} needs a whole number of at least ${minOffset}. The header is damaged; re-export the file.`);
+    throw new NiftiError(
+      'bad_header',
+      `The header's vox_offset is ${rawVoxOffset}; a single-file NIfTI-${version} needs a whole number of at least ${minOffset}. The header is damaged; re-export the file.`,
+    );
   }
 
   // Scaling: nifti1.h — "If the scl_slope field is nonzero, then each voxel value ... y = scl_slope*x + scl_inter".
@@ -207,22 +244,56 @@ export function parseNiftiHeader(input: Uint8Array): NiftiHeader {
   const trSeconds = rank >= 4 && tFactor !== null && pixdim[4] > 0 && Number.isFinite(pixdim[4]) ? pixdim[4] * tFactor : null;
 
   const qform = quaternionToAffine({
-    b: quat[0], c: quat[1], d: quat[2], qx: quat[3], qy: quat[4], qz: quat[5],
+    b: quat[0],
+    c: quat[1],
+    d: quat[2],
+    qx: quat[3],
+    qy: quat[4],
+    qz: quat[5],
     qfac: pixdim[0] < 0 ? -1 : 1, // nifti1.h: qfac = pixdim[0], 0 treated as 1
-    dx: Math.abs(pixdim[1]), dy: Math.abs(pixdim[2]), dz: Math.abs(pixdim[3]),
+    dx: Math.abs(pixdim[1]),
+    dy: Math.abs(pixdim[2]),
+    dz: Math.abs(pixdim[3]),
   });
   const sform: Affine = [...srow, [0, 0, 0, 1]];
   const affine = sformCode > 0 ? sform : qformCode > 0 ? qform : diagonalAffine(pixdim);
 
   return {
-    version, dims, pixdim, datatype: dt.name, datatypeCode, bitpix, littleEndian: le, voxOffset,
-    sclSlope, sclInter, xyztUnits, spaceUnits, timeUnits: time.name, trSeconds, qformCode, sformCode,
-    affine, qform, sform, description, intentCode, intentName,
+    version,
+    dims,
+    pixdim,
+    datatype: dt.name,
+    datatypeCode,
+    bitpix,
+    littleEndian: le,
+    voxOffset,
+    sclSlope,
+    sclInter,
+    xyztUnits,
+    spaceUnits,
+    timeUnits: time.name,
+    trSeconds,
+    qformCode,
+    sformCode,
+    affine,
+    qform,
+    sform,
+    description,
+    intentCode,
+    intentName,
   };
 }
 
 /** Voxels per volume, volume count and voxel-data byte size implied by a header. */
-export function imageSizes(h: NiftiHeader): { nx: number; ny: number; nz: number; nt: number; voxelsPerVolume: number; totalVoxels: number; dataBytes: number } {
+export function imageSizes(h: NiftiHeader): {
+  nx: number;
+  ny: number;
+  nz: number;
+  nt: number;
+  voxelsPerVolume: number;
+  totalVoxels: number;
+  dataBytes: number;
+} {
   const [nx, ny = 1, nz = 1, nt = 1] = h.dims;
   const voxelsPerVolume = nx * ny * nz;
   const totalVoxels = voxelsPerVolume * nt;

@@ -31,8 +31,14 @@ type NumericArray = Uint8Array | Int8Array | Int16Array | Uint16Array | Int32Arr
 type NumericCtor = { new (buffer: ArrayBuffer, byteOffset: number, length: number): NumericArray; BYTES_PER_ELEMENT: number };
 
 const CTORS: Record<string, NumericCtor> = {
-  uint8: Uint8Array, int8: Int8Array, int16: Int16Array, uint16: Uint16Array,
-  int32: Int32Array, uint32: Uint32Array, float32: Float32Array, float64: Float64Array,
+  uint8: Uint8Array,
+  int8: Int8Array,
+  int16: Int16Array,
+  uint16: Uint16Array,
+  int32: Int32Array,
+  uint32: Uint32Array,
+  float32: Float32Array,
+  float64: Float64Array,
 };
 
 const NATIVE_LE = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1;
@@ -41,7 +47,10 @@ const NATIVE_LE = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1;
 export function checkSize(h: NiftiHeader, maxVoxels = DEFAULT_MAX_VOXELS): ReturnType<typeof imageSizes> {
   const s = imageSizes(h);
   if (s.totalVoxels > maxVoxels) {
-    throw new NiftiError('too_large', `The image has ${s.totalVoxels} voxels (${h.dims.join(' × ')}), more than the limit of ${maxVoxels}. Crop or split the run before uploading.`);
+    throw new NiftiError(
+      'too_large',
+      `The image has ${s.totalVoxels} voxels (${h.dims.join(' × ')}), more than the limit of ${maxVoxels}. Crop or split the run before uploading.`,
+    );
   }
   return s;
 }
@@ -69,7 +78,10 @@ export function imageFromBytes(header: NiftiHeader, bytes: Uint8Array, opts: Dec
   const { nx, ny, nz, nt, voxelsPerVolume, dataBytes } = checkSize(header, opts.maxVoxels);
   const present = Math.max(0, bytes.length - header.voxOffset);
   if (present < dataBytes) {
-    throw new NiftiError('truncated', `The file is truncated: the header promises ${dataBytes} bytes of voxel data but only ${present} are present. Re-export or re-upload the complete file.`);
+    throw new NiftiError(
+      'truncated',
+      `The file is truncated: the header promises ${dataBytes} bytes of voxel data but only ${present} are present. Re-export or re-upload the complete file.`,
+    );
   }
   const ctor = CTORS[header.datatype];
   const bpv = DATATYPES[header.datatypeCode].bitpix / 8;
@@ -92,15 +104,25 @@ export function imageFromBytes(header: NiftiHeader, bytes: Uint8Array, opts: Dec
       const src = bytes.subarray(header.voxOffset + t * volBytes, header.voxOffset + (t + 1) * volBytes);
       const dst = s.bytes;
       if (!swap) dst.set(src);
-      else if (bpv === 2) for (let i = 0; i < volBytes; i += 2) { dst[i] = src[i + 1]; dst[i + 1] = src[i]; }
-      else if (bpv === 4) for (let i = 0; i < volBytes; i += 4) { dst[i] = src[i + 3]; dst[i + 1] = src[i + 2]; dst[i + 2] = src[i + 1]; dst[i + 3] = src[i]; }
+      else if (bpv === 2)
+        for (let i = 0; i < volBytes; i += 2) {
+          dst[i] = src[i + 1];
+          dst[i + 1] = src[i];
+        }
+      else if (bpv === 4)
+        for (let i = 0; i < volBytes; i += 4) {
+          dst[i] = src[i + 3];
+          dst[i + 1] = src[i + 2];
+          dst[i + 2] = src[i + 1];
+          dst[i + 3] = src[i];
+        }
       else for (let i = 0; i < volBytes; i += bpv) for (let k = 0; k < bpv; k++) dst[i + k] = src[i + bpv - 1 - k];
       s.t = t;
     }
     return s.view;
   };
   // Volumes per block in readVoxelSeries: each voxel's row then gets a run of contiguous writes.
-  const block = Math.max(1, Math.min(16, Math.floor(64 * 1024 * 1024 / Math.max(1, volBytes))));
+  const block = Math.max(1, Math.min(16, Math.floor((64 * 1024 * 1024) / Math.max(1, volBytes))));
 
   const slope = header.sclSlope;
   const inter = header.sclInter;
@@ -113,11 +135,17 @@ export function imageFromBytes(header: NiftiHeader, bytes: Uint8Array, opts: Dec
   };
 
   return {
-    header, nx, ny, nz, nt, voxelsPerVolume,
+    header,
+    nx,
+    ny,
+    nz,
+    nt,
+    voxelsPerVolume,
     readVolume(t, out) {
       checkT(t, 'Volume');
       const dst = out ?? new Float32Array(voxelsPerVolume);
-      if (dst.length < voxelsPerVolume) throw new NiftiError('bad_input', `The output array holds ${dst.length} values; a volume needs ${voxelsPerVolume}.`);
+      if (dst.length < voxelsPerVolume)
+        throw new NiftiError('bad_input', `The output array holds ${dst.length} values; a volume needs ${voxelsPerVolume}.`);
       const src = volumeView(t);
       if (identity) for (let i = 0; i < voxelsPerVolume; i++) dst[i] = src[i];
       else for (let i = 0; i < voxelsPerVolume; i++) dst[i] = src[i] * slope + inter;
@@ -128,10 +156,12 @@ export function imageFromBytes(header: NiftiHeader, bytes: Uint8Array, opts: Dec
       const T = nt - tStart;
       const n = indices.length;
       const dst = out ?? new Float32Array(n * T);
-      if (dst.length < n * T) throw new NiftiError('bad_input', `The output array holds ${dst.length} values; ${n} voxels × ${T} volumes need ${n * T}.`);
+      if (dst.length < n * T)
+        throw new NiftiError('bad_input', `The output array holds ${dst.length} values; ${n} voxels × ${T} volumes need ${n * T}.`);
       for (let v = 0; v < n; v++) {
         const idx = indices[v];
-        if (!(idx >= 0 && idx < voxelsPerVolume)) throw new NiftiError('bad_input', `Voxel index ${idx} (position ${v}) is outside the volume of ${voxelsPerVolume} voxels.`);
+        if (!(idx >= 0 && idx < voxelsPerVolume))
+          throw new NiftiError('bad_input', `Voxel index ${idx} (position ${v}) is outside the volume of ${voxelsPerVolume} voxels.`);
       }
       // Blocks of volumes: for each voxel write `nb` neighbouring time points (cache-friendly rows).
       for (let t0 = tStart; t0 < nt; t0 += block) {

@@ -45,7 +45,12 @@ export interface NiftiWriteInput {
  * With both codes 0 (an "Analyze-like" header) the output gets the pixdim diagonal as before,
  * written with sform_code 0 and qform_code 0 so it claims no more than the input did.
  */
-export function spatialFieldsOf(h: { affine: number[][]; qform: number[][]; qformCode: number; sformCode: number }): Pick<NiftiWriteInput, 'affine' | 'sformCode' | 'qformCode' | 'qformAffine'> {
+export function spatialFieldsOf(h: {
+  affine: number[][];
+  qform: number[][];
+  qformCode: number;
+  sformCode: number;
+}): Pick<NiftiWriteInput, 'affine' | 'sformCode' | 'qformCode' | 'qformAffine'> {
   const copy = (a: number[][]) => a.map((r) => [...r]);
   return {
     affine: copy(h.affine),
@@ -55,7 +60,10 @@ export function spatialFieldsOf(h: { affine: number[][]; qform: number[][]; qfor
   };
 }
 
-const WRITABLE: Record<WritableDatatype, { code: number; bitpix: number; ctor: typeof Uint8Array | typeof Int16Array | typeof Float32Array }> = {
+const WRITABLE: Record<
+  WritableDatatype,
+  { code: number; bitpix: number; ctor: typeof Uint8Array | typeof Int16Array | typeof Float32Array }
+> = {
   uint8: { code: 2, bitpix: 8, ctor: Uint8Array },
   int16: { code: 4, bitpix: 16, ctor: Int16Array },
   float32: { code: 16, bitpix: 32, ctor: Float32Array },
@@ -88,10 +96,12 @@ export function encodeNifti1(input: NiftiWriteInput): Uint8Array {
   const dims = input.dims;
   if (!Array.isArray(dims) || dims.length < 1 || dims.length > 7) bad(`dims must list 1 to 7 sizes; got ${JSON.stringify(dims)}.`);
   for (const d of dims) {
-    if (!Number.isInteger(d) || d < 1 || d > 32767) bad(`Every dimension must be an integer from 1 to 32767 (NIfTI-1 stores shorts); got ${JSON.stringify(dims)}.`);
+    if (!Number.isInteger(d) || d < 1 || d > 32767)
+      bad(`Every dimension must be an integer from 1 to 32767 (NIfTI-1 stores shorts); got ${JSON.stringify(dims)}.`);
   }
   const nvox = dims.reduce((a, b) => a * b, 1);
-  if (!(input.data instanceof spec.ctor)) bad(`datatype "${input.datatype}" needs a ${spec.ctor.name}; got ${input.data?.constructor?.name ?? typeof input.data}.`);
+  if (!(input.data instanceof spec.ctor))
+    bad(`datatype "${input.datatype}" needs a ${spec.ctor.name}; got ${input.data?.constructor?.name ?? typeof input.data}.`);
   if (input.data.length !== nvox) bad(`dims ${JSON.stringify(dims)} need ${nvox} voxel values; data holds ${input.data.length}.`);
 
   const pixdim = new Array<number>(8).fill(1);

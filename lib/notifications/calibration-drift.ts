@@ -36,27 +36,47 @@ export async function sendDriftNotices(db: Knex): Promise<{ sent: Array<{ leadId
   const facility = facilityName();
   const base = publicBaseUrl();
   for (const c of certified) {
-    const studyId = Number(c.studyId), raterId = Number(c.raterId);
+    const studyId = Number(c.studyId),
+      raterId = Number(c.raterId);
     if (!isGated(await calibrationThreshold({ studyId }, db))) continue;
-    const last = await db('assignments as a').join('runs as r', 'r.id', 'a.run_id')
-      .where({ 'a.rater_id': raterId, 'r.study_id': studyId, 'r.is_calibration': true }).whereNotNull('a.submitted_at')
-      .max({ at: 'a.submitted_at' }).first();
+    const last = await db('assignments as a')
+      .join('runs as r', 'r.id', 'a.run_id')
+      .where({ 'a.rater_id': raterId, 'r.study_id': studyId, 'r.is_calibration': true })
+      .whereNotNull('a.submitted_at')
+      .max({ at: 'a.submitted_at' })
+      .first();
     if (!last?.at) continue;
     const gate = await calibrationGate({ studyId, raterId }, db);
     if (gate.passes) continue;
     const key = `${raterId}:${new Date(last.at).toISOString()}`;
-    const leads = await db('study_members as m').join('users as u', 'u.id', 'm.user_id')
-      .where({ 'm.study_id': studyId, 'm.study_role': 'lead', 'u.active': true }).select('u.id', 'u.email', 'u.name');
-    const done = await db('notifications').where({ kind: CALIBRATION_DRIFT_KIND }).whereIn('user_id', leads.map((l) => l.id).concat(0)).select('user_id', 'payload');
+    const leads = await db('study_members as m')
+      .join('users as u', 'u.id', 'm.user_id')
+      .where({ 'm.study_id': studyId, 'm.study_role': 'lead', 'u.active': true })
+      .select('u.id', 'u.email', 'u.name');
+    const done = await db('notifications')
+      .where({ kind: CALIBRATION_DRIFT_KIND })
+      .whereIn('user_id', leads.map((l) => l.id).concat(0))
+      .select('user_id', 'payload');
     const seen = new Set(done.map((d) => `${d.user_id}|${keyOf(d.payload)}`));
     for (const lead of leads) {
       if (seen.has(`${lead.id}|${key}`)) continue;
-      const content = calibrationDriftMail({ facility, name: lead.name, studyName: c.studyName, raterName: c.raterName, reason: gate.reason ?? 'the score is below the threshold', url: `${base}/studies/${studyId}/calibration` });
+      const content = calibrationDriftMail({
+        facility,
+        name: lead.name,
+        studyName: c.studyName,
+        raterName: c.raterName,
+        reason: gate.reason ?? 'the score is below the threshold',
+        url: `${base}/studies/${studyId}/calibration`,
+      });
       if (!(await deliverMail({ to: lead.email, content, template: 'calibration-drift' }))) {
         result.failed++;
         continue;
       }
-      await db('notifications').insert({ user_id: lead.id, kind: CALIBRATION_DRIFT_KIND, payload: JSON.stringify({ studyId, raterId, key }) });
+      await db('notifications').insert({
+        user_id: lead.id,
+        kind: CALIBRATION_DRIFT_KIND,
+        payload: JSON.stringify({ studyId, raterId, key }),
+      });
       result.sent.push({ leadId: Number(lead.id), raterId });
     }
   }

@@ -42,7 +42,17 @@ export async function sendAssignmentNotices(db: Knex): Promise<AssignmentNoticeR
         .join('studies as s', 's.id', 'r.study_id')
         .whereIn('a.id', ids)
         .orderBy([{ column: 's.name' }, { column: 'r.id' }])
-        .select('a.id', 'a.run_id as runId', 'a.due_at as dueAt', 's.name as studyName', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel');
+        .select(
+          'a.id',
+          'a.run_id as runId',
+          'a.due_at as dueAt',
+          's.name as studyName',
+          'r.sub',
+          'r.ses',
+          'r.task',
+          'r.acq',
+          'r.run_label as runLabel',
+        );
       if (!rows.length) return null;
       const user = await trx('users').where({ id: raterId }).first('email', 'name');
       const content = assignedRunsMail({
@@ -58,7 +68,12 @@ export async function sendAssignmentNotices(db: Knex): Promise<AssignmentNoticeR
       });
       const ok = await deliverMail({ to: user.email, content, template: 'assignments' });
       if (!ok) return 'failed' as const;
-      await trx('assignments').whereIn('id', rows.map((r) => r.id)).update({ notified_at: trx.fn.now(3) });
+      await trx('assignments')
+        .whereIn(
+          'id',
+          rows.map((r) => r.id),
+        )
+        .update({ notified_at: trx.fn.now(3) });
       return rows.map((r) => Number(r.runId));
     });
     if (outcome === 'failed') result.failed.push(raterId);

@@ -17,7 +17,15 @@ export const VOTES_COMPLETE_KIND = 'run.votes_complete';
 const RECENT_DAYS = 7;
 const LOCK = 'quorum.notify-votes-complete';
 
-export type CompleteRun = { runId: number; studyId: number; studyName: string; runName: string; raters: number; pending: number; key: string };
+export type CompleteRun = {
+  runId: number;
+  studyId: number;
+  studyName: string;
+  runName: string;
+  raters: number;
+  pending: number;
+  key: string;
+};
 
 /** Runs whose votes are complete (every assigned rater submitted), recently, with pending decisions. */
 export async function findCompleteRuns(db: Knex, { runIds }: { runIds?: number[] } = {}): Promise<CompleteRun[]> {
@@ -114,6 +122,10 @@ export async function sendVotesCompleteNotices(db: Knex): Promise<VotesCompleteR
 
 /** True while some ready run still has an assignment not submitted (the check keeps re-queuing itself). */
 export async function ratingsOpen(db: Knex): Promise<boolean> {
-  const row = await db('assignments as a').join('runs as r', 'r.id', 'a.run_id').where('r.status', 'ready').whereNull('a.submitted_at').first('a.id');
+  const row = await db('assignments as a')
+    .join('runs as r', 'r.id', 'a.run_id')
+    .where('r.status', 'ready')
+    .whereNull('a.submitted_at')
+    .first('a.id');
   return !!row;
 }

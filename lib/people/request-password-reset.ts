@@ -9,7 +9,17 @@ import { inTransaction } from '@/lib/db/transaction';
 import { queueMail } from '@/lib/jobs/queue-mail';
 import { passwordResetMail } from '@/lib/mail/templates/password-reset';
 
-export async function requestPasswordReset({ email, ip, baseUrl, facility }: { email: string; ip: string | null; baseUrl: string; facility: string }): Promise<{ queued: boolean }> {
+export async function requestPasswordReset({
+  email,
+  ip,
+  baseUrl,
+  facility,
+}: {
+  email: string;
+  ip: string | null;
+  baseUrl: string;
+  facility: string;
+}): Promise<{ queued: boolean }> {
   const account = await findAccountForReset({ email });
   if (!account || !account.active) return { queued: false };
   const { token, expiresAt } = await createPasswordReset({ userId: account.id, email, ip });

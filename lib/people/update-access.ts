@@ -42,10 +42,30 @@ export async function updateAccess({
     // deactivation ends every session; reactivation leaves the version raised, so they stay ended
     await writeAccess(trx, { userId, role: after.role, active: after.active, endSessions: before.active && !after.active });
     if (after.role !== before.role) {
-      await recordAudit({ actorId, action: 'user.role_changed', targetType: 'user', targetId: userId, detail: { email: target.email, from: before.role, to: after.role }, ip }, trx);
+      await recordAudit(
+        {
+          actorId,
+          action: 'user.role_changed',
+          targetType: 'user',
+          targetId: userId,
+          detail: { email: target.email, from: before.role, to: after.role },
+          ip,
+        },
+        trx,
+      );
     }
     if (after.active !== before.active) {
-      await recordAudit({ actorId, action: after.active ? 'user.reactivated' : 'user.deactivated', targetType: 'user', targetId: userId, detail: { email: target.email }, ip }, trx);
+      await recordAudit(
+        {
+          actorId,
+          action: after.active ? 'user.reactivated' : 'user.deactivated',
+          targetType: 'user',
+          targetId: userId,
+          detail: { email: target.email },
+          ip,
+        },
+        trx,
+      );
     }
     return { id: userId, ...after };
   });

@@ -4,7 +4,14 @@ import { simulateMotion } from './motion';
 import { childSeed, createRng } from '@/lib/random';
 import { normalQuantileTable } from './normal-quantiles';
 import { sizeSpec } from './sizes';
-import { buildRealisticSources, gaussianKernel, NOISE_SMOOTHING_SIGMA_VOXELS, noiseAr1Field, REALISTIC_NOISE_FRACTION, smoothSeparable } from './realistic';
+import {
+  buildRealisticSources,
+  gaussianKernel,
+  NOISE_SMOOTHING_SIGMA_VOXELS,
+  noiseAr1Field,
+  REALISTIC_NOISE_FRACTION,
+  smoothSeparable,
+} from './realistic';
 import { buildSources, MAP_FLOOR } from './sources';
 import type { Phantom, PhantomModel, PhantomOptions } from './types';
 

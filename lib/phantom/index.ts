@@ -7,5 +7,13 @@ export { PHANTOM_SIZES, sizeSpec, type PhantomSizeSpec } from './sizes';
 export { NETWORKS, MAP_FLOOR } from './sources';
 export { bandLimitedNoise, zscore } from './time-courses';
 export { simulateMotion, rimTimecourse, type MotionParameters } from './motion';
-export { buildRealisticSources, REALISTIC_NETWORKS, REALISTIC_AMPLITUDE, REALISTIC_NOISE_FRACTION, NOISE_AR1, gaussianKernel, smoothSeparable } from './realistic';
+export {
+  buildRealisticSources,
+  REALISTIC_NETWORKS,
+  REALISTIC_AMPLITUDE,
+  REALISTIC_NOISE_FRACTION,
+  NOISE_AR1,
+  gaussianKernel,
+  smoothSeparable,
+} from './realistic';
 export type { PhantomModel, Phantom, PhantomOptions, PhantomSize, PhantomSource, PhantomTruth, PhantomNoiseKind } from './types';

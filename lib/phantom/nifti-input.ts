@@ -65,7 +65,8 @@ export function truthSummary(p: Phantom): {
     trSeconds: p.trSeconds,
     dims: [...p.dims],
     phantomModel: p.model,
-    model: 'data = baseline * (1 + sum_s map_s * timecourse_s) + smoothed Gaussian noise (realistic model: Gaussian-smoothed, AR(1) in time); timecourse = fractional signal change at map weight 1',
+    model:
+      'data = baseline * (1 + sum_s map_s * timecourse_s) + smoothed Gaussian noise (realistic model: Gaussian-smoothed, AR(1) in time); timecourse = fractional signal change at map weight 1',
     sources: p.truth.sources.map((s, index) => ({
       index,
       name: s.name,

@@ -35,10 +35,40 @@ interface NetworkSpec {
 /** Five invented resting-state-like networks, 1–4 grey-matter blobs each. */
 export const NETWORKS: NetworkSpec[] = [
   { name: 'visual network', blobs: [[0, -1, 0.1]], sigmaMm: 14 },
-  { name: 'sensorimotor network', blobs: [[-0.55, -0.2, 0.8], [0.55, -0.2, 0.8]], sigmaMm: 12 },
-  { name: 'default-mode network', blobs: [[0, -0.7, 0.7], [0, 0.95, 0.15], [-0.7, -0.6, 0.4], [0.7, -0.6, 0.4]], sigmaMm: 11 },
-  { name: 'auditory network', blobs: [[-1, -0.1, 0.05], [1, -0.1, 0.05]], sigmaMm: 11 },
-  { name: 'left fronto-parietal network', blobs: [[-0.75, 0.55, 0.35], [-0.7, -0.55, 0.55]], sigmaMm: 12 },
+  {
+    name: 'sensorimotor network',
+    blobs: [
+      [-0.55, -0.2, 0.8],
+      [0.55, -0.2, 0.8],
+    ],
+    sigmaMm: 12,
+  },
+  {
+    name: 'default-mode network',
+    blobs: [
+      [0, -0.7, 0.7],
+      [0, 0.95, 0.15],
+      [-0.7, -0.6, 0.4],
+      [0.7, -0.6, 0.4],
+    ],
+    sigmaMm: 11,
+  },
+  {
+    name: 'auditory network',
+    blobs: [
+      [-1, -0.1, 0.05],
+      [1, -0.1, 0.05],
+    ],
+    sigmaMm: 11,
+  },
+  {
+    name: 'left fronto-parietal network',
+    blobs: [
+      [-0.75, 0.55, 0.35],
+      [-0.7, -0.55, 0.55],
+    ],
+    sigmaMm: 12,
+  },
 ];
 
 export interface Grid {
@@ -153,7 +183,13 @@ export function buildSources(input: BuildSourcesInput): PhantomSource[] {
           const az = Math.atan2(g.ys[j], g.xs[i]);
           map[idx] = Math.exp(-d / (0.7 * meanVoxel)) * (0.75 + 0.25 * Math.cos(2 * az + phase));
         }
-    sources.push({ name: 'motion rim', kind: 'noise', noiseKind: 'motion', map: normaliseMap(map), timecourse: rimTimecourse(motion, AMPLITUDE.rim, motionScale, rng) });
+    sources.push({
+      name: 'motion rim',
+      kind: 'noise',
+      noiseKind: 'motion',
+      map: normaliseMap(map),
+      timecourse: rimTimecourse(motion, AMPLITUDE.rim, motionScale, rng),
+    });
   }
 
   {
@@ -200,7 +236,13 @@ export function buildSources(input: BuildSourcesInput): PhantomSource[] {
     const slow = bandLimitedNoise(nt, trSeconds, 0.002, 0.02, rng, 1);
     const sign = rng.next() < 0.5 ? -1 : 1;
     for (let t = 0; t < nt; t++) slow[t] += (sign * (t - (nt - 1) / 2)) / Math.max(1, nt / 3.5);
-    sources.push({ name: 'white-matter drift', kind: 'noise', noiseKind: 'white-matter', map: normaliseMap(map), timecourse: scale(zscore(slow), AMPLITUDE.whiteMatter) });
+    sources.push({
+      name: 'white-matter drift',
+      kind: 'noise',
+      noiseKind: 'white-matter',
+      map: normaliseMap(map),
+      timecourse: scale(zscore(slow), AMPLITUDE.whiteMatter),
+    });
   }
 
   {
@@ -214,7 +256,13 @@ export function buildSources(input: BuildSourcesInput): PhantomSource[] {
         if (head.brainMask[idx]) map[idx] = 1;
       }
     const period = 7 + rng.int(6);
-    sources.push({ name: `slice ${zSlice} dropout`, kind: 'noise', noiseKind: 'scanner', map, timecourse: scale(sliceDropout(nt, period, rng), AMPLITUDE.sliceDropout) });
+    sources.push({
+      name: `slice ${zSlice} dropout`,
+      kind: 'noise',
+      noiseKind: 'scanner',
+      map,
+      timecourse: scale(sliceDropout(nt, period, rng), AMPLITUDE.sliceDropout),
+    });
   }
   return sources;
 }

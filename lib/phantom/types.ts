@@ -2,15 +2,7 @@
 
 export type PhantomSize = 'tiny' | 'small' | 'XS' | 'S' | 'M' | 'L';
 
-export type PhantomNoiseKind =
-  | 'motion'
-  | 'pulsation'
-  | 'vascular'
-  | 'csf'
-  | 'white-matter'
-  | 'susceptibility'
-  | 'scanner'
-  | 'other';
+export type PhantomNoiseKind = 'motion' | 'pulsation' | 'vascular' | 'csf' | 'white-matter' | 'susceptibility' | 'scanner' | 'other';
 
 export interface PhantomOptions {
   size: PhantomSize;

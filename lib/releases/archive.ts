@@ -12,7 +12,7 @@ import { readStream } from '@/lib/storage';
 import { publicManifest } from './create-release';
 
 export function archiveRoot(release: Pick<ReleaseRow, 'studyId' | 'version' | 'runId'>, manifest: ReleaseManifest): string {
-  const run = release.runId ? manifest.runs.find((r) => r.runId === release.runId)?.stem ?? `run-${release.runId}` : null;
+  const run = release.runId ? (manifest.runs.find((r) => r.runId === release.runId)?.stem ?? `run-${release.runId}`) : null;
   return `study-${release.studyId}${run ? `_${run}` : ''}_release-v${release.version}`;
 }
 

@@ -26,7 +26,16 @@ import { leadsStudy } from '@/lib/auth/permissions';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { loadRatingFacts, loadStudyRatings, type RatingFacts } from '@/lib/db/queries/agreement';
 import {
-  loadExportRuns, lockStudy, openReleaseJob, releaseReadiness, storeMapChecksum, type ExportRun, type ManifestFile, type ManifestRun, type ReleaseManifest, type Readiness,
+  loadExportRuns,
+  lockStudy,
+  openReleaseJob,
+  releaseReadiness,
+  storeMapChecksum,
+  type ExportRun,
+  type ManifestFile,
+  type ManifestRun,
+  type ReleaseManifest,
+  type Readiness,
 } from '@/lib/db/queries/releases';
 import { buildAgreementReport } from '@/lib/reports/agreement-report';
 import { agreementReportCsv } from '@/lib/reports/agreement-csv';
@@ -76,7 +85,10 @@ async function mapChecksum(r: ExportRun): Promise<MapChecksum> {
   if (r.componentsSha256 && r.componentsBytes != null) {
     const bytes = await sizeOf(r.componentsKey!);
     if (bytes !== r.componentsBytes) {
-      throw new AppError('conflict', `The component maps of run ${r.runId} are ${bytes} bytes on storage but ${r.componentsBytes} bytes were stored with its decomposition; decompose the run again, then release.`);
+      throw new AppError(
+        'conflict',
+        `The component maps of run ${r.runId} are ${bytes} bytes on storage but ${r.componentsBytes} bytes were stored with its decomposition; decompose the run again, then release.`,
+      );
     }
     return { sha256: r.componentsSha256, bytes };
   }
@@ -89,10 +101,15 @@ const median = (xs: number[]) => {
   const s = [...xs].sort((a, b) => a - b);
   return s.length ? (s.length % 2 ? s[(s.length - 1) / 2]! : (s[s.length / 2 - 1]! + s[s.length / 2]!) / 2) : 0;
 };
-const uniq = <T,>(xs: T[]) => [...new Set(xs.filter((x) => x !== undefined && x !== null))] as T[];
+const uniq = <T>(xs: T[]) => [...new Set(xs.filter((x) => x !== undefined && x !== null))] as T[];
 
 /** The methods paragraph input from the frozen runs and the report. */
-export function methodsInputOf(runs: ExportRun[], study: Record<string, unknown>, report: ReturnType<typeof buildAgreementReport>, ratings: RatingFacts): MethodsInput {
+export function methodsInputOf(
+  runs: ExportRun[],
+  study: Record<string, unknown>,
+  report: ReturnType<typeof buildAgreementReport>,
+  ratings: RatingFacts,
+): MethodsInput {
   const p = runs.map((r) => r.parameters);
   const num = (v: unknown) => (typeof v === 'number' ? v : null);
   const voteCounts = runs.flatMap((r) => r.components.map((c) => c.votes.length));
@@ -102,17 +119,27 @@ export function methodsInputOf(runs: ExportRun[], study: Record<string, unknown>
     components: runs.reduce((a, r) => a + r.components.length, 0),
     k: { min: Math.min(...runs.map((r) => r.k)), max: Math.max(...runs.map((r) => r.k)), median: median(runs.map((r) => r.k)) },
     decomposition: {
-      dimMethods: uniq(p.map((x) => String(x.dimMethodUsed ?? x.dimMethod ?? study.dim_method ?? 'laplace')).map((x) => (x.startsWith('{') || x.includes('variance') ? 'variance' : x))),
+      dimMethods: uniq(
+        p
+          .map((x) => String(x.dimMethodUsed ?? x.dimMethod ?? study.dim_method ?? 'laplace'))
+          .map((x) => (x.startsWith('{') || x.includes('variance') ? 'variance' : x)),
+      ),
       contrasts: uniq(p.map((x) => String(x.contrast ?? 'logcosh'))),
       tolerance: num(p[0]?.tol) ?? 1e-4,
       maxIter: num(p[0]?.maxIter) ?? 200,
-      dropVolumes: uniq(runs.map((r) => Number(r.summary.droppedVolumes ?? r.parameters.dropVolumes ?? r.parameters.drop ?? study.drop_volumes ?? 0))),
+      dropVolumes: uniq(
+        runs.map((r) => Number(r.summary.droppedVolumes ?? r.parameters.dropVolumes ?? r.parameters.drop ?? study.drop_volumes ?? 0)),
+      ),
       varianceNorm: p[0]?.varianceNorm == null ? Boolean(study.variance_norm) : Boolean(p[0].varianceNorm),
       detrend: p[0]?.detrend == null ? Boolean(study.detrend) : Boolean(p[0].detrend),
       masks: uniq(p.map((x) => (x.mask === 'uploaded' ? 'uploaded' : 'automatic'))),
     },
     ratersPerRun: Number(study.raters_per_run ?? 2),
-    votesPerComponent: { min: Math.min(...voteCounts), max: Math.max(...voteCounts), mean: voteCounts.reduce((a, b) => a + b, 0) / Math.max(1, voteCounts.length) },
+    votesPerComponent: {
+      min: Math.min(...voteCounts),
+      max: Math.max(...voteCounts),
+      mean: voteCounts.reduce((a, b) => a + b, 0) / Math.max(1, voteCounts.length),
+    },
     consensusRule: (study.consensus_rule as MethodsInput['consensusRule']) ?? 'majority',
     labelSet: (typeof study.label_set === 'string' ? JSON.parse(study.label_set) : study.label_set) as string[],
     uncertainInExport: (study.uncertain_in_export as UncertainPolicy) ?? 'keep',
@@ -129,7 +156,19 @@ export type CreatedRelease = { releaseId: number; version: number; manifest: Rel
  * when decisions are incomplete; otherwise queues the release job, or returns the open job of the
  * same scope (`existing: true`) so a second click makes no second release.
  */
-export async function requestRelease({ user, studyId, runId = null, notes = null, ip = null }: { user: Pick<UserRow, 'id' | 'role' | 'name'>; studyId: number; runId?: number | null; notes?: string | null; ip?: string | null }): Promise<{ jobId: number; existing: boolean }> {
+export async function requestRelease({
+  user,
+  studyId,
+  runId = null,
+  notes = null,
+  ip = null,
+}: {
+  user: Pick<UserRow, 'id' | 'role' | 'name'>;
+  studyId: number;
+  runId?: number | null;
+  notes?: string | null;
+  ip?: string | null;
+}): Promise<{ jobId: number; existing: boolean }> {
   const access = await findStudyAccess({ user, studyId });
   if (!access) throw notFound('The study');
   if (!leadsStudy(access)) throw forbidden('releasing this study (only its leads may)');
@@ -157,7 +196,8 @@ function nameClash(runs: Pick<ExportRun, 'runId' | 'sub' | 'ses' | 'task' | 'acq
   for (const r of runs) {
     const stem = bidsName({ sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, runLabel: r.runLabel });
     const other = seen.get(stem);
-    if (other !== undefined) return `Runs ${other} and ${r.runId} have the same BIDS entities (${stem}), so their files would share names; correct the labels of one of them on the study page, then release.`;
+    if (other !== undefined)
+      return `Runs ${other} and ${r.runId} have the same BIDS entities (${stem}), so their files would share names; correct the labels of one of them on the study page, then release.`;
     seen.set(stem, r.runId);
   }
   return null;
@@ -201,19 +241,53 @@ export async function buildRelease(p: ReleasePayload & { actorId: number }, job:
       const again = refusalOf(readiness, studyId);
       if (again) throw new AppError('conflict', again);
       const runs = await loadExportRuns({ studyId, runId }, trx);
-      const same = runs.length === planned.length && runs.every((r, i) => r.runId === planned[i]!.runId && r.decompositionId === planned[i]!.decompositionId);
-      if (!same) throw new JobError('The study changed while its release was being built (a run was added, removed or decomposed again); building it again.');
-      const last = await trx('releases').where({ study_id: studyId, run_key: runId ?? 0 }).max('version as v').first();
+      const same =
+        runs.length === planned.length &&
+        runs.every((r, i) => r.runId === planned[i]!.runId && r.decompositionId === planned[i]!.decompositionId);
+      if (!same)
+        throw new JobError(
+          'The study changed while its release was being built (a run was added, removed or decomposed again); building it again.',
+        );
+      const last = await trx('releases')
+        .where({ study_id: studyId, run_key: runId ?? 0 })
+        .max('version as v')
+        .first();
       const version = Number(last?.v ?? 0) + 1;
       const [id] = await trx('releases').insert({ study_id: studyId, run_id: runId, version, released_by: user.id, notes });
       const releaseId = Number(id);
       const released = await trx('releases').where({ id: releaseId }).first('released_at');
       const clash = nameClash(runs);
       if (clash) throw new AppError('conflict', clash);
-      const rows = runs.flatMap((r) => r.components.map((c) => ({ release_id: releaseId, component_id: c.componentId, run_id: r.runId, idx: c.idx, label: c.label!, noise_kind: c.noiseKind, method: c.method as never })));
+      const rows = runs.flatMap((r) =>
+        r.components.map((c) => ({
+          release_id: releaseId,
+          component_id: c.componentId,
+          run_id: r.runId,
+          idx: c.idx,
+          label: c.label!,
+          noise_kind: c.noiseKind,
+          method: c.method as never,
+        })),
+      );
       for (let i = 0; i < rows.length; i += 200) await trx('release_decisions').insert(rows.slice(i, i + 200));
-      const manifest = await writeReleaseFiles(trx, { dirKey, study, runs, maps, report, facts, releaseId, version, releasedAt: (released.released_at as Date).toISOString(), user, runId, notes, excluded: runId ? [] : readiness.notReady });
-      await trx('releases').where({ id: releaseId }).update({ manifest: toJson(manifest), agreement_report: toJson(report) });
+      const manifest = await writeReleaseFiles(trx, {
+        dirKey,
+        study,
+        runs,
+        maps,
+        report,
+        facts,
+        releaseId,
+        version,
+        releasedAt: (released.released_at as Date).toISOString(),
+        user,
+        runId,
+        notes,
+        excluded: runId ? [] : readiness.notReady,
+      });
+      await trx('releases')
+        .where({ id: releaseId })
+        .update({ manifest: toJson(manifest), agreement_report: toJson(report) });
       await recordAudit(
         {
           actorId: user.id,
@@ -222,7 +296,14 @@ export async function buildRelease(p: ReleasePayload & { actorId: number }, job:
           targetId: releaseId,
           studyId,
           ip,
-          detail: { version, runId, runs: runs.length, components: rows.length, files: manifest.files.length, noise: manifest.runs.reduce((a, r) => a + r.noise.length, 0) },
+          detail: {
+            version,
+            runId,
+            runs: runs.length,
+            components: rows.length,
+            files: manifest.files.length,
+            noise: manifest.runs.reduce((a, r) => a + r.noise.length, 0),
+          },
         },
         trx,
       );
@@ -236,21 +317,44 @@ export async function buildRelease(p: ReleasePayload & { actorId: number }, job:
 
 async function writeReleaseFiles(
   trx: Knex.Transaction,
-  o: { dirKey: string; study: Record<string, unknown>; runs: ExportRun[]; maps: Map<number, MapChecksum>; report: ReturnType<typeof buildAgreementReport>; facts: RatingFacts; releaseId: number; version: number; releasedAt: string; user: Pick<UserRow, 'id' | 'name'>; runId: number | null; notes: string | null; excluded: { runId: number; status: string }[] },
+  o: {
+    dirKey: string;
+    study: Record<string, unknown>;
+    runs: ExportRun[];
+    maps: Map<number, MapChecksum>;
+    report: ReturnType<typeof buildAgreementReport>;
+    facts: RatingFacts;
+    releaseId: number;
+    version: number;
+    releasedAt: string;
+    user: Pick<UserRow, 'id' | 'name'>;
+    runId: number | null;
+    notes: string | null;
+    excluded: { runId: number; status: string }[];
+  },
 ): Promise<ReleaseManifest> {
   const studyId = Number(o.study.id);
   const labelSet = (typeof o.study.label_set === 'string' ? JSON.parse(o.study.label_set as string) : o.study.label_set) as string[];
   const policy = (o.study.uncertain_in_export as UncertainPolicy) ?? 'keep';
   const stamp = { studyId, releaseId: o.releaseId, version: o.version, releasedAt: o.releasedAt, software: SOFTWARE_VERSION };
   const raterIds = [...new Set(o.runs.flatMap((r) => r.components.flatMap((c) => c.votes.map((v) => v.raterId))))].sort((a, b) => a - b);
-  const names = new Map<number, string>((await trx('users').whereIn('id', raterIds).select('id', 'name')).map((u: { id: number; name: string }) => [Number(u.id), u.name]));
+  const names = new Map<number, string>(
+    (await trx('users').whereIn('id', raterIds).select('id', 'name')).map((u: { id: number; name: string }) => [Number(u.id), u.name]),
+  );
   const codeOf = new Map(raterIds.map((id, i) => [id, `R${i + 1}`]));
   const files: ManifestFile[] = [];
 
   const put = async (dir: string, f: TextFile, runId: number | null) => {
     const key = childKey(o.dirKey, f.name);
     await writeFile(await ensureDirFor(key), f.content);
-    files.push({ path: dir ? `${dir}/${f.name}` : f.name, name: f.name, sha256: sha256(f.content), bytes: Buffer.byteLength(f.content), runId, key });
+    files.push({
+      path: dir ? `${dir}/${f.name}` : f.name,
+      name: f.name,
+      sha256: sha256(f.content),
+      bytes: Buffer.byteLength(f.content),
+      runId,
+      key,
+    });
   };
 
   const manifestRuns: ManifestRun[] = [];
@@ -260,8 +364,20 @@ async function writeReleaseFiles(
     const entities = { sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, run: r.runLabel };
     const stem = bidsName({ sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, runLabel: r.runLabel });
     const dir = [`sub-${r.sub}`, r.ses ? `ses-${r.ses}` : null].filter(Boolean).join('/');
-    const comps = r.components.map((c) => ({ ...c, votes: c.votes.map((v) => ({ raterCode: codeOf.get(v.raterId)!, label: v.label, noiseKind: v.noiseKind })) }));
-    for (const f of runExportFiles({ stem, entities, trSeconds: r.trSeconds, labelSet, uncertainInExport: policy, components: comps, release: stamp })) await put(dir, f, r.runId);
+    const comps = r.components.map((c) => ({
+      ...c,
+      votes: c.votes.map((v) => ({ raterCode: codeOf.get(v.raterId)!, label: v.label, noiseKind: v.noiseKind })),
+    }));
+    for (const f of runExportFiles({
+      stem,
+      entities,
+      trSeconds: r.trSeconds,
+      labelSet,
+      uncertainInExport: policy,
+      components: comps,
+      release: stamp,
+    }))
+      await put(dir, f, r.runId);
     const h = o.maps.get(r.runId);
     if (r.componentsKey && h) {
       files.push({ path: `${dir}/${mapFileName(stem)}`, name: mapFileName(stem), ...h, runId: r.runId, key: r.componentsKey });
@@ -269,47 +385,155 @@ async function writeReleaseFiles(
     const counts: Record<string, number> = {};
     for (const c of r.components) counts[c.label ?? 'none'] = (counts[c.label ?? 'none'] ?? 0) + 1;
     manifestRuns.push({
-      runId: r.runId, stem, entities, k: r.k, timepoints: r.components[0]?.timecourse?.length ?? 0, trSeconds: r.trSeconds, decompositionId: r.decompositionId,
-      parameters: r.parameters, noise: noiseList(r.components, policy), counts,
+      runId: r.runId,
+      stem,
+      entities,
+      k: r.k,
+      timepoints: r.components[0]?.timecourse?.length ?? 0,
+      trSeconds: r.trSeconds,
+      decompositionId: r.decompositionId,
+      parameters: r.parameters,
+      noise: noiseList(r.components, policy),
+      counts,
     });
-    for (const c of r.components) training.push([r.sub, r.ses, r.task, r.acq, r.runLabel, c.idx, ...featureKeys.map((k) => c.features[k] ?? null), c.varianceExplained, c.label, c.noiseKind, c.method]);
+    for (const c of r.components)
+      training.push([
+        r.sub,
+        r.ses,
+        r.task,
+        r.acq,
+        r.runLabel,
+        c.idx,
+        ...featureKeys.map((k) => c.features[k] ?? null),
+        c.varianceExplained,
+        c.label,
+        c.noiseKind,
+        c.method,
+      ]);
   }
 
   // study-level files
   const prefix = `study-${studyId}`;
-  const sidecarMeta = { GeneratedBy: { Name: 'Quorum', Version: SOFTWARE_VERSION }, Release: { StudyId: studyId, ReleaseId: o.releaseId, Version: o.version, ReleasedAt: o.releasedAt }, Caution: EXPORT_CAUTION, ...EXPORT_FORMAT_SIDECAR };
+  const sidecarMeta = {
+    GeneratedBy: { Name: 'Quorum', Version: SOFTWARE_VERSION },
+    Release: { StudyId: studyId, ReleaseId: o.releaseId, Version: o.version, ReleasedAt: o.releasedAt },
+    Caution: EXPORT_CAUTION,
+    ...EXPORT_FORMAT_SIDECAR,
+  };
   const js = (v: unknown) => JSON.stringify(v, null, 2) + '\n';
-  await put('', { name: `${prefix}_desc-raters_table.tsv`, content: toTsv(['rater', 'name', 'votes'], raterIds.map((id) => [codeOf.get(id)!, names.get(id) ?? `user ${id}`, o.runs.reduce((a, r) => a + r.components.reduce((b, c) => b + c.votes.filter((v) => v.raterId === id).length, 0), 0)])) }, null);
-  await put('', { name: `${prefix}_desc-raters_table.json`, content: js({ rater: { Description: 'Rater code used in the rater_labels column of the desc-decisions tables.' }, name: { Description: 'The rater\'s name in Quorum.' }, votes: { Description: 'Submitted votes of the rater in this release.' }, Description: 'The raters whose submitted votes are in this release.', ...sidecarMeta }) }, null);
+  await put(
+    '',
+    {
+      name: `${prefix}_desc-raters_table.tsv`,
+      content: toTsv(
+        ['rater', 'name', 'votes'],
+        raterIds.map((id) => [
+          codeOf.get(id)!,
+          names.get(id) ?? `user ${id}`,
+          o.runs.reduce((a, r) => a + r.components.reduce((b, c) => b + c.votes.filter((v) => v.raterId === id).length, 0), 0),
+        ]),
+      ),
+    },
+    null,
+  );
+  await put(
+    '',
+    {
+      name: `${prefix}_desc-raters_table.json`,
+      content: js({
+        rater: { Description: 'Rater code used in the rater_labels column of the desc-decisions tables.' },
+        name: { Description: "The rater's name in Quorum." },
+        votes: { Description: 'Submitted votes of the rater in this release.' },
+        Description: 'The raters whose submitted votes are in this release.',
+        ...sidecarMeta,
+      }),
+    },
+    null,
+  );
   const entityCols = ['sub', 'ses', 'task', 'acq', 'run'];
-  await put('', { name: `${prefix}_desc-trainingset_features.tsv`, content: toTsv([...entityCols, 'component', ...featureKeys.map(featureColumnName), 'variance_explained', 'label', 'noise_kind', 'decided_by'], training) }, null);
-  await put('', {
-    name: `${prefix}_desc-trainingset_features.json`,
-    content: js({
-      ...Object.fromEntries(entityCols.map((e) => [e, { Description: `BIDS "${e}" entity of the run (label without the "${e}-" prefix; n/a when absent).` }])),
-      ...featureColumns(labelSet),
-      Description: 'Every released component of the study with its features and decision, one row per component: a training table for automatic classifiers.',
-      ...sidecarMeta,
-    }),
-  }, null);
+  await put(
+    '',
+    {
+      name: `${prefix}_desc-trainingset_features.tsv`,
+      content: toTsv(
+        [...entityCols, 'component', ...featureKeys.map(featureColumnName), 'variance_explained', 'label', 'noise_kind', 'decided_by'],
+        training,
+      ),
+    },
+    null,
+  );
+  await put(
+    '',
+    {
+      name: `${prefix}_desc-trainingset_features.json`,
+      content: js({
+        ...Object.fromEntries(
+          entityCols.map((e) => [e, { Description: `BIDS "${e}" entity of the run (label without the "${e}-" prefix; n/a when absent).` }]),
+        ),
+        ...featureColumns(labelSet),
+        Description:
+          'Every released component of the study with its features and decision, one row per component: a training table for automatic classifiers.',
+        ...sidecarMeta,
+      }),
+    },
+    null,
+  );
 
   const report = o.report;
   const nameOf = (id: string) => `${codeOf.get(Number(id)) ?? id} (${names.get(Number(id)) ?? 'rater'})`;
-  await put('', { name: `${prefix}_desc-agreement_report.json`, content: js({ Description: 'Inter-rater agreement of the released runs (statistics with percentile-bootstrap 95% CIs over components).', bootstrap: BOOTSTRAP, raterCodes: Object.fromEntries(raterIds.map((id) => [String(id), codeOf.get(id)])), report, ...sidecarMeta }) }, null);
+  await put(
+    '',
+    {
+      name: `${prefix}_desc-agreement_report.json`,
+      content: js({
+        Description: 'Inter-rater agreement of the released runs (statistics with percentile-bootstrap 95% CIs over components).',
+        bootstrap: BOOTSTRAP,
+        raterCodes: Object.fromEntries(raterIds.map((id) => [String(id), codeOf.get(id)])),
+        report,
+        ...sidecarMeta,
+      }),
+    },
+    null,
+  );
   await put('', { name: `${prefix}_desc-agreement_report.csv`, content: agreementReportCsv(report, nameOf) }, null);
   const suggestionModel = await activeSuggestionModel({ studyId }, trx);
-  if (suggestionModel) await put('', { name: `${prefix}_desc-suggestions_model.json`, content: js({ ...suggestionModelDocument(suggestionModel), ...sidecarMeta }) }, null);
-  await put('', { name: `${prefix}_desc-methods_report.md`, content: methodsMarkdown(methodsInputOf(o.runs, o.study, report, o.facts)) }, null);
+  if (suggestionModel)
+    await put(
+      '',
+      { name: `${prefix}_desc-suggestions_model.json`, content: js({ ...suggestionModelDocument(suggestionModel), ...sidecarMeta }) },
+      null,
+    );
+  await put(
+    '',
+    { name: `${prefix}_desc-methods_report.md`, content: methodsMarkdown(methodsInputOf(o.runs, o.study, report, o.facts)) },
+    null,
+  );
 
   return {
     format: EXPORT_FORMAT,
     study: { id: studyId, name: String(o.study.name) },
-    release: { id: o.releaseId, version: o.version, scope: o.runId ? 'run' : 'study', runId: o.runId, releasedAt: o.releasedAt, releasedBy: { id: o.user.id, name: o.user.name }, notes: o.notes },
+    release: {
+      id: o.releaseId,
+      version: o.version,
+      scope: o.runId ? 'run' : 'study',
+      runId: o.runId,
+      releasedAt: o.releasedAt,
+      releasedBy: { id: o.user.id, name: o.user.name },
+      notes: o.notes,
+    },
     software: { name: 'Quorum', version: SOFTWARE_VERSION },
     cautions: CAUTIONS,
     protocol: {
-      ratersPerRun: o.study.raters_per_run, consensusRule: o.study.consensus_rule, labelSet, blinding: Boolean(o.study.blinding), dropVolumes: o.study.drop_volumes,
-      dimMethod: o.study.dim_method, fixedComponents: o.study.fixed_components, varianceFraction: o.study.variance_fraction, varianceNorm: Boolean(o.study.variance_norm), detrend: Boolean(o.study.detrend),
+      ratersPerRun: o.study.raters_per_run,
+      consensusRule: o.study.consensus_rule,
+      labelSet,
+      blinding: Boolean(o.study.blinding),
+      dropVolumes: o.study.drop_volumes,
+      dimMethod: o.study.dim_method,
+      fixedComponents: o.study.fixed_components,
+      varianceFraction: o.study.variance_fraction,
+      varianceNorm: Boolean(o.study.variance_norm),
+      detrend: Boolean(o.study.detrend),
     },
     uncertainInExport: policy,
     raters: raterIds.map((id) => ({ code: codeOf.get(id)!, name: names.get(id) ?? `user ${id}` })),

@@ -5,7 +5,15 @@ import { sentence } from '@/lib/text';
 export type RatingsInput = {
   categories: string[];
   noiseKinds: string[];
-  votes: { componentId: number; runId: number; raterId: number; raterName: string; label: string; noiseKind: string | null; updatedAt: Date }[];
+  votes: {
+    componentId: number;
+    runId: number;
+    raterId: number;
+    raterName: string;
+    label: string;
+    noiseKind: string | null;
+    updatedAt: Date;
+  }[];
   decisions: { componentId: number; runId: number; label: string | null; noiseKind: string | null; method: string }[];
   runs: (BidsEntities & { id: number })[];
 };

@@ -43,8 +43,10 @@ export type MethodsInput = {
 };
 
 const DIM: Record<string, string> = {
-  'iid-mdl': 'the minimum description length criterion (Wax & Kailath 1985) on an entropy-rate-guided i.i.d. subsample of voxels (Li, Adali & Calhoun 2007)',
-  'iid-aic': 'the Akaike information criterion (Wax & Kailath 1985) on an entropy-rate-guided i.i.d. subsample of voxels (Li, Adali & Calhoun 2007)',
+  'iid-mdl':
+    'the minimum description length criterion (Wax & Kailath 1985) on an entropy-rate-guided i.i.d. subsample of voxels (Li, Adali & Calhoun 2007)',
+  'iid-aic':
+    'the Akaike information criterion (Wax & Kailath 1985) on an entropy-rate-guided i.i.d. subsample of voxels (Li, Adali & Calhoun 2007)',
   laplace: "Minka's Laplace approximation of the PCA model evidence (Minka 2000)",
   aic: 'the Akaike information criterion of Wax & Kailath (1985)',
   mdl: 'the minimum description length criterion of Wax & Kailath (1985)',
@@ -61,7 +63,10 @@ const f2 = (x: number) => x.toFixed(2);
 const list = (xs: string[], and = 'and') => (xs.length <= 1 ? xs.join('') : `${xs.slice(0, -1).join(', ')} ${and} ${xs[xs.length - 1]}`);
 const range = (a: number, b: number) => (a === b ? String(a) : `${a}–${b}`);
 
-function stat(name: string, s: { value: number | null; ci?: { lower: number | null; upper: number | null } | null } | undefined): string | null {
+function stat(
+  name: string,
+  s: { value: number | null; ci?: { lower: number | null; upper: number | null } | null } | undefined,
+): string | null {
   if (!s || s.value == null) return null;
   const ci = s.ci && s.ci.lower != null && s.ci.upper != null ? ` (95% CI ${f2(s.ci.lower)}–${f2(s.ci.upper)})` : '';
   return `${name} ${f2(s.value)}${ci}`;
@@ -73,7 +78,8 @@ const times = (n: number) => (n === 1 ? 'once' : `${n} times`);
 function whoRated(r: MethodsInput['ratings']): string {
   const n = `${r.raters} rater${r.raters === 1 ? '' : 's'}`;
   if (r.certified === null || r.certified === 0) return `${cap(n)}, none of them certified on a calibration set in Quorum,`;
-  if (r.certified === r.raters) return `${cap(n)}, ${r.raters === 1 ? 'who' : 'all of whom'} passed certification on the study's calibration set (agreement with the study lead's reference labels),`;
+  if (r.certified === r.raters)
+    return `${cap(n)}, ${r.raters === 1 ? 'who' : 'all of whom'} passed certification on the study's calibration set (agreement with the study lead's reference labels),`;
   return `${cap(n)} (${r.certified} of them certified on the study's calibration set, ${r.raters - r.certified} not)`;
 }
 const cap = (x: string) => x.charAt(0).toUpperCase() + x.slice(1);
@@ -81,8 +87,9 @@ const cap = (x: string) => x.charAt(0).toUpperCase() + x.slice(1);
 /** What a rater could see of the other raters' labels, as the software enforced it. */
 function whatWasShown(r: MethodsInput['ratings']): string {
   if (!r.showVotesAfterSubmit) return "Quorum never showed a rater another rater's labels.";
-  if (r.blinding) return "Quorum withheld the other raters' labels from each rater until that rater had submitted the run, and then showed only the labels of raters who had submitted it too.";
-  return "Raters were not blind to each other: Quorum showed each rater the labels of raters who had already submitted the run, also before they submitted their own.";
+  if (r.blinding)
+    return "Quorum withheld the other raters' labels from each rater until that rater had submitted the run, and then showed only the labels of raters who had submitted it too.";
+  return 'Raters were not blind to each other: Quorum showed each rater the labels of raters who had already submitted the run, also before they submitted their own.';
 }
 
 /** Frozen submissions, the lead's reopenings, and which votes the statistics use. */
@@ -123,7 +130,17 @@ export function methodsParagraph(m: MethodsInput): string {
       stat("Fleiss' κ", o.fleissKappa),
       stat('PABAK', o.pabak),
       stat("Gwet's AC1", o.gwetAC1),
-      o.percentAgreement.value != null ? stat('percent agreement', { value: 100 * o.percentAgreement.value, ci: o.percentAgreement.ci ? { lower: o.percentAgreement.ci.lower == null ? null : 100 * o.percentAgreement.ci.lower, upper: o.percentAgreement.ci.upper == null ? null : 100 * o.percentAgreement.ci.upper } : null })?.replace(/(\d)( \(|$)/, '$1 %$2') ?? null : null,
+      o.percentAgreement.value != null
+        ? (stat('percent agreement', {
+            value: 100 * o.percentAgreement.value,
+            ci: o.percentAgreement.ci
+              ? {
+                  lower: o.percentAgreement.ci.lower == null ? null : 100 * o.percentAgreement.ci.lower,
+                  upper: o.percentAgreement.ci.upper == null ? null : 100 * o.percentAgreement.ci.upper,
+                }
+              : null,
+          })?.replace(/(\d)( \(|$)/, '$1 %$2') ?? null)
+        : null,
     ].filter(Boolean) as string[];
     parts.push(
       `Inter-rater agreement over ${s.items} components, with "uncertain" as a category of its own, was ${list(stats)}; ` +

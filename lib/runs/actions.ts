@@ -35,7 +35,15 @@ async function rowFor(user: Actor, studyId: number, runId: number): Promise<RunL
  * Queues a decomposition: for a run just uploaded (status uploaded), or again for a ready, failed
  * or cancelled run, optionally with other dimensionality settings (fixed N, another method).
  */
-export async function queueRun({ user, runId, settings }: { user: Actor; runId: number; settings?: DecomposeSettings }): Promise<RunListItem> {
+export async function queueRun({
+  user,
+  runId,
+  settings,
+}: {
+  user: Actor;
+  runId: number;
+  settings?: DecomposeSettings;
+}): Promise<RunListItem> {
   const run = await runForChange(user, runId);
   await db.transaction(async (trx) => {
     const status = await lockedStatus(trx, runId);
@@ -43,7 +51,17 @@ export async function queueRun({ user, runId, settings }: { user: Actor; runId: 
       throw new AppError('conflict', `The run is already ${status}. Wait for it to finish or cancel it first.`);
     }
     await queueDecomposition(trx, { runId, createdBy: user.id, options: decompositionOptionsFor(settings) });
-    await recordAudit({ actorId: user.id, action: status === 'uploaded' ? 'run.queue' : 'run.redecompose', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { from: status, settings: settings ?? null } }, trx);
+    await recordAudit(
+      {
+        actorId: user.id,
+        action: status === 'uploaded' ? 'run.queue' : 'run.redecompose',
+        targetType: 'run',
+        targetId: runId,
+        studyId: run.studyId,
+        detail: { from: status, settings: settings ?? null },
+      },
+      trx,
+    );
   });
   return rowFor(user, run.studyId, runId);
 }
@@ -59,7 +77,10 @@ export async function retryRun({ user, runId }: { user: Actor; runId: number }):
     const last = await trx('jobs').where({ run_id: runId, kind: 'decompose' }).orderBy('id', 'desc').first('payload');
     const payload = last ? (parseJson<{ decompositionOptions?: DecompositionOptionsInput }>(last.payload, {}) ?? {}) : {};
     await queueDecomposition(trx, { runId, createdBy: user.id, options: payload.decompositionOptions });
-    await recordAudit({ actorId: user.id, action: 'run.retry', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { from: status } }, trx);
+    await recordAudit(
+      { actorId: user.id, action: 'run.retry', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { from: status } },
+      trx,
+    );
   });
   return rowFor(user, run.studyId, runId);
 }
@@ -73,8 +94,18 @@ export async function cancelRun({ user, runId }: { user: Actor; runId: number })
   }
   const open = await db('jobs').where({ run_id: runId, kind: 'decompose' }).whereIn('status', ['queued', 'running']).select('id');
   for (const job of open) await cancelJob(db, Number(job.id), { message: 'Cancelled by a study lead.' });
-  await db('runs').where({ id: runId }).whereIn('status', ['queued', 'processing']).update({ status: 'cancelled', status_message: 'Cancelled by a study lead.' });
-  await recordAudit({ actorId: user.id, action: 'run.cancel', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { from: status, jobs: open.map((j) => Number(j.id)) } });
+  await db('runs')
+    .where({ id: runId })
+    .whereIn('status', ['queued', 'processing'])
+    .update({ status: 'cancelled', status_message: 'Cancelled by a study lead.' });
+  await recordAudit({
+    actorId: user.id,
+    action: 'run.cancel',
+    targetType: 'run',
+    targetId: runId,
+    studyId: run.studyId,
+    detail: { from: status, jobs: open.map((j) => Number(j.id)) },
+  });
   return rowFor(user, run.studyId, runId);
 }
 
@@ -83,7 +114,15 @@ export async function cancelRun({ user, runId }: { user: Actor; runId: number })
  * needs a second confirmation (`confirmVotes`); a released run cannot be deleted. Audited with
  * what was removed.
  */
-export async function deleteRun({ user, runId, confirmVotes }: { user: Actor; runId: number; confirmVotes: boolean }): Promise<{ deleted: number }> {
+export async function deleteRun({
+  user,
+  runId,
+  confirmVotes,
+}: {
+  user: Actor;
+  runId: number;
+  confirmVotes: boolean;
+}): Promise<{ deleted: number }> {
   const run = await runForChange(user, runId);
   const keys: (string | null)[] = [run.fileKey, run.maskKey, run.motionKey];
   await db.transaction(async (trx) => {
@@ -92,7 +131,9 @@ export async function deleteRun({ user, runId, confirmVotes }: { user: Actor; ru
     if (Number(released.n) > 0) {
       throw new AppError('conflict', 'This run is part of a release and cannot be deleted: releases are frozen records.');
     }
-    const [votes] = await trx('votes').where({ run_id: runId }).select(db.raw('COUNT(*) as n'), db.raw('COUNT(DISTINCT rater_id) as raters'));
+    const [votes] = await trx('votes')
+      .where({ run_id: runId })
+      .select(db.raw('COUNT(*) as n'), db.raw('COUNT(DISTINCT rater_id) as raters'));
     const voteCount = Number(votes.n);
     if (voteCount > 0 && !confirmVotes) {
       const message = `This run already has ${voteCount} vote${voteCount === 1 ? '' : 's'} from ${Number(votes.raters)} rater${Number(votes.raters) === 1 ? '' : 's'}. Deleting it removes them for good. Confirm a second time to delete.`;
@@ -101,7 +142,14 @@ export async function deleteRun({ user, runId, confirmVotes }: { user: Actor; ru
     const decompositions = await trx('decompositions').where({ run_id: runId }).select('components_key', 'mean_key', 'mask_key');
     for (const d of decompositions) keys.push(d.components_key, d.mean_key, d.mask_key);
     await recordAudit(
-      { actorId: user.id, action: 'run.delete', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { name: run.originalName, entities: bidsName(run), sha256: run.sha256, votes: voteCount, status: run.status } },
+      {
+        actorId: user.id,
+        action: 'run.delete',
+        targetType: 'run',
+        targetId: runId,
+        studyId: run.studyId,
+        detail: { name: run.originalName, entities: bidsName(run), sha256: run.sha256, votes: voteCount, status: run.status },
+      },
       trx,
     );
     await trx('runs').where({ id: runId }).delete();
@@ -116,6 +164,9 @@ export async function deleteRun({ user, runId, confirmVotes }: { user: Actor; ru
 export async function runProgress({ user, runId }: { user: Actor; runId: number }) {
   const run = await findRunForUser({ user, runId });
   if (!run) throw notFound('The run');
-  const job = await db('jobs').where({ run_id: runId, kind: 'decompose' }).orderBy('id', 'desc').first('id', 'status', 'stage', 'percent', 'message', 'attempts', 'updated_at as updatedAt');
+  const job = await db('jobs')
+    .where({ run_id: runId, kind: 'decompose' })
+    .orderBy('id', 'desc')
+    .first('id', 'status', 'stage', 'percent', 'message', 'attempts', 'updated_at as updatedAt');
   return { runId, status: run.status, job: job ?? null };
 }

@@ -66,7 +66,10 @@ export async function assignRaters(
   const openBy = new Map<number, number>(
     (open as Array<{ rater_id: number; n: number | string }>).map((o) => [Number(o.rater_id), Number(o.n)]),
   );
-  const certs = (await db('rater_certifications').where({ study_id: run.study_id }).select('user_id', 'passed')) as Array<{ user_id: number; passed: number | boolean }>;
+  const certs = (await db('rater_certifications').where({ study_id: run.study_id }).select('user_id', 'passed')) as Array<{
+    user_id: number;
+    passed: number | boolean;
+  }>;
   const certified = new Set(certs.filter((c) => Boolean(c.passed)).map((c) => Number(c.user_id)));
   const rank = (id: number) => (certs.length === 0 || certified.has(id) ? 0 : 1);
   const chosen = ids

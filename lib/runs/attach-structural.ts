@@ -25,13 +25,17 @@ const fmtDims = (h: NiftiHeader) => [0, 1, 2].map((i) => h.dims[i] ?? 1).join(' 
 export function checkStructuralGrid(run: NiftiHeader, image: NiftiHeader, tol = 1e-3): void {
   const volumes = image.dims.length >= 4 ? image.dims.slice(3).reduce((a, b) => a * (b || 1), 1) : 1;
   if (volumes > 1) {
-    throw new AppError('validation', `The structural image holds ${volumes} volumes; the underlay is one 3D volume. Upload a single 3D image.`, { file: ['Not 3D.'] });
+    throw new AppError(
+      'validation',
+      `The structural image holds ${volumes} volumes; the underlay is one 3D volume. Upload a single 3D image.`,
+      { file: ['Not 3D.'] },
+    );
   }
   if ([0, 1, 2].some((i) => (run.dims[i] ?? 1) !== (image.dims[i] ?? 1))) {
     throw new AppError(
       'validation',
       `The structural image is ${fmtDims(image)} voxels; this run's grid is ${fmtDims(run)}. Resample the structural image to the run's grid (same dimensions and voxel-to-world transform) and upload it again.`,
-      { file: ['Not on the run\'s grid.'] },
+      { file: ["Not on the run's grid."] },
     );
   }
   const diff = affineMaxDiff(run.affine, image.affine);
@@ -39,12 +43,22 @@ export function checkStructuralGrid(run: NiftiHeader, image: NiftiHeader, tol = 
     throw new AppError(
       'validation',
       `The structural image has the run's dimensions but another voxel-to-world transform (largest difference ${diff.toPrecision(3)} mm). Resample it to the run's grid and upload it again.`,
-      { file: ['Not on the run\'s grid.'] },
+      { file: ["Not on the run's grid."] },
     );
   }
 }
 
-export async function attachStructural({ user, runId, name, raw }: { user: Pick<UserRow, 'id' | 'role'>; runId: number; name: string; raw: RawBody }): Promise<{ structuralName: string }> {
+export async function attachStructural({
+  user,
+  runId,
+  name,
+  raw,
+}: {
+  user: Pick<UserRow, 'id' | 'role'>;
+  runId: number;
+  name: string;
+  raw: RawBody;
+}): Promise<{ structuralName: string }> {
   const run = await runForChange(user, runId);
   const runHeader = await readNiftiHeaderFile(pathFor(run.fileKey));
   const received = await receiveNifti(raw.body, {
@@ -74,7 +88,17 @@ export async function attachStructural({ user, runId, name, raw }: { user: Pick<
     }
     previous = await inTransaction(async (trx) => {
       const before = await setRunStructural({ runId, key, name }, trx);
-      await recordAudit({ actorId: user.id, action: 'run.structural', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { name, bytes: received.sizeBytes } }, trx);
+      await recordAudit(
+        {
+          actorId: user.id,
+          action: 'run.structural',
+          targetType: 'run',
+          targetId: runId,
+          studyId: run.studyId,
+          detail: { name, bytes: received.sizeBytes },
+        },
+        trx,
+      );
       return before;
     });
   } catch (err) {

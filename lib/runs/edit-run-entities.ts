@@ -15,25 +15,60 @@ import type { UserRow } from '@/lib/db/queries/users';
 import { runForChange } from './upload';
 import type { RunEntities } from './schema';
 
-export async function editRunEntities({ user, runId, entities, ip = null }: { user: Pick<UserRow, 'id' | 'role'>; runId: number; entities: RunEntities; ip?: string | null }): Promise<RunListItem> {
+export async function editRunEntities({
+  user,
+  runId,
+  entities,
+  ip = null,
+}: {
+  user: Pick<UserRow, 'id' | 'role'>;
+  runId: number;
+  entities: RunEntities;
+  ip?: string | null;
+}): Promise<RunListItem> {
   const run = await runForChange(user, runId);
-  const next = { sub: entities.sub, ses: entities.ses || null, task: entities.task || null, acq: entities.acq || null, runLabel: entities.run || null };
+  const next = {
+    sub: entities.sub,
+    ses: entities.ses || null,
+    task: entities.task || null,
+    acq: entities.acq || null,
+    runLabel: entities.run || null,
+  };
   const before = bidsName(run);
   const after = bidsName(next);
   // one transaction with the run row locked: not when the run is in a release, not when another run of the study has the entities
   await inTransaction(async (trx) => {
     const row = await lockRunEntities(trx, { runId });
     if (await isRunReleased({ runId }, trx)) {
-      throw new AppError('conflict', `${before} is already in a release, so its labels can no longer change: the released files and pipelines use this name. Upload the run again under the right labels if it must be released under them.`);
+      throw new AppError(
+        'conflict',
+        `${before} is already in a release, so its labels can no longer change: the released files and pipelines use this name. Upload the run again under the right labels if it must be released under them.`,
+      );
     }
     const other = await findRunWithEntities({ studyId: run.studyId, entities: next, exceptRunId: runId }, trx);
     if (other) {
-      throw new AppError('conflict', `Run #${other.id} (uploaded as ${other.originalName}) already has the labels ${after}. Choose labels no other run of the study has, e.g. another run number.`, { run: ['These labels are taken.'] });
+      throw new AppError(
+        'conflict',
+        `Run #${other.id} (uploaded as ${other.originalName}) already has the labels ${after}. Choose labels no other run of the study has, e.g. another run number.`,
+        { run: ['These labels are taken.'] },
+      );
     }
-    const same = row.sub === next.sub && row.ses === next.ses && row.task === next.task && row.acq === next.acq && row.runLabel === next.runLabel;
+    const same =
+      row.sub === next.sub && row.ses === next.ses && row.task === next.task && row.acq === next.acq && row.runLabel === next.runLabel;
     if (same) return;
     await writeRunEntities(trx, { runId, entities: next });
-    await recordAudit({ actorId: user.id, action: 'run.relabel', targetType: 'run', targetId: runId, studyId: run.studyId, ip, detail: { from: before, to: after } }, trx);
+    await recordAudit(
+      {
+        actorId: user.id,
+        action: 'run.relabel',
+        targetType: 'run',
+        targetId: runId,
+        studyId: run.studyId,
+        ip,
+        detail: { from: before, to: after },
+      },
+      trx,
+    );
   });
   const [row] = await listRunsForStudy({ user, studyId: run.studyId, runId });
   return row;

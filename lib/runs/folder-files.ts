@@ -37,13 +37,17 @@ export function isRunFile(name: string): boolean {
 
 /** The stem companions are matched on: the name without `_bold` and the extension. */
 export function runStem(name: string): string {
-  return baseName(name).replace(NIFTI, '').replace(/_bold$/, '');
+  return baseName(name)
+    .replace(NIFTI, '')
+    .replace(/_bold$/, '');
 }
 
 const escape = (s: string) => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
 
 export function groupDroppedFiles<F extends { name: string }>(files: F[]): Grouped<F> {
-  const runs: Grouped<F>['runs'] = files.filter((f) => isRunFile(f.name)).map((file) => ({ file, motion: null, mask: null, sidecar: null }));
+  const runs: Grouped<F>['runs'] = files
+    .filter((f) => isRunFile(f.name))
+    .map((file) => ({ file, motion: null, mask: null, sidecar: null }));
   const used = new Set<F>(runs.map((r) => r.file));
   // longest stems first, so sub-01_run-1 does not take the companions of sub-01_run-10
   const byStem = [...runs].sort((a, b) => runStem(b.file.name).length - runStem(a.file.name).length);

@@ -31,7 +31,8 @@ async function readTable(dir: string, name: string): Promise<Table> {
   const { header, rows: cellRows } = parseTsv(text);
   if (cellRows.length === 0) throw new ImportError(`${name} has no rows.`);
   const rows = cellRows.map((cells, i) => {
-    if (cells.length !== header.length) throw new ImportError(`${name}, line ${i + 2}: ${cells.length} columns, the header has ${header.length}.`);
+    if (cells.length !== header.length)
+      throw new ImportError(`${name}, line ${i + 2}: ${cells.length} columns, the header has ${header.length}.`);
     return cells.map((c) => {
       if (c === 'n/a' || c === '') return null;
       const v = Number(c);
@@ -59,7 +60,11 @@ export async function readDecompositionDir(dir: string, run: NiftiHeader): Promi
   }
   const k = Number(summary.components);
   if (!Number.isInteger(k) || k < 1) throw new ImportError('summary.json has no component count.');
-  const [tc, sp, ft] = await Promise.all([readTable(dir, 'timecourses.tsv'), readTable(dir, 'spectra.tsv'), readTable(dir, 'features.tsv')]);
+  const [tc, sp, ft] = await Promise.all([
+    readTable(dir, 'timecourses.tsv'),
+    readTable(dir, 'spectra.tsv'),
+    readTable(dir, 'features.tsv'),
+  ]);
   if (tc.header.length !== k || sp.header.length !== k + 1 || ft.rows.length !== k) {
     throw new ImportError(`The tables disagree with summary.json about the number of components (${k}).`);
   }
@@ -71,10 +76,13 @@ export async function readDecompositionDir(dir: string, run: NiftiHeader): Promi
   } catch {
     throw new ImportError('components.nii.gz is not on the run’s grid: this folder belongs to another run.');
   }
-  if ((componentsHeader.dims[3] ?? 1) !== k) throw new ImportError(`components.nii.gz holds ${componentsHeader.dims[3] ?? 1} maps, summary.json says ${k}.`);
+  if ((componentsHeader.dims[3] ?? 1) !== k)
+    throw new ImportError(`components.nii.gz holds ${componentsHeader.dims[3] ?? 1} maps, summary.json says ${k}.`);
   const kept = Number(summary.timepoints);
   if (kept !== tc.rows.length || kept > (run.dims[3] ?? 0)) {
-    throw new ImportError(`timecourses.tsv has ${tc.rows.length} rows; the run has ${run.dims[3]} volumes and summary.json says ${kept} were kept.`);
+    throw new ImportError(
+      `timecourses.tsv has ${tc.rows.length} rows; the run has ${run.dims[3]} volumes and summary.json says ${kept} were kept.`,
+    );
   }
   const featureKeys = ft.header.slice(2) as (keyof ComponentFeatures)[];
   const components: ComponentRow[] = ft.rows.map((row, c) => ({
@@ -103,8 +111,16 @@ export async function readDecompositionDir(dir: string, run: NiftiHeader): Promi
 /** Copies the folder's three NIfTI files into a fresh storage directory. */
 export async function copyDecompositionFiles(dir: string): Promise<DecompositionFiles> {
   const dirKey = newKey('decompositions');
-  const keys = { componentsKey: childKey(dirKey, 'components.nii.gz'), meanKey: childKey(dirKey, 'mean.nii.gz'), maskKey: childKey(dirKey, 'mask.nii.gz') };
-  for (const [key, name] of [[keys.componentsKey, 'components.nii.gz'], [keys.meanKey, 'mean.nii.gz'], [keys.maskKey, 'mask.nii.gz']] as const) {
+  const keys = {
+    componentsKey: childKey(dirKey, 'components.nii.gz'),
+    meanKey: childKey(dirKey, 'mean.nii.gz'),
+    maskKey: childKey(dirKey, 'mask.nii.gz'),
+  };
+  for (const [key, name] of [
+    [keys.componentsKey, 'components.nii.gz'],
+    [keys.meanKey, 'mean.nii.gz'],
+    [keys.maskKey, 'mask.nii.gz'],
+  ] as const) {
     try {
       await copyFile(path.join(dir, name), await ensureDirFor(key));
     } catch {

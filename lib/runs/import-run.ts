@@ -34,7 +34,9 @@ export async function importDecomposition(opts: {
   if (!actor) throw new AppError('not_found', `No active account ${opts.email}; give the e-mail of a lead of the study.`);
   const user = { id: Number(actor.id), role: actor.role };
   const fromName = parseBidsName(opts.name);
-  const e = { ...fromName, ...Object.fromEntries(Object.entries(opts.entities).filter(([, v]) => v)) } as Entities & { runLabel?: string | null };
+  const e = { ...fromName, ...Object.fromEntries(Object.entries(opts.entities).filter(([, v]) => v)) } as Entities & {
+    runLabel?: string | null;
+  };
   const sub = e.sub ?? fromName?.sub;
   if (!sub) throw new AppError('validation', `The subject is not in the file name "${opts.name}"; give --sub.`);
   // check the folder against the run file first: a refusal then registers nothing
@@ -42,18 +44,48 @@ export async function importDecomposition(opts: {
   const run = await uploadRun({
     user,
     studyId: opts.studyId,
-    query: { name: opts.name, sub, ses: e.ses ?? '', task: e.task ?? '', acq: e.acq ?? '', run: opts.entities.run ?? fromName?.runLabel ?? '', queue: false },
+    query: {
+      name: opts.name,
+      sub,
+      ses: e.ses ?? '',
+      task: e.task ?? '',
+      acq: e.acq ?? '',
+      run: opts.entities.run ?? fromName?.runLabel ?? '',
+      queue: false,
+    },
     raw: opts.open(),
   });
-  if (opts.motion) await attachMotion({ user, runId: run.id, query: { name: opts.motion.name, order: opts.motion.order, units: opts.motion.units }, raw: opts.motion.open() });
+  if (opts.motion)
+    await attachMotion({
+      user,
+      runId: run.id,
+      query: { name: opts.motion.name, order: opts.motion.order, units: opts.motion.units },
+      raw: opts.motion.open(),
+    });
   const stored = await db('runs').where({ id: run.id }).first('study_id as studyId');
   const files = await copyDecompositionFiles(opts.dir);
   try {
     const result = await db.transaction(async (trx) => {
-      const decompositionId = await storeDecomposition(trx, { runId: run.id, parameters: imported.parameters, summary: imported.summary, files, components: imported.components });
+      const decompositionId = await storeDecomposition(trx, {
+        runId: run.id,
+        parameters: imported.parameters,
+        summary: imported.summary,
+        files,
+        components: imported.components,
+      });
       const assignment = await assignRaters(trx, { runId: run.id, assignedBy: user.id });
       if (assignment.raterIds.length) await afterAssignmentsCreated(trx, { studyId: Number(stored.studyId) });
-      await recordAudit({ actorId: user.id, action: 'run.imported', targetType: 'run', targetId: run.id, studyId: Number(stored.studyId), detail: { decompositionId, components: imported.components.length, from: 'decompose output folder' } }, trx);
+      await recordAudit(
+        {
+          actorId: user.id,
+          action: 'run.imported',
+          targetType: 'run',
+          targetId: run.id,
+          studyId: Number(stored.studyId),
+          detail: { decompositionId, components: imported.components.length, from: 'decompose output folder' },
+        },
+        trx,
+      );
       return { runId: run.id, decompositionId, components: imported.components.length, raters: assignment.raterIds };
     });
     return result;

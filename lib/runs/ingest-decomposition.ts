@@ -58,7 +58,10 @@ export interface DecompositionFiles {
  * mask.nii.gz (uint8), all on the run's grid with its qform/sform and their codes (output-headers.ts).
  * On error the directory is removed.
  */
-export async function writeDecompositionFiles(result: DecompositionResult, header: Pick<NiftiHeader, 'pixdim' | 'affine' | 'qform' | 'qformCode' | 'sformCode' | 'xyztUnits'>): Promise<DecompositionFiles> {
+export async function writeDecompositionFiles(
+  result: DecompositionResult,
+  header: Pick<NiftiHeader, 'pixdim' | 'affine' | 'qform' | 'qformCode' | 'sformCode' | 'xyztUnits'>,
+): Promise<DecompositionFiles> {
   const dirKey = newKey('decompositions');
   const files: DecompositionFiles = {
     dirKey,
@@ -85,11 +88,17 @@ export async function writeDecompositionFiles(result: DecompositionResult, heade
       description: 'Quorum component z-maps',
     });
     await writeNiftiFile(pathFor(files.meanKey), {
-      dims: [nx, ny, nz], ...volume, datatype: 'float32', data: result.meanImage,
+      dims: [nx, ny, nz],
+      ...volume,
+      datatype: 'float32',
+      data: result.meanImage,
       description: 'Quorum mean image of kept volumes',
     });
     await writeNiftiFile(pathFor(files.maskKey), {
-      dims: [nx, ny, nz], ...volume, datatype: 'uint8', data: result.mask,
+      dims: [nx, ny, nz],
+      ...volume,
+      datatype: 'uint8',
+      data: result.mask,
       description: 'Quorum decomposition mask',
     });
   } catch (err) {

@@ -24,12 +24,22 @@ export function decompositionOptionsFor(settings?: DecomposeSettings): Decomposi
  */
 export async function queueDecomposition(
   db: Knex,
-  { runId, createdBy = null, options, priority, maxAttempts }: { runId: number; createdBy?: number | null; options?: DecompositionOptionsInput; priority?: number; maxAttempts?: number },
+  {
+    runId,
+    createdBy = null,
+    options,
+    priority,
+    maxAttempts,
+  }: { runId: number; createdBy?: number | null; options?: DecompositionOptionsInput; priority?: number; maxAttempts?: number },
 ): Promise<{ jobId: number; existing: boolean }> {
   return db.transaction(async (trx) => {
     const run = await trx('runs').select('id', 'study_id').where({ id: runId }).forUpdate().first();
     if (!run) throw new PermanentJobError(`Run ${runId} does not exist.`);
-    const active = await trx('jobs').select('id').where({ run_id: runId, kind: 'decompose' }).whereIn('status', ['queued', 'running']).first();
+    const active = await trx('jobs')
+      .select('id')
+      .where({ run_id: runId, kind: 'decompose' })
+      .whereIn('status', ['queued', 'running'])
+      .first();
     if (active) return { jobId: Number(active.id), existing: true };
     const jobId = await enqueueJob(trx, {
       kind: 'decompose',

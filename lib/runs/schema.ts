@@ -13,7 +13,8 @@ export const PLAIN_FILE_NAME = /^[A-Za-z0-9][A-Za-z0-9._+-]*$/;
 export function fileNameProblem(name: string, kind: 'image' | 'motion'): string | null {
   if (!name) return 'The file has no name. Give it a plain name such as sub-01_task-rest_bold.nii.gz.';
   if (name.length > 200) return `The file name is ${name.length} characters long; shorten it to at most 200.`;
-  if (/[\\/]/.test(name)) return `The file name "${printable(name)}" contains a path separator (/ or \\). Upload the file itself under a plain name such as sub-01_task-rest_bold.nii.gz.`;
+  if (/[\\/]/.test(name))
+    return `The file name "${printable(name)}" contains a path separator (/ or \\). Upload the file itself under a plain name such as sub-01_task-rest_bold.nii.gz.`;
   if (!PLAIN_FILE_NAME.test(name)) {
     return `The file name "${printable(name)}" contains characters other than letters, digits, ".", "_", "-" and "+" (or starts with one). Rename the file, e.g. sub-01_ses-1_task-rest_bold.nii.gz, and upload it again.`;
   }
@@ -51,7 +52,11 @@ const fileName = (kind: 'image' | 'motion') =>
 /** Query of POST /api/studies/:id/runs. `queue=true` queues the decomposition at once (no attachments coming). */
 export const runUploadQuerySchema = runEntitiesSchema.extend({
   name: fileName('image'),
-  queue: z.enum(['true', 'false']).optional().default('false').transform((v) => v === 'true'),
+  queue: z
+    .enum(['true', 'false'])
+    .optional()
+    .default('false')
+    .transform((v) => v === 'true'),
 });
 export type RunUploadQuery = z.output<typeof runUploadQuerySchema>;
 
@@ -87,7 +92,11 @@ export type DecomposeSettings = z.output<typeof decomposeSettingsSchema>;
 
 /** Query of DELETE /api/runs/:id: the second confirmation for a run that already has votes. */
 export const deleteRunQuerySchema = z.object({
-  confirmVotes: z.enum(['true', 'false']).optional().default('false').transform((v) => v === 'true'),
+  confirmVotes: z
+    .enum(['true', 'false'])
+    .optional()
+    .default('false')
+    .transform((v) => v === 'true'),
 });
 
 /** The upload size limit in bytes: QUORUM_MAX_UPLOAD_MB (default 2048 MB). */

@@ -47,7 +47,7 @@ export async function runForChange(user: Actor, runId: number, trx?: Knex.Transa
   if (run) return run;
   const visible = await db('runs as r').where('r.id', runId).first('r.study_id as studyId');
   if (visible && (await findStudyForUser({ user, studyId: visible.studyId }))) {
-    throw forbidden('changing this run: only the study\'s leads and the facility admin may');
+    throw forbidden("changing this run: only the study's leads and the facility admin may");
   }
   throw notFound('The run');
 }
@@ -76,7 +76,17 @@ function checkRunHeader(header: NiftiHeader, dropVolumes: number) {
 }
 
 /** POST /api/studies/:id/runs — a new run from one NIfTI file. Returns the run as a table row. */
-export async function uploadRun({ user, studyId, query, raw }: { user: Actor; studyId: number; query: RunUploadQuery; raw: RawBody }): Promise<RunListItem> {
+export async function uploadRun({
+  user,
+  studyId,
+  query,
+  raw,
+}: {
+  user: Actor;
+  studyId: number;
+  query: RunUploadQuery;
+  raw: RawBody;
+}): Promise<RunListItem> {
   const study = await studyForUpload(user, studyId);
   const received = await receiveNifti(raw.body, {
     maxBytes: maxUploadBytes(),
@@ -112,7 +122,17 @@ export async function uploadRun({ user, studyId, query, raw }: { user: Actor; st
         status: 'uploaded',
         created_by: user.id,
       });
-      await recordAudit({ actorId: user.id, action: 'run.upload', targetType: 'run', targetId: id, studyId, detail: { name: query.name, sha256: received.sha256, bytes: received.sizeBytes } }, trx);
+      await recordAudit(
+        {
+          actorId: user.id,
+          action: 'run.upload',
+          targetType: 'run',
+          targetId: id,
+          studyId,
+          detail: { name: query.name, sha256: received.sha256, bytes: received.sizeBytes },
+        },
+        trx,
+      );
       if (query.queue) await queueDecomposition(trx, { runId: Number(id), createdBy: user.id });
       // the file goes into storage only once its row is written, inside the same transaction: a
       // failed move rolls the row back, a failed commit removes the file (catch below)
@@ -141,7 +161,17 @@ function assertAttachable(run: RunRecord, what: string) {
 }
 
 /** PUT /api/runs/:id/mask — a brain mask on the run's grid (3D, same dimensions and affine). */
-export async function attachMask({ user, runId, name, raw }: { user: Actor; runId: number; name: string; raw: RawBody }): Promise<{ maskName: string }> {
+export async function attachMask({
+  user,
+  runId,
+  name,
+  raw,
+}: {
+  user: Actor;
+  runId: number;
+  name: string;
+  raw: RawBody;
+}): Promise<{ maskName: string }> {
   const run = await runForChange(user, runId);
   assertAttachable(run, 'mask');
   const runHeader = await readNiftiHeaderFile(pathFor(run.fileKey));
@@ -152,7 +182,11 @@ export async function attachMask({ user, runId, name, raw }: { user: Actor; runI
     what: 'mask',
     checkHeader: (h) => {
       if (h.dims.length >= 4 && h.dims.slice(3).some((d) => d > 1)) {
-        throw new AppError('validation', `The mask has ${h.dims[3]} volumes; a brain mask is one 3D volume (non-zero inside the brain). Upload a 3D mask.`, { file: ['Not 3D.'] });
+        throw new AppError(
+          'validation',
+          `The mask has ${h.dims[3]} volumes; a brain mask is one 3D volume (non-zero inside the brain). Upload a 3D mask.`,
+          { file: ['Not 3D.'] },
+        );
       }
       try {
         assertSameGrid(runHeader, h);
@@ -166,7 +200,10 @@ export async function attachMask({ user, runId, name, raw }: { user: Actor; runI
     await moveIntoStore(received.tempFile, key);
     await db.transaction(async (trx) => {
       await trx('runs').where({ id: runId }).update({ mask_key: key });
-      await recordAudit({ actorId: user.id, action: 'run.mask', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { name } }, trx);
+      await recordAudit(
+        { actorId: user.id, action: 'run.mask', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { name } },
+        trx,
+      );
     });
   } catch (err) {
     await rm(received.tempFile, { force: true });
@@ -180,7 +217,8 @@ export async function attachMask({ user, runId, name, raw }: { user: Actor; runI
 /** Reads a small text body (motion table) into a string, refusing more than `maxBytes`. */
 async function readSmallText(raw: RawBody, maxBytes: number): Promise<string> {
   if (raw.contentLength !== null && raw.contentLength > maxBytes) throw tooLarge(maxBytes, raw.contentLength);
-  if (!raw.body || raw.contentLength === 0) throw new AppError('bad_request', 'The request holds no file. Send the motion table as the request body.');
+  if (!raw.body || raw.contentLength === 0)
+    throw new AppError('bad_request', 'The request holds no file. Send the motion table as the request body.');
   const reader = raw.body.getReader();
   const parts: Buffer[] = [];
   let total = 0;
@@ -205,7 +243,12 @@ async function readSmallText(raw: RawBody, maxBytes: number): Promise<string> {
   }
   if (raw.signal?.aborted || (raw.contentLength !== null && total < raw.contentLength)) throw interrupted();
   const buf = Buffer.concat(parts);
-  if (buf.includes(0)) throw new AppError('validation', 'The motion file is not text (it holds binary bytes). Upload a plain-text table with 6 numbers per row.', { file: ['Not text.'] });
+  if (buf.includes(0))
+    throw new AppError(
+      'validation',
+      'The motion file is not text (it holds binary bytes). Upload a plain-text table with 6 numbers per row.',
+      { file: ['Not text.'] },
+    );
   return buf.toString('utf8');
 }
 
@@ -240,8 +283,20 @@ export async function attachMotion({
     });
     await moveIntoStore(temp, key);
     await db.transaction(async (trx) => {
-      await trx('runs').where({ id: runId }).update({ motion_key: key, motion_order: MOTION_ORDER_COLUMNS[query.order], motion_rotation_units: query.units });
-      await recordAudit({ actorId: user.id, action: 'run.motion', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { name: query.name, order: query.order, units: query.units } }, trx);
+      await trx('runs')
+        .where({ id: runId })
+        .update({ motion_key: key, motion_order: MOTION_ORDER_COLUMNS[query.order], motion_rotation_units: query.units });
+      await recordAudit(
+        {
+          actorId: user.id,
+          action: 'run.motion',
+          targetType: 'run',
+          targetId: runId,
+          studyId: run.studyId,
+          detail: { name: query.name, order: query.order, units: query.units },
+        },
+        trx,
+      );
     });
   } catch (err) {
     await rm(temp, { force: true });

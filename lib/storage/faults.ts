@@ -20,5 +20,6 @@ export function storageFaultKind(err: unknown): StorageFaultKind | null {
 
 export const STORAGE_FAULT_MESSAGES: Record<StorageFaultKind, string> = {
   full: "The facility's storage is full, so nothing was saved. Try again later; the facility admin has been alerted.",
-  denied: "The facility's storage cannot be written right now (read-only or permission denied), so nothing was saved. The facility admin has been alerted.",
+  denied:
+    "The facility's storage cannot be written right now (read-only or permission denied), so nothing was saved. The facility admin has been alerted.",
 };

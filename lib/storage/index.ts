@@ -11,7 +11,8 @@ import path from 'node:path';
 
 export type StorageArea = 'runs' | 'masks' | 'motion' | 'structural' | 'decompositions' | 'releases' | 'denoised' | 'tmp';
 
-const KEY = /^(runs|masks|motion|structural|decompositions|releases|denoised|tmp)\/[0-9]{4}-[0-9]{2}\/[A-Za-z0-9-]+(?:\/[A-Za-z0-9._-]+)?(?:\.[a-z0-9.]+)?$/;
+const KEY =
+  /^(runs|masks|motion|structural|decompositions|releases|denoised|tmp)\/[0-9]{4}-[0-9]{2}\/[A-Za-z0-9-]+(?:\/[A-Za-z0-9._-]+)?(?:\.[a-z0-9.]+)?$/;
 
 export function storageRoot(): string {
   // The root is chosen at run time; tell the bundler not to trace the whole project from here.

@@ -13,7 +13,11 @@ export async function sweepUploadLeftovers({
   olderThanMs = LEFTOVER_AGE_MS,
   now = Date.now(),
   log,
-}: { olderThanMs?: number; now?: number; log?: (line: string) => void }): Promise<{ removed: number; bytes: number }> {
+}: {
+  olderThanMs?: number;
+  now?: number;
+  log?: (line: string) => void;
+}): Promise<{ removed: number; bytes: number }> {
   const tmp = path.join(storageRoot(), 'tmp');
   let removed = 0;
   let bytes = 0;

@@ -9,7 +9,10 @@ import type { StudyValues } from './schema';
 export async function createStudy({ user, values }: { user: Pick<UserRow, 'id'>; values: StudyValues }): Promise<number> {
   return inTransaction(async (trx) => {
     const id = await insertStudy(trx, { createdBy: user.id, values });
-    await recordAudit({ actorId: user.id, action: 'study.create', targetType: 'study', targetId: id, studyId: id, detail: { name: values.name } }, trx);
+    await recordAudit(
+      { actorId: user.id, action: 'study.create', targetType: 'study', targetId: id, studyId: id, detail: { name: values.name } },
+      trx,
+    );
     return id;
   });
 }

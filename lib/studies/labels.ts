@@ -9,16 +9,7 @@ export const LABEL_NAMES: Record<LabelKey, string> = {
   uncertain: 'Uncertain',
 };
 
-export const NOISE_KIND_KEYS = [
-  'motion',
-  'pulsation',
-  'vascular',
-  'csf',
-  'white-matter',
-  'susceptibility',
-  'scanner',
-  'other',
-] as const;
+export const NOISE_KIND_KEYS = ['motion', 'pulsation', 'vascular', 'csf', 'white-matter', 'susceptibility', 'scanner', 'other'] as const;
 export type NoiseKindKey = (typeof NOISE_KIND_KEYS)[number];
 
 export const NOISE_KIND_NAMES: Record<NoiseKindKey, string> = {

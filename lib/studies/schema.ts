@@ -6,11 +6,16 @@ import { z } from 'zod';
 import { emailSchema } from '@/lib/auth/schemas';
 import { CONSENSUS_RULES, DIM_METHODS, LOW_REPRODUCIBILITY_POLICIES, NOISE_KIND_KEYS, STUDY_ROLES } from './labels';
 
-const int = (what: string) => z.number({ message: `Enter ${what} as a whole number.` }).int({ message: `Enter ${what} as a whole number.` });
+const int = (what: string) =>
+  z.number({ message: `Enter ${what} as a whole number.` }).int({ message: `Enter ${what} as a whole number.` });
 
 /** The protocol's fields without the cross-field rules (so .partial/.omit stay available). */
 export const studyFields = z.object({
-  name: z.string().trim().min(3, { message: 'Give the study a name of at least 3 characters.' }).max(200, { message: 'Use at most 200 characters.' }),
+  name: z
+    .string()
+    .trim()
+    .min(3, { message: 'Give the study a name of at least 3 characters.' })
+    .max(200, { message: 'Use at most 200 characters.' }),
   description: z.string().trim().max(5000, { message: 'Use at most 5000 characters.' }).optional().default(''),
   ratersPerRun: int('the raters per run').min(1, { message: 'At least 1 rater per run.' }).max(5, { message: 'At most 5 raters per run.' }),
   consensusRule: z.enum(CONSENSUS_RULES, { message: 'Choose a consensus rule.' }),
@@ -21,8 +26,17 @@ export const studyFields = z.object({
   showVotesAfterSubmit: z.boolean(),
   dropVolumes: int('the initial volumes to drop').min(0, { message: 'Cannot be negative.' }).max(500, { message: 'At most 500 volumes.' }),
   dimMethod: z.enum(DIM_METHODS, { message: 'Choose how the number of components is found.' }),
-  fixedComponents: int('the number of components').min(2, { message: 'At least 2 components.' }).max(500, { message: 'At most 500 components.' }).nullable().optional(),
-  varianceFraction: z.number({ message: 'Enter a fraction such as 0.9.' }).gt(0, { message: 'Use a fraction above 0.' }).lt(1, { message: 'Use a fraction below 1.' }).nullable().optional(),
+  fixedComponents: int('the number of components')
+    .min(2, { message: 'At least 2 components.' })
+    .max(500, { message: 'At most 500 components.' })
+    .nullable()
+    .optional(),
+  varianceFraction: z
+    .number({ message: 'Enter a fraction such as 0.9.' })
+    .gt(0, { message: 'Use a fraction above 0.' })
+    .lt(1, { message: 'Use a fraction below 1.' })
+    .nullable()
+    .optional(),
   varianceNorm: z.boolean(),
   detrend: z.boolean(),
   /** Components with reproducibility below this (0..1) are flagged, put last or hidden. */
@@ -32,7 +46,9 @@ export const studyFields = z.object({
     .max(1, { message: 'Use a value from 0 to 1.' })
     .optional(),
   /** Left out: the database default (flag, 0.8). Not .default(): the update schema's .partial() would then reset it. */
-  lowReproducibility: z.enum(LOW_REPRODUCIBILITY_POLICIES, { message: 'Choose what the desk does with components below the threshold.' }).optional(),
+  lowReproducibility: z
+    .enum(LOW_REPRODUCIBILITY_POLICIES, { message: 'Choose what the desk does with components below the threshold.' })
+    .optional(),
 });
 
 type DimFields = { dimMethod?: string; fixedComponents?: number | null; varianceFraction?: number | null };

@@ -46,7 +46,13 @@ export type ModelReport = {
 };
 
 /** Out-of-fold P(noise) for one candidate under fixed subject folds. */
-export function outOfFold(rows: readonly TrainingRow[], fold: readonly number[], k: number, spec: ModelSpec, onFold?: (i: number) => void): number[] {
+export function outOfFold(
+  rows: readonly TrainingRow[],
+  fold: readonly number[],
+  k: number,
+  spec: ModelSpec,
+  onFold?: (i: number) => void,
+): number[] {
   const p = new Array<number>(rows.length).fill(NaN);
   for (let f = 0; f < k; f++) {
     const train = rows.filter((_, i) => fold[i] !== f);
@@ -58,8 +64,15 @@ export function outOfFold(rows: readonly TrainingRow[], fold: readonly number[],
       pred = testIdx.map(() => y[0] ?? 0); // one class only in training: it predicts that class
     } else {
       const def = defineFeatures(train.map((r) => r.features));
-      const model = fitModel(spec, train.map((r) => toRow(def, r.features)), y);
-      pred = predictRows(model, testIdx.map((i) => toRow(def, rows[i]!.features)));
+      const model = fitModel(
+        spec,
+        train.map((r) => toRow(def, r.features)),
+        y,
+      );
+      pred = predictRows(
+        model,
+        testIdx.map((i) => toRow(def, rows[i]!.features)),
+      );
     }
     testIdx.forEach((i, j) => (p[i] = pred[j]!));
     onFold?.(f);
@@ -80,7 +93,9 @@ export function calibrationBins(p: readonly number[], y: readonly number[], bins
     const to = (b + 1) / bins;
     const idx = p.map((v, i) => i).filter((i) => p[i]! >= from && (b === bins - 1 ? p[i]! <= to : p[i]! < to));
     return {
-      from, to, n: idx.length,
+      from,
+      to,
+      n: idx.length,
       meanPredicted: idx.length ? idx.reduce((s, i) => s + p[i]!, 0) / idx.length : null,
       observedNoise: idx.length ? idx.reduce((s, i) => s + y[i]!, 0) / idx.length : null,
     };
@@ -92,7 +107,9 @@ function importanceOf(model: TrainedModel, columns: string[]): { feature: string
   if (model.spec.kind === 'logistic' && 'logistic' in model) raw = model.logistic.coefficients.map(Math.abs);
   else raw = (model as Extract<TrainedModel, { importance: number[] }>).importance; // gini importance (normalised per tree, averaged)
   const total = raw.reduce((s, v) => s + (Number.isFinite(v) ? v : 0), 0) || 1;
-  return columns.map((feature, j) => ({ feature, weight: (Number.isFinite(raw[j]) ? raw[j]! : 0) / total })).sort((a, b) => b.weight - a.weight);
+  return columns
+    .map((feature, j) => ({ feature, weight: (Number.isFinite(raw[j]) ? raw[j]! : 0) / total }))
+    .sort((a, b) => b.weight - a.weight);
 }
 
 /** Chooses, reports and fits the final model. Needs both labels among the rows and ≥ 2 subjects. */
@@ -104,7 +121,11 @@ export function trainSuggestionModel(
   const threshold = opts.threshold ?? DEFAULT_THRESHOLD;
   const noise = rows.filter((r) => r.label === 'noise').length;
   if (noise === 0 || noise === rows.length) throw new Error('The training decisions need both signal and noise components.');
-  const { fold, k } = subjectFolds(rows.map((r) => r.subject), opts.folds ?? DEFAULT_FOLDS, opts.seed ?? 1);
+  const { fold, k } = subjectFolds(
+    rows.map((r) => r.subject),
+    opts.folds ?? DEFAULT_FOLDS,
+    opts.seed ?? 1,
+  );
   if (k < 2) throw new Error('Subject-wise cross-validation needs components of at least two subjects.');
   const steps = candidates.length * k + 1;
   let done = 0;
@@ -115,17 +136,32 @@ export function trainSuggestionModel(
   results.forEach((r, c) => (r.accuracy > results[best]!.accuracy ? (best = c) : undefined));
   const p = oof[best]!;
   const y = rows.map((r) => (r.label === 'noise' ? 1 : 0));
-  const score = scoreAgainstReference(rows.map((r, i) => ({ rater: p[i]! >= threshold ? 'noise' : 'signal', reference: r.label })), ['signal', 'noise']);
+  const score = scoreAgainstReference(
+    rows.map((r, i) => ({ rater: p[i]! >= threshold ? 'noise' : 'signal', reference: r.label })),
+    ['signal', 'noise'],
+  );
 
   const def = defineFeatures(rows.map((r) => r.features));
   const columns = columnNames(def);
-  const trained = fitModel(candidates[best]!, rows.map((r) => toRow(def, r.features)), y);
+  const trained = fitModel(
+    candidates[best]!,
+    rows.map((r) => toRow(def, r.features)),
+    y,
+  );
   tick();
   return {
     model: { format: MODEL_FORMAT, positive: 'noise', threshold, features: def, columns, model: trained },
     report: {
-      chosen: results[best]!.name, folds: k, subjects: new Set(rows.map((r) => r.subject)).size, n: rows.length, noise, threshold,
-      candidates: results, score, calibration: calibrationBins(p, y), importance: importanceOf(trained, columns),
+      chosen: results[best]!.name,
+      folds: k,
+      subjects: new Set(rows.map((r) => r.subject)).size,
+      n: rows.length,
+      noise,
+      threshold,
+      candidates: results,
+      score,
+      calibration: calibrationBins(p, y),
+      importance: importanceOf(trained, columns),
     },
   };
 }

@@ -12,12 +12,15 @@ export function modelDisagreement(pNoise: number | null | undefined, votes: read
 }
 
 /** Items sorted by disagreement, largest first; items without a value keep their order at the end. */
-export function sortByDisagreement<T extends { suggestion: { pNoise: number } | null; votes: readonly { label: string }[] }>(items: readonly T[]): T[] {
+export function sortByDisagreement<T extends { suggestion: { pNoise: number } | null; votes: readonly { label: string }[] }>(
+  items: readonly T[],
+): T[] {
   const d = new Map(items.map((i) => [i, modelDisagreement(i.suggestion?.pNoise, i.votes)]));
   return items
     .map((item, order) => ({ item, order }))
     .sort((a, b) => {
-      const x = d.get(a.item), y = d.get(b.item);
+      const x = d.get(a.item),
+        y = d.get(b.item);
       if (x == null || y == null) return x == null && y == null ? a.order - b.order : x == null ? 1 : -1;
       return y - x || a.order - b.order;
     })

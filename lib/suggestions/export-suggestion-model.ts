@@ -10,7 +10,6 @@ import { activeSuggestionModel } from '@/lib/db/queries/suggestions';
 import { suggestionModelDocument } from './model-document';
 import { notFound } from '@/lib/errors';
 
-
 export async function exportSuggestionModel({ user, studyId }: { user: { id: number; role: Role }; studyId: number }) {
   const access = await findStudyAccess({ user, studyId });
   if (!access) throw notFound('The study');

@@ -3,7 +3,13 @@ import type { StoredModel } from './types';
 
 export function suggestionModelDocument(m: StoredModel) {
   return {
-    Description: 'The suggestion model in use when this was written: P(noise) of a component from its features. Suggestions are shown to a rater only after their own vote.',
-    studyId: m.studyId, version: m.version, createdAt: m.createdAt, training: m.training, report: m.report, ...m.model,
+    Description:
+      'The suggestion model in use when this was written: P(noise) of a component from its features. Suggestions are shown to a rater only after their own vote.',
+    studyId: m.studyId,
+    version: m.version,
+    createdAt: m.createdAt,
+    training: m.training,
+    report: m.report,
+    ...m.model,
   };
 }

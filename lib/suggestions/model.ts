@@ -20,7 +20,11 @@ export type ModelSpec = LogisticSpec | ForestSpec;
 
 export type TrainedModel =
   | { spec: LogisticSpec; standardise: { mean: number[]; sd: number[] }; logistic: LogisticModel }
-  | { spec: ForestSpec; forest: unknown; /** Gini importance per column (ml-random-forest featureImportance, at fit time: the saved trees lack sample counts). */ importance: number[] };
+  | {
+      spec: ForestSpec;
+      forest: unknown;
+      /** Gini importance per column (ml-random-forest featureImportance, at fit time: the saved trees lack sample counts). */ importance: number[];
+    };
 
 /** The exported model: what it predicts, from what, how it was chosen. */
 export type SuggestionModelJson = {
@@ -34,7 +38,9 @@ export type SuggestionModelJson = {
 };
 
 export function specName(spec: ModelSpec): string {
-  return spec.kind === 'logistic' ? `logistic regression (L2, C = ${spec.C})` : `random forest (${spec.trees} trees, depth ≤ ${spec.maxDepth})`;
+  return spec.kind === 'logistic'
+    ? `logistic regression (L2, C = ${spec.C})`
+    : `random forest (${spec.trees} trees, depth ≤ ${spec.maxDepth})`;
 }
 
 /** Column means and SDs (population) of the rows. */
@@ -64,6 +70,10 @@ export function predictRows(model: TrainedModel, rows: number[][]): number[] {
 
 /** P(noise) for components' raw features under an exported model. */
 export function predictNoise(json: SuggestionModelJson, features: readonly RawFeatures[]): number[] {
-  if (columnNames(json.features).join('\u0000') !== json.columns.join('\u0000')) throw new Error('The model’s columns do not match its feature definition.');
-  return predictRows(json.model, features.map((f) => toRow(json.features, f)));
+  if (columnNames(json.features).join('\u0000') !== json.columns.join('\u0000'))
+    throw new Error('The model’s columns do not match its feature definition.');
+  return predictRows(
+    json.model,
+    features.map((f) => toRow(json.features, f)),
+  );
 }

@@ -12,7 +12,15 @@ import { activeTrainingJob, inSuggestionTransaction } from '@/lib/db/queries/sug
 import { AppError, forbidden, notFound } from '@/lib/errors';
 import { enqueueJob } from '@/lib/jobs/queue';
 
-export async function requestTraining({ user, studyId, sourceStudyIds }: { user: { id: number; role: Role }; studyId: number; sourceStudyIds?: number[] }): Promise<{ jobId: number; sourceStudyIds: number[] }> {
+export async function requestTraining({
+  user,
+  studyId,
+  sourceStudyIds,
+}: {
+  user: { id: number; role: Role };
+  studyId: number;
+  sourceStudyIds?: number[];
+}): Promise<{ jobId: number; sourceStudyIds: number[] }> {
   const access = await findStudyAccess({ user, studyId });
   if (!access) throw notFound('The study');
   if (!leadsStudy(access)) throw forbidden('training suggestions for this study (only its leads may)');
@@ -24,8 +32,23 @@ export async function requestTraining({ user, studyId, sourceStudyIds }: { user:
   return inSuggestionTransaction(async (trx) => {
     const active = await activeTrainingJob(trx, { studyId });
     if (active) return { jobId: active, sourceStudyIds: sources };
-    const jobId = await enqueueJob(trx, { kind: 'train-suggestions', payload: { studyId, sourceStudyIds: sources }, studyId, createdBy: user.id });
-    await recordAudit({ actorId: user.id, action: 'suggestions.train_requested', targetType: 'study', targetId: studyId, studyId, detail: { sourceStudyIds: sources, jobId } }, trx);
+    const jobId = await enqueueJob(trx, {
+      kind: 'train-suggestions',
+      payload: { studyId, sourceStudyIds: sources },
+      studyId,
+      createdBy: user.id,
+    });
+    await recordAudit(
+      {
+        actorId: user.id,
+        action: 'suggestions.train_requested',
+        targetType: 'study',
+        targetId: studyId,
+        studyId,
+        detail: { sourceStudyIds: sources, jobId },
+      },
+      trx,
+    );
     return { jobId, sourceStudyIds: sources };
   });
 }

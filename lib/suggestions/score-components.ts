@@ -2,7 +2,13 @@
 import type { RawFeatures } from './feature-vector';
 import { predictNoise, type SuggestionModelJson } from './model';
 
-export function scoreComponents<T extends { features: RawFeatures }>(model: SuggestionModelJson, rows: readonly T[]): (T & { pNoise: number; label: 'noise' | 'signal' })[] {
-  const p = predictNoise(model, rows.map((r) => r.features));
+export function scoreComponents<T extends { features: RawFeatures }>(
+  model: SuggestionModelJson,
+  rows: readonly T[],
+): (T & { pNoise: number; label: 'noise' | 'signal' })[] {
+  const p = predictNoise(
+    model,
+    rows.map((r) => r.features),
+  );
   return rows.map((r, i) => ({ ...r, pNoise: p[i]!, label: p[i]! >= model.threshold ? 'noise' : 'signal' }));
 }

@@ -13,5 +13,9 @@ export async function showSuggestions({ user, runId }: { user: { id: number }; r
   const run = await findAssignedRun({ user, runId });
   const settings = await suggestionSettings({ studyId: Number(run.studyId) });
   if (!settings.enabled || settings.modelId === null) return { enabled: settings.enabled, modelVersion: settings.version, suggestions: [] };
-  return { enabled: true, modelVersion: settings.version, suggestions: await suggestionsAfterVotes({ runId, raterId: user.id, modelId: settings.modelId }) };
+  return {
+    enabled: true,
+    modelVersion: settings.version,
+    suggestions: await suggestionsAfterVotes({ runId, raterId: user.id, modelId: settings.modelId }),
+  };
 }

@@ -8,10 +8,16 @@ import { notFound } from '@/lib/errors';
 export async function studySuggestions({ user, studyId }: { user: { id: number; role: Role }; studyId: number }) {
   const access = await findStudyAccess({ user, studyId });
   if (!access) throw notFound('The study');
-  const [settings, model, job] = await Promise.all([suggestionSettings({ studyId }), activeSuggestionModel({ studyId }), latestTrainingJob({ studyId })]);
+  const [settings, model, job] = await Promise.all([
+    suggestionSettings({ studyId }),
+    activeSuggestionModel({ studyId }),
+    latestTrainingJob({ studyId }),
+  ]);
   return {
     enabled: settings.enabled,
-    model: model ? { id: model.id, version: model.version, createdAt: model.createdAt, report: model.report, training: model.training } : null,
+    model: model
+      ? { id: model.id, version: model.version, createdAt: model.createdAt, report: model.report, training: model.training }
+      : null,
     training: job,
   };
 }

@@ -12,7 +12,15 @@ export type TrainingSource = { releaseId: number; studyId: number; runId: number
 export type TrainingRecord = { studies: number[]; releases: TrainingSource[]; skipped: number };
 
 /** One stored model of a study. */
-export type StoredModel = { id: number; studyId: number; version: number; model: SuggestionModelJson; report: ModelReport; training: TrainingRecord; createdAt: string };
+export type StoredModel = {
+  id: number;
+  studyId: number;
+  version: number;
+  model: SuggestionModelJson;
+  report: ModelReport;
+  training: TrainingRecord;
+  createdAt: string;
+};
 
 /** One suggestion a rater may see (after their own vote). */
 export type RaterSuggestion = { componentId: number; label: string; pNoise: number; modelVersion: number };

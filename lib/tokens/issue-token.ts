@@ -15,8 +15,14 @@ export async function issueToken({ userId, name, expiresInDays }: { userId: numb
   const prefix = token.slice(0, 10);
   const expiresAt = expiresInDays ? new Date(Date.now() + expiresInDays * 86400_000) : null;
   const id = await inTransaction(async (trx) => {
-    const id = await insertAccessToken({ userId, name, tokenHash: hashToken(token), tokenPrefix: prefix, scope: TOKEN_SCOPE, expiresAt }, trx);
-    await recordAudit({ actorId: userId, action: 'token.create', targetType: 'personal_access_token', targetId: id, detail: { name, scope: TOKEN_SCOPE } }, trx);
+    const id = await insertAccessToken(
+      { userId, name, tokenHash: hashToken(token), tokenPrefix: prefix, scope: TOKEN_SCOPE, expiresAt },
+      trx,
+    );
+    await recordAudit(
+      { actorId: userId, action: 'token.create', targetType: 'personal_access_token', targetId: id, detail: { name, scope: TOKEN_SCOPE } },
+      trx,
+    );
     return id;
   });
   return { id, token, prefix, scope: TOKEN_SCOPE, expiresAt };

@@ -47,14 +47,20 @@ export async function saveVote({
     // plain read, below) already holds the votes committed by the raters who held the lock before.
     const component = await lockDecompositionComponent(trx, { componentId, decompositionId: run.decompositionId });
     if (!component) {
-      throw new AppError('not_found', `Component ${componentId} is not a component of run ${runId}. Vote on the components shown on this run's desk.`);
+      throw new AppError(
+        'not_found',
+        `Component ${componentId} is not a component of run ${runId}. Vote on the components shown on this run's desk.`,
+      );
     }
     if (await isRunReleased({ runId }, trx)) {
       throw new AppError('conflict', `Run ${runId} has been released; its votes are frozen. Ask the study lead if a label must change.`);
     }
     if (run.submittedAt) {
       const day = new Date(run.submittedAt).toISOString().slice(0, 16).replace('T', ' ');
-      throw new AppError('conflict', `You submitted run ${runId} on ${day} UTC, so your votes on it are frozen. If a label must change, ask the study lead to reopen the run for you.`);
+      throw new AppError(
+        'conflict',
+        `You submitted run ${runId} on ${day} UTC, so your votes on it are frozen. If a label must change, ask the study lead to reopen the run for you.`,
+      );
     }
     const fields: Record<string, string[]> = {};
     if (change.label !== undefined && !run.labelSet.includes(change.label)) {
@@ -73,19 +79,29 @@ export async function saveVote({
 
     const stored = await findRaterVote(trx, { componentId, raterId: user.id });
     const existing = stored?.vote;
-    const before: VoteFields | null = existing ? { label: existing.label, noiseKind: existing.noiseKind, confidence: existing.confidence, note: existing.note } : null;
+    const before: VoteFields | null = existing
+      ? { label: existing.label, noiseKind: existing.noiseKind, confidence: existing.confidence, note: existing.note }
+      : null;
     const label = change.label ?? before?.label;
     if (!label) {
-      throw new AppError('validation', 'The vote is not valid (label): choose signal, noise or uncertain before a noise kind, confidence or note.', {
-        label: ['choose a label first'],
-      });
+      throw new AppError(
+        'validation',
+        'The vote is not valid (label): choose signal, noise or uncertain before a noise kind, confidence or note.',
+        {
+          label: ['choose a label first'],
+        },
+      );
     }
     let noiseKind = change.noiseKind !== undefined ? change.noiseKind : (before?.noiseKind ?? null);
     if (noiseKind != null && change.noiseKind != null && change.label === undefined && label !== NOISE) {
       // A kind on its own turns the vote into "noise" of that kind.
-      throw new AppError('validation', `The vote is not valid (noiseKind): the vote is "${label}"; set the label to "${NOISE}" with the kind.`, {
-        noiseKind: ['set the label to noise with the kind'],
-      });
+      throw new AppError(
+        'validation',
+        `The vote is not valid (noiseKind): the vote is "${label}"; set the label to "${NOISE}" with the kind.`,
+        {
+          noiseKind: ['set the label to noise with the kind'],
+        },
+      );
     }
     if (label !== NOISE) noiseKind = null;
     const after: VoteFields = {
@@ -102,7 +118,14 @@ export async function saveVote({
     if (existing && Object.keys(changes).length === 0) {
       return { vote: existing, merged: false, changed: false };
     }
-    await writeVote(trx, { existingId: stored?.id ?? null, componentId, runId, raterId: user.id, assignmentId: run.assignmentId, fields: after });
+    await writeVote(trx, {
+      existingId: stored?.id ?? null,
+      componentId,
+      runId,
+      raterId: user.id,
+      assignmentId: run.assignmentId,
+      fields: after,
+    });
     await recomputeDecision(trx, { componentId });
     await recordAudit(
       {

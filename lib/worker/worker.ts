@@ -120,10 +120,19 @@ export function startWorker(opts: WorkerOptions): WorkerHandle {
 
   const execute = async (job: Job, stop: AbortController) => {
     const t0 = Date.now();
-    line(`job ${job.id} ${job.kind} started (attempt ${job.attempts}/${job.maxAttempts}${job.runId ? `, run ${job.runId}` : ''}) by ${workerId}`);
+    line(
+      `job ${job.id} ${job.kind} started (attempt ${job.attempts}/${job.maxAttempts}${job.runId ? `, run ${job.runId}` : ''}) by ${workerId}`,
+    );
     let outcome: RunOutcome | 'error';
     try {
-      outcome = await runClaimedJob(db, job, { workerId, leaseMs, kinds: opts.kinds, logger, retryBaseMs: opts.retryBaseMs, stopSignal: stop.signal });
+      outcome = await runClaimedJob(db, job, {
+        workerId,
+        leaseMs,
+        kinds: opts.kinds,
+        logger,
+        retryBaseMs: opts.retryBaseMs,
+        stopSignal: stop.signal,
+      });
     } catch (err) {
       // the database went away while recording the outcome: the lease will expire and another
       // worker (or this one) takes the job again

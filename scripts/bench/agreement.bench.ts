@@ -45,8 +45,12 @@ export async function main(): Promise<void> {
   const o = last!.overall;
   const fmt = (x: number | null) => (x === null ? 'null' : x.toFixed(4));
   console.log(`studyAgreement: ${RUNS} runs × ${COMPONENTS} components × 3 raters (${items.length} items), 1000 resamples`);
-  console.log(`  time per call: ${times.map((t) => `${t.toFixed(0)} ms`).join(', ')} (best ${Math.min(...times).toFixed(0)} ms; target ≤ 1000 ms)`);
-  console.log(`  α = ${fmt(o.krippendorffAlpha.value)} [${fmt(o.krippendorffAlpha.ci!.lower)}, ${fmt(o.krippendorffAlpha.ci!.upper)}], ` +
-    `Fleiss κ = ${fmt(o.fleissKappa.value)} (n ${o.fleissKappa.n}), AC1 = ${fmt(o.gwetAC1.value)}, PABAK = ${fmt(o.pabak.value)}, ` +
-    `percent = ${fmt(o.percentAgreement.value)}; ${last!.pairs.length} pairs, ${last!.runs.length} runs`);
+  console.log(
+    `  time per call: ${times.map((t) => `${t.toFixed(0)} ms`).join(', ')} (best ${Math.min(...times).toFixed(0)} ms; target ≤ 1000 ms)`,
+  );
+  console.log(
+    `  α = ${fmt(o.krippendorffAlpha.value)} [${fmt(o.krippendorffAlpha.ci!.lower)}, ${fmt(o.krippendorffAlpha.ci!.upper)}], ` +
+      `Fleiss κ = ${fmt(o.fleissKappa.value)} (n ${o.fleissKappa.n}), AC1 = ${fmt(o.gwetAC1.value)}, PABAK = ${fmt(o.pabak.value)}, ` +
+      `percent = ${fmt(o.percentAgreement.value)}; ${last!.pairs.length} pairs, ${last!.runs.length} runs`,
+  );
 }

@@ -16,7 +16,11 @@ const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..')
 
 function runWorker(env: Record<string, string>): Promise<number> {
   return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, ['--conditions=react-server', '--import', 'tsx', 'scripts/worker.ts', '--once'], { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'ignore', 'inherit'] });
+    const child = spawn(process.execPath, ['--conditions=react-server', '--import', 'tsx', 'scripts/worker.ts', '--once'], {
+      cwd: root,
+      env: { ...process.env, ...env },
+      stdio: ['ignore', 'ignore', 'inherit'],
+    });
     child.on('error', reject);
     child.on('exit', (code) => resolve(code ?? 1));
   });
@@ -62,7 +66,9 @@ export async function main(): Promise<void> {
     for (let i = 0; i < n; i++) {
       const key = i === 0 ? first : newKey('runs', '.nii.gz');
       if (i > 0) await copyFile(path.join(uploads, first), await ensureDirFor(key));
-      runIds.push(await createRun(db, { studyId, createdBy: leadId, file: { fileKey: key, sha256: `bench-${i}`, sizeBytes: 0 }, sub: `b${i + 1}` }));
+      runIds.push(
+        await createRun(db, { studyId, createdBy: leadId, file: { fileKey: key, sha256: `bench-${i}`, sizeBytes: 0 }, sub: `b${i + 1}` }),
+      );
     }
     const batch = async (label: string, env: Record<string, string>) => {
       await db('jobs').del();
@@ -72,7 +78,9 @@ export async function main(): Promise<void> {
       const code = await runWorker({ QUORUM_UPLOADS_DIR: uploads, QUORUM_DB_NAME: settings.database, ...env });
       const wall = (performance.now() - t0) / 1000;
       // from the first job's creation to the last one's completion, on the database's clock
-      const span = await db('jobs').where({ kind: 'decompose' }).first(db.raw('TIMESTAMPDIFF(MICROSECOND, MIN(created_at), MAX(finished_at)) / 1e6 AS s'));
+      const span = await db('jobs')
+        .where({ kind: 'decompose' })
+        .first(db.raw('TIMESTAMPDIFF(MICROSECOND, MIN(created_at), MAX(finished_at)) / 1e6 AS s'));
       const seconds = Number(span?.s ?? wall);
       const ok = Number((await db('jobs').where({ kind: 'decompose', status: 'succeeded' }).count({ n: '*' }).first())?.n ?? 0);
       const line = `${label}: ${ok}/${n} runs ready in ${seconds.toFixed(0)} s → ${(ok / (seconds / 60)).toFixed(2)} runs/min (worker exit ${code}; load ${load0.toFixed(1)}→${loadavg()[0]!.toFixed(1)})`;

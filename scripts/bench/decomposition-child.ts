@@ -11,7 +11,15 @@
 import { readNiftiFile, writeNiftiFile, type NiftiImage } from '@/lib/nifti';
 import { generatePhantom, phantomToNiftiInput, type PhantomSize } from '@/lib/phantom';
 import {
-  buildDataMatrix, decomposeRun, fastIca, KernelPool, meanImage, sharedFloat32, temporalCovariance, temporalPca, whiten,
+  buildDataMatrix,
+  decomposeRun,
+  fastIca,
+  KernelPool,
+  meanImage,
+  sharedFloat32,
+  temporalCovariance,
+  temporalPca,
+  whiten,
 } from '@/lib/decomposition';
 import { autoBrainMask } from '@/lib/decomposition/brain-mask';
 import { kernelBackend } from '@/lib/decomposition/worker-pool';
@@ -77,9 +85,18 @@ if (mode === 'gen' && a && b) {
     await pool.run('unmixChunk', pool.partition(V), (r) => [wh.z, k, V, ica.w, r[0], r[1], s]);
     lap('unmix');
     print({
-      seconds: { ...sec, endToEnd: (performance.now() - t0) / 1000 }, k, V, T, iterations: ica.iterations,
-      warmStartIterations: ica.warmStartIterations, warmStartVoxels: ica.warmStartVoxels, converged: ica.converged,
-      attempts: ica.attempts, threads: pool.threads, backend: kernelBackend(), maxRssMb: rssMb(),
+      seconds: { ...sec, endToEnd: (performance.now() - t0) / 1000 },
+      k,
+      V,
+      T,
+      iterations: ica.iterations,
+      warmStartIterations: ica.warmStartIterations,
+      warmStartVoxels: ica.warmStartVoxels,
+      converged: ica.converged,
+      attempts: ica.attempts,
+      threads: pool.threads,
+      backend: kernelBackend(),
+      maxRssMb: rssMb(),
       icaCpuSeconds: (icaCpu.user + icaCpu.system) / 1e6,
     });
   } finally {
@@ -98,10 +115,20 @@ if (mode === 'gen' && a && b) {
   const write = (performance.now() - t2) / 1000;
   print({
     seconds: { read, ...r.seconds, write, endToEnd: (performance.now() - t0) / 1000 },
-    k: r.k, voxelsInMask: r.voxelsInMask, timepoints: r.timepoints, iterations: r.iterations, converged: r.converged,
-    warmStartIterations: r.warmStartIterations, attempts: r.icaAttempts, threads: r.threads, backend: kernelBackend(), maxRssMb: rssMb(),
+    k: r.k,
+    voxelsInMask: r.voxelsInMask,
+    timepoints: r.timepoints,
+    iterations: r.iterations,
+    converged: r.converged,
+    warmStartIterations: r.warmStartIterations,
+    attempts: r.icaAttempts,
+    threads: r.threads,
+    backend: kernelBackend(),
+    maxRssMb: rssMb(),
   });
 } else {
-  process.stderr.write('usage: decomposition-child.ts gen SIZE FILE | mask FILE MASKFILE | ica FILE MASKFILE K | full FILE MASKFILE K OUTDIR | run FILE OUTDIR\n');
+  process.stderr.write(
+    'usage: decomposition-child.ts gen SIZE FILE | mask FILE MASKFILE | ica FILE MASKFILE K | full FILE MASKFILE K OUTDIR | run FILE OUTDIR\n',
+  );
   process.exit(2);
 }

@@ -34,7 +34,12 @@ const TARGETS = { app: 30, painted: 150, load: 1500 };
 
 const env = { ...process.env, QUORUM_DB_NAME: DB_NAME, QUORUM_UPLOADS_DIR: UPLOADS };
 const tsx = (args: string[], extra: Record<string, string> = {}) =>
-  execFileSync('node', ['--import', 'tsx', ...args], { cwd: root, env: { ...env, ...extra }, encoding: 'utf8', stdio: ['ignore', 'pipe', 'inherit'] });
+  execFileSync('node', ['--import', 'tsx', ...args], {
+    cwd: root,
+    env: { ...env, ...extra },
+    encoding: 'utf8',
+    stdio: ['ignore', 'pipe', 'inherit'],
+  });
 
 /** The 80-component run in the bench database: reused when it is there, else made (≈ minutes). */
 function benchRun(): { runId: number; k: number } {
@@ -60,9 +65,15 @@ function benchRun(): { runId: number; k: number } {
   tsx(['scripts/reset-database.ts', DB_NAME]);
   tsx(['node_modules/knex/bin/cli.js', '--knexfile', 'knexfile.ts', 'migrate:latest']);
   tsx(['scripts/seed-demo.ts']);
-  const out = tsx(['tests/e2e/helpers/create-ready-run.ts', JSON.stringify({ raters: [RATER], size: SIZE, seed: 3, components: K, restarts: 1 })]);
+  const out = tsx([
+    'tests/e2e/helpers/create-ready-run.ts',
+    JSON.stringify({ raters: [RATER], size: SIZE, seed: 3, components: K, restarts: 1 }),
+  ]);
   const made = JSON.parse(out.trim().split('\n').pop()!) as { runId: number; k: number };
-  tsx(['-e', `import('./lib/db/knex.ts').then(async ({ createDb }) => { const db = createDb(); await db('runs').where({ id: ${made.runId} }).update({ sub: 'bench${K}${SIZE}' }); await db.destroy(); });`]);
+  tsx([
+    '-e',
+    `import('./lib/db/knex.ts').then(async ({ createDb }) => { const db = createDb(); await db('runs').where({ id: ${made.runId} }).update({ sub: 'bench${K}${SIZE}' }); await db.destroy(); });`,
+  ]);
   return made;
 }
 
@@ -82,7 +93,10 @@ async function startServer(): Promise<ChildProcess> {
   });
   for (;;) {
     if (server.exitCode !== null) throw new Error(`the server stopped (exit ${server.exitCode})`);
-    const up = await fetch(`http://localhost:${PORT}/api/health`).then((r) => r.ok, () => false);
+    const up = await fetch(`http://localhost:${PORT}/api/health`).then(
+      (r) => r.ok,
+      () => false,
+    );
     if (up) return server;
     await new Promise((r) => setTimeout(r, 250)); // polling the server's readiness, not a measurement
   }
@@ -108,7 +122,9 @@ async function loadDesk(page: Page, runId: number) {
   await page.waitForFunction(() => performance.getEntriesByName('viewer:painted').length > 0, null, { timeout: 120_000 });
   return page.evaluate(() => {
     const nav = performance.getEntriesByType('navigation')[0] as PerformanceNavigationTiming;
-    const maps = (performance.getEntriesByType('resource') as PerformanceResourceTiming[]).find((r) => r.name.includes('/components.nii.gz'));
+    const maps = (performance.getEntriesByType('resource') as PerformanceResourceTiming[]).find((r) =>
+      r.name.includes('/components.nii.gz'),
+    );
     return {
       painted: performance.getEntriesByName('viewer:painted')[0]!.startTime,
       html: nav.responseEnd,
@@ -119,7 +135,11 @@ async function loadDesk(page: Page, runId: number) {
   });
 }
 
-type Profile = { nodes: Array<{ id: number; callFrame: { functionName: string; url: string; lineNumber: number }; hitCount?: number }>; samples: number[]; timeDeltas: number[] };
+type Profile = {
+  nodes: Array<{ id: number; callFrame: { functionName: string; url: string; lineNumber: number }; hitCount?: number }>;
+  samples: number[];
+  timeDeltas: number[];
+};
 
 function topSelfTime(profile: Profile, n = 18) {
   const byId = new Map(profile.nodes.map((node) => [node.id, node]));
@@ -156,7 +176,17 @@ export async function main(): Promise<void> {
   let server: ChildProcess | null = null;
   const browser = await chromium.launch({
     executablePath: chromiumPath,
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--enable-unsafe-swiftshader'],
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+      '--enable-unsafe-swiftshader',
+    ],
   });
   try {
     const run = benchRun();
@@ -176,7 +206,10 @@ export async function main(): Promise<void> {
     const warm = await loadDesk(page, run.runId);
     if (process.env.BENCH_DESK_SCREENSHOT) await page.screenshot({ path: process.env.BENCH_DESK_SCREENSHOT, fullPage: true });
     await page.keyboard.press('Home');
-    await page.getByTestId('desk-position').filter({ hasText: `Component 1 of ${run.k}` }).waitFor();
+    await page
+      .getByTestId('desk-position')
+      .filter({ hasText: `Component 1 of ${run.k}` })
+      .waitFor();
     const cdp = process.env.BENCH_DESK_PROFILE === '1' ? await context.newCDPSession(page) : null;
     if (cdp) {
       await cdp.send('Profiler.enable');
@@ -200,16 +233,25 @@ export async function main(): Promise<void> {
       issued.push(m.issued);
       painted.push(m.painted);
     }
-    await page.getByTestId('desk-position').filter({ hasText: `Component ${switches + 1} of ${run.k}` }).waitFor();
+    await page
+      .getByTestId('desk-position')
+      .filter({ hasText: `Component ${switches + 1} of ${run.k}` })
+      .waitFor();
     const profile = cdp ? ((await cdp.send('Profiler.stop')) as { profile: Profile }).profile : null;
 
     console.log(`run: ${run.k} components, phantom ${SIZE}; headless Chromium, software WebGL (SwiftShader); viewport 1440 × 900`);
-    console.log(`first load (navigation → map painted), cold cache ${fmt(cold.painted)}   warm ${fmt(warm.painted)}   target ≤ ${TARGETS.load} ms`);
-    console.log(`  page HTML received after ${fmt(cold.html)} (${(cold.htmlBytes / 1024).toFixed(0)} KB over the wire); component maps received after ${fmt(cold.mapsEnd)} (${(cold.mapsBytes / 1048576).toFixed(1)} MB gzip)`);
+    console.log(
+      `first load (navigation → map painted), cold cache ${fmt(cold.painted)}   warm ${fmt(warm.painted)}   target ≤ ${TARGETS.load} ms`,
+    );
+    console.log(
+      `  page HTML received after ${fmt(cold.html)} (${(cold.htmlBytes / 1024).toFixed(0)} KB over the wire); component maps received after ${fmt(cold.mapsEnd)} (${(cold.mapsBytes / 1048576).toFixed(1)} MB gzip)`,
+    );
     console.log(`switch (key J) × ${switches}:          median        max    target`);
     console.log(`  app work (key → React committed)  ${fmt(median(app))} ${fmt(Math.max(...app))}   ≤ ${TARGETS.app} ms`);
     console.log(`  issued   (key → map draw calls)   ${fmt(median(issued))} ${fmt(Math.max(...issued))}`);
-    console.log(`  painted  (key → frame painted)    ${fmt(median(painted))} ${fmt(Math.max(...painted))}   ≤ ${TARGETS.painted} ms (software WebGL)`);
+    console.log(
+      `  painted  (key → frame painted)    ${fmt(median(painted))} ${fmt(Math.max(...painted))}   ≤ ${TARGETS.painted} ms (software WebGL)`,
+    );
     if (loadProfile) {
       console.log('main thread during the cold load, self time (ms):');
       for (const [name, ms] of topSelfTime(loadProfile, 12)) console.log(`  ${ms.toFixed(0).padStart(6)}  ${name}`);

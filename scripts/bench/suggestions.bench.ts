@@ -17,13 +17,23 @@ import { trainSuggestionModel, type TrainingRow } from '@/lib/suggestions/cross-
 
 function pearson(a: ArrayLike<number>, b: ArrayLike<number>): number {
   const n = a.length;
-  let ma = 0, mb = 0;
-  for (let i = 0; i < n; i++) { ma += a[i]!; mb += b[i]!; }
-  ma /= n; mb /= n;
-  let sab = 0, saa = 0, sbb = 0;
+  let ma = 0,
+    mb = 0;
   for (let i = 0; i < n; i++) {
-    const x = a[i]! - ma, y = b[i]! - mb;
-    sab += x * y; saa += x * x; sbb += y * y;
+    ma += a[i]!;
+    mb += b[i]!;
+  }
+  ma /= n;
+  mb /= n;
+  let sab = 0,
+    saa = 0,
+    sbb = 0;
+  for (let i = 0; i < n; i++) {
+    const x = a[i]! - ma,
+      y = b[i]! - mb;
+    sab += x * y;
+    saa += x * x;
+    sbb += y * y;
   }
   return saa > 0 && sbb > 0 ? sab / Math.sqrt(saa * sbb) : 0;
 }
@@ -34,7 +44,8 @@ function truthLabels(p: Phantom, r: DecompositionResult): Array<'signal' | 'nois
   const truths = p.truth.sources.map((s) => ({ kind: s.kind, map: Array.from(r.maskIndices, (i) => s.map[i]!) }));
   return Array.from({ length: r.k }, (_, c) => {
     const comp = r.maps.subarray(c * V, (c + 1) * V);
-    let best = 0, kind: 'signal' | 'noise' = 'noise';
+    let best = 0,
+      kind: 'signal' | 'noise' = 'noise';
     for (const t of truths) {
       const v = Math.abs(pearson(t.map, comp));
       if (v > best) [best, kind] = [v, t.kind];
@@ -56,8 +67,12 @@ export async function main() {
     const r = await decomposeRun({ image, mask: p.truth.brainMask }, { components, restarts, threads, seed: s });
     const features = componentFeatures(r, p.motion);
     const labels = truthLabels(p, r);
-    features.forEach((f, c) => rows.push({ subject: String(s).padStart(2, '0'), features: { ...f, varianceExplained: r.explainedVariance[c]! }, label: labels[c]! }));
-    console.log(`subject ${s}: k ${r.k}, ${labels.filter((l) => l === 'noise').length} noise / ${labels.filter((l) => l === 'signal').length} signal`);
+    features.forEach((f, c) =>
+      rows.push({ subject: String(s).padStart(2, '0'), features: { ...f, varianceExplained: r.explainedVariance[c]! }, label: labels[c]! }),
+    );
+    console.log(
+      `subject ${s}: k ${r.k}, ${labels.filter((l) => l === 'noise').length} noise / ${labels.filter((l) => l === 'signal').length} signal`,
+    );
   }
   const t1 = performance.now();
   const { report } = trainSuggestionModel(rows);
@@ -66,7 +81,14 @@ export async function main() {
   for (const c of report.candidates) console.log(`  ${c.name.padEnd(40)} CV accuracy ${c.accuracy.toFixed(3)}`);
   const f3 = (v: number | null) => (v === null ? '—' : v.toFixed(3));
   console.log(`chosen: ${report.chosen}`);
-  console.log(`subject-wise CV accuracy ${f3(report.score.percentAgreement.value)}, noise sensitivity ${f3(report.score.noise.sensitivity.value)}, specificity ${f3(report.score.noise.specificity.value)}, κ ${f3(report.score.cohenKappa.value)}, AC1 ${f3(report.score.gwetAC1.value)}`);
-  console.log(`top features: ${report.importance.slice(0, 5).map((f) => `${f.feature} ${f.weight.toFixed(2)}`).join(', ')}`);
+  console.log(
+    `subject-wise CV accuracy ${f3(report.score.percentAgreement.value)}, noise sensitivity ${f3(report.score.noise.sensitivity.value)}, specificity ${f3(report.score.noise.specificity.value)}, κ ${f3(report.score.cohenKappa.value)}, AC1 ${f3(report.score.gwetAC1.value)}`,
+  );
+  console.log(
+    `top features: ${report.importance
+      .slice(0, 5)
+      .map((f) => `${f.feature} ${f.weight.toFixed(2)}`)
+      .join(', ')}`,
+  );
   console.log(`time: data ${((t1 - t0) / 1000).toFixed(1)} s, cross-validation + fit ${((t2 - t1) / 1000).toFixed(1)} s`);
 }

@@ -3,8 +3,15 @@
 import { readFile } from 'node:fs/promises';
 import { parseArgs } from 'node:util';
 import {
-  AgreementError, bootstrapTableStat, cohenKappa, DEFAULT_RESAMPLES, DEFAULT_SEED, detectFormat, parseRatingsText,
-  ratingsTableFromVotes, studyAgreement,
+  AgreementError,
+  bootstrapTableStat,
+  cohenKappa,
+  DEFAULT_RESAMPLES,
+  DEFAULT_SEED,
+  detectFormat,
+  parseRatingsText,
+  ratingsTableFromVotes,
+  studyAgreement,
   type StatResult,
 } from '@/lib/agreement';
 import type { CliCommand } from './index';
@@ -32,7 +39,10 @@ export async function agreementReport(file: string, opts: { bootstrap: number; s
   const declared = opts.categories ?? [];
   const categories = [...present, ...declared.filter((c) => !present.includes(c))];
   if (categories.length < 2) {
-    throw new AgreementError('bad_input', `the file uses one label only (${categories[0] ?? 'none'}); agreement needs at least two categories — declare the others with --categories`);
+    throw new AgreementError(
+      'bad_input',
+      `the file uses one label only (${categories[0] ?? 'none'}); agreement needs at least two categories — declare the others with --categories`,
+    );
   }
   const table = ratingsTableFromVotes({ categories, votes });
   const byItem = new Map<string, Record<string, string | null>>();
@@ -41,7 +51,7 @@ export async function agreementReport(file: string, opts: { bootstrap: number; s
     rec[v.rater] = v.label;
     byItem.set(v.item, rec);
   }
-  const boot = opts.bootstrap > 0 ? { resamples: opts.bootstrap, seed: opts.seed } : false as const;
+  const boot = opts.bootstrap > 0 ? { resamples: opts.bootstrap, seed: opts.seed } : (false as const);
   const study = studyAgreement({
     categories,
     items: [...byItem].map(([id, rec]) => ({ id, runId: 'file', votes: rec })),
@@ -87,13 +97,21 @@ export const agreement: CliCommand = {
       const report = await agreementReport(positionals[0], {
         bootstrap: integerOption(values.bootstrap, 'bootstrap', DEFAULT_RESAMPLES, 0),
         seed: integerOption(values.seed, 'seed', DEFAULT_SEED, 0),
-        categories: values.categories?.split(',').map((c) => c.trim()).filter(Boolean),
+        categories: values.categories
+          ?.split(',')
+          .map((c) => c.trim())
+          .filter(Boolean),
       });
       process.stdout.write(`${JSON.stringify(report, null, 2)}\n`);
       return 0;
     } catch (err) {
       const e = err as NodeJS.ErrnoException;
-      const message = e.code === 'ENOENT' ? `no such file: ${e.path}` : e.code === 'EISDIR' ? `not a file: ${positionalsHint(args)}` : e.message ?? String(err);
+      const message =
+        e.code === 'ENOENT'
+          ? `no such file: ${e.path}`
+          : e.code === 'EISDIR'
+            ? `not a file: ${positionalsHint(args)}`
+            : (e.message ?? String(err));
       process.stderr.write(`quorum agreement: ${message.split('\n')[0]}\n`);
       return 1;
     }

@@ -6,8 +6,16 @@ import path from 'node:path';
 import { parseArgs } from 'node:util';
 import { assertFourD, assertSameGrid, readNiftiFile, writeNiftiFile, type NiftiHeader } from '@/lib/nifti';
 import {
-  componentFeatures, componentSpectra, decomposeRun, decompositionSummary, featuresTsv, mapsVolume, spectraTsv, timecoursesTsv,
-  type DecompositionResult, type DimMethod,
+  componentFeatures,
+  componentSpectra,
+  decomposeRun,
+  decompositionSummary,
+  featuresTsv,
+  mapsVolume,
+  spectraTsv,
+  timecoursesTsv,
+  type DecompositionResult,
+  type DimMethod,
 } from '@/lib/decomposition';
 import type { Contrast } from '@/lib/decomposition/fastica';
 import { componentsHeaderFields, volumeHeaderFields } from '@/lib/decomposition/output-headers';
@@ -76,15 +84,24 @@ export async function writeDecompositionOutputs(out: string, h: NiftiHeader, r: 
   const [nx, ny, nz] = r.dims;
   const volume = volumeHeaderFields(h);
   await writeNiftiFile(path.join(out, 'components.nii.gz'), {
-    dims: [nx, ny, nz, r.k], ...componentsHeaderFields(h), datatype: 'float32', data: mapsVolume(r),
+    dims: [nx, ny, nz, r.k],
+    ...componentsHeaderFields(h),
+    datatype: 'float32',
+    data: mapsVolume(r),
     description: 'Quorum component z-maps',
   });
   await writeNiftiFile(path.join(out, 'mean.nii.gz'), {
-    dims: [nx, ny, nz], ...volume, datatype: 'float32', data: r.meanImage,
+    dims: [nx, ny, nz],
+    ...volume,
+    datatype: 'float32',
+    data: r.meanImage,
     description: 'Quorum temporal mean',
   });
   await writeNiftiFile(path.join(out, 'mask.nii.gz'), {
-    dims: [nx, ny, nz], ...volume, datatype: 'uint8', data: r.mask,
+    dims: [nx, ny, nz],
+    ...volume,
+    datatype: 'uint8',
+    data: r.mask,
     description: 'Quorum decomposition mask',
   });
   await writeFile(path.join(out, 'timecourses.tsv'), timecoursesTsv(r));
@@ -123,9 +140,11 @@ export const decompose: CliCommand = {
       });
       const file = positionals[0];
       if (!file || positionals.length > 1 || !values.out) throw new UsageError(USAGE);
-      const components: 'auto' | number | undefined = values.components === undefined || values.components === 'auto' ? 'auto' : integer('components', values.components, 1);
+      const components: 'auto' | number | undefined =
+        values.components === undefined || values.components === 'auto' ? 'auto' : integer('components', values.components, 1);
       const contrast = values.contrast as Contrast | undefined;
-      if (contrast !== undefined && !['logcosh', 'exp', 'cube'].includes(contrast)) throw new UsageError(`--contrast must be logcosh, exp or cube; got "${contrast}".`);
+      if (contrast !== undefined && !['logcosh', 'exp', 'cube'].includes(contrast))
+        throw new UsageError(`--contrast must be logcosh, exp or cube; got "${contrast}".`);
       const options = {
         components,
         dimMethod: dimMethodOf(values['dim-method']),

@@ -40,24 +40,31 @@ export const denoise: CliCommand = {
       });
       const file = positionals[0];
       if (!file || positionals.length > 1 || !values.from || values.noise === undefined || !values.out) throw new UsageError(USAGE);
-      if (values.mode !== 'partial' && values.mode !== 'full') throw new UsageError(`--mode must be partial or full; got "${values.mode}".`);
+      if (values.mode !== 'partial' && values.mode !== 'full')
+        throw new UsageError(`--mode must be partial or full; got "${values.mode}".`);
       if (!/\.nii\.gz$/.test(values.out)) throw new UsageError('--out must name a .nii.gz file.');
-      const noise = values.noise.trim() === '' ? [] : values.noise.split(',').map((s) => {
-        if (!/^\s*\d+\s*$/.test(s)) throw new UsageError(`--noise must list component numbers like 1,4,7; got "${values.noise}".`);
-        return Number(s);
-      });
+      const noise =
+        values.noise.trim() === ''
+          ? []
+          : values.noise.split(',').map((s) => {
+              if (!/^\s*\d+\s*$/.test(s)) throw new UsageError(`--noise must list component numbers like 1,4,7; got "${values.noise}".`);
+              return Number(s);
+            });
 
       const tsv = parseTsv(await readFile(path.join(values.from, 'timecourses.tsv'), 'utf8'));
       const k = tsv.header.length;
       const T = tsv.rows.length;
       const tcs = new Float64Array(T * k);
       tsv.rows.forEach((row, t) => {
-        if (row.length !== k) throw new UsageError(`timecourses.tsv row ${t + 2} has ${row.length} values; the header names ${k} components.`);
+        if (row.length !== k)
+          throw new UsageError(`timecourses.tsv row ${t + 2} has ${row.length} values; the header names ${k} components.`);
         row.forEach((v, c) => (tcs[t * k + c] = Number(v)));
       });
       let drop = values.drop === undefined ? undefined : Number(values.drop);
       if (drop === undefined) {
-        const summary = await readFile(path.join(values.from, 'summary.json'), 'utf8').then((s) => JSON.parse(s) as { droppedVolumes?: number }).catch(() => null);
+        const summary = await readFile(path.join(values.from, 'summary.json'), 'utf8')
+          .then((s) => JSON.parse(s) as { droppedVolumes?: number })
+          .catch(() => null);
         drop = summary?.droppedVolumes ?? 0;
       }
       if (!Number.isInteger(drop) || drop < 0) throw new UsageError(`--drop must be a whole number ≥ 0; got "${values.drop}".`);
@@ -67,7 +74,10 @@ export const denoise: CliCommand = {
       if (!values['no-mask']) {
         const maskFile = values.mask ?? path.join(values.from, 'mask.nii.gz');
         const maskVol = (await readNiftiFile(maskFile)).readVolume(0);
-        if (maskVol.length !== image.voxelsPerVolume) throw new UsageError(`The mask ${maskFile} has ${maskVol.length} voxels per volume; ${file} has ${image.voxelsPerVolume}. Use the mask made from this run.`);
+        if (maskVol.length !== image.voxelsPerVolume)
+          throw new UsageError(
+            `The mask ${maskFile} has ${maskVol.length} voxels per volume; ${file} has ${image.voxelsPerVolume}. Use the mask made from this run.`,
+          );
         mask = Uint8Array.from(maskVol, (v) => (v > 0 ? 1 : 0));
       }
       const full = await readMotionOption(values, image.nt);
@@ -75,7 +85,24 @@ export const denoise: CliCommand = {
       const t0 = performance.now();
       const r = await denoiseImage({ image, drop, timecourses: tcs, k, noise, mode: values.mode, motion, mask, outPath: values.out });
       process.stdout.write(
-        JSON.stringify({ input: path.resolve(file), output: path.resolve(values.out), mode: values.mode, noise, components: k, droppedVolumes: drop, volumes: r.volumes, voxelsRegressed: r.voxelsRegressed, regressors: r.columns, sha256: r.sha256, bytes: r.bytes, seconds: Number(((performance.now() - t0) / 1000).toFixed(3)) }, null, 2) + '\n',
+        JSON.stringify(
+          {
+            input: path.resolve(file),
+            output: path.resolve(values.out),
+            mode: values.mode,
+            noise,
+            components: k,
+            droppedVolumes: drop,
+            volumes: r.volumes,
+            voxelsRegressed: r.voxelsRegressed,
+            regressors: r.columns,
+            sha256: r.sha256,
+            bytes: r.bytes,
+            seconds: Number(((performance.now() - t0) / 1000).toFixed(3)),
+          },
+          null,
+          2,
+        ) + '\n',
       );
       return 0;
     } catch (err) {

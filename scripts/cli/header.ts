@@ -8,10 +8,23 @@ const USAGE = 'usage: quorum header FILE [--summary]';
 /** The header fields the command prints, in a stable order. */
 function headerFacts(h: NiftiHeader) {
   return {
-    version: h.version, dims: h.dims, pixdim: h.pixdim, datatype: h.datatype, datatypeCode: h.datatypeCode,
-    bitpix: h.bitpix, littleEndian: h.littleEndian, voxOffset: h.voxOffset, sclSlope: h.sclSlope,
-    sclInter: h.sclInter, spaceUnits: h.spaceUnits, timeUnits: h.timeUnits, trSeconds: h.trSeconds,
-    qformCode: h.qformCode, sformCode: h.sformCode, affine: h.affine, description: h.description,
+    version: h.version,
+    dims: h.dims,
+    pixdim: h.pixdim,
+    datatype: h.datatype,
+    datatypeCode: h.datatypeCode,
+    bitpix: h.bitpix,
+    littleEndian: h.littleEndian,
+    voxOffset: h.voxOffset,
+    sclSlope: h.sclSlope,
+    sclInter: h.sclInter,
+    spaceUnits: h.spaceUnits,
+    timeUnits: h.timeUnits,
+    trSeconds: h.trSeconds,
+    qformCode: h.qformCode,
+    sformCode: h.sformCode,
+    affine: h.affine,
+    description: h.description,
   };
 }
 
@@ -48,7 +61,11 @@ export const header: CliCommand = {
   usage: USAGE,
   async run(args) {
     try {
-      const { values, positionals } = parseArgs({ args, options: { summary: { type: 'boolean', default: false } }, allowPositionals: true });
+      const { values, positionals } = parseArgs({
+        args,
+        options: { summary: { type: 'boolean', default: false } },
+        allowPositionals: true,
+      });
       if (positionals.length !== 1) throw new Error(`expected exactly one FILE. ${USAGE}`);
       const [file] = positionals;
       let out: Record<string, unknown>;
@@ -62,7 +79,7 @@ export const header: CliCommand = {
       return 0;
     } catch (err) {
       const e = err as NodeJS.ErrnoException;
-      const message = e.code === 'ENOENT' ? `no such file: ${e.path}` : e.message ?? String(err);
+      const message = e.code === 'ENOENT' ? `no such file: ${e.path}` : (e.message ?? String(err));
       process.stderr.write(`quorum header: ${message.split('\n')[0]}\n`);
       return 1;
     }

@@ -9,11 +9,12 @@ import { Readable } from 'node:stream';
 import type { CliCommand } from './index';
 import { MOTION_USAGE, motionFormat, motionOptions } from './motion-options';
 
-const USAGE =
-  'usage: quorum import FILE --from DIR --study ID --as EMAIL [--sub S --ses S --task T --acq A --run R] ' +
-  MOTION_USAGE;
+const USAGE = 'usage: quorum import FILE --from DIR --study ID --as EMAIL [--sub S --ses S --task T --acq A --run R] ' + MOTION_USAGE;
 
-const raw = (file: string) => ({ body: Readable.toWeb(createReadStream(file)) as ReadableStream<Uint8Array>, contentLength: statSync(file).size });
+const raw = (file: string) => ({
+  body: Readable.toWeb(createReadStream(file)) as ReadableStream<Uint8Array>,
+  contentLength: statSync(file).size,
+});
 
 export const importRun: CliCommand = {
   summary: 'register a run with its decompose output folder (from a cluster) in a study',
@@ -53,7 +54,12 @@ export const importRun: CliCommand = {
         entities: { sub: values.sub, ses: values.ses, task: values.task, acq: values.acq, run: values.run },
         dir: path.resolve(values.from),
         motion: values.motion
-          ? { name: path.basename(values.motion), open: () => raw(values.motion!), order: motionFormat(values).order, units: motionFormat(values).rotationUnits }
+          ? {
+              name: path.basename(values.motion),
+              open: () => raw(values.motion!),
+              order: motionFormat(values).order,
+              units: motionFormat(values).rotationUnits,
+            }
           : undefined,
       });
       process.stdout.write(JSON.stringify(result, null, 2) + '\n');

@@ -3,10 +3,14 @@
 // Type-only imports count too: a type is a dependency on the module that defines it.
 import { execFileSync } from 'node:child_process';
 
-const json = execFileSync('npx', ['depcruise', 'app', 'components', 'lib', '--no-config', '-T', 'json', '--ts-pre-compilation-deps', '--ts-config', 'tsconfig.json'], {
-  encoding: 'utf8',
-  maxBuffer: 1 << 28,
-});
+const json = execFileSync(
+  'npx',
+  ['depcruise', 'app', 'components', 'lib', '--no-config', '-T', 'json', '--ts-pre-compilation-deps', '--ts-config', 'tsconfig.json'],
+  {
+    encoding: 'utf8',
+    maxBuffer: 1 << 28,
+  },
+);
 const domainOf = (p) => {
   if (p.startsWith('app/')) return 'app';
   if (p.startsWith('components/')) return 'components';

@@ -10,7 +10,7 @@ let skipped = 0;
 const notes = [];
 
 function vitest(file) {
-  if (!existsSync(file)) return notes.push(`no vitest report at ${file}`), failed++;
+  if (!existsSync(file)) return (notes.push(`no vitest report at ${file}`), failed++);
   const r = JSON.parse(readFileSync(file, 'utf8'));
   passed += r.numPassedTests ?? 0;
   failed += r.numFailedTests ?? 0;
@@ -23,7 +23,7 @@ function vitest(file) {
 }
 
 function playwright(file) {
-  if (!existsSync(file)) return notes.push(`no Playwright report at ${file}`), failed++;
+  if (!existsSync(file)) return (notes.push(`no Playwright report at ${file}`), failed++);
   const r = JSON.parse(readFileSync(file, 'utf8'));
   const s = r.stats ?? {};
   passed += (s.expected ?? 0) + (s.flaky ?? 0);
@@ -34,7 +34,7 @@ function playwright(file) {
 }
 
 function checks(file) {
-  if (!existsSync(file)) return notes.push(`no static-checks report at ${file}`), failed++;
+  if (!existsSync(file)) return (notes.push(`no static-checks report at ${file}`), failed++);
   for (const [name, verdict] of Object.entries(JSON.parse(readFileSync(file, 'utf8')))) {
     if (verdict === 'passed') passed++;
     else {

@@ -10,7 +10,10 @@ export function percentile(sorted: number[], p: number): number {
 
 /** Count, achieved rate over `seconds`, p50/p95/p99 of the answered requests, and errors (no answer or status ≥ 400). */
 export function summarise(samples: Sample[], seconds: number) {
-  const ms = samples.filter((s) => s.status > 0).map((s) => s.ms).sort((a, b) => a - b);
+  const ms = samples
+    .filter((s) => s.status > 0)
+    .map((s) => s.ms)
+    .sort((a, b) => a - b);
   return {
     count: samples.length,
     rate: samples.length / seconds,

@@ -21,12 +21,18 @@ const bytes = encodeNifti1(phantomToNiftiInput(p, { datatype: 'int16' }));
 await writeFile(path.join(dir, 'phantom.nii.gz'), gzipSync(bytes));
 const [nx, ny, nz] = p.dims;
 await writeNiftiFile(path.join(dir, 'mask.nii.gz'), {
-  dims: [nx, ny, nz], pixdim: [...p.voxelSize], affine: p.affine, datatype: 'uint8', data: p.truth.brainMask,
+  dims: [nx, ny, nz],
+  pixdim: [...p.voxelSize],
+  affine: p.affine,
+  datatype: 'uint8',
+  data: p.truth.brainMask,
 });
 await writeNiftiFile(path.join(dir, 'truth.nii.gz'), truthMapsToNiftiInput(p));
-process.stdout.write(JSON.stringify({
-  sha256: createHash('sha256').update(bytes).digest('hex'),
-  sources: p.truth.sources.map((s) => s.name),
-  dims: p.dims,
-  seed,
-}) + '\n');
+process.stdout.write(
+  JSON.stringify({
+    sha256: createHash('sha256').update(bytes).digest('hex'),
+    sources: p.truth.sources.map((s) => s.name),
+    dims: p.dims,
+    seed,
+  }) + '\n',
+);

@@ -18,7 +18,15 @@ test('the queue and the desk have no serious or critical accessibility violation
   const serious = async (where: string) => {
     const result = await new AxeBuilder({ page }).analyze();
     const bad = result.violations.filter((v) => v.impact === 'serious' || v.impact === 'critical');
-    expect(bad.map((v) => `${where}: ${v.id} (${v.impact}) ${v.nodes.map((n) => n.target.join(' ')).slice(0, 3).join(' | ')}`)).toEqual([]);
+    expect(
+      bad.map(
+        (v) =>
+          `${where}: ${v.id} (${v.impact}) ${v.nodes
+            .map((n) => n.target.join(' '))
+            .slice(0, 3)
+            .join(' | ')}`,
+      ),
+    ).toEqual([]);
   };
   await serious('queue');
   const desk = new DeskPage(page);
@@ -43,5 +51,13 @@ test('the read-only run view has no serious or critical accessibility violations
   await expect(page.getByTestId('viewer-ready')).toBeAttached({ timeout: 60_000 });
   const result = await new AxeBuilder({ page }).analyze();
   const bad = result.violations.filter((v) => v.impact === 'serious' || v.impact === 'critical');
-  expect(bad.map((v) => `run view: ${v.id} (${v.impact}) ${v.nodes.map((n) => n.target.join(' ')).slice(0, 3).join(' | ')}`)).toEqual([]);
+  expect(
+    bad.map(
+      (v) =>
+        `run view: ${v.id} (${v.impact}) ${v.nodes
+          .map((n) => n.target.join(' '))
+          .slice(0, 3)
+          .join(' | ')}`,
+    ),
+  ).toEqual([]);
 });

@@ -39,7 +39,10 @@ test('a deactivated person cannot sign in, and a session already open stops work
   expect([302, 303, 307]).toContain(home.status());
   await theirs.dispose();
 
-  const other = await page.context().browser()!.newContext({ extraHTTPHeaders: { 'x-forwarded-for': client.ip } });
+  const other = await page
+    .context()
+    .browser()!
+    .newContext({ extraHTTPHeaders: { 'x-forwarded-for': client.ip } });
   const otherPage = await other.newPage();
   const theirSignIn = new SignInPage(otherPage);
   await theirSignIn.open();
@@ -137,7 +140,10 @@ test('the development mailbox lists the caught e-mails for the admin', async ({ 
   expect(Array.isArray((await res.json()).messages)).toBe(true);
 });
 
-test("an admin's sign out everywhere ends a person's open sessions; signing in again works (issue 13 item 5)", async ({ page, baseURL }) => {
+test("an admin's sign out everywhere ends a person's open sessions; signing in again works (issue 13 item 5)", async ({
+  page,
+  baseURL,
+}) => {
   const { email } = unique('roaming');
   await createAccount(db, { email, password: 'roaming-about-pass', role: 'rater', name: 'Ilse Roaming' });
   const sessions = [];

@@ -24,7 +24,9 @@ class AssignmentsPage {
     return this.page.getByTestId(`assignments-run-${runId}`);
   }
   cell(runId: number, name: string) {
-    return this.row(runId).getByRole('listitem').filter({ has: this.page.getByTestId('assignment-rater').getByText(name, { exact: true }) });
+    return this.row(runId)
+      .getByRole('listitem')
+      .filter({ has: this.page.getByTestId('assignment-rater').getByText(name, { exact: true }) });
   }
   async add(runId: number, name: string) {
     const select = this.row(runId).getByTestId('add-rater-select');
@@ -43,7 +45,9 @@ test.beforeAll(async ({ baseURL }) => {
   // rater A labels the first component of the run
   const a = await pwRequest.newContext({ baseURL });
   await apiSignIn(a, A);
-  const res = await a.put(`/api/runs/${run.runId}/votes/${run.componentIds[0]}`, { data: { label: 'signal', noiseKind: null, baseVersion: 0 } });
+  const res = await a.put(`/api/runs/${run.runId}/votes/${run.componentIds[0]}`, {
+    data: { label: 'signal', noiseKind: null, baseVersion: 0 },
+  });
   expect(res.status(), await res.text()).toBe(200);
   await a.dispose();
 });
@@ -94,7 +98,10 @@ test('a rater cannot open the assignments page nor change assignments', async ({
   await signIn.open();
   await signIn.signIn(A);
   await expect(page.getByTestId('home-heading')).toBeVisible();
-  const status = await page.evaluate(async (runId) => (await fetch(`/api/runs/${runId}/assignments/1?confirm=1`, { method: 'DELETE' })).status, run.runId);
+  const status = await page.evaluate(
+    async (runId) => (await fetch(`/api/runs/${runId}/assignments/1?confirm=1`, { method: 'DELETE' })).status,
+    run.runId,
+  );
   expect(status).toBe(403);
   await page.goto('/studies/1/assignments');
   await expect(page.getByTestId('forbidden')).toBeVisible();

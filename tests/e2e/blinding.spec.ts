@@ -59,7 +59,7 @@ function expectBlind(j: Awaited<ReturnType<typeof deskJson>>, otherName: string)
   expect(j.html).not.toContain('raterName');
 }
 
-test('before submission a rater receives none of the other rater\'s votes; after it, she sees them', async () => {
+test("before submission a rater receives none of the other rater's votes; after it, she sees them", async () => {
   // A labels everything "noise" and submits
   await labelAll(a, 'noise');
   expect((await a.post(`/api/runs/${run.runId}/submit`, { data: {} })).status()).toBe(200);
@@ -107,7 +107,10 @@ test('a rater who is not assigned reaches neither the run, its votes nor its fil
   expect((await assigned.body()).subarray(0, 2)).toEqual(Buffer.from([0x1f, 0x8b]));
 });
 
-test('submitted votes are frozen on the desk until the lead reopens the run for the rater; the first vote stays in the history', async ({ page, browser }) => {
+test('submitted votes are frozen on the desk until the lead reopens the run for the rater; the first vote stays in the history', async ({
+  page,
+  browser,
+}) => {
   // (the first test left both raters submitted: A all noise, B all signal)
   const refused = await a.put(`/api/runs/${run.runId}/votes/${run.componentIds[0]}`, { data: { label: 'signal', baseVersion: 1 } });
   expect(refused.status()).toBe(409);
@@ -126,7 +129,9 @@ test('submitted votes are frozen on the desk until the lead reopens the run for 
     await expect(raterPage.getByTestId('rating-desk')).toBeVisible();
   };
   await openDesk();
-  await expect(raterPage.getByTestId('submitted-note')).toContainText('votes frozen; if a label must change, ask the study lead to reopen the run for you');
+  await expect(raterPage.getByTestId('submitted-note')).toContainText(
+    'votes frozen; if a label must change, ask the study lead to reopen the run for you',
+  );
   await expect(raterPage.getByTestId('label-signal')).toBeDisabled();
 
   // the lead reopens it on the assignments page, giving a reason
@@ -161,8 +166,13 @@ test('submitted votes are frozen on the desk until the lead reopens the run for 
   // the audit log has the reopen with its reason; the vote as first submitted is kept
   const db = e2eDb();
   try {
-    const entry = await db('audit_log').where({ action: 'assignment.reopen', target_id: String(run.runId) }).first('detail');
-    expect(typeof entry.detail === 'string' ? JSON.parse(entry.detail) : entry.detail).toMatchObject({ reason: 'component 1 labelled by mistake', raterName: 'Amara Lindqvist' });
+    const entry = await db('audit_log')
+      .where({ action: 'assignment.reopen', target_id: String(run.runId) })
+      .first('detail');
+    expect(typeof entry.detail === 'string' ? JSON.parse(entry.detail) : entry.detail).toMatchObject({
+      reason: 'component 1 labelled by mistake',
+      raterName: 'Amara Lindqvist',
+    });
     const aId = await userId(A);
     expect((await db('submitted_votes').where({ component_id: run.componentIds[0], rater_id: aId }).first('label')).label).toBe('noise');
     expect((await db('votes').where({ component_id: run.componentIds[0], rater_id: aId }).first('label')).label).toBe('signal');

@@ -20,16 +20,25 @@ function setUp<T>(which: 'calibration' | 'suggestions'): T {
   const root = process.cwd();
   const out = execFileSync('node', ['--import', 'tsx', 'tests/e2e/helpers/walkthrough-studies.ts', which], {
     cwd: root,
-    env: { ...process.env, QUORUM_DB_NAME: process.env.QUORUM_DB_NAME ?? 'quorum_e2e', QUORUM_UPLOADS_DIR: process.env.QUORUM_UPLOADS_DIR ?? path.join(root, '.data/e2e-uploads') },
+    env: {
+      ...process.env,
+      QUORUM_DB_NAME: process.env.QUORUM_DB_NAME ?? 'quorum_e2e',
+      QUORUM_UPLOADS_DIR: process.env.QUORUM_UPLOADS_DIR ?? path.join(root, '.data/e2e-uploads'),
+    },
     encoding: 'utf8',
     timeout: 180_000,
   });
   return JSON.parse(out.trim().split('\n').pop()!) as T;
 }
 
-test('a new rater is calibrated on the named set, reads their result, and stays off live runs under the threshold', async ({ page, baseURL }) => {
+test('a new rater is calibrated on the named set, reads their result, and stays off live runs under the threshold', async ({
+  page,
+  baseURL,
+}) => {
   test.setTimeout(180_000);
-  const s = setUp<{ studyId: number; email: string; newRaterId: number; calibrationRunId: number; liveRunId: number; k: number }>('calibration');
+  const s = setUp<{ studyId: number; email: string; newRaterId: number; calibrationRunId: number; liveRunId: number; k: number }>(
+    'calibration',
+  );
   expect(s.k).toBe(6);
 
   const signIn = new SignInPage(page);
@@ -37,7 +46,9 @@ test('a new rater is calibrated on the named set, reads their result, and stays 
   await signIn.signIn(s.email);
   await expect(page.getByTestId('home-heading')).toBeVisible();
   // told why: nothing submitted on the named set yet
-  await expect(page.getByTestId('calibration-gate-notice')).toContainText('you have not submitted a run of the calibration set “Autumn reference set” yet');
+  await expect(page.getByTestId('calibration-gate-notice')).toContainText(
+    'you have not submitted a run of the calibration set “Autumn reference set” yet',
+  );
   const calItem = page.getByTestId('queue-item').filter({ has: page.locator(`a[href="/runs/${s.calibrationRunId}/rate"]`) });
   await expect(calItem.getByTestId('queue-calibration')).toBeVisible();
   await expect(page.locator(`a[href="/runs/${s.liveRunId}/rate"]`)).toHaveCount(0);
@@ -61,7 +72,11 @@ test('a new rater is calibrated on the named set, reads their result, and stays 
 
   // the result page, from the home page's submitted list
   await page.goto('/');
-  await page.getByTestId('submitted-item').filter({ has: page.locator(`a[href="/runs/${s.calibrationRunId}/rate"]`) }).getByTestId('calibration-result-link').click();
+  await page
+    .getByTestId('submitted-item')
+    .filter({ has: page.locator(`a[href="/runs/${s.calibrationRunId}/rate"]`) })
+    .getByTestId('calibration-result-link')
+    .click();
   await expect(page.getByTestId('calibration-result-heading')).toBeVisible();
   await expect(page.getByTestId('calibration-result-set')).toContainText('Autumn reference set');
   await expect(page.getByTestId('calibration-result-summary')).toContainText('You agreed with the reference on 5 of 6 components');
@@ -115,14 +130,17 @@ test('a new rater is calibrated on the named set, reads their result, and stays 
 async function rateAndSubmit(ctx: APIRequestContext, runId: number, componentIds: number[], labelFor: (i: number) => string) {
   for (const [i, id] of componentIds.entries()) {
     const label = labelFor(i);
-    const res = await ctx.put(`/api/runs/${runId}/votes/${id}`, { data: { label, noiseKind: label === 'noise' ? 'motion' : null, baseVersion: 0 } });
+    const res = await ctx.put(`/api/runs/${runId}/votes/${id}`, {
+      data: { label, noiseKind: label === 'noise' ? 'motion' : null, baseVersion: 0 },
+    });
     expect(res.status(), await res.text()).toBe(200);
   }
   expect((await ctx.post(`/api/runs/${runId}/submit`, { data: {} })).status()).toBe(200);
 }
 
 /** The model's disagreement with the votes as lib/suggestions/disagreement.ts defines it (mean |P(noise) − v|, v: noise 1, signal 0, other 0.5). */
-const disagreement = (p: number, votes: string[]) => votes.reduce((s, v) => s + Math.abs(p - (v === 'noise' ? 1 : v === 'signal' ? 0 : 0.5)), 0) / votes.length;
+const disagreement = (p: number, votes: string[]) =>
+  votes.reduce((s, v) => s + Math.abs(p - (v === 'noise' ? 1 : v === 'signal' ? 0 : 0.5)), 0) / votes.length;
 
 test('a lead trains suggestions, turns them on and sorts Reconcile by the model’s disagreement', async ({ page, baseURL }) => {
   test.setTimeout(240_000);
@@ -158,10 +176,20 @@ test('a lead trains suggestions, turns them on and sorts Reconcile by the model�
   // a controlled checkbox: it shows the server's state once the change is saved and read back
   await enabled.click();
   await expect(enabled).toBeChecked();
-  await expect.poll(() => Boolean(sql<{ on: unknown }>(`SELECT suggestions_enabled AS \`on\` FROM studies WHERE id = ${s.studyId}`)[0]!.on)).toBe(true);
+  await expect
+    .poll(() => Boolean(sql<{ on: unknown }>(`SELECT suggestions_enabled AS \`on\` FROM studies WHERE id = ${s.studyId}`)[0]!.on))
+    .toBe(true);
   // the score job (queued by training) stores a suggestion for each component of the live run
   await expect
-    .poll(() => Number(sql<{ n: number }>(`SELECT COUNT(*) AS n FROM suggestions g JOIN studies st ON st.suggestion_model_id = g.model_id WHERE st.id = ${s.studyId} AND g.component_id IN (${s.componentIds.join(',')})`)[0]!.n), { timeout: 60_000 })
+    .poll(
+      () =>
+        Number(
+          sql<{ n: number }>(
+            `SELECT COUNT(*) AS n FROM suggestions g JOIN studies st ON st.suggestion_model_id = g.model_id WHERE st.id = ${s.studyId} AND g.component_id IN (${s.componentIds.join(',')})`,
+          )[0]!.n,
+        ),
+      { timeout: 60_000 },
+    )
     .toBe(s.k);
 
   await page.goto(`/studies/${s.studyId}/reconcile`);
@@ -177,7 +205,13 @@ test('a lead trains suggestions, turns them on and sorts Reconcile by the model�
      WHERE st.id = ${s.studyId} AND c.id IN (${s.componentIds.slice(0, 4).join(',')})`,
   );
   const expected = stored
-    .map((r) => ({ idx: Number(r.idx), d: disagreement(Number(r.p), Object.values(plans).map((plan) => plan(Number(r.idx) - 1))) }))
+    .map((r) => ({
+      idx: Number(r.idx),
+      d: disagreement(
+        Number(r.p),
+        Object.values(plans).map((plan) => plan(Number(r.idx) - 1)),
+      ),
+    }))
     .sort((a, b) => b.d - a.d || a.idx - b.idx);
   const shown = await list.getByRole('button').evaluateAll((els) => els.map((e) => e.textContent ?? ''));
   expect(shown.map((t) => Number(/component (\d+) of/.exec(t)?.[1]))).toEqual(expected.map((e) => e.idx));

@@ -18,7 +18,9 @@ let newRaterId: number;
 async function rate(ctx: APIRequestContext, labelFor: (i: number) => string) {
   for (const [i, id] of run.componentIds.entries()) {
     const label = labelFor(i);
-    const res = await ctx.put(`/api/runs/${run.runId}/votes/${id}`, { data: { label, noiseKind: label === 'noise' ? 'motion' : null, baseVersion: 0 } });
+    const res = await ctx.put(`/api/runs/${run.runId}/votes/${id}`, {
+      data: { label, noiseKind: label === 'noise' ? 'motion' : null, baseVersion: 0 },
+    });
     expect(res.status(), await res.text()).toBe(200);
   }
   expect((await ctx.post(`/api/runs/${run.runId}/submit`, { data: {} })).status()).toBe(200);
@@ -65,8 +67,17 @@ test('a lead builds a calibration run, and certifies a new rater on it', async (
   await expect(rater).toContainText(((run.k - 1) / run.k).toFixed(3));
   await rater.getByTestId('calibration-certify').click();
   await expect(rater.getByTestId('calibration-certification')).toContainText('certified');
-  const cert = sql<{ passed: number }>(`SELECT c.passed FROM rater_certifications c WHERE c.study_id = ${studyId} AND c.user_id = ${newRaterId}`);
+  const cert = sql<{ passed: number }>(
+    `SELECT c.passed FROM rater_certifications c WHERE c.study_id = ${studyId} AND c.user_id = ${newRaterId}`,
+  );
   expect(cert.map((c) => Boolean(c.passed))).toEqual([true]);
-  const audit = sql<{ action: string }>(`SELECT action FROM audit_log WHERE study_id = ${studyId} AND action LIKE 'calibration.%' ORDER BY id`);
-  expect(audit.map((a) => a.action)).toEqual(['calibration.run_marked', 'calibration.reference_set', 'calibration.assigned', 'calibration.certified']);
+  const audit = sql<{ action: string }>(
+    `SELECT action FROM audit_log WHERE study_id = ${studyId} AND action LIKE 'calibration.%' ORDER BY id`,
+  );
+  expect(audit.map((a) => a.action)).toEqual([
+    'calibration.run_marked',
+    'calibration.reference_set',
+    'calibration.assigned',
+    'calibration.certified',
+  ]);
 });

@@ -35,7 +35,16 @@ test('a lead attaches a structural image on the run grid; the rater switches the
   const mean = decodeNifti(new Uint8Array(meanBytes));
   const [nx, ny, nz] = mean.header.dims;
   const wrong = path.join(dir, 'sub-01_T1w_other-grid.nii');
-  writeFileSync(wrong, encodeNifti1({ dims: [nx, ny, nz - 1], pixdim: mean.header.pixdim.slice(1, 4), affine: mean.header.affine, datatype: 'float32', data: mean.readVolume(0).subarray(0, nx * ny * (nz - 1)) }));
+  writeFileSync(
+    wrong,
+    encodeNifti1({
+      dims: [nx, ny, nz - 1],
+      pixdim: mean.header.pixdim.slice(1, 4),
+      affine: mean.header.affine,
+      datatype: 'float32',
+      data: mean.readVolume(0).subarray(0, nx * ny * (nz - 1)),
+    }),
+  );
 
   await signIn(page, DEMO.lead);
   await page.goto(`/runs/${run.runId}/view`);
@@ -44,7 +53,9 @@ test('a lead attaches a structural image on the run grid; the rater switches the
   await expect(page.getByTestId('underlay-structural')).toHaveCount(0);
   // another grid: refused with what differs
   await page.getByTestId('structural-file').setInputFiles(wrong);
-  await expect(page.getByTestId('structural-message')).toContainText(`is ${nx} × ${ny} × ${nz - 1} voxels; this run's grid is ${nx} × ${ny} × ${nz}`);
+  await expect(page.getByTestId('structural-message')).toContainText(
+    `is ${nx} × ${ny} × ${nz - 1} voxels; this run's grid is ${nx} × ${ny} × ${nz}`,
+  );
   // the run's grid: attached
   await page.getByTestId('structural-file').setInputFiles(good);
   await expect(page.getByTestId('structural-message')).toHaveText("sub-01_T1w_on-bold.nii.gz is the run's structural underlay now.");

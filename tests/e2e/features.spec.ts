@@ -12,7 +12,14 @@ let run: E2eRun;
 
 test.beforeAll(() => {
   // no motion table, so the motion features are undefined; component 1 reproduces poorly
-  run = createE2eRun({ raters: [DEMO.rater], size: 'tiny', seed: 21, components: 4, withMotion: false, reproducibility: [0.42, 0.97, 0.91, 0.88] });
+  run = createE2eRun({
+    raters: [DEMO.rater],
+    size: 'tiny',
+    seed: 21,
+    components: 4,
+    withMotion: false,
+    reproducibility: [0.42, 0.97, 0.91, 0.88],
+  });
 });
 
 async function signIn(page: Page, email: string) {

@@ -1,7 +1,16 @@
 import { expect, test } from '@playwright/test';
 import type { Knex } from 'knex';
 import { apiSignIn, DEMO, SignInPage } from './pages/sign-in-page';
-import { AcceptInvitationPage, createAccount, e2eDb, InvitationsPage, mailWithLink, PasswordResetPage, storeLink, unique } from './pages/people';
+import {
+  AcceptInvitationPage,
+  createAccount,
+  e2eDb,
+  InvitationsPage,
+  mailWithLink,
+  PasswordResetPage,
+  storeLink,
+  unique,
+} from './pages/people';
 
 // One made-up client address per run, so these tests never meet the sign-in or reset throttles of other files.
 const client = unique('client');
@@ -72,7 +81,12 @@ test('expired, used and unknown links are refused with a clear message', async (
     'This link expired on 15 January 2026 at 09:30 UTC; ask Dana Okafor for a new invitation.',
   );
 
-  const used = await storeLink(db, { kind: 'invite', email: unique('used').email, expiresAt: new Date(Date.now() + 86400_000), usedAt: new Date() });
+  const used = await storeLink(db, {
+    kind: 'invite',
+    email: unique('used').email,
+    expiresAt: new Date(Date.now() + 86400_000),
+    usedAt: new Date(),
+  });
   await page.goto(`/invitations/${used}`);
   await expect(page.getByTestId('link-refused-message')).toContainText('This link has already been used');
 
@@ -85,7 +99,9 @@ test('expired, used and unknown links are refused with a clear message', async (
   await page.goto('/invitations/not-a-real-token');
   await expect(page.getByTestId('link-refused-message')).toContainText('This link is not valid');
   // the API refuses the used link as well
-  const res = await page.request.post('/api/invitations/accept', { data: { token: used, name: 'X', password: 'long-enough-1', confirmPassword: 'long-enough-1' } });
+  const res = await page.request.post('/api/invitations/accept', {
+    data: { token: used, name: 'X', password: 'long-enough-1', confirmPassword: 'long-enough-1' },
+  });
   expect(res.status()).toBe(409);
   expect((await res.json()).error.message).toContain('already been used');
 });
@@ -122,7 +138,9 @@ test('a study lead invites raters and observers to their own studies only', asyn
     return ctx;
   };
   const lead = await asLead(DEMO.lead);
-  const ok = await lead.post('/api/invitations', { data: { email: unique('lead-pick').email, role: 'rater', studyId: study.id, studyRole: 'rater' } });
+  const ok = await lead.post('/api/invitations', {
+    data: { email: unique('lead-pick').email, role: 'rater', studyId: study.id, studyRole: 'rater' },
+  });
   expect(ok.status()).toBe(200);
   const admin = await lead.post('/api/invitations', { data: { email: unique('too-high').email, role: 'admin' } });
   expect(admin.status()).toBe(403);
@@ -132,7 +150,9 @@ test('a study lead invites raters and observers to their own studies only', asyn
   await lead.dispose();
 
   const other = await asLead('lead2@fernhollow.example');
-  const foreign = await other.post('/api/invitations', { data: { email: unique('foreign').email, role: 'rater', studyId: study.id, studyRole: 'rater' } });
+  const foreign = await other.post('/api/invitations', {
+    data: { email: unique('foreign').email, role: 'rater', studyId: study.id, studyRole: 'rater' },
+  });
   expect(foreign.status()).toBe(403);
   expect((await foreign.json()).error.message).toContain('studies you lead');
   await other.dispose();

@@ -54,7 +54,7 @@ test('a page the role does not allow answers 403 with the refusal screen', async
   expect(calibration.status()).toBe(403);
 });
 
-test('a run not assigned to the rater answers 404 with the desk\'s not-found screen', async () => {
+test("a run not assigned to the rater answers 404 with the desk's not-found screen", async () => {
   const res = await outsider.get(`/runs/${run.runId}/rate`);
   expect(res.status()).toBe(404);
   const html = await res.text();

@@ -21,7 +21,9 @@ test.afterAll(async () => {
   await db.destroy();
 });
 
-test('re-inviting a pending address warns and asks; the form resets after each send; existing accounts and wrong roles are explained', async ({ page }) => {
+test('re-inviting a pending address warns and asks; the form resets after each send; existing accounts and wrong roles are explained', async ({
+  page,
+}) => {
   const invitee = unique('twice').email;
   const signIn = new SignInPage(page);
   await signIn.open();
@@ -44,14 +46,30 @@ test('re-inviting a pending address warns and asks; the form resets after each s
   const ask = page.getByTestId('invite-replace');
   await expect(ask).toContainText(`An invitation to ${invitee} is still pending (Observer; sent`);
   await expect(ask).toContainText('the person is invited as Rater instead');
-  expect(await db('invitations').where({ email: invitee }).whereNull('revoked_at').count({ n: '*' }).then(([r]) => Number(r.n))).toBe(1);
+  expect(
+    await db('invitations')
+      .where({ email: invitee })
+      .whereNull('revoked_at')
+      .count({ n: '*' })
+      .then(([r]) => Number(r.n)),
+  ).toBe(1);
   await ask.getByTestId('invite-replace-yes').click();
-  await expect(page.getByTestId('invite-sent')).toHaveText(`The pending invitation to ${invitee} (Observer) was withdrawn; a new invitation (Rater) is on its way.`);
+  await expect(page.getByTestId('invite-sent')).toHaveText(
+    `The pending invitation to ${invitee} (Observer) was withdrawn; a new invitation (Rater) is on its way.`,
+  );
   await expect(form.getByLabel('E-mail')).toHaveValue('');
   const rows = await db('invitations').where({ email: invitee }).orderBy('id').select('id', 'role', 'revoked_at');
-  expect(rows.map((r) => [r.role, r.revoked_at === null])).toEqual([['observer', false], ['rater', true]]);
-  const audit = await db('audit_log').where({ action: 'invitation.revoked', target_id: String(rows[0].id) }).first('detail');
-  expect(typeof audit.detail === 'string' ? JSON.parse(audit.detail) : audit.detail).toMatchObject({ reason: 'replaced', replacedBy: rows[1].id });
+  expect(rows.map((r) => [r.role, r.revoked_at === null])).toEqual([
+    ['observer', false],
+    ['rater', true],
+  ]);
+  const audit = await db('audit_log')
+    .where({ action: 'invitation.revoked', target_id: String(rows[0].id) })
+    .first('detail');
+  expect(typeof audit.detail === 'string' ? JSON.parse(audit.detail) : audit.detail).toMatchObject({
+    reason: 'replaced',
+    replacedBy: rows[1].id,
+  });
 
   // an observer account as a study rater: refused in the form, saying what to choose
   await form.getByLabel('E-mail').fill(unique('obs').email);
@@ -73,7 +91,12 @@ test('a lead adds a member by finding the account by name', async ({ page }) => 
   const name = `Solveig Marchetti-${email.slice(7, 15)}`;
   await createAccount(db, { email, password: 'a-long-password-1', name, role: 'rater' });
   const observer = unique('picked-obs');
-  await createAccount(db, { email: observer.email, password: 'a-long-password-1', name: `Solveig Observer-${observer.email.slice(11, 19)}`, role: 'observer' });
+  await createAccount(db, {
+    email: observer.email,
+    password: 'a-long-password-1',
+    name: `Solveig Observer-${observer.email.slice(11, 19)}`,
+    role: 'observer',
+  });
   const study = await db('studies').where({ slug: 'evening-light-sleep-rest' }).first('id');
 
   const signIn = new SignInPage(page);

@@ -14,11 +14,12 @@ const B = 'rater4@fernhollow.example';
 let run: E2eRun;
 let studyId: number;
 
-
 async function rateAndSubmit(ctx: APIRequestContext, labelFor: (i: number) => string) {
   for (const [i, id] of run.componentIds.entries()) {
     const label = labelFor(i);
-    const res = await ctx.put(`/api/runs/${run.runId}/votes/${id}`, { data: { label, noiseKind: label === 'noise' ? 'motion' : null, baseVersion: 0 } });
+    const res = await ctx.put(`/api/runs/${run.runId}/votes/${id}`, {
+      data: { label, noiseKind: label === 'noise' ? 'motion' : null, baseVersion: 0 },
+    });
     expect(res.status(), await res.text()).toBe(200);
   }
   expect((await ctx.post(`/api/runs/${run.runId}/submit`, { data: {} })).status()).toBe(200);
@@ -66,8 +67,15 @@ test('a lead reconciles a disagreement with a reason, and the agreement page sho
 
   const componentId = run.componentIds[0];
   const decision = sql(`SELECT label, noise_kind, method, reason FROM decisions WHERE component_id = ${componentId}`)[0];
-  expect(decision).toEqual({ label: 'noise', noise_kind: 'motion', method: 'reconciled', reason: 'Rim pattern and spikes matching the motion trace' });
-  const audit = sql(`SELECT a.action, u.email FROM audit_log a JOIN users u ON u.id = a.actor_id WHERE a.target_type = 'component' AND a.target_id = '${componentId}' AND a.action LIKE 'decision.%'`);
+  expect(decision).toEqual({
+    label: 'noise',
+    noise_kind: 'motion',
+    method: 'reconciled',
+    reason: 'Rim pattern and spikes matching the motion trace',
+  });
+  const audit = sql(
+    `SELECT a.action, u.email FROM audit_log a JOIN users u ON u.id = a.actor_id WHERE a.target_type = 'component' AND a.target_id = '${componentId}' AND a.action LIKE 'decision.%'`,
+  );
   expect(audit).toEqual([{ action: 'decision.reconcile', email: DEMO.lead }]);
 
   await page.goto(`/studies/${studyId}/agreement`);
@@ -81,7 +89,9 @@ test('observers read agreement but cannot reconcile; raters reach neither', asyn
   await apiSignIn(observer, DEMO.observer);
   expect((await observer.get(`/api/studies/${studyId}/agreement`)).status()).toBe(200);
   expect((await observer.get(`/api/studies/${studyId}/reconcile`)).status()).toBe(403);
-  const decide = await observer.post(`/api/studies/${studyId}/decisions`, { data: { componentId: run.componentIds[0], label: 'signal', reason: 'trying' } });
+  const decide = await observer.post(`/api/studies/${studyId}/decisions`, {
+    data: { componentId: run.componentIds[0], label: 'signal', reason: 'trying' },
+  });
   expect(decide.status()).toBe(403);
   const rater = await pwRequest.newContext({ baseURL });
   await apiSignIn(rater, A);

@@ -16,7 +16,13 @@ let studyId: number;
 
 /** A fresh study with one tiny ready run, votes from two submitted raters and complete decisions. */
 function createDecidedStudy(pendingFirst = false): number {
-  const out = execFileSync('node', ['--import', 'tsx', '-e', `
+  const out = execFileSync(
+    'node',
+    [
+      '--import',
+      'tsx',
+      '-e',
+      `
     Promise.all([import('./lib/db/knex.ts'), import('./tests/e2e/helpers/ready-run.ts'), import('./tests/integration/helpers/submitted.ts')]).then(async ([{ createDb }, { createReadyRun }, { markSubmitted }]) => {
       const db = createDb();
       const ids = Object.fromEntries((await db('users').select('id', 'email')).map((u) => [u.email.split('@')[0], u.id]));
@@ -33,10 +39,17 @@ function createDecidedStudy(pendingFirst = false): number {
       await markSubmitted(db, { runId: run.runId }); // as the desk's submit does: agreement reads the votes as first submitted
       process.stdout.write(JSON.stringify({ studyId }));
       await db.destroy();
-    });`], {
-    env: { ...process.env, QUORUM_DB_NAME: process.env.QUORUM_DB_NAME ?? 'quorum_e2e', QUORUM_UPLOADS_DIR: process.env.QUORUM_UPLOADS_DIR ?? path.resolve('.data/e2e-uploads') },
-    encoding: 'utf8',
-  });
+    });`,
+    ],
+    {
+      env: {
+        ...process.env,
+        QUORUM_DB_NAME: process.env.QUORUM_DB_NAME ?? 'quorum_e2e',
+        QUORUM_UPLOADS_DIR: process.env.QUORUM_UPLOADS_DIR ?? path.resolve('.data/e2e-uploads'),
+      },
+      encoding: 'utf8',
+    },
+  );
   return JSON.parse(out).studyId;
 }
 
@@ -63,7 +76,13 @@ test('a lead releases the study, downloads the ZIP with a verified manifest, and
   const root = path.join(dir, 'x', readdirSync(path.join(dir, 'x'))[0]!);
   const manifest = JSON.parse(readFileSync(path.join(root, 'manifest.json'), 'utf8'));
   expect(manifest.files.length).toBeGreaterThan(10);
-  for (const f of manifest.files) expect(createHash('sha256').update(readFileSync(path.join(root, f.path))).digest('hex'), f.path).toBe(f.sha256);
+  for (const f of manifest.files)
+    expect(
+      createHash('sha256')
+        .update(readFileSync(path.join(root, f.path)))
+        .digest('hex'),
+      f.path,
+    ).toBe(f.sha256);
   expect(readFileSync(path.join(root, 'sub-walk01/ses-1/sub-walk01_ses-1_task-rest_desc-noiselist_components.txt'), 'utf8')).toBe('3,6\n');
 
   // denoised data from the worker (partial regression by default); the link appears when done

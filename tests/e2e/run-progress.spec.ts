@@ -38,7 +38,9 @@ test('the runs table shows the stage, percent and message of a run a worker is d
     await expect(row.getByTestId('run-job-message')).toHaveText('restart 2 of 3, iteration 41');
     await expect(row).not.toContainText('Waiting for a worker');
   } finally {
-    sql(`UPDATE jobs SET status = 'cancelled', lease_owner = NULL, lease_expires_at = NULL WHERE run_id = ${run.runId} AND lease_owner = 'e2e-held'`);
+    sql(
+      `UPDATE jobs SET status = 'cancelled', lease_owner = NULL, lease_expires_at = NULL WHERE run_id = ${run.runId} AND lease_owner = 'e2e-held'`,
+    );
     sql(`UPDATE runs SET status = 'cancelled' WHERE id = ${run.runId}`);
   }
 });

@@ -27,7 +27,11 @@ test('a page and API responses carry the security headers', async ({ page, reque
 });
 
 /** The script-src directive of a policy. */
-const scriptSrc = (csp: string) => csp.split(';').map((d) => d.trim()).find((d) => d.startsWith('script-src ')) ?? '';
+const scriptSrc = (csp: string) =>
+  csp
+    .split(';')
+    .map((d) => d.trim())
+    .find((d) => d.startsWith('script-src ')) ?? '';
 
 test('pages allow scripts by a fresh per-request nonce, never by unsafe-inline, and still run', async ({ page, request }) => {
   // CSP Level 3 (W3C), "nonce-source": the nonce must be unguessable and new for every response
@@ -106,13 +110,19 @@ test('reset requests and guessed invitation links are throttled per client addre
 test('an invitation to an address that already has an account says so (issue 15 item 9)', async ({ request, baseURL }) => {
   const ctx = request;
   const csrf = await (await ctx.get('/api/auth/csrf')).json();
-  await ctx.post('/api/auth/callback/credentials', { form: { csrfToken: csrf.csrfToken, email: DEMO.admin, password: 'quorum-demo', json: 'true' }, headers: { 'x-forwarded-for': unique('ip').ip } });
+  await ctx.post('/api/auth/callback/credentials', {
+    form: { csrfToken: csrf.csrfToken, email: DEMO.admin, password: 'quorum-demo', json: 'true' },
+    headers: { 'x-forwarded-for': unique('ip').ip },
+  });
   expect((await ctx.get('/api/me')).status(), baseURL).toBe(200);
   const existing = await ctx.post('/api/invitations', { data: { email: DEMO.rater, role: 'rater' } });
   const freshEmail = unique('fresh').email;
   const fresh = await ctx.post('/api/invitations', { data: { email: freshEmail, role: 'rater' } });
   expect(existing.status()).toBe(200);
   expect(fresh.status()).toBe(200);
-  expect(await existing.json()).toMatchObject({ outcome: 'existing_account', message: expect.stringContaining(`${DEMO.rater} already has an account, so no invitation was sent`) });
+  expect(await existing.json()).toMatchObject({
+    outcome: 'existing_account',
+    message: expect.stringContaining(`${DEMO.rater} already has an account, so no invitation was sent`),
+  });
   expect(await fresh.json()).toMatchObject({ outcome: 'sent', message: `An invitation (Rater) is on its way to ${freshEmail}.` });
 });

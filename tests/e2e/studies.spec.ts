@@ -17,7 +17,7 @@ test('a lead edits the protocol and members; an observer reads only', async ({ p
 
   await page.getByTestId('study-settings-link').click();
   const form = page.getByTestId('study-form');
-  await expect(form.getByLabel('Blinding: raters do not see each other\'s votes before they submit')).toBeChecked();
+  await expect(form.getByLabel("Blinding: raters do not see each other's votes before they submit")).toBeChecked();
   await form.getByLabel('Number of components').selectOption('fixed');
   await page.getByTestId('study-save').click();
   await expect(page.getByTestId('fixedComponents-error')).toContainText('Enter the number of components');

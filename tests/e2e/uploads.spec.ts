@@ -14,7 +14,9 @@ const WORKER = existsSync(path.resolve('scripts/worker.ts'));
 let dir: string;
 test.beforeAll(() => {
   dir = mkdtempSync(path.join(tmpdir(), 'quorum-e2e-demo-'));
-  execFileSync('node', ['--import', 'tsx', 'scripts/make-demo-data.ts', '--out', dir, '--size', 'tiny', '--runs', '2', '--with-broken'], { stdio: 'ignore' });
+  execFileSync('node', ['--import', 'tsx', 'scripts/make-demo-data.ts', '--out', dir, '--size', 'tiny', '--runs', '2', '--with-broken'], {
+    stdio: 'ignore',
+  });
 });
 
 test('a lead uploads two runs and a truncated file: the truncated one is refused, the others reach ready', async ({ page }) => {

@@ -22,9 +22,13 @@ async function signInAs(page: Page, email: string) {
   await expect(page.getByTestId('home-heading')).toBeVisible();
 }
 
-test('a lead drops a BIDS folder: only runs become cards, with their motion tables; taken labels are confirmed, then corrected', async ({ page }) => {
+test('a lead drops a BIDS folder: only runs become cards, with their motion tables; taken labels are confirmed, then corrected', async ({
+  page,
+}) => {
   const dir = mkdtempSync(path.join(tmpdir(), 'quorum-e2e-folder-'));
-  execFileSync('node', ['--import', 'tsx', 'scripts/make-demo-data.ts', '--out', dir, '--size', 'tiny', '--runs', '2'], { stdio: 'ignore' });
+  execFileSync('node', ['--import', 'tsx', 'scripts/make-demo-data.ts', '--out', dir, '--size', 'tiny', '--runs', '2'], {
+    stdio: 'ignore',
+  });
   const files = readdirSync(dir);
   expect(files.filter((f) => f.endsWith('_bold.nii.gz'))).toHaveLength(2);
   await signInAs(page, DEMO.lead);
@@ -60,7 +64,8 @@ test('a lead drops a BIDS folder: only runs become cards, with their motion tabl
   await expect(second.getByTestId('upload-status')).toHaveAttribute('data-phase', 'pending');
   await study.startUpload();
   await dialog.getByRole('button', { name: 'Upload anyway' }).click();
-  for (const card of [first, second]) await expect(card.getByTestId('upload-status')).toHaveAttribute('data-phase', 'queued', { timeout: 60_000 });
+  for (const card of [first, second])
+    await expect(card.getByTestId('upload-status')).toHaveAttribute('data-phase', 'queued', { timeout: 60_000 });
 
   // both rows carry the same name; the lead corrects the second one's run label
   const twins = study.runRow('sub-01_ses-1_task-rest');
@@ -149,7 +154,14 @@ test('the printed report is dark ink on white paper, with background graphics pr
       nav: document.querySelector('header.no-print') ? css(document.querySelector('header.no-print'))!.display : 'none',
     };
   });
-  expect(styles).toEqual({ body: 'rgb(255, 255, 255)', bodyText: 'rgb(17, 17, 17)', panel: 'rgb(255, 255, 255)', heading: 'rgb(17, 17, 17)', muted: 'rgb(51, 51, 51)', nav: 'none' });
+  expect(styles).toEqual({
+    body: 'rgb(255, 255, 255)',
+    bodyText: 'rgb(17, 17, 17)',
+    panel: 'rgb(255, 255, 255)',
+    heading: 'rgb(17, 17, 17)',
+    muted: 'rgb(51, 51, 51)',
+    nav: 'none',
+  });
   for (const id of ['methods-paragraph', 'report-cautions', 'report-runs']) await expect(page.getByTestId(id)).toBeVisible();
 
   // print to PDF as Chromium does with "Background graphics" ticked, and look at page 1

@@ -30,7 +30,12 @@ async function readyRun(studyId: number, createdBy: number): Promise<number> {
 }
 
 async function openCounts(raterIds: number[]): Promise<number[]> {
-  const rows = await db('assignments').whereIn('rater_id', raterIds).whereNull('submitted_at').groupBy('rater_id').select('rater_id').count({ n: '*' });
+  const rows = await db('assignments')
+    .whereIn('rater_id', raterIds)
+    .whereNull('submitted_at')
+    .groupBy('rater_id')
+    .select('rater_id')
+    .count({ n: '*' });
   const by = new Map((rows as Array<{ rater_id: number; n: number | string }>).map((r) => [Number(r.rater_id), Number(r.n)]));
   return raterIds.map((id) => by.get(id) ?? 0);
 }
@@ -61,7 +66,9 @@ describe('automatic assignment', () => {
     const { studyId, leadId, raterIds } = await createStudyWithRaters(db, { raters: 3, raters_per_run: 1 });
     for (let i = 0; i < 6; i++) await assignRaters(db, { runId: await readyRun(studyId, leadId) });
     expect(await openCounts(raterIds)).toEqual([2, 2, 2]);
-    await db('assignments').where({ rater_id: raterIds[2] }).update({ submitted_at: db.fn.now(3) });
+    await db('assignments')
+      .where({ rater_id: raterIds[2] })
+      .update({ submitted_at: db.fn.now(3) });
     for (let i = 0; i < 4; i++) await assignRaters(db, { runId: await readyRun(studyId, leadId) });
     const counts = await openCounts(raterIds);
     expect(Math.max(...counts) - Math.min(...counts)).toBeLessThanOrEqual(1);

@@ -29,13 +29,26 @@ let admin: number;
 /** A ready run with a current decomposition of k components and the given raters assigned. */
 async function run(studyId: number, createdBy: number, raterIds: number[], k = 3) {
   const [runId] = await db('runs').insert({
-    study_id: studyId, sub: `c${uniqueSuffix()}`, ses: '1', task: 'rest', original_name: 'x_bold.nii.gz',
-    file_key: `runs/${uniqueSuffix()}.nii.gz`, sha256: `${uniqueSuffix()}${uniqueSuffix()}`.padEnd(64, '0'), size_bytes: 1, status: 'ready', created_by: createdBy,
+    study_id: studyId,
+    sub: `c${uniqueSuffix()}`,
+    ses: '1',
+    task: 'rest',
+    original_name: 'x_bold.nii.gz',
+    file_key: `runs/${uniqueSuffix()}.nii.gz`,
+    sha256: `${uniqueSuffix()}${uniqueSuffix()}`.padEnd(64, '0'),
+    size_bytes: 1,
+    status: 'ready',
+    created_by: createdBy,
   });
   const [decompositionId] = await db('decompositions').insert({ run_id: runId, parameters: toJson({}), k, is_current: true });
   const componentIds: number[] = [];
   for (let i = 1; i <= k; i++) {
-    const [id] = await db('components').insert({ decomposition_id: decompositionId, idx: i, variance_explained: 0.1, features: toJson({}) });
+    const [id] = await db('components').insert({
+      decomposition_id: decompositionId,
+      idx: i,
+      variance_explained: 0.1,
+      features: toJson({}),
+    });
     componentIds.push(Number(id));
   }
   for (const r of raterIds) await db('assignments').insert({ run_id: runId, rater_id: r });
@@ -47,14 +60,29 @@ async function voteAll(runId: number, componentIds: number[], raterId: number, l
   await markSubmitted(db, { runId, raterId });
 }
 
-const add = (runId: number, body: unknown) => callRoute(runRoute.POST, { method: 'POST', url: `/api/runs/${runId}/assignments`, params: { id: String(runId) }, body });
+const add = (runId: number, body: unknown) =>
+  callRoute(runRoute.POST, { method: 'POST', url: `/api/runs/${runId}/assignments`, params: { id: String(runId) }, body });
 const remove = (runId: number, raterId: number, confirm = false) =>
-  callRoute(raterRoute.DELETE, { method: 'DELETE', url: `/api/runs/${runId}/assignments/${raterId}${confirm ? '?confirm=1' : ''}`, params: { id: String(runId), raterId: String(raterId) } });
+  callRoute(raterRoute.DELETE, {
+    method: 'DELETE',
+    url: `/api/runs/${runId}/assignments/${raterId}${confirm ? '?confirm=1' : ''}`,
+    params: { id: String(runId), raterId: String(raterId) },
+  });
 const change = (runId: number, raterId: number, body: unknown) =>
-  callRoute(raterRoute.PATCH, { method: 'PATCH', url: `/api/runs/${runId}/assignments/${raterId}`, params: { id: String(runId), raterId: String(raterId) }, body });
-const list = (studyId: number) => callRoute(studyRoute.GET, { url: `/api/studies/${studyId}/assignments`, params: { id: String(studyId) } });
-const bulk = (studyId: number, body: unknown) => callRoute(studyRoute.PATCH, { method: 'PATCH', url: `/api/studies/${studyId}/assignments`, params: { id: String(studyId) }, body });
-const audit = (runId: number, action: string) => db('audit_log').where({ target_type: 'run', target_id: String(runId), action }).orderBy('id');
+  callRoute(raterRoute.PATCH, {
+    method: 'PATCH',
+    url: `/api/runs/${runId}/assignments/${raterId}`,
+    params: { id: String(runId), raterId: String(raterId) },
+    body,
+  });
+const list = (studyId: number) =>
+  callRoute(studyRoute.GET, { url: `/api/studies/${studyId}/assignments`, params: { id: String(studyId) } });
+const bulk = (studyId: number, body: unknown) =>
+  callRoute(studyRoute.PATCH, { method: 'PATCH', url: `/api/studies/${studyId}/assignments`, params: { id: String(studyId) }, body });
+const audit = (runId: number, action: string) =>
+  db('audit_log')
+    .where({ target_type: 'run', target_id: String(runId), action })
+    .orderBy('id');
 
 beforeAll(async () => {
   s = await createStudyWithRaters(db, { raters: 4, raters_per_run: 2, consensus_rule: 'majority' });
@@ -87,7 +115,9 @@ describe('refusals', () => {
     expect((await change(r.runId, s.raterIds[0]!, { replaceWith: other.raterIds[0] })).status).toBe(404);
     expect((await list(s.studyId)).status).toBe(404);
     expect((await bulk(s.studyId, { runIds: [r.runId], dueAt: '2030-01-01' })).status).toBe(404);
-    expect((await callRoute(overdueRoute.GET, { url: `/api/studies/${s.studyId}/overdue`, params: { id: String(s.studyId) } })).status).toBe(404);
+    expect(
+      (await callRoute(overdueRoute.GET, { url: `/api/studies/${s.studyId}/overdue`, params: { id: String(s.studyId) } })).status,
+    ).toBe(404);
     // the other lead's bulk call on their own study cannot reach this study's run
     const res = await bulk(other.studyId, { runIds: [r.runId], dueAt: '2030-01-01' });
     expect(res.json).toMatchObject({ runs: 0, skipped: 1, changed: 0 });
@@ -150,7 +180,9 @@ describe('changes by the lead', () => {
 
   it('reassigns a place to another rater keeping the due date, with one audit entry', async () => {
     const r = await run(s.studyId, s.leadId, [s.raterIds[0]!]);
-    await db('assignments').where({ run_id: r.runId }).update({ due_at: new Date('2030-02-01T12:00:00Z') });
+    await db('assignments')
+      .where({ run_id: r.runId })
+      .update({ due_at: new Date('2030-02-01T12:00:00Z') });
     actAs(admin);
     expect((await change(r.runId, s.raterIds[0]!, { replaceWith: s.raterIds[0] })).status).toBe(422);
     const res = await change(r.runId, s.raterIds[0]!, { replaceWith: s.raterIds[3] });
@@ -168,7 +200,12 @@ describe('changes by the lead', () => {
     await voteAll(r1.runId, r1.componentIds, s.raterIds[1]!);
     actAs(s.leadId);
     expect((await change(r1.runId, s.raterIds[0]!, { dueAt: '2020-01-01' })).status).toBe(200);
-    const perRun = await callRoute(runRoute.PATCH, { method: 'PATCH', url: `/api/runs/${r2.runId}/assignments`, params: { id: String(r2.runId) }, body: { dueAt: '2031-05-05' } });
+    const perRun = await callRoute(runRoute.PATCH, {
+      method: 'PATCH',
+      url: `/api/runs/${r2.runId}/assignments`,
+      params: { id: String(r2.runId) },
+      body: { dueAt: '2031-05-05' },
+    });
     expect(perRun.json).toMatchObject({ changed: 1 });
     expect((await bulk(s.studyId, { runIds: [r1.runId, r2.runId], dueAt: 'soon' })).status).toBe(422);
     const many = await bulk(s.studyId, { runIds: [r1.runId, r2.runId], dueAt: '2020-06-01' });
@@ -186,7 +223,9 @@ describe('changes by the lead', () => {
     expect(table.json.raters.map((x: { id: number }) => x.id).sort()).toEqual([...s.raterIds].sort());
 
     const overdue = await callRoute(overdueRoute.GET, { url: `/api/studies/${s.studyId}/overdue`, params: { id: String(s.studyId) } });
-    expect(overdue.json.overdue.map((o: { runId: number; raterId: number }) => `${o.runId}:${o.raterId}`).sort()).toEqual([`${r1.runId}:${s.raterIds[0]}`, `${r2.runId}:${s.raterIds[2]}`].sort());
+    expect(overdue.json.overdue.map((o: { runId: number; raterId: number }) => `${o.runId}:${o.raterId}`).sort()).toEqual(
+      [`${r1.runId}:${s.raterIds[0]}`, `${r2.runId}:${s.raterIds[2]}`].sort(),
+    );
 
     expect((await bulk(s.studyId, { runIds: [r1.runId, r2.runId], dueAt: null })).json).toMatchObject({ changed: 2 });
   });

@@ -25,10 +25,36 @@ beforeAll(async () => {
   const [s] = await db('studies').insert({ name: `Audit study ${tag}`, created_by: actorA, label_set: '[]', noise_kinds: '[]' });
   studyId = Number(s);
   // 30 entries by A in the study, 5 by B without a study, two on fixed dates
-  for (let i = 0; i < 30; i++) await recordAudit({ actorId: actorA, action: i % 2 ? 'user.role_changed' : 'user.deactivated', targetType: 'user', targetId: i, studyId });
-  for (let i = 0; i < 5; i++) await recordAudit({ actorId: actorB, action: 'invitation.sent', targetType: 'invitation', targetId: 1000 + i, detail: { email: `x${i}@fernhollow.example` } });
-  await db('audit_log').insert({ actor_id: actorB, action: 'release.create', target_type: 'release', target_id: 'r1', created_at: new Date('2026-03-10T23:59:59.000Z') });
-  await db('audit_log').insert({ actor_id: actorB, action: 'release.create', target_type: 'release', target_id: 'r2', created_at: new Date('2026-03-11T00:00:00.000Z') });
+  for (let i = 0; i < 30; i++)
+    await recordAudit({
+      actorId: actorA,
+      action: i % 2 ? 'user.role_changed' : 'user.deactivated',
+      targetType: 'user',
+      targetId: i,
+      studyId,
+    });
+  for (let i = 0; i < 5; i++)
+    await recordAudit({
+      actorId: actorB,
+      action: 'invitation.sent',
+      targetType: 'invitation',
+      targetId: 1000 + i,
+      detail: { email: `x${i}@fernhollow.example` },
+    });
+  await db('audit_log').insert({
+    actor_id: actorB,
+    action: 'release.create',
+    target_type: 'release',
+    target_id: 'r1',
+    created_at: new Date('2026-03-10T23:59:59.000Z'),
+  });
+  await db('audit_log').insert({
+    actor_id: actorB,
+    action: 'release.create',
+    target_type: 'release',
+    target_id: 'r2',
+    created_at: new Date('2026-03-11T00:00:00.000Z'),
+  });
 });
 
 afterAll(async () => {
@@ -67,7 +93,9 @@ describe('audit log', () => {
 
   it('filters by an inclusive UTC date range', async () => {
     const day = async (from?: string, to?: string) =>
-      (await queryAuditLog({ filter: { actorId: actorB, action: 'release', from, to }, page: 1, pageSize: 50 })).entries.map((e) => e.targetId);
+      (await queryAuditLog({ filter: { actorId: actorB, action: 'release', from, to }, page: 1, pageSize: 50 })).entries.map(
+        (e) => e.targetId,
+      );
     expect(await day('2026-03-10', '2026-03-10')).toEqual(['r1']);
     expect(await day('2026-03-11', '2026-03-11')).toEqual(['r2']);
     expect(await day('2026-03-10', '2026-03-11')).toEqual(['r2', 'r1']);

@@ -33,7 +33,20 @@ const root = path.resolve(import.meta.dirname, '../..');
 const run = promisify(execFile);
 const scriptEnv = { ...process.env, QUORUM_DB_NAME: DB_NAME, QUORUM_UPLOADS_DIR: uploads };
 
-const TABLES = ['users', 'studies', 'study_members', 'runs', 'decompositions', 'components', 'assignments', 'votes', 'decisions', 'releases', 'release_decisions', 'audit_log'];
+const TABLES = [
+  'users',
+  'studies',
+  'study_members',
+  'runs',
+  'decompositions',
+  'components',
+  'assignments',
+  'votes',
+  'decisions',
+  'releases',
+  'release_decisions',
+  'audit_log',
+];
 
 /** Every row of the tables above (ordered by primary key) and every stored file with its sha256. */
 async function snapshot() {
@@ -43,7 +56,9 @@ async function snapshot() {
   for (const entry of await readdir(uploads, { recursive: true, withFileTypes: true })) {
     if (!entry.isFile()) continue;
     const full = path.join(entry.parentPath, entry.name);
-    files[path.relative(uploads, full)] = createHash('sha256').update(await readFile(full)).digest('hex');
+    files[path.relative(uploads, full)] = createHash('sha256')
+      .update(await readFile(full))
+      .digest('hex');
   }
   return { rows, files };
 }
@@ -53,17 +68,45 @@ beforeAll(async () => {
   await db.migrate.latest({ migrationSource });
   const seeded = await seedDemo(db);
   const u = (n: string) => seeded.users[`${n}@fernhollow.example`];
-  const ready = await createReadyRun(db, { studyId: seeded.studyId, createdBy: u('lead'), raterIds: [u('rater1'), u('rater2')], size: 'tiny', seed: 31, sub: 'bk01', components: 6 });
+  const ready = await createReadyRun(db, {
+    studyId: seeded.studyId,
+    createdBy: u('lead'),
+    raterIds: [u('rater1'), u('rater2')],
+    size: 'tiny',
+    seed: 31,
+    sub: 'bk01',
+    components: 6,
+  });
   for (const [n, componentId] of ready.componentIds.entries()) {
     const label = n % 3 === 0 ? 'noise' : 'signal';
     await db('votes').insert([
-      { component_id: componentId, run_id: ready.runId, rater_id: u('rater1'), label, noise_kind: label === 'noise' ? 'motion' : null, note: n === 1 ? 'edge ring — émoji 😀' : null },
+      {
+        component_id: componentId,
+        run_id: ready.runId,
+        rater_id: u('rater1'),
+        label,
+        noise_kind: label === 'noise' ? 'motion' : null,
+        note: n === 1 ? 'edge ring — émoji 😀' : null,
+      },
       { component_id: componentId, run_id: ready.runId, rater_id: u('rater2'), label, noise_kind: label === 'noise' ? 'motion' : null },
     ]);
-    await db('decisions').insert({ component_id: componentId, run_id: ready.runId, label, noise_kind: label === 'noise' ? 'motion' : null, method: 'unanimous' });
+    await db('decisions').insert({
+      component_id: componentId,
+      run_id: ready.runId,
+      label,
+      noise_kind: label === 'noise' ? 'motion' : null,
+      method: 'unanimous',
+    });
   }
-  await db('assignments').where({ run_id: ready.runId }).update({ submitted_at: db.fn.now(3) });
-  await requestRelease({ user: { id: u('lead'), role: 'lead', name: 'Priya Nandakumar' }, studyId: seeded.studyId, runId: ready.runId, notes: 'backup test' });
+  await db('assignments')
+    .where({ run_id: ready.runId })
+    .update({ submitted_at: db.fn.now(3) });
+  await requestRelease({
+    user: { id: u('lead'), role: 'lead', name: 'Priya Nandakumar' },
+    studyId: seeded.studyId,
+    runId: ready.runId,
+    notes: 'backup test',
+  });
   expect((await runReleaseJobs(db)).map((j) => j.outcome)).toEqual(['succeeded']);
 });
 
@@ -81,13 +124,18 @@ describe('backup and restore', () => {
     expect(Object.keys(before.files).some((f) => f.startsWith('releases/'))).toBe(true);
     expect(Object.keys(before.files).some((f) => f.startsWith('runs/'))).toBe(true);
 
-    const { stdout } = await run('node', ['--import', 'tsx', 'scripts/backup.ts', '--out', path.join(work, 'backups')], { cwd: root, env: scriptEnv });
+    const { stdout } = await run('node', ['--import', 'tsx', 'scripts/backup.ts', '--out', path.join(work, 'backups')], {
+      cwd: root,
+      env: scriptEnv,
+    });
     const folder = stdout.trim();
     const manifest = JSON.parse(await readFile(path.join(folder, 'manifest.json'), 'utf8'));
     expect(manifest).toMatchObject({ format: 'quorum-backup-1', database: DB_NAME });
 
     // the wipe: every table and every file gone
-    const tables = (await db('information_schema.tables').where({ table_schema: DB_NAME }).select('table_name as name')).map((r: { name: string }) => r.name);
+    const tables = (await db('information_schema.tables').where({ table_schema: DB_NAME }).select('table_name as name')).map(
+      (r: { name: string }) => r.name,
+    );
     await db.transaction(async (trx) => {
       await trx.raw('SET FOREIGN_KEY_CHECKS = 0');
       for (const t of tables) await trx.raw('DROP TABLE ??', [t]);
@@ -101,13 +149,18 @@ describe('backup and restore', () => {
   });
 
   it('refuses to overwrite a database with tables without --yes, and a damaged backup at all', async () => {
-    const { stdout } = await run('node', ['--import', 'tsx', 'scripts/backup.ts', '--out', path.join(work, 'backups2')], { cwd: root, env: scriptEnv });
+    const { stdout } = await run('node', ['--import', 'tsx', 'scripts/backup.ts', '--out', path.join(work, 'backups2')], {
+      cwd: root,
+      env: scriptEnv,
+    });
     const folder = stdout.trim();
     const refused = await run('node', ['--import', 'tsx', 'scripts/restore.ts', folder], { cwd: root, env: scriptEnv }).catch((e) => e);
     expect(refused.code).toBe(2);
     expect(refused.stderr).toMatch(/has \d+ tables .* add --yes to replace them/);
     await rm(path.join(folder, 'uploads.tar'));
-    const damaged = await run('node', ['--import', 'tsx', 'scripts/restore.ts', folder, '--yes'], { cwd: root, env: scriptEnv }).catch((e) => e);
+    const damaged = await run('node', ['--import', 'tsx', 'scripts/restore.ts', folder, '--yes'], { cwd: root, env: scriptEnv }).catch(
+      (e) => e,
+    );
     expect(damaged.code).toBe(3);
     expect(damaged.stderr).toMatch(/uploads\.tar is missing or damaged \(sha256 differs from the manifest\); nothing was changed/);
   });

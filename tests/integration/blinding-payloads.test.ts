@@ -46,11 +46,17 @@ const vote = (componentId: number, body: unknown) =>
   callRoute(voteRoute.PUT, { method: 'PUT', url: '/', params: { id: String(run.runId), componentId: String(componentId) }, body });
 const submit = () => callRoute(submitRoute.POST, { method: 'POST', url: '/', params: p() });
 const reopen = (raterId: number, body: unknown) =>
-  callRoute(reopenRoute.POST, { method: 'POST', url: `/api/runs/${run.runId}/assignments/${raterId}/reopen`, params: { id: String(run.runId), raterId: String(raterId) }, body });
+  callRoute(reopenRoute.POST, {
+    method: 'POST',
+    url: `/api/runs/${run.runId}/assignments/${raterId}/reopen`,
+    params: { id: String(run.runId), raterId: String(raterId) },
+    body,
+  });
 
 function keysIn(value: unknown, out = new Set<string>()): Set<string> {
   if (Array.isArray(value)) value.forEach((v) => keysIn(v, out));
-  else if (value && typeof value === 'object') for (const [k, v] of Object.entries(value)) {
+  else if (value && typeof value === 'object')
+    for (const [k, v] of Object.entries(value)) {
       out.add(k);
       keysIn(v, out);
     }
@@ -109,7 +115,14 @@ describe('after submission', () => {
     actAs(A());
     let res = await getVotes();
     expect(res.json.others).toHaveLength(run.k);
-    expect(res.json.others[0]).toEqual({ componentId: run.componentIds[0], raterName: 'Jonah Adeyemi', label: 'signal', noiseKind: null, confidence: null, note: 'B thinks this is visual cortex' });
+    expect(res.json.others[0]).toEqual({
+      componentId: run.componentIds[0],
+      raterName: 'Jonah Adeyemi',
+      label: 'signal',
+      noiseKind: null,
+      confidence: null,
+      note: 'B thinks this is visual cortex',
+    });
     await db('studies').where({ id: studyId }).update({ show_votes_after_submit: false });
     res = await getVotes();
     expect(res.json.others).toBeNull();
@@ -121,7 +134,9 @@ describe('after submission', () => {
     actAs(A());
     const res = await vote(run.componentIds[0], { label: 'signal', baseVersion: 1 });
     expect(res.status).toBe(409);
-    expect(res.json.error.message).toMatch(/your votes on it are frozen\. If a label must change, ask the study lead to reopen the run for you\./);
+    expect(res.json.error.message).toMatch(
+      /your votes on it are frozen\. If a label must change, ask the study lead to reopen the run for you\./,
+    );
     expect((await db('votes').where({ component_id: run.componentIds[0], rater_id: A() }).first('label')).label).toBe('noise');
     const decision = await db('decisions').where({ component_id: run.componentIds[0] }).first('method');
     expect(decision.method).not.toBe('unanimous'); // noise (A) vs signal (B): not decided by A changing sides
@@ -137,7 +152,12 @@ describe("the lead's reopen", () => {
     expect(noReason.status).toBe(422);
     expect(noReason.json.error.message).toMatch(/Give a reason for reopening/);
     const other = await createReadyRun(db, { studyId, createdBy: LEAD(), raterIds: [A()], size: 'tiny', seed: 6, sub: 'bx' });
-    const open = await callRoute(reopenRoute.POST, { method: 'POST', url: '/', params: { id: String(other.runId), raterId: String(A()) }, body: { reason: 'typo in component 3' } });
+    const open = await callRoute(reopenRoute.POST, {
+      method: 'POST',
+      url: '/',
+      params: { id: String(other.runId), raterId: String(A()) },
+      body: { reason: 'typo in component 3' },
+    });
     expect(open.status).toBe(409);
     expect(open.json.error.message).toMatch(/has not submitted .* nothing to reopen/);
   });
@@ -147,7 +167,9 @@ describe("the lead's reopen", () => {
     const res = await reopen(A(), { reason: 'component 1 labelled by mistake' });
     expect(res.status).toBe(200);
     expect(res.json).toMatchObject({ raterId: A(), reopenCount: 1 });
-    const entry = await db('audit_log').where({ action: 'assignment.reopen', target_id: String(run.runId) }).first('actor_id', 'detail');
+    const entry = await db('audit_log')
+      .where({ action: 'assignment.reopen', target_id: String(run.runId) })
+      .first('actor_id', 'detail');
     const detail = typeof entry.detail === 'string' ? JSON.parse(entry.detail) : entry.detail;
     expect(entry.actor_id).toBe(LEAD());
     expect(detail).toMatchObject({ raterId: A(), reason: 'component 1 labelled by mistake', reopenCount: 1 });
@@ -162,7 +184,10 @@ describe("the lead's reopen", () => {
     expect(status.json.status.othersHidden).toBe('not_submitted'); // blind again while reopened
     const changed = await vote(run.componentIds[0], { label: 'signal', baseVersion: 1 });
     expect(changed.status).toBe(200);
-    const change = await db('audit_log').where({ action: 'vote.change', target_id: String(run.componentIds[0]), actor_id: A() }).orderBy('id', 'desc').first('detail');
+    const change = await db('audit_log')
+      .where({ action: 'vote.change', target_id: String(run.componentIds[0]), actor_id: A() })
+      .orderBy('id', 'desc')
+      .first('detail');
     const cd = typeof change.detail === 'string' ? JSON.parse(change.detail) : change.detail;
     expect(cd).toMatchObject({ afterReopen: true, changes: { label: ['noise', 'signal'] } });
     expect((await submit()).status).toBe(200);
@@ -198,7 +223,13 @@ describe("the study's blinding flag", () => {
     const open = await createReadyRun(db, { studyId, createdBy: LEAD(), raterIds: [A(), B()], size: 'tiny', seed: 7, sub: 'bf' });
     const url = { url: `/api/runs/${open.runId}/votes`, params: { id: String(open.runId) } };
     actAs(A());
-    for (const id of open.componentIds) await callRoute(voteRoute.PUT, { method: 'PUT', url: '/', params: { id: String(open.runId), componentId: String(id) }, body: { label: 'signal', baseVersion: 0 } });
+    for (const id of open.componentIds)
+      await callRoute(voteRoute.PUT, {
+        method: 'PUT',
+        url: '/',
+        params: { id: String(open.runId), componentId: String(id) },
+        body: { label: 'signal', baseVersion: 0 },
+      });
     expect((await callRoute(submitRoute.POST, { method: 'POST', url: '/', params: { id: String(open.runId) } })).status).toBe(200);
     actAs(B());
     let res = await callRoute(votesRoute.GET, url);

@@ -31,8 +31,16 @@ async function freePort(): Promise<number> {
 /** A submitted calibration run with reference REFERENCE; each rater votes `labels[rater]`. */
 async function calibrationRun(votes: Array<[number, string[]]>) {
   const [runId] = await db('runs').insert({
-    study_id: s.studyId, sub: `d${uniqueSuffix()}`, task: 'rest', original_name: 'x_bold.nii.gz', file_key: `runs/${uniqueSuffix()}.nii.gz`,
-    sha256: `${uniqueSuffix()}`.padEnd(64, '0'), size_bytes: 1, status: 'ready', is_calibration: true, created_by: s.leadId,
+    study_id: s.studyId,
+    sub: `d${uniqueSuffix()}`,
+    task: 'rest',
+    original_name: 'x_bold.nii.gz',
+    file_key: `runs/${uniqueSuffix()}.nii.gz`,
+    sha256: `${uniqueSuffix()}`.padEnd(64, '0'),
+    size_bytes: 1,
+    status: 'ready',
+    is_calibration: true,
+    created_by: s.leadId,
   });
   const [d] = await db('decompositions').insert({ run_id: runId, parameters: toJson({}), k: REFERENCE.length, is_current: true });
   const ids: number[] = [];
@@ -50,7 +58,10 @@ async function calibrationRun(votes: Array<[number, string[]]>) {
 beforeAll(async () => {
   dir = await mkdtemp(path.join(tmpdir(), 'quorum-drift-mail-'));
   const port = await freePort();
-  server = spawn(process.execPath, ['--import', 'tsx', 'scripts/mail-server.ts'], { env: { ...process.env, QUORUM_MAIL_PORT: String(port), QUORUM_MAIL_DIR: dir }, stdio: ['ignore', 'pipe', 'inherit'] });
+  server = spawn(process.execPath, ['--import', 'tsx', 'scripts/mail-server.ts'], {
+    env: { ...process.env, QUORUM_MAIL_PORT: String(port), QUORUM_MAIL_DIR: dir },
+    stdio: ['ignore', 'pipe', 'inherit'],
+  });
   await new Promise<void>((resolve, reject) => {
     server.stdout!.on('data', (d: Buffer) => d.toString().includes('fake SMTP server') && resolve());
     server.on('exit', (code) => reject(new Error(`mail server exited with ${code}`)));
@@ -59,7 +70,14 @@ beforeAll(async () => {
   process.env.QUORUM_MAIL_DIR = dir;
   s = await createStudyWithRaters(db, { raters: 2 });
   await db('studies').where({ id: s.studyId }).update({ calibration_min_ac1: 0.8, calibration_min_sensitivity: 0.85 });
-  for (const id of s.raterIds) await db('rater_certifications').insert({ study_id: s.studyId, user_id: id, passed: true, certified_by: s.leadId, certified_at: db.fn.now(3) });
+  for (const id of s.raterIds)
+    await db('rater_certifications').insert({
+      study_id: s.studyId,
+      user_id: id,
+      passed: true,
+      certified_by: s.leadId,
+      certified_at: db.fn.now(3),
+    });
   // both raters start perfect
   await calibrationRun(s.raterIds.map((r) => [r, REFERENCE]));
 });
@@ -79,7 +97,10 @@ describe('calibration drift e-mail', () => {
   it('a drop below the threshold e-mails the lead once, naming the rater and the statistic', async () => {
     const [good, drifting] = s.raterIds as [number, number];
     // the re-calibration: rater 2 now calls every component signal; pooled noise sensitivity 3/6 = 0.5 < 0.85
-    await calibrationRun([[good, REFERENCE], [drifting, REFERENCE.map(() => 'signal')]]);
+    await calibrationRun([
+      [good, REFERENCE],
+      [drifting, REFERENCE.map(() => 'signal')],
+    ]);
     const first = await sendDriftNotices(db);
     expect(first.sent).toEqual([{ leadId: s.leadId, raterId: drifting }]);
     const lead = await db('users').where({ id: s.leadId }).first('email');

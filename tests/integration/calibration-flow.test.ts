@@ -36,30 +36,71 @@ const NEW_RATER = ['noise', 'noise', 'signal', 'signal', 'signal', 'uncertain'];
 /** A ready run with a current decomposition of k components, the given raters assigned, and decisions (null = pending). */
 async function run(studyId: number, createdBy: number, raterIds: number[], decisions: Array<string | null>) {
   const [runId] = await db('runs').insert({
-    study_id: studyId, sub: `cal${uniqueSuffix()}`, ses: '1', task: 'rest', original_name: 'x_bold.nii.gz',
-    file_key: `runs/${uniqueSuffix()}.nii.gz`, sha256: `${uniqueSuffix()}${uniqueSuffix()}`.padEnd(64, '0'), size_bytes: 1, status: 'ready', created_by: createdBy,
+    study_id: studyId,
+    sub: `cal${uniqueSuffix()}`,
+    ses: '1',
+    task: 'rest',
+    original_name: 'x_bold.nii.gz',
+    file_key: `runs/${uniqueSuffix()}.nii.gz`,
+    sha256: `${uniqueSuffix()}${uniqueSuffix()}`.padEnd(64, '0'),
+    size_bytes: 1,
+    status: 'ready',
+    created_by: createdBy,
   });
-  const [decompositionId] = await db('decompositions').insert({ run_id: runId, parameters: toJson({}), k: decisions.length, is_current: true });
+  const [decompositionId] = await db('decompositions').insert({
+    run_id: runId,
+    parameters: toJson({}),
+    k: decisions.length,
+    is_current: true,
+  });
   const componentIds: number[] = [];
   for (let i = 0; i < decisions.length; i++) {
-    const [id] = await db('components').insert({ decomposition_id: decompositionId, idx: i + 1, variance_explained: 0.1, features: toJson({}) });
+    const [id] = await db('components').insert({
+      decomposition_id: decompositionId,
+      idx: i + 1,
+      variance_explained: 0.1,
+      features: toJson({}),
+    });
     componentIds.push(Number(id));
     const label = decisions[i];
-    await db('decisions').insert({ component_id: id, run_id: runId, label, noise_kind: label === 'noise' ? 'motion' : null, method: label ? 'majority' : 'pending' });
+    await db('decisions').insert({
+      component_id: id,
+      run_id: runId,
+      label,
+      noise_kind: label === 'noise' ? 'motion' : null,
+      method: label ? 'majority' : 'pending',
+    });
   }
   for (const r of raterIds) await db('assignments').insert({ run_id: runId, rater_id: r, submitted_at: db.fn.now(3) });
   return { runId: Number(runId), componentIds };
 }
 
-const p = (studyId: number, runId?: number): Record<string, string> => (runId ? { id: String(studyId), runId: String(runId) } : { id: String(studyId) });
+const p = (studyId: number, runId?: number): Record<string, string> =>
+  runId ? { id: String(studyId), runId: String(runId) } : { id: String(studyId) };
 const overview = (studyId: number) => callRoute(overviewRoute.GET, { url: `/api/studies/${studyId}/calibration`, params: p(studyId) });
-const mark = (studyId: number, runId: number) => callRoute(runsRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/calibration/runs`, params: p(studyId), body: { runId } });
+const mark = (studyId: number, runId: number) =>
+  callRoute(runsRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/calibration/runs`, params: p(studyId), body: { runId } });
 const reference = (studyId: number, runId: number, body: unknown) =>
-  callRoute(referencesRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/calibration/runs/${runId}/references`, params: p(studyId, runId), body });
+  callRoute(referencesRoute.POST, {
+    method: 'POST',
+    url: `/api/studies/${studyId}/calibration/runs/${runId}/references`,
+    params: p(studyId, runId),
+    body,
+  });
 const assign = (studyId: number, runId: number, raterId: number) =>
-  callRoute(ratersRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/calibration/runs/${runId}/raters`, params: p(studyId, runId), body: { raterId } });
+  callRoute(ratersRoute.POST, {
+    method: 'POST',
+    url: `/api/studies/${studyId}/calibration/runs/${runId}/raters`,
+    params: p(studyId, runId),
+    body: { raterId },
+  });
 const certify = (studyId: number, userId: number, passed: boolean) =>
-  callRoute(certRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/calibration/certifications`, params: p(studyId), body: { userId, passed } });
+  callRoute(certRoute.POST, {
+    method: 'POST',
+    url: `/api/studies/${studyId}/calibration/certifications`,
+    params: p(studyId),
+    body: { userId, passed },
+  });
 const me = (studyId: number) => callRoute(meRoute.GET, { url: `/api/studies/${studyId}/calibration/me`, params: p(studyId) });
 const audit = (studyId: number, action: string) => db('audit_log').where({ study_id: studyId, action }).orderBy('id');
 
@@ -91,25 +132,35 @@ describe('the calibration flow', () => {
     const adopted = await reference(s.studyId, r.runId, { adopt: true });
     expect(adopted.status).toBe(200);
     expect(adopted.json).toMatchObject({ referenced: 6 });
-    const refs = await db('reference_labels').whereIn('component_id', r.componentIds).orderBy('component_id').select('label', 'noise_kind', 'set_by');
+    const refs = await db('reference_labels')
+      .whereIn('component_id', r.componentIds)
+      .orderBy('component_id')
+      .select('label', 'noise_kind', 'set_by');
     expect(refs.map((x) => x.label)).toEqual(REFERENCE);
     expect(refs[0]).toMatchObject({ noise_kind: 'motion', set_by: s.leadId });
 
     // one component's reference set by hand (then back), validated against the label set
     expect((await reference(s.studyId, r.runId, { componentId: r.componentIds[3], label: 'bogus' })).status).toBe(422);
-    expect((await reference(s.studyId, r.runId, { componentId: r.componentIds[3], label: 'signal', noiseKind: 'motion' })).status).toBe(422);
+    expect((await reference(s.studyId, r.runId, { componentId: r.componentIds[3], label: 'signal', noiseKind: 'motion' })).status).toBe(
+      422,
+    );
     expect((await reference(s.studyId, r.runId, { componentId: r.componentIds[3], label: 'uncertain' })).status).toBe(200);
     expect((await reference(s.studyId, r.runId, { componentId: r.componentIds[3], label: 'signal' })).status).toBe(200);
 
     expect((await assign(s.studyId, r.runId, newRater)).status).toBe(200);
-    expect(await db('assignments').where({ run_id: r.runId, rater_id: newRater }).first('assigned_by')).toMatchObject({ assigned_by: s.leadId });
+    expect(await db('assignments').where({ run_id: r.runId, rater_id: newRater }).first('assigned_by')).toMatchObject({
+      assigned_by: s.leadId,
+    });
     expect((await assign(s.studyId, r.runId, newRater)).status).toBe(409);
     expect((await assign(s.studyId, r.runId, other.raterIds[0]!)).status).toBe(422);
 
     // not submitted yet: nothing is scored, passing is refused
-    for (let i = 0; i < 6; i++) await db('votes').insert({ component_id: r.componentIds[i], run_id: r.runId, rater_id: newRater, label: NEW_RATER[i] });
+    for (let i = 0; i < 6; i++)
+      await db('votes').insert({ component_id: r.componentIds[i], run_id: r.runId, rater_id: newRater, label: NEW_RATER[i] });
     expect((await certify(s.studyId, newRater, true)).status).toBe(409);
-    await db('assignments').where({ run_id: r.runId, rater_id: newRater }).update({ submitted_at: db.fn.now(3) });
+    await db('assignments')
+      .where({ run_id: r.runId, rater_id: newRater })
+      .update({ submitted_at: db.fn.now(3) });
 
     // Hand computation, rows = rater (signal, noise, uncertain), columns = reference:
     //   signal [2 1 0] · noise [0 2 0] · uncertain [1 0 0]; N = 6, p_o = 4/6,
@@ -148,8 +199,10 @@ describe('the calibration flow', () => {
     expect(parseJson<{ cohenKappa: { value: number } }>(row.scores)?.cohenKappa.value).toBeCloseTo(3 / 7, 12);
 
     for (const [action, target] of [
-      ['calibration.run_marked', String(r.runId)], ['calibration.reference_set', String(r.runId)],
-      ['calibration.assigned', String(r.runId)], ['calibration.certified', String(newRater)],
+      ['calibration.run_marked', String(r.runId)],
+      ['calibration.reference_set', String(r.runId)],
+      ['calibration.assigned', String(r.runId)],
+      ['calibration.certified', String(newRater)],
     ] as const) {
       const entries = await audit(s.studyId, action);
       expect(entries.length, action).toBeGreaterThan(0);
@@ -159,7 +212,9 @@ describe('the calibration flow', () => {
     // an admin may act too (and certify "not passed")
     actAs(admin);
     expect((await certify(s.studyId, newRater, false)).status).toBe(200);
-    expect(Boolean((await db('rater_certifications').where({ study_id: s.studyId, user_id: newRater }).first('passed')).passed)).toBe(false);
+    expect(Boolean((await db('rater_certifications').where({ study_id: s.studyId, user_id: newRater }).first('passed')).passed)).toBe(
+      false,
+    );
   });
 });
 
@@ -184,7 +239,11 @@ describe('refusals', () => {
     expect((await certify(s.studyId, s.raterIds[0]!, true)).status).toBe(404);
     expect((await me(s.studyId)).status).toBe(403); // a lead has no votes.write
     expect(Boolean((await db('runs').where({ id: r.runId }).first('is_calibration')).is_calibration)).toBe(false);
-    expect(await db('audit_log').where({ target_type: 'run', target_id: String(r.runId) }).andWhere('action', 'like', 'calibration.%')).toHaveLength(0);
+    expect(
+      await db('audit_log')
+        .where({ target_type: 'run', target_id: String(r.runId) })
+        .andWhere('action', 'like', 'calibration.%'),
+    ).toHaveLength(0);
   });
 
   it('adopting references while decisions are pending → 409 naming them; a run not marked → 409', async () => {

@@ -26,12 +26,27 @@ let s: { leadId: number; studyId: number; raterIds: number[] };
 
 async function readyRun(isCalibration: boolean, k = REFERENCE.length) {
   const [runId] = await db('runs').insert({
-    study_id: s.studyId, sub: `g${uniqueSuffix()}`, task: 'rest', original_name: 'x_bold.nii.gz', file_key: `runs/${uniqueSuffix()}.nii.gz`,
-    sha256: `${uniqueSuffix()}`.padEnd(64, '0'), size_bytes: 1, status: 'ready', is_calibration: isCalibration, created_by: s.leadId,
+    study_id: s.studyId,
+    sub: `g${uniqueSuffix()}`,
+    task: 'rest',
+    original_name: 'x_bold.nii.gz',
+    file_key: `runs/${uniqueSuffix()}.nii.gz`,
+    sha256: `${uniqueSuffix()}`.padEnd(64, '0'),
+    size_bytes: 1,
+    status: 'ready',
+    is_calibration: isCalibration,
+    created_by: s.leadId,
   });
   const [decompositionId] = await db('decompositions').insert({ run_id: runId, parameters: toJson({}), k, is_current: true });
   const ids: number[] = [];
-  for (let i = 0; i < k; i++) ids.push(Number((await db('components').insert({ decomposition_id: decompositionId, idx: i + 1, variance_explained: 0.1, features: toJson({}) }))[0]));
+  for (let i = 0; i < k; i++)
+    ids.push(
+      Number(
+        (
+          await db('components').insert({ decomposition_id: decompositionId, idx: i + 1, variance_explained: 0.1, features: toJson({}) })
+        )[0],
+      ),
+    );
   return { runId: Number(runId), ids };
 }
 
@@ -40,10 +55,15 @@ beforeAll(async () => {
   const [a, b] = s.raterIds as [number, number, number];
   const cal = await readyRun(true);
   // reference kinds: two motion components and one noise component without a kind
-  for (const [i, id] of cal.ids.entries()) await db('reference_labels').insert({ component_id: id, label: REFERENCE[i], noise_kind: i < 2 ? 'motion' : null, set_by: s.leadId });
-  for (const [rater, labels] of [[a, REFERENCE], [b, REFERENCE.map(() => 'signal')]] as const) {
+  for (const [i, id] of cal.ids.entries())
+    await db('reference_labels').insert({ component_id: id, label: REFERENCE[i], noise_kind: i < 2 ? 'motion' : null, set_by: s.leadId });
+  for (const [rater, labels] of [
+    [a, REFERENCE],
+    [b, REFERENCE.map(() => 'signal')],
+  ] as const) {
     await db('assignments').insert({ run_id: cal.runId, rater_id: rater, submitted_at: db.fn.now(3) });
-    for (const [i, id] of cal.ids.entries()) await db('votes').insert({ component_id: id, run_id: cal.runId, rater_id: rater, label: labels[i] });
+    for (const [i, id] of cal.ids.entries())
+      await db('votes').insert({ component_id: id, run_id: cal.runId, rater_id: rater, label: labels[i] });
   }
 });
 afterAll(async () => closeDb());
@@ -51,12 +71,31 @@ afterAll(async () => closeDb());
 describe('calibration threshold', () => {
   it('a lead sets it; a value outside 0–1 is refused with a message', async () => {
     actAs(s.leadId);
-    const bad = await callRoute(thresholdRoute.PUT, { method: 'PUT', url: '/', params: { id: String(s.studyId) }, body: { minAc1: 1.5, minSensitivity: null } });
+    const bad = await callRoute(thresholdRoute.PUT, {
+      method: 'PUT',
+      url: '/',
+      params: { id: String(s.studyId) },
+      body: { minAc1: 1.5, minSensitivity: null },
+    });
     expect(bad.status).toBe(422);
-    const ok = await callRoute(thresholdRoute.PUT, { method: 'PUT', url: '/', params: { id: String(s.studyId) }, body: { minAc1: 0.8, minSensitivity: 0.85 } });
+    const ok = await callRoute(thresholdRoute.PUT, {
+      method: 'PUT',
+      url: '/',
+      params: { id: String(s.studyId) },
+      body: { minAc1: 0.8, minSensitivity: 0.85 },
+    });
     expect(ok.json).toEqual({ minAc1: 0.8, minSensitivity: 0.85, setName: null, recalibrationWeeks: null });
     actAs(s.raterIds[0]!);
-    expect((await callRoute(thresholdRoute.PUT, { method: 'PUT', url: '/', params: { id: String(s.studyId) }, body: { minAc1: 0, minSensitivity: 0 } })).status).toBe(403);
+    expect(
+      (
+        await callRoute(thresholdRoute.PUT, {
+          method: 'PUT',
+          url: '/',
+          params: { id: String(s.studyId) },
+          body: { minAc1: 0, minSensitivity: 0 },
+        })
+      ).status,
+    ).toBe(403);
   });
 
   it('automatic assignment gives a live run only to the rater who reached it', async () => {
@@ -69,9 +108,15 @@ describe('calibration threshold', () => {
   it('a manual assignment of a rater under the threshold is refused and says why', async () => {
     const live = await readyRun(false, 3);
     const lead = { id: s.leadId, role: 'lead' as const, name: 'Lead' };
-    await expect(addRaterToRun({ user: lead as never, runId: live.runId, raterId: s.raterIds[1]! })).rejects.toThrow(/noise sensitivity 0\.00 is below 0\.85/);
-    await expect(addRaterToRun({ user: lead as never, runId: live.runId, raterId: s.raterIds[2]! })).rejects.toThrow(/has not submitted a calibration run/);
-    await expect(addRaterToRun({ user: lead as never, runId: live.runId, raterId: s.raterIds[0]! })).resolves.toMatchObject({ raterId: s.raterIds[0] });
+    await expect(addRaterToRun({ user: lead as never, runId: live.runId, raterId: s.raterIds[1]! })).rejects.toThrow(
+      /noise sensitivity 0\.00 is below 0\.85/,
+    );
+    await expect(addRaterToRun({ user: lead as never, runId: live.runId, raterId: s.raterIds[2]! })).rejects.toThrow(
+      /has not submitted a calibration run/,
+    );
+    await expect(addRaterToRun({ user: lead as never, runId: live.runId, raterId: s.raterIds[0]! })).resolves.toMatchObject({
+      raterId: s.raterIds[0],
+    });
   });
 
   it('the lead’s overview shows each rater’s gate and noise sensitivity per reference kind', async () => {
@@ -81,18 +126,38 @@ describe('calibration threshold', () => {
     expect(o.recalibrationWeeks).toBeNull();
     const b = o.raters.find((r) => r.id === s.raterIds[1])!;
     expect(b.gate).toMatchObject({ gated: true, passes: false });
-    expect(b.byKind).toEqual([{ kind: 'motion', n: 2, detected: 0, sensitivity: { value: 0, n: 2 } }, { kind: 'unspecified', n: 1, detected: 0, sensitivity: { value: 0, n: 1 } }]);
+    expect(b.byKind).toEqual([
+      { kind: 'motion', n: 2, detected: 0, sensitivity: { value: 0, n: 2 } },
+      { kind: 'unspecified', n: 1, detected: 0, sensitivity: { value: 0, n: 1 } },
+    ]);
     expect(o.raters.find((r) => r.id === s.raterIds[0])!.gate).toEqual({ gated: true, passes: true, reason: null });
   });
 
   it('a rater sees their result on a submitted calibration run component by component, with the lead’s reason; not before submitting', async () => {
     const { calibrationResult } = await import('@/lib/db/queries/calibration');
     const cal = await db('runs').where({ study_id: s.studyId, is_calibration: true }).first('id');
-    const comps = await db('components as c').join('decompositions as d', 'd.id', 'c.decomposition_id').where('d.run_id', cal.id).orderBy('c.idx').select('c.id');
-    await db('decisions').insert({ component_id: comps[0].id, run_id: cal.id, label: 'noise', noise_kind: 'motion', method: 'reconciled', reason: 'ring at the brain outline' });
+    const comps = await db('components as c')
+      .join('decompositions as d', 'd.id', 'c.decomposition_id')
+      .where('d.run_id', cal.id)
+      .orderBy('c.idx')
+      .select('c.id');
+    await db('decisions').insert({
+      component_id: comps[0].id,
+      run_id: cal.id,
+      label: 'noise',
+      noise_kind: 'motion',
+      method: 'reconciled',
+      reason: 'ring at the brain outline',
+    });
     const r = await calibrationResult({ studyId: s.studyId, runId: cal.id, raterId: s.raterIds[1]! });
     expect(r!.components).toHaveLength(6);
-    expect(r!.components[0]).toMatchObject({ idx: 1, myLabel: 'signal', referenceLabel: 'noise', referenceKind: 'motion', reason: 'ring at the brain outline' });
+    expect(r!.components[0]).toMatchObject({
+      idx: 1,
+      myLabel: 'signal',
+      referenceLabel: 'noise',
+      referenceKind: 'motion',
+      reason: 'ring at the brain outline',
+    });
     // rater C has no submitted assignment on it: no result, so no reference labels leak
     expect(await calibrationResult({ studyId: s.studyId, runId: cal.id, raterId: s.raterIds[2]! })).toBeNull();
   });
@@ -106,7 +171,18 @@ describe('calibration threshold', () => {
     actAs(s.leadId);
     expect((await callRoute(unmarkRoute.DELETE, { method: 'DELETE', url: '/', params })).json).toEqual({ runId: cal.id, unmarked: true });
     expect((await callRoute(unmarkRoute.DELETE, { method: 'DELETE', url: '/', params })).status).toBe(409);
-    expect(Number((await db('reference_labels as rl').join('components as c', 'c.id', 'rl.component_id').join('decompositions as d', 'd.id', 'c.decomposition_id').where('d.run_id', cal.id).count({ n: '*' }).first())?.n)).toBe(6);
+    expect(
+      Number(
+        (
+          await db('reference_labels as rl')
+            .join('components as c', 'c.id', 'rl.component_id')
+            .join('decompositions as d', 'd.id', 'c.decomposition_id')
+            .where('d.run_id', cal.id)
+            .count({ n: '*' })
+            .first()
+        )?.n,
+      ),
+    ).toBe(6);
     const audit = await db('audit_log').where({ action: 'calibration.run_unmarked', target_id: cal.id }).first('detail');
     const detail = parseJson<{ scoresBefore: { raterId: number; gwetAC1: number | null }[] }>(audit.detail)!;
     expect(detail.scoresBefore.find((x) => x.raterId === s.raterIds[0])!.gwetAC1).toBe(1);
@@ -117,7 +193,12 @@ describe('calibration threshold', () => {
 
   it('without a threshold every rater is eligible again', async () => {
     actAs(s.leadId);
-    await callRoute(thresholdRoute.PUT, { method: 'PUT', url: '/', params: { id: String(s.studyId) }, body: { minAc1: null, minSensitivity: null } });
+    await callRoute(thresholdRoute.PUT, {
+      method: 'PUT',
+      url: '/',
+      params: { id: String(s.studyId) },
+      body: { minAc1: null, minSensitivity: null },
+    });
     const live = await readyRun(false, 3);
     expect((await assignRaters(db, { runId: live.runId })).raterIds).toHaveLength(3);
   });

@@ -45,8 +45,16 @@ let mail: ChildProcess;
 
 async function calibrationRun() {
   const [runId] = await db('runs').insert({
-    study_id: s.studyId, sub: `r${uniqueSuffix()}`, task: 'rest', original_name: 'x_bold.nii.gz', file_key: `runs/${uniqueSuffix()}.nii.gz`,
-    sha256: `${uniqueSuffix()}`.padEnd(64, '0'), size_bytes: 1, status: 'ready', is_calibration: true, created_by: s.leadId,
+    study_id: s.studyId,
+    sub: `r${uniqueSuffix()}`,
+    task: 'rest',
+    original_name: 'x_bold.nii.gz',
+    file_key: `runs/${uniqueSuffix()}.nii.gz`,
+    sha256: `${uniqueSuffix()}`.padEnd(64, '0'),
+    size_bytes: 1,
+    status: 'ready',
+    is_calibration: true,
+    created_by: s.leadId,
   });
   const [d] = await db('decompositions').insert({ run_id: runId, parameters: toJson({}), k: REFERENCE.length, is_current: true });
   const ids: number[] = [];
@@ -61,7 +69,10 @@ async function calibrationRun() {
 /** The rater's votes on the calibration run, submitted at `at` (as the desk's submit leaves them). */
 async function rate(rater: number, labels: string[], at: Date) {
   for (const [i, id] of cal.ids.entries()) {
-    await db('votes').insert({ component_id: id, run_id: cal.runId, rater_id: rater, label: labels[i] }).onConflict(['component_id', 'rater_id']).merge(['label']);
+    await db('votes')
+      .insert({ component_id: id, run_id: cal.runId, rater_id: rater, label: labels[i] })
+      .onConflict(['component_id', 'rater_id'])
+      .merge(['label']);
   }
   const a = await db('assignments').where({ run_id: cal.runId, rater_id: rater }).first('id');
   if (a) await db('assignments').where({ id: a.id }).update({ submitted_at: at, first_submitted_at: at });
@@ -80,7 +91,14 @@ beforeAll(async () => {
   await rate(due, REFERENCE, new Date(NOW.getTime() - 5 * WEEK));
   await rate(recent, REFERENCE, new Date(NOW.getTime() - 2 * WEEK));
   await rate(uncertified, REFERENCE, new Date(NOW.getTime() - 9 * WEEK));
-  for (const id of [due, recent]) await db('rater_certifications').insert({ study_id: s.studyId, user_id: id, passed: true, certified_by: s.leadId, certified_at: db.fn.now(3) });
+  for (const id of [due, recent])
+    await db('rater_certifications').insert({
+      study_id: s.studyId,
+      user_id: id,
+      passed: true,
+      certified_by: s.leadId,
+      certified_at: db.fn.now(3),
+    });
 });
 
 afterAll(async () => {
@@ -107,7 +125,9 @@ describe('the named set and the re-calibration interval (PUT calibration/thresho
   it('stores the name and "every 4 weeks", queues the daily check, and the gate names the set', async () => {
     actAs(s.leadId);
     const res = await callRoute(thresholdRoute.PUT, {
-      method: 'PUT', url: '/', params: { id: String(s.studyId) },
+      method: 'PUT',
+      url: '/',
+      params: { id: String(s.studyId) },
       body: { minAc1: 0.8, minSensitivity: 0.85, setName: '  Autumn reference set ', recalibrationWeeks: 4 },
     });
     expect(res.status).toBe(200);
@@ -116,8 +136,12 @@ describe('the named set and the re-calibration interval (PUT calibration/thresho
     const newcomer = s.raterIds[2]!;
     // a rater who has not submitted on the set is told which set
     await db('assignments').where({ run_id: cal.runId, rater_id: newcomer }).update({ submitted_at: null });
-    expect((await calibrationGate({ studyId: s.studyId, raterId: newcomer })).reason).toBe('has not submitted a run of the calibration set “Autumn reference set” yet');
-    await db('assignments').where({ run_id: cal.runId, rater_id: newcomer }).update({ submitted_at: new Date(NOW.getTime() - 9 * WEEK) });
+    expect((await calibrationGate({ studyId: s.studyId, raterId: newcomer })).reason).toBe(
+      'has not submitted a run of the calibration set “Autumn reference set” yet',
+    );
+    await db('assignments')
+      .where({ run_id: cal.runId, rater_id: newcomer })
+      .update({ submitted_at: new Date(NOW.getTime() - 9 * WEEK) });
   });
 });
 
@@ -128,30 +152,45 @@ describe('re-calibration every N weeks', () => {
     // exactly at 4 weeks it is due; a minute before, not
     const at = (await db('assignments').where({ run_id: cal.runId, rater_id: s.raterIds[0] }).first('submitted_at')).submitted_at as Date;
     expect((await dueRecalibrations({ now: new Date(at.getTime() + 4 * WEEK) })).some((d) => d.raterId === s.raterIds[0])).toBe(true);
-    expect((await dueRecalibrations({ now: new Date(at.getTime() + 4 * WEEK - 60_000) })).some((d) => d.raterId === s.raterIds[0])).toBe(false);
+    expect((await dueRecalibrations({ now: new Date(at.getTime() + 4 * WEEK - 60_000) })).some((d) => d.raterId === s.raterIds[0])).toBe(
+      false,
+    );
   });
 
   it('assigns the set again once: the finished round is kept, the votes cleared, the run back in the rater’s queue', async () => {
     const [due] = s.raterIds as [number];
-    const before = await db('votes').where({ run_id: cal.runId, rater_id: due }).orderBy('component_id').select('component_id as componentId', 'label', 'noise_kind as noiseKind');
+    const before = await db('votes')
+      .where({ run_id: cal.runId, rater_id: due })
+      .orderBy('component_id')
+      .select('component_id as componentId', 'label', 'noise_kind as noiseKind');
     expect(before.length).toBeGreaterThan(0);
     const first = await assignDueRecalibrations(db, { now: NOW });
-    expect(first.started.filter((x) => x.studyId === s.studyId)).toEqual([{ studyId: s.studyId, raterId: due, round: 2, runIds: [cal.runId] }]);
+    expect(first.started.filter((x) => x.studyId === s.studyId)).toEqual([
+      { studyId: s.studyId, raterId: due, round: 2, runIds: [cal.runId] },
+    ]);
     const a = await db('assignments').where({ run_id: cal.runId, rater_id: due }).select('submitted_at', 'due_at');
     expect(a).toHaveLength(1);
     expect(a[0].submitted_at).toBeNull();
     expect(new Date(a[0].due_at).getTime() - NOW.getTime()).toBe(14 * 24 * 3600 * 1000);
     expect(await db('votes').where({ run_id: cal.runId, rater_id: due }).count({ n: '*' }).first()).toEqual({ n: 0 });
-    const rounds = await db('calibration_rounds').where({ study_id: s.studyId, rater_id: due }).select('round', 'set_name', 'components', 'ac1', 'sensitivity');
+    const rounds = await db('calibration_rounds')
+      .where({ study_id: s.studyId, rater_id: due })
+      .select('round', 'set_name', 'components', 'ac1', 'sensitivity');
     expect(rounds).toEqual([{ round: 1, set_name: 'Autumn reference set', components: 6, ac1: 1, sensitivity: 1 }]);
     // the cleared votes are kept with the round: nothing a rater saved is lost
     const kept = await db('calibration_rounds').where({ study_id: s.studyId, rater_id: due, round: 1 }).first('votes');
-    const keptVotes = (typeof kept.votes === 'string' ? JSON.parse(kept.votes) : kept.votes) as Array<{ componentId: number; label: string; noiseKind: string | null }>;
+    const keptVotes = (typeof kept.votes === 'string' ? JSON.parse(kept.votes) : kept.votes) as Array<{
+      componentId: number;
+      label: string;
+      noiseKind: string | null;
+    }>;
     expect(keptVotes.map(({ componentId, label, noiseKind }) => ({ componentId, label, noiseKind }))).toEqual(before);
     // while the new round is open, the finished one still stands: no loss of live work
     expect(await calibrationGate({ studyId: s.studyId, raterId: due })).toEqual({ gated: true, passes: true, reason: null });
     const queue = await listQueueForRater({ raterId: due });
-    expect(queue.filter((q) => q.runId === cal.runId).map((q) => ({ cal: q.isCalibration, submitted: q.submittedAt }))).toEqual([{ cal: true, submitted: null }]);
+    expect(queue.filter((q) => q.runId === cal.runId).map((q) => ({ cal: q.isCalibration, submitted: q.submittedAt }))).toEqual([
+      { cal: true, submitted: null },
+    ]);
     const audit = await db('audit_log').where({ study_id: s.studyId, action: 'calibration.recalibration_assigned' }).select('target_id');
     expect(audit.map((x) => Number(x.target_id))).toEqual([due]);
 
@@ -173,7 +212,11 @@ describe('re-calibration every N weeks', () => {
 
   it('a second round below the threshold shows in the history after the first, and e-mails the lead', async () => {
     const [due] = s.raterIds as [number];
-    await rate(due, REFERENCE.map(() => 'signal'), new Date(NOW.getTime() + 60_000));
+    await rate(
+      due,
+      REFERENCE.map(() => 'signal'),
+      new Date(NOW.getTime() + 60_000),
+    );
     const h = await calibrationRounds({ studyId: s.studyId, userId: due });
     expect(h.map((r) => ({ round: r.round, closed: r.closed, ac1: r.ac1, sensitivity: r.sensitivity, components: r.components }))).toEqual([
       { round: 1, closed: true, ac1: 1, sensitivity: 1, components: 6 },
@@ -191,11 +234,15 @@ describe('re-calibration every N weeks', () => {
   });
 
   it('the recalibrate job runs in the worker and queues itself for the next day', async () => {
-    await db('jobs').where({ kind: 'recalibrate', status: 'queued' }).update({ run_after: db.fn.now(3) });
+    await db('jobs')
+      .where({ kind: 'recalibrate', status: 'queued' })
+      .update({ run_after: db.fn.now(3) });
     const quiet = { info() {}, warn() {}, error() {} };
     const job = await claimJob(db, { workerId: 'inproc', leaseMs: 60_000, kinds: ['recalibrate'] });
     expect(job?.kind).toBe('recalibrate');
-    expect(await runClaimedJob(db, job!, { workerId: 'inproc', leaseMs: 60_000, kinds: jobKinds, logger: quiet, retryBaseMs: 0 })).toBe('succeeded');
+    expect(await runClaimedJob(db, job!, { workerId: 'inproc', leaseMs: 60_000, kinds: jobKinds, logger: quiet, retryBaseMs: 0 })).toBe(
+      'succeeded',
+    );
     const next = await db('jobs').where({ kind: 'recalibrate', status: 'queued' }).select('id', 'run_after');
     expect(next).toHaveLength(1);
     expect(new Date(next[0].run_after).getTime()).toBeGreaterThan(Date.now());
@@ -204,7 +251,12 @@ describe('re-calibration every N weeks', () => {
   it('a certification in a study with an interval queues the daily check again when it was cancelled', async () => {
     await db('jobs').where({ kind: 'recalibrate', status: 'queued' }).update({ status: 'cancelled' });
     actAs(s.leadId);
-    const res = await callRoute(certRoute.POST, { method: 'POST', url: '/', params: { id: String(s.studyId) }, body: { userId: s.raterIds[0], passed: true } });
+    const res = await callRoute(certRoute.POST, {
+      method: 'POST',
+      url: '/',
+      params: { id: String(s.studyId) },
+      body: { userId: s.raterIds[0], passed: true },
+    });
     expect(res.status, JSON.stringify(res.json)).toBe(200);
     expect(await db('jobs').where({ kind: 'recalibrate', status: 'queued' }).count({ n: '*' }).first()).toEqual({ n: 1 });
   });

@@ -35,10 +35,18 @@ else if (!running()) {
 if (skipWhy) console.warn(`cluster-slurm tests skipped: ${skipWhy}`);
 
 const slurmEnv = { SLURM_CONF: conf };
-const scontrol = (id: string) => execFileSync('scontrol', ['show', 'job', '-o', id], { env: { ...process.env, ...slurmEnv }, encoding: 'utf8' });
-const squeueAll = () => execFileSync('squeue', ['-h', '-t', 'all', '-o', '%i %j'], { env: { ...process.env, ...slurmEnv }, encoding: 'utf8' }).split('\n').filter(Boolean).map((l) => l.split(' ') as [string, string]);
+const scontrol = (id: string) =>
+  execFileSync('scontrol', ['show', 'job', '-o', id], { env: { ...process.env, ...slurmEnv }, encoding: 'utf8' });
+const squeueAll = () =>
+  execFileSync('squeue', ['-h', '-t', 'all', '-o', '%i %j'], { env: { ...process.env, ...slurmEnv }, encoding: 'utf8' })
+    .split('\n')
+    .filter(Boolean)
+    .map((l) => l.split(' ') as [string, string]);
 /** Names of the cluster jobs Slurm knows, leaving out those it knew before (earlier runs of this file reuse Quorum job ids while Slurm keeps ended jobs for MinJobAge). */
-const jobNames = (before: ReadonlySet<string> = new Set()) => squeueAll().filter(([id]) => !before.has(id)).map(([, name]) => name);
+const jobNames = (before: ReadonlySet<string> = new Set()) =>
+  squeueAll()
+    .filter(([id]) => !before.has(id))
+    .map(([, name]) => name);
 const knownIds = () => new Set(squeueAll().map(([id]) => id));
 
 let uploads: Awaited<ReturnType<typeof useTempUploads>>;
@@ -67,7 +75,10 @@ function slurmWorker(extra: Record<string, string> = {}, args: string[] = ['--on
 /** A setup line that holds the cluster job until the test writes the gate file. */
 const gateLine = (gate: string) => `while [ ! -e ${gate} ]; do sleep 0.2; done`;
 
-const jobRow = (id: number) => db('jobs').where({ id }).first('status', 'message', 'stage', 'cluster_job_id', 'cluster_name', 'cluster_state', 'cluster_node', 'executor');
+const jobRow = (id: number) =>
+  db('jobs')
+    .where({ id })
+    .first('status', 'message', 'stage', 'cluster_job_id', 'cluster_name', 'cluster_state', 'cluster_node', 'executor');
 
 beforeAll(async () => {
   uploads = await useTempUploads();
@@ -140,65 +151,84 @@ describe.skipIf(skipWhy !== null)('decompose through Slurm', () => {
     const { jobId } = await queueDecomposition(db, { runId });
     const w = slurmWorker({ QUORUM_SLURM_SETUP: gateLine(path.join(uploads.dir, 'never')) });
     // the runs table's words while the cluster job runs: node and elapsed time
-    const seen = await waitFor(async () => {
-      const r = await jobRow(jobId);
-      return r?.cluster_state === 'RUNNING' && /^Running on \S+ for \d+:\d\d \(cluster job \d+\)/.test(r.message ?? '') ? r : null;
-    }, { timeoutMs: 120_000, everyMs: 100 });
+    const seen = await waitFor(
+      async () => {
+        const r = await jobRow(jobId);
+        return r?.cluster_state === 'RUNNING' && /^Running on \S+ for \d+:\d\d \(cluster job \d+\)/.test(r.message ?? '') ? r : null;
+      },
+      { timeoutMs: 120_000, everyMs: 100 },
+    );
     expect(await cancelJob(db, jobId)).toBe('cancelling');
     const exit = await w.exited;
     expect(exit.code, w.lines.join('\n')).toBe(0);
-    const after = await waitFor(async () => {
-      const out = scontrol(seen.cluster_job_id);
-      return /JobState=CANCELLED/.test(out) ? out : null;
-    }, { timeoutMs: 60_000, everyMs: 200 });
+    const after = await waitFor(
+      async () => {
+        const out = scontrol(seen.cluster_job_id);
+        return /JobState=CANCELLED/.test(out) ? out : null;
+      },
+      { timeoutMs: 60_000, everyMs: 200 },
+    );
     expect(after).toMatch(/JobState=CANCELLED/);
     expect((await jobRow(jobId)).cluster_state).toBe('CANCELLED');
     expect((await db('runs').where({ id: runId }).first('status')).status).toBe('cancelled');
     expect(w.lines.join('\n')).toMatch(new RegExp(`cancelled cluster job ${seen.cluster_job_id}`));
   });
 
-  it('a worker killed while its cluster job runs: a new worker re-attaches, never submits again, and imports once', { timeout: 300_000 }, async () => {
-    const { runId } = await createPhantomRun(db, { size: 'tiny', raters: 1 });
-    const { jobId } = await queueDecomposition(db, { runId });
-    const gate = path.join(uploads.dir, `gate-${jobId}`);
-    const lease = { QUORUM_JOB_LEASE_MS: '1500', QUORUM_SLURM_SETUP: gateLine(gate) };
-    const before = knownIds();
-    const first = slurmWorker(lease, []);
-    const r1 = await waitFor(async () => {
-      const r = await jobRow(jobId);
-      return r?.cluster_state === 'RUNNING' ? r : null;
-    }, { timeoutMs: 120_000, everyMs: 100 });
-    first.child.kill('SIGKILL');
-    await first.exited;
+  it(
+    'a worker killed while its cluster job runs: a new worker re-attaches, never submits again, and imports once',
+    { timeout: 300_000 },
+    async () => {
+      const { runId } = await createPhantomRun(db, { size: 'tiny', raters: 1 });
+      const { jobId } = await queueDecomposition(db, { runId });
+      const gate = path.join(uploads.dir, `gate-${jobId}`);
+      const lease = { QUORUM_JOB_LEASE_MS: '1500', QUORUM_SLURM_SETUP: gateLine(gate) };
+      const before = knownIds();
+      const first = slurmWorker(lease, []);
+      const r1 = await waitFor(
+        async () => {
+          const r = await jobRow(jobId);
+          return r?.cluster_state === 'RUNNING' ? r : null;
+        },
+        { timeoutMs: 120_000, everyMs: 100 },
+      );
+      first.child.kill('SIGKILL');
+      await first.exited;
 
-    const second = slurmWorker(lease);
-    await waitFor(async () => second.lines.some((l) => l.includes(`re-attached to cluster job ${r1.cluster_job_id}`)), { timeoutMs: 60_000, everyMs: 100 });
-    await writeFile(gate, '');
-    const exit = await second.exited;
-    expect(exit.code, second.lines.join('\n')).toBe(0);
+      const second = slurmWorker(lease);
+      await waitFor(async () => second.lines.some((l) => l.includes(`re-attached to cluster job ${r1.cluster_job_id}`)), {
+        timeoutMs: 60_000,
+        everyMs: 100,
+      });
+      await writeFile(gate, '');
+      const exit = await second.exited;
+      expect(exit.code, second.lines.join('\n')).toBe(0);
 
-    const job = await getJob(db, jobId);
-    expect(job?.status, job?.message ?? '').toBe('succeeded');
-    expect((job!.result as { clusterJobId: string }).clusterJobId).toBe(r1.cluster_job_id);
-    expect(job!.attempts).toBe(2); // the lost attempt and the re-attached one
-    // one submission: Slurm knows one job by this job's name
-    expect(jobNames().filter((n) => n === r1.cluster_name)).toHaveLength(1);
-    expect(jobNames(before).filter((n) => n.startsWith(`quorum-j${jobId}-`))).toHaveLength(1);
-    expect(second.lines.join('\n')).not.toMatch(/submitted as cluster job/);
-    expect(await db('decompositions').where({ run_id: runId })).toHaveLength(1);
-    expect((await db('runs').where({ id: runId }).first('status')).status).toBe('ready');
-    expect(existsSync(gate)).toBe(true);
-  });
+      const job = await getJob(db, jobId);
+      expect(job?.status, job?.message ?? '').toBe('succeeded');
+      expect((job!.result as { clusterJobId: string }).clusterJobId).toBe(r1.cluster_job_id);
+      expect(job!.attempts).toBe(2); // the lost attempt and the re-attached one
+      // one submission: Slurm knows one job by this job's name
+      expect(jobNames().filter((n) => n === r1.cluster_name)).toHaveLength(1);
+      expect(jobNames(before).filter((n) => n.startsWith(`quorum-j${jobId}-`))).toHaveLength(1);
+      expect(second.lines.join('\n')).not.toMatch(/submitted as cluster job/);
+      expect(await db('decompositions').where({ run_id: runId })).toHaveLength(1);
+      expect((await db('runs').where({ id: runId }).first('status')).status).toBe('ready');
+      expect(existsSync(gate)).toBe(true);
+    },
+  );
 
   it('a job cancelled while its worker was dead: the next worker cancels the orphaned cluster job', { timeout: 300_000 }, async () => {
     const { runId } = await createPhantomRun(db, { size: 'tiny', raters: 1 });
     const { jobId } = await queueDecomposition(db, { runId });
     const env = { QUORUM_JOB_LEASE_MS: '1500', QUORUM_SLURM_SETUP: gateLine(path.join(uploads.dir, 'never')) };
     const first = slurmWorker(env, []);
-    const r1 = await waitFor(async () => {
-      const r = await jobRow(jobId);
-      return r?.cluster_state === 'RUNNING' ? r : null;
-    }, { timeoutMs: 120_000, everyMs: 100 });
+    const r1 = await waitFor(
+      async () => {
+        const r = await jobRow(jobId);
+        return r?.cluster_state === 'RUNNING' ? r : null;
+      },
+      { timeoutMs: 120_000, everyMs: 100 },
+    );
     first.child.kill('SIGKILL');
     await first.exited;
     await cancelJob(db, jobId);
@@ -206,7 +236,12 @@ describe.skipIf(skipWhy !== null)('decompose through Slurm', () => {
     const exit = await second.exited;
     expect(exit.code, second.lines.join('\n')).toBe(0);
     expect(second.lines.join('\n')).toContain(`cancelled cluster job ${r1.cluster_job_id}`);
-    expect(await waitFor(async () => (/JobState=CANCELLED/.test(scontrol(r1.cluster_job_id)) ? true : null), { timeoutMs: 60_000, everyMs: 200 })).toBe(true);
+    expect(
+      await waitFor(async () => (/JobState=CANCELLED/.test(scontrol(r1.cluster_job_id)) ? true : null), {
+        timeoutMs: 60_000,
+        everyMs: 200,
+      }),
+    ).toBe(true);
     expect((await jobRow(jobId)).cluster_state).toBe('CANCELLED');
     expect((await db('runs').where({ id: runId }).first('status')).status).toBe('cancelled');
   });
@@ -223,7 +258,10 @@ describe.skipIf(skipWhy !== null)('denoise through Slurm', () => {
     // components 1 and 3 decided noise, the rest signal: the noise list is [1, 3]
     for (const c of await db('components').where({ decomposition_id: dec.id }).select('id', 'idx')) {
       const label = c.idx === 1 || c.idx === 3 ? 'noise' : 'signal';
-      await db('decisions').insert({ component_id: c.id, run_id: runId, label, method: 'unanimous' }).onConflict('component_id').merge(['label', 'method']);
+      await db('decisions')
+        .insert({ component_id: c.id, run_id: runId, label, method: 'unanimous' })
+        .onConflict('component_id')
+        .merge(['label', 'method']);
     }
 
     const onCluster = await enqueueDenoise({ payload: { runId, mode: 'partial', includeMotion: false }, studyId, createdBy: leadId });
@@ -249,7 +287,10 @@ describe.skipIf(skipWhy !== null)('denoise through Slurm', () => {
     const b = lj!.result as DenoiseResult;
 
     expect(a.key).not.toBe(b.key);
-    const sha = async (key: string) => createHash('sha256').update(await readFile(pathFor(key))).digest('hex');
+    const sha = async (key: string) =>
+      createHash('sha256')
+        .update(await readFile(pathFor(key)))
+        .digest('hex');
     // the files on disk are byte for byte the same, and each matches the checksum its job recorded
     expect(await sha(a.key)).toBe(await sha(b.key));
     expect(await sha(a.key)).toBe(a.sha256);
@@ -261,42 +302,50 @@ describe.skipIf(skipWhy !== null)('denoise through Slurm', () => {
 describe.skipIf(skipWhy !== null)('runs that arrive together go as one job array', () => {
   // QUORUM_SLURM_ARRAY_MAX = the number of runs and a wait far longer than any test: the array is
   // sent when the last run joins it, not when a timer fires, so no verdict depends on speed
-  const arrayEnv = (n: number, extra: Record<string, string> = {}) => ({ QUORUM_SLURM_ARRAY_MAX: String(n), QUORUM_SLURM_ARRAY_WAIT_MS: '600000', ...extra });
+  const arrayEnv = (n: number, extra: Record<string, string> = {}) => ({
+    QUORUM_SLURM_ARRAY_MAX: String(n),
+    QUORUM_SLURM_ARRAY_WAIT_MS: '600000',
+    ...extra,
+  });
   const taskOf = (out: string) => /ArrayJobId=(\d+) ArrayTaskId=(\d+)/.exec(out)?.slice(1, 3);
 
-  it('three runs queued together: one sbatch --array with three tasks, each run ready with one set of components', { timeout: 400_000 }, async () => {
-    const runs = [];
-    for (let i = 0; i < 3; i++) runs.push(await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 11 + i }));
-    const jobIds = [];
-    for (const r of runs) jobIds.push((await queueDecomposition(db, { runId: r.runId })).jobId);
-    const w = slurmWorker(arrayEnv(3));
-    const exit = await w.exited;
-    expect(exit.code, w.lines.join('\n')).toBe(0);
+  it(
+    'three runs queued together: one sbatch --array with three tasks, each run ready with one set of components',
+    { timeout: 400_000 },
+    async () => {
+      const runs = [];
+      for (let i = 0; i < 3; i++) runs.push(await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 11 + i }));
+      const jobIds = [];
+      for (const r of runs) jobIds.push((await queueDecomposition(db, { runId: r.runId })).jobId);
+      const w = slurmWorker(arrayEnv(3));
+      const exit = await w.exited;
+      expect(exit.code, w.lines.join('\n')).toBe(0);
 
-    const rows = await Promise.all(jobIds.map((id) => jobRow(id)));
-    const ids = rows.map((r) => String(r.cluster_job_id));
-    const arrayId = ids[0]!.split('_')[0]!;
-    expect(ids.slice().sort()).toEqual([0, 1, 2].map((i) => `${arrayId}_${i}`));
-    // one submission: the worker said so once per task, all naming the same array of 3 tasks
-    expect(w.lines.filter((l) => /submitted as cluster job/.test(l))).toHaveLength(3);
-    expect(w.lines.filter((l) => l.includes(`of array ${arrayId}, 3 tasks`))).toHaveLength(3);
-    expect(new Set(rows.map((r) => String(r.cluster_name).split('#')[0])).size).toBe(1);
-    for (const [i, id] of jobIds.entries()) {
-      const job = await getJob(db, id);
-      expect(job?.status, job?.message ?? '').toBe('succeeded');
-      expect(rows[i]!.cluster_state).toBe('COMPLETED');
-      // Slurm's own record of the task: part of that array, completed
-      const out = scontrol(ids[i]!);
-      expect(taskOf(out)).toEqual([arrayId, ids[i]!.split('_')[1]]);
-      expect(out).toMatch(/JobState=COMPLETED .*ExitCode=0:0/);
-      expect((await db('runs').where({ id: runs[i]!.runId }).first('status')).status).toBe('ready');
-      const decs = await db('decompositions').where({ run_id: runs[i]!.runId });
-      expect(decs).toHaveLength(1);
-      const n = await db('components').where({ decomposition_id: decs[0].id }).count({ n: '*' }).first();
-      expect(Number(n!.n)).toBe(decs[0].k);
-      expect(decs[0].k).toBeGreaterThanOrEqual(2);
-    }
-  });
+      const rows = await Promise.all(jobIds.map((id) => jobRow(id)));
+      const ids = rows.map((r) => String(r.cluster_job_id));
+      const arrayId = ids[0]!.split('_')[0]!;
+      expect(ids.slice().sort()).toEqual([0, 1, 2].map((i) => `${arrayId}_${i}`));
+      // one submission: the worker said so once per task, all naming the same array of 3 tasks
+      expect(w.lines.filter((l) => /submitted as cluster job/.test(l))).toHaveLength(3);
+      expect(w.lines.filter((l) => l.includes(`of array ${arrayId}, 3 tasks`))).toHaveLength(3);
+      expect(new Set(rows.map((r) => String(r.cluster_name).split('#')[0])).size).toBe(1);
+      for (const [i, id] of jobIds.entries()) {
+        const job = await getJob(db, id);
+        expect(job?.status, job?.message ?? '').toBe('succeeded');
+        expect(rows[i]!.cluster_state).toBe('COMPLETED');
+        // Slurm's own record of the task: part of that array, completed
+        const out = scontrol(ids[i]!);
+        expect(taskOf(out)).toEqual([arrayId, ids[i]!.split('_')[1]]);
+        expect(out).toMatch(/JobState=COMPLETED .*ExitCode=0:0/);
+        expect((await db('runs').where({ id: runs[i]!.runId }).first('status')).status).toBe('ready');
+        const decs = await db('decompositions').where({ run_id: runs[i]!.runId });
+        expect(decs).toHaveLength(1);
+        const n = await db('components').where({ decomposition_id: decs[0].id }).count({ n: '*' }).first();
+        expect(Number(n!.n)).toBe(decs[0].k);
+        expect(decs[0].k).toBeGreaterThanOrEqual(2);
+      }
+    },
+  );
 
   it('cancelling one run of an array cancels only its task (scancel <array>_<task>)', { timeout: 400_000 }, async () => {
     const a = await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 21 });
@@ -305,10 +354,13 @@ describe.skipIf(skipWhy !== null)('runs that arrive together go as one job array
     const jb = (await queueDecomposition(db, { runId: b.runId })).jobId;
     const gate = path.join(uploads.dir, `gate-array-${ja}`);
     const w = slurmWorker(arrayEnv(2, { QUORUM_SLURM_SETUP: gateLine(gate) }));
-    const running = await waitFor(async () => {
-      const r = await Promise.all([jobRow(ja), jobRow(jb)]);
-      return r.every((x) => x?.cluster_state === 'RUNNING') ? r : null;
-    }, { timeoutMs: 120_000, everyMs: 100 });
+    const running = await waitFor(
+      async () => {
+        const r = await Promise.all([jobRow(ja), jobRow(jb)]);
+        return r.every((x) => x?.cluster_state === 'RUNNING') ? r : null;
+      },
+      { timeoutMs: 120_000, everyMs: 100 },
+    );
     const [ta, tb] = running.map((r) => String(r.cluster_job_id));
     expect(ta!.split('_')[0]).toBe(tb!.split('_')[0]);
     expect(await cancelJob(db, ja)).toBe('cancelling');
@@ -327,35 +379,50 @@ describe.skipIf(skipWhy !== null)('runs that arrive together go as one job array
 });
 
 describe.skipIf(skipWhy !== null)('re-attaching to array tasks', () => {
-  it('a worker killed while its array runs: the next worker re-attaches to each task, submits nothing, and imports each run once', { timeout: 400_000 }, async () => {
-    const a = await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 31 });
-    const b = await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 32 });
-    const jobIds = [(await queueDecomposition(db, { runId: a.runId })).jobId, (await queueDecomposition(db, { runId: b.runId })).jobId];
-    const gate = path.join(uploads.dir, `gate-reattach-${jobIds[0]}`);
-    const env = { QUORUM_SLURM_ARRAY_MAX: '2', QUORUM_SLURM_ARRAY_WAIT_MS: '600000', QUORUM_JOB_LEASE_MS: '1500', QUORUM_SLURM_SETUP: gateLine(gate) };
-    const first = slurmWorker(env, []);
-    const rows = await waitFor(async () => {
-      const r = await Promise.all(jobIds.map((id) => jobRow(id)));
-      return r.every((x) => x?.cluster_state === 'RUNNING') ? r : null;
-    }, { timeoutMs: 120_000, everyMs: 100 });
-    first.child.kill('SIGKILL');
-    await first.exited;
-    const tasks = rows.map((r) => String(r.cluster_job_id));
-    const arrayName = String(rows[0]!.cluster_name).split('#')[0]!;
+  it(
+    'a worker killed while its array runs: the next worker re-attaches to each task, submits nothing, and imports each run once',
+    { timeout: 400_000 },
+    async () => {
+      const a = await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 31 });
+      const b = await createPhantomRun(db, { size: 'tiny', raters: 1, seed: 32 });
+      const jobIds = [(await queueDecomposition(db, { runId: a.runId })).jobId, (await queueDecomposition(db, { runId: b.runId })).jobId];
+      const gate = path.join(uploads.dir, `gate-reattach-${jobIds[0]}`);
+      const env = {
+        QUORUM_SLURM_ARRAY_MAX: '2',
+        QUORUM_SLURM_ARRAY_WAIT_MS: '600000',
+        QUORUM_JOB_LEASE_MS: '1500',
+        QUORUM_SLURM_SETUP: gateLine(gate),
+      };
+      const first = slurmWorker(env, []);
+      const rows = await waitFor(
+        async () => {
+          const r = await Promise.all(jobIds.map((id) => jobRow(id)));
+          return r.every((x) => x?.cluster_state === 'RUNNING') ? r : null;
+        },
+        { timeoutMs: 120_000, everyMs: 100 },
+      );
+      first.child.kill('SIGKILL');
+      await first.exited;
+      const tasks = rows.map((r) => String(r.cluster_job_id));
+      const arrayName = String(rows[0]!.cluster_name).split('#')[0]!;
 
-    const second = slurmWorker(env);
-    await waitFor(async () => tasks.every((t) => second.lines.some((l) => l.includes(`re-attached to cluster job ${t}`))), { timeoutMs: 60_000, everyMs: 100 });
-    await writeFile(gate, '');
-    const exit = await second.exited;
-    expect(exit.code, second.lines.join('\n')).toBe(0);
-    expect(second.lines.join('\n')).not.toMatch(/submitted as cluster job/);
-    // Slurm knows the array's two tasks, submitted once (the second worker sent nothing)
-    expect(jobNames().filter((n) => n === arrayName)).toHaveLength(2);
-    for (const [i, id] of jobIds.entries()) {
-      const job = await getJob(db, id);
-      expect(job?.status, job?.message ?? '').toBe('succeeded');
-      expect((job!.result as { clusterJobId: string }).clusterJobId).toBe(tasks[i]);
-      expect(await db('decompositions').where({ run_id: [a, b][i]!.runId })).toHaveLength(1);
-    }
-  });
+      const second = slurmWorker(env);
+      await waitFor(async () => tasks.every((t) => second.lines.some((l) => l.includes(`re-attached to cluster job ${t}`))), {
+        timeoutMs: 60_000,
+        everyMs: 100,
+      });
+      await writeFile(gate, '');
+      const exit = await second.exited;
+      expect(exit.code, second.lines.join('\n')).toBe(0);
+      expect(second.lines.join('\n')).not.toMatch(/submitted as cluster job/);
+      // Slurm knows the array's two tasks, submitted once (the second worker sent nothing)
+      expect(jobNames().filter((n) => n === arrayName)).toHaveLength(2);
+      for (const [i, id] of jobIds.entries()) {
+        const job = await getJob(db, id);
+        expect(job?.status, job?.message ?? '').toBe('succeeded');
+        expect((job!.result as { clusterJobId: string }).clusterJobId).toBe(tasks[i]);
+        expect(await db('decompositions').where({ run_id: [a, b][i]!.runId })).toHaveLength(1);
+      }
+    },
+  );
 });

@@ -32,7 +32,8 @@ async function vote(raterId: number, componentId: number, label: string, noiseKi
   });
 }
 
-const decisionOf = (componentId: number) => db('decisions').where({ component_id: componentId }).first('label', 'noise_kind as noiseKind', 'method', 'reason');
+const decisionOf = (componentId: number) =>
+  db('decisions').where({ component_id: componentId }).first('label', 'noise_kind as noiseKind', 'method', 'reason');
 
 beforeAll(async () => {
   const s = await createStudyWithRaters(db, { raters: 3, raters_per_run: 3, consensus_rule: 'majority' });
@@ -90,10 +91,21 @@ describe('reconcile', () => {
   });
 
   it('records the lead decision with its reason and audit entry, and keeps it when votes change', async () => {
-    const result = await recordLeadDecision({ studyId, leadId, input: { componentId: components[2], label: 'noise', noiseKind: 'csf', reason: 'Ventricular pattern, 0.2 Hz peak' } });
+    const result = await recordLeadDecision({
+      studyId,
+      leadId,
+      input: { componentId: components[2], label: 'noise', noiseKind: 'csf', reason: 'Ventricular pattern, 0.2 Hz peak' },
+    });
     expect(result).toMatchObject({ method: 'reconciled' });
-    expect(await decisionOf(components[2])).toMatchObject({ method: 'reconciled', label: 'noise', noiseKind: 'csf', reason: 'Ventricular pattern, 0.2 Hz peak' });
-    const audit = await db('audit_log').where({ action: 'decision.reconcile', target_id: String(components[2]) }).first();
+    expect(await decisionOf(components[2])).toMatchObject({
+      method: 'reconciled',
+      label: 'noise',
+      noiseKind: 'csf',
+      reason: 'Ventricular pattern, 0.2 Hz peak',
+    });
+    const audit = await db('audit_log')
+      .where({ action: 'decision.reconcile', target_id: String(components[2]) })
+      .first();
     expect(audit).toMatchObject({ actor_id: leadId, study_id: studyId, target_type: 'component' });
     expect(audit.created_at).toBeInstanceOf(Date);
     await vote(raters[0], components[2], 'noise', 'csf');
@@ -102,16 +114,38 @@ describe('reconcile', () => {
   });
 
   it('an override of an automatic decision is recorded as such', async () => {
-    const result = await recordLeadDecision({ studyId, leadId, input: { componentId: components[1], label: 'noise', noiseKind: 'scanner', reason: 'Slice pattern visible in mosaic' } });
+    const result = await recordLeadDecision({
+      studyId,
+      leadId,
+      input: { componentId: components[1], label: 'noise', noiseKind: 'scanner', reason: 'Slice pattern visible in mosaic' },
+    });
     expect(result).toMatchObject({ method: 'override' });
-    expect(await db('audit_log').where({ action: 'decision.override', target_id: String(components[1]) }).first()).toBeTruthy();
+    expect(
+      await db('audit_log')
+        .where({ action: 'decision.override', target_id: String(components[1]) })
+        .first(),
+    ).toBeTruthy();
   });
 
   it('refuses labels and kinds outside the study, and components of other studies', async () => {
-    await expect(recordLeadDecision({ studyId, leadId, input: { componentId: components[0], label: 'artefact', reason: 'test reason' } })).rejects.toMatchObject({ code: 'validation' });
-    await expect(recordLeadDecision({ studyId, leadId, input: { componentId: components[0], label: 'noise', noiseKind: 'eyes', reason: 'test reason' } })).rejects.toMatchObject({ code: 'validation' });
+    await expect(
+      recordLeadDecision({ studyId, leadId, input: { componentId: components[0], label: 'artefact', reason: 'test reason' } }),
+    ).rejects.toMatchObject({ code: 'validation' });
+    await expect(
+      recordLeadDecision({
+        studyId,
+        leadId,
+        input: { componentId: components[0], label: 'noise', noiseKind: 'eyes', reason: 'test reason' },
+      }),
+    ).rejects.toMatchObject({ code: 'validation' });
     const other = await createStudyWithRaters(db, { raters: 1 });
-    await expect(recordLeadDecision({ studyId: other.studyId, leadId: other.leadId, input: { componentId: components[0], label: 'noise', reason: 'test reason' } })).rejects.toMatchObject({ code: 'not_found' });
+    await expect(
+      recordLeadDecision({
+        studyId: other.studyId,
+        leadId: other.leadId,
+        input: { componentId: components[0], label: 'noise', reason: 'test reason' },
+      }),
+    ).rejects.toMatchObject({ code: 'not_found' });
   });
 });
 

@@ -76,7 +76,15 @@ beforeAll(async () => {
   await db.migrate.latest({ migrationSource });
   const s = await createStudyWithRaters(db, { raters: 1, raters_per_run: 1 });
   raterId = s.raterIds[0];
-  run = await createReadyRun(db, { studyId: s.studyId, createdBy: s.leadId, raterIds: [raterId], size: 'tiny', seed: 5, components: 6, sub: 'outage' });
+  run = await createReadyRun(db, {
+    studyId: s.studyId,
+    createdBy: s.leadId,
+    raterIds: [raterId],
+    size: 'tiny',
+    seed: 5,
+    components: 6,
+    sub: 'outage',
+  });
 });
 afterAll(async () => {
   await closeDb().catch(() => undefined);
@@ -130,7 +138,10 @@ describe('MariaDB stops during voting', () => {
     expectDatabaseDown(await vote(c2, 'noise'), 'a new vote');
     expectDatabaseDown(await vote(c0, 'signal'), 'a changed vote');
     actAs(raterId);
-    expectDatabaseDown(await callRoute(votesRoute.GET, { url: `/api/runs/${run.runId}/votes`, params: { id: String(run.runId) } }), 'the desk\'s read');
+    expectDatabaseDown(
+      await callRoute(votesRoute.GET, { url: `/api/runs/${run.runId}/votes`, params: { id: String(run.runId) } }),
+      "the desk's read",
+    );
 
     await dbsh('start');
     const back = await vote(c2, 'noise');
@@ -148,7 +159,9 @@ describe('MariaDB stops during voting', () => {
     const inFlight = vote(c0, 'uncertain');
     await waitUntil(async () => {
       // a connection sees its own user's threads: the vote's statement is running (waiting) on another one
-      const [rows] = await blocker.raw("SELECT COUNT(*) AS n FROM information_schema.processlist WHERE command = 'Query' AND id <> CONNECTION_ID() AND info LIKE '%votes%'");
+      const [rows] = await blocker.raw(
+        "SELECT COUNT(*) AS n FROM information_schema.processlist WHERE command = 'Query' AND id <> CONNECTION_ID() AND info LIKE '%votes%'",
+      );
       return Number(rows[0].n) > 0;
     }, 'the vote waits on the row lock');
 
@@ -167,7 +180,11 @@ describe('MariaDB stops during voting', () => {
   it('the desk keeps a vote that got 503 in its outbox and sends it once the database is back', async () => {
     const store = new Map<string, string>();
     vi.stubGlobal('window', {
-      localStorage: { getItem: (k: string) => store.get(k) ?? null, setItem: (k: string, v: string) => store.set(k, v), removeItem: (k: string) => store.delete(k) },
+      localStorage: {
+        getItem: (k: string) => store.get(k) ?? null,
+        setItem: (k: string, v: string) => store.set(k, v),
+        removeItem: (k: string) => store.delete(k),
+      },
     });
     try {
       const key = outbox.outboxKey(raterId, run.runId);

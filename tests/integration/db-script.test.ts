@@ -13,7 +13,12 @@ import path from 'node:path';
 const root = path.resolve(__dirname, '../..');
 const script = path.join(root, 'scripts/db.sh');
 
-interface Result { code: number; stdout: string; stderr: string; out: string }
+interface Result {
+  code: number;
+  stdout: string;
+  stderr: string;
+  out: string;
+}
 
 /** Runs db.sh with extra environment; never rejects. */
 function dbsh(args: string[], env: Record<string, string | undefined> = {}): Promise<Result> {

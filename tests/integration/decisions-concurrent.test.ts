@@ -29,7 +29,12 @@ beforeAll(async () => {
   const second = await createUser(db, { role: 'lead', name: 'Second Lead' });
   await addMember(db, { studyId, userId: second, studyRole: 'lead' });
   leads = [s.leadId, second];
-  const runId = await createRun(db, { studyId, createdBy: s.leadId, file: { fileKey: 'runs/2026-12/concurrent.nii.gz', sha256: randomBytes(32).toString('hex'), sizeBytes: 1 }, sub: 'cc' });
+  const runId = await createRun(db, {
+    studyId,
+    createdBy: s.leadId,
+    file: { fileKey: 'runs/2026-12/concurrent.nii.gz', sha256: randomBytes(32).toString('hex'), sizeBytes: 1 },
+    sub: 'cc',
+  });
   await db('runs').where({ id: runId }).update({ status: 'ready' });
   const [decompositionId] = await db('decompositions').insert({ run_id: runId, parameters: toJson({}), k: 3, is_current: true });
   components = [];
@@ -50,7 +55,12 @@ afterAll(closeDb);
 const decide = (leadId: number, body: Record<string, unknown>) => {
   actAs(leadId);
   // the session is read synchronously when the call starts, so the next actAs does not leak into it
-  return callRoute(decisionsRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/decisions`, params: { id: String(studyId) }, body });
+  return callRoute(decisionsRoute.POST, {
+    method: 'POST',
+    url: `/api/studies/${studyId}/decisions`,
+    params: { id: String(studyId) },
+    body,
+  });
 };
 
 async function versionSeen(leadId: number, componentId: number): Promise<number> {
@@ -58,7 +68,7 @@ async function versionSeen(leadId: number, componentId: number): Promise<number>
   const res = await callRoute(reconcileRoute.GET, { url: `/api/studies/${studyId}/reconcile`, params: { id: String(studyId) } });
   expect(res.status).toBe(200);
   const item = (res.json.items as { componentId: number; decision: { version: number } }[]).find((i) => i.componentId === componentId);
-  expect(item, 'the component waits in both leads\' reconcile lists').toBeTruthy();
+  expect(item, "the component waits in both leads' reconcile lists").toBeTruthy();
   return item!.decision.version;
 }
 
@@ -79,7 +89,10 @@ describe('two leads deciding the same component', () => {
     expect(loser.json.error.message).not.toMatch(/ER_|SQL|at .*\.ts/);
     const stored = await db('decisions').where({ component_id: c }).first('label', 'method', 'decided_by as decidedBy');
     expect(stored).toMatchObject({ label: winnerLabel, method: 'reconciled', decidedBy: winner === a ? leads[0] : leads[1] });
-    const audit = await db('audit_log').where({ target_type: 'component', target_id: String(c) }).orderBy('id').select('action', 'actor_id as actorId');
+    const audit = await db('audit_log')
+      .where({ target_type: 'component', target_id: String(c) })
+      .orderBy('id')
+      .select('action', 'actor_id as actorId');
     expect(audit.map((e) => e.action).sort()).toEqual(['decision.conflict', 'decision.reconcile']);
     expect(new Set(audit.map((e) => e.actorId))).toEqual(new Set(leads));
   });
@@ -87,7 +100,13 @@ describe('two leads deciding the same component', () => {
   it('from a stale list: refused although nobody is deciding at the same moment; a fresh look then overrides', async () => {
     const c = components[1];
     const stale = await versionSeen(leads[1], c);
-    const first = await decide(leads[0], { componentId: c, label: 'noise', noiseKind: 'motion', reason: 'Rim at the brain edge', baseVersion: await versionSeen(leads[0], c) });
+    const first = await decide(leads[0], {
+      componentId: c,
+      label: 'noise',
+      noiseKind: 'motion',
+      reason: 'Rim at the brain edge',
+      baseVersion: await versionSeen(leads[0], c),
+    });
     expect(first.status).toBe(200);
     const late = await decide(leads[1], { componentId: c, label: 'signal', reason: 'Looks like a network to me', baseVersion: stale });
     expect(late.status).toBe(409);
@@ -95,7 +114,10 @@ describe('two leads deciding the same component', () => {
     expect(await db('decisions').where({ component_id: c }).first('label')).toEqual({ label: 'noise' });
     // the second lead reloads (include=all lists decided components) and overrides knowingly
     actAs(leads[1]);
-    const all = await callRoute(reconcileRoute.GET, { url: `/api/studies/${studyId}/reconcile?include=all`, params: { id: String(studyId) } });
+    const all = await callRoute(reconcileRoute.GET, {
+      url: `/api/studies/${studyId}/reconcile?include=all`,
+      params: { id: String(studyId) },
+    });
     const fresh = all.json.items.find((i: { componentId: number }) => i.componentId === c).decision.version;
     const again = await decide(leads[1], { componentId: c, label: 'signal', reason: 'Looks like a network to me', baseVersion: fresh });
     expect(again.status).toBe(200);

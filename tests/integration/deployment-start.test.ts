@@ -24,7 +24,7 @@ const run = promisify(execFile);
 afterAll(closeDb);
 
 describe('demo seed on restart', () => {
-  it("keeps a deactivated account deactivated, a changed role, a changed password and a removed membership", async () => {
+  it('keeps a deactivated account deactivated, a changed role, a changed password and a removed membership', async () => {
     const first = await seedDemo(db);
     const rater4 = first.users['rater4@fernhollow.example'];
     const observer = first.users['observer@fernhollow.example'];
@@ -32,7 +32,9 @@ describe('demo seed on restart', () => {
     const membership = await db('study_members').where({ study_id: first.studyId, user_id: rater4 }).first();
     try {
       await db('users').where({ id: rater4 }).update({ active: false, role: 'observer' });
-      await db('users').where({ id: observer }).update({ password_hash: await hashPassword('the-admin-changed-it') });
+      await db('users')
+        .where({ id: observer })
+        .update({ password_hash: await hashPassword('the-admin-changed-it') });
       await db('study_members').where({ study_id: first.studyId, user_id: rater4 }).delete();
 
       const second = await seedDemo(db);
@@ -43,8 +45,10 @@ describe('demo seed on restart', () => {
       expect(await verifyPassword(DEMO_PASSWORD, hash)).toBe(false);
       expect(await db('study_members').where({ study_id: first.studyId, user_id: rater4 }).first()).toBeUndefined();
     } finally {
-      for (const row of before) await db('users').where({ id: row.id }).update({ role: row.role, active: row.active, password_hash: row.password_hash });
-      if (membership && !(await db('study_members').where({ study_id: first.studyId, user_id: rater4 }).first())) await db('study_members').insert(membership);
+      for (const row of before)
+        await db('users').where({ id: row.id }).update({ role: row.role, active: row.active, password_hash: row.password_hash });
+      if (membership && !(await db('study_members').where({ study_id: first.studyId, user_id: rater4 }).first()))
+        await db('study_members').insert(membership);
     }
   });
 });
@@ -65,7 +69,12 @@ describe('/api/health', () => {
       delete process.env.NEXTAUTH_SECRET;
       const missing = await get();
       expect(missing.status).toBe(503);
-      expect(await missing.json()).toMatchObject({ ready: false, secret: 'missing or weak', database: 'reachable', reasons: [expect.stringMatching(/NEXTAUTH_SECRET/)] });
+      expect(await missing.json()).toMatchObject({
+        ready: false,
+        secret: 'missing or weak',
+        database: 'reachable',
+        reasons: [expect.stringMatching(/NEXTAUTH_SECRET/)],
+      });
       process.env.NEXTAUTH_SECRET = 'e2b7c0d94f1a46b38c5e7d2f9a0b1c3d';
       const ok = await get();
       expect(ok.status).toBe(200);
@@ -94,7 +103,13 @@ describe('npm start (scripts/serve.ts)', () => {
   const start = (env: Record<string, string>) =>
     run('node', ['--import', 'tsx', 'scripts/serve.ts'], {
       cwd: root,
-      env: { PATH: process.env.PATH ?? '', HOME: process.env.HOME ?? '', QUORUM_NEXT_DIST: '.no-build-here', NODE_ENV: 'production', ...env },
+      env: {
+        PATH: process.env.PATH ?? '',
+        HOME: process.env.HOME ?? '',
+        QUORUM_NEXT_DIST: '.no-build-here',
+        NODE_ENV: 'production',
+        ...env,
+      },
       timeout: 60_000,
     }).then(
       () => ({ code: 0, stderr: '' }),

@@ -26,7 +26,15 @@ let run: Awaited<ReturnType<typeof createReadyRun>>;
 
 beforeAll(async () => {
   study = await createStudyWithRaters(db, { raters: 1 });
-  run = await createReadyRun(db, { studyId: study.studyId, createdBy: study.leadId, raterIds: study.raterIds, size: 'tiny', seed: 7, components: 6, withMotion: false });
+  run = await createReadyRun(db, {
+    studyId: study.studyId,
+    createdBy: study.leadId,
+    raterIds: study.raterIds,
+    size: 'tiny',
+    seed: 7,
+    components: 6,
+    withMotion: false,
+  });
 });
 
 afterAll(async () => {
@@ -39,7 +47,9 @@ async function setReproducibility(values: number[]) {
   for (let i = 0; i < run.componentIds.length; i++) {
     const row = await db('components').where({ id: run.componentIds[i] }).first('features');
     const f = parseJson<Record<string, number | null>>(row.features, {})!;
-    await db('components').where({ id: run.componentIds[i] }).update({ features: toJson({ ...f, reproducibility: values[i] }) });
+    await db('components')
+      .where({ id: run.componentIds[i] })
+      .update({ features: toJson({ ...f, reproducibility: values[i] }) });
   }
 }
 
@@ -48,7 +58,8 @@ describe('stored features', () => {
     const rows = await db('components').whereIn('id', run.componentIds).orderBy('idx').select('features');
     for (const r of rows) {
       const f = parseJson<Record<string, unknown>>(r.features, {})!;
-      for (const key of ['reproducibility', 'edgeFraction', 'clusterCount', 'mapThresholdZ', 'stepScore', 'trendR2', 'motionCorrelation']) expect(f, key).toHaveProperty(key);
+      for (const key of ['reproducibility', 'edgeFraction', 'clusterCount', 'mapThresholdZ', 'stepScore', 'trendR2', 'motionCorrelation'])
+        expect(f, key).toHaveProperty(key);
       // the default decomposition runs restarts, so every component has its index (0–1); a run
       // without restarts stores null (tests/unit/decomposition-cli.test.ts, --restarts 1)
       expect(typeof f.reproducibility).toBe('number');
@@ -90,7 +101,12 @@ describe('low reproducibility on the desk (study protocol)', () => {
       await saveVote({ user: rater(), runId: run.runId, componentId: c.id, change: { label: 'signal', baseVersion: 0 } });
     }
     await expect(submitRun({ user: rater(), runId: run.runId })).rejects.toThrow(/1 of 6 components are not labelled yet \(6\)/);
-    await saveVote({ user: rater(), runId: run.runId, componentId: desk.components[3]!.id, change: { label: 'noise', noiseKind: 'motion', baseVersion: 0 } });
+    await saveVote({
+      user: rater(),
+      runId: run.runId,
+      componentId: desk.components[3]!.id,
+      change: { label: 'noise', noiseKind: 'motion', baseVersion: 0 },
+    });
     const submitted = await submitRun({ user: rater(), runId: run.runId });
     expect(submitted.submittedAt).toBeTruthy();
     const pending = await listReconcileItems({ studyId: study.studyId, runId: run.runId, include: 'pending' });

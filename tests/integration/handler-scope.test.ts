@@ -31,7 +31,11 @@ beforeAll(async () => {
   studyId = await createStudy(db, { createdBy: people.lead });
   await addMember(db, { studyId, userId: people.lead, studyRole: 'lead' });
   await addMember(db, { studyId, userId: people.rater, studyRole: 'rater' });
-  runId = await createRun(db, { studyId, createdBy: people.lead, file: { fileKey: `runs/scope-test-${studyId}.nii.gz`, sha256: `${studyId}`.padStart(64, '0'), sizeBytes: 1 } });
+  runId = await createRun(db, {
+    studyId,
+    createdBy: people.lead,
+    file: { fileKey: `runs/scope-test-${studyId}.nii.gz`, sha256: `${studyId}`.padStart(64, '0'), sizeBytes: 1 },
+  });
 });
 
 afterAll(async () => {
@@ -40,11 +44,14 @@ afterAll(async () => {
 });
 
 const params = z.object({ id: z.coerce.number().int().positive() });
-const leadsOnly = handler({ permission: 'runs.read', scope: 'run', studyRule: 'lead', denied: 'looking at this as a non-lead', params }, async ({ access }) => ({
-  studyId: access.studyId,
-  runId: access.runId,
-  studyRole: access.studyRole,
-}));
+const leadsOnly = handler(
+  { permission: 'runs.read', scope: 'run', studyRule: 'lead', denied: 'looking at this as a non-lead', params },
+  async ({ access }) => ({
+    studyId: access.studyId,
+    runId: access.runId,
+    studyRole: access.studyRole,
+  }),
+);
 
 describe('scope: study', () => {
   it('a member gets the study; a non-member and a missing id get the same 404', async () => {
@@ -68,7 +75,11 @@ describe('scope: run, lead rule', () => {
     expect(lead.status).toBe(200);
     expect(lead.json).toEqual({ studyId, runId, studyRole: 'lead' });
     actAs(people.admin);
-    expect((await callRoute(leadsOnly, { url: `/api/runs/${runId}/x`, params: { id: String(runId) } })).json).toEqual({ studyId, runId, studyRole: null });
+    expect((await callRoute(leadsOnly, { url: `/api/runs/${runId}/x`, params: { id: String(runId) } })).json).toEqual({
+      studyId,
+      runId,
+      studyRole: null,
+    });
     actAs(people.rater);
     const rater = await callRoute(leadsOnly, { url: `/api/runs/${runId}/x`, params: { id: String(runId) } });
     expect(rater.status).toBe(403);

@@ -54,7 +54,34 @@ const ODD_STRINGS = [
   '<script>alert(1)</script>',
   '=cmd|"/c calc"!A1',
 ];
-const FIELD_NAMES = ['id', 'name', 'email', 'password', 'confirmPassword', 'token', 'role', 'label', 'noiseKind', 'note', 'reason', 'notes', 'componentId', 'runId', 'raterId', 'raterIds', 'baseVersion', 'description', 'studyRole', 'active', 'position', 'items', 'runs', 'sub', 'ses', 'task'];
+const FIELD_NAMES = [
+  'id',
+  'name',
+  'email',
+  'password',
+  'confirmPassword',
+  'token',
+  'role',
+  'label',
+  'noiseKind',
+  'note',
+  'reason',
+  'notes',
+  'componentId',
+  'runId',
+  'raterId',
+  'raterIds',
+  'baseVersion',
+  'description',
+  'studyRole',
+  'active',
+  'position',
+  'items',
+  'runs',
+  'sub',
+  'ses',
+  'task',
+];
 
 type Body = { what: string; type?: string; raw: string | Uint8Array<ArrayBuffer> };
 const json = (what: string, value: unknown): Body => ({ what, raw: JSON.stringify(value) });
@@ -72,7 +99,10 @@ const BODIES: Body[] = [
   json('a number', 42),
   json('a string', 'noise'),
   json('an array', [1, 2, 3]),
-  json('wrong types in every field', Object.fromEntries(FIELD_NAMES.map((k, i) => [k, [true, { $gt: 1 }, -1e309 === -Infinity ? 1e308 : 0, [], null][i % 5]]))),
+  json(
+    'wrong types in every field',
+    Object.fromEntries(FIELD_NAMES.map((k, i) => [k, [true, { $gt: 1 }, -1e309 === -Infinity ? 1e308 : 0, [], null][i % 5]])),
+  ),
   { what: 'prototype keys', raw: '{"__proto__": {"role": "admin", "isAdmin": true}, "constructor": {"prototype": {"x": 1}}, "extra": 1}' },
   json('unexpected fields only', { unexpected: 1, alsoUnexpected: { deep: [1, 2] } }),
   json('huge numbers', Object.fromEntries(FIELD_NAMES.map((k) => [k, 1e308]))),
@@ -80,20 +110,46 @@ const BODIES: Body[] = [
   { what: 'escaped lone surrogates in JSON', raw: `{${FIELD_NAMES.map((k) => `"${k}":"\\udfff\\ud800"`).join(',')}}` },
   { what: 'invalid UTF-8 bytes', raw: new Uint8Array([0x7b, 0x22, 0x6e, 0x22, 0x3a, 0x22, 0xff, 0xfe, 0xc3, 0x28, 0x22, 0x7d]) },
   { what: 'a form body', type: 'application/x-www-form-urlencoded', raw: 'label=noise&reason=%F0%9F%98%80&email=a%40b.c' },
-  { what: 'a multipart body', type: 'multipart/form-data; boundary=XyZ', raw: '--XyZ\r\nContent-Disposition: form-data; name="file"; filename="../../x.nii.gz"\r\n\r\nnot a nifti\r\n--XyZ--\r\n' },
+  {
+    what: 'a multipart body',
+    type: 'multipart/form-data; boundary=XyZ',
+    raw: '--XyZ\r\nContent-Disposition: form-data; name="file"; filename="../../x.nii.gz"\r\n\r\nnot a nifti\r\n--XyZ--\r\n',
+  },
   { what: 'JSON sent as text/plain', type: 'text/plain', raw: '{"label":"noise"}' },
 ];
-const PARAMS = ['999999999', '-1', '0', '1.5', '1e309', 'NaN', '99999999999999999999999', "1' OR 1=1", '..%2F..%2Fetc', '𝟙', LONE, 'x'.repeat(5_000)];
+const PARAMS = [
+  '999999999',
+  '-1',
+  '0',
+  '1.5',
+  '1e309',
+  'NaN',
+  '99999999999999999999999',
+  "1' OR 1=1",
+  '..%2F..%2Fetc',
+  '𝟙',
+  LONE,
+  'x'.repeat(5_000),
+];
 const QUERIES = [
   '',
-  "?runId=abc&include=%3Cscript%3E&noiseKind=%ED%A0%80%FF",
+  '?runId=abc&include=%3Cscript%3E&noiseKind=%ED%A0%80%FF',
   '?from=2026-99-99&to=not-a-date&limit=-5&offset=1e309&action=%00',
   `?q=${'x'.repeat(8_000)}&runId=1&runId=2`,
   '?__proto__[role]=admin&constructor=1',
 ];
 
 /** Internal text that must never reach a client: stacks, SQL and driver codes, file paths, raw JS errors. */
-const INTERNAL = [/\n\s+at \S+ \(|\bat \S+:\d+:\d+/, /\.(ts|js|mjs):\d+/, /node_modules/, /ECONN|ETIMEDOUT|EPIPE/, /\bER_[A-Z_]{3,}/, /\bSQL\b|syntax to use near|knex|mysql/i, /\/work\/|\/tmp\/|\/home\//, /TypeError|ReferenceError|SyntaxError|RangeError|Unexpected token|is not a function|Cannot read prop/];
+const INTERNAL = [
+  /\n\s+at \S+ \(|\bat \S+:\d+:\d+/,
+  /\.(ts|js|mjs):\d+/,
+  /node_modules/,
+  /ECONN|ETIMEDOUT|EPIPE/,
+  /\bER_[A-Z_]{3,}/,
+  /\bSQL\b|syntax to use near|knex|mysql/i,
+  /\/work\/|\/tmp\/|\/home\//,
+  /TypeError|ReferenceError|SyntaxError|RangeError|Unexpected token|is not a function|Cannot read prop/,
+];
 
 function paramsFor(segments: string[], value: string): Record<string, string | string[]> {
   return Object.fromEntries(segments.map((s) => (s.startsWith('...') ? [s.slice(3), [value]] : [s, value])));
@@ -126,10 +182,13 @@ let adminId: number;
 
 beforeAll(async () => {
   adminId = await createUser(db, { role: 'admin' });
-  for (const file of routeFiles().filter((f) => !SKIP.has(f)).sort()) {
+  for (const file of routeFiles()
+    .filter((f) => !SKIP.has(f))
+    .sort()) {
     const mod = (await import(path.join(API, file))) as Record<string, unknown>;
     const segments = [...file.matchAll(/\[([^\]]+)\]/g)].map((m) => m[1]);
-    for (const method of METHODS) if (typeof mod[method] === 'function') targets.push({ file, method, fn: mod[method] as RouteFn, segments });
+    for (const method of METHODS)
+      if (typeof mod[method] === 'function') targets.push({ file, method, fn: mod[method] as RouteFn, segments });
   }
 });
 afterAll(async () => {
@@ -156,7 +215,8 @@ describe('hostile inputs on every route', () => {
   it('path parameters and query strings: never a 5xx, never internal text', async () => {
     actAs(adminId);
     for (const t of targets) {
-      for (const value of t.segments.length ? PARAMS : []) check(t, `param ${value.slice(0, 20)}`, await send(t, { params: paramsFor(t.segments, value), body: { what: '{}', raw: '{}' } }));
+      for (const value of t.segments.length ? PARAMS : [])
+        check(t, `param ${value.slice(0, 20)}`, await send(t, { params: paramsFor(t.segments, value), body: { what: '{}', raw: '{}' } }));
       for (const query of QUERIES) check(t, `query ${query.slice(0, 40)}`, await send(t, { query, body: { what: '{}', raw: '{}' } }));
     }
     expect(problems).toEqual([]);

@@ -29,7 +29,8 @@ async function refusal(p: Promise<unknown>): Promise<AppError> {
   throw new Error('expected a refusal');
 }
 
-const send = (input: Parameters<typeof sendInvitation>[0]['input']) => sendInvitation({ user: lead, input, baseUrl: 'http://quorum.test', facility: 'Test Facility' });
+const send = (input: Parameters<typeof sendInvitation>[0]['input']) =>
+  sendInvitation({ user: lead, input, baseUrl: 'http://quorum.test', facility: 'Test Facility' });
 const fakeFile = () => ({ fileKey: 'runs/none.nii.gz', sha256: uniqueSuffix().padEnd(64, '0'), sizeBytes: 1 });
 
 beforeAll(async () => {
@@ -48,8 +49,12 @@ describe('an invitation obeys the membership rule', () => {
   it('the form schema refuses an observer account as a study rater, naming what to choose', () => {
     const r = inviteSchema.safeParse({ email: 'x@test.quorum.invalid', role: 'observer', studyId: study.studyId, studyRole: 'rater' });
     expect(r.success).toBe(false);
-    expect(r.error!.issues.find((i) => i.path[0] === 'studyRole')?.message).toContain('An observer account cannot be a study rater (it cannot vote)');
-    expect(inviteSchema.safeParse({ email: 'x@test.quorum.invalid', role: 'observer', studyId: study.studyId, studyRole: 'observer' }).success).toBe(true);
+    expect(r.error!.issues.find((i) => i.path[0] === 'studyRole')?.message).toContain(
+      'An observer account cannot be a study rater (it cannot vote)',
+    );
+    expect(
+      inviteSchema.safeParse({ email: 'x@test.quorum.invalid', role: 'observer', studyId: study.studyId, studyRole: 'observer' }).success,
+    ).toBe(true);
   });
 
   it('the use case refuses it too (422), and writes no invitation', async () => {
@@ -57,7 +62,12 @@ describe('an invitation obeys the membership rule', () => {
     const err = await refusal(send({ email, role: 'observer', studyId: study.studyId, studyRole: 'rater' }));
     expect(err.code).toBe('validation');
     expect(err.fields).toHaveProperty('studyRole');
-    expect(await db('invitations').where({ email }).count({ n: '*' }).then(([r]) => Number(r.n))).toBe(0);
+    expect(
+      await db('invitations')
+        .where({ email })
+        .count({ n: '*' })
+        .then(([r]) => Number(r.n)),
+    ).toBe(0);
   });
 });
 
@@ -89,7 +99,11 @@ describe('re-inviting and existing accounts say what happens', () => {
     const ask = await refusal(send({ email, role: 'observer' }));
     expect(ask.code).toBe('conflict');
     expect(ask.fields).toHaveProperty('replace');
-    expect(ask.message).toMatch(new RegExp(`An invitation to ${email} is still pending \\(Rater, study rater in .+; sent .+ UTC by .+\\)\\. Sending this one withdraws it, and the person is invited as Observer instead\\.`));
+    expect(ask.message).toMatch(
+      new RegExp(
+        `An invitation to ${email} is still pending \\(Rater, study rater in .+; sent .+ UTC by .+\\)\\. Sending this one withdraws it, and the person is invited as Observer instead\\.`,
+      ),
+    );
     const rows = await db('invitations').where({ email }).select('id', 'role', 'revoked_at');
     expect(rows).toHaveLength(1);
     expect(rows[0].revoked_at).toBeNull();
@@ -98,8 +112,13 @@ describe('re-inviting and existing accounts say what happens', () => {
     expect(replaced.outcome).toBe('replaced');
     expect(replaced.message).toContain('was withdrawn; a new invitation (Observer) is on its way');
     const after = await db('invitations').where({ email }).orderBy('id').select('id', 'role', 'revoked_at');
-    expect(after.map((r) => [r.role, r.revoked_at === null])).toEqual([['rater', false], ['observer', true]]);
-    const audit = await db('audit_log').where({ action: 'invitation.revoked', target_id: String(after[0].id) }).first('actor_id', 'detail');
+    expect(after.map((r) => [r.role, r.revoked_at === null])).toEqual([
+      ['rater', false],
+      ['observer', true],
+    ]);
+    const audit = await db('audit_log')
+      .where({ action: 'invitation.revoked', target_id: String(after[0].id) })
+      .first('actor_id', 'detail');
     const detail = typeof audit.detail === 'string' ? JSON.parse(audit.detail) : audit.detail;
     expect(audit.actor_id).toBe(study.leadId);
     expect(detail).toMatchObject({ email, reason: 'replaced', replacedBy: after[1].id, role: 'rater', studyRole: 'rater' });
@@ -110,9 +129,18 @@ describe('re-inviting and existing accounts say what happens', () => {
     await createUser(db, { role: 'rater', email });
     const r = await send({ email, role: 'rater', studyId: study.studyId, studyRole: 'rater' });
     expect(r.outcome).toBe('existing_account');
-    expect(r.message).toMatch(new RegExp(`^${email} already has an account, so no invitation was sent; they were e-mailed a reminder to sign in\\. To give them a place in .+, add them under the study's members\\.$`));
+    expect(r.message).toMatch(
+      new RegExp(
+        `^${email} already has an account, so no invitation was sent; they were e-mailed a reminder to sign in\\. To give them a place in .+, add them under the study's members\\.$`,
+      ),
+    );
     expect(r.message).not.toContain('on its way');
-    expect(await db('invitations').where({ email }).count({ n: '*' }).then(([x]) => Number(x.n))).toBe(0);
+    expect(
+      await db('invitations')
+        .where({ email })
+        .count({ n: '*' })
+        .then(([x]) => Number(x.n)),
+    ).toBe(0);
     const mail = await db('mail_outbox').where({ to_email: email }).first('subject', 'status');
     expect(mail.subject).toContain('you already have a Quorum account');
     expect(mail.status).toBe('queued'); // the worker's send-mail job sends it

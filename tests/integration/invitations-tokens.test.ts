@@ -41,7 +41,12 @@ async function rejection(p: Promise<unknown>): Promise<AppError> {
 beforeAll(async () => {
   passwordHash = await hashPassword('a-long-enough-password');
   adminId = await makeUser(addr('admin'), 'admin');
-  const [sid] = await db('studies').insert({ name: `Token study ${tag}`, created_by: adminId, label_set: '["signal","noise","uncertain"]', noise_kinds: '["motion"]' });
+  const [sid] = await db('studies').insert({
+    name: `Token study ${tag}`,
+    created_by: adminId,
+    label_set: '["signal","noise","uncertain"]',
+    noise_kinds: '["motion"]',
+  });
   studyId = Number(sid);
 });
 
@@ -99,13 +104,24 @@ describe('invitations', () => {
     const again = await rejection(acceptInvitation({ token: invite.token, name: 'Someone else', passwordHash }));
     expect(again.code).toBe('conflict');
     expect(again.message).toMatch(/already been used/);
-    const audit = await db('audit_log').where({ action: 'invitation.accepted', target_id: String(invite.id) }).first('actor_id');
+    const audit = await db('audit_log')
+      .where({ action: 'invitation.accepted', target_id: String(invite.id) })
+      .first('actor_id');
     expect(audit.actor_id).toBe(userId);
-    expect(await db('audit_log').where({ action: 'invitation.sent', target_id: String(invite.id) }).first('actor_id')).toEqual({ actor_id: adminId });
+    expect(
+      await db('audit_log')
+        .where({ action: 'invitation.sent', target_id: String(invite.id) })
+        .first('actor_id'),
+    ).toEqual({ actor_id: adminId });
   });
 
   it('refuses an expired link with the date and whom to ask', async () => {
-    const invite = await createInvitation({ email: addr('late'), role: 'observer', invitedBy: adminId, now: new Date(Date.now() - 8 * 24 * 3600 * 1000) });
+    const invite = await createInvitation({
+      email: addr('late'),
+      role: 'observer',
+      invitedBy: adminId,
+      now: new Date(Date.now() - 8 * 24 * 3600 * 1000),
+    });
     const link = await findLinkByToken({ token: invite.token, kind: 'invite' });
     const { state, message } = describeLink(link, 'invite');
     expect(state).toBe('expired');
@@ -113,7 +129,11 @@ describe('invitations', () => {
     expect(message).toContain(`ask admin-${tag}`);
     const err = await rejection(acceptInvitation({ token: invite.token, name: 'Late', passwordHash }));
     expect(err.code).toBe('conflict');
-    expect(await db('users').where({ email: addr('late') }).first('id')).toBeUndefined();
+    expect(
+      await db('users')
+        .where({ email: addr('late') })
+        .first('id'),
+    ).toBeUndefined();
   });
 
   it('a newer invitation withdraws the older one; withdrawn links are refused', async () => {
@@ -125,7 +145,11 @@ describe('invitations', () => {
     expect(await revokeInvitation({ id: second.id, actorId: adminId })).toBe(false);
     const err = await rejection(acceptInvitation({ token: second.token, name: 'X', passwordHash }));
     expect(err.message).toMatch(/withdrawn/);
-    expect(await db('audit_log').where({ action: 'invitation.revoked', target_id: String(second.id) }).first('id')).toBeTruthy();
+    expect(
+      await db('audit_log')
+        .where({ action: 'invitation.revoked', target_id: String(second.id) })
+        .first('id'),
+    ).toBeTruthy();
   });
 
   it('an unknown token is not found', async () => {
@@ -141,7 +165,11 @@ describe('invitations', () => {
       acceptInvitation({ token: invite.token, name: 'Two', passwordHash }),
     ]);
     expect(results.filter((r) => r.status === 'fulfilled')).toHaveLength(1);
-    expect(await db('users').where({ email: addr('race') }).count({ n: 'id' })).toEqual([{ n: 1 }]);
+    expect(
+      await db('users')
+        .where({ email: addr('race') })
+        .count({ n: 'id' }),
+    ).toEqual([{ n: 1 }]);
   });
 
   it('refuses when the address got an account in the meantime', async () => {
@@ -168,7 +196,11 @@ describe('password resets', () => {
     expect(await verifyPassword('the-new-password', password_hash)).toBe(true);
     const again = await rejection(completePasswordReset({ token: reset.token, passwordHash: newHash }));
     expect(again.message).toMatch(/already been used/);
-    expect(await db('audit_log').where({ action: 'password_reset.requested', target_id: String(userId) }).first('id')).toBeTruthy();
+    expect(
+      await db('audit_log')
+        .where({ action: 'password_reset.requested', target_id: String(userId) })
+        .first('id'),
+    ).toBeTruthy();
     expect(await db('audit_log').where({ action: 'password_reset.completed', actor_id: userId }).first('id')).toBeTruthy();
   });
 

@@ -67,7 +67,12 @@ describe('run progress while a worker decomposes', () => {
     };
     const job = await claimJob(db, { workerId: 'progress-test', leaseMs: 30_000, kinds: ['decompose'] });
     expect(job?.id).toBe(jobId);
-    const outcome = await runClaimedJob(db, job!, { workerId: 'progress-test', leaseMs: 30_000, kinds: { decompose: observed }, logger: { info() {}, warn() {}, error() {} } });
+    const outcome = await runClaimedJob(db, job!, {
+      workerId: 'progress-test',
+      leaseMs: 30_000,
+      kinds: { decompose: observed },
+      logger: { info() {}, warn() {}, error() {} },
+    });
     expect(outcome).toBe('succeeded');
 
     expect(seen.map((s) => s.job?.stage)).toEqual(expect.arrayContaining(['reading', 'masking', 'features', 'writing']));

@@ -127,7 +127,9 @@ describe('leases and progress', () => {
     await db('runs').where({ id: runId }).update({ status: 'processing' });
     const a = await job(runId, { maxAttempts: 2, runId });
     await claimJob(db, { workerId: 'dead', leaseMs: LEASE });
-    await db('jobs').where({ id: a }).update({ lease_expires_at: db.raw('NOW(3) - INTERVAL 1 SECOND') });
+    await db('jobs')
+      .where({ id: a })
+      .update({ lease_expires_at: db.raw('NOW(3) - INTERVAL 1 SECOND') });
     expect(await requeueExpiredLeases(db)).toEqual({ requeued: [a], failed: [] });
     expect(await getJob(db, a)).toMatchObject({ status: 'queued', attempts: 1, leaseOwner: null });
     expect((await db('runs').where({ id: runId }).first()).status).toBe('queued');
@@ -135,7 +137,9 @@ describe('leases and progress', () => {
     expect(await reportProgress(db, a, 'dead', { stage: 'ica', percent: 80 })).toBe(false);
 
     await claimJob(db, { workerId: 'dead2', leaseMs: LEASE });
-    await db('jobs').where({ id: a }).update({ lease_expires_at: db.raw('NOW(3) - INTERVAL 1 SECOND') });
+    await db('jobs')
+      .where({ id: a })
+      .update({ lease_expires_at: db.raw('NOW(3) - INTERVAL 1 SECOND') });
     expect(await requeueExpiredLeases(db)).toEqual({ requeued: [], failed: [a] });
     const j = await getJob(db, a);
     expect(j).toMatchObject({ status: 'failed', attempts: 2 });
@@ -167,7 +171,9 @@ describe('failJob', () => {
     expect(j!.runAfter.getTime()).toBeGreaterThan(Date.now() + 30_000);
     // not due yet
     expect(await claimJob(db, { workerId: 'w1', leaseMs: LEASE })).toBeNull();
-    await db('jobs').where({ id }).update({ run_after: db.raw('NOW(3)') });
+    await db('jobs')
+      .where({ id })
+      .update({ run_after: db.raw('NOW(3)') });
     await claimJob(db, { workerId: 'w1', leaseMs: LEASE });
     expect(await failJob(db, id, 'w2', { message: 'not mine' })).toBe('lost');
     expect(await failJob(db, id, 'w1', { message: 'Disk hiccup again.', error: 'stack 2' })).toBe('failed');

@@ -55,7 +55,9 @@ describe('settings', () => {
   it('default to the local fake outside production and insist on SMTP_HOST in production', () => {
     expect(smtpSettings({})).toMatchObject({ host: '127.0.0.1', port: 2525, local: true });
     expect(smtpSettings({ QUORUM_MAIL_PORT: '2600' }).port).toBe(2600);
-    expect(smtpSettings({ SMTP_HOST: 'smtp.fernhollow.example', SMTP_USER: 'q', SMTP_PASS: 'p', MAIL_FROM: 'Quorum <q@fernhollow.example>' })).toMatchObject({
+    expect(
+      smtpSettings({ SMTP_HOST: 'smtp.fernhollow.example', SMTP_USER: 'q', SMTP_PASS: 'p', MAIL_FROM: 'Quorum <q@fernhollow.example>' }),
+    ).toMatchObject({
       host: 'smtp.fernhollow.example',
       port: 587,
       user: 'q',
@@ -75,7 +77,15 @@ describe('settings', () => {
 describe('templates', () => {
   it('carry the facility, role, link and expiry in text and HTML, escaped', () => {
     const url = 'http://localhost:3000/invitations/abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQ';
-    const m = invitationMail({ facility: 'Fernhollow Imaging Core', inviterName: 'Dana <Okafor>', role: 'rater', studyName: 'Evening light', studyRole: 'rater', url, expiresAt: new Date('2026-12-08T10:00:00Z') });
+    const m = invitationMail({
+      facility: 'Fernhollow Imaging Core',
+      inviterName: 'Dana <Okafor>',
+      role: 'rater',
+      studyName: 'Evening light',
+      studyRole: 'rater',
+      url,
+      expiresAt: new Date('2026-12-08T10:00:00Z'),
+    });
     expect(m.subject).toContain('Fernhollow Imaging Core');
     for (const body of [m.text, m.html]) {
       expect(body).toContain('Fernhollow Imaging Core');
@@ -84,7 +94,12 @@ describe('templates', () => {
     }
     expect(m.html).toContain('Dana &lt;Okafor&gt;');
     expect(m.html).not.toContain('<Okafor>');
-    const r = passwordResetMail({ facility: 'Fernhollow Imaging Core', name: 'Amara', url: 'http://x/reset-password/t', expiresAt: new Date() });
+    const r = passwordResetMail({
+      facility: 'Fernhollow Imaging Core',
+      name: 'Amara',
+      url: 'http://x/reset-password/t',
+      expiresAt: new Date(),
+    });
     expect(r.text).toMatch(/expires on/);
     // the link is the only secret in a message
     expect(r.text.match(/https?:\/\/\S+/g)).toEqual(['http://x/reset-password/t']);
@@ -95,7 +110,12 @@ describe('templates', () => {
 describe('delivery through the fake server', () => {
   it('stores the message as JSON that the mailbox reads back, and records it as sent', async () => {
     const to = 'reader@fernhollow.example';
-    const content = passwordResetMail({ facility: 'Fernhollow Imaging Core', name: 'Reader', url: 'http://localhost:3100/reset-password/tok123', expiresAt: new Date() });
+    const content = passwordResetMail({
+      facility: 'Fernhollow Imaging Core',
+      name: 'Reader',
+      url: 'http://localhost:3100/reset-password/tok123',
+      expiresAt: new Date(),
+    });
     expect(await deliverMail({ to, content, template: 'reset' })).toBe(true);
     const mail = await waitForMail({ to, dir, subject: /reset your Quorum password/ });
     expect(mail).toMatchObject({ to: [to], subject: content.subject, from: 'quorum@localhost' });

@@ -27,11 +27,12 @@ let dir: string;
 let port: number;
 const quiet = { info() {}, warn() {}, error() {} };
 
-
 /** Claims and runs send-mail jobs until `jobId` is no longer queued; returns its final row. */
 async function runUntilDone(jobId: number) {
   for (let i = 0; i < 20; i++) {
-    await db('jobs').where({ id: jobId, status: 'queued' }).update({ run_after: db.raw('NOW(3)') }); // skip the back-off
+    await db('jobs')
+      .where({ id: jobId, status: 'queued' })
+      .update({ run_after: db.raw('NOW(3)') }); // skip the back-off
     const job = await claimJob(db, { workerId: 'mail-test', leaseMs: 10_000, kinds: [SEND_MAIL] });
     if (job) await runClaimedJob(db, job, { workerId: 'mail-test', leaseMs: 10_000, kinds: jobKinds, logger: quiet, retryBaseMs: 0 });
     const row = await db('jobs').where({ id: jobId }).first('status', 'attempts', 'message', 'error');
@@ -57,7 +58,9 @@ describe('a password reset link', () => {
   it('is queued without a live link in the outbox, sent by the job, and its sealed copy dropped', async () => {
     const email = `reset-${uniqueSuffix()}@fernhollow.example`;
     await createUser(db, { email, name: 'Rowan Pike' });
-    expect(await requestPasswordReset({ email, ip: null, baseUrl: 'http://localhost:3100', facility: 'Fernhollow Imaging Core' })).toEqual({ queued: true });
+    expect(await requestPasswordReset({ email, ip: null, baseUrl: 'http://localhost:3100', facility: 'Fernhollow Imaging Core' })).toEqual({
+      queued: true,
+    });
 
     const queued = await db('mail_outbox').where({ to_email: email }).first('id', 'status', 'text_body', 'html_body', 'sealed');
     expect(queued.status).toBe('queued');
@@ -86,7 +89,9 @@ describe('a password reset link', () => {
     const email = `gone-${uniqueSuffix()}@fernhollow.example`;
     await createUser(db, { email, active: false });
     expect(await requestPasswordReset({ email, ip: null, baseUrl: 'http://x', facility: 'F' })).toEqual({ queued: false });
-    expect(await requestPasswordReset({ email: `nobody-${uniqueSuffix()}@fernhollow.example`, ip: null, baseUrl: 'http://x', facility: 'F' })).toEqual({ queued: false });
+    expect(
+      await requestPasswordReset({ email: `nobody-${uniqueSuffix()}@fernhollow.example`, ip: null, baseUrl: 'http://x', facility: 'F' }),
+    ).toEqual({ queued: false });
     expect(await db('mail_outbox').where({ to_email: email }).first('id')).toBeUndefined();
   });
 });
@@ -95,15 +100,24 @@ describe('the send-mail job', () => {
   it('retries a failed send and drops the sealed copy after the last attempt', async () => {
     const to = `unreachable-${uniqueSuffix()}@fernhollow.example`;
     const { outboxId, jobId } = await db.transaction((trx) =>
-      queueMail(trx, { to, template: 'test', content: { subject: 's', text: 'go to http://x/t/secret1', html: '<a href="http://x/t/secret1">x</a>' }, secrets: ['http://x/t/secret1'] }),
+      queueMail(trx, {
+        to,
+        template: 'test',
+        content: { subject: 's', text: 'go to http://x/t/secret1', html: '<a href="http://x/t/secret1">x</a>' },
+        secrets: ['http://x/t/secret1'],
+      }),
     );
     await db('jobs').where({ id: jobId }).update({ max_attempts: 2 });
     process.env.SMTP_PORT = String(await freePort()); // nothing listens there
     try {
-      await db('jobs').where({ id: jobId }).update({ run_after: db.raw('NOW(3)') });
+      await db('jobs')
+        .where({ id: jobId })
+        .update({ run_after: db.raw('NOW(3)') });
       const first = await claimJob(db, { workerId: 'mail-test', leaseMs: 10_000, kinds: [SEND_MAIL] });
       expect(first?.id).toBe(jobId);
-      expect(await runClaimedJob(db, first!, { workerId: 'mail-test', leaseMs: 10_000, kinds: jobKinds, logger: quiet, retryBaseMs: 0 })).toBe('retry');
+      expect(
+        await runClaimedJob(db, first!, { workerId: 'mail-test', leaseMs: 10_000, kinds: jobKinds, logger: quiet, retryBaseMs: 0 }),
+      ).toBe('retry');
       const afterOne = await db('mail_outbox').where({ id: outboxId }).first('status', 'sealed', 'attempts', 'last_error');
       expect(afterOne.status).toBe('failed');
       expect(afterOne.attempts).toBe(1);
@@ -121,8 +135,12 @@ describe('the send-mail job', () => {
 
   it('fails at once, saying why, when the message was sealed with another secret', async () => {
     const to = `other-secret-${uniqueSuffix()}@fernhollow.example`;
-    const { outboxId, jobId } = await db.transaction((trx) => queueMail(trx, { to, template: 'test', content: { subject: 's', text: 't', html: 'h' }, secrets: [] }));
-    await db('mail_outbox').where({ id: outboxId }).update({ sealed: sealMail({ subject: 's', text: 't', html: 'h' }, 'another-secret-of-at-least-thirty-two-chars') });
+    const { outboxId, jobId } = await db.transaction((trx) =>
+      queueMail(trx, { to, template: 'test', content: { subject: 's', text: 't', html: 'h' }, secrets: [] }),
+    );
+    await db('mail_outbox')
+      .where({ id: outboxId })
+      .update({ sealed: sealMail({ subject: 's', text: 't', html: 'h' }, 'another-secret-of-at-least-thirty-two-chars') });
     const final = await runUntilDone(jobId);
     expect(final.status).toBe('failed');
     expect(final.attempts).toBe(1);
@@ -135,7 +153,12 @@ describe('an invitation', () => {
     const { sendInvitation } = await import('@/lib/invitations/send-invitation');
     const admin = await createUser(db, { role: 'admin' });
     const email = `invitee-${uniqueSuffix()}@fernhollow.example`;
-    const r = await sendInvitation({ user: { id: admin, role: 'admin', name: 'Admin' }, input: { email, role: 'rater' }, baseUrl: 'http://localhost:3100', facility: 'Fernhollow Imaging Core' });
+    const r = await sendInvitation({
+      user: { id: admin, role: 'admin', name: 'Admin' },
+      input: { email, role: 'rater' },
+      baseUrl: 'http://localhost:3100',
+      facility: 'Fernhollow Imaging Core',
+    });
     expect(r.outcome).toBe('sent');
     const row = await db('mail_outbox').where({ to_email: email }).first('id', 'status', 'text_body', 'html_body', 'sealed');
     expect(row.status).toBe('queued');

@@ -21,12 +21,18 @@ const tag = `pick${uniqueSuffix()}`;
 let study: Awaited<ReturnType<typeof createStudyWithRaters>>;
 let other: Awaited<ReturnType<typeof createStudyWithRaters>>;
 
-const search = (studyId: number, q: string) => callRoute(route.GET, { url: `/api/studies/${studyId}/members/candidates?q=${encodeURIComponent(q)}`, params: { id: String(studyId) } });
+const search = (studyId: number, q: string) =>
+  callRoute(route.GET, { url: `/api/studies/${studyId}/members/candidates?q=${encodeURIComponent(q)}`, params: { id: String(studyId) } });
 
 beforeAll(async () => {
   study = await createStudyWithRaters(db, { raters: 1 });
   other = await createStudyWithRaters(db, { raters: 0 });
-  for (let i = 0; i < 25; i++) await createUser(db, { role: 'rater', name: `Many ${tag} ${String(i).padStart(2, '0')}`, email: `many-${i}-${tag}@test.quorum.invalid` });
+  for (let i = 0; i < 25; i++)
+    await createUser(db, {
+      role: 'rater',
+      name: `Many ${tag} ${String(i).padStart(2, '0')}`,
+      email: `many-${i}-${tag}@test.quorum.invalid`,
+    });
   await createUser(db, { role: 'observer', name: `Gone ${tag}`, email: `gone-${tag}@test.quorum.invalid`, active: false });
   const obs = await createUser(db, { role: 'observer', name: `Orla 100%_${tag}`, email: `orla-${tag}@test.quorum.invalid` });
   await addMember(db, { studyId: study.studyId, userId: obs, studyRole: 'observer' });

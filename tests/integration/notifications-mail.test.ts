@@ -66,13 +66,23 @@ afterAll(async () => {
 /** A ready run (assignment reads no file), with a current decomposition of k components when k > 0. */
 async function readyRun(k = 0): Promise<{ runId: number; componentIds: number[] }> {
   const [runId] = await db('runs').insert({
-    study_id: s.studyId, sub: `n${uniqueSuffix()}`, task: 'rest', original_name: 'x_bold.nii.gz', file_key: `runs/${uniqueSuffix()}.nii.gz`,
-    sha256: `${uniqueSuffix()}${uniqueSuffix()}`.padEnd(64, '0'), size_bytes: 1, status: 'ready', created_by: s.leadId,
+    study_id: s.studyId,
+    sub: `n${uniqueSuffix()}`,
+    task: 'rest',
+    original_name: 'x_bold.nii.gz',
+    file_key: `runs/${uniqueSuffix()}.nii.gz`,
+    sha256: `${uniqueSuffix()}${uniqueSuffix()}`.padEnd(64, '0'),
+    size_bytes: 1,
+    status: 'ready',
+    created_by: s.leadId,
   });
   const componentIds: number[] = [];
   if (k) {
     const [d] = await db('decompositions').insert({ run_id: runId, parameters: toJson({}), k, is_current: true });
-    for (let i = 1; i <= k; i++) componentIds.push(Number((await db('components').insert({ decomposition_id: d, idx: i, variance_explained: 0.1, features: toJson({}) }))[0]));
+    for (let i = 1; i <= k; i++)
+      componentIds.push(
+        Number((await db('components').insert({ decomposition_id: d, idx: i, variance_explained: 0.1, features: toJson({}) }))[0]),
+      );
   }
   return { runId: Number(runId), componentIds };
 }
@@ -91,12 +101,16 @@ const queued = (kind: string) => db('jobs').where({ kind, status: 'queued' }).se
 
 /** Makes the queued jobs of `kind` due now and runs them in this process. */
 async function runDue(kind: string): Promise<string[]> {
-  await db('jobs').where({ kind, status: 'queued' }).update({ run_after: db.raw('NOW(3)') });
+  await db('jobs')
+    .where({ kind, status: 'queued' })
+    .update({ run_after: db.raw('NOW(3)') });
   const outcomes: string[] = [];
   for (;;) {
     const job = await claimJob(db, { workerId: 'notify-test', leaseMs: 10_000, kinds: [kind] });
     if (!job) return outcomes;
-    outcomes.push(await runClaimedJob(db, job, { workerId: 'notify-test', leaseMs: 10_000, kinds: jobKinds, logger: quiet, retryBaseMs: 0 }));
+    outcomes.push(
+      await runClaimedJob(db, job, { workerId: 'notify-test', leaseMs: 10_000, kinds: jobKinds, logger: quiet, retryBaseMs: 0 }),
+    );
   }
 }
 
@@ -140,7 +154,14 @@ describe('assignment e-mails', () => {
       expect(got[0]!.html).toContain('Fernhollow Imaging Core');
       for (const body of [got[0]!.text, got[0]!.html!]) expect(body).not.toMatch(/password|token|sha256/i);
     }
-    expect(await db('assignments').whereIn('run_id', runs.map((r) => r.runId)).whereNull('notified_at')).toHaveLength(0);
+    expect(
+      await db('assignments')
+        .whereIn(
+          'run_id',
+          runs.map((r) => r.runId),
+        )
+        .whereNull('notified_at'),
+    ).toHaveLength(0);
     expect(await mailTo({ to: emails.get(s.leadId)!, dir })).toHaveLength(0);
 
     // nothing new: a second job sends nothing
@@ -168,16 +189,27 @@ describe('the lead', () => {
     const run = await runBecomesReady(3);
     await runDue(NOTIFY_ASSIGNMENTS);
     const raters = (await db('assignments').where({ run_id: run.runId }).pluck('rater_id')).map(Number);
-    await db('decisions').insert(run.componentIds.map((c, i) => ({ component_id: c, run_id: run.runId, method: i === 0 ? 'unanimous' : 'pending', label: i === 0 ? 'signal' : null })));
+    await db('decisions').insert(
+      run.componentIds.map((c, i) => ({
+        component_id: c,
+        run_id: run.runId,
+        method: i === 0 ? 'unanimous' : 'pending',
+        label: i === 0 ? 'signal' : null,
+      })),
+    );
     const before = (await mine()).length;
 
     // one rater submitted: not complete yet
-    await db('assignments').where({ run_id: run.runId, rater_id: raters[0] }).update({ submitted_at: db.fn.now(3) });
+    await db('assignments')
+      .where({ run_id: run.runId, rater_id: raters[0] })
+      .update({ submitted_at: db.fn.now(3) });
     await queueVotesCompleteCheck(db);
     await runDue(NOTIFY_VOTES_COMPLETE);
     expect(await mailTo({ to: emails.get(s.leadId)!, dir })).toHaveLength(0);
 
-    await db('assignments').where({ run_id: run.runId, rater_id: raters[1] }).update({ submitted_at: db.fn.now(3) });
+    await db('assignments')
+      .where({ run_id: run.runId, rater_id: raters[1] })
+      .update({ submitted_at: db.fn.now(3) });
     await queueVotesCompleteCheck(db);
     expect(await queued(NOTIFY_VOTES_COMPLETE)).toHaveLength(1);
     expect(await runDue(NOTIFY_VOTES_COMPLETE)).toEqual(['succeeded']);
@@ -196,8 +228,14 @@ describe('the lead', () => {
   });
 
   it('gets the daily overdue summary, and the job queues itself for the next day', async () => {
-    const open = await db('assignments as a').join('runs as r', 'r.id', 'a.run_id').where('r.study_id', s.studyId).whereNull('a.submitted_at').first('a.id', 'a.rater_id', 'a.run_id');
-    await db('assignments').where({ id: open.id }).update({ due_at: new Date(Date.now() - 86_400_000) });
+    const open = await db('assignments as a')
+      .join('runs as r', 'r.id', 'a.run_id')
+      .where('r.study_id', s.studyId)
+      .whereNull('a.submitted_at')
+      .first('a.id', 'a.rater_id', 'a.run_id');
+    await db('assignments')
+      .where({ id: open.id })
+      .update({ due_at: new Date(Date.now() - 86_400_000) });
     const before = (await mine()).length;
     expect(await runDue(NOTIFY_OVERDUE)).toEqual(['succeeded']);
     await mailCount(before + 1);

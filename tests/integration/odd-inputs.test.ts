@@ -34,7 +34,14 @@ beforeAll(async () => {
   const seeded = await seedDemo(db);
   users = seeded.users;
   studyId = seeded.studyId;
-  run = await createReadyRun(db, { studyId, createdBy: users['lead@fernhollow.example'], raterIds: [users['rater1@fernhollow.example']], size: 'tiny', seed: 21, sub: 'odd' });
+  run = await createReadyRun(db, {
+    studyId,
+    createdBy: users['lead@fernhollow.example'],
+    raterIds: [users['rater1@fernhollow.example']],
+    size: 'tiny',
+    seed: 21,
+    sub: 'odd',
+  });
 });
 afterAll(async () => {
   await closeDb();
@@ -60,14 +67,24 @@ describe('odd inputs', () => {
 
   it('a lone surrogate in release notes is refused with 422', async () => {
     actAs(users['lead@fernhollow.example']);
-    const res = await callRoute(releasesRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/releases`, params: { id: String(studyId) }, body: { notes: LONE } });
+    const res = await callRoute(releasesRoute.POST, {
+      method: 'POST',
+      url: `/api/studies/${studyId}/releases`,
+      params: { id: String(studyId) },
+      body: { notes: LONE },
+    });
     expect(res.status).toBe(422);
     expect(res.json.error.message).toMatch(/broken character/);
   });
 
   it('an over-long e-mail is refused with 422 before any SQL', async () => {
     actAs(null);
-    const res = await callRoute(resetRoute.POST, { method: 'POST', url: '/api/password-reset', params: {}, body: { email: `${'a'.repeat(300)}@example.org` } });
+    const res = await callRoute(resetRoute.POST, {
+      method: 'POST',
+      url: '/api/password-reset',
+      params: {},
+      body: { email: `${'a'.repeat(300)}@example.org` },
+    });
     expect(res.status).toBe(422);
     expect(res.json.error.message).toMatch(/at most 254 characters/);
   });
@@ -80,12 +97,18 @@ describe('odd inputs', () => {
       for (const [i, forwarded] of [`${'2'.repeat(60)}, 10.0.0.1`, '3'.repeat(8000)].entries()) {
         const componentId = run.componentIds[1 + i];
         const res = await callRoute(voteRoute.PUT, {
-          method: 'PUT', url: `/api/runs/${run.runId}/votes/${componentId}`, params: { id: String(run.runId), componentId: String(componentId) },
-          body: { label: 'signal', baseVersion: 0 }, headers: { 'x-forwarded-for': forwarded },
+          method: 'PUT',
+          url: `/api/runs/${run.runId}/votes/${componentId}`,
+          params: { id: String(run.runId), componentId: String(componentId) },
+          body: { label: 'signal', baseVersion: 0 },
+          headers: { 'x-forwarded-for': forwarded },
         });
         expect(res.status, JSON.stringify(res.json)).toBe(200);
       }
-      const audits = await db('audit_log').where({ action: 'vote.cast', target_type: 'component' }).whereIn('target_id', run.componentIds.slice(1, 3).map(String)).select('ip');
+      const audits = await db('audit_log')
+        .where({ action: 'vote.cast', target_type: 'component' })
+        .whereIn('target_id', run.componentIds.slice(1, 3).map(String))
+        .select('ip');
       expect(audits).toEqual([{ ip: null }, { ip: null }]);
     } finally {
       if (saved === undefined) delete process.env.QUORUM_TRUST_PROXY;

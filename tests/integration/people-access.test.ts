@@ -7,7 +7,9 @@
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { randomBytes } from 'node:crypto';
 
-const session = vi.hoisted(() => ({ current: null as null | { user: { id: number; email: string; name: string; role: string; sid: string; sv: number } } }));
+const session = vi.hoisted(() => ({
+  current: null as null | { user: { id: number; email: string; name: string; role: string; sid: string; sv: number } },
+}));
 vi.mock('next-auth', async (importOriginal) => ({
   ...(await importOriginal<typeof import('next-auth')>()),
   getServerSession: async () => session.current,
@@ -57,7 +59,10 @@ describe('role changes and deactivation', () => {
   it('changes a role and records who did it', async () => {
     const result = await updateAccess({ actorId: ids.a1, userId: ids.rater, role: 'observer' });
     expect(result).toEqual({ id: ids.rater, role: 'observer', active: true });
-    const entry = await db('audit_log').where({ action: 'user.role_changed', target_id: String(ids.rater) }).orderBy('id', 'desc').first();
+    const entry = await db('audit_log')
+      .where({ action: 'user.role_changed', target_id: String(ids.rater) })
+      .orderBy('id', 'desc')
+      .first();
     expect(entry.actor_id).toBe(ids.a1);
     expect(parseJson(entry.detail)).toMatchObject({ from: 'rater', to: 'observer' });
     expect(entry.created_at).toBeInstanceOf(Date);
@@ -68,7 +73,15 @@ describe('role changes and deactivation', () => {
   it('deactivation and reactivation are audited; no change writes nothing', async () => {
     await updateAccess({ actorId: ids.a1, userId: ids.rater, active: false });
     await updateAccess({ actorId: ids.a1, userId: ids.rater, active: true });
-    const count = async () => Number((await db('audit_log').where({ target_id: String(ids.rater) }).whereIn('action', ['user.deactivated', 'user.reactivated']).count({ n: 'id' }))[0].n);
+    const count = async () =>
+      Number(
+        (
+          await db('audit_log')
+            .where({ target_id: String(ids.rater) })
+            .whereIn('action', ['user.deactivated', 'user.reactivated'])
+            .count({ n: 'id' })
+        )[0].n,
+      );
     expect(await count()).toBe(2);
     await updateAccess({ actorId: ids.a1, userId: ids.rater, active: true });
     expect(await count()).toBe(2);
@@ -102,7 +115,9 @@ describe('the last active admin', () => {
     expect(results.filter((r) => r.status === 'fulfilled')).toHaveLength(1);
     const rejected = results.find((r) => r.status === 'rejected') as PromiseRejectedResult;
     expect(rejected.reason).toBeInstanceOf(AppError);
-    expect(Number((await db('users').where({ role: 'admin', active: true }).whereIn('id', [ids.a1, ids.a2]).count({ n: 'id' }))[0].n)).toBe(1);
+    expect(Number((await db('users').where({ role: 'admin', active: true }).whereIn('id', [ids.a1, ids.a2]).count({ n: 'id' }))[0].n)).toBe(
+      1,
+    );
     await db('users').whereIn('id', [ids.a1, ids.a2]).update({ role: 'admin', active: true });
   });
 });
@@ -110,7 +125,9 @@ describe('the last active admin', () => {
 describe('sessions of deactivated people', () => {
   it('stop working at once although the JWT still names them', async () => {
     const version = async () => Number((await db('users').where({ id: ids.rater }).first('session_version')).session_version);
-    session.current = { user: { id: ids.rater, email: `rater-${tag}@fernhollow.example`, name: 'r', role: 'rater', sid: `s-${tag}`, sv: await version() } };
+    session.current = {
+      user: { id: ids.rater, email: `rater-${tag}@fernhollow.example`, name: 'r', role: 'rater', sid: `s-${tag}`, sv: await version() },
+    };
     expect((await getCurrentUser())?.id).toBe(ids.rater);
     expect((await requireUser('votes.write')).id).toBe(ids.rater);
 
@@ -131,11 +148,18 @@ describe('sessions of deactivated people', () => {
 
 describe('people list', () => {
   it('lists accounts with memberships and without password hashes', async () => {
-    const [sid] = await db('studies').insert({ name: `People study ${tag}`, created_by: ids.a1, label_set: '["signal","noise"]', noise_kinds: '[]' });
+    const [sid] = await db('studies').insert({
+      name: `People study ${tag}`,
+      created_by: ids.a1,
+      label_set: '["signal","noise"]',
+      noise_kinds: '[]',
+    });
     await db('study_members').insert({ study_id: sid, user_id: ids.rater, study_role: 'observer' });
     const people = await listPeople();
     const rater = people.find((p) => p.id === ids.rater)!;
-    expect(rater.memberships).toEqual([{ userId: ids.rater, studyId: Number(sid), studyName: `People study ${tag}`, studyRole: 'observer' }]);
+    expect(rater.memberships).toEqual([
+      { userId: ids.rater, studyId: Number(sid), studyName: `People study ${tag}`, studyRole: 'observer' },
+    ]);
     expect(JSON.stringify(people)).not.toMatch(/password/i);
     expect(await listMemberships({ userId: ids.rater })).toHaveLength(1);
   });

@@ -57,7 +57,13 @@ const u = (name: string) => users[`${name}@fernhollow.example`]!;
 const sha = (b: Buffer | string) => createHash('sha256').update(b).digest('hex');
 
 function release(body: unknown = {}, headers: Record<string, string> = {}) {
-  return callRoute(releasesRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/releases`, params: { id: String(studyId) }, body, headers });
+  return callRoute(releasesRoute.POST, {
+    method: 'POST',
+    url: `/api/studies/${studyId}/releases`,
+    params: { id: String(studyId) },
+    body,
+    headers,
+  });
 }
 async function bytesOf(res: Response): Promise<Buffer> {
   return Buffer.from(await res.arrayBuffer());
@@ -70,16 +76,36 @@ beforeAll(async () => {
   const seeded = await seedDemo(db);
   users = seeded.users;
   const [id] = await db('studies').insert({
-    name: 'Release test study', created_by: u('lead'), raters_per_run: 2, consensus_rule: 'majority',
-    label_set: JSON.stringify(['signal', 'noise', 'uncertain']), noise_kinds: JSON.stringify(['motion', 'pulsation', 'other']), uncertain_in_export: 'keep',
+    name: 'Release test study',
+    created_by: u('lead'),
+    raters_per_run: 2,
+    consensus_rule: 'majority',
+    label_set: JSON.stringify(['signal', 'noise', 'uncertain']),
+    noise_kinds: JSON.stringify(['motion', 'pulsation', 'other']),
+    uncertain_in_export: 'keep',
   });
   studyId = Number(id);
-  for (const [email, role] of [['lead', 'lead'], ['rater1', 'rater'], ['rater2', 'rater'], ['observer', 'observer']] as const) {
+  for (const [email, role] of [
+    ['lead', 'lead'],
+    ['rater1', 'rater'],
+    ['rater2', 'rater'],
+    ['observer', 'observer'],
+  ] as const) {
     await db('study_members').insert({ study_id: studyId, user_id: u(email), study_role: role });
   }
   runs = [];
   for (const [i, sub] of ['rel01', 'rel02'].entries()) {
-    runs.push(await createReadyRun(db, { studyId, createdBy: u('lead'), raterIds: [u('rater1'), u('rater2')], size: 'tiny', seed: 11 + i, sub, components: 8 }));
+    runs.push(
+      await createReadyRun(db, {
+        studyId,
+        createdBy: u('lead'),
+        raterIds: [u('rater1'), u('rater2')],
+        size: 'tiny',
+        seed: 11 + i,
+        sub,
+        components: 8,
+      }),
+    );
   }
   // votes from two submitted raters, and decisions (one still pending for the refusal test)
   for (const run of runs) {
@@ -89,14 +115,23 @@ beforeAll(async () => {
       const other = idx % 5 === 0 ? (label === 'signal' ? 'noise' : 'signal') : label;
       await db('votes').insert([
         { component_id: componentId, run_id: run.runId, rater_id: u('rater1'), label, noise_kind: label === 'noise' ? 'motion' : null },
-        { component_id: componentId, run_id: run.runId, rater_id: u('rater2'), label: other, noise_kind: other === 'noise' ? 'pulsation' : null },
+        {
+          component_id: componentId,
+          run_id: run.runId,
+          rater_id: u('rater2'),
+          label: other,
+          noise_kind: other === 'noise' ? 'pulsation' : null,
+        },
       ]);
       const reconciled = idx % 5 === 0;
       await db('decisions').insert({
-        component_id: componentId, run_id: run.runId, label: reconciled && run === runs[0] && idx === 5 ? null : label,
+        component_id: componentId,
+        run_id: run.runId,
+        label: reconciled && run === runs[0] && idx === 5 ? null : label,
         noise_kind: label === 'noise' ? 'motion' : null,
         method: reconciled ? (run === runs[0] && idx === 5 ? 'pending' : 'reconciled') : 'unanimous',
-        decided_by: reconciled ? u('lead') : null, reason: reconciled ? `Lead looked at component ${idx}: rim pattern` : null,
+        decided_by: reconciled ? u('lead') : null,
+        reason: reconciled ? `Lead looked at component ${idx}: rim pattern` : null,
       });
     }
     await markSubmitted(db, { runId: run.runId });
@@ -136,7 +171,9 @@ describe('a study release', () => {
   let manifest: any;
 
   beforeAll(async () => {
-    await db('decisions').where({ component_id: runs[0]!.componentIds[4] }).update({ label: 'noise', noise_kind: 'other', method: 'reconciled', reason: 'Lead: edge ring, noise' });
+    await db('decisions')
+      .where({ component_id: runs[0]!.componentIds[4] })
+      .update({ label: 'noise', noise_kind: 'other', method: 'reconciled', reason: 'Lead: edge ring, noise' });
     actAs(u('lead'));
     // a forged X-Forwarded-For without a trusted proxy must not reach the audit log (issue 13 item 10)
     delete process.env.QUORUM_TRUST_PROXY;
@@ -144,7 +181,10 @@ describe('a study release', () => {
     // the request only queues the release job (202); nothing is released until the worker ran it
     expect(asked.status, JSON.stringify(asked.json)).toBe(202);
     expect(await db('releases').where({ study_id: studyId }).count('* as n').first()).toMatchObject({ n: 0 });
-    const progress = await callRoute(releaseJobRoute.GET, { url: `/api/studies/${studyId}/releases/jobs/${asked.json.jobId}`, params: { id: String(studyId), jobId: String(asked.json.jobId) } });
+    const progress = await callRoute(releaseJobRoute.GET, {
+      url: `/api/studies/${studyId}/releases/jobs/${asked.json.jobId}`,
+      params: { id: String(studyId), jobId: String(asked.json.jobId) },
+    });
     expect(progress.json).toMatchObject({ status: 'queued', message: 'Waiting for a worker', release: null });
     // a second click while it waits joins the same job: two clicks, one release
     const again = await release({ notes: 'Friday release' });
@@ -153,7 +193,10 @@ describe('a study release', () => {
     expect(res.json.jobStatus, res.json.jobMessage).toBe('succeeded');
     expect(res.json.version).toBe(1);
     expect(await db('releases').where({ study_id: studyId }).count('* as n').first()).toMatchObject({ n: 1 });
-    const finished = await callRoute(releaseJobRoute.GET, { url: `/api/studies/${studyId}/releases/jobs/${asked.json.jobId}`, params: { id: String(studyId), jobId: String(asked.json.jobId) } });
+    const finished = await callRoute(releaseJobRoute.GET, {
+      url: `/api/studies/${studyId}/releases/jobs/${asked.json.jobId}`,
+      params: { id: String(studyId), jobId: String(asked.json.jobId) },
+    });
     expect(finished.json).toMatchObject({ status: 'succeeded', release: { releaseId: res.json.releaseId, version: 1 } });
     releaseId = res.json.releaseId;
     manifest = (await db('releases').where({ id: releaseId }).first('manifest')).manifest;
@@ -162,18 +205,29 @@ describe('a study release', () => {
 
   it('freezes every decision into release_decisions, with who and when, and audits it', async () => {
     const frozen = await db('release_decisions').where({ release_id: releaseId }).orderBy(['run_id', 'idx']);
-    const live = await db('decisions as x').join('components as c', 'c.id', 'x.component_id').whereIn('x.run_id', runs.map((r) => r.runId)).orderBy(['x.run_id', 'c.idx']).select('x.component_id', 'x.label', 'x.noise_kind', 'x.method', 'c.idx');
-    expect(frozen.map((f: any) => [f.component_id, f.idx, f.label, f.noise_kind, f.method])).toEqual(live.map((l: any) => [l.component_id, l.idx, l.label, l.noise_kind, l.method]));
+    const live = await db('decisions as x')
+      .join('components as c', 'c.id', 'x.component_id')
+      .whereIn(
+        'x.run_id',
+        runs.map((r) => r.runId),
+      )
+      .orderBy(['x.run_id', 'c.idx'])
+      .select('x.component_id', 'x.label', 'x.noise_kind', 'x.method', 'c.idx');
+    expect(frozen.map((f: any) => [f.component_id, f.idx, f.label, f.noise_kind, f.method])).toEqual(
+      live.map((l: any) => [l.component_id, l.idx, l.label, l.noise_kind, l.method]),
+    );
     const row = await db('releases').where({ id: releaseId }).first();
     expect(row.released_by).toBe(u('lead'));
     expect(row.released_at).toBeInstanceOf(Date);
-    const audit = await db('audit_log').where({ action: 'release.create', target_id: String(releaseId) }).first();
+    const audit = await db('audit_log')
+      .where({ action: 'release.create', target_id: String(releaseId) })
+      .first();
     expect(audit.actor_id).toBe(u('lead'));
     expect(audit.study_id).toBe(studyId);
     expect(audit.ip).toBeNull(); // the forged X-Forwarded-For was not believed
   });
 
-  it('ships each run\'s component maps with the checksum kept on the decomposition (hashed once when it had none) and stores the report it computed', async () => {
+  it("ships each run's component maps with the checksum kept on the decomposition (hashed once when it had none) and stores the report it computed", async () => {
     for (const run of runs) {
       const entry = manifest.runs.find((r: any) => r.runId === run.runId);
       const map = manifest.files.find((f: any) => f.runId === run.runId && f.name.endsWith('_desc-sources_components.nii.gz'));
@@ -196,7 +250,11 @@ describe('a study release', () => {
       const entry = manifest.runs.find((r: any) => r.runId === run.runId);
       const stem = entry.stem as string;
       expect(stem).toMatch(/^sub-rel0\d_ses-1_task-rest$/);
-      const comps = await db('components as c').leftJoin('decisions as x', 'x.component_id', 'c.id').where('c.decomposition_id', run.decompositionId).orderBy('c.idx').select('c.idx', 'c.timecourse', 'c.features', 'x.label', 'x.noise_kind', 'x.method', 'x.reason');
+      const comps = await db('components as c')
+        .leftJoin('decisions as x', 'x.component_id', 'c.id')
+        .where('c.decomposition_id', run.decompositionId)
+        .orderBy('c.idx')
+        .select('c.idx', 'c.timecourse', 'c.features', 'x.label', 'x.noise_kind', 'x.method', 'x.reason');
       const verdicts = parseTsv((await read(`${stem}_desc-decisions_components.tsv`)).toString());
       expect(verdicts.rows).toHaveLength(comps.length);
       const col = (name: string) => verdicts.header.indexOf(name);
@@ -208,8 +266,12 @@ describe('a study release', () => {
         expect(row[col('decided_by')]).toBe(c.method);
         expect(row[col('lead_reason')]).toBe(c.reason ?? 'n/a');
         expect(row[col('in_noise_list')]).toBe(c.label === 'noise' ? '1' : '0'); // uncertain kept (study default)
-        const votes = await db('votes as v').join('components as cc', 'cc.id', 'v.component_id').where({ 'cc.decomposition_id': run.decompositionId, 'cc.idx': c.idx }).select('v.label', 'v.rater_id');
-        for (const l of ['signal', 'noise', 'uncertain']) expect(row[col(`votes_${l}`)]).toBe(String(votes.filter((v: any) => v.label === l).length));
+        const votes = await db('votes as v')
+          .join('components as cc', 'cc.id', 'v.component_id')
+          .where({ 'cc.decomposition_id': run.decompositionId, 'cc.idx': c.idx })
+          .select('v.label', 'v.rater_id');
+        for (const l of ['signal', 'noise', 'uncertain'])
+          expect(row[col(`votes_${l}`)]).toBe(String(votes.filter((v: any) => v.label === l).length));
         const codes = Object.fromEntries(manifest.raters.map((r: any) => [r.name, r.code]));
         const r1 = votes.find((v: any) => v.rater_id === u('rater1'));
         expect(row[col('rater_labels')]).toContain(`${codes['Amara Lindqvist']}=${r1.label}`);
@@ -257,7 +319,9 @@ describe('a study release', () => {
 
   it('streams a ZIP whose manifest checksums match every file in it', async () => {
     actAs(u('observer'));
-    const res = await archiveRoute.GET(new Request(`http://localhost/api/releases/${releaseId}/archive`), { params: Promise.resolve({ releaseId: String(releaseId) }) });
+    const res = await archiveRoute.GET(new Request(`http://localhost/api/releases/${releaseId}/archive`), {
+      params: Promise.resolve({ releaseId: String(releaseId) }),
+    });
     expect(res.status).toBe(200);
     expect(res.headers.get('content-type')).toBe('application/zip');
     const dir = await mkdtemp(path.join(os.tmpdir(), 'quorum-zip-'));
@@ -287,7 +351,10 @@ describe('a study release', () => {
   });
 
   it('serves single files to readers, 404 for unknown names and to users outside the study; a rater may not download', async () => {
-    const call = (releaseIdArg: number, name: string) => fileRoute.GET(new Request(`http://localhost/api/releases/${releaseIdArg}/files/${name}`), { params: Promise.resolve({ releaseId: String(releaseIdArg), name }) });
+    const call = (releaseIdArg: number, name: string) =>
+      fileRoute.GET(new Request(`http://localhost/api/releases/${releaseIdArg}/files/${name}`), {
+        params: Promise.resolve({ releaseId: String(releaseIdArg), name }),
+      });
     const txt = manifest.files.find((f: any) => f.name.endsWith('_desc-noiselist_components.txt'));
     actAs(u('observer'));
     const ok = await call(releaseId, txt.name);
@@ -297,14 +364,18 @@ describe('a study release', () => {
     expect((await call(999999, txt.name)).status).toBe(404); // an unreleased (non-existent) release
     actAs(u('lead2'));
     expect((await call(releaseId, txt.name)).status).toBe(404); // another study's lead
-    expect((await archiveRoute.GET(new Request('http://localhost/x'), { params: Promise.resolve({ releaseId: String(releaseId) }) })).status).toBe(404);
+    expect(
+      (await archiveRoute.GET(new Request('http://localhost/x'), { params: Promise.resolve({ releaseId: String(releaseId) }) })).status,
+    ).toBe(404);
     actAs(u('rater1'));
     expect((await call(releaseId, txt.name)).status).toBe(403);
   });
 
   it('a later change needs a new release: version 2, the list shows both, the old one stays downloadable', async () => {
     actAs(u('lead'));
-    await db('decisions').where({ component_id: runs[1]!.componentIds[0] }).update({ label: 'noise', noise_kind: 'motion', method: 'override', reason: 'Lead: second look' });
+    await db('decisions')
+      .where({ component_id: runs[1]!.componentIds[0] })
+      .update({ label: 'noise', noise_kind: 'motion', method: 'override', reason: 'Lead: second look' });
     const detail1 = await callRoute(releaseRoute.GET, { url: `/api/releases/${releaseId}`, params: { releaseId: String(releaseId) } });
     expect(detail1.json.changedSince).toBe(1);
     const res = await buildRequestedRelease(db, await release());
@@ -325,13 +396,38 @@ describe('a study release', () => {
   it('denoises a released run in the worker (partial): removed components leave no share in the residual, kept ones are untouched', async () => {
     const run = runs[0]!;
     actAs(u('observer'));
-    expect((await callRoute(denoiseRoute.POST, { method: 'POST', url: `/api/runs/${run.runId}/denoise`, params: { id: String(run.runId) }, body: { releaseId } })).status).toBe(403);
+    expect(
+      (
+        await callRoute(denoiseRoute.POST, {
+          method: 'POST',
+          url: `/api/runs/${run.runId}/denoise`,
+          params: { id: String(run.runId) },
+          body: { releaseId },
+        })
+      ).status,
+    ).toBe(403);
     actAs(u('lead2'));
-    expect((await callRoute(denoiseRoute.POST, { method: 'POST', url: `/api/runs/${run.runId}/denoise`, params: { id: String(run.runId) }, body: { releaseId } })).status).toBe(404);
+    expect(
+      (
+        await callRoute(denoiseRoute.POST, {
+          method: 'POST',
+          url: `/api/runs/${run.runId}/denoise`,
+          params: { id: String(run.runId) },
+          body: { releaseId },
+        })
+      ).status,
+    ).toBe(404);
     actAs(u('lead'));
-    const req = await callRoute(denoiseRoute.POST, { method: 'POST', url: `/api/runs/${run.runId}/denoise`, params: { id: String(run.runId) }, body: { releaseId, mode: 'partial' } });
+    const req = await callRoute(denoiseRoute.POST, {
+      method: 'POST',
+      url: `/api/runs/${run.runId}/denoise`,
+      params: { id: String(run.runId) },
+      body: { releaseId, mode: 'partial' },
+    });
     expect(req.status, JSON.stringify(req.json)).toBe(202);
-    const notYet = await denoiseFileRoute.GET(new Request('http://localhost/x'), { params: Promise.resolve({ id: String(run.runId), jobId: String(req.json.jobId) }) });
+    const notYet = await denoiseFileRoute.GET(new Request('http://localhost/x'), {
+      params: Promise.resolve({ id: String(run.runId), jobId: String(req.json.jobId) }),
+    });
     expect(notYet.status).toBe(409);
 
     const logger = { info: () => {}, warn: () => {}, error: (m: string) => console.error(m) };
@@ -345,7 +441,9 @@ describe('a study release', () => {
     const done = list.json.jobs[0];
     expect(done.status).toBe('succeeded');
     expect(done.file.name).toMatch(/^sub-rel01_ses-1_task-rest_desc-denoisedpartial_bold\.nii\.gz$/);
-    const res = await denoiseFileRoute.GET(new Request('http://localhost/x'), { params: Promise.resolve({ id: String(run.runId), jobId: String(done.jobId) }) });
+    const res = await denoiseFileRoute.GET(new Request('http://localhost/x'), {
+      params: Promise.resolve({ id: String(run.runId), jobId: String(done.jobId) }),
+    });
     expect(res.status).toBe(200);
     const bytes = await bytesOf(res);
     expect(sha(bytes)).toBe(done.file.sha256);
@@ -361,22 +459,37 @@ describe('a study release', () => {
     const design = buildDesign({ timecourses: tcs, T, k, noise: [], mode: 'partial' });
     const noise = manifest.runs.find((r: any) => r.runId === run.runId).noise as number[];
     expect(noise.length).toBeGreaterThan(0);
-    const mask = decodeNifti(await readFile(pathFor((await db('decompositions').where({ id: run.decompositionId }).first('mask_key')).mask_key))).readVolume(0);
+    const mask = decodeNifti(
+      await readFile(pathFor((await db('decompositions').where({ id: run.decompositionId }).first('mask_key')).mask_key)),
+    ).readVolume(0);
     const voxels = [...mask.keys()].filter((i) => mask[i]! > 0).filter((_, n) => n % 37 === 0);
     const seriesOf = (img: ReturnType<typeof decodeNifti>, offset: number) => {
       const vol = new Float32Array(img.voxelsPerVolume);
       const s = voxels.map(() => new Float64Array(T));
-      for (let t = 0; t < T; t++) { img.readVolume(t + offset, vol); voxels.forEach((v, i) => (s[i]![t] = vol[v]!)); }
+      for (let t = 0; t < T; t++) {
+        img.readVolume(t + offset, vol);
+        voxels.forEach((v, i) => (s[i]![t] = vol[v]!));
+      }
       return s;
     };
-    const before = seriesOf(input, 2), after = seriesOf(out, 0);
-    const beta = (y: Float64Array, comp: number) => { let s = 0; for (let t = 0; t < T; t++) s += design.pinv[comp * T + t]! * y[t]!; return s; };
-    let maxRemoved = 0, maxBefore = 0, maxKeptDiff = 0;
+    const before = seriesOf(input, 2),
+      after = seriesOf(out, 0);
+    const beta = (y: Float64Array, comp: number) => {
+      let s = 0;
+      for (let t = 0; t < T; t++) s += design.pinv[comp * T + t]! * y[t]!;
+      return s;
+    };
+    let maxRemoved = 0,
+      maxBefore = 0,
+      maxKeptDiff = 0;
     for (let i = 0; i < voxels.length; i++) {
       for (let c = 1; c <= k; c++) {
-        const b0 = beta(before[i]!, c), b1 = beta(after[i]!, c);
-        if (noise.includes(c)) { maxRemoved = Math.max(maxRemoved, Math.abs(b1)); maxBefore = Math.max(maxBefore, Math.abs(b0)); }
-        else maxKeptDiff = Math.max(maxKeptDiff, Math.abs(b1 - b0) / Math.max(1e-6, Math.abs(b0) + 1));
+        const b0 = beta(before[i]!, c),
+          b1 = beta(after[i]!, c);
+        if (noise.includes(c)) {
+          maxRemoved = Math.max(maxRemoved, Math.abs(b1));
+          maxBefore = Math.max(maxBefore, Math.abs(b0));
+        } else maxKeptDiff = Math.max(maxKeptDiff, Math.abs(b1 - b0) / Math.max(1e-6, Math.abs(b0) + 1));
       }
     }
     expect(maxRemoved).toBeLessThan(1e-3 * maxBefore);
@@ -389,13 +502,20 @@ describe('a worker lost during denoising (issue 13, faults)', () => {
     const run = runs[0]!;
     const rel = await db('releases').where({ study_id: studyId, run_key: 0 }).orderBy('version', 'desc').first('id');
     actAs(u('lead'));
-    const req = await callRoute(denoiseRoute.POST, { method: 'POST', url: `/api/runs/${run.runId}/denoise`, params: { id: String(run.runId) }, body: { releaseId: rel.id, mode: 'full' } });
+    const req = await callRoute(denoiseRoute.POST, {
+      method: 'POST',
+      url: `/api/runs/${run.runId}/denoise`,
+      params: { id: String(run.runId) },
+      body: { releaseId: rel.id, mode: 'full' },
+    });
     expect(req.status, JSON.stringify(req.json)).toBe(202);
     // the worker that gets killed: it claimed the job and reported progress, then its process ended (its lease is never renewed)
     const lost = await claimJob(db, { workerId: 'killed-worker', kinds: ['denoise'], leaseMs: 60_000 });
     expect(lost?.id).toBe(req.json.jobId);
     expect(await reportProgress(db, lost!.id, 'killed-worker', { stage: 'regress', percent: 40 })).toBe(true);
-    await db('jobs').where({ id: lost!.id }).update({ lease_expires_at: db.raw('NOW(3) - INTERVAL 1 SECOND') });
+    await db('jobs')
+      .where({ id: lost!.id })
+      .update({ lease_expires_at: db.raw('NOW(3) - INTERVAL 1 SECOND') });
 
     // the sweep every worker runs before claiming puts it back in the queue; another worker takes it
     expect((await requeueExpiredLeases(db)).requeued).toContain(lost!.id);
@@ -410,7 +530,9 @@ describe('a worker lost during denoising (issue 13, faults)', () => {
     const mine = list.json.jobs.filter((j: { jobId: number }) => j.jobId === lost!.id);
     expect(mine).toHaveLength(1);
     expect(mine[0].file.name).toMatch(/desc-denoisedfull_bold\.nii\.gz$/);
-    const res = await denoiseFileRoute.GET(new Request('http://localhost/x'), { params: Promise.resolve({ id: String(run.runId), jobId: String(lost!.id) }) });
+    const res = await denoiseFileRoute.GET(new Request('http://localhost/x'), {
+      params: Promise.resolve({ id: String(run.runId), jobId: String(lost!.id) }),
+    });
     expect(res.status).toBe(200);
     expect(sha(await bytesOf(res))).toBe(mine[0].file.sha256);
   });
@@ -419,11 +541,16 @@ describe('a worker lost during denoising (issue 13, faults)', () => {
 describe('denoise, full regression with motion regressors', () => {
   it('leaves a residual orthogonal to every removed noise course and motion parameter', async () => {
     const run = runs[1]!;
-    const rel = (await db('releases').where({ study_id: studyId, run_key: 0 }).orderBy('version', 'desc').first('id', 'manifest'));
+    const rel = await db('releases').where({ study_id: studyId, run_key: 0 }).orderBy('version', 'desc').first('id', 'manifest');
     const manifest = typeof rel.manifest === 'string' ? JSON.parse(rel.manifest) : rel.manifest;
     const noise = manifest.runs.find((r: any) => r.runId === run.runId).noise as number[];
     actAs(u('lead'));
-    const req = await callRoute(denoiseRoute.POST, { method: 'POST', url: `/api/runs/${run.runId}/denoise`, params: { id: String(run.runId) }, body: { releaseId: rel.id, mode: 'full', includeMotion: true } });
+    const req = await callRoute(denoiseRoute.POST, {
+      method: 'POST',
+      url: `/api/runs/${run.runId}/denoise`,
+      params: { id: String(run.runId) },
+      body: { releaseId: rel.id, mode: 'full', includeMotion: true },
+    });
     expect(req.status, JSON.stringify(req.json)).toBe(202);
     const logger = { info: () => {}, warn: () => {}, error: (m: string) => console.error(m) };
     const job = await claimJob(db, { workerId: 'test-worker', kinds: ['denoise'], leaseMs: 60_000 });
@@ -441,16 +568,40 @@ describe('denoise, full regression with motion regressors', () => {
     expect(out.nt).toBe(T);
     const { parseMotionFile, dropInitialVolumes } = await import('@/lib/decomposition/motion');
     const motionKey = (await db('runs').where({ id: run.runId }).first('motion_key')).motion_key;
-    const motion = dropInitialVolumes(parseMotionFile(await readFile(pathFor(motionKey), 'utf8'), { order: 'trans-first', rotationUnits: 'radians', expectedRows: T + 2 }), 2);
+    const motion = dropInitialVolumes(
+      parseMotionFile(await readFile(pathFor(motionKey), 'utf8'), { order: 'trans-first', rotationUnits: 'radians', expectedRows: T + 2 }),
+      2,
+    );
     const regressors = [...noise.map((n) => courses[n - 1]!), ...motion.translations, ...motion.rotations];
-    const mask = decodeNifti(await readFile(pathFor((await db('decompositions').where({ id: run.decompositionId }).first('mask_key')).mask_key))).readVolume(0);
+    const mask = decodeNifti(
+      await readFile(pathFor((await db('decompositions').where({ id: run.decompositionId }).first('mask_key')).mask_key)),
+    ).readVolume(0);
     const voxels = [...mask.keys()].filter((i) => mask[i]! > 0).filter((_, n) => n % 53 === 0);
     const vol = new Float32Array(out.voxelsPerVolume);
     const series = voxels.map(() => new Float64Array(T));
-    for (let t = 0; t < T; t++) { out.readVolume(t, vol); voxels.forEach((v, i) => (series[i]![t] = vol[v]!)); }
+    for (let t = 0; t < T; t++) {
+      out.readVolume(t, vol);
+      voxels.forEach((v, i) => (series[i]![t] = vol[v]!));
+    }
     const corr = (a: ArrayLike<number>, b: ArrayLike<number>) => {
-      let ma = 0, mb = 0; for (let t = 0; t < T; t++) { ma += a[t]!; mb += b[t]!; } ma /= T; mb /= T;
-      let ab = 0, aa = 0, bb = 0; for (let t = 0; t < T; t++) { const x = a[t]! - ma, y = b[t]! - mb; ab += x * y; aa += x * x; bb += y * y; }
+      let ma = 0,
+        mb = 0;
+      for (let t = 0; t < T; t++) {
+        ma += a[t]!;
+        mb += b[t]!;
+      }
+      ma /= T;
+      mb /= T;
+      let ab = 0,
+        aa = 0,
+        bb = 0;
+      for (let t = 0; t < T; t++) {
+        const x = a[t]! - ma,
+          y = b[t]! - mb;
+        ab += x * y;
+        aa += x * x;
+        bb += y * y;
+      }
       return aa && bb ? ab / Math.sqrt(aa * bb) : 0;
     };
     let worst = 0;
@@ -464,15 +615,25 @@ describe('pipeline API with personal access tokens', () => {
   let tokenId: number;
   const v1 = (tok: string | null, query = '', method = 'GET') =>
     (method === 'GET' ? v1RunsRoute.GET : (v1RunsRoute as any)[method])(
-      new Request(`http://localhost/api/v1/studies/${studyId}/releases/latest/runs${query}`, { method, headers: tok ? { authorization: `Bearer ${tok}` } : {} }),
+      new Request(`http://localhost/api/v1/studies/${studyId}/releases/latest/runs${query}`, {
+        method,
+        headers: tok ? { authorization: `Bearer ${tok}` } : {},
+      }),
       { params: Promise.resolve({ id: String(studyId) }) },
     ) as Promise<Response>;
 
   it('creates a token shown once and stored as sha256; a rater may not create one', async () => {
     actAs(u('rater1'));
-    expect((await callRoute(tokensRoute.POST, { method: 'POST', url: '/api/account/tokens', params: {}, body: { name: 'x' } })).status).toBe(403);
+    expect(
+      (await callRoute(tokensRoute.POST, { method: 'POST', url: '/api/account/tokens', params: {}, body: { name: 'x' } })).status,
+    ).toBe(403);
     actAs(u('observer'));
-    const res = await callRoute(tokensRoute.POST, { method: 'POST', url: '/api/account/tokens', params: {}, body: { name: 'lab pipeline' } });
+    const res = await callRoute(tokensRoute.POST, {
+      method: 'POST',
+      url: '/api/account/tokens',
+      params: {},
+      body: { name: 'lab pipeline' },
+    });
     expect(res.status).toBe(201);
     token = res.json.token;
     tokenId = res.json.id;
@@ -485,7 +646,7 @@ describe('pipeline API with personal access tokens', () => {
     expect(JSON.stringify(list.json)).not.toContain(row.token_hash);
   });
 
-  it('fetches the latest release\'s noise lists by entities and a file, and records last_used_at', async () => {
+  it("fetches the latest release's noise lists by entities and a file, and records last_used_at", async () => {
     const res = await v1(token, '?sub=rel02&task=rest');
     expect(res.status).toBe(200);
     const body = await res.json();
@@ -494,39 +655,55 @@ describe('pipeline API with personal access tokens', () => {
     const r = body.runs[0];
     expect(r.entities).toMatchObject({ sub: 'rel02', ses: '1', task: 'rest' });
     expect(r.k).toBe(8);
-    const frozen = await db('release_decisions').where({ release_id: body.release.id, run_id: r.runId, label: 'noise' }).orderBy('idx').pluck('idx');
+    const frozen = await db('release_decisions')
+      .where({ release_id: body.release.id, run_id: r.runId, label: 'noise' })
+      .orderBy('idx')
+      .pluck('idx');
     expect(r.noise).toEqual(frozen);
     const txtName = Object.keys(r.files).find((n) => n.endsWith('.txt'))!;
     const url = new URL(r.files[txtName].url);
     const [, , , , relId, , name] = url.pathname.split('/');
-    const file = await v1FileRoute.GET(new Request(url, { headers: { authorization: `Bearer ${token}` } }), { params: Promise.resolve({ releaseId: relId!, name: name! }) });
+    const file = await v1FileRoute.GET(new Request(url, { headers: { authorization: `Bearer ${token}` } }), {
+      params: Promise.resolve({ releaseId: relId!, name: name! }),
+    });
     expect(file.status).toBe(200);
     expect((await file.text()).trim()).toBe(frozen.join(','));
     expect((await db('personal_access_tokens').where({ id: tokenId }).first()).last_used_at).toBeInstanceOf(Date);
   });
 
-  it('names each run\'s own latest release (a later single-run release supersedes the study release for that run) and lists and serves denoised files', async () => {
+  it("names each run's own latest release (a later single-run release supersedes the study release for that run) and lists and serves denoised files", async () => {
     const body = await (await v1(token)).json();
     const newestWith = async (runId: number) =>
-      Number((await db('release_decisions').where({ run_id: runId }).max('release_id as id').first() as { id: number }).id);
+      Number(((await db('release_decisions').where({ run_id: runId }).max('release_id as id').first()) as { id: number }).id);
     for (const run of runs) {
       const entry = body.runs.find((r: any) => r.runId === run.runId);
-      const expected = await db('releases').where({ id: await newestWith(run.runId) }).first('id', 'version', 'run_id');
+      const expected = await db('releases')
+        .where({ id: await newestWith(run.runId) })
+        .first('id', 'version', 'run_id');
       expect(entry.release).toMatchObject({ id: expected.id, version: expected.version, scope: expected.run_id ? 'run' : 'study' });
-      expect(entry.noise).toEqual(await db('release_decisions').where({ release_id: expected.id, run_id: run.runId, label: 'noise' }).orderBy('idx').pluck('idx'));
+      expect(entry.noise).toEqual(
+        await db('release_decisions').where({ release_id: expected.id, run_id: run.runId, label: 'noise' }).orderBy('idx').pluck('idx'),
+      );
     }
     expect(body.runs.find((r: any) => r.runId === runs[0]!.runId).release.scope).toBe('run');
     // the full regression with motion (previous describe) was made from the latest study release of rel02
     const rel02 = body.runs.find((r: any) => r.runId === runs[1]!.runId);
     expect(rel02.release.scope).toBe('study');
-    const job = await db('jobs').where({ kind: 'denoise', run_id: runs[1]!.runId, status: 'succeeded' }).orderBy('id', 'desc').first('result');
+    const job = await db('jobs')
+      .where({ kind: 'denoise', run_id: runs[1]!.runId, status: 'succeeded' })
+      .orderBy('id', 'desc')
+      .first('result');
     const result = typeof job.result === 'string' ? JSON.parse(job.result) : job.result;
     expect(result.name).toBe('sub-rel02_ses-1_task-rest_desc-denoisedfullmotion_bold.nii.gz');
-    expect(rel02.denoised).toEqual([expect.objectContaining({ name: result.name, mode: 'full', includeMotion: true, sha256: result.sha256, bytes: result.bytes })]);
+    expect(rel02.denoised).toEqual([
+      expect.objectContaining({ name: result.name, mode: 'full', includeMotion: true, sha256: result.sha256, bytes: result.bytes }),
+    ]);
     expect(rel02.files[result.name].sha256).toBe(result.sha256);
     const url = new URL(rel02.denoised[0].url);
     const [, , , , relId, , name] = url.pathname.split('/');
-    const file = await v1FileRoute.GET(new Request(url, { headers: { authorization: `Bearer ${token}` } }), { params: Promise.resolve({ releaseId: relId!, name: decodeURIComponent(name!) }) });
+    const file = await v1FileRoute.GET(new Request(url, { headers: { authorization: `Bearer ${token}` } }), {
+      params: Promise.resolve({ releaseId: relId!, name: decodeURIComponent(name!) }),
+    });
     expect(file.status).toBe(200);
     expect(sha(await bytesOf(file))).toBe(result.sha256);
     // and the release itself lists it for the release page
@@ -546,12 +723,30 @@ describe('pipeline API with personal access tokens', () => {
     }
     actAs(u('lead'));
     expect((await v1(null)).status).toBe(401);
-    const outside = await v1RunsRoute.GET(new Request('http://localhost/x', { headers: { authorization: `Bearer ${token}` } }), { params: Promise.resolve({ id: '999999' }) });
+    const outside = await v1RunsRoute.GET(new Request('http://localhost/x', { headers: { authorization: `Bearer ${token}` } }), {
+      params: Promise.resolve({ id: '999999' }),
+    });
     expect(outside.status).toBe(404);
     actAs(u('lead'));
-    expect((await callRoute(tokenRoute.DELETE, { method: 'DELETE', url: `/api/account/tokens/${tokenId}`, params: { tokenId: String(tokenId) } })).status).toBe(404); // not the lead's token
+    expect(
+      (
+        await callRoute(tokenRoute.DELETE, {
+          method: 'DELETE',
+          url: `/api/account/tokens/${tokenId}`,
+          params: { tokenId: String(tokenId) },
+        })
+      ).status,
+    ).toBe(404); // not the lead's token
     actAs(u('observer'));
-    expect((await callRoute(tokenRoute.DELETE, { method: 'DELETE', url: `/api/account/tokens/${tokenId}`, params: { tokenId: String(tokenId) } })).status).toBe(200);
+    expect(
+      (
+        await callRoute(tokenRoute.DELETE, {
+          method: 'DELETE',
+          url: `/api/account/tokens/${tokenId}`,
+          params: { tokenId: String(tokenId) },
+        })
+      ).status,
+    ).toBe(200);
     const revoked = await v1(token);
     expect(revoked.status).toBe(401);
     expect((await revoked.json()).error.message).toMatch(/revoked/);
@@ -585,11 +780,15 @@ describe('a release job that can no longer go through', () => {
     const before = await newest();
     const dec = await db('decompositions').where({ run_id: runs[0]!.runId, is_current: true }).first('id', 'components_bytes');
     expect(dec.components_bytes).not.toBeNull(); // kept by the first release
-    await db('decompositions').where({ id: dec.id }).update({ components_bytes: Number(dec.components_bytes) + 1 });
+    await db('decompositions')
+      .where({ id: dec.id })
+      .update({ components_bytes: Number(dec.components_bytes) + 1 });
     try {
       const res = await buildRequestedRelease(db, await release());
       expect(res.json.jobStatus).toBe('failed');
-      expect(res.json.jobMessage).toContain(`The component maps of run ${runs[0]!.runId} are ${dec.components_bytes} bytes on storage but ${Number(dec.components_bytes) + 1} bytes were stored`);
+      expect(res.json.jobMessage).toContain(
+        `The component maps of run ${runs[0]!.runId} are ${dec.components_bytes} bytes on storage but ${Number(dec.components_bytes) + 1} bytes were stored`,
+      );
       expect(res.json.jobMessage).toContain('decompose the run again');
       expect(await newest()).toBe(before);
     } finally {
@@ -600,12 +799,23 @@ describe('a release job that can no longer go through', () => {
 
 describe('runs whose files would share names', () => {
   it('refuses a release when two runs have the same BIDS entities, naming both', async () => {
-    const twin = await createReadyRun(db, { studyId, createdBy: u('lead'), raterIds: [u('rater1')], size: 'tiny', seed: 31, sub: 'rel01', components: 4 });
-    for (const componentId of twin.componentIds) await db('decisions').insert({ component_id: componentId, run_id: twin.runId, label: 'signal', method: 'unanimous' });
+    const twin = await createReadyRun(db, {
+      studyId,
+      createdBy: u('lead'),
+      raterIds: [u('rater1')],
+      size: 'tiny',
+      seed: 31,
+      sub: 'rel01',
+      components: 4,
+    });
+    for (const componentId of twin.componentIds)
+      await db('decisions').insert({ component_id: componentId, run_id: twin.runId, label: 'signal', method: 'unanimous' });
     actAs(u('lead'));
     const res = await release();
     expect(res.status).toBe(409);
-    expect(res.json.error.message).toContain(`Runs ${runs[0]!.runId} and ${twin.runId} have the same BIDS entities (sub-rel01_ses-1_task-rest)`);
+    expect(res.json.error.message).toContain(
+      `Runs ${runs[0]!.runId} and ${twin.runId} have the same BIDS entities (sub-rel01_ses-1_task-rest)`,
+    );
     expect(await db('releases').where({ study_id: studyId, run_key: 0 }).max('version as v').first()).toMatchObject({ v: 2 });
   });
 });

@@ -54,7 +54,9 @@ beforeAll(async () => {
   studyId = s.studyId;
   raters = s.raterIds;
   run = await createReadyRun(db, { studyId: s.studyId, createdBy: leadId, raterIds: raters, seed: 41, components: 4, sub: 'reopenmail' });
-  await db('assignments').where({ run_id: run.runId }).update({ submitted_at: db.fn.now(3), first_submitted_at: db.fn.now(3) });
+  await db('assignments')
+    .where({ run_id: run.runId })
+    .update({ submitted_at: db.fn.now(3), first_submitted_at: db.fn.now(3) });
 });
 afterAll(async () => {
   server?.kill('SIGTERM');
@@ -66,11 +68,19 @@ afterAll(async () => {
 
 const reopen = (raterId: number, reason: string) => {
   actAs(leadId);
-  return callRoute(reopenRoute.POST, { method: 'POST', url: `/api/runs/${run.runId}/assignments/${raterId}/reopen`, params: { id: String(run.runId), raterId: String(raterId) }, body: { reason } });
+  return callRoute(reopenRoute.POST, {
+    method: 'POST',
+    url: `/api/runs/${run.runId}/assignments/${raterId}/reopen`,
+    params: { id: String(run.runId), raterId: String(raterId) },
+    body: { reason },
+  });
 };
 const outboxFor = async (raterId: number) => {
   const { email } = await db('users').where({ id: raterId }).first('email');
-  return { email: String(email), rows: await db('mail_outbox').where({ to_email: email, template: 'run-reopened' }).select('id', 'subject', 'text_body as text') };
+  return {
+    email: String(email),
+    rows: await db('mail_outbox').where({ to_email: email, template: 'run-reopened' }).select('id', 'subject', 'text_body as text'),
+  };
 };
 
 describe('reopening a submitted run', () => {
@@ -81,9 +91,11 @@ describe('reopening a submitted run', () => {
     expect(rows).toHaveLength(1);
     const job = await db('jobs').where({ kind: SEND_MAIL }).whereRaw("JSON_VALUE(payload, '$.outboxId') = ?", [rows[0].id]).first('id');
     expect(job, 'a send-mail job for the outbox row').toBeTruthy();
-    await db('jobs').where({ id: job.id }).update({ run_after: db.raw('NOW(3)') });
+    await db('jobs')
+      .where({ id: job.id })
+      .update({ run_after: db.raw('NOW(3)') });
     // as the worker does: send-mail jobs in queue order (earlier test files may have left some) until ours ran
-    for (let claimed; (claimed = await claimJob(db, { workerId: 'reopen-mail-test', leaseMs: 10_000, kinds: [SEND_MAIL] })); ) {
+    for (let claimed; (claimed = await claimJob(db, { workerId: 'reopen-mail-test', leaseMs: 10_000, kinds: [SEND_MAIL] }));) {
       await runClaimedJob(db, claimed, { workerId: 'reopen-mail-test', leaseMs: 10_000, kinds: jobKinds, logger: quiet, retryBaseMs: 0 });
       if (claimed.id === Number(job.id)) break;
     }
@@ -108,12 +120,26 @@ describe('reopening a submitted run', () => {
     const refusal = () => releaseReadiness({ studyId, runId: run.runId }).then((r) => refusalOf(r, studyId));
     // every component decided by the lead, so only the reopening stands in the way
     await db('decisions').where({ run_id: run.runId }).delete();
-    await db('decisions').insert(run.componentIds.map((c) => ({ component_id: c, run_id: run.runId, label: 'signal', method: 'override', decided_by: leadId, decided_at: db.fn.now(3) })));
+    await db('decisions').insert(
+      run.componentIds.map((c) => ({
+        component_id: c,
+        run_id: run.runId,
+        label: 'signal',
+        method: 'override',
+        decided_by: leadId,
+        decided_at: db.fn.now(3),
+      })),
+    );
     expect(await refusal()).toMatch(/reopened runs for .*\(run \d+\), .*\(run \d+\), who have not submitted again/);
     const lead = await db('users').where({ id: leadId }).first('id', 'role', 'name');
-    await expect(requestRelease({ user: lead, studyId, runId: run.runId })).rejects.toMatchObject({ code: 'conflict', message: expect.stringMatching(/Release once they have submitted/) });
+    await expect(requestRelease({ user: lead, studyId, runId: run.runId })).rejects.toMatchObject({
+      code: 'conflict',
+      message: expect.stringMatching(/Release once they have submitted/),
+    });
 
-    await db('assignments').where({ run_id: run.runId }).update({ submitted_at: db.fn.now(3) });
+    await db('assignments')
+      .where({ run_id: run.runId })
+      .update({ submitted_at: db.fn.now(3) });
     expect(await refusal()).toBeNull();
   });
 });

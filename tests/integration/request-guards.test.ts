@@ -37,7 +37,12 @@ async function post(init: RequestInit & { duplex?: 'half' }) {
 const json = (name: string) => ({ 'content-type': 'application/json', body: JSON.stringify({ name }) });
 
 beforeAll(async () => {
-  const [id] = await db('users').insert({ email: `guards-${tag}@fernhollow.example`, name: `Guards ${tag}`, role: 'observer', active: true });
+  const [id] = await db('users').insert({
+    email: `guards-${tag}@fernhollow.example`,
+    name: `Guards ${tag}`,
+    role: 'observer',
+    active: true,
+  });
   userId = Number(id);
   // a live session of a fresh account: session id, and session version 0 (lib/auth/session.ts)
   session.current = { user: { id: userId, sid: `guards-${tag}`, sv: 0 } };
@@ -119,12 +124,19 @@ describe('body type and size', () => {
         else controller.enqueue(new TextEncoder().encode(' '.repeat(1024)));
       },
     });
-    const r = await post({ headers: { 'content-type': 'application/json', 'content-length': String(MAX_JSON_BODY_BYTES + 1) }, body, duplex: 'half' });
+    const r = await post({
+      headers: { 'content-type': 'application/json', 'content-length': String(MAX_JSON_BODY_BYTES + 1) },
+      body,
+      duplex: 'half',
+    });
     expect(r.status).toBe(413);
     expect(pulled).toBeLessThanOrEqual(1); // a stream may pull once when it is created; the wrapper reads nothing
   });
 
   it('still takes a JSON body under the limit', async () => {
-    expect((await post({ headers: { 'content-type': 'application/json; charset=utf-8' }, body: JSON.stringify({ name: 'x'.repeat(100) }) })).status).toBe(201);
+    expect(
+      (await post({ headers: { 'content-type': 'application/json; charset=utf-8' }, body: JSON.stringify({ name: 'x'.repeat(100) }) }))
+        .status,
+    ).toBe(201);
   });
 });

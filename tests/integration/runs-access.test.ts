@@ -48,14 +48,24 @@ const q = (name: string, sub: string) => runUploadQuerySchema.parse({ name, sub,
 const email = async (id: number) => (await db('users').where({ id }).first('email')).email as string;
 
 async function refusal(p: Promise<unknown>): Promise<AppError> {
-  const err = await p.then(() => null, (e: unknown) => e);
+  const err = await p.then(
+    () => null,
+    (e: unknown) => e,
+  );
   expect(err).toBeInstanceOf(AppError);
   return err as AppError;
 }
 
 beforeAll(async () => {
   uploads = await useTempUploads();
-  for (const [key, role] of [['lead', 'lead'], ['otherLead', 'lead'], ['rater', 'rater'], ['rater2', 'rater'], ['observer', 'observer'], ['admin', 'admin']] as const) {
+  for (const [key, role] of [
+    ['lead', 'lead'],
+    ['otherLead', 'lead'],
+    ['rater', 'rater'],
+    ['rater2', 'rater'],
+    ['observer', 'observer'],
+    ['admin', 'admin'],
+  ] as const) {
     users[key] = { id: await createUser(db, { role }), role };
   }
   studyId = await createStudy({ user: users.lead, values: studySchema.parse({ ...STUDY_DEFAULTS, name: 'Access study', dropVolumes: 2 }) });
@@ -63,8 +73,12 @@ beforeAll(async () => {
   await addMember({ actor: users.lead, studyId, email: await email(users.rater.id), studyRole: 'rater' });
   await addMember({ actor: users.lead, studyId, email: await email(users.rater2.id), studyRole: 'rater' });
   await addMember({ actor: users.lead, studyId, email: await email(users.observer.id), studyRole: 'observer' });
-  runA = (await uploadRun({ user: users.lead, studyId, query: q('sub-01_task-rest_bold.nii.gz', '01'), raw: rawBody(fixture('good-run.nii.gz')) })).id;
-  runB = (await uploadRun({ user: users.admin, studyId, query: q('sub-02_task-rest_bold.nii', '02'), raw: rawBody(fixture('good-run-b.nii')) })).id;
+  runA = (
+    await uploadRun({ user: users.lead, studyId, query: q('sub-01_task-rest_bold.nii.gz', '01'), raw: rawBody(fixture('good-run.nii.gz')) })
+  ).id;
+  runB = (
+    await uploadRun({ user: users.admin, studyId, query: q('sub-02_task-rest_bold.nii', '02'), raw: rawBody(fixture('good-run-b.nii')) })
+  ).id;
   await db('assignments').insert({ run_id: runA, rater_id: users.rater.id, assigned_by: users.lead.id });
 });
 
@@ -77,7 +91,12 @@ describe('studies', () => {
   it('makes the creator the lead member and keeps the protocol', async () => {
     const access = await findStudyForUser({ user: users.lead, studyId });
     expect(access).toMatchObject({ studyRole: 'lead', canManage: true, seesAllRuns: true });
-    expect(access!.study).toMatchObject({ blinding: true, dimMethod: 'iid-mdl', dropVolumes: 2, labelSet: ['signal', 'noise', 'uncertain'] });
+    expect(access!.study).toMatchObject({
+      blinding: true,
+      dimMethod: 'iid-mdl',
+      dropVolumes: 2,
+      labelSet: ['signal', 'noise', 'uncertain'],
+    });
     await updateStudy({ user: users.lead, studyId, values: { dimMethod: 'fixed', fixedComponents: 12, allowUncertain: false } });
     const after = await findStudyForUser({ user: users.lead, studyId });
     expect(after!.study).toMatchObject({ dimMethod: 'fixed', fixedComponents: 12, labelSet: ['signal', 'noise'] });
@@ -87,8 +106,12 @@ describe('studies', () => {
   it('refuses a fixed method without N, and member changes that break the rules', async () => {
     expect(studySchema.safeParse({ ...STUDY_DEFAULTS, name: 'x y z', dimMethod: 'fixed', fixedComponents: null }).success).toBe(false);
     expect(studySchema.safeParse({ ...STUDY_DEFAULTS, name: 'x y z', ratersPerRun: 6 }).success).toBe(false);
-    expect((await refusal(addMember({ actor: users.lead, studyId, email: 'nobody@test.quorum.invalid', studyRole: 'rater' }))).status).toBe(404);
-    expect((await refusal(addMember({ actor: users.lead, studyId, email: await email(users.observer.id), studyRole: 'lead' }))).message).toMatch(/cannot be a study lead/);
+    expect((await refusal(addMember({ actor: users.lead, studyId, email: 'nobody@test.quorum.invalid', studyRole: 'rater' }))).status).toBe(
+      404,
+    );
+    expect(
+      (await refusal(addMember({ actor: users.lead, studyId, email: await email(users.observer.id), studyRole: 'lead' }))).message,
+    ).toMatch(/cannot be a study lead/);
     expect((await refusal(removeMember({ actor: users.lead, studyId, userId: users.lead.id }))).message).toMatch(/only lead/);
   });
 
@@ -103,7 +126,9 @@ describe('refusals by role', () => {
     expect(can('observer', 'runs.upload')).toBe(false);
     expect(can('observer', 'runs.manage')).toBe(false);
     for (const who of [users.rater, users.observer]) {
-      const err = await refusal(uploadRun({ user: who, studyId, query: q('sub-03_bold.nii.gz', '03'), raw: rawBody(fixture('good-run.nii.gz')) }));
+      const err = await refusal(
+        uploadRun({ user: who, studyId, query: q('sub-03_bold.nii.gz', '03'), raw: rawBody(fixture('good-run.nii.gz')) }),
+      );
       expect(err.status).toBe(403);
       expect(err.message).toMatch(/only its leads and the facility admin/);
       expect((await refusal(deleteRun({ user: who, runId: runA, confirmVotes: true }))).status).toBe(403);
@@ -111,7 +136,13 @@ describe('refusals by role', () => {
   });
 
   it('a lead of another study can neither upload nor change runs (404: the study is not theirs to see)', async () => {
-    expect((await refusal(uploadRun({ user: users.otherLead, studyId, query: q('sub-03_bold.nii.gz', '03'), raw: rawBody(fixture('good-run.nii.gz')) }))).status).toBe(404);
+    expect(
+      (
+        await refusal(
+          uploadRun({ user: users.otherLead, studyId, query: q('sub-03_bold.nii.gz', '03'), raw: rawBody(fixture('good-run.nii.gz')) }),
+        )
+      ).status,
+    ).toBe(404);
     expect((await refusal(queueRun({ user: users.otherLead, runId: runA }))).status).toBe(404);
     expect((await refusal(deleteRun({ user: users.otherLead, runId: runA, confirmVotes: true }))).status).toBe(404);
     expect(await listRunsForStudy({ user: users.otherLead, studyId })).toEqual([]);
@@ -143,7 +174,10 @@ describe('run actions', () => {
     await cancelRun({ user: users.lead, runId: runB });
     const again = await queueRun({ user: users.lead, runId: runB, settings: { dimMethod: 'fixed', fixedComponents: 7 } });
     const job = await db('jobs').where({ id: again.job!.id }).first('payload');
-    expect(typeof job.payload === 'string' ? JSON.parse(job.payload) : job.payload).toEqual({ runId: runB, decompositionOptions: { components: 7 } });
+    expect(typeof job.payload === 'string' ? JSON.parse(job.payload) : job.payload).toEqual({
+      runId: runB,
+      decompositionOptions: { components: 7 },
+    });
   });
 
   it('deleting a run with votes asks twice, then removes it, its files and writes an audit entry', async () => {
@@ -158,9 +192,14 @@ describe('run actions', () => {
     await deleteRun({ user: users.lead, runId: runA, confirmVotes: true });
     expect(await db('runs').where({ id: runA }).first()).toBeUndefined();
     expect(await db('votes').where({ run_id: runA }).first()).toBeUndefined();
-    const audit = await db('audit_log').where({ action: 'run.delete', target_id: String(runA) }).first();
+    const audit = await db('audit_log')
+      .where({ action: 'run.delete', target_id: String(runA) })
+      .first();
     expect(audit).toBeDefined();
-    expect(typeof audit.detail === 'string' ? JSON.parse(audit.detail) : audit.detail).toMatchObject({ votes: 1, entities: 'sub-01_task-rest' });
+    expect(typeof audit.detail === 'string' ? JSON.parse(audit.detail) : audit.detail).toMatchObject({
+      votes: 1,
+      entities: 'sub-01_task-rest',
+    });
     expect(() => readFileSync(path.join(uploads.dir, fileKey))).toThrow();
   });
 });

@@ -30,21 +30,41 @@ let studyId: number;
 let first: number;
 let twin: number;
 const u = (name: string) => users[`${name}@fernhollow.example`]!;
-const patch = (runId: number, body: unknown) => callRoute(runRoute.PATCH, { method: 'PATCH', url: `/api/runs/${runId}`, params: { id: String(runId) }, body });
-const release = () => callRoute(releasesRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/releases`, params: { id: String(studyId) }, body: {} });
+const patch = (runId: number, body: unknown) =>
+  callRoute(runRoute.PATCH, { method: 'PATCH', url: `/api/runs/${runId}`, params: { id: String(runId) }, body });
+const release = () =>
+  callRoute(releasesRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/releases`, params: { id: String(studyId) }, body: {} });
 
 beforeAll(async () => {
   users = (await seedDemo(db)).users;
   const [id] = await db('studies').insert({
-    name: 'Relabel study ' + Date.now(), created_by: u('lead'), raters_per_run: 1, consensus_rule: 'majority',
-    label_set: JSON.stringify(['signal', 'noise']), noise_kinds: JSON.stringify(['other']),
+    name: 'Relabel study ' + Date.now(),
+    created_by: u('lead'),
+    raters_per_run: 1,
+    consensus_rule: 'majority',
+    label_set: JSON.stringify(['signal', 'noise']),
+    noise_kinds: JSON.stringify(['other']),
   });
   studyId = Number(id);
-  for (const [who, role] of [['lead', 'lead'], ['rater1', 'rater'], ['observer', 'observer']] as const) await db('study_members').insert({ study_id: studyId, user_id: u(who), study_role: role });
+  for (const [who, role] of [
+    ['lead', 'lead'],
+    ['rater1', 'rater'],
+    ['observer', 'observer'],
+  ] as const)
+    await db('study_members').insert({ study_id: studyId, user_id: u(who), study_role: role });
   const made = [];
   for (const seed of [41, 42]) {
-    const run = await createReadyRun(db, { studyId, createdBy: u('lead'), raterIds: [u('rater1')], size: 'tiny', seed, sub: 'twin01', components: 4 });
-    for (const componentId of run.componentIds) await db('decisions').insert({ component_id: componentId, run_id: run.runId, label: 'signal', method: 'unanimous' });
+    const run = await createReadyRun(db, {
+      studyId,
+      createdBy: u('lead'),
+      raterIds: [u('rater1')],
+      size: 'tiny',
+      seed,
+      sub: 'twin01',
+      components: 4,
+    });
+    for (const componentId of run.componentIds)
+      await db('decisions').insert({ component_id: componentId, run_id: run.runId, label: 'signal', method: 'unanimous' });
     made.push(run.runId);
   }
   [first, twin] = made as [number, number];

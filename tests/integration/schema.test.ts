@@ -15,9 +15,26 @@ import { verifyPassword } from '@/lib/auth/password';
 import { recreateDatabase } from './global-setup';
 
 const EXPECTED_TABLES = [
-  'assignments', 'audit_log', 'components', 'decisions', 'decompositions', 'invitations', 'jobs',
-  'mail_outbox', 'notifications', 'personal_access_tokens', 'rater_certifications', 'reference_labels',
-  'release_decisions', 'releases', 'runs', 'sign_in_throttles', 'studies', 'study_members', 'users', 'votes',
+  'assignments',
+  'audit_log',
+  'components',
+  'decisions',
+  'decompositions',
+  'invitations',
+  'jobs',
+  'mail_outbox',
+  'notifications',
+  'personal_access_tokens',
+  'rater_certifications',
+  'reference_labels',
+  'release_decisions',
+  'releases',
+  'runs',
+  'sign_in_throttles',
+  'studies',
+  'study_members',
+  'users',
+  'votes',
 ];
 
 const base = resolveDbSettings();
@@ -26,7 +43,10 @@ let scratch: Knex;
 
 async function tables(conn: Knex, database: string): Promise<string[]> {
   const rows = await conn('information_schema.tables').where({ table_schema: database }).select('table_name as name');
-  return rows.map((r: { name: string }) => r.name).filter((n: string) => !n.startsWith('knex_')).sort();
+  return rows
+    .map((r: { name: string }) => r.name)
+    .filter((n: string) => !n.startsWith('knex_'))
+    .sort();
 }
 
 async function createDefinitions(conn: Knex, names: string[]): Promise<Record<string, string>> {
@@ -50,18 +70,33 @@ async function expectDbError(promise: Promise<unknown>, code: string): Promise<v
 /** study → run → decomposition → two components, with the demo users as raters. */
 async function makeRun(conn: Knex, users: Record<string, number>, studyId: number, sha = 'a'.repeat(64)) {
   await conn('runs').insert({
-    study_id: studyId, sub: '01', ses: '1', task: 'rest', original_name: 'sub-01_ses-1_task-rest_bold.nii.gz',
-    file_key: `runs/${sha.slice(0, 8)}.nii.gz`, sha256: sha, size_bytes: 123456,
-    dims: toJson([64, 64, 36, 200]), tr_seconds: 2, volumes: 200, datatype: 'int16',
-    created_by: users['lead@fernhollow.example'], status: 'ready',
+    study_id: studyId,
+    sub: '01',
+    ses: '1',
+    task: 'rest',
+    original_name: 'sub-01_ses-1_task-rest_bold.nii.gz',
+    file_key: `runs/${sha.slice(0, 8)}.nii.gz`,
+    sha256: sha,
+    size_bytes: 123456,
+    dims: toJson([64, 64, 36, 200]),
+    tr_seconds: 2,
+    volumes: 200,
+    datatype: 'int16',
+    created_by: users['lead@fernhollow.example'],
+    status: 'ready',
   });
   const run = await conn('runs').where({ study_id: studyId, sha256: sha }).first('id');
   await conn('decompositions').insert({ run_id: run.id, parameters: toJson({ seed: 1 }), k: 2, is_current: true });
   const dec = await conn('decompositions').where({ run_id: run.id, is_current: true }).first('id');
-  await conn('components').insert([1, 2].map((idx) => ({
-    decomposition_id: dec.id, idx, variance_explained: 0.1 / idx, features: toJson({ kurtosis: 3 + idx }),
-    timecourse: float32ToBlob([0.5, -1.25, 2]),
-  })));
+  await conn('components').insert(
+    [1, 2].map((idx) => ({
+      decomposition_id: dec.id,
+      idx,
+      variance_explained: 0.1 / idx,
+      features: toJson({ kurtosis: 3 + idx }),
+      timecourse: float32ToBlob([0.5, -1.25, 2]),
+    })),
+  );
   const comps = await conn('components').where({ decomposition_id: dec.id }).orderBy('idx').select('id');
   return { runId: run.id as number, decompositionId: dec.id as number, componentIds: comps.map((c: { id: number }) => c.id) };
 }
@@ -105,7 +140,10 @@ describe('connection settings', () => {
     const down = { ...base, host: '127.0.0.1', port: 1, external: false };
     const conn = createDb(down);
     try {
-      const err = await checkDatabase(conn, down).then(() => null, (e: Error) => e);
+      const err = await checkDatabase(conn, down).then(
+        () => null,
+        (e: Error) => e,
+      );
       expect(err).toBeInstanceOf(Error);
       expect(err!.message).toBe('Cannot reach MariaDB at 127.0.0.1:1 — start it with `npm run db start` (or set DATABASE_URL)');
       expect(err!.message).toBe(unreachableMessage(down));
@@ -162,7 +200,14 @@ describe('constraints and types', () => {
 
   it('refuses a second vote by the same rater on the same component', async () => {
     const { runId, componentIds } = await makeRun(scratch, users, studyId);
-    const vote = { component_id: componentIds[0], run_id: runId, rater_id: users['rater1@fernhollow.example'], label: 'noise', noise_kind: 'motion', confidence: 4 };
+    const vote = {
+      component_id: componentIds[0],
+      run_id: runId,
+      rater_id: users['rater1@fernhollow.example'],
+      label: 'noise',
+      noise_kind: 'motion',
+      confidence: 4,
+    };
     await scratch('votes').insert(vote);
     await expectDbError(scratch('votes').insert({ ...vote, label: 'signal' }), 'ER_DUP_ENTRY');
     // another rater on the same component is fine
@@ -170,7 +215,10 @@ describe('constraints and types', () => {
     // a second decision for a component, a second membership, a second assignment: refused
     await scratch('decisions').insert({ component_id: componentIds[0], run_id: runId, method: 'pending' });
     await expectDbError(scratch('decisions').insert({ component_id: componentIds[0], run_id: runId, method: 'pending' }), 'ER_DUP_ENTRY');
-    await expectDbError(scratch('study_members').insert({ study_id: studyId, user_id: users['rater1@fernhollow.example'], study_role: 'observer' }), 'ER_DUP_ENTRY');
+    await expectDbError(
+      scratch('study_members').insert({ study_id: studyId, user_id: users['rater1@fernhollow.example'], study_role: 'observer' }),
+      'ER_DUP_ENTRY',
+    );
     await scratch('assignments').insert({ run_id: runId, rater_id: users['rater3@fernhollow.example'] });
     await expectDbError(scratch('assignments').insert({ run_id: runId, rater_id: users['rater3@fernhollow.example'] }), 'ER_DUP_ENTRY');
   });
@@ -181,7 +229,10 @@ describe('constraints and types', () => {
     await expectDbError(makeRun(scratch, users, studyId, sha), 'ER_DUP_ENTRY');
     await expectDbError(scratch('decompositions').insert({ run_id: runId, parameters: '{}', k: 3, is_current: true }), 'ER_DUP_ENTRY');
     await scratch('decompositions').insert({ run_id: runId, parameters: '{}', k: 3, is_current: false }); // history is fine
-    await expectDbError(scratch('components').insert({ decomposition_id: decompositionId, idx: 1, variance_explained: 0, features: '{}' }), 'ER_DUP_ENTRY');
+    await expectDbError(
+      scratch('components').insert({ decomposition_id: decompositionId, idx: 1, variance_explained: 0, features: '{}' }),
+      'ER_DUP_ENTRY',
+    );
   });
 
   it('refuses a duplicate release version, also for study-wide releases (run_id NULL)', async () => {
@@ -196,11 +247,20 @@ describe('constraints and types', () => {
       scratch('votes').insert({ component_id: 999999, run_id: 999999, rater_id: users['rater1@fernhollow.example'], label: 'signal' }),
       'ER_NO_REFERENCED_ROW_2',
     );
-    await expectDbError(scratch('study_members').insert({ study_id: 999999, user_id: users['rater4@fernhollow.example'], study_role: 'rater' }), 'ER_NO_REFERENCED_ROW_2');
+    await expectDbError(
+      scratch('study_members').insert({ study_id: 999999, user_id: users['rater4@fernhollow.example'], study_role: 'rater' }),
+      'ER_NO_REFERENCED_ROW_2',
+    );
     await expectDbError(scratch('users').where({ email: 'rater1@fernhollow.example' }).delete(), 'ER_ROW_IS_REFERENCED_2');
 
     const { runId, componentIds } = await makeRun(scratch, users, studyId, 'c'.repeat(64));
-    await scratch('votes').insert({ component_id: componentIds[1], run_id: runId, rater_id: users['rater4@fernhollow.example'], label: 'uncertain', note: 'edge' });
+    await scratch('votes').insert({
+      component_id: componentIds[1],
+      run_id: runId,
+      rater_id: users['rater4@fernhollow.example'],
+      label: 'uncertain',
+      note: 'edge',
+    });
     await scratch('runs').where({ id: runId }).delete();
     expect(await scratch('components').whereIn('id', componentIds).count({ n: '*' })).toEqual([{ n: 0 }]);
     expect(await scratch('votes').where({ run_id: runId }).count({ n: '*' })).toEqual([{ n: 0 }]);
@@ -258,7 +318,12 @@ describe('demo seed', () => {
     expect(second.studyId).toBe(first.studyId);
     expect(second.created).toEqual({ users: 0, study: false });
 
-    const rows = await scratch('users').whereIn('email', DEMO_USERS.map((u) => u.email)).select('email', 'name', 'role', 'active', 'password_hash');
+    const rows = await scratch('users')
+      .whereIn(
+        'email',
+        DEMO_USERS.map((u) => u.email),
+      )
+      .select('email', 'name', 'role', 'active', 'password_hash');
     expect(rows).toHaveLength(DEMO_USERS.length);
     const admin = rows.find((r: { email: string }) => r.email === 'admin@fernhollow.example');
     expect(admin).toMatchObject({ name: 'Dana Okafor', role: 'admin', active: true });
@@ -269,12 +334,20 @@ describe('demo seed', () => {
 
     const study = await scratch('studies').where({ id: first.studyId }).first();
     expect(study).toMatchObject({
-      name: 'Evening light and sleep — resting state', raters_per_run: 3, consensus_rule: 'majority',
-      blinding: true, drop_volumes: 4, dim_method: 'iid-mdl', created_by: first.users['lead@fernhollow.example'],
+      name: 'Evening light and sleep — resting state',
+      raters_per_run: 3,
+      consensus_rule: 'majority',
+      blinding: true,
+      drop_volumes: 4,
+      dim_method: 'iid-mdl',
+      created_by: first.users['lead@fernhollow.example'],
     });
     expect(parseJson(study.label_set)).toEqual(['signal', 'noise', 'uncertain']);
-    const members = await scratch('study_members as m').join('users as u', 'u.id', 'm.user_id')
-      .where('m.study_id', first.studyId).select('u.email', 'm.study_role').orderBy('u.email');
+    const members = await scratch('study_members as m')
+      .join('users as u', 'u.id', 'm.user_id')
+      .where('m.study_id', first.studyId)
+      .select('u.email', 'm.study_role')
+      .orderBy('u.email');
     expect(members).toEqual([
       { email: 'lead@fernhollow.example', study_role: 'lead' },
       { email: 'observer@fernhollow.example', study_role: 'observer' },

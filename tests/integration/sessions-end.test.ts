@@ -55,7 +55,9 @@ describe('sessions that end', () => {
 
   it('a password change ends the other sessions and re-issues the one that made it', async () => {
     const id = await createUser(db, { role: 'rater' });
-    await db('users').where({ id }).update({ password_hash: await hashPassword('old-password-123') });
+    await db('users')
+      .where({ id })
+      .update({ password_hash: await hashPassword('old-password-123') });
     const [here, elsewhere] = [await signIn(id), await signIn(id)];
     const cookie = await encode({ token: { uid: id, sid: here.sid, sv: here.sv }, secret: authSecret() });
     actAs(id, here);
@@ -103,16 +105,30 @@ describe('sessions that end', () => {
     const sessions = [await signIn(id), await signIn(id)];
     for (const s of sessions) expect(await meAs(id, s)).toBe(200);
     actAs(id, sessions[0]);
-    const refused = await callRoute(sessionsRoute.DELETE, { method: 'DELETE', url: `/api/admin/users/${adminId}/sessions`, params: { id: String(adminId) } });
+    const refused = await callRoute(sessionsRoute.DELETE, {
+      method: 'DELETE',
+      url: `/api/admin/users/${adminId}/sessions`,
+      params: { id: String(adminId) },
+    });
     expect(refused.status).toBe(403);
     actAs(adminId, await signIn(adminId));
-    const ok = await callRoute(sessionsRoute.DELETE, { method: 'DELETE', url: `/api/admin/users/${id}/sessions`, params: { id: String(id) } });
+    const ok = await callRoute(sessionsRoute.DELETE, {
+      method: 'DELETE',
+      url: `/api/admin/users/${id}/sessions`,
+      params: { id: String(id) },
+    });
     expect(ok.status).toBe(200);
     for (const s of sessions) expect(await meAs(id, s)).toBe(401);
-    const audit = await db('audit_log').where({ action: 'user.signed_out_everywhere', target_id: String(id) }).first('actor_id');
+    const audit = await db('audit_log')
+      .where({ action: 'user.signed_out_everywhere', target_id: String(id) })
+      .first('actor_id');
     expect(audit?.actor_id).toBe(adminId);
     actAs(adminId, await signIn(adminId));
-    const missing = await callRoute(sessionsRoute.DELETE, { method: 'DELETE', url: '/api/admin/users/99999999/sessions', params: { id: '99999999' } });
+    const missing = await callRoute(sessionsRoute.DELETE, {
+      method: 'DELETE',
+      url: '/api/admin/users/99999999/sessions',
+      params: { id: '99999999' },
+    });
     expect(missing.status).toBe(404);
   });
 

@@ -41,7 +41,9 @@ describe('throttle', () => {
     const key = `ip:test-${uniqueSuffix()}` as const;
     await recordFailure(key);
     await recordFailure(key);
-    await db('sign_in_throttles').where({ key }).update({ window_start: db.raw('NOW(3) - INTERVAL 20 MINUTE') });
+    await db('sign_in_throttles')
+      .where({ key })
+      .update({ window_start: db.raw('NOW(3) - INTERVAL 20 MINUTE') });
     await recordFailure(key);
     expect(Number((await db('sign_in_throttles').where({ key }).first('failures')).failures)).toBe(1);
   });
@@ -95,11 +97,16 @@ describe('sign-in throttles (issue 13 items 6 and 7)', () => {
     );
   /** The wait the last failure set on the key, in ms (0 = none): locked_until minus the row's update time. */
   const delaySet = async (key: string) => {
-    const row = await db('sign_in_throttles').where({ key }).first(db.raw('TIMESTAMPDIFF(MICROSECOND, updated_at, locked_until) DIV 1000 AS ms'));
+    const row = await db('sign_in_throttles')
+      .where({ key })
+      .first(db.raw('TIMESTAMPDIFF(MICROSECOND, updated_at, locked_until) DIV 1000 AS ms'));
     return Math.max(0, Number(row?.ms ?? 0));
   };
   /** Lets every wait pass without waiting: the throttle rows' locks are moved into the past. */
-  const waitOut = () => db('sign_in_throttles').whereNotNull('locked_until').update({ locked_until: db.raw('NOW(3) - INTERVAL 1 SECOND') });
+  const waitOut = () =>
+    db('sign_in_throttles')
+      .whereNotNull('locked_until')
+      .update({ locked_until: db.raw('NOW(3) - INTERVAL 1 SECOND') });
 
   it('an attacker elsewhere meets growing waits but cannot lock the owner out', async () => {
     const email = await account('owners-password-1');
@@ -109,7 +116,10 @@ describe('sign-in throttles (issue 13 items 6 and 7)', () => {
       const res = await attempt(email, `guess-${i}`, attacker);
       expect(res.message).toBe('E-mail or password is wrong.');
       waits.push(await delaySet(pairKey(email, attacker.headers['x-quorum-peer'])));
-      if (waits[i] > 0) expect((await attempt(email, `guess-${i}-again`, attacker)).message).toMatch(/^Too many failed sign-ins\. Try again in \d+ (seconds?|minutes?)\.$/);
+      if (waits[i] > 0)
+        expect((await attempt(email, `guess-${i}-again`, attacker)).message).toMatch(
+          /^Too many failed sign-ins\. Try again in \d+ (seconds?|minutes?)\.$/,
+        );
       await waitOut();
     }
     // three free tries, then the wait doubles: 1 s, 2 s, 4 s … 256 s
@@ -122,7 +132,11 @@ describe('sign-in throttles (issue 13 items 6 and 7)', () => {
   it('limits one address over many accounts without a proxy, whatever X-Forwarded-For says', async () => {
     const address = `192.0.2.${Math.floor(Math.random() * 200) + 20}`;
     for (let i = 0; i < 11; i++) {
-      const res = await attempt(`nobody-${i}-${uniqueSuffix()}@t.invalid`, 'wrong-password', from(address, { 'x-forwarded-for': `10.9.8.${i}` }));
+      const res = await attempt(
+        `nobody-${i}-${uniqueSuffix()}@t.invalid`,
+        'wrong-password',
+        from(address, { 'x-forwarded-for': `10.9.8.${i}` }),
+      );
       expect(res.message).toBe('E-mail or password is wrong.');
     }
     const next = await attempt(`someone-${uniqueSuffix()}@t.invalid`, 'wrong-password', from(address, { 'x-forwarded-for': '10.0.0.99' }));

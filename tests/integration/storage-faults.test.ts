@@ -87,7 +87,12 @@ describe.skipIf(!mounted)('storage faults', () => {
     expect(parseJson(rows[0].detail)).toMatchObject({ kind: 'full', code: 'ENOSPC' });
     expect((await recentStorageFaults()).find((f) => f.kind === 'full')?.count).toBeGreaterThanOrEqual(1);
     expect((await readdir(path.join(mountPoint, 'tmp'), { recursive: true })).filter((f) => f.endsWith('.part'))).toEqual([]);
-    expect(await db('runs').where({ study_id: study.studyId }).count({ n: '*' }).then((r) => Number(r[0].n))).toBe(0);
+    expect(
+      await db('runs')
+        .where({ study_id: study.studyId })
+        .count({ n: '*' })
+        .then((r) => Number(r[0].n)),
+    ).toBe(0);
   });
 
   it("a read-only storage fails a decomposition's results with a message for people and alerts the admin", async () => {
@@ -99,13 +104,20 @@ describe.skipIf(!mounted)('storage faults', () => {
     const since = await lastAuditId();
     const { jobId } = await queueDecomposition(db, { runId, maxAttempts: 1 });
     // jobs other test files left queued wait until this one is claimed
-    await db('jobs').where({ status: 'queued' }).whereNot({ id: jobId }).update({ run_after: db.raw('NOW(3) + INTERVAL 1 DAY') });
+    await db('jobs')
+      .where({ status: 'queued' })
+      .whereNot({ id: jobId })
+      .update({ run_after: db.raw('NOW(3) + INTERVAL 1 DAY') });
     const job = await claimJob(db, { workerId: 'fault-test', leaseMs: 30_000, kinds: Object.keys(jobKinds) });
     expect(job?.id).toBe(jobId);
     const quiet = { info() {}, warn() {}, error() {} };
-    expect(await runClaimedJob(db, job!, { workerId: 'fault-test', leaseMs: 30_000, kinds: jobKinds, logger: quiet, retryBaseMs: 0 })).toBe('failed');
+    expect(await runClaimedJob(db, job!, { workerId: 'fault-test', leaseMs: 30_000, kinds: jobKinds, logger: quiet, retryBaseMs: 0 })).toBe(
+      'failed',
+    );
     const failed = await getJob(db, jobId);
-    expect(failed!.message).toBe("The results could not be written: the facility's storage refused the write (read-only or permission denied). The facility admin has been alerted.");
+    expect(failed!.message).toBe(
+      "The results could not be written: the facility's storage refused the write (read-only or permission denied). The facility admin has been alerted.",
+    );
     expect((await db('runs').where({ id: runId }).first('status_message')).status_message).not.toMatch(/EROFS|EPERM|\//);
     const rows = await faultsSince(since);
     // a read-only tmpfs answers mkdir -p with EROFS or ENOENT, depending on the kernel: either is a fault

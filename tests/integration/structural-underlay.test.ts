@@ -61,7 +61,14 @@ beforeAll(async () => {
   const s = await createStudyWithRaters(db, { raters: 1 });
   lead = { id: s.leadId, role: 'lead' };
   rater = { id: s.raterIds[0]!, role: 'rater' };
-  const ready = await createReadyRun(db, { studyId: s.studyId, createdBy: s.leadId, raterIds: s.raterIds, size: 'tiny', seed: 11, components: 4 });
+  const ready = await createReadyRun(db, {
+    studyId: s.studyId,
+    createdBy: s.leadId,
+    raterIds: s.raterIds,
+    size: 'tiny',
+    seed: 11,
+    components: 4,
+  });
   runId = ready.runId;
   const d = await db('decompositions').where({ id: ready.decompositionId }).first('mean_key');
   // the run's mean image as the worker wrote it: a real 3D NIfTI on the run's grid
@@ -74,7 +81,9 @@ afterAll(async () => {
 
 describe('structural underlay upload', () => {
   it('takes a 3D image on the run grid from the lead and gives it to the rater desk', async () => {
-    await expect(attachStructural({ user: lead, runId, name: 'sub-01_T1w_on-bold.nii.gz', raw: rawBody(meanGz) })).resolves.toEqual({ structuralName: 'sub-01_T1w_on-bold.nii.gz' });
+    await expect(attachStructural({ user: lead, runId, name: 'sub-01_T1w_on-bold.nii.gz', raw: rawBody(meanGz) })).resolves.toEqual({
+      structuralName: 'sub-01_T1w_on-bold.nii.gz',
+    });
     const row = await db('runs').where({ id: runId }).first('structural_key', 'structural_name');
     expect(row.structural_key).toMatch(/^structural\/.+\.nii\.gz$/);
     expect(row.structural_name).toBe('sub-01_T1w_on-bold.nii.gz');
@@ -111,19 +120,35 @@ describe('structural underlay upload', () => {
     // another voxel-to-world transform: the same voxels shifted 2 mm along x
     const shifted = affine.map((r, i) => (i === 0 ? [r[0], r[1], r[2], r[3] + 2] : r));
     await refused(
-      attachStructural({ user: lead, runId, name: 's.nii', raw: rawBody(encodeNifti1({ dims: [nx, ny, nz], pixdim, affine: shifted, datatype: 'float32', data: vol })) }),
+      attachStructural({
+        user: lead,
+        runId,
+        name: 's.nii',
+        raw: rawBody(encodeNifti1({ dims: [nx, ny, nz], pixdim, affine: shifted, datatype: 'float32', data: vol })),
+      }),
       422,
       /has the run's dimensions but another voxel-to-world transform \(largest difference 2\.00 mm\)\. Resample it to the run's grid/,
     );
     // other dimensions: one slice fewer
     await refused(
-      attachStructural({ user: lead, runId, name: 's.nii', raw: rawBody(encodeNifti1({ dims: [nx, ny, nz - 1], pixdim, affine, datatype: 'float32', data: vol.subarray(0, nx * ny * (nz - 1)) })) }),
+      attachStructural({
+        user: lead,
+        runId,
+        name: 's.nii',
+        raw: rawBody(
+          encodeNifti1({ dims: [nx, ny, nz - 1], pixdim, affine, datatype: 'float32', data: vol.subarray(0, nx * ny * (nz - 1)) }),
+        ),
+      }),
       422,
       new RegExp(`is ${nx} × ${ny} × ${nz - 1} voxels; this run's grid is ${nx} × ${ny} × ${nz}\\. Resample`),
     );
     // a 4D image: the run itself
     const runKey = (await db('runs').where({ id: runId }).first('file_key')).file_key;
-    await refused(attachStructural({ user: lead, runId, name: 'bold.nii.gz', raw: rawBody(readFileSync(pathFor(runKey))) }), 422, /holds \d+ volumes; the underlay is one 3D volume/);
+    await refused(
+      attachStructural({ user: lead, runId, name: 'bold.nii.gz', raw: rawBody(readFileSync(pathFor(runKey))) }),
+      422,
+      /holds \d+ volumes; the underlay is one 3D volume/,
+    );
     // a header that describes more than 64 MB (300 × 300 × 200 float32 = 72 MB), refused before the data are read
     const big = Buffer.from(encodeNifti1({ dims: [2, 2, 2], pixdim, affine, datatype: 'float32', data: new Float32Array(8) }));
     big.writeInt16LE(300, 42);
@@ -134,7 +159,11 @@ describe('structural underlay upload', () => {
     expect([413, 422]).toContain((bigErr as AppError).status);
     expect((bigErr as AppError).message).toMatch(/64\.0 MB/);
     // a rater of the study may not change the run
-    await refused(attachStructural({ user: rater, runId, name: 'r.nii.gz', raw: rawBody(meanGz) }), 403, /only the study's leads and the facility admin/);
+    await refused(
+      attachStructural({ user: rater, runId, name: 'r.nii.gz', raw: rawBody(meanGz) }),
+      403,
+      /only the study's leads and the facility admin/,
+    );
 
     expect(await db('runs').where({ id: runId }).first('structural_key', 'structural_name')).toEqual(before);
     expect(await storedStructural()).toEqual(filesBefore);

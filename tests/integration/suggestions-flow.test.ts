@@ -46,17 +46,27 @@ beforeAll(async () => {
   const s = await createStudyWithRaters(db, { raters: 2 });
   ({ leadId: lead, studyId } = s);
   [raterA, raterB] = s.raterIds as [number, number];
-  for (const [i, sub] of ['s1', 's2', 's3', 's4'].entries()) runs.push(await createReadyRun(db, { studyId, createdBy: lead, raterIds: [raterA], size: 'tiny', seed: 11 + i, sub, components: 8 }));
+  for (const [i, sub] of ['s1', 's2', 's3', 's4'].entries())
+    runs.push(await createReadyRun(db, { studyId, createdBy: lead, raterIds: [raterA], size: 'tiny', seed: 11 + i, sub, components: 8 }));
   // Released decisions of the first three runs (the fourth is the one the rater works on): a
   // study release whose frozen decisions call a component noise when its high-frequency power is
   // above 0.3 — invented labels; the test checks the flow, not the model's quality.
   const [releaseId] = await db('releases').insert({ study_id: studyId, run_id: null, version: 1, released_by: lead });
   for (const r of runs.slice(0, 3)) {
     const comps = await db('components').where({ decomposition_id: r.decompositionId }).orderBy('idx').select('id', 'idx', 'features');
-    await db('release_decisions').insert(comps.map((c: { id: number; idx: number; features: unknown }, j: number) => {
-      const hf = (parseJson<{ highFrequencyPower: number }>(c.features) ?? { highFrequencyPower: 0 }).highFrequencyPower;
-      return { release_id: releaseId, component_id: c.id, run_id: r.runId, idx: c.idx, label: j === 0 ? 'uncertain' : hf > 0.3 || j % 3 === 1 ? 'noise' : 'signal', method: 'override' };
-    }));
+    await db('release_decisions').insert(
+      comps.map((c: { id: number; idx: number; features: unknown }, j: number) => {
+        const hf = (parseJson<{ highFrequencyPower: number }>(c.features) ?? { highFrequencyPower: 0 }).highFrequencyPower;
+        return {
+          release_id: releaseId,
+          component_id: c.id,
+          run_id: r.runId,
+          idx: c.idx,
+          label: j === 0 ? 'uncertain' : hf > 0.3 || j % 3 === 1 ? 'noise' : 'signal',
+          method: 'override',
+        };
+      }),
+    );
   }
 });
 
@@ -73,7 +83,12 @@ describe('training and scoring', () => {
     actAs(otherLead);
     expect((await callRoute(trainRoute.POST, { method: 'POST', url: '/', params: { id: String(studyId) }, body: {} })).status).toBe(404);
     actAs(lead);
-    const refused = await callRoute(trainRoute.POST, { method: 'POST', url: '/', params: { id: String(studyId) }, body: { sourceStudyIds: [studyId, 999999] } });
+    const refused = await callRoute(trainRoute.POST, {
+      method: 'POST',
+      url: '/',
+      params: { id: String(studyId) },
+      body: { sourceStudyIds: [studyId, 999999] },
+    });
     expect(refused.status).toBe(422);
     expect(refused.json.error.message).toMatch(/Study 999999 cannot be used/);
   });
@@ -99,7 +114,10 @@ describe('training and scoring', () => {
 
   it('a decomposition that becomes ready in a study with a model is queued for scoring', async () => {
     await db.transaction((trx) => queueScoringOfNewRun(trx, { studyId, runId: runs[3]!.runId }));
-    const job = await db('jobs').where({ kind: 'score-suggestions', study_id: studyId, status: 'queued' }).orderBy('id', 'desc').first('payload');
+    const job = await db('jobs')
+      .where({ kind: 'score-suggestions', study_id: studyId, status: 'queued' })
+      .orderBy('id', 'desc')
+      .first('payload');
     expect(parseJson(job.payload)).toEqual({ studyId, runId: runs[3]!.runId });
     expect(await runNext('score-suggestions')).toBe('succeeded');
   });
@@ -123,7 +141,12 @@ describe('never anchoring: a suggestion reaches a rater only after their own vot
 
   it('while the lead has suggestions off, the rater gets none, even for voted components', async () => {
     actAs(raterA);
-    await callRoute(voteRoute.PUT, { method: 'PUT', url: '/', params: { id: String(run().runId), componentId: String(run().componentIds[1]) }, body: { label: 'signal', baseVersion: 0 } });
+    await callRoute(voteRoute.PUT, {
+      method: 'PUT',
+      url: '/',
+      params: { id: String(run().runId), componentId: String(run().componentIds[1]) },
+      body: { label: 'signal', baseVersion: 0 },
+    });
     const res = await get();
     expect(res.status).toBe(200);
     expect(res.json).toEqual({ enabled: false, modelVersion: 1, suggestions: [] });
@@ -131,9 +154,27 @@ describe('never anchoring: a suggestion reaches a rater only after their own vot
 
   it('with suggestions on, the payload has exactly the voted components, each with the model version', async () => {
     actAs(raterA);
-    expect((await callRoute(studySuggestionsRoute.PATCH, { method: 'PATCH', url: '/', params: { id: String(studyId) }, body: { enabled: true } })).status).toBe(403);
+    expect(
+      (
+        await callRoute(studySuggestionsRoute.PATCH, {
+          method: 'PATCH',
+          url: '/',
+          params: { id: String(studyId) },
+          body: { enabled: true },
+        })
+      ).status,
+    ).toBe(403);
     actAs(lead);
-    expect((await callRoute(studySuggestionsRoute.PATCH, { method: 'PATCH', url: '/', params: { id: String(studyId) }, body: { enabled: true } })).json).toEqual({ enabled: true });
+    expect(
+      (
+        await callRoute(studySuggestionsRoute.PATCH, {
+          method: 'PATCH',
+          url: '/',
+          params: { id: String(studyId) },
+          body: { enabled: true },
+        })
+      ).json,
+    ).toEqual({ enabled: true });
     actAs(raterA);
     const one = await get();
     expect(one.json.suggestions.map((s: { componentId: number }) => s.componentId)).toEqual([run().componentIds[1]]);
@@ -141,9 +182,16 @@ describe('never anchoring: a suggestion reaches a rater only after their own vot
     const unvoted = run().componentIds.filter((_, i) => i !== 1);
     const text = JSON.stringify(one.json);
     for (const id of unvoted) expect(text).not.toContain(`"componentId":${id}`);
-    await callRoute(voteRoute.PUT, { method: 'PUT', url: '/', params: { id: String(run().runId), componentId: String(run().componentIds[4]) }, body: { label: 'noise', noiseKind: 'motion', baseVersion: 0 } });
+    await callRoute(voteRoute.PUT, {
+      method: 'PUT',
+      url: '/',
+      params: { id: String(run().runId), componentId: String(run().componentIds[4]) },
+      body: { label: 'noise', noiseKind: 'motion', baseVersion: 0 },
+    });
     const two = await get();
-    expect(two.json.suggestions.map((s: { componentId: number }) => s.componentId).sort()).toEqual([run().componentIds[1], run().componentIds[4]].sort());
+    expect(two.json.suggestions.map((s: { componentId: number }) => s.componentId).sort()).toEqual(
+      [run().componentIds[1], run().componentIds[4]].sort(),
+    );
   });
 
   it('a rater not assigned to the run gets nothing (404)', async () => {
@@ -164,17 +212,33 @@ describe('the release ZIP carries the model in use', () => {
     // every component of the first run decided (invented labels), so the run can be released on its own
     const r = runs[0]!;
     for (const [i, componentId] of r.componentIds.entries()) {
-      await db('decisions').insert({ component_id: componentId, run_id: r.runId, label: i % 3 === 1 ? 'noise' : 'signal', method: 'reconciled', reason: 'test', decided_by: lead })
-        .onConflict('component_id').merge(['label', 'method', 'reason', 'decided_by']);
+      await db('decisions')
+        .insert({
+          component_id: componentId,
+          run_id: r.runId,
+          label: i % 3 === 1 ? 'noise' : 'signal',
+          method: 'reconciled',
+          reason: 'test',
+          decided_by: lead,
+        })
+        .onConflict('component_id')
+        .merge(['label', 'method', 'reason', 'decided_by']);
     }
     actAs(lead);
-    const requested = await callRoute(releasesRoute.POST, { method: 'POST', url: `/api/studies/${studyId}/releases`, params: { id: String(studyId) }, body: { runId: r.runId } });
+    const requested = await callRoute(releasesRoute.POST, {
+      method: 'POST',
+      url: `/api/studies/${studyId}/releases`,
+      params: { id: String(studyId) },
+      body: { runId: r.runId },
+    });
     expect(requested.status, JSON.stringify(requested.json)).toBe(202);
     const created = await buildRequestedRelease(db, requested); // the worker's release job, run here
     expect(created.json.jobStatus, JSON.stringify(created.json)).toBe('succeeded');
     const releaseId = Number(created.json.releaseId);
     const exported = await callRoute(modelRoute.GET, { url: '/', params: { id: String(studyId) } });
-    const res = await archiveRoute.GET(new Request(`http://localhost/api/releases/${releaseId}/archive`), { params: Promise.resolve({ releaseId: String(releaseId) }) });
+    const res = await archiveRoute.GET(new Request(`http://localhost/api/releases/${releaseId}/archive`), {
+      params: Promise.resolve({ releaseId: String(releaseId) }),
+    });
     expect(res.status).toBe(200);
     const dir = await mkdtemp(path.join(os.tmpdir(), 'quorum-model-zip-'));
     try {

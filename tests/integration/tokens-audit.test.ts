@@ -46,12 +46,22 @@ describe('personal access tokens and their audit entries', () => {
   it('issued: the token and its audit entry; when the audit entry fails, no token and no 2xx', async () => {
     vi.spyOn(console, 'error').mockImplementation(() => {});
     actAs(userId);
-    const ok = await callRoute(tokensRoute.POST, { method: 'POST', url: '/api/account/tokens', params: {}, body: { name: 'Nightly pipeline' } });
+    const ok = await callRoute(tokensRoute.POST, {
+      method: 'POST',
+      url: '/api/account/tokens',
+      params: {},
+      body: { name: 'Nightly pipeline' },
+    });
     expect(ok.status).toBe(201);
     expect((await audits('token.create')).map((a) => Number(a.targetId))).toEqual([ok.json.id]);
 
     await refuseAudit(true);
-    const refused = await callRoute(tokensRoute.POST, { method: 'POST', url: '/api/account/tokens', params: {}, body: { name: 'Audit will fail' } });
+    const refused = await callRoute(tokensRoute.POST, {
+      method: 'POST',
+      url: '/api/account/tokens',
+      params: {},
+      body: { name: 'Audit will fail' },
+    });
     expect(refused.status).toBe(500);
     expect(JSON.stringify(refused.json)).not.toMatch(/audit refused|SQL|trigger/i);
     expect((await tokens()).map((t) => t.name)).toEqual(['Nightly pipeline']);
@@ -63,7 +73,11 @@ describe('personal access tokens and their audit entries', () => {
     actAs(userId);
     const [{ id }] = await tokens();
     await refuseAudit(true);
-    const refused = await callRoute(tokenRoute.DELETE, { method: 'DELETE', url: `/api/account/tokens/${id}`, params: { tokenId: String(id) } });
+    const refused = await callRoute(tokenRoute.DELETE, {
+      method: 'DELETE',
+      url: `/api/account/tokens/${id}`,
+      params: { tokenId: String(id) },
+    });
     expect(refused.status).toBe(500);
     expect((await tokens()).find((t) => t.id === id)!.revokedAt).toBeNull();
     await refuseAudit(false);

@@ -70,7 +70,8 @@ let uploads: Awaited<ReturnType<typeof useTempUploads>>;
 let lead: { id: number; role: 'lead' };
 let studyId: number;
 
-const query = (name: string, extra: Record<string, string> = {}) => runUploadQuerySchema.parse({ name, sub: '07', ses: '2', task: 'rest', run: '1', ...extra });
+const query = (name: string, extra: Record<string, string> = {}) =>
+  runUploadQuerySchema.parse({ name, sub: '07', ses: '2', task: 'rest', run: '1', ...extra });
 
 /** Expects an AppError with a 4xx status and a message matching `pattern`; returns it. */
 async function refused(promise: Promise<unknown>, status: number, pattern: RegExp): Promise<AppError> {
@@ -99,8 +100,22 @@ afterAll(async () => {
 describe('a good upload', () => {
   it('becomes a run row with entities, geometry and sha256, and its decompose job is queued', async () => {
     const bytes = fixture('good-run.nii.gz');
-    const run = await uploadRun({ user: lead, studyId, query: query('sub-07_ses-2_task-rest_run-1_bold.nii.gz', { queue: 'true' }), raw: rawBody(bytes) });
-    expect(run).toMatchObject({ sub: '07', ses: '2', task: 'rest', runLabel: '1', volumes: 40, trSeconds: 2, status: 'queued', dims: [6, 5, 4, 40] });
+    const run = await uploadRun({
+      user: lead,
+      studyId,
+      query: query('sub-07_ses-2_task-rest_run-1_bold.nii.gz', { queue: 'true' }),
+      raw: rawBody(bytes),
+    });
+    expect(run).toMatchObject({
+      sub: '07',
+      ses: '2',
+      task: 'rest',
+      runLabel: '1',
+      volumes: 40,
+      trSeconds: 2,
+      status: 'queued',
+      dims: [6, 5, 4, 40],
+    });
     expect(run.job).toMatchObject({ status: 'queued', stage: 'queued' });
     const row = await db('runs').where({ id: run.id }).first();
     expect(row.sha256).toMatch(/^[0-9a-f]{64}$/);
@@ -116,10 +131,20 @@ describe('a good upload', () => {
   });
 
   it('takes a mask on the grid and a motion table, then queues on request', async () => {
-    const run = await uploadRun({ user: lead, studyId, query: query('sub-08_task-rest_bold.nii', { sub: '08' }), raw: rawBody(fixture('good-run-b.nii'), { length: false, chunk: 1000 }) });
+    const run = await uploadRun({
+      user: lead,
+      studyId,
+      query: query('sub-08_task-rest_bold.nii', { sub: '08' }),
+      raw: rawBody(fixture('good-run-b.nii'), { length: false, chunk: 1000 }),
+    });
     expect(run.status).toBe('uploaded');
     await attachMask({ user: lead, runId: run.id, name: 'sub-08_mask.nii.gz', raw: rawBody(fixture('good-mask.nii.gz')) });
-    await attachMotion({ user: lead, runId: run.id, query: { name: 'sub-08_motion.tsv', order: 'trans-first', units: 'radians' }, raw: rawBody(fixture('good-motion.tsv')) });
+    await attachMotion({
+      user: lead,
+      runId: run.id,
+      query: { name: 'sub-08_motion.tsv', order: 'trans-first', units: 'radians' },
+      raw: rawBody(fixture('good-motion.tsv')),
+    });
     const row = await db('runs').where({ id: run.id }).first();
     expect(row.mask_key).toMatch(/^masks\//);
     expect(row.motion_key).toMatch(/^motion\//);
@@ -153,7 +178,11 @@ describe('the bad-upload corpus', () => {
     const raw = gunzipSync(fixture('good-run.nii.gz'));
     const bomb = gzipSync(Buffer.concat([raw, Buffer.alloc(64 * 1024 * 1024)]), { level: 1 });
     expect(bomb.length).toBeLessThan(1024 * 1024);
-    const err = await refused(upload('x', undefined, { bytes: bomb, chunk: 16 * 1024 }), 422, /holds more data than its header describes \(6 × 5 × 4 × 40 int16/);
+    const err = await refused(
+      upload('x', undefined, { bytes: bomb, chunk: 16 * 1024 }),
+      422,
+      /holds more data than its header describes \(6 × 5 × 4 × 40 int16/,
+    );
     expect(err.fields).toBeDefined();
     await nothingLeft();
   });
@@ -165,7 +194,11 @@ describe('the bad-upload corpus', () => {
     const saved = process.env.QUORUM_MAX_IMAGE_MB;
     process.env.QUORUM_MAX_IMAGE_MB = '1';
     try {
-      await refused(upload('x', undefined, { bytes: gzipSync(header) }), 413, /larger than this facility's limit of 1(\.0)? MB: its header describes a 6 × 5 × 4 × 30000 int16 image/);
+      await refused(
+        upload('x', undefined, { bytes: gzipSync(header) }),
+        413,
+        /larger than this facility's limit of 1(\.0)? MB: its header describes a 6 × 5 × 4 × 30000 int16 image/,
+      );
     } finally {
       if (saved === undefined) delete process.env.QUORUM_MAX_IMAGE_MB;
       else process.env.QUORUM_MAX_IMAGE_MB = saved;
@@ -200,14 +233,26 @@ describe('the bad-upload corpus', () => {
   });
 
   it('refuses an exact duplicate in the same study, naming the existing run', async () => {
-    await refused(upload('good-run.nii.gz'), 409, /already in the study as run #\d+ sub-07_ses-2_task-rest_run-1 \(uploaded as sub-07_ses-2_task-rest_run-1_bold\.nii\.gz\)/);
+    await refused(
+      upload('good-run.nii.gz'),
+      409,
+      /already in the study as run #\d+ sub-07_ses-2_task-rest_run-1 \(uploaded as sub-07_ses-2_task-rest_run-1_bold\.nii\.gz\)/,
+    );
     // the same bytes one at a time (gzip detection and header across chunk borders) and without Content-Length
     await refused(upload('good-run.nii.gz', 'copy.nii.gz', { chunk: 1, length: false }), 409, /already in the study as run #\d+/);
     await nothingLeft();
   });
 
   it('refuses file names with path separators or odd characters before reading the body', () => {
-    for (const name of ['../../etc/sub-01_bold.nii.gz', 'sub-01\\bold.nii.gz', 'sub 01 bold.nii.gz', 'sub-01_bold\u0000.nii.gz', '.hidden.nii', 'sub-01_bold.nii.gz;rm', 'notes.txt']) {
+    for (const name of [
+      '../../etc/sub-01_bold.nii.gz',
+      'sub-01\\bold.nii.gz',
+      'sub 01 bold.nii.gz',
+      'sub-01_bold\u0000.nii.gz',
+      '.hidden.nii',
+      'sub-01_bold.nii.gz;rm',
+      'notes.txt',
+    ]) {
       const result = runUploadQuerySchema.safeParse({ name, sub: '01' });
       expect(result.success, name).toBe(false);
       expect(result.error!.issues[0].message, name).toMatch(/path separator|characters other than|does not end in \.nii/);
@@ -219,7 +264,12 @@ describe('the bad-upload corpus', () => {
     await refused(upload('good-run-b.nii', 'sub-09_task-rest_bold.nii', { failAfter: 4096 }), 400, /interrupted/);
     // a body that simply ends early (Content-Length says more)
     await refused(
-      uploadRun({ user: lead, studyId, query: query('sub-09_task-rest_bold.nii', { sub: '09' }), raw: { ...rawBody(bytes.subarray(0, 5000)), contentLength: bytes.length } }),
+      uploadRun({
+        user: lead,
+        studyId,
+        query: query('sub-09_task-rest_bold.nii', { sub: '09' }),
+        raw: { ...rawBody(bytes.subarray(0, 5000)), contentLength: bytes.length },
+      }),
       400,
       /interrupted/,
     );
@@ -229,16 +279,34 @@ describe('the bad-upload corpus', () => {
   it('refuses a mask on another grid and motion tables with the wrong shape', async () => {
     const [run] = await db('runs').where({ study_id: studyId, sub: '08' }).select('id');
     await db('runs').where({ id: run.id }).update({ status: 'ready' });
-    const maskBefore = (await db('runs').where({ id: run.id }).first('mask_key', 'motion_key'));
-    await refused(attachMask({ user: lead, runId: run.id, name: 'm.nii.gz', raw: rawBody(fixture('wrong-grid-mask.nii.gz')) }), 422, /different grids: 6 × 5 × 4 voxels versus 7 × 5 × 4/);
-    await refused(attachMask({ user: lead, runId: run.id, name: 'm.nii.gz', raw: rawBody(fixture('good-run.nii.gz')) }), 422, /a brain mask is one 3D volume/);
+    const maskBefore = await db('runs').where({ id: run.id }).first('mask_key', 'motion_key');
     await refused(
-      attachMotion({ user: lead, runId: run.id, query: { name: 'm.tsv', order: 'rot-first', units: 'degrees' }, raw: rawBody(fixture('wrong-motion-rows.tsv')) }),
+      attachMask({ user: lead, runId: run.id, name: 'm.nii.gz', raw: rawBody(fixture('wrong-grid-mask.nii.gz')) }),
+      422,
+      /different grids: 6 × 5 × 4 voxels versus 7 × 5 × 4/,
+    );
+    await refused(
+      attachMask({ user: lead, runId: run.id, name: 'm.nii.gz', raw: rawBody(fixture('good-run.nii.gz')) }),
+      422,
+      /a brain mask is one 3D volume/,
+    );
+    await refused(
+      attachMotion({
+        user: lead,
+        runId: run.id,
+        query: { name: 'm.tsv', order: 'rot-first', units: 'degrees' },
+        raw: rawBody(fixture('wrong-motion-rows.tsv')),
+      }),
       422,
       /has 39 rows but the run has 40 volumes/,
     );
     await refused(
-      attachMotion({ user: lead, runId: run.id, query: { name: 'm.tsv', order: 'rot-first', units: 'degrees' }, raw: rawBody(fixture('wrong-motion-cols.tsv')) }),
+      attachMotion({
+        user: lead,
+        runId: run.id,
+        query: { name: 'm.tsv', order: 'rot-first', units: 'degrees' },
+        raw: rawBody(fixture('wrong-motion-cols.tsv')),
+      }),
       422,
       /has 5 columns, expected 6/,
     );

@@ -124,7 +124,10 @@ describe('votes of one study under concurrency', () => {
     const labels = ['signal', 'noise'];
     const calls = raters.flatMap((r, i) => run.componentIds.map((c) => vote(r, c, labels[i % 2])));
     const results = await Promise.all(calls);
-    expect(results.filter((r) => r.status !== 200).map((r) => r.json), 'no deadlock or lock timeout surfaced').toEqual([]);
+    expect(
+      results.filter((r) => r.status !== 200).map((r) => r.json),
+      'no deadlock or lock timeout surfaced',
+    ).toEqual([]);
     const votes = await db('votes').where({ run_id: run.runId }).count({ n: '*' });
     expect(Number(votes[0].n)).toBe(raters.length * run.componentIds.length);
     // two raters say signal and two noise on every component: no majority, each waits for a lead

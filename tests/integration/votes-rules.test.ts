@@ -35,7 +35,12 @@ const r2 = () => users['rater2@fernhollow.example'];
 const r3 = () => users['rater3@fernhollow.example'];
 
 function put(runId: number, componentId: number, body: unknown) {
-  return callRoute(voteRoute.PUT, { method: 'PUT', url: `/api/runs/${runId}/votes/${componentId}`, params: { id: String(runId), componentId: String(componentId) }, body });
+  return callRoute(voteRoute.PUT, {
+    method: 'PUT',
+    url: `/api/runs/${runId}/votes/${componentId}`,
+    params: { id: String(runId), componentId: String(componentId) },
+    body,
+  });
 }
 
 beforeAll(async () => {
@@ -75,11 +80,13 @@ describe('refusals', () => {
     expect(list.status).toBe(404);
   });
 
-  it("refuses a vote for a component of another run (404 naming the component)", async () => {
+  it('refuses a vote for a component of another run (404 naming the component)', async () => {
     actAs(r1());
     const res = await put(runA.runId, runB.componentIds[0], { label: 'signal', baseVersion: 0 });
     expect(res.status).toBe(404);
-    expect(res.json.error.message).toBe(`Component ${runB.componentIds[0]} is not a component of run ${runA.runId}. Vote on the components shown on this run's desk.`);
+    expect(res.json.error.message).toBe(
+      `Component ${runB.componentIds[0]} is not a component of run ${runA.runId}. Vote on the components shown on this run's desk.`,
+    );
   });
 
   it("refuses a label or noise kind outside the study's sets (422 with the field)", async () => {
@@ -98,7 +105,12 @@ describe('refusals', () => {
     const noLabel = await put(runA.runId, runA.componentIds[0], { note: 'hmm', baseVersion: 0 });
     expect(noLabel.status).toBe(422);
     expect(noLabel.json.error.message).toMatch(/choose signal, noise or uncertain/);
-    expect(await db('votes').where({ run_id: runA.runId }).count({ n: '*' }).then(([r]) => Number(r.n))).toBe(0);
+    expect(
+      await db('votes')
+        .where({ run_id: runA.runId })
+        .count({ n: '*' })
+        .then(([r]) => Number(r.n)),
+    ).toBe(0);
   });
 });
 
@@ -108,12 +120,18 @@ describe('saving, merging and auditing', () => {
     const c = runA.componentIds[0];
     const res = await put(runA.runId, c, { label: 'noise', noiseKind: 'motion', confidence: 4, baseVersion: 0 });
     expect(res.status).toBe(200);
-    expect(res.json).toMatchObject({ changed: true, merged: false, vote: { label: 'noise', noiseKind: 'motion', confidence: 4, version: 1 } });
+    expect(res.json).toMatchObject({
+      changed: true,
+      merged: false,
+      vote: { label: 'noise', noiseKind: 'motion', confidence: 4, version: 1 },
+    });
     const decision = await db('decisions').where({ component_id: c }).first();
     expect(decision.method).toBe('pending'); // one of two raters
     const again = await put(runA.runId, c, { label: 'noise', noiseKind: 'motion', baseVersion: 1 });
     expect(again.json).toMatchObject({ changed: false, vote: { version: 1 } });
-    const audits = await db('audit_log').where({ target_type: 'component', target_id: String(c) }).select('action', 'detail');
+    const audits = await db('audit_log')
+      .where({ target_type: 'component', target_id: String(c) })
+      .select('action', 'detail');
     expect(audits.map((a) => a.action)).toEqual(['vote.cast']);
   });
 
@@ -125,7 +143,10 @@ describe('saving, merging and auditing', () => {
     expect(tabA.json.vote.version).toBe(2);
     const tabB = await put(runA.runId, c, { confidence: 2, baseVersion: 1 }); // stale base → merge
     expect(tabB.json).toMatchObject({ merged: true, vote: { label: 'signal', note: 'default mode?', confidence: 2, version: 3 } });
-    const last = await db('audit_log').where({ target_type: 'component', target_id: String(c) }).orderBy('id', 'desc').first('detail');
+    const last = await db('audit_log')
+      .where({ target_type: 'component', target_id: String(c) })
+      .orderBy('id', 'desc')
+      .first('detail');
     const detail = typeof last.detail === 'string' ? JSON.parse(last.detail) : last.detail;
     expect(detail).toMatchObject({ merged: true, baseVersion: 1, storedVersion: 2, changes: { confidence: [null, 2] } });
     // changing the label away from noise clears the kind
@@ -136,10 +157,20 @@ describe('saving, merging and auditing', () => {
 
   it('remembers the desk position and refuses one outside the run', async () => {
     actAs(r1());
-    const ok = await callRoute(deskRoute.PUT, { method: 'PUT', url: `/api/runs/${runA.runId}/desk`, params: { id: String(runA.runId) }, body: { componentIdx: 2 } });
+    const ok = await callRoute(deskRoute.PUT, {
+      method: 'PUT',
+      url: `/api/runs/${runA.runId}/desk`,
+      params: { id: String(runA.runId) },
+      body: { componentIdx: 2 },
+    });
     expect(ok.status).toBe(200);
     expect((await db('assignments').where({ run_id: runA.runId, rater_id: r1() }).first()).last_component_idx).toBe(2);
-    const bad = await callRoute(deskRoute.PUT, { method: 'PUT', url: `/api/runs/${runA.runId}/desk`, params: { id: String(runA.runId) }, body: { componentIdx: 999 } });
+    const bad = await callRoute(deskRoute.PUT, {
+      method: 'PUT',
+      url: `/api/runs/${runA.runId}/desk`,
+      params: { id: String(runA.runId) },
+      body: { componentIdx: 999 },
+    });
     expect(bad.status).toBe(422);
   });
 });
@@ -147,19 +178,34 @@ describe('saving, merging and auditing', () => {
 describe('submission and release', () => {
   it('refuses submission while components are unlabelled, then accepts it; votes are frozen after submission', async () => {
     actAs(r1());
-    const early = await callRoute(submitRoute.POST, { method: 'POST', url: `/api/runs/${runA.runId}/submit`, params: { id: String(runA.runId) } });
+    const early = await callRoute(submitRoute.POST, {
+      method: 'POST',
+      url: `/api/runs/${runA.runId}/submit`,
+      params: { id: String(runA.runId) },
+    });
     expect(early.status).toBe(409);
     expect(early.json.error.message).toMatch(new RegExp(`^${runA.k - 2} of ${runA.k} components are not labelled yet`));
     for (const c of runA.componentIds.slice(2)) expect((await put(runA.runId, c, { label: 'signal', baseVersion: 0 })).status).toBe(200);
-    const done = await callRoute(submitRoute.POST, { method: 'POST', url: `/api/runs/${runA.runId}/submit`, params: { id: String(runA.runId) } });
+    const done = await callRoute(submitRoute.POST, {
+      method: 'POST',
+      url: `/api/runs/${runA.runId}/submit`,
+      params: { id: String(runA.runId) },
+    });
     expect(done.status).toBe(200);
     expect(done.json.already).toBe(false);
     // submitted votes are frozen (issue 13 item 2): only a lead's reopen lets the rater change them
     const change = await put(runA.runId, runA.componentIds[2], { label: 'uncertain', baseVersion: 1 });
     expect(change.status).toBe(409);
-    expect(change.json.error.message).toMatch(/votes on it are frozen\. If a label must change, ask the study lead to reopen the run for you/);
+    expect(change.json.error.message).toMatch(
+      /votes on it are frozen\. If a label must change, ask the study lead to reopen the run for you/,
+    );
     expect((await db('votes').where({ component_id: runA.componentIds[2], rater_id: r1() }).first('label')).label).toBe('signal');
-    expect(await db('audit_log').where({ action: 'run.submit', target_id: String(runA.runId) }).count({ n: '*' }).then(([r]) => Number(r.n))).toBe(1);
+    expect(
+      await db('audit_log')
+        .where({ action: 'run.submit', target_id: String(runA.runId) })
+        .count({ n: '*' })
+        .then(([r]) => Number(r.n)),
+    ).toBe(1);
   });
 
   it('refuses every vote change once the run is released (409)', async () => {

@@ -63,9 +63,20 @@ describe('decompose in process', () => {
     expect(job!.result).toMatchObject({ decompositionId: d.id, k: d.k });
     // the component maps' SHA-256 and size are kept with the decomposition, so a release ships them without hashing again
     const mapFile = await readFile(pathFor(d.components_key));
-    expect({ sha256: d.components_sha256, bytes: Number(d.components_bytes) }).toEqual({ sha256: createHash('sha256').update(mapFile).digest('hex'), bytes: mapFile.length });
+    expect({ sha256: d.components_sha256, bytes: Number(d.components_bytes) }).toEqual({
+      sha256: createHash('sha256').update(mapFile).digest('hex'),
+      bytes: mapFile.length,
+    });
     const params = parseJson<Record<string, unknown>>(d.parameters)!;
-    expect(params).toMatchObject({ mask: 'automatic', dropVolumes: 0, varianceNorm: true, detrend: false, dimMethod: 'iid-mdl', seed: 1, contrast: 'logcosh' });
+    expect(params).toMatchObject({
+      mask: 'automatic',
+      dropVolumes: 0,
+      varianceNorm: true,
+      detrend: false,
+      dimMethod: 'iid-mdl',
+      seed: 1,
+      contrast: 'logcosh',
+    });
     const summary = parseJson<Record<string, unknown>>(d.summary)!;
     expect(summary).toMatchObject({ components: d.k, timepoints: 80 });
 
@@ -103,19 +114,30 @@ describe('decompose in process', () => {
     const p = file.phantom;
     const maskKey = newKey('masks', '.nii.gz');
     await writeNiftiFile(await ensureDirFor(maskKey), {
-      dims: p.dims.slice(0, 3), pixdim: p.voxelSize, affine: p.affine, datatype: 'uint8', data: p.truth.brainMask,
+      dims: p.dims.slice(0, 3),
+      pixdim: p.voxelSize,
+      affine: p.affine,
+      datatype: 'uint8',
+      data: p.truth.brainMask,
     });
     const motionKey = newKey('motion', '.tsv');
     const rows = Array.from({ length: p.dims[3] }, (_, t) =>
       [...p.motion.translations.map((c) => c[t]!), ...p.motion.rotations.map((c) => (c[t]! * 180) / Math.PI)].join('\t'),
     );
     await writeFile(await ensureDirFor(motionKey), `# tx ty tz rx ry rz\n${rows.join('\n')}\n`);
-    await db('runs').where({ id: runId }).update({ mask_key: maskKey, motion_key: motionKey, motion_order: 'tx,ty,tz,rx,ry,rz', motion_rotation_units: 'degrees' });
+    await db('runs')
+      .where({ id: runId })
+      .update({ mask_key: maskKey, motion_key: motionKey, motion_order: 'tx,ty,tz,rx,ry,rz', motion_rotation_units: 'degrees' });
     await queueDecomposition(db, { runId });
     expect(await runNext()).toBe('succeeded');
     const [d] = await currentDecompositions(runId);
     expect(d.k).toBe(5);
-    expect(parseJson(d.parameters)).toMatchObject({ mask: 'uploaded', dropVolumes: 4, components: 5, motion: { order: 'trans-first', rotationUnits: 'degrees' } });
+    expect(parseJson(d.parameters)).toMatchObject({
+      mask: 'uploaded',
+      dropVolumes: 4,
+      components: 5,
+      motion: { order: 'trans-first', rotationUnits: 'degrees' },
+    });
     const summary = parseJson<Record<string, number>>(d.summary)!;
     expect(summary.timepoints).toBe(p.dims[3] - 4);
     let brain = 0;
@@ -131,11 +153,13 @@ describe('decompose in process', () => {
     }
   });
 
-  it('a motion table with the wrong number of rows fails at once with the parser\'s message', async () => {
+  it("a motion table with the wrong number of rows fails at once with the parser's message", async () => {
     const { runId } = await createPhantomRun(db);
     const motionKey = newKey('motion', '.txt');
     await writeFile(await ensureDirFor(motionKey), '0 0 0 0 0 0\n0 0 0 0 0 0\n');
-    await db('runs').where({ id: runId }).update({ motion_key: motionKey, motion_order: 'rx,ry,rz,tx,ty,tz', motion_rotation_units: 'radians' });
+    await db('runs')
+      .where({ id: runId })
+      .update({ motion_key: motionKey, motion_order: 'rx,ry,rz,tx,ty,tz', motion_rotation_units: 'radians' });
     const { jobId } = await queueDecomposition(db, { runId });
     expect(await runNext()).toBe('failed');
     const job = await getJob(db, jobId);
@@ -145,7 +169,10 @@ describe('decompose in process', () => {
   });
 
   it('deterministic failures (no positive voxels, no finite data) fail at once, not after the retries (issue 13 item 10)', async () => {
-    for (const [fill, message] of [[0, /no positive voxels/], [Number.NaN, /no positive voxels|finite/]] as const) {
+    for (const [fill, message] of [
+      [0, /no positive voxels/],
+      [Number.NaN, /no positive voxels|finite/],
+    ] as const) {
       const { runId } = await createPhantomRun(db);
       const phantom = generatePhantom({ size: 'tiny', seed: 1 });
       phantom.data.fill(fill);
@@ -181,7 +208,9 @@ describe('decompose in process', () => {
     const { jobId } = await queueDecomposition(db, { runId });
     const slow = await claimJob(db, { workerId: 'slow', leaseMs: 10_000 });
     // the slow worker's lease expires and another worker takes the job
-    await db('jobs').where({ id: jobId }).update({ lease_expires_at: db.raw('NOW(3) - INTERVAL 1 SECOND') });
+    await db('jobs')
+      .where({ id: jobId })
+      .update({ lease_expires_at: db.raw('NOW(3) - INTERVAL 1 SECOND') });
     expect((await requeueExpiredLeases(db)).requeued).toEqual([jobId]);
     const fast = await claimJob(db, { workerId: 'fast', leaseMs: 10_000 });
     expect(fast!.attempts).toBe(2);
@@ -215,7 +244,9 @@ describe('decompose in process', () => {
     const { runId } = await createPhantomRun(db);
     const { jobId } = await queueDecomposition(db, { runId });
     // a job whose run row vanished without the cascade (e.g. payload pointing elsewhere)
-    await db('jobs').where({ id: jobId }).update({ payload: JSON.stringify({ runId: 2_000_000_000 }), run_id: null });
+    await db('jobs')
+      .where({ id: jobId })
+      .update({ payload: JSON.stringify({ runId: 2_000_000_000 }), run_id: null });
     expect(await runNext()).toBe('failed');
     expect(await getJob(db, jobId)).toMatchObject({ attempts: 1, message: 'Run 2000000000 no longer exists.' });
   });
@@ -232,8 +263,12 @@ describe('assignRaters', () => {
     expect((await assignRaters(db, { runId: a.runId })).raterIds).toEqual([r1, r2]);
     expect((await assignRaters(db, { runId: run2 })).raterIds).toEqual([r3, r1]);
     // r1 submits run 1: now r2 and r3 have one open each, r1 has one open (run 2)
-    await db('assignments').where({ run_id: a.runId, rater_id: r1 }).update({ submitted_at: db.raw('NOW(3)') });
-    await db('assignments').where({ run_id: run2, rater_id: r1 }).update({ submitted_at: db.raw('NOW(3)') });
+    await db('assignments')
+      .where({ run_id: a.runId, rater_id: r1 })
+      .update({ submitted_at: db.raw('NOW(3)') });
+    await db('assignments')
+      .where({ run_id: run2, rater_id: r1 })
+      .update({ submitted_at: db.raw('NOW(3)') });
     expect((await assignRaters(db, { runId: run3 })).raterIds).toEqual([r1, r2]);
     expect(await assignRaters(db, { runId: run3 })).toMatchObject({ outcome: 'already_assigned', raterIds: [] });
   });
@@ -277,10 +312,13 @@ describe('worker processes', () => {
     const { jobId } = await queueDecomposition(db, { runId });
     const env = { QUORUM_JOB_LEASE_MS: '2000' };
     const victim = spawnWorker({ uploadsDir: uploads.dir, env });
-    await waitFor(async () => {
-      const j = await getJob(db, jobId);
-      return j?.status === 'running' && j.leaseOwner === victim.workerId;
-    }, { everyMs: 10 });
+    await waitFor(
+      async () => {
+        const j = await getJob(db, jobId);
+        return j?.status === 'running' && j.leaseOwner === victim.workerId;
+      },
+      { everyMs: 10 },
+    );
     victim.child.kill('SIGKILL');
     expect((await victim.exited).signal).toBe('SIGKILL');
     const stuck = await getJob(db, jobId);

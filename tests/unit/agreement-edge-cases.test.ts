@@ -1,9 +1,22 @@
 // Degenerate inputs, typed errors, verbal bands, confusion/detection and the seeded bootstrap.
 import { describe, expect, it } from 'vitest';
 import {
-  AgreementError, bootstrapTableStat, cohenKappa, detection, fleissKappa, gwetAC1, krippendorffAlpha,
-  landisKochBand, pabak, percentAgreement, ratingsTableFromMatrix, ratingsTableFromVotes, referenceConfusion,
-  specificAgreement, weightedKappa, type StatResult,
+  AgreementError,
+  bootstrapTableStat,
+  cohenKappa,
+  detection,
+  fleissKappa,
+  gwetAC1,
+  krippendorffAlpha,
+  landisKochBand,
+  pabak,
+  percentAgreement,
+  ratingsTableFromMatrix,
+  ratingsTableFromVotes,
+  referenceConfusion,
+  specificAgreement,
+  weightedKappa,
+  type StatResult,
 } from '@/lib/agreement';
 import { createRng } from '@/lib/random';
 
@@ -17,7 +30,11 @@ function expectNull(s: StatResult) {
 
 describe('degenerate inputs never give NaN (common practice, no source: undefined → null with a reason)', () => {
   it('everyone used one category: percent 1, PABAK 1, AC1 1, κ and α null with a reason', () => {
-    const t = ratingsTableFromMatrix({ categories: LABELS, raters: ['a', 'b', 'c'], rows: Array.from({ length: 8 }, () => ['signal', 'signal', 'signal']) });
+    const t = ratingsTableFromMatrix({
+      categories: LABELS,
+      raters: ['a', 'b', 'c'],
+      rows: Array.from({ length: 8 }, () => ['signal', 'signal', 'signal']),
+    });
     expect(percentAgreement(t).value).toBe(1);
     expect(pabak(t).value).toBe(1);
     expect(gwetAC1(t).value).toBe(1);
@@ -30,26 +47,61 @@ describe('degenerate inputs never give NaN (common practice, no source: undefine
   });
 
   it('a rater who voted on nothing is excluded and listed', () => {
-    const t = ratingsTableFromMatrix({ categories: LABELS, raters: ['a', 'ghost', 'b'], rows: [['signal', null, 'noise'], ['noise', null, 'noise']] });
+    const t = ratingsTableFromMatrix({
+      categories: LABELS,
+      raters: ['a', 'ghost', 'b'],
+      rows: [
+        ['signal', null, 'noise'],
+        ['noise', null, 'noise'],
+      ],
+    });
     expect(t.raters).toEqual(['a', 'b']);
     expect(t.excludedRaters).toEqual(['ghost']);
     expect(() => cohenKappa(t, 'a', 'ghost')).toThrow(/excluded/);
   });
 
   it('fewer than 2 raters with votes is a typed error', () => {
-    const run = () => ratingsTableFromVotes({ categories: LABELS, votes: [{ item: 'c1', rater: 'a', label: 'noise' }, { item: 'c1', rater: 'b', label: null }] });
+    const run = () =>
+      ratingsTableFromVotes({
+        categories: LABELS,
+        votes: [
+          { item: 'c1', rater: 'a', label: 'noise' },
+          { item: 'c1', rater: 'b', label: null },
+        ],
+      });
     expect(run).toThrow(AgreementError);
-    try { run(); } catch (e) { expect((e as AgreementError).code).toBe('too_few_raters'); }
+    try {
+      run();
+    } catch (e) {
+      expect((e as AgreementError).code).toBe('too_few_raters');
+    }
   });
 
   it('fewer than 2 usable items gives null with a reason for every statistic', () => {
-    const t = ratingsTableFromMatrix({ categories: LABELS, raters: ['a', 'b'], rows: [['signal', 'noise'], ['noise', null]] });
+    const t = ratingsTableFromMatrix({
+      categories: LABELS,
+      raters: ['a', 'b'],
+      rows: [
+        ['signal', 'noise'],
+        ['noise', null],
+      ],
+    });
     for (const s of [percentAgreement(t), pabak(t), gwetAC1(t), krippendorffAlpha(t), fleissKappa(t), cohenKappa(t, 0, 1)]) expectNull(s);
   });
 
   it('unknown labels, duplicate votes and bad category lists are typed errors with clear messages', () => {
-    expect(() => ratingsTableFromMatrix({ categories: LABELS, raters: ['a', 'b'], rows: [['signal', 'artefact']] })).toThrow(/"artefact" is not one of signal, noise, uncertain/);
-    expect(() => ratingsTableFromVotes({ categories: LABELS, votes: [{ item: '1', rater: 'a', label: 'noise' }, { item: '1', rater: 'a', label: 'signal' }] })).toThrow(/more than one vote/);
+    expect(() => ratingsTableFromMatrix({ categories: LABELS, raters: ['a', 'b'], rows: [['signal', 'artefact']] })).toThrow(
+      /"artefact" is not one of signal, noise, uncertain/,
+    );
+    expect(() =>
+      ratingsTableFromVotes({
+        categories: LABELS,
+        votes: [
+          { item: '1', rater: 'a', label: 'noise' },
+          { item: '1', rater: 'a', label: 'signal' },
+        ],
+      }),
+    ).toThrow(/more than one vote/);
     expect(() => ratingsTableFromMatrix({ categories: ['noise'], raters: ['a', 'b'], rows: [] })).toThrow(/at least 2 categories/);
   });
 
@@ -58,10 +110,19 @@ describe('degenerate inputs never give NaN (common practice, no source: undefine
     for (let rep = 0; rep < 300; rep++) {
       const n = 1 + rng.int(6);
       const rows = Array.from({ length: n }, () => [0, 1, 2].map(() => (rng.next() < 0.4 ? null : rng.int(2))));
-      rows[0][0] = 0; rows[0][1] = 1; // at least 2 raters with a vote
+      rows[0][0] = 0;
+      rows[0][1] = 1; // at least 2 raters with a vote
       const t = ratingsTableFromMatrix({ categories: LABELS, raters: ['a', 'b', 'c'], rows });
-      const all: StatResult[] = [percentAgreement(t), pabak(t), gwetAC1(t), krippendorffAlpha(t), fleissKappa(t), ...Object.values(specificAgreement(t))];
-      for (let a = 0; a < t.nRaters; a++) for (let b = a + 1; b < t.nRaters; b++) all.push(cohenKappa(t, a, b), weightedKappa(t, a, b, 'linear'));
+      const all: StatResult[] = [
+        percentAgreement(t),
+        pabak(t),
+        gwetAC1(t),
+        krippendorffAlpha(t),
+        fleissKappa(t),
+        ...Object.values(specificAgreement(t)),
+      ];
+      for (let a = 0; a < t.nRaters; a++)
+        for (let b = a + 1; b < t.nRaters; b++) all.push(cohenKappa(t, a, b), weightedKappa(t, a, b, 'linear'));
       for (const s of all) expect(s.value === null || Number.isFinite(s.value)).toBe(true);
     }
   });
@@ -69,8 +130,18 @@ describe('degenerate inputs never give NaN (common practice, no source: undefine
 
 describe('Landis & Koch 1977 bands, Quorum convention: upper bounds inclusive', () => {
   it.each([
-    [-0.5, 'poor'], [-1e-9, 'poor'], [0, 'slight'], [0.2, 'slight'], [0.2000001, 'fair'], [0.4, 'fair'],
-    [0.4000001, 'moderate'], [0.6, 'moderate'], [0.61, 'substantial'], [0.8, 'substantial'], [0.8000001, 'almost perfect'], [1, 'almost perfect'],
+    [-0.5, 'poor'],
+    [-1e-9, 'poor'],
+    [0, 'slight'],
+    [0.2, 'slight'],
+    [0.2000001, 'fair'],
+    [0.4, 'fair'],
+    [0.4000001, 'moderate'],
+    [0.6, 'moderate'],
+    [0.61, 'substantial'],
+    [0.8, 'substantial'],
+    [0.8000001, 'almost perfect'],
+    [1, 'almost perfect'],
   ] as const)('%f → %s', (v, band) => expect(landisKochBand(v)).toBe(band));
   it('null has no band; NaN and values above 1 are refused', () => {
     expect(landisKochBand(null)).toBeNull();
@@ -87,7 +158,11 @@ describe('rater-vs-reference confusion and noise detection (sensitivity/specific
   const cm = referenceConfusion(t, 'r', decision);
   it('rows are the rater, columns the decision', () => {
     // hand-tabulated: rows/columns in the order signal, noise, uncertain
-    expect(cm.matrix).toEqual([[1, 1, 1], [1, 2, 0], [0, 1, 1]]);
+    expect(cm.matrix).toEqual([
+      [1, 1, 1],
+      [1, 2, 0],
+      [0, 1, 1],
+    ]);
     expect(cm.n).toBe(8);
   });
   it('sensitivity = 2/4, specificity = 3/4 (uncertain counts as not-noise)', () => {
@@ -97,7 +172,13 @@ describe('rater-vs-reference confusion and noise detection (sensitivity/specific
     expect(d.specificity.value).toBe(0.75);
   });
   it('a reference without noise gives null sensitivity with a reason', () => {
-    const d = detection(referenceConfusion(t, 'r', decision.map(() => 'signal')));
+    const d = detection(
+      referenceConfusion(
+        t,
+        'r',
+        decision.map(() => 'signal'),
+      ),
+    );
     expectNull(d.sensitivity);
   });
 });
@@ -138,7 +219,10 @@ describe('seeded bootstrap percentile CIs over items', () => {
     const g = createRng(42, 'golden-xor');
     let s = 0;
     const seen = new Set<number>();
-    for (let i = 0; i < 20000; i++) { s += g.next(); seen.add(g.int(10)); }
+    for (let i = 0; i < 20000; i++) {
+      s += g.next();
+      seen.add(g.int(10));
+    }
     expect(Math.abs(s / 20000 - 0.5)).toBeLessThan(0.01);
     expect(seen.size).toBe(10);
   });

@@ -4,8 +4,16 @@ import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import {
-  cohenKappa, fleissKappa, gwetAC1, krippendorffAlpha, landisKochBand, pabak, pairGwetAC1, percentAgreement,
-  ratingsTableFromMatrix, specificAgreement,
+  cohenKappa,
+  fleissKappa,
+  gwetAC1,
+  krippendorffAlpha,
+  landisKochBand,
+  pabak,
+  pairGwetAC1,
+  percentAgreement,
+  ratingsTableFromMatrix,
+  specificAgreement,
 } from '@/lib/agreement';
 
 const published = JSON.parse(readFileSync(path.resolve(__dirname, '../fixtures/agreement/published-examples.json'), 'utf8')) as {
@@ -17,12 +25,22 @@ const published = JSON.parse(readFileSync(path.resolve(__dirname, '../fixtures/a
 /** Two-rater table from a 2 × 2 (or k × k) count matrix: rows rater A, columns rater B. */
 function pairTable(counts: number[][], categories: string[]) {
   const rows: number[][] = [];
-  counts.forEach((row, a) => row.forEach((x, b) => { for (let t = 0; t < x; t++) rows.push([a, b]); }));
+  counts.forEach((row, a) =>
+    row.forEach((x, b) => {
+      for (let t = 0; t < x; t++) rows.push([a, b]);
+    }),
+  );
   return ratingsTableFromMatrix({ categories, raters: ['A', 'B'], rows });
 }
 
 describe("Cohen's κ — the widely reproduced 50-item table [[20,5],[10,15]] (Cohen 1960 style example; table and κ = 0.40 from memory)", () => {
-  const t = pairTable([[20, 5], [10, 15]], ['yes', 'no']);
+  const t = pairTable(
+    [
+      [20, 5],
+      [10, 15],
+    ],
+    ['yes', 'no'],
+  );
   it('κ = 0.40 (hand: p_o = 0.70, p_e = 0.50), also statsmodels 0.13.5 cohens_kappa in published-examples.json', () => {
     expect(cohenKappa(t, 'A', 'B').value).toBeCloseTo(0.4, 12);
     expect(published.cohen1960_50_items.kappa).toBeCloseTo(0.4, 12);
@@ -60,7 +78,11 @@ describe("Krippendorff's α — Krippendorff 2011 nominal example, 4 observers �
   // The data matrix is from memory; it matches third-party reproductions of the paper's table, and
   // α = 0.743 is the paper's stated value, also from memory. Recomputed by the independent numpy
   // code in scripts/reference/make-agreement-fixtures.py: 0.743421.
-  const t = ratingsTableFromMatrix({ categories: ['1', '2', '3', '4', '5'], raters: ['A', 'B', 'C', 'D'], rows: published.krippendorff2011_nominal.codes });
+  const t = ratingsTableFromMatrix({
+    categories: ['1', '2', '3', '4', '5'],
+    raters: ['A', 'B', 'C', 'D'],
+    rows: published.krippendorff2011_nominal.codes,
+  });
   it('α = 0.743 (from memory), equal to the numpy reference to 1e-9', () => {
     const a = krippendorffAlpha(t);
     expect(a.value).toBeCloseTo(0.743, 3);
@@ -71,7 +93,13 @@ describe("Krippendorff's α — Krippendorff 2011 nominal example, 4 observers �
 
 describe('the κ paradox: imbalanced labels, high agreement, low κ (Feinstein & Cicchetti 1990; table invented, values hand-computed)', () => {
   // 100 components, 'signal' dominant: both signal 90, A signal/B noise 4, A noise/B signal 4, both noise 2.
-  const t = pairTable([[90, 4], [4, 2]], ['signal', 'noise']);
+  const t = pairTable(
+    [
+      [90, 4],
+      [4, 2],
+    ],
+    ['signal', 'noise'],
+  );
   it('percent agreement 0.92 but κ = 0.0328/0.1128 ≈ 0.29 ("fair")', () => {
     expect(percentAgreement(t).value).toBeCloseTo(0.92, 12);
     const k = cohenKappa(t, 'A', 'B').value as number;
@@ -84,7 +112,14 @@ describe('the κ paradox: imbalanced labels, high agreement, low κ (Feinstein &
     expect(landisKochBand(gwetAC1(t).value)).toBe('almost perfect');
   });
   it('the k-category PABAK counts an unused category: with 3 categories PABAK = (3·0.92 − 1)/2', () => {
-    const t3 = pairTable([[90, 4, 0], [4, 2, 0], [0, 0, 0]], ['signal', 'noise', 'uncertain']);
+    const t3 = pairTable(
+      [
+        [90, 4, 0],
+        [4, 2, 0],
+        [0, 0, 0],
+      ],
+      ['signal', 'noise', 'uncertain'],
+    );
     expect(pabak(t3).value).toBeCloseTo((3 * 0.92 - 1) / 2, 12);
     expect(cohenKappa(t3, 'A', 'B').value).toBeCloseTo(0.0328 / 0.1128, 12); // κ ignores empty categories
   });

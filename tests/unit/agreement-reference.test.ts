@@ -9,18 +9,49 @@ import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import {
-  cohenKappa, fleissKappa, gwetAC1, krippendorffAlpha, pabak, pairConfusion, pairGwetAC1, pairPercentAgreement,
-  percentAgreement, ratingsTableFromMatrix, specificAgreement, weightedKappa, type StatResult,
+  cohenKappa,
+  fleissKappa,
+  gwetAC1,
+  krippendorffAlpha,
+  pabak,
+  pairConfusion,
+  pairGwetAC1,
+  pairPercentAgreement,
+  percentAgreement,
+  ratingsTableFromMatrix,
+  specificAgreement,
+  weightedKappa,
+  type StatResult,
 } from '@/lib/agreement';
 
-type Pair = { a: number; b: number; n: number; table: number[][]; kappa: number | null; linear: number | null; quadratic: number | null; percent?: number; ac1?: number };
+type Pair = {
+  a: number;
+  b: number;
+  n: number;
+  table: number[][];
+  kappa: number | null;
+  linear: number | null;
+  quadratic: number | null;
+  percent?: number;
+  ac1?: number;
+};
 type Case = {
-  name: string; k: number; raters: number; items: number; codes: (number | null)[][];
-  pairs: Pair[]; fleiss: { kappa: number | null; used: number; votesPerItem: number }; alpha: number | null;
-  percent: number | null; pabak: number | null; ac1: number | null; specific: (number | null)[];
+  name: string;
+  k: number;
+  raters: number;
+  items: number;
+  codes: (number | null)[][];
+  pairs: Pair[];
+  fleiss: { kappa: number | null; used: number; votesPerItem: number };
+  alpha: number | null;
+  percent: number | null;
+  pabak: number | null;
+  ac1: number | null;
+  specific: (number | null)[];
 };
 const fixture = JSON.parse(readFileSync(path.resolve(__dirname, '../fixtures/agreement/random-tables.json'), 'utf8')) as {
-  header: { library: string }; cases: Case[];
+  header: { library: string };
+  cases: Case[];
 };
 
 const TOL = 1e-9;

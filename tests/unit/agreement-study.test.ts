@@ -2,8 +2,19 @@
 // (which are themselves checked against statsmodels 0.13.5 / numpy references and published examples).
 import { describe, expect, it } from 'vitest';
 import {
-  bootstrapTableStat, cohenKappa, detection, fleissKappa, gwetAC1, krippendorffAlpha, pabak, percentAgreement,
-  ratingsTableFromVotes, referenceConfusion, studyAgreement, type StudyItem, type Vote,
+  bootstrapTableStat,
+  cohenKappa,
+  detection,
+  fleissKappa,
+  gwetAC1,
+  krippendorffAlpha,
+  pabak,
+  percentAgreement,
+  ratingsTableFromVotes,
+  referenceConfusion,
+  studyAgreement,
+  type StudyItem,
+  type Vote,
 } from '@/lib/agreement';
 import { createRng } from '@/lib/random';
 
@@ -102,6 +113,11 @@ describe('studyAgreement', () => {
   it('without bootstrap the intervals are null; an unknown decision label is a typed error', () => {
     const r = studyAgreement({ categories: LABELS, items, bootstrap: false });
     expect(r.overall.gwetAC1.ci).toBeNull();
-    expect(() => studyAgreement({ categories: LABELS, items: [...items, { id: 'x', runId: 'run0', votes: { ana: 'noise', ben: 'noise' }, decision: 'maybe' }] })).toThrow(/"maybe"/);
+    expect(() =>
+      studyAgreement({
+        categories: LABELS,
+        items: [...items, { id: 'x', runId: 'run0', votes: { ana: 'noise', ben: 'noise' }, decision: 'maybe' }],
+      }),
+    ).toThrow(/"maybe"/);
   });
 });

@@ -8,7 +8,10 @@ import { auditAddress, clientAddress } from '@/lib/auth/client-address';
 
 const saved = { trust: process.env.QUORUM_TRUST_PROXY, peer: process.env.QUORUM_PEER_HEADER };
 afterEach(() => {
-  for (const [name, value] of [['QUORUM_TRUST_PROXY', saved.trust], ['QUORUM_PEER_HEADER', saved.peer]] as const) {
+  for (const [name, value] of [
+    ['QUORUM_TRUST_PROXY', saved.trust],
+    ['QUORUM_PEER_HEADER', saved.peer],
+  ] as const) {
     if (value === undefined) delete process.env[name];
     else process.env[name] = value;
   }

@@ -9,7 +9,11 @@ const access = (over: Partial<Access>): Access => ({ studyId: 1, name: 'Study', 
 
 describe('role → action matrix', () => {
   it('grants every action to some role, and everything to the admin', () => {
-    for (const action of ACTIONS) expect(ROLES.some((r) => can(r, action)), action).toBe(true);
+    for (const action of ACTIONS)
+      expect(
+        ROLES.some((r) => can(r, action)),
+        action,
+      ).toBe(true);
     expect([...PERMISSIONS.admin].sort()).toEqual([...ACTIONS].sort());
   });
 

@@ -11,7 +11,11 @@ describe('distinctRunNames', () => {
       { runId: 9, name: stem },
       { runId: 5, name: 'sub-02_ses-1_task-rest' },
     ]);
-    expect(named.map((r) => r.name)).toEqual(['sub-01_ses-1_task-rest (run #4)', 'sub-01_ses-1_task-rest (run #9)', 'sub-02_ses-1_task-rest']);
+    expect(named.map((r) => r.name)).toEqual([
+      'sub-01_ses-1_task-rest (run #4)',
+      'sub-01_ses-1_task-rest (run #9)',
+      'sub-02_ses-1_task-rest',
+    ]);
     expect(new Set(named.map((r) => r.name)).size).toBe(3);
   });
 });

@@ -13,7 +13,11 @@ describe('sensitivityByKind', () => {
       { rater: 'noise', reference: 'noise', referenceKind: null },
       { rater: 'noise', reference: 'signal', referenceKind: null },
     ]);
-    expect(out.map((k) => [k.kind, k.n, k.detected])).toEqual([['motion', 3, 2], ['pulsation', 1, 0], ['unspecified', 1, 1]]);
+    expect(out.map((k) => [k.kind, k.n, k.detected])).toEqual([
+      ['motion', 3, 2],
+      ['pulsation', 1, 0],
+      ['unspecified', 1, 1],
+    ]);
     expect(out[0]!.sensitivity.value).toBeCloseTo(2 / 3, 12);
     expect(out[1]!.sensitivity.value).toBe(0);
   });

@@ -21,7 +21,12 @@ const pending =
 describe('scontrol show job -o', () => {
   it('reads state, reason, node, run time, exit code, limit and stderr path', () => {
     expect(parseScontrol(completed)).toEqual({
-      state: 'COMPLETED', reason: null, node: 'vm', elapsedSeconds: 27, exitCode: '0:0', timeLimit: '00:10:00',
+      state: 'COMPLETED',
+      reason: null,
+      node: 'vm',
+      elapsedSeconds: 27,
+      exitCode: '0:0',
+      timeLimit: '00:10:00',
       stderrPath: '/tmp/quorum-uploads-I3t6EP/cluster/job-2/stderr.txt',
     });
     // NodeList is empty while pending, and ReqNodeList must not be read as NodeList
@@ -50,7 +55,9 @@ describe('a cluster job that ended', () => {
   it('a time limit and lack of memory fail at once with what to change; a node failure is retried', () => {
     const t = clusterFailure('4', st('TIMEOUT', { timeLimit: '00:01:00' }), '', settings)!;
     expect(t).toBeInstanceOf(PermanentJobError);
-    expect(t.message).toBe('The cluster stopped job 4 on node vm at its time limit (00:01:00). Ask the facility admin for a longer limit (QUORUM_SLURM_TIME) or decompose with fewer components or restarts.');
+    expect(t.message).toBe(
+      'The cluster stopped job 4 on node vm at its time limit (00:01:00). Ask the facility admin for a longer limit (QUORUM_SLURM_TIME) or decompose with fewer components or restarts.',
+    );
     const m = clusterFailure('4', st('OUT_OF_MEMORY'), '', settings)!;
     expect(m).toBeInstanceOf(PermanentJobError);
     expect(m.message).toMatch(/ran out of memory \(limit 4G\)/);
@@ -58,7 +65,9 @@ describe('a cluster job that ended', () => {
   });
   it('a non-zero exit names the code and the last lines of stderr, on one line', () => {
     const f = clusterFailure('4', st('FAILED', { exitCode: '1:0' }), 'quorum decompose: The run has 3 volumes', settings)!;
-    expect(f.message).toBe('Cluster job 4 on node vm ended with exit code 1. Last lines of its error output: quorum decompose: The run has 3 volumes');
+    expect(f.message).toBe(
+      'Cluster job 4 on node vm ended with exit code 1. Last lines of its error output: quorum decompose: The run has 3 volumes',
+    );
     expect(f.message).not.toContain('\n');
   });
   it("pending reasons in people's words", () => {
@@ -70,9 +79,18 @@ describe('a cluster job that ended', () => {
 
 describe('the batch script', () => {
   const values = {
-    job_name: 'quorum-j7-abc', partition: null, account: 'imaging', time: '00:30:00', cpus: '2', mem: '4G',
-    stdout: '/shared/cluster/job-7/stdout.txt', stderr: '/shared/cluster/job-7/stderr.txt', workdir: '/shared/cluster/job-7',
-    quorum_home: "'/opt/quorum app'", setup: 'module load nodejs/20', command: "npm run -s quorum -- decompose /shared/runs/a.nii.gz --out '/shared/x y'",
+    job_name: 'quorum-j7-abc',
+    partition: null,
+    account: 'imaging',
+    time: '00:30:00',
+    cpus: '2',
+    mem: '4G',
+    stdout: '/shared/cluster/job-7/stdout.txt',
+    stderr: '/shared/cluster/job-7/stderr.txt',
+    workdir: '/shared/cluster/job-7',
+    quorum_home: "'/opt/quorum app'",
+    setup: 'module load nodejs/20',
+    command: "npm run -s quorum -- decompose /shared/runs/a.nii.gz --out '/shared/x y'",
   };
   it('fills the placeholders and leaves out #SBATCH lines without a value', () => {
     const s = renderBatchScript(DEFAULT_TEMPLATE, values);
@@ -91,8 +109,38 @@ describe('the batch script', () => {
     expect(shellQuote('$(rm -rf /)')).toBe("'$(rm -rf /)'");
   });
   it("passes the worker's engine options as `quorum decompose` flags", () => {
-    expect(decomposeFlags({ components: 'auto', dimMethod: { variance: 0.9 }, seed: 1, restarts: 5, drop: 4, varianceNorm: false, detrend: true, contrast: 'logcosh', tol: 1e-4, maxIter: 200 })).toEqual([
-      '--components', 'auto', '--dim-method', 'variance:0.9', '--seed', '1', '--restarts', '5', '--drop', '4', '--no-variance-norm', '--detrend', '--contrast', 'logcosh', '--tol', '0.0001', '--max-iter', '200',
+    expect(
+      decomposeFlags({
+        components: 'auto',
+        dimMethod: { variance: 0.9 },
+        seed: 1,
+        restarts: 5,
+        drop: 4,
+        varianceNorm: false,
+        detrend: true,
+        contrast: 'logcosh',
+        tol: 1e-4,
+        maxIter: 200,
+      }),
+    ).toEqual([
+      '--components',
+      'auto',
+      '--dim-method',
+      'variance:0.9',
+      '--seed',
+      '1',
+      '--restarts',
+      '5',
+      '--drop',
+      '4',
+      '--no-variance-norm',
+      '--detrend',
+      '--contrast',
+      'logcosh',
+      '--tol',
+      '0.0001',
+      '--max-iter',
+      '200',
     ]);
   });
 });
@@ -126,8 +174,9 @@ describe('array settings', () => {
     try {
       f();
     } finally {
-      for (const key of Object.keys(env)) if (old[key] === undefined) delete process.env[key];
-      else process.env[key] = old[key];
+      for (const key of Object.keys(env))
+        if (old[key] === undefined) delete process.env[key];
+        else process.env[key] = old[key];
     }
   };
   it('default to arrays of up to 50 runs gathered for one poll interval', () => {
@@ -135,6 +184,8 @@ describe('array settings', () => {
   });
   it('refuse a bad array size, naming the variable', () => {
     withEnv({ QUORUM_SLURM_ARRAY_MAX: '0' }, () => expect(() => slurmSettings()).toThrow(ExecutorSettingsError));
-    withEnv({ QUORUM_SLURM_ARRAY_MAX: 'many' }, () => expect(() => slurmSettings()).toThrow(/QUORUM_SLURM_ARRAY_MAX must be a whole number/));
+    withEnv({ QUORUM_SLURM_ARRAY_MAX: 'many' }, () =>
+      expect(() => slurmSettings()).toThrow(/QUORUM_SLURM_ARRAY_MAX must be a whole number/),
+    );
   });
 });

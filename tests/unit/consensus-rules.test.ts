@@ -32,7 +32,10 @@ describe('decideByRule', () => {
   });
 
   it('uncertain is a category of its own', () => {
-    expect(decideByRule('majority', [v('uncertain'), v('uncertain'), v('noise')], 3)).toMatchObject({ method: 'majority', label: 'uncertain' });
+    expect(decideByRule('majority', [v('uncertain'), v('uncertain'), v('noise')], 3)).toMatchObject({
+      method: 'majority',
+      label: 'uncertain',
+    });
   });
 });
 

@@ -13,7 +13,8 @@ afterAll(async () => {
 });
 
 async function runCli(args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
-  let stdout = '', stderr = '';
+  let stdout = '',
+    stderr = '';
   const o = vi.spyOn(process.stdout, 'write').mockImplementation((s) => ((stdout += String(s)), true));
   const e = vi.spyOn(process.stderr, 'write').mockImplementation((s) => ((stderr += String(s)), true));
   try {
@@ -37,7 +38,14 @@ describe('quorum decompose', () => {
     expect(res.stderr).toBe('');
     expect(res.code).toBe(0);
     const summary = JSON.parse(res.stdout);
-    expect(summary).toMatchObject({ components: 6, dimMethod: 'fixed', seed: 3, timepoints: p.dims[3] - 2, trSeconds: p.trSeconds, varianceNormalised: true });
+    expect(summary).toMatchObject({
+      components: 6,
+      dimMethod: 'fixed',
+      seed: 3,
+      timepoints: p.dims[3] - 2,
+      trSeconds: p.trSeconds,
+      varianceNormalised: true,
+    });
     expect(JSON.parse(await readFile(path.join(out, 'summary.json'), 'utf8')).components).toBe(6);
     const comps = await readNiftiFile(path.join(out, 'components.nii.gz'));
     expect(comps.header.dims).toEqual([...p.dims.slice(0, 3), 6]);
@@ -61,13 +69,16 @@ describe('quorum decompose', () => {
     expect((await readNiftiFile(path.join(out, 'mean.nii.gz'))).header.dims).toEqual(p.dims.slice(0, 3));
   });
 
-  it('outputs keep the input\'s qform/sform codes and transforms; the component axis is not time (NIfTI-1 standard, nifti1.h)', async () => {
+  it("outputs keep the input's qform/sform codes and transforms; the component axis is not time (NIfTI-1 standard, nifti1.h)", async () => {
     // A run as a DICOM converter writes it: qform_code = sform_code = 1 (NIFTI_XFORM_SCANNER_ANAT).
     // Also a qform-only header (sform_code 0), whose qform must stay the only transform.
     const dir = await mkdtemp(path.join(tmpdir(), 'quorum-decompose-codes-'));
     dirs.push(dir);
     const p = generatePhantom({ size: 'tiny', seed: 2, volumes: 40 });
-    for (const codes of [{ qformCode: 1, sformCode: 1 }, { qformCode: 1, sformCode: 0 }]) {
+    for (const codes of [
+      { qformCode: 1, sformCode: 1 },
+      { qformCode: 1, sformCode: 0 },
+    ]) {
       const file = path.join(dir, `run-q${codes.qformCode}-s${codes.sformCode}.nii.gz`);
       await writeNiftiFile(file, { ...phantomToNiftiInput(p, { datatype: 'int16' }), ...codes });
       const input = await readNiftiFile(file);
@@ -104,7 +115,10 @@ describe('quorum decompose', () => {
     const summary = JSON.parse(res.stdout);
     expect(summary.reproducibility).toBeNull();
     expect(summary.warnings).toEqual([]);
-    const lines = (await readFile(path.join(out, 'features.tsv'), 'utf8')).trim().split('\n').map((l) => l.split('\t'));
+    const lines = (await readFile(path.join(out, 'features.tsv'), 'utf8'))
+      .trim()
+      .split('\n')
+      .map((l) => l.split('\t'));
     const header = lines[0]!;
     for (const col of ['reproducibility', 'stepScore', 'trendR2', 'mapThresholdZ', 'edgeFraction']) expect(header).toContain(col);
     const rep = header.indexOf('reproducibility');
@@ -122,14 +136,33 @@ describe('quorum decompose', () => {
     const file = path.join(dir, 'run.nii.gz');
     await writeNiftiFile(file, phantomToNiftiInput(p, { datatype: 'int16' }));
     const rows = Array.from({ length: p.dims[3] }, (_, t) =>
-      [...p.motion.translations.map((c) => c[t]!), ...p.motion.rotations.map((c) => c[t]!)].join(' '));
+      [...p.motion.translations.map((c) => c[t]!), ...p.motion.rotations.map((c) => c[t]!)].join(' '),
+    );
     await writeFile(path.join(dir, 'motion.txt'), rows.join('\n') + '\n');
     const out = path.join(dir, 'out');
-    const res = await runCli([file, '--out', out, '--components', '4', '--drop', '3', '--threads', '1',
-      '--motion', path.join(dir, 'motion.txt'), '--motion-order', 'trans-first', '--motion-units', 'radians']);
+    const res = await runCli([
+      file,
+      '--out',
+      out,
+      '--components',
+      '4',
+      '--drop',
+      '3',
+      '--threads',
+      '1',
+      '--motion',
+      path.join(dir, 'motion.txt'),
+      '--motion-order',
+      'trans-first',
+      '--motion-units',
+      'radians',
+    ]);
     expect(res.stderr).toBe('');
     expect(JSON.parse(res.stdout).motionGiven).toBe(true);
-    const lines = (await readFile(path.join(out, 'features.tsv'), 'utf8')).trim().split('\n').map((l) => l.split('\t'));
+    const lines = (await readFile(path.join(out, 'features.tsv'), 'utf8'))
+      .trim()
+      .split('\n')
+      .map((l) => l.split('\t'));
     const col = lines[0]!.indexOf('motionCorrelation');
     expect(col).toBeGreaterThan(0);
     for (const row of lines.slice(1)) expect(Number(row[col])).toBeGreaterThanOrEqual(0);

@@ -2,7 +2,12 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import {
-  chooseDimension, informationCriterionDimension, logGamma, minkaDimension, minkaLogEvidence, varianceFractionDimension,
+  chooseDimension,
+  informationCriterionDimension,
+  logGamma,
+  minkaDimension,
+  minkaLogEvidence,
+  varianceFractionDimension,
 } from '@/lib/decomposition/dimensionality';
 import { temporalCovariance } from '@/lib/decomposition/covariance';
 import { temporalPca } from '@/lib/decomposition/pca';
@@ -11,7 +16,14 @@ import { KernelPool, sharedFloat32 } from '@/lib/decomposition/worker-pool';
 
 interface MinkaFixture {
   library: string;
-  datasets: Array<{ name: string; nSamples: number; nFeatures: number; mleComponents: number; explainedVariance: number[]; data?: number[][] }>;
+  datasets: Array<{
+    name: string;
+    nSamples: number;
+    nFeatures: number;
+    mleComponents: number;
+    explainedVariance: number[];
+    data?: number[][];
+  }>;
 }
 // Fixture: scikit-learn 1.2.1 PCA(n_components='mle'), written by scripts/reference/make-decomposition-fixtures.py.
 const fixture = JSON.parse(readFileSync('tests/fixtures/decomposition/minka-mle.json', 'utf8')) as MinkaFixture;
@@ -45,7 +57,10 @@ describe('logGamma (Lanczos)', () => {
 });
 
 describe('spectra of known rank (k strong sources + white noise)', () => {
-  for (const [p, k] of [[20, 3], [40, 6]] as const) {
+  for (const [p, k] of [
+    [20, 3],
+    [40, 6],
+  ] as const) {
     it(`laplace (Minka 2000) and MDL (Wax & Kailath 1985) find k = ${k} of ${p}`, async () => {
       const n = 2000;
       const s = await knownRankSpectrum(p, k, n, 100 + k);
@@ -65,7 +80,8 @@ describe(`Minka agreement with ${fixture.library} PCA(n_components='mle')`, () =
   }
   it('our covariance + eigen-decomposition reproduces sklearn explained_variance_ (relative 1e-6)', async () => {
     const d = fixture.datasets.find((x) => x.data)!;
-    const n = d.nSamples, p = d.nFeatures;
+    const n = d.nSamples,
+      p = d.nFeatures;
     // Our layout is time-major: features (time points) × samples (voxels). The Float32 storage
     // rounds the fixture's float64 values (~6e-8 relative), hence the 1e-6 tolerance.
     const x = sharedFloat32(p * n);
@@ -102,10 +118,12 @@ describe('chooseDimension', () => {
     expect(inside.estimates).toMatchObject({ aic: 5, mdl: 5 });
     expect(inside.curve).toHaveLength(14);
   });
-  it('iid-aic / iid-mdl judge the subsample\'s own spectrum with its voxel count', () => {
+  it("iid-aic / iid-mdl judge the subsample's own spectrum with its voxel count", () => {
     const c = chooseDimension(s, { components: 'auto', method: 'iid-mdl', effectiveSamples: 1000, iid: { spectrum: s, samples: 800 } });
     expect(c).toMatchObject({ k: 5, method: 'iid-mdl', iidSamples: 800 });
-    expect(() => chooseDimension(s, { components: 'auto', method: 'iid-mdl', effectiveSamples: 1000 })).toThrow(/needs the i.i.d. voxel subsample/);
+    expect(() => chooseDimension(s, { components: 'auto', method: 'iid-mdl', effectiveSamples: 1000 })).toThrow(
+      /needs the i.i.d. voxel subsample/,
+    );
   });
   it('fixed numbers pass through; out of range is a typed error', () => {
     expect(chooseDimension(s, { components: 7, method: 'laplace', effectiveSamples: 1000 })).toMatchObject({ k: 7, method: 'fixed' });

@@ -26,9 +26,8 @@ function sources(k: number, V: number, seed: number): Float64Array {
   for (let i = 0; i < k; i++) {
     for (let v = 0; v < V; v++) {
       const r = u();
-      s[i * V + v] = i % 2 === 0
-        ? (r < 0.5 ? Math.log(2 * r + 1e-300) : -Math.log(2 - 2 * r + 1e-300)) / Math.SQRT2
-        : (r - 0.5) * Math.sqrt(12);
+      s[i * V + v] =
+        i % 2 === 0 ? (r < 0.5 ? Math.log(2 * r + 1e-300) : -Math.log(2 - 2 * r + 1e-300)) / Math.SQRT2 : (r - 0.5) * Math.sqrt(12);
     }
   }
   return s;
@@ -60,28 +59,44 @@ async function separate(k: number, V: number, contrast: Contrast, threads: numbe
   const ica = await fastIca(wh.z, k, V, p, { contrast, seed });
   // Global system W·P·A (k × k): a scaled permutation for perfect separation.
   const wp = new Float64Array(k * k);
-  for (let i = 0; i < k; i++) for (let t = 0; t < k; t++) {
-    let acc = 0;
-    for (let j = 0; j < k; j++) acc += ica.w[i * k + j]! * wh.whitening[j * k + t]!;
-    wp[i * k + t] = acc;
-  }
+  for (let i = 0; i < k; i++)
+    for (let t = 0; t < k; t++) {
+      let acc = 0;
+      for (let j = 0; j < k; j++) acc += ica.w[i * k + j]! * wh.whitening[j * k + t]!;
+      wp[i * k + t] = acc;
+    }
   const g = new Float64Array(k * k);
-  for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) {
-    let acc = 0;
-    for (let t = 0; t < k; t++) acc += wp[i * k + t]! * a[t * k + j]!;
-    g[i * k + j] = acc;
-  }
+  for (let i = 0; i < k; i++)
+    for (let j = 0; j < k; j++) {
+      let acc = 0;
+      for (let t = 0; t < k; t++) acc += wp[i * k + t]! * a[t * k + j]!;
+      g[i * k + j] = acc;
+    }
   return { g, ica, wh };
 }
 
 describe('Amari index (Amari, Cichocki & Yang 1996, NIPS 8)', () => {
   it('is 0 for a scaled permutation', () => {
-    expect(amariIndex([[0, 2.5, 0], [-0.3, 0, 0], [0, 0, 7]])).toBe(0);
+    expect(
+      amariIndex([
+        [0, 2.5, 0],
+        [-0.3, 0, 0],
+        [0, 0, 7],
+      ]),
+    ).toBe(0);
   });
   it('is positive for a mixing matrix and at most 1', () => {
-    const v = amariIndex([[1, 1], [1, -1]]);
+    const v = amariIndex([
+      [1, 1],
+      [1, -1],
+    ]);
     expect(v).toBeCloseTo(1, 12); // every row and column fully mixed: (2·(2/1 − 1))·2 / (2·2·1) = 1
-    expect(amariIndex([[1, 0.1], [0.05, 1]])).toBeCloseTo((0.1 + 0.05 + 0.1 + 0.05) / 4, 12);
+    expect(
+      amariIndex([
+        [1, 0.1],
+        [0.05, 1],
+      ]),
+    ).toBeCloseTo((0.1 + 0.05 + 0.1 + 0.05) / 4, 12);
   });
 });
 
@@ -130,33 +145,37 @@ describe('FastICA (Hyvärinen 1999; Hyvärinen & Oja 2000) recovers known Laplac
   });
   it('symmetric decorrelation returns an orthogonal matrix', () => {
     const w = symmetricDecorrelation(Float64Array.from([1, 2, 0.5, -1, 3, 1, 0.2, 0.1, 2]), 3);
-    for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) {
-      let d = 0;
-      for (let l = 0; l < 3; l++) d += w[i * 3 + l]! * w[j * 3 + l]!;
-      expect(d).toBeCloseTo(i === j ? 1 : 0, 10);
-    }
+    for (let i = 0; i < 3; i++)
+      for (let j = 0; j < 3; j++) {
+        let d = 0;
+        for (let l = 0; l < 3; l++) d += w[i * 3 + l]! * w[j * 3 + l]!;
+        expect(d).toBeCloseTo(i === j ? 1 : 0, 10);
+      }
   });
 });
 
 describe('Gram kernel', () => {
   it('matches a naive double loop for T not a multiple of 4, across voxel blocks', () => {
-    const T = 7, V = 700;
+    const T = 7,
+      V = 700;
     const u = createRng(9, 'direct').next;
     const x = new Float32Array(T * V).map(() => u() - 0.5);
     const out = new Float64Array(T * T);
     gramChunk(x, T, V, 0, 300, out);
     gramChunk(x, T, V, 300, V, out);
-    for (let a = 0; a < T; a++) for (let b = a; b < T; b++) {
-      let s = 0;
-      for (let v = 0; v < V; v++) s += x[a * V + v]! * x[b * V + v]!;
-      expect(out[a * T + b]).toBeCloseTo(s, 9);
-    }
+    for (let a = 0; a < T; a++)
+      for (let b = a; b < T; b++) {
+        let s = 0;
+        for (let v = 0; v < V; v++) s += x[a * V + v]! * x[b * V + v]!;
+        expect(out[a * T + b]).toBeCloseTo(s, 9);
+      }
   });
 });
 
 describe('FastICA warm start on a voxel subset', () => {
   it('ends at the same separation as a cold start (Amari ≤ 0.05) and reports its subset', async () => {
-    const k = 3, V = 30000;
+    const k = 3,
+      V = 30000;
     const s = sources(k, V, 21);
     const { x, a } = mix(s, k, V, k, 22);
     const p = pool(2);
@@ -168,15 +187,16 @@ describe('FastICA warm start on a voxel subset', () => {
     expect(r.warmStartIterations).toBeGreaterThan(0);
     expect(r.converged).toBe(true);
     const g = new Float64Array(k * k);
-    for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) {
-      let acc = 0;
-      for (let t = 0; t < k; t++) {
-        let wp = 0;
-        for (let l = 0; l < k; l++) wp += r.w[i * k + l]! * wh.whitening[l * k + t]!;
-        acc += wp * a[t * k + j]!;
+    for (let i = 0; i < k; i++)
+      for (let j = 0; j < k; j++) {
+        let acc = 0;
+        for (let t = 0; t < k; t++) {
+          let wp = 0;
+          for (let l = 0; l < k; l++) wp += r.w[i * k + l]! * wh.whitening[l * k + t]!;
+          acc += wp * a[t * k + j]!;
+        }
+        g[i * k + j] = acc;
       }
-      g[i * k + j] = acc;
-    }
     expect(amariIndex(g, k)).toBeLessThanOrEqual(0.05);
     const cold = await fastIca(wh.z, k, V, p, { seed: 3, warmStartVoxels: 0 });
     expect(cold.warmStartVoxels).toBe(0);

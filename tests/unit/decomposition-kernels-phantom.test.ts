@@ -38,6 +38,7 @@ describe('decomposition with WebAssembly kernels vs JavaScript reference kernels
       expect(Math.abs(bestAbsR(wasm, truth) - bestAbsR(js, truth)), s.name).toBeLessThanOrEqual(0.01);
     }
     const V = js.voxelsInMask;
-    for (let c = 0; c < js.k; c++) expect(bestAbsR(wasm, js.maps.subarray(c * V, (c + 1) * V)), `component ${c + 1}`).toBeGreaterThanOrEqual(0.99);
+    for (let c = 0; c < js.k; c++)
+      expect(bestAbsR(wasm, js.maps.subarray(c * V, (c + 1) * V)), `component ${c + 1}`).toBeGreaterThanOrEqual(0.99);
   }, 120_000);
 });

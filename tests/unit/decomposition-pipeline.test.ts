@@ -14,7 +14,11 @@ describe('decomposeRun', () => {
     const a = await decomposeRun({ image: run.image, mask: fullMask }, { seed: 42, threads: 1 });
     const b = await decomposeRun({ image: run.image, mask: fullMask }, { seed: 42, threads: 2 });
     expect(a.seed).toBe(42);
-    expect(Buffer.from(a.maps.buffer, a.maps.byteOffset, a.maps.byteLength).equals(Buffer.from(b.maps.buffer, b.maps.byteOffset, b.maps.byteLength))).toBe(true);
+    expect(
+      Buffer.from(a.maps.buffer, a.maps.byteOffset, a.maps.byteLength).equals(
+        Buffer.from(b.maps.buffer, b.maps.byteOffset, b.maps.byteLength),
+      ),
+    ).toBe(true);
     expect(Array.from(a.timecourses)).toEqual(Array.from(b.timecourses));
   });
 
@@ -31,10 +35,15 @@ describe('decomposeRun', () => {
     }
     for (let c = 0; c < r.k; c++) {
       const map = r.maps.subarray(c * V, (c + 1) * V);
-      let m = 0, m2 = 0, m3 = 0;
+      let m = 0,
+        m2 = 0,
+        m3 = 0;
       for (const v of map) m += v;
       m /= V;
-      for (const v of map) { m2 += (v - m) ** 2; m3 += (v - m) ** 3; }
+      for (const v of map) {
+        m2 += (v - m) ** 2;
+        m3 += (v - m) ** 3;
+      }
       expect(Math.abs(m)).toBeLessThan(1e-4);
       expect(m2 / V).toBeCloseTo(1, 4);
       expect(m3).toBeGreaterThan(0);

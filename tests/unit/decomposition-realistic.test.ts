@@ -17,7 +17,8 @@ function matches(p: Phantom, r: DecompositionResult): Array<{ name: string; comp
   const V = r.voxelsInMask;
   return p.truth.sources.map((s) => {
     const truth = Array.from(r.maskIndices, (i) => s.map[i]!);
-    let best = 0, component = -1;
+    let best = 0,
+      component = -1;
     for (let c = 0; c < r.k; c++) {
       const v = Math.abs(pearson(truth, r.maps.subarray(c * V, (c + 1) * V)));
       if (v > best) {

@@ -9,7 +9,10 @@ import { gaussianKernel, smoothSeparable } from '@/lib/phantom';
 
 function randomOrthogonal(k: number, seed: number): Float64Array {
   const g = createRng(seed, 'direct').gauss;
-  return symmetricDecorrelation(Float64Array.from({ length: k * k }, () => g()), k);
+  return symmetricDecorrelation(
+    Float64Array.from({ length: k * k }, () => g()),
+    k,
+  );
 }
 
 /** Rows of w permuted by perm and sign-flipped where flip is set (what another restart returns for the same sources). */
@@ -25,7 +28,11 @@ describe('clusterEstimates', () => {
   it('restarts that find the same sources (any order and sign) give index 1 and clusters of R', () => {
     const k = 6;
     const w = randomOrthogonal(k, 1);
-    const runs = [w, permuted(w, k, [5, 4, 3, 2, 1, 0], [true, false, true, false, false, false]), permuted(w, k, [1, 0, 3, 2, 5, 4], [false, false, false, true, true, false])];
+    const runs = [
+      w,
+      permuted(w, k, [5, 4, 3, 2, 1, 0], [true, false, true, false, false, false]),
+      permuted(w, k, [1, 0, 3, 2, 5, 4], [false, false, false, true, true, false]),
+    ];
     const c = clusterEstimates(runs, k);
     expect(Array.from(c.sizes)).toEqual([3, 3, 3, 3, 3, 3]);
     // intra = 1, extra = mean |w_a·w_b| over different sources = 0 (orthogonal): I_q = 1.
@@ -41,7 +48,8 @@ describe('clusterEstimates', () => {
     // Restarts share rows 0–1 exactly; rows 2–3 span the same plane but are rotated differently each time.
     const runs = [0, 0.5, 1.0, 1.5, 2.0].map((angle) => {
       const w = Float64Array.from(base);
-      const c = Math.cos(angle), s = Math.sin(angle);
+      const c = Math.cos(angle),
+        s = Math.sin(angle);
       for (let l = 0; l < k; l++) {
         w[2 * k + l] = c * base[2 * k + l]! + s * base[3 * k + l]!;
         w[3 * k + l] = -s * base[2 * k + l]! + c * base[3 * k + l]!;
@@ -54,7 +62,9 @@ describe('clusterEstimates', () => {
     expect(c.index[m.cluster[0]!]).toBeGreaterThan(0.9);
     expect(c.index[m.cluster[1]!]).toBeGreaterThan(0.9);
     // The rotating pair: members agree only partly, so the index is well below the shared rows'.
-    const low = Array.from(c.index).sort((a, b) => a - b).slice(0, 2);
+    const low = Array.from(c.index)
+      .sort((a, b) => a - b)
+      .slice(0, 2);
     for (const v of low) expect(v).toBeLessThan(0.75);
   });
 });

@@ -27,13 +27,38 @@ it('denoises from a decompose output directory and refuses bad arguments with ex
     const img = await readNiftiFile(clean);
     expect([img.nx, img.ny, img.nz, img.nt]).toEqual([...p.dims.slice(0, 3), p.dims[3] - 2]);
     // --mask naming the folder's own mask is the default; --no-mask regresses every voxel
-    expect(await denoise.run([bold, '--from', path.join(dir, 'dec'), '--noise', '1,3', '--mask', path.join(dir, 'dec', 'mask.nii.gz'), '--out', clean])).toBe(0);
+    expect(
+      await denoise.run([
+        bold,
+        '--from',
+        path.join(dir, 'dec'),
+        '--noise',
+        '1,3',
+        '--mask',
+        path.join(dir, 'dec', 'mask.nii.gz'),
+        '--out',
+        clean,
+      ]),
+    ).toBe(0);
     expect(JSON.parse(String(out.mock.calls.at(-1)![0])).sha256).toBe(summary.sha256);
     expect(await denoise.run([bold, '--from', path.join(dir, 'dec'), '--noise', '1,3', '--no-mask', '--out', clean])).toBe(0);
     const everyVoxel = JSON.parse(String(out.mock.calls.at(-1)![0]));
     expect(everyVoxel.voxelsRegressed).toBe(p.dims[0] * p.dims[1] * p.dims[2]);
     expect(summary.voxelsRegressed).toBeLessThan(everyVoxel.voxelsRegressed);
-    expect(await denoise.run([bold, '--from', path.join(dir, 'dec'), '--noise', '1,3', '--no-mask', '--mask', path.join(dir, 'dec', 'mask.nii.gz'), '--out', clean])).toBe(2);
+    expect(
+      await denoise.run([
+        bold,
+        '--from',
+        path.join(dir, 'dec'),
+        '--noise',
+        '1,3',
+        '--no-mask',
+        '--mask',
+        path.join(dir, 'dec', 'mask.nii.gz'),
+        '--out',
+        clean,
+      ]),
+    ).toBe(2);
     expect(String(err.mock.calls.at(-1)![0])).toMatch(/--mask FILE or --no-mask, not both/);
     expect(await denoise.run([bold, '--from', path.join(dir, 'dec'), '--noise', 'a,b', '--out', clean])).toBe(2);
     expect(await denoise.run([bold, '--from', path.join(dir, 'dec'), '--noise', '99', '--out', clean])).toBe(1);

@@ -2,7 +2,14 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { findClusters, maxAbs } from '@/lib/desk/clusters';
 
-type Fixture = { source: string; dims: [number, number, number]; threshold: number; values: number[]; clusters: { size: number; peak: number[]; peakZ: number }[]; maxAbs: number };
+type Fixture = {
+  source: string;
+  dims: [number, number, number];
+  threshold: number;
+  values: number[];
+  clusters: { size: number; peak: number[]; peakZ: number }[];
+  maxAbs: number;
+};
 const fx = JSON.parse(readFileSync('tests/fixtures/desk/clusters.json', 'utf8')) as Fixture;
 const values = Float32Array.from(fx.values);
 const at = (i: number) => values[i];

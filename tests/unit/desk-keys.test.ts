@@ -2,7 +2,18 @@ import { describe, expect, it } from 'vitest';
 import { commandFor, helpRows, labelKeys } from '@/lib/desk/keys';
 
 const press = (key: string, extra: Partial<KeyboardEvent> = {}) =>
-  commandFor({ key, code: /^[0-9]$/.test(key) ? `Digit${key}` : `Key${key.toUpperCase()}`, shiftKey: false, ctrlKey: false, metaKey: false, altKey: false, ...extra }, ['signal', 'noise', 'uncertain']);
+  commandFor(
+    {
+      key,
+      code: /^[0-9]$/.test(key) ? `Digit${key}` : `Key${key.toUpperCase()}`,
+      shiftKey: false,
+      ctrlKey: false,
+      metaKey: false,
+      altKey: false,
+      ...extra,
+    },
+    ['signal', 'noise', 'uncertain'],
+  );
 
 describe('desk keys', () => {
   it('maps the viewing keys without clashing with labels, kinds or moving', () => {

@@ -22,7 +22,10 @@ const input = (policy: 'keep' | 'remove'): RunExportInput => ({
     reason: idx === 2 ? 'edge ring' : null,
     varianceExplained: 0.1 * idx,
     features: { kurtosis: idx, highFrequencyPower: 0.5 },
-    votes: [{ raterCode: 'R2', label: 'noise', noiseKind: 'motion' }, { raterCode: 'R1', label: 'signal', noiseKind: null }],
+    votes: [
+      { raterCode: 'R2', label: 'noise', noiseKind: 'motion' },
+      { raterCode: 'R1', label: 'signal', noiseKind: null },
+    ],
     timecourse: Float32Array.from([idx, -idx, 0.5]),
   })),
 });
@@ -32,9 +35,16 @@ describe('run export files', () => {
     const files = runExportFiles(input('keep'));
     expect(files.map((f) => f.name).sort()).toEqual(
       [
-        'desc-decisions_components.json', 'desc-decisions_components.tsv',
-        'desc-noiselist_components.json', 'desc-noiselist_components.tsv', 'desc-noiselist_components.txt', 'desc-ratedfeatures_components.json',
-        'desc-ratedfeatures_components.tsv', 'desc-sources_components.json', 'desc-sources_timeseries.json', 'desc-sources_timeseries.tsv',
+        'desc-decisions_components.json',
+        'desc-decisions_components.tsv',
+        'desc-noiselist_components.json',
+        'desc-noiselist_components.tsv',
+        'desc-noiselist_components.txt',
+        'desc-ratedfeatures_components.json',
+        'desc-ratedfeatures_components.tsv',
+        'desc-sources_components.json',
+        'desc-sources_timeseries.json',
+        'desc-sources_timeseries.tsv',
       ].map((n) => `sub-01_ses-1_task-rest_run-1_${n}`),
     );
     for (const f of files.filter((x) => x.name.endsWith('.tsv'))) {
@@ -43,21 +53,52 @@ describe('run export files', () => {
       expect(side.Caution).toBe(EXPORT_CAUTION);
     }
     const verdicts = parseTsv(files.find((f) => f.name.endsWith('decisions_components.tsv'))!.content);
-    expect(verdicts.rows[1]).toEqual(['2', 'noise', 'motion', 'reconciled', '1', '1', '1', '0', '2', 'R1=signal;R2=noise/motion', 'edge ring', '0.2']);
+    expect(verdicts.rows[1]).toEqual([
+      '2',
+      'noise',
+      'motion',
+      'reconciled',
+      '1',
+      '1',
+      '1',
+      '0',
+      '2',
+      'R1=signal;R2=noise/motion',
+      'edge ring',
+      '0.2',
+    ]);
     expect(verdicts.rows[0]![verdicts.header.indexOf('lead_reason')]).toBe('n/a');
   });
 
   it('keeps uncertain components out of the noise list unless the study removes them, and says so', () => {
     const keep = runExportFiles(input('keep'));
     expect(keep.find((f) => f.name.endsWith('.txt'))!.content).toBe('2\n');
-    expect(JSON.parse(keep.find((f) => f.name.endsWith('noiselist_components.json'))!.content).NoiseListRule).toMatch(/NOT in the noise list/);
+    expect(JSON.parse(keep.find((f) => f.name.endsWith('noiselist_components.json'))!.content).NoiseListRule).toMatch(
+      /NOT in the noise list/,
+    );
     const remove = runExportFiles(input('remove'));
     expect(remove.find((f) => f.name.endsWith('.txt'))!.content).toBe('2,3\n');
-    expect(noiseList([{ idx: 4, label: 'noise' }, { idx: 1, label: 'noise' }], 'keep')).toEqual([1, 4]);
+    expect(
+      noiseList(
+        [
+          { idx: 4, label: 'noise' },
+          { idx: 1, label: 'noise' },
+        ],
+        'keep',
+      ),
+    ).toEqual([1, 4]);
   });
 
   it('writes n/a for missing values and no tabs inside cells', () => {
-    expect(toTsv(['a', 'b'], [[null, 'x\ty'], [Number.NaN, true]])).toBe('a\tb\nn/a\tx y\nn/a\t1\n');
+    expect(
+      toTsv(
+        ['a', 'b'],
+        [
+          [null, 'x\ty'],
+          [Number.NaN, true],
+        ],
+      ),
+    ).toBe('a\tb\nn/a\tx y\nn/a\t1\n');
   });
 });
 
@@ -65,14 +106,43 @@ describe('methods paragraph', () => {
   it('states the decomposition, raters, rule, statistics with CIs and bootstrap settings, and how disagreements were resolved', () => {
     const ci = { lower: 0.61, upper: 0.8 };
     const text = methodsParagraph({
-      software: '0.1.0', runs: 12, components: 300, k: { min: 18, max: 31, median: 25 },
-      decomposition: { dimMethods: ['laplace'], contrasts: ['logcosh'], tolerance: 1e-4, maxIter: 200, dropVolumes: [4], varianceNorm: true, detrend: false, masks: ['automatic'] },
-      ratersPerRun: 3, votesPerComponent: { min: 3, max: 3, mean: 3 }, consensusRule: 'majority', labelSet: ['signal', 'noise', 'uncertain'], uncertainInExport: 'keep',
+      software: '0.1.0',
+      runs: 12,
+      components: 300,
+      k: { min: 18, max: 31, median: 25 },
+      decomposition: {
+        dimMethods: ['laplace'],
+        contrasts: ['logcosh'],
+        tolerance: 1e-4,
+        maxIter: 200,
+        dropVolumes: [4],
+        varianceNorm: true,
+        detrend: false,
+        masks: ['automatic'],
+      },
+      ratersPerRun: 3,
+      votesPerComponent: { min: 3, max: 3, mean: 3 },
+      consensusRule: 'majority',
+      labelSet: ['signal', 'noise', 'uncertain'],
+      uncertainInExport: 'keep',
       bootstrap: { resamples: 1000, seed: 1 },
       ratings: { blinding: true, showVotesAfterSubmit: true, reopened: { assignments: 0, times: 0 }, raters: 3, certified: null },
       report: {
-        summary: { items: 300, overall: { krippendorffAlpha: { value: 0.712, ci, n: 300 }, fleissKappa: { value: 0.7, ci, n: 300 }, pabak: { value: 0.8, ci, n: 300 }, gwetAC1: { value: 0.83, ci, n: 300 }, percentAgreement: { value: 0.9, ci: { lower: 0.88, upper: 0.92 }, n: 300 } } },
-        raters: [{ id: 1, name: 'a', votes: 1 }, { id: 2, name: 'b', votes: 1 }, { id: 3, name: 'c', votes: 1 }],
+        summary: {
+          items: 300,
+          overall: {
+            krippendorffAlpha: { value: 0.712, ci, n: 300 },
+            fleissKappa: { value: 0.7, ci, n: 300 },
+            pabak: { value: 0.8, ci, n: 300 },
+            gwetAC1: { value: 0.83, ci, n: 300 },
+            percentAgreement: { value: 0.9, ci: { lower: 0.88, upper: 0.92 }, n: 300 },
+          },
+        },
+        raters: [
+          { id: 1, name: 'a', votes: 1 },
+          { id: 2, name: 'b', votes: 1 },
+          { id: 3, name: 'c', votes: 1 },
+        ],
         decisions: { total: 300, pending: 0, unanimous: 200, majority: 80, reconciled: 20, override: 0 },
       } as never,
     });
@@ -93,11 +163,22 @@ describe('methods paragraph', () => {
 describe('features in the rated-features table (training table)', () => {
   it('writes undefined features as n/a (BIDS), never 0, and has reproducibility, step and drift columns described in the sidecar', () => {
     const base = input('keep');
-    const features = { reproducibility: 0.93, edgeFraction: null, clusterCount: null, largestClusterVoxels: null, largestClusterFraction: null, mapThresholdZ: null, stepScore: 4.2, trendR2: 0.71, kurtosis: 3 };
+    const features = {
+      reproducibility: 0.93,
+      edgeFraction: null,
+      clusterCount: null,
+      largestClusterVoxels: null,
+      largestClusterFraction: null,
+      mapThresholdZ: null,
+      stepScore: 4.2,
+      trendR2: 0.71,
+      kurtosis: 3,
+    };
     const files = runExportFiles({ ...base, components: base.components.map((c) => ({ ...c, features })) });
     const tsv = files.find((f) => f.name.endsWith('desc-ratedfeatures_components.tsv'))!;
     const { header, rows } = parseTsv(tsv.content);
-    for (const col of ['reproducibility', 'edge_fraction', 'cluster_count', 'map_threshold_z', 'step_score', 'trend_r2']) expect(header).toContain(col);
+    for (const col of ['reproducibility', 'edge_fraction', 'cluster_count', 'map_threshold_z', 'step_score', 'trend_r2'])
+      expect(header).toContain(col);
     const at = (col: string) => rows[0]![header.indexOf(col)];
     expect(at('edge_fraction')).toBe('n/a');
     expect(at('cluster_count')).toBe('n/a');
@@ -107,6 +188,7 @@ describe('features in the rated-features table (training table)', () => {
     expect(at('trend_r2')).toBe('0.71');
     expect(at('motion_correlation')).toBe('n/a'); // absent from the stored features: not computed
     const sidecar = JSON.parse(files.find((f) => f.name.endsWith('desc-ratedfeatures_components.json'))!.content);
-    for (const col of ['reproducibility', 'step_score', 'trend_r2', 'map_threshold_z']) expect(sidecar[col].Description.length).toBeGreaterThan(20);
+    for (const col of ['reproducibility', 'step_score', 'trend_r2', 'map_threshold_z'])
+      expect(sidecar[col].Description.length).toBeGreaterThan(20);
   });
 });

@@ -27,7 +27,17 @@ describe('TSV and CSV cells', () => {
     expect(tsvCell('=1+1')).toBe("'=1+1");
     // a tab inside text becomes a space first, so the cell cannot split the row
     expect(tsvCell('a\tb')).toBe('a b');
-    expect(parseTsv(toTsv(['n', 'reason'], [[-1, '@evil'], [2, null]])).rows).toEqual([
+    expect(
+      parseTsv(
+        toTsv(
+          ['n', 'reason'],
+          [
+            [-1, '@evil'],
+            [2, null],
+          ],
+        ),
+      ).rows,
+    ).toEqual([
       ['-1', "'@evil"],
       ['2', 'n/a'],
     ]);

@@ -19,13 +19,15 @@ import { powerSpectrum } from '@/lib/decomposition/spectrum';
 type Dims = [number, number, number];
 const idx = (d: Dims, x: number, y: number, z: number): number => x + d[0] * (y + d[1] * z);
 
-const trend = JSON.parse(
-  readFileSync(path.resolve(__dirname, '../fixtures/features/trend.json'), 'utf8'),
-) as { library: string; cases: { name: string; values: number[]; trendR2: number; stepScore: number }[] };
+const trend = JSON.parse(readFileSync(path.resolve(__dirname, '../fixtures/features/trend.json'), 'utf8')) as {
+  library: string;
+  cases: { name: string; values: number[]; trendR2: number; stepScore: number }[];
+};
 
-const moments = JSON.parse(
-  readFileSync(path.resolve(__dirname, '../fixtures/features/moments.json'), 'utf8'),
-) as { library: string; cases: { name: string; values: number[]; skewness: number; kurtosis: number }[] };
+const moments = JSON.parse(readFileSync(path.resolve(__dirname, '../fixtures/features/moments.json'), 'utf8')) as {
+  library: string;
+  cases: { name: string; values: number[]; skewness: number; kurtosis: number }[];
+};
 
 /** Deterministic normal deviates (LCG + Box–Muller). */
 function normalRng(seed: number): () => number {
@@ -151,9 +153,16 @@ describe('spatial features', () => {
     // the cut is adjustable: far above every voxel nothing is supra-threshold, and the spatial
     // features are then undefined (null), not 0
     const g = computeComponentFeatures({
-      map, maskIndices, dims, timecourse: sine(0.02, TR), trSeconds: TR, spectrum: powerSpectrum(sine(0.02, TR), TR), robustZCut: 1e6,
+      map,
+      maskIndices,
+      dims,
+      timecourse: sine(0.02, TR),
+      trSeconds: TR,
+      spectrum: powerSpectrum(sine(0.02, TR), TR),
+      robustZCut: 1e6,
     });
-    for (const key of ['clusterCount', 'edgeFraction', 'largestClusterVoxels', 'largestClusterFraction', 'mapThresholdZ'] as const) expect(g[key], key).toBeNull();
+    for (const key of ['clusterCount', 'edgeFraction', 'largestClusterVoxels', 'largestClusterFraction', 'mapThresholdZ'] as const)
+      expect(g[key], key).toBeNull();
   });
 
   it('undefined spatial features are null, never 0: a broad map with no voxels standing out (a drift-like gradient)', () => {
@@ -161,8 +170,12 @@ describe('spatial features', () => {
     // found no voxel and reported 0 % edge, 0 clusters. A linear gradient across x, z-scored, has
     // the same shape: its robust SD is wide, no voxel is 2.5 robust SDs out.
     const ramp = Float32Array.from(maskIndices, (j) => (j % dims[0]) - 9.5);
-    let m = 0, q = 0;
-    for (const v of ramp) { m += v; q += v * v; }
+    let m = 0,
+      q = 0;
+    for (const v of ramp) {
+      m += v;
+      q += v * v;
+    }
     m /= V;
     const sd = Math.sqrt(q / V - m * m);
     const z = ramp.map((v) => (v - m) / sd);
@@ -189,8 +202,13 @@ describe('spatial features', () => {
     let nBlob = 0;
     for (let i = 0; i < V; i++) {
       const j = maskIndices[i]!;
-      const x = j % dims[0], y = Math.floor(j / dims[0]) % dims[1], z = Math.floor(j / (dims[0] * dims[1]));
-      if ((x - 9) ** 2 + (y - 9) ** 2 + (z - 5) ** 2 <= 4) { map[i] = 8; nBlob++; }
+      const x = j % dims[0],
+        y = Math.floor(j / dims[0]) % dims[1],
+        z = Math.floor(j / (dims[0] * dims[1]));
+      if ((x - 9) ** 2 + (y - 9) ** 2 + (z - 5) ** 2 <= 4) {
+        map[i] = 8;
+        nBlob++;
+      }
     }
     const f = features(map, sine(0.02, TR));
     // robust SD of the N(0,1) bulk ≈ 1, so the cut sits near 2.5 (sampling error of the MAD, ±0.2)
@@ -260,12 +278,21 @@ describe('motion features', () => {
     for (let i = 1; i < T; i++) a[i] = a[i - 1] + 0.05 * r();
     return a;
   };
-  const motion: MotionParams = { translations: [walk(), walk(), walk()], rotations: [walk(), walk(), walk()].map((c) => c.map((v) => v / 50)) };
+  const motion: MotionParams = {
+    translations: [walk(), walk(), walk()],
+    rotations: [walk(), walk(), walk()].map((c) => c.map((v) => v / 50)),
+  };
   const map = noiseMap(5);
 
   it('a time course equal to a motion column → motionCorrelation ≈ 1', () => {
     expect(features(map, Float64Array.from(motion.translations[1]), motion).motionCorrelation).toBeCloseTo(1, 12);
-    expect(features(map, Float64Array.from(motion.rotations[2]).map((v) => -3 * v), motion).motionCorrelation).toBeCloseTo(1, 12);
+    expect(
+      features(
+        map,
+        Float64Array.from(motion.rotations[2]).map((v) => -3 * v),
+        motion,
+      ).motionCorrelation,
+    ).toBeCloseTo(1, 12);
   });
 
   it('a time course equal to a parameter derivative → motionCorrelation ≈ 1', () => {
@@ -295,7 +322,14 @@ describe('motion features', () => {
   it('refuses motion of another length and a map of another size', () => {
     expect(() => features(map, sine(0.02, TR, T - 1), motion)).toThrow(/drop the same initial volumes/);
     expect(() =>
-      computeComponentFeatures({ map: new Float32Array(3), maskIndices, dims, timecourse: sine(0.02, TR), trSeconds: TR, spectrum: powerSpectrum(sine(0.02, TR), TR) }),
+      computeComponentFeatures({
+        map: new Float32Array(3),
+        maskIndices,
+        dims,
+        timecourse: sine(0.02, TR),
+        trSeconds: TR,
+        spectrum: powerSpectrum(sine(0.02, TR), TR),
+      }),
     ).toThrow(FeatureInputError);
   });
 });

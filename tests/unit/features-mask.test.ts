@@ -20,7 +20,17 @@ describe('labelComponents (hand-built volumes; 6/26-connectivity as in standard 
     const d: Dims = [6, 5, 4];
     const m = new Uint8Array(120);
     // blob A: 2×2×2 cube at the origin (8 voxels); blob B: a 3-voxel bar at x=5, y=4
-    for (const [x, y, z] of [[0, 0, 0], [1, 0, 0], [0, 1, 0], [1, 1, 0], [0, 0, 1], [1, 0, 1], [0, 1, 1], [1, 1, 1]]) m[idx(d, x, y, z)] = 1;
+    for (const [x, y, z] of [
+      [0, 0, 0],
+      [1, 0, 0],
+      [0, 1, 0],
+      [1, 1, 0],
+      [0, 0, 1],
+      [1, 0, 1],
+      [0, 1, 1],
+      [1, 1, 1],
+    ])
+      m[idx(d, x, y, z)] = 1;
     for (const z of [1, 2, 3]) m[idx(d, 5, 4, z)] = 1;
     for (const conn of [6, 26] as const) {
       const { labels, sizes } = labelComponents(m, d, conn);

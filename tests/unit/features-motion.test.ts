@@ -1,11 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import {
-  dropInitialVolumes,
-  framewiseDisplacement,
-  MotionFileError,
-  parseMotionFile,
-  type MotionParams,
-} from '@/lib/decomposition/motion';
+import { dropInitialVolumes, framewiseDisplacement, MotionFileError, parseMotionFile, type MotionParams } from '@/lib/decomposition/motion';
 
 function catchError(fn: () => unknown): MotionFileError {
   try {
@@ -18,13 +12,7 @@ function catchError(fn: () => unknown): MotionFileError {
 }
 
 describe('parseMotionFile', () => {
-  const table = [
-    '# rx ry rz tx ty tz',
-    '0 0 0 0 0 0',
-    '0.01,0.00,-0.02,0.1,0.2,-0.3',
-    '0.00\t0.03\t0.00\t0.5\t0.2\t-0.1',
-    '',
-  ].join('\n');
+  const table = ['# rx ry rz tx ty tz', '0 0 0 0 0 0', '0.01,0.00,-0.02,0.1,0.2,-0.3', '0.00\t0.03\t0.00\t0.5\t0.2\t-0.1', ''].join('\n');
 
   it('reads mixed separators, skips blank and # lines, maps rot-first columns', () => {
     const m = parseMotionFile(table, { order: 'rot-first', rotationUnits: 'radians', expectedRows: 3 });
@@ -44,9 +32,7 @@ describe('parseMotionFile', () => {
   });
 
   it('refuses 5 columns, naming the line and the count', () => {
-    const e = catchError(() =>
-      parseMotionFile('0 0 0 0 0 0\n0 0 0 0 0\n', { order: 'rot-first', rotationUnits: 'radians' }),
-    );
+    const e = catchError(() => parseMotionFile('0 0 0 0 0 0\n0 0 0 0 0\n', { order: 'rot-first', rotationUnits: 'radians' }));
     expect(e.code).toBe('column_count');
     expect(e.line).toBe(2);
     expect(e.message).toMatch(/line 2 has 5 columns, expected 6/);
@@ -134,7 +120,11 @@ describe('parseMotionFile: a line of column names', () => {
   // common practice, no source: motion tables written as TSV carry a header row of column names
   it('skips a first line of column names and still refuses names further down', () => {
     const header = 'tx_mm\tty_mm\ttz_mm\trx_rad\try_rad\trz_rad\n';
-    const m = parseMotionFile(`${header}1 2 3 0.1 0.2 0.3\n4 5 6 0.4 0.5 0.6\n`, { order: 'trans-first', rotationUnits: 'radians', expectedRows: 2 });
+    const m = parseMotionFile(`${header}1 2 3 0.1 0.2 0.3\n4 5 6 0.4 0.5 0.6\n`, {
+      order: 'trans-first',
+      rotationUnits: 'radians',
+      expectedRows: 2,
+    });
     expect(Array.from(m.translations[0])).toEqual([1, 4]);
     expect(Array.from(m.rotations[2])).toEqual([0.3, 0.6]);
     const e = catchError(() => parseMotionFile(`1 2 3 0.1 0.2 0.3\n${header}`, { order: 'trans-first', rotationUnits: 'radians' }));

@@ -27,17 +27,30 @@ function truthFeatures(size: PhantomSize) {
   const out: Record<string, ReturnType<typeof computeComponentFeatures>> = {};
   for (const s of p.truth.sources) {
     const v = Float32Array.from(maskIndices, (j) => s.map[j]!);
-    let m = 0, q = 0;
-    for (const x of v) { m += x; q += x * x; }
+    let m = 0,
+      q = 0;
+    for (const x of v) {
+      m += x;
+      q += x * x;
+    }
     m /= v.length;
     const sd = Math.sqrt(q / v.length - m * m);
     const z = v.map((x) => (x - m) / sd);
-    out[s.name] = computeComponentFeatures({ map: z, maskIndices, dims, timecourse: tc, trSeconds: p.trSeconds, spectrum, meanImage: mean, edge });
+    out[s.name] = computeComponentFeatures({
+      map: z,
+      maskIndices,
+      dims,
+      timecourse: tc,
+      trSeconds: p.trSeconds,
+      spectrum,
+      meanImage: mean,
+      edge,
+    });
   }
   return { out, maskVoxels: maskIndices.length, brainVoxels: p.truth.brainMask.reduce((a, b) => a + b, 0) };
 }
 
-describe('edge fraction of the phantom\'s motion rim (a thin ring at the brain surface; common practice, no source: motion shows at the brain outline)', () => {
+describe("edge fraction of the phantom's motion rim (a thin ring at the brain surface; common practice, no source: motion shows at the brain outline)", () => {
   for (const size of ['tiny', 'small', 'S'] as const) {
     it(`${size}: the rim is at the brain edge (≥ 0.7), the networks less so`, () => {
       const { out, maskVoxels, brainVoxels } = truthFeatures(size);
@@ -62,7 +75,7 @@ describe('edge fraction of the phantom\'s motion rim (a thin ring at the brain s
   }
 });
 
-describe('drift feature on the phantom\'s sources', () => {
+describe("drift feature on the phantom's sources", () => {
   it('the white-matter drift time course (below 0.02 Hz plus a linear trend) has the largest trendR2 of the sources', () => {
     const p = generatePhantom({ size: 'tiny', seed: 3 });
     const scores = p.truth.sources.map((s) => ({ name: s.name, r2: trendR2(s.timecourse)! }));

@@ -13,9 +13,10 @@ interface WelchCase {
   power: number[];
 }
 
-const fixture = JSON.parse(
-  readFileSync(path.resolve(__dirname, '../fixtures/features/welch.json'), 'utf8'),
-) as { library: string; cases: WelchCase[] };
+const fixture = JSON.parse(readFileSync(path.resolve(__dirname, '../fixtures/features/welch.json'), 'utf8')) as {
+  library: string;
+  cases: WelchCase[];
+};
 
 function expectRelClose(actual: ArrayLike<number>, expected: number[], rel: number, absFloor: number): void {
   expect(actual.length).toBe(expected.length);
@@ -41,7 +42,10 @@ describe('powerSpectrum against scipy.signal.welch (fixture made with ' + fixtur
   }
   // The default 'cover' layout spreads segments so the last ends at the last volume; when
   // T − nperseg is a multiple of the step scipy's segments already do, and the two must agree.
-  const aligned = fixture.cases.filter((c: { signal: number[]; npersegUsed: number }) => (c.signal.length - c.npersegUsed) % (c.npersegUsed - Math.floor(c.npersegUsed / 2)) === 0);
+  const aligned = fixture.cases.filter(
+    (c: { signal: number[]; npersegUsed: number }) =>
+      (c.signal.length - c.npersegUsed) % (c.npersegUsed - Math.floor(c.npersegUsed / 2)) === 0,
+  );
   it(`default layout equals scipy when the segments already reach the end (${aligned.length} cases)`, () => {
     expect(aligned.length).toBeGreaterThanOrEqual(2);
     for (const c of aligned) {
@@ -61,7 +65,7 @@ describe('powerSpectrum covers every kept volume', () => {
   spiked[150] += 20; // a spike planted in the last volumes
   const total = (p: Float64Array) => p.reduce((a, b) => a + b, 0);
 
-  it('a spike at volume 150 of 156 raises the default spectrum (broadband) and not scipy\'s layout', () => {
+  it("a spike at volume 150 of 156 raises the default spectrum (broadband) and not scipy's layout", () => {
     const clean = powerSpectrum(base, tr);
     const withSpike = powerSpectrum(spiked, tr);
     // A unit impulse of height h in one Hann-windowed segment adds ≈ h²·w² broadband power; the
@@ -73,7 +77,7 @@ describe('powerSpectrum covers every kept volume', () => {
     expect(Array.from(scipySpiked.power)).toEqual(Array.from(scipyClean.power));
   });
 
-  it('every volume lies in some segment: a spike at any volume (except the Hann window\'s zero at the very first sample) changes the spectrum', () => {
+  it("every volume lies in some segment: a spike at any volume (except the Hann window's zero at the very first sample) changes the spectrum", () => {
     const clean = powerSpectrum(base, tr);
     for (let v = 1; v < T; v++) {
       const x = Float64Array.from(base);

@@ -4,7 +4,11 @@ import { describe, expect, it } from 'vitest';
 import { openMail, sealMail, withoutSecrets } from '@/lib/mail/seal';
 
 const secret = 'a-test-secret-that-is-long-enough-0123456789';
-const content = { subject: 'Reset', text: 'Open http://x/reset-password/tok123 within an hour', html: '<a href="http://x/reset-password/tok123">reset</a>' };
+const content = {
+  subject: 'Reset',
+  text: 'Open http://x/reset-password/tok123 within an hour',
+  html: '<a href="http://x/reset-password/tok123">reset</a>',
+};
 
 describe('sealed outbox messages', () => {
   it('open with the same secret, and each seal is different (fresh IV)', () => {

@@ -51,7 +51,11 @@ describe('not_nifti', () => {
 describe('truncated', () => {
   it('plain file missing voxel data, with the byte counts in the message', () => {
     const b = load('dtype-int16.nii');
-    expectNiftiError(() => decodeNifti(b.subarray(0, b.length - 40)), 'truncated', /promises 240 bytes of voxel data but only 200 are present.*re-upload/);
+    expectNiftiError(
+      () => decodeNifti(b.subarray(0, b.length - 40)),
+      'truncated',
+      /promises 240 bytes of voxel data but only 200 are present.*re-upload/,
+    );
   });
   it('plain file cut inside the header', () => {
     expectNiftiError(() => decodeNifti(load('dtype-int16.nii').subarray(0, 200)), 'truncated', /header needs 348 bytes but only 200/);
@@ -63,7 +67,11 @@ describe('truncated', () => {
   });
   it('a complete gzip stream of a truncated file', () => {
     const b = load('dtype-float32.nii');
-    expectNiftiError(() => decodeNifti(new Uint8Array(gzipSync(b.subarray(0, b.length - 4)))), 'truncated', /promises 480 bytes .* only 476/);
+    expectNiftiError(
+      () => decodeNifti(new Uint8Array(gzipSync(b.subarray(0, b.length - 4)))),
+      'truncated',
+      /promises 480 bytes .* only 476/,
+    );
   });
 });
 
@@ -72,30 +80,60 @@ describe('bad_header', () => {
     expectNiftiError(() => decodeNifti(edited('dtype-int16.nii', (v) => v.setInt32(0, 349, true))), 'bad_header', /sizeof_hdr\) reads 349/);
   });
   it('magic wrong', () => {
-    expectNiftiError(() => decodeNifti(edited('dtype-int16.nii', (_, b) => b.set([0x6e, 0x2b, 0x39], N1.magic))), 'bad_header', /magic string reads "n\+9"/);
+    expectNiftiError(
+      () => decodeNifti(edited('dtype-int16.nii', (_, b) => b.set([0x6e, 0x2b, 0x39], N1.magic))),
+      'bad_header',
+      /magic string reads "n\+9"/,
+    );
   });
   it('two-file pair magic ni1', () => {
     expectNiftiError(() => decodeNifti(edited('dtype-int16.nii', (_, b) => (b[N1.magic + 1] = 0x69))), 'bad_header', /two-file NIfTI pair/);
   });
   it('NIfTI-2 magic tail damaged by a text-mode transfer', () => {
-    expectNiftiError(() => decodeNifti(edited('n2-int16-le.nii', (_, b) => (b[N2.magic + 4] = 0x0a))), 'bad_header', /NIfTI-2 magic string is wrong/);
+    expectNiftiError(
+      () => decodeNifti(edited('n2-int16-le.nii', (_, b) => (b[N2.magic + 4] = 0x0a))),
+      'bad_header',
+      /NIfTI-2 magic string is wrong/,
+    );
   });
   it('vox_offset inside the header (nifti1.h: vox_offset ≥ 352 for a single file)', () => {
-    expectNiftiError(() => decodeNifti(edited('dtype-int16.nii', (v) => v.setFloat32(N1.vox_offset, 100, true))), 'bad_header', /vox_offset is 100/);
+    expectNiftiError(
+      () => decodeNifti(edited('dtype-int16.nii', (v) => v.setFloat32(N1.vox_offset, 100, true))),
+      'bad_header',
+      /vox_offset is 100/,
+    );
   });
 });
 
 describe('unsupported_datatype names the datatype', () => {
-  for (const [code, name] of [[32, 'complex64'], [128, 'rgb24'], [1024, 'int64'], [1280, 'uint64'], [2304, 'rgba32']] as const) {
+  for (const [code, name] of [
+    [32, 'complex64'],
+    [128, 'rgb24'],
+    [1024, 'int64'],
+    [1280, 'uint64'],
+    [2304, 'rgba32'],
+  ] as const) {
     it(`${name} (code ${code}, nifti1.h)`, () => {
-      expectNiftiError(() => decodeNifti(edited('dtype-int16.nii', (v) => v.setInt16(N1.datatype, code, true))), 'unsupported_datatype', new RegExp(`datatype is ${name} \\(code ${code}\\)`));
+      expectNiftiError(
+        () => decodeNifti(edited('dtype-int16.nii', (v) => v.setInt16(N1.datatype, code, true))),
+        'unsupported_datatype',
+        new RegExp(`datatype is ${name} \\(code ${code}\\)`),
+      );
     });
   }
   it('an unknown code', () => {
-    expectNiftiError(() => decodeNifti(edited('dtype-int16.nii', (v) => v.setInt16(N1.datatype, 3, true))), 'unsupported_datatype', /code 3 is not a NIfTI datatype/);
+    expectNiftiError(
+      () => decodeNifti(edited('dtype-int16.nii', (v) => v.setInt16(N1.datatype, 3, true))),
+      'unsupported_datatype',
+      /code 3 is not a NIfTI datatype/,
+    );
   });
   it('NIfTI-2, big-endian', () => {
-    expectNiftiError(() => decodeNifti(edited('n2-float64-be.nii', (v) => v.setInt16(N2.datatype, 1792, false))), 'unsupported_datatype', /complex128/);
+    expectNiftiError(
+      () => decodeNifti(edited('n2-float64-be.nii', (v) => v.setInt16(N2.datatype, 1792, false))),
+      'unsupported_datatype',
+      /complex128/,
+    );
   });
 });
 

@@ -5,7 +5,9 @@ import { afterEach, describe, expect, it, vi } from 'vitest';
 import { header } from '@/scripts/cli/header';
 
 const DIR = 'tests/fixtures/nifti/';
-const ref = JSON.parse(readFileSync(DIR + 'reference.json', 'utf8')) as { cases: { file: string; dims: number[]; values: (number | string)[] }[] };
+const ref = JSON.parse(readFileSync(DIR + 'reference.json', 'utf8')) as {
+  cases: { file: string; dims: number[]; values: (number | string)[] }[];
+};
 
 async function runCaptured(args: string[]) {
   let stdout = '';
@@ -29,8 +31,34 @@ describe('quorum header', () => {
     expect(code).toBe(0);
     expect(stderr).toBe('');
     const j = JSON.parse(stdout);
-    expect(Object.keys(j)).toEqual(['version', 'dims', 'pixdim', 'datatype', 'datatypeCode', 'bitpix', 'littleEndian', 'voxOffset', 'sclSlope', 'sclInter', 'spaceUnits', 'timeUnits', 'trSeconds', 'qformCode', 'sformCode', 'affine', 'description']);
-    expect(j).toMatchObject({ version: 2, dims: [5, 4, 3, 2], datatype: 'float32', datatypeCode: 16, voxOffset: 544, trSeconds: 2, sformCode: 3 });
+    expect(Object.keys(j)).toEqual([
+      'version',
+      'dims',
+      'pixdim',
+      'datatype',
+      'datatypeCode',
+      'bitpix',
+      'littleEndian',
+      'voxOffset',
+      'sclSlope',
+      'sclInter',
+      'spaceUnits',
+      'timeUnits',
+      'trSeconds',
+      'qformCode',
+      'sformCode',
+      'affine',
+      'description',
+    ]);
+    expect(j).toMatchObject({
+      version: 2,
+      dims: [5, 4, 3, 2],
+      datatype: 'float32',
+      datatypeCode: 16,
+      voxOffset: 544,
+      trSeconds: 2,
+      sformCode: 3,
+    });
     expect(j.summary).toBeUndefined();
   });
 

@@ -17,10 +17,27 @@ import {
 const DIR = 'tests/fixtures/nifti/';
 
 interface RefCase {
-  file: string; version: 1 | 2; dims: number[]; pixdim: number[]; datatypeCode: number; bitpix: number;
-  littleEndian: boolean; voxOffset: number; sclSlope: number; sclInter: number; xyztUnits: number;
-  spaceUnits: string; timeUnits: string; qformCode: number; sformCode: number; qform: number[][];
-  sform: number[][]; bestAffine: number[][]; description: string; extensions: number; values: (number | string)[];
+  file: string;
+  version: 1 | 2;
+  dims: number[];
+  pixdim: number[];
+  datatypeCode: number;
+  bitpix: number;
+  littleEndian: boolean;
+  voxOffset: number;
+  sclSlope: number;
+  sclInter: number;
+  xyztUnits: number;
+  spaceUnits: string;
+  timeUnits: string;
+  qformCode: number;
+  sformCode: number;
+  qform: number[][];
+  sform: number[][];
+  bestAffine: number[][];
+  description: string;
+  extensions: number;
+  values: (number | string)[];
 }
 const ref = JSON.parse(readFileSync(DIR + 'reference.json', 'utf8')) as { library: string; cases: RefCase[] };
 

@@ -10,7 +10,11 @@ import { affineMaxDiff, decodeNifti, encodeNifti1, NiftiError, readNiftiFile, wr
 
 function rotZ(deg: number): number[][] {
   const t = (deg * Math.PI) / 180;
-  return [[Math.cos(t), -Math.sin(t), 0], [Math.sin(t), Math.cos(t), 0], [0, 0, 1]];
+  return [
+    [Math.cos(t), -Math.sin(t), 0],
+    [Math.sin(t), Math.cos(t), 0],
+    [0, 0, 1],
+  ];
 }
 /** R·diag(zooms) with translation, optionally reflecting the third axis (qfac −1). */
 function affine(deg: number, zooms: number[], offset: number[], flip = false): number[][] {
@@ -21,18 +25,41 @@ function affine(deg: number, zooms: number[], offset: number[], flip = false): n
 const dims4 = [6, 5, 4, 3];
 const n4 = dims4.reduce((a, b) => a * b);
 const inputs: Record<string, NiftiWriteInput> = {
-  'uint8 3D diag': { dims: [6, 5, 4], pixdim: [1.5, 2, 2.5], datatype: 'uint8', data: Uint8Array.from({ length: 120 }, (_, i) => (i * 7) % 256) },
+  'uint8 3D diag': {
+    dims: [6, 5, 4],
+    pixdim: [1.5, 2, 2.5],
+    datatype: 'uint8',
+    data: Uint8Array.from({ length: 120 }, (_, i) => (i * 7) % 256),
+  },
   'int16 4D rotated, scaled': {
-    dims: dims4, pixdim: [2, 2, 3, 0.8], affine: affine(25, [2, 2, 3], [-60, 40.5, -12]), datatype: 'int16',
-    data: Int16Array.from({ length: n4 }, (_, i) => (i * 977) % 65536 - 32768), sclSlope: 0.25, sclInter: 7, description: 'phantom run',
+    dims: dims4,
+    pixdim: [2, 2, 3, 0.8],
+    affine: affine(25, [2, 2, 3], [-60, 40.5, -12]),
+    datatype: 'int16',
+    data: Int16Array.from({ length: n4 }, (_, i) => ((i * 977) % 65536) - 32768),
+    sclSlope: 0.25,
+    sclInter: 7,
+    description: 'phantom run',
   },
   'float32 4D reflected (qfac -1)': {
-    dims: dims4, pixdim: [3, 3, 3, 2], affine: affine(-40, [3, 3, 3], [1, 2, 3], true), datatype: 'float32',
-    data: Float32Array.from({ length: n4 }, (_, i) => Math.sin(i) * 1000), intentCode: 5, intentName: 'zscore',
+    dims: dims4,
+    pixdim: [3, 3, 3, 2],
+    affine: affine(-40, [3, 3, 3], [1, 2, 3], true),
+    datatype: 'float32',
+    data: Float32Array.from({ length: n4 }, (_, i) => Math.sin(i) * 1000),
+    intentCode: 5,
+    intentName: 'zscore',
   },
   'float32 3D sheared (sform only)': {
-    dims: [6, 5, 4], datatype: 'float32', data: new Float32Array(120).fill(1.25),
-    affine: [[2, 0.5, 0, 0], [0, 2, 0, 0], [0, 0, 2, 0], [0, 0, 0, 1]],
+    dims: [6, 5, 4],
+    datatype: 'float32',
+    data: new Float32Array(120).fill(1.25),
+    affine: [
+      [2, 0.5, 0, 0],
+      [0, 2, 0, 0],
+      [0, 0, 2, 0],
+      [0, 0, 0, 1],
+    ],
   },
 };
 
@@ -61,7 +88,12 @@ describe('encodeNifti1 round trip', () => {
         for (let i = 0; i < V; i++) expect(vol[i]).toBe(Math.fround(input.data[t * V + i] * slope + inter));
       }
       if (input.dims.length === 4) expect(h.trSeconds).toBeCloseTo(input.pixdim![3], 6);
-      const wantAffine = input.affine ?? [[1.5, 0, 0, 0], [0, 2, 0, 0], [0, 0, 2.5, 0], [0, 0, 0, 1]];
+      const wantAffine = input.affine ?? [
+        [1.5, 0, 0, 0],
+        [0, 2, 0, 0],
+        [0, 0, 2.5, 0],
+        [0, 0, 0, 1],
+      ];
       expect(affineMaxDiff(h.affine, wantAffine)).toBeLessThan(1e-5);
       expect(h.sformCode).toBe(2);
       const sheared = name.includes('sheared');
@@ -113,7 +145,20 @@ describe('encodeNifti1 refuses bad input with NiftiError bad_input', () => {
     ['non-ASCII description', { ...base, description: 'séance' }, /ASCII/],
     ['pixdim vs affine', { ...base, affine: affine(0, [2, 2, 2], [0, 0, 0]) }, /disagrees with the affine/],
     ['negative pixdim', { ...base, pixdim: [1, -2, 1] }, /positive/],
-    ['singular affine', { ...base, pixdim: undefined, affine: [[0, 0, 0, 0], [0, 1, 0, 0], [0, 0, 1, 0], [0, 0, 0, 1]] }, /singular/],
+    [
+      'singular affine',
+      {
+        ...base,
+        pixdim: undefined,
+        affine: [
+          [0, 0, 0, 0],
+          [0, 1, 0, 0],
+          [0, 0, 1, 0],
+          [0, 0, 0, 1],
+        ],
+      },
+      /singular/,
+    ],
     ['datatype', { ...base, datatype: 'float64' as never }, /cannot be written/],
   ];
   for (const [name, input, re] of cases) {

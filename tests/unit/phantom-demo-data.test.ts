@@ -10,16 +10,26 @@ const out = mkdtempSync(path.join(tmpdir(), 'quorum-demo-data-'));
 afterAll(() => rmSync(out, { recursive: true, force: true }));
 
 describe('scripts/make-demo-data.ts', () => {
-  const stdout = execFileSync(process.execPath, ['--import', 'tsx', 'scripts/make-demo-data.ts', '--out', out, '--size', 'tiny', '--runs', '6', '--with-broken'], {
-    cwd: root,
-    encoding: 'utf8',
-  });
+  const stdout = execFileSync(
+    process.execPath,
+    ['--import', 'tsx', 'scripts/make-demo-data.ts', '--out', out, '--size', 'tiny', '--runs', '6', '--with-broken'],
+    {
+      cwd: root,
+      encoding: 'utf8',
+    },
+  );
   const summary = JSON.parse(stdout);
 
   it('writes BIDS-named runs with motion, truth and sidecars, and a JSON summary', () => {
     const names = readdirSync(out);
     for (const base of ['sub-01_ses-1_task-rest', 'sub-05_ses-1_task-rest_run-1', 'sub-05_ses-1_task-rest_run-2']) {
-      for (const suffix of ['_bold.nii.gz', '_bold.json', '_desc-motion_timeseries.tsv', '_desc-truth_components.json', '_desc-truth_maps.nii.gz']) {
+      for (const suffix of [
+        '_bold.nii.gz',
+        '_bold.json',
+        '_desc-motion_timeseries.tsv',
+        '_desc-truth_components.json',
+        '_desc-truth_maps.nii.gz',
+      ]) {
         expect(names).toContain(base + suffix);
       }
     }

@@ -15,7 +15,10 @@ describe('realistic phantom (small grid, 120 volumes)', () => {
     expect(s.length).toBeGreaterThanOrEqual(25);
     expect(s.filter((x) => x.pattern === 'network').length).toBeGreaterThanOrEqual(10);
     for (const pattern of ['rim', 'drift', 'step', 'spike', 'slice', 'pulsation', 'vascular', 'susceptibility']) {
-      expect(s.some((x) => x.pattern === pattern), pattern).toBe(true);
+      expect(
+        s.some((x) => x.pattern === pattern),
+        pattern,
+      ).toBe(true);
     }
     const spikes = s.find((x) => x.pattern === 'spike')!;
     const last = Array.from(spikes.timecourse.slice(nt - 6)).some((v) => v !== 0);
@@ -38,7 +41,11 @@ describe('realistic phantom (small grid, 120 volumes)', () => {
         noise[t * nv + i] = p.data[t * nv + i]! - head.baseline[i]! * m;
       }
     }
-    let ss = 0, n = 0, lagT = 0, lagX = 0, nX = 0;
+    let ss = 0,
+      n = 0,
+      lagT = 0,
+      lagX = 0,
+      nX = 0;
     for (let t = 0; t < nt; t++) {
       for (let i = 0; i < nv; i++) {
         if (!p.truth.brainMask[i]) continue;

@@ -6,7 +6,7 @@ const take = (f: () => number, n: number) => Array.from({ length: n }, f);
 const u32 = (x: number) => Math.round(x * 4294967296);
 
 describe('lib/random: one generator, three named seedings', () => {
-  it('the core is mulberry32: outputs equal the author\'s reference C code', () => {
+  it("the core is mulberry32: outputs equal the author's reference C code", () => {
     // Source: Tommy Ettinger's public-domain mulberry32 reference C code (2017), compiled with gcc
     // and run from these start states on 2026-12-02 (the C source is quoted in the test's commit).
     const reference: Record<number, number[]> = {
@@ -17,7 +17,10 @@ describe('lib/random: one generator, three named seedings', () => {
     };
     for (const [state, out] of Object.entries(reference)) {
       const g = createRng(Number(state), 'direct');
-      expect(take(() => u32(g.next()), 5), `start state ${state}`).toEqual(out);
+      expect(
+        take(() => u32(g.next()), 5),
+        `start state ${state}`,
+      ).toEqual(out);
     }
     // 'golden-xor' from seed 1 starts at 1 XOR 0x9e3779b9 = 2654435768
     expect(startState(1, 'golden-xor')).toBe(2654435768);
@@ -37,8 +40,14 @@ describe('lib/random: one generator, three named seedings', () => {
     };
     for (const [seed, v] of Object.entries(old)) {
       const g = createRng(Number(seed), 'golden-xor');
-      expect(take(() => u32(g.next()), 5), `seed ${seed}`).toEqual(v.next);
-      expect(take(() => g.int(17), 5), `seed ${seed}`).toEqual(v.int17);
+      expect(
+        take(() => u32(g.next()), 5),
+        `seed ${seed}`,
+      ).toEqual(v.next);
+      expect(
+        take(() => g.int(17), 5),
+        `seed ${seed}`,
+      ).toEqual(v.int17);
     }
   });
 
@@ -74,10 +83,19 @@ describe('lib/random: one generator, three named seedings', () => {
     };
     for (const [seed, v] of Object.entries(old)) {
       const g = createRng(Number(seed));
-      expect(take(() => u32(g.next()), 5), `seed ${seed}`).toEqual(v.next);
+      expect(
+        take(() => u32(g.next()), 5),
+        `seed ${seed}`,
+      ).toEqual(v.next);
       expect(take(g.gauss, 5), `seed ${seed}`).toEqual(v.gauss);
-      expect(take(() => g.int(10), 5), `seed ${seed}`).toEqual(v.int10);
-      expect(take(() => g.uniform(-2, 3), 3), `seed ${seed}`).toEqual(v.uniform);
+      expect(
+        take(() => g.int(10), 5),
+        `seed ${seed}`,
+      ).toEqual(v.int10);
+      expect(
+        take(() => g.uniform(-2, 3), 3),
+        `seed ${seed}`,
+      ).toEqual(v.uniform);
     }
     expect([childSeed(1, 'noise'), childSeed(7, 'motion'), childSeed(12345, '')]).toEqual([330674838, 1275107560, 2166140412]);
   });

@@ -16,13 +16,27 @@ const at = new Date('2026-11-30T10:00:00Z');
 function votes(labels: Record<string, string[]>) {
   // labels: rater name -> label per component (components 1..n, all in run 7)
   return Object.entries(labels).flatMap(([rater, ls], r) =>
-    ls.map((label, i) => ({ componentId: i + 1, runId: 7, raterId: r + 1, raterName: rater, label, noiseKind: label === 'noise' ? 'motion' : null, updatedAt: at })),
+    ls.map((label, i) => ({
+      componentId: i + 1,
+      runId: 7,
+      raterId: r + 1,
+      raterName: rater,
+      label,
+      noiseKind: label === 'noise' ? 'motion' : null,
+      updatedAt: at,
+    })),
   );
 }
 
 describe('buildAgreementReport', () => {
   it('says why there is nothing to show with one rater', () => {
-    const report = buildAgreementReport({ categories: ['signal', 'noise', 'uncertain'], noiseKinds: ['motion'], votes: votes({ A: ['noise', 'signal'] }), decisions: [], runs: [] });
+    const report = buildAgreementReport({
+      categories: ['signal', 'noise', 'uncertain'],
+      noiseKinds: ['motion'],
+      votes: votes({ A: ['noise', 'signal'] }),
+      decisions: [],
+      runs: [],
+    });
     expect(report.summary).toBeNull();
     expect(report.unavailable).toMatch(/two raters/);
   });
@@ -34,7 +48,13 @@ describe('buildAgreementReport', () => {
         categories: ['signal', 'noise', 'uncertain'],
         noiseKinds: ['motion', 'csf'],
         votes: votes({ A: labels, B: labels }),
-        decisions: labels.map((label, i) => ({ componentId: i + 1, runId: 7, label, noiseKind: label === 'noise' ? 'motion' : null, method: 'unanimous' })),
+        decisions: labels.map((label, i) => ({
+          componentId: i + 1,
+          runId: 7,
+          label,
+          noiseKind: label === 'noise' ? 'motion' : null,
+          method: 'unanimous',
+        })),
         runs: [{ id: 7, sub: '01', ses: '1', task: 'rest', runLabel: null }],
       },
       { resamples: 200 },

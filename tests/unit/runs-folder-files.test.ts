@@ -30,7 +30,14 @@ describe('groupDroppedFiles', () => {
     const names = ['dataset_description.json'];
     for (const s of ['01', '02']) {
       const base = `sub-${s}_ses-1_task-rest`;
-      names.push(`${base}_bold.nii.gz`, `${base}_bold.json`, `${base}_desc-motion_timeseries.tsv`, `${base}_desc-motion_timeseries.json`, `${base}_desc-truth_components.json`, `${base}_desc-truth_maps.nii.gz`);
+      names.push(
+        `${base}_bold.nii.gz`,
+        `${base}_bold.json`,
+        `${base}_desc-motion_timeseries.tsv`,
+        `${base}_desc-motion_timeseries.json`,
+        `${base}_desc-truth_components.json`,
+        `${base}_desc-truth_maps.nii.gz`,
+      );
     }
     const g = groupDroppedFiles(names.map(f));
     expect(g.runs.map((r) => [r.file.name, r.motion?.name, r.sidecar?.name, r.mask])).toEqual([
@@ -39,13 +46,25 @@ describe('groupDroppedFiles', () => {
     ]);
     expect(g.ignored.map((x) => x.name).sort()).toEqual([
       'dataset_description.json',
-      'sub-01_ses-1_task-rest_desc-motion_timeseries.json', 'sub-01_ses-1_task-rest_desc-truth_components.json', 'sub-01_ses-1_task-rest_desc-truth_maps.nii.gz',
-      'sub-02_ses-1_task-rest_desc-motion_timeseries.json', 'sub-02_ses-1_task-rest_desc-truth_components.json', 'sub-02_ses-1_task-rest_desc-truth_maps.nii.gz',
+      'sub-01_ses-1_task-rest_desc-motion_timeseries.json',
+      'sub-01_ses-1_task-rest_desc-truth_components.json',
+      'sub-01_ses-1_task-rest_desc-truth_maps.nii.gz',
+      'sub-02_ses-1_task-rest_desc-motion_timeseries.json',
+      'sub-02_ses-1_task-rest_desc-truth_components.json',
+      'sub-02_ses-1_task-rest_desc-truth_maps.nii.gz',
     ]);
   });
 
   it('pairs masks and plain motion files, and does not give run-1 the companions of run-10', () => {
-    const g = groupDroppedFiles(['sub-01_task-rest_run-1_bold.nii.gz', 'sub-01_task-rest_run-10_bold.nii.gz', 'sub-01_task-rest_run-10_motion.par', 'sub-01_task-rest_run-1_desc-brain_mask.nii.gz', 'notes.txt'].map(f));
+    const g = groupDroppedFiles(
+      [
+        'sub-01_task-rest_run-1_bold.nii.gz',
+        'sub-01_task-rest_run-10_bold.nii.gz',
+        'sub-01_task-rest_run-10_motion.par',
+        'sub-01_task-rest_run-1_desc-brain_mask.nii.gz',
+        'notes.txt',
+      ].map(f),
+    );
     const by = Object.fromEntries(g.runs.map((r) => [r.file.name, r]));
     expect(by['sub-01_task-rest_run-10_bold.nii.gz']!.motion?.name).toBe('sub-01_task-rest_run-10_motion.par');
     expect(by['sub-01_task-rest_run-1_bold.nii.gz']!.motion).toBeNull();

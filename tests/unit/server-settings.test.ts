@@ -25,7 +25,10 @@ describe('serverSettings', () => {
       settings: { host: '127.0.0.1', port: 3000, demo: false, migrate: true },
       problems: [],
     });
-    expect(serverSettings({ NEXTAUTH_SECRET: GOOD, QUORUM_HOST: '10.1.2.3', PORT: '8080' }).settings).toMatchObject({ host: '10.1.2.3', port: 8080 });
+    expect(serverSettings({ NEXTAUTH_SECRET: GOOD, QUORUM_HOST: '10.1.2.3', PORT: '8080' }).settings).toMatchObject({
+      host: '10.1.2.3',
+      port: 8080,
+    });
   });
 
   it('refuses to start without a real secret', () => {

@@ -49,10 +49,19 @@ describe('subjectFolds', () => {
 describe('outOfFold never trains on the subjects it predicts', () => {
   it('flipping the labels of every row of one fold leaves that fold’s predictions unchanged', () => {
     const data = rows(8, 20);
-    const { fold, k } = subjectFolds(data.map((r) => r.subject), 4, 1);
-    for (const spec of [{ kind: 'logistic', C: 1 } as const, { kind: 'forest', trees: 10, maxDepth: 4, maxFeatures: 0.7, seed: 3 } as const]) {
+    const { fold, k } = subjectFolds(
+      data.map((r) => r.subject),
+      4,
+      1,
+    );
+    for (const spec of [
+      { kind: 'logistic', C: 1 } as const,
+      { kind: 'forest', trees: 10, maxDepth: 4, maxFeatures: 0.7, seed: 3 } as const,
+    ]) {
       const before = outOfFold(data, fold, k, spec);
-      const flipped = data.map((r, i) => (fold[i] === 0 ? { ...r, label: r.label === 'noise' ? ('signal' as const) : ('noise' as const) } : r));
+      const flipped = data.map((r, i) =>
+        fold[i] === 0 ? { ...r, label: r.label === 'noise' ? ('signal' as const) : ('noise' as const) } : r,
+      );
       const after = outOfFold(flipped, fold, k, spec);
       data.forEach((_, i) => {
         if (fold[i] === 0) expect(after[i]).toBe(before[i]);
@@ -79,7 +88,12 @@ describe('feature imputation', () => {
 describe('trainSuggestionModel', () => {
   it('learns separable invented data, reports its figures and predicts from the exported JSON', () => {
     const data = rows(10, 24);
-    const { model, report } = trainSuggestionModel(data, { candidates: [{ kind: 'logistic', C: 1 }, { kind: 'forest', trees: 15, maxDepth: 5, maxFeatures: 0.7, seed: 2 }] });
+    const { model, report } = trainSuggestionModel(data, {
+      candidates: [
+        { kind: 'logistic', C: 1 },
+        { kind: 'forest', trees: 15, maxDepth: 5, maxFeatures: 0.7, seed: 2 },
+      ],
+    });
     expect(report.subjects).toBe(10);
     expect(report.folds).toBe(5);
     expect(report.score.percentAgreement.value!).toBeGreaterThan(0.9);
@@ -87,7 +101,10 @@ describe('trainSuggestionModel', () => {
     expect(report.calibration).toHaveLength(10);
     expect(report.calibration.reduce((s, b) => s + b.n, 0)).toBe(data.length);
     const json = JSON.parse(JSON.stringify(model)) as typeof model;
-    const p = predictNoise(json, [{ highFrequencyPower: 0.7, edgeFraction: 0.6, kurtosis: 1, reproducibility: null }, { highFrequencyPower: 0.2, edgeFraction: 0.2, kurtosis: 1, reproducibility: null }]);
+    const p = predictNoise(json, [
+      { highFrequencyPower: 0.7, edgeFraction: 0.6, kurtosis: 1, reproducibility: null },
+      { highFrequencyPower: 0.2, edgeFraction: 0.2, kurtosis: 1, reproducibility: null },
+    ]);
     expect(p[0]).toBeGreaterThan(0.5);
     expect(p[1]).toBeLessThan(0.5);
   });
@@ -102,7 +119,11 @@ describe('feature importance', () => {
     const rng = createRng(9, 'golden-xor');
     const data: TrainingRow[] = Array.from({ length: 160 }, (_, i) => {
       const noise = i % 2 === 0;
-      return { subject: `s${i % 8}`, label: noise ? 'noise' : 'signal', features: { spikeScore: (noise ? 5 : 2) + rng.next(), kurtosis: rng.next(), skewness: rng.next() } };
+      return {
+        subject: `s${i % 8}`,
+        label: noise ? 'noise' : 'signal',
+        features: { spikeScore: (noise ? 5 : 2) + rng.next(), kurtosis: rng.next(), skewness: rng.next() },
+      };
     });
     const { report } = trainSuggestionModel(data, { candidates: [{ kind: 'forest', trees: 12, maxDepth: 4, maxFeatures: 0.7, seed: 1 }] });
     expect(report.importance[0]!.feature).toBe('spikeScore');

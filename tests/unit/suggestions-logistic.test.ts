@@ -4,7 +4,12 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { fitLogistic, predictLogistic } from '@/lib/suggestions/logistic-regression';
 
-type Fixture = { source: string; X: number[][]; y: number[]; fits: { C: number; intercept: number; coefficients: number[]; probabilities: number[] }[] };
+type Fixture = {
+  source: string;
+  X: number[][];
+  y: number[];
+  fits: { C: number; intercept: number; coefficients: number[]; probabilities: number[] }[];
+};
 const fx = JSON.parse(readFileSync('tests/fixtures/suggestions/logistic.json', 'utf8')) as Fixture;
 
 describe(`L2 logistic regression vs ${fx.source}`, () => {

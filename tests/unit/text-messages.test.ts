@@ -54,11 +54,14 @@ describe('message sources', () => {
   it('hold no literal ending in "..", no doubled spaces in text, no full stop after an interpolated message', () => {
     const found: string[] = [];
     for (const f of files) {
-      readFileSync(f, 'utf8').split('\n').forEach((line, i) => {
-        const code = line.trim();
-        if (code.startsWith('//') || code.startsWith('*') || code.startsWith('import ')) return;
-        if (DOUBLE_STOP.test(line) || DOUBLE_SPACE.test(line) || STOP_AFTER_MESSAGE.test(line)) found.push(`${f.replace(process.cwd() + '/', '')}:${i + 1}: ${code.slice(0, 120)}`);
-      });
+      readFileSync(f, 'utf8')
+        .split('\n')
+        .forEach((line, i) => {
+          const code = line.trim();
+          if (code.startsWith('//') || code.startsWith('*') || code.startsWith('import ')) return;
+          if (DOUBLE_STOP.test(line) || DOUBLE_SPACE.test(line) || STOP_AFTER_MESSAGE.test(line))
+            found.push(`${f.replace(process.cwd() + '/', '')}:${i + 1}: ${code.slice(0, 120)}`);
+        });
     }
     expect(found).toEqual([]);
   });

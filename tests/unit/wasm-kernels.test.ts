@@ -47,15 +47,24 @@ describe('WebAssembly kernels', () => {
     expect(worst).toBeGreaterThan(0); // it is an approximation, not the exact function
     f32.set([30, -30, 0, 1e-6], 65536 / 4);
     ex.tanhInPlace(65536, 4);
-    expect(Array.from(f32.subarray(65536 / 4, 65536 / 4 + 4))).toEqual([1, -1, 0, Math.fround(Math.fround(1e-6) * Math.fround(4.89352455891786e-3) / Math.fround(4.89352518554385e-3))].map((v) => Math.fround(v)));
+    expect(Array.from(f32.subarray(65536 / 4, 65536 / 4 + 4))).toEqual(
+      [1, -1, 0, Math.fround((Math.fround(1e-6) * Math.fround(4.89352455891786e-3)) / Math.fround(4.89352518554385e-3))].map((v) =>
+        Math.fround(v),
+      ),
+    );
   });
 
   // Odd sizes exercise the zero padding (T, k not multiples of 4; voxel ranges not multiples of 64).
-  const T = 37, V = 1001, k = 11, v0 = 13, v1 = 990;
+  const T = 37,
+    V = 1001,
+    k = 11,
+    v0 = 13,
+    v1 = 990;
 
   it('gram (float32 products, float64 across 512-voxel blocks) matches the float64 JS reference to 1e-6 relative', () => {
     const x = randomF32(T * V, 1);
-    const a = new Float64Array(T * T), b = new Float64Array(T * T);
+    const a = new Float64Array(T * T),
+      b = new Float64Array(T * T);
     gramChunk(x, T, V, v0, v1, a);
     wasmGramChunk(ex, x, T, V, v0, v1, b);
     let worst = 0;
@@ -68,7 +77,8 @@ describe('WebAssembly kernels', () => {
     const x = randomF32(T * V, 2);
     const p = Float64Array.from(randomF32(k * T, 3));
     const c = Float64Array.from(randomF32(k, 4));
-    const a = new Float32Array(k * V), b = new Float32Array(k * V);
+    const a = new Float32Array(k * V),
+      b = new Float32Array(k * V);
     projectChunk(x, T, V, p, c, k, v0, v1, a);
     wasmProjectChunk(ex, x, T, V, p, c, k, v0, v1, b);
     expect(maxAbsDiff(a, b) / maxAbs(a)).toBeLessThan(1e-6);
@@ -79,8 +89,10 @@ describe('WebAssembly kernels', () => {
     const z = randomF32(k * V, 5);
     const w = symmetricDecorrelation(Float64Array.from(randomF32(k * k, 6)), k);
     for (const contrast of [0, 1, 2]) {
-      const Ga = new Float64Array(k * k), Gb = new Float64Array(k * k);
-      const ga = new Float64Array(k), gb = new Float64Array(k);
+      const Ga = new Float64Array(k * k),
+        Gb = new Float64Array(k * k);
+      const ga = new Float64Array(k),
+        gb = new Float64Array(k);
       icaChunk(z, k, V, w, contrast, 1.3, v0, v1, Ga, ga);
       wasmIcaChunk(ex, z, k, V, w, contrast, 1.3, v0, v1, Gb, gb);
       // Tolerance: float32 products/sums of ≤ 1000 terms of size ≤ ~10 and W rounded to float32 — about
@@ -94,7 +106,8 @@ describe('WebAssembly kernels', () => {
     const z = randomF32(k * V, 9);
     const w = symmetricDecorrelation(Float64Array.from(randomF32(k * k, 10)), k);
     const pass = (zz: Float32Array, key?: string) => {
-      const G = new Float64Array(k * k), gp = new Float64Array(k);
+      const G = new Float64Array(k * k),
+        gp = new Float64Array(k);
       wasmIcaChunk(ex, zz, k, V, w, 0, 1, v0, v1, G, gp, key);
       return [...G, ...gp];
     };
@@ -111,7 +124,8 @@ describe('WebAssembly kernels', () => {
   it('unmix matches the JS reference within float32 tolerance', () => {
     const z = randomF32(k * V, 7);
     const w = symmetricDecorrelation(Float64Array.from(randomF32(k * k, 8)), k);
-    const a = new Float32Array(k * V), b = new Float32Array(k * V);
+    const a = new Float32Array(k * V),
+      b = new Float32Array(k * V);
     unmixChunk(z, k, V, w, v0, v1, a);
     wasmUnmixChunk(ex, z, k, V, w, v0, v1, b);
     expect(maxAbsDiff(a, b)).toBeLessThan(1e-5);
@@ -135,7 +149,7 @@ describe('FastICA with WebAssembly kernels', () => {
     const z = sharedFloat32(k * V);
     for (let i = 0; i < k * V; i++) {
       const u = rnd() - 0.5;
-      z[i] = -Math.sign(u) * Math.log(1 - 2 * Math.abs(u)) / Math.SQRT2;
+      z[i] = (-Math.sign(u) * Math.log(1 - 2 * Math.abs(u))) / Math.SQRT2;
     }
     const q = symmetricDecorrelation(Float64Array.from(randomF32(k * k, 12)), k);
     const out = sharedFloat32(k * V);
@@ -144,7 +158,8 @@ describe('FastICA with WebAssembly kernels', () => {
   }
 
   it('converges to the same unmixing matrix as the JS kernels (max |ΔW| < 1e-3) and is bit-identical on 1 and 2 threads', async () => {
-    const k = 6, V = 20_000;
+    const k = 6,
+      V = 20_000;
     const z = mixture(k, V);
     const ref = await fastIca(z, k, V, pool(1, 'js'), { seed: 3, warmStartVoxels: 0 });
     const one = await fastIca(z, k, V, pool(1, 'wasm'), { seed: 3, warmStartVoxels: 0 });

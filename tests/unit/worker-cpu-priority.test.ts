@@ -37,11 +37,16 @@ describe.runIf(process.platform === 'linux')('lowerProcessPriority', () => {
     if (group) expect(group).not.toMatch(/ nice 12$/);
   });
 
-  it.runIf(existsSync('/proc/self/autogroup') && existsSync('/usr/bin/setsid'))('a process leading its own session lowers its session group too', () => {
-    const run = spawnSync('/usr/bin/setsid', ['--wait', process.execPath, '--import', 'tsx', '-e', child, modulePath], { encoding: 'utf8' });
-    expect(run.status, run.stderr).toBe(0);
-    const { nices, group } = JSON.parse(run.stdout) as { nices: number[]; group: string };
-    expect(new Set(nices)).toEqual(new Set([12]));
-    expect(group).toMatch(/ nice 12$/);
-  });
+  it.runIf(existsSync('/proc/self/autogroup') && existsSync('/usr/bin/setsid'))(
+    'a process leading its own session lowers its session group too',
+    () => {
+      const run = spawnSync('/usr/bin/setsid', ['--wait', process.execPath, '--import', 'tsx', '-e', child, modulePath], {
+        encoding: 'utf8',
+      });
+      expect(run.status, run.stderr).toBe(0);
+      const { nices, group } = JSON.parse(run.stdout) as { nices: number[]; group: string };
+      expect(new Set(nices)).toEqual(new Set([12]));
+      expect(group).toMatch(/ nice 12$/);
+    },
+  );
 });

@@ -35,9 +35,28 @@ export function ChangePasswordForm() {
     <form onSubmit={onSubmit} noValidate className="flex max-w-sm flex-col gap-3" data-testid="change-password-form">
       {done ? <Notice kind="ok">Your password was changed.</Notice> : null}
       {failure ? <Notice kind="error">{failure}</Notice> : null}
-      <Field label="Current password" type="password" autoComplete="current-password" {...register('currentPassword')} error={formState.errors.currentPassword?.message} />
-      <Field label="New password" type="password" autoComplete="new-password" hint="At least 10 characters." {...register('newPassword')} error={formState.errors.newPassword?.message} />
-      <Field label="New password again" type="password" autoComplete="new-password" {...register('confirmPassword')} error={formState.errors.confirmPassword?.message} />
+      <Field
+        label="Current password"
+        type="password"
+        autoComplete="current-password"
+        {...register('currentPassword')}
+        error={formState.errors.currentPassword?.message}
+      />
+      <Field
+        label="New password"
+        type="password"
+        autoComplete="new-password"
+        hint="At least 10 characters."
+        {...register('newPassword')}
+        error={formState.errors.newPassword?.message}
+      />
+      <Field
+        label="New password again"
+        type="password"
+        autoComplete="new-password"
+        {...register('confirmPassword')}
+        error={formState.errors.confirmPassword?.message}
+      />
       <Button type="submit" disabled={formState.isSubmitting}>
         Change password
       </Button>

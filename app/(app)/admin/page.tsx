@@ -34,9 +34,12 @@ export default async function AdminPage() {
           {f.kind === 'full'
             ? 'The storage (QUORUM_UPLOADS_DIR) was full'
             : 'The storage (QUORUM_UPLOADS_DIR) could not be written (permission denied)'}{' '}
-          {f.count} time{f.count === 1 ? '' : 's'} in the last 24 hours, last at {f.lastAt.toISOString().slice(0, 16).replace('T', ' ')} UTC: uploads and
-          results were refused. {f.kind === 'full' ? 'Free space or move the storage to a larger disk.' : "Give the app's user write access to the storage folder."} The
-          server log has the details.
+          {f.count} time{f.count === 1 ? '' : 's'} in the last 24 hours, last at {f.lastAt.toISOString().slice(0, 16).replace('T', ' ')}{' '}
+          UTC: uploads and results were refused.{' '}
+          {f.kind === 'full'
+            ? 'Free space or move the storage to a larger disk.'
+            : "Give the app's user write access to the storage folder."}{' '}
+          The server log has the details.
         </Notice>
       ))}
       <AdminTabs role={user.role} current="/admin" />

@@ -15,7 +15,11 @@ export default async function StudiesPage() {
       <div className="flex items-center justify-between">
         <h1 className="text-xl font-semibold">Studies</h1>
         {can(user.role, 'studies.create') ? (
-          <Link href="/studies/new" className="rounded bg-lumen px-3 py-1.5 text-sm font-medium text-ground hover:bg-lumen-strong" data-testid="new-study">
+          <Link
+            href="/studies/new"
+            className="rounded bg-lumen px-3 py-1.5 text-sm font-medium text-ground hover:bg-lumen-strong"
+            data-testid="new-study"
+          >
             New study
           </Link>
         ) : null}

@@ -23,12 +23,21 @@ export function ForgotPasswordForm() {
   });
 
   return (
-    <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4 rounded-lg border border-line bg-ground-raised p-6" data-testid="forgot-form">
+    <form
+      onSubmit={onSubmit}
+      noValidate
+      className="flex flex-col gap-4 rounded-lg border border-line bg-ground-raised p-6"
+      data-testid="forgot-form"
+    >
       <div>
         <h1 className="text-lg font-semibold">Forgot your password?</h1>
         <p className="mt-1 text-sm text-ink-muted">Enter the address you sign in with; we send a link to choose a new password.</p>
       </div>
-      {sent ? <Notice kind="ok" testId="forgot-sent">{sent}</Notice> : null}
+      {sent ? (
+        <Notice kind="ok" testId="forgot-sent">
+          {sent}
+        </Notice>
+      ) : null}
       {failure ? (
         <Notice kind="error" testId="forgot-error">
           {failure}

@@ -29,7 +29,12 @@ export function SignInForm() {
   });
 
   return (
-    <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4 rounded-lg border border-line bg-ground-raised p-6" data-testid="sign-in-form">
+    <form
+      onSubmit={onSubmit}
+      noValidate
+      className="flex flex-col gap-4 rounded-lg border border-line bg-ground-raised p-6"
+      data-testid="sign-in-form"
+    >
       <h1 className="text-lg font-semibold">Sign in</h1>
       {failure ? (
         <Notice kind="error" testId="sign-in-error">

@@ -105,8 +105,12 @@ export async function loadRatingFacts({ studyId, runIds }: { studyId: number; ru
     const q = db('assignments as a').join('runs as r', 'r.id', 'a.run_id').where({ 'r.study_id': studyId, 'r.is_calibration': false });
     return runIds ? q.whereIn('r.id', runIds) : q;
   };
-  const reopened = await scoped().where('a.reopen_count', '>', 0).first(db.raw('COUNT(*) as n'), db.raw('COALESCE(SUM(a.reopen_count), 0) as times'));
-  const raterIds = (await scoped().whereNotNull('a.first_submitted_at').distinct('a.rater_id as id')).map((r: { id: number }) => Number(r.id));
+  const reopened = await scoped()
+    .where('a.reopen_count', '>', 0)
+    .first(db.raw('COUNT(*) as n'), db.raw('COALESCE(SUM(a.reopen_count), 0) as times'));
+  const raterIds = (await scoped().whereNotNull('a.first_submitted_at').distinct('a.rater_id as id')).map((r: { id: number }) =>
+    Number(r.id),
+  );
   const certs = await db('rater_certifications').where({ study_id: studyId }).select('user_id', 'passed');
   const passed = new Set(certs.filter((c: { passed: unknown }) => Boolean(c.passed)).map((c: { user_id: number }) => Number(c.user_id)));
   return {

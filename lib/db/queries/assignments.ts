@@ -43,7 +43,17 @@ export async function lockRunWithStudyRole(trx: Knex.Transaction, { userId, runI
     })
     .where('r.id', runId)
     .forUpdate()
-    .first('r.id', 'r.study_id as studyId', 'r.status', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel', 'm.study_role as studyRole');
+    .first(
+      'r.id',
+      'r.study_id as studyId',
+      'r.status',
+      'r.sub',
+      'r.ses',
+      'r.task',
+      'r.acq',
+      'r.run_label as runLabel',
+      'm.study_role as studyRole',
+    );
   if (!row) return null;
   return {
     id: Number(row.id),
@@ -76,7 +86,10 @@ export async function countRaterVotes(trx: Knex.Transaction, { runId, raterId }:
 }
 
 /** A rater member of the study (study role rater) with their account's name, active flag and role; undefined when not one. */
-export async function findStudyRaterMember(trx: Knex.Transaction, { studyId, raterId }: { studyId: number; raterId: number }): Promise<{ id: number; name: string; active: boolean; role: Role } | undefined> {
+export async function findStudyRaterMember(
+  trx: Knex.Transaction,
+  { studyId, raterId }: { studyId: number; raterId: number },
+): Promise<{ id: number; name: string; active: boolean; role: Role } | undefined> {
   return trx('study_members as m')
     .join('users as u', 'u.id', 'm.user_id')
     .where({ 'm.study_id': studyId, 'm.user_id': raterId, 'm.study_role': 'rater' })
@@ -91,7 +104,14 @@ export async function listAssignmentsOfStudy({ studyId }: { studyId: number }): 
     })
     .where('r.study_id', studyId)
     .select(
-      'r.id as runId', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel', 'r.status', 'd.k',
+      'r.id as runId',
+      'r.sub',
+      'r.ses',
+      'r.task',
+      'r.acq',
+      'r.run_label as runLabel',
+      'r.status',
+      'd.k',
       db.raw(`(SELECT COUNT(*) FROM components c LEFT JOIN decisions x ON x.component_id = c.id
                WHERE c.decomposition_id = d.id AND (x.id IS NULL OR x.method = 'pending')) as pending`),
     )
@@ -101,7 +121,13 @@ export async function listAssignmentsOfStudy({ studyId }: { studyId: number }): 
     .join('users as u', 'u.id', 'a.rater_id')
     .where('r.study_id', studyId)
     .select(
-      'a.run_id as runId', 'a.rater_id as raterId', 'u.name as raterName', 'a.due_at as dueAt', 'a.submitted_at as submittedAt', 'a.notified_at as notifiedAt', 'a.reopen_count as reopenCount',
+      'a.run_id as runId',
+      'a.rater_id as raterId',
+      'u.name as raterName',
+      'a.due_at as dueAt',
+      'a.submitted_at as submittedAt',
+      'a.notified_at as notifiedAt',
+      'a.reopen_count as reopenCount',
       db.raw('(a.due_at IS NOT NULL AND a.due_at < NOW(3) AND a.submitted_at IS NULL) as overdue'),
       db.raw(`(SELECT COUNT(*) FROM votes v JOIN components c ON c.id = v.component_id JOIN decompositions d ON d.id = c.decomposition_id AND d.is_current = 1
                WHERE d.run_id = a.run_id AND v.rater_id = a.rater_id) as labelled`),
@@ -110,7 +136,16 @@ export async function listAssignmentsOfStudy({ studyId }: { studyId: number }): 
   const byRun = new Map<number, RunAssignment[]>();
   for (const a of rows) {
     const list = byRun.get(Number(a.runId)) ?? [];
-    list.push({ raterId: Number(a.raterId), raterName: a.raterName, dueAt: a.dueAt ?? null, labelled: Number(a.labelled), submittedAt: a.submittedAt ?? null, reopenCount: Number(a.reopenCount ?? 0), notifiedAt: a.notifiedAt ?? null, overdue: Boolean(Number(a.overdue)) });
+    list.push({
+      raterId: Number(a.raterId),
+      raterName: a.raterName,
+      dueAt: a.dueAt ?? null,
+      labelled: Number(a.labelled),
+      submittedAt: a.submittedAt ?? null,
+      reopenCount: Number(a.reopenCount ?? 0),
+      notifiedAt: a.notifiedAt ?? null,
+      overdue: Boolean(Number(a.overdue)),
+    });
     byRun.set(Number(a.runId), list);
   }
   const certRows = await db('rater_certifications').where({ study_id: studyId }).select('user_id', 'passed');
@@ -130,7 +165,12 @@ export async function listAssignmentsOfStudy({ studyId }: { studyId: number }): 
       pending: Number(r.pending ?? 0),
       assignments: byRun.get(Number(r.runId)) ?? [],
     })),
-    raters: raters.map((r) => ({ id: Number(r.id), name: r.name, open: Number(r.open), certified: certRows.length ? (certified.get(Number(r.id)) ?? false) : null })),
+    raters: raters.map((r) => ({
+      id: Number(r.id),
+      name: r.name,
+      open: Number(r.open),
+      certified: certRows.length ? (certified.get(Number(r.id)) ?? false) : null,
+    })),
   };
 }
 
@@ -145,13 +185,22 @@ export async function isAssigned(trx: Knex.Transaction, { runId, raterId }: { ru
   return Boolean(await trx('assignments').where({ run_id: runId, rater_id: raterId }).first('id'));
 }
 
-export async function insertAssignment(trx: Knex.Transaction, { runId, raterId, assignedBy, dueAt }: { runId: number; raterId: number; assignedBy: number; dueAt: Date | null }): Promise<void> {
+export async function insertAssignment(
+  trx: Knex.Transaction,
+  { runId, raterId, assignedBy, dueAt }: { runId: number; raterId: number; assignedBy: number; dueAt: Date | null },
+): Promise<void> {
   await trx('assignments').insert({ run_id: runId, rater_id: raterId, assigned_by: assignedBy, due_at: dueAt });
 }
 
 /** One rater's assignment on a run with the rater's name and due date (undefined when none). */
-export async function findAssignmentOfRater(trx: Knex.Transaction, { runId, raterId }: { runId: number; raterId: number }): Promise<{ id: number; name: string; submittedAt: Date | null; dueAt: Date | null } | undefined> {
-  return trx('assignments as a').join('users as u', 'u.id', 'a.rater_id').where({ 'a.run_id': runId, 'a.rater_id': raterId }).first('a.id', 'u.name', 'a.submitted_at as submittedAt', 'a.due_at as dueAt');
+export async function findAssignmentOfRater(
+  trx: Knex.Transaction,
+  { runId, raterId }: { runId: number; raterId: number },
+): Promise<{ id: number; name: string; submittedAt: Date | null; dueAt: Date | null } | undefined> {
+  return trx('assignments as a')
+    .join('users as u', 'u.id', 'a.rater_id')
+    .where({ 'a.run_id': runId, 'a.rater_id': raterId })
+    .first('a.id', 'u.name', 'a.submitted_at as submittedAt', 'a.due_at as dueAt');
 }
 
 export async function deleteAssignment(trx: Knex.Transaction, { assignmentId }: { assignmentId: number }): Promise<void> {
@@ -159,7 +208,10 @@ export async function deleteAssignment(trx: Knex.Transaction, { assignmentId }: 
 }
 
 /** Sets the due date of one rater's assignment on a run, or of every open one; returns how many changed. */
-export async function updateRunDue(trx: Knex.Transaction, { runId, raterId, dueAt }: { runId: number; raterId?: number; dueAt: Date | null }): Promise<number> {
+export async function updateRunDue(
+  trx: Knex.Transaction,
+  { runId, raterId, dueAt }: { runId: number; raterId?: number; dueAt: Date | null },
+): Promise<number> {
   const q = trx('assignments').where({ run_id: runId });
   if (raterId) q.andWhere({ rater_id: raterId });
   else q.whereNull('submitted_at');
@@ -179,7 +231,13 @@ export async function updateOpenDue(trx: Knex.Transaction, { runId, dueAt }: { r
 /** A run's study and name (null when there is no such run). */
 export async function findRunStudy({ runId }: { runId: number }): Promise<{ runId: number; studyId: number; name: string } | null> {
   const r = await db('runs').where({ id: runId }).first('id', 'study_id as studyId', 'sub', 'ses', 'task', 'acq', 'run_label as runLabel');
-  return r ? { runId: Number(r.id), studyId: Number(r.studyId), name: bidsName({ sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, runLabel: r.runLabel }) } : null;
+  return r
+    ? {
+        runId: Number(r.id),
+        studyId: Number(r.studyId),
+        name: bidsName({ sub: r.sub, ses: r.ses, task: r.task, acq: r.acq, runLabel: r.runLabel }),
+      }
+    : null;
 }
 
 /** One rater's assignment on a run with the rater's name, locked FOR UPDATE inside `trx` (null when none). */
@@ -188,12 +246,33 @@ export async function lockAssignment(trx: Knex.Transaction, { runId, raterId }: 
     .join('users as u', 'u.id', 'a.rater_id')
     .where({ 'a.run_id': runId, 'a.rater_id': raterId })
     .forUpdate()
-    .first('a.id', 'u.name as raterName', 'u.email as raterEmail', 'u.active as raterActive', 'a.submitted_at as submittedAt', 'a.first_submitted_at as firstSubmittedAt', 'a.reopen_count as reopenCount');
-  return a ? { id: Number(a.id), raterName: String(a.raterName), raterEmail: String(a.raterEmail), raterActive: Boolean(a.raterActive), submittedAt: (a.submittedAt as Date | null) ?? null, firstSubmittedAt: (a.firstSubmittedAt as Date | null) ?? null, reopenCount: Number(a.reopenCount) } : null;
+    .first(
+      'a.id',
+      'u.name as raterName',
+      'u.email as raterEmail',
+      'u.active as raterActive',
+      'a.submitted_at as submittedAt',
+      'a.first_submitted_at as firstSubmittedAt',
+      'a.reopen_count as reopenCount',
+    );
+  return a
+    ? {
+        id: Number(a.id),
+        raterName: String(a.raterName),
+        raterEmail: String(a.raterEmail),
+        raterActive: Boolean(a.raterActive),
+        submittedAt: (a.submittedAt as Date | null) ?? null,
+        firstSubmittedAt: (a.firstSubmittedAt as Date | null) ?? null,
+        reopenCount: Number(a.reopenCount),
+      }
+    : null;
 }
 
 /** Reopens a submitted assignment: the rater may change their votes again until they resubmit. */
-export async function markAssignmentReopened(trx: Knex.Transaction, { assignmentId, by, at }: { assignmentId: number; by: number; at: Date }): Promise<void> {
+export async function markAssignmentReopened(
+  trx: Knex.Transaction,
+  { assignmentId, by, at }: { assignmentId: number; by: number; at: Date },
+): Promise<void> {
   await trx('assignments')
     .where({ id: assignmentId })
     .update({ submitted_at: null, reopened_at: at, reopened_by: by, reopen_count: trx.raw('reopen_count + 1') });

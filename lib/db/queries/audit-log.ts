@@ -19,13 +19,12 @@ export type AuditRow = {
 };
 
 function filtered(filter: AuditFilter): Knex.QueryBuilder {
-  const q = db('audit_log as a')
-    .leftJoin('users as u', 'u.id', 'a.actor_id')
-    .leftJoin('studies as s', 's.id', 'a.study_id');
+  const q = db('audit_log as a').leftJoin('users as u', 'u.id', 'a.actor_id').leftJoin('studies as s', 's.id', 'a.study_id');
   if (filter.actorId) q.where('a.actor_id', filter.actorId);
   if (filter.studyId) q.where('a.study_id', filter.studyId);
   // an action or an action family: "user" matches user.role_changed, user.deactivated, …
-  if (filter.action) q.where((w) => w.where('a.action', filter.action!).orWhere('a.action', 'like', `${filter.action!.replace(/[%_\\]/g, '\\$&')}.%`));
+  if (filter.action)
+    q.where((w) => w.where('a.action', filter.action!).orWhere('a.action', 'like', `${filter.action!.replace(/[%_\\]/g, '\\$&')}.%`));
   if (filter.from) q.where('a.created_at', '>=', `${filter.from} 00:00:00.000`);
   if (filter.to) q.where('a.created_at', '<', db.raw('DATE_ADD(?, INTERVAL 1 DAY)', [`${filter.to} 00:00:00`]));
   return q;
@@ -83,7 +82,11 @@ export async function* iterateAuditLog({ filter, batch = 500 }: { filter: AuditF
 }
 
 /** Distinct actions and actors present in the log, for the filter form. */
-export async function auditFilterChoices(): Promise<{ actions: string[]; actors: { id: number; name: string }[]; studies: { id: number; name: string }[] }> {
+export async function auditFilterChoices(): Promise<{
+  actions: string[];
+  actors: { id: number; name: string }[];
+  studies: { id: number; name: string }[];
+}> {
   const actions = (await db('audit_log').distinct('action').orderBy('action')).map((r: { action: string }) => r.action);
   const actors = await db('users').select('id', 'name').orderBy('name');
   const studies = await db('studies').select('id', 'name').orderBy('name');

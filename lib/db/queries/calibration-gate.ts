@@ -31,23 +31,54 @@ export async function scoreRater({ studyId, userId }: { studyId: number; userId:
     .join('reference_labels as rl', 'rl.component_id', 'c.id')
     .where({ 'r.study_id': studyId, 'r.is_calibration': true, 'd.is_current': true, 'v.rater_id': userId })
     .whereNotNull('a.submitted_at')
-    .select('v.label as rater', 'rl.label as reference', 'rl.noise_kind as referenceKind', 'r.id as runId')) as Array<{ rater: string; reference: string; referenceKind: string | null; runId: number }>;
-  return { score: scoreAgainstReference(rows, categories), byKind: sensitivityByKind(rows), submittedRuns: new Set(rows.map((r) => Number(r.runId))).size };
+    .select('v.label as rater', 'rl.label as reference', 'rl.noise_kind as referenceKind', 'r.id as runId')) as Array<{
+    rater: string;
+    reference: string;
+    referenceKind: string | null;
+    runId: number;
+  }>;
+  return {
+    score: scoreAgainstReference(rows, categories),
+    byKind: sensitivityByKind(rows),
+    submittedRuns: new Set(rows.map((r) => Number(r.runId))).size,
+  };
 }
 
 /** The study's calibration threshold (both null: no gate). */
-export async function calibrationThreshold({ studyId }: { studyId: number }, trx: Knex | Knex.Transaction = db): Promise<CalibrationThreshold> {
-  const s = await trx('studies').where({ id: studyId }).first('calibration_min_ac1 as minAc1', 'calibration_min_sensitivity as minSensitivity', 'calibration_set_name as setName');
-  return { minAc1: s?.minAc1 == null ? null : Number(s.minAc1), minSensitivity: s?.minSensitivity == null ? null : Number(s.minSensitivity), setName: s?.setName ?? null };
+export async function calibrationThreshold(
+  { studyId }: { studyId: number },
+  trx: Knex | Knex.Transaction = db,
+): Promise<CalibrationThreshold> {
+  const s = await trx('studies')
+    .where({ id: studyId })
+    .first('calibration_min_ac1 as minAc1', 'calibration_min_sensitivity as minSensitivity', 'calibration_set_name as setName');
+  return {
+    minAc1: s?.minAc1 == null ? null : Number(s.minAc1),
+    minSensitivity: s?.minSensitivity == null ? null : Number(s.minSensitivity),
+    setName: s?.setName ?? null,
+  };
 }
 
 /** The study's calibration settings: the threshold, the set's name and the re-calibration interval. */
-export type CalibrationSettings = { minAc1: number | null; minSensitivity: number | null; setName: string | null; recalibrationWeeks: number | null };
+export type CalibrationSettings = {
+  minAc1: number | null;
+  minSensitivity: number | null;
+  setName: string | null;
+  recalibrationWeeks: number | null;
+};
 
-export async function calibrationSettings({ studyId }: { studyId: number }, trx: Knex | Knex.Transaction = db): Promise<CalibrationSettings> {
+export async function calibrationSettings(
+  { studyId }: { studyId: number },
+  trx: Knex | Knex.Transaction = db,
+): Promise<CalibrationSettings> {
   const t = await calibrationThreshold({ studyId }, trx);
   const s = await trx('studies').where({ id: studyId }).first('recalibration_weeks as weeks');
-  return { minAc1: t.minAc1, minSensitivity: t.minSensitivity, setName: t.setName ?? null, recalibrationWeeks: s?.weeks == null ? null : Number(s.weeks) };
+  return {
+    minAc1: t.minAc1,
+    minSensitivity: t.minSensitivity,
+    setName: t.setName ?? null,
+    recalibrationWeeks: s?.weeks == null ? null : Number(s.weeks),
+  };
 }
 
 /** Writes the threshold; the set's name and the re-calibration interval only when given (undefined keeps them). */
@@ -55,16 +86,21 @@ export async function setCalibrationThreshold(
   { studyId, threshold }: { studyId: number; threshold: CalibrationThreshold & { recalibrationWeeks?: number | null } },
   trx: Knex | Knex.Transaction = db,
 ): Promise<void> {
-  await trx('studies').where({ id: studyId }).update({
-    calibration_min_ac1: threshold.minAc1,
-    calibration_min_sensitivity: threshold.minSensitivity,
-    ...(threshold.setName !== undefined ? { calibration_set_name: threshold.setName } : {}),
-    ...(threshold.recalibrationWeeks !== undefined ? { recalibration_weeks: threshold.recalibrationWeeks } : {}),
-  });
+  await trx('studies')
+    .where({ id: studyId })
+    .update({
+      calibration_min_ac1: threshold.minAc1,
+      calibration_min_sensitivity: threshold.minSensitivity,
+      ...(threshold.setName !== undefined ? { calibration_set_name: threshold.setName } : {}),
+      ...(threshold.recalibrationWeeks !== undefined ? { recalibration_weeks: threshold.recalibrationWeeks } : {}),
+    });
 }
 
 /** Whether the rater may get live runs of the study under its calibration threshold, and why not. */
-export async function calibrationGate({ studyId, raterId }: { studyId: number; raterId: number }, trx: Knex | Knex.Transaction = db): Promise<GateVerdict> {
+export async function calibrationGate(
+  { studyId, raterId }: { studyId: number; raterId: number },
+  trx: Knex | Knex.Transaction = db,
+): Promise<GateVerdict> {
   const t = await calibrationThreshold({ studyId }, trx);
   if (!isGated(t)) return gateVerdict(null, t);
   const { score } = await scoreRater({ studyId, userId: raterId }, trx);
@@ -77,7 +113,6 @@ export async function calibrationGate({ studyId, raterId }: { studyId: number; r
   }
   return gateVerdict(score, t);
 }
-
 
 export type RaterGateNotice = { studyId: number; studyName: string; setName: string | null; reason: string };
 
@@ -92,7 +127,13 @@ export async function raterGateNotices({ raterId }: { raterId: number }, trx: Kn
   const out: RaterGateNotice[] = [];
   for (const s of studies) {
     const gate = await calibrationGate({ studyId: Number(s.id), raterId }, trx);
-    if (!gate.passes) out.push({ studyId: Number(s.id), studyName: String(s.name), setName: s.setName ?? null, reason: gate.reason ?? 'below the calibration threshold' });
+    if (!gate.passes)
+      out.push({
+        studyId: Number(s.id),
+        studyName: String(s.name),
+        setName: s.setName ?? null,
+        reason: gate.reason ?? 'below the calibration threshold',
+      });
   }
   return out;
 }

@@ -22,17 +22,22 @@ export async function dueRecalibrations({ now }: { now: Date }, trx: Knex | Knex
     .join('studies as s', 's.id', 'rc.study_id')
     .join('users as u', 'u.id', 'rc.user_id')
     .join('study_members as m', function () {
-      this.on('m.study_id', 'rc.study_id').andOn('m.user_id', 'rc.user_id').andOn('m.study_role', trx.raw('?', ['rater']));
+      this.on('m.study_id', 'rc.study_id')
+        .andOn('m.user_id', 'rc.user_id')
+        .andOn('m.study_role', trx.raw('?', ['rater']));
     })
     .where({ 'rc.passed': true, 'u.active': true })
     .whereNotNull('s.recalibration_weeks')
     .select('rc.study_id as studyId', 'rc.user_id as raterId', 's.recalibration_weeks as weeks');
   const due: RecalibrationDue[] = [];
   for (const r of rows) {
-    const studyId = Number(r.studyId), raterId = Number(r.raterId), weeks = Number(r.weeks);
+    const studyId = Number(r.studyId),
+      raterId = Number(r.raterId),
+      weeks = Number(r.weeks);
     const state = await raterSetState(trx, { studyId, raterId });
     if (!state.lastSubmittedAt || state.open > 0 || !(await setIsComplete(trx, studyId))) continue;
-    if (now.getTime() - state.lastSubmittedAt.getTime() >= weeks * WEEK_MS) due.push({ studyId, raterId, lastSubmittedAt: state.lastSubmittedAt, weeks });
+    if (now.getTime() - state.lastSubmittedAt.getTime() >= weeks * WEEK_MS)
+      due.push({ studyId, raterId, lastSubmittedAt: state.lastSubmittedAt, weeks });
   }
   return due;
 }
@@ -45,7 +50,11 @@ async function raterSetState(trx: Knex | Knex.Transaction, { studyId, raterId }:
     .select('a.id', 'a.run_id as runId', 'a.submitted_at as submittedAt');
   const rows = (await (lock ? q.forUpdate() : q)) as Array<{ id: number; runId: number; submittedAt: Date | null }>;
   const submitted = rows.filter((a) => a.submittedAt).map((a) => new Date(a.submittedAt!).getTime());
-  return { rows, open: rows.filter((a) => !a.submittedAt).length, lastSubmittedAt: submitted.length ? new Date(Math.max(...submitted)) : null };
+  return {
+    rows,
+    open: rows.filter((a) => !a.submittedAt).length,
+    lastSubmittedAt: submitted.length ? new Date(Math.max(...submitted)) : null,
+  };
 }
 
 /** Calibration runs of the study whose every current component has a reference label (at least one run). */
@@ -59,7 +68,9 @@ async function completeSetRuns(trx: Knex | Knex.Transaction, studyId: number): P
     .where({ 'r.study_id': studyId, 'r.is_calibration': true, 'r.status': 'ready' })
     .groupBy('r.id')
     .select('r.id', trx.raw('COUNT(c.id) as total'), trx.raw('COUNT(rl.id) as referenced'));
-  return rows.filter((r: { total: number; referenced: number }) => Number(r.total) > 0 && Number(r.total) === Number(r.referenced)).map((r: { id: number }) => Number(r.id));
+  return rows
+    .filter((r: { total: number; referenced: number }) => Number(r.total) > 0 && Number(r.total) === Number(r.referenced))
+    .map((r: { id: number }) => Number(r.id));
 }
 
 async function setIsComplete(trx: Knex | Knex.Transaction, studyId: number): Promise<boolean> {
@@ -78,7 +89,10 @@ export async function startRecalibrationRound(
   trx: Knex.Transaction,
   { studyId, raterId, now, dueAt }: { studyId: number; raterId: number; now: Date; dueAt: Date | null },
 ): Promise<{ round: number; runIds: number[]; closed: { ac1: number | null; sensitivity: number | null } } | null> {
-  const study = await trx('studies').where({ id: studyId }).forUpdate().first('recalibration_weeks as weeks', 'calibration_set_name as setName');
+  const study = await trx('studies')
+    .where({ id: studyId })
+    .forUpdate()
+    .first('recalibration_weeks as weeks', 'calibration_set_name as setName');
   if (study?.weeks == null) return null;
   const state = await raterSetState(trx, { studyId, raterId }, true);
   if (!state.lastSubmittedAt || state.open > 0) return null;
@@ -89,16 +103,34 @@ export async function startRecalibrationRound(
   const { score } = await scoreRater({ studyId, userId: raterId }, trx);
   const last = await trx('calibration_rounds').where({ study_id: studyId, rater_id: raterId }).max({ round: 'round' }).first();
   const round = Number(last?.round ?? 0) + 1;
-  const components = trx('components as c').join('decompositions as d', 'd.id', 'c.decomposition_id').whereIn('d.run_id', runIds).select('c.id');
+  const components = trx('components as c')
+    .join('decompositions as d', 'd.id', 'c.decomposition_id')
+    .whereIn('d.run_id', runIds)
+    .select('c.id');
   // the round's votes are kept with its score before they are cleared for the next round
   const votes = await trx('votes')
     .where({ rater_id: raterId })
     .whereIn('component_id', components.clone())
     .orderBy('component_id')
-    .select('component_id as componentId', 'run_id as runId', 'label', 'noise_kind as noiseKind', 'confidence', 'note', 'updated_at as votedAt');
+    .select(
+      'component_id as componentId',
+      'run_id as runId',
+      'label',
+      'noise_kind as noiseKind',
+      'confidence',
+      'note',
+      'updated_at as votedAt',
+    );
   await trx('calibration_rounds').insert({
-    study_id: studyId, rater_id: raterId, round, set_name: study.setName ?? null, submitted_at: state.lastSubmittedAt,
-    components: score.n, ac1: score.gwetAC1.value, sensitivity: score.noise.sensitivity.value, score: toJson(score),
+    study_id: studyId,
+    rater_id: raterId,
+    round,
+    set_name: study.setName ?? null,
+    submitted_at: state.lastSubmittedAt,
+    components: score.n,
+    ac1: score.gwetAC1.value,
+    sensitivity: score.noise.sensitivity.value,
+    score: toJson(score),
     votes: toJson(votes.map((v) => ({ ...v, confidence: v.confidence == null ? null : Number(v.confidence) }))),
   });
   await trx('votes').where({ rater_id: raterId }).whereIn('component_id', components.clone()).delete();
@@ -106,10 +138,22 @@ export async function startRecalibrationRound(
   const had = new Set(state.rows.map((a) => Number(a.runId)));
   await trx('assignments')
     .where({ rater_id: raterId })
-    .whereIn('run_id', runIds.filter((id) => had.has(id)))
-    .update({ submitted_at: null, first_submitted_at: null, started_at: null, last_component_idx: null, notified_at: null, due_at: dueAt, assigned_by: null });
+    .whereIn(
+      'run_id',
+      runIds.filter((id) => had.has(id)),
+    )
+    .update({
+      submitted_at: null,
+      first_submitted_at: null,
+      started_at: null,
+      last_component_idx: null,
+      notified_at: null,
+      due_at: dueAt,
+      assigned_by: null,
+    });
   const fresh = runIds.filter((id) => !had.has(id));
-  if (fresh.length) await trx('assignments').insert(fresh.map((runId) => ({ run_id: runId, rater_id: raterId, due_at: dueAt, assigned_by: null })));
+  if (fresh.length)
+    await trx('assignments').insert(fresh.map((runId) => ({ run_id: runId, rater_id: raterId, due_at: dueAt, assigned_by: null })));
   return { round, runIds, closed: { ac1: score.gwetAC1.value, sensitivity: score.noise.sensitivity.value } };
 }
 
@@ -128,24 +172,43 @@ export type CalibrationRoundEntry = {
  * The rater's calibration rounds, oldest first: the closed ones from calibration_rounds, then the
  * current round when the rater has submitted on the set since (scored from the current votes).
  */
-export async function calibrationRounds({ studyId, userId }: { studyId: number; userId: number }, trx: Knex | Knex.Transaction = db): Promise<CalibrationRoundEntry[]> {
+export async function calibrationRounds(
+  { studyId, userId }: { studyId: number; userId: number },
+  trx: Knex | Knex.Transaction = db,
+): Promise<CalibrationRoundEntry[]> {
   const closed = (await trx('calibration_rounds')
     .where({ study_id: studyId, rater_id: userId })
     .orderBy('round')
     .select('round', 'set_name as setName', 'submitted_at as submittedAt', 'components', 'ac1', 'sensitivity', 'score')) as Array<{
-    round: number; setName: string | null; submittedAt: Date; components: number; ac1: number | null; sensitivity: number | null; score: unknown;
+    round: number;
+    setName: string | null;
+    submittedAt: Date;
+    components: number;
+    ac1: number | null;
+    sensitivity: number | null;
+    score: unknown;
   }>;
   const out: CalibrationRoundEntry[] = closed.map((r) => ({
-    round: Number(r.round), setName: r.setName ?? null, submittedAt: new Date(r.submittedAt).toISOString(), components: Number(r.components),
-    ac1: r.ac1 == null ? null : Number(r.ac1), sensitivity: r.sensitivity == null ? null : Number(r.sensitivity), closed: true,
+    round: Number(r.round),
+    setName: r.setName ?? null,
+    submittedAt: new Date(r.submittedAt).toISOString(),
+    components: Number(r.components),
+    ac1: r.ac1 == null ? null : Number(r.ac1),
+    sensitivity: r.sensitivity == null ? null : Number(r.sensitivity),
+    closed: true,
   }));
   const state = await raterSetState(trx, { studyId, raterId: userId });
   const { score } = await scoreRater({ studyId, userId }, trx);
   if (state.lastSubmittedAt && score.n > 0) {
     const s = await trx('studies').where({ id: studyId }).first('calibration_set_name as setName');
     out.push({
-      round: out.length ? out[out.length - 1]!.round + 1 : 1, setName: s?.setName ?? null, submittedAt: state.lastSubmittedAt.toISOString(),
-      components: score.n, ac1: score.gwetAC1.value, sensitivity: score.noise.sensitivity.value, closed: false,
+      round: out.length ? out[out.length - 1]!.round + 1 : 1,
+      setName: s?.setName ?? null,
+      submittedAt: state.lastSubmittedAt.toISOString(),
+      components: score.n,
+      ac1: score.gwetAC1.value,
+      sensitivity: score.noise.sensitivity.value,
+      closed: false,
     });
   }
   return out;

@@ -31,7 +31,12 @@ export type CalibrationRun = {
   pending: number;
   assignments: CalibrationAssignment[];
 };
-export type CalibrationCertification = { passed: boolean; certifiedBy: number | null; certifiedAt: Date | null; scores: CalibrationScore | null };
+export type CalibrationCertification = {
+  passed: boolean;
+  certifiedBy: number | null;
+  certifiedAt: Date | null;
+  scores: CalibrationScore | null;
+};
 export type CalibrationRater = {
   id: number;
   name: string;
@@ -99,8 +104,20 @@ async function runComponents(trx: Knex | Knex.Transaction, runId: number) {
     .leftJoin('reference_labels as rl', 'rl.component_id', 'c.id')
     .where({ 'd.run_id': runId, 'd.is_current': true })
     .orderBy('c.idx')
-    .select('c.id', 'c.idx', 'x.label as decisionLabel', 'x.noise_kind as decisionKind', 'x.method', 'rl.label as referenceLabel')) as Array<{
-    id: number; idx: number; decisionLabel: string | null; decisionKind: string | null; method: string | null; referenceLabel: string | null;
+    .select(
+      'c.id',
+      'c.idx',
+      'x.label as decisionLabel',
+      'x.noise_kind as decisionKind',
+      'x.method',
+      'rl.label as referenceLabel',
+    )) as Array<{
+    id: number;
+    idx: number;
+    decisionLabel: string | null;
+    decisionKind: string | null;
+    method: string | null;
+    referenceLabel: string | null;
   }>;
 }
 
@@ -115,9 +132,17 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
     .where({ 'r.study_id': studyId, 'r.is_calibration': true })
     .orderBy('r.id')
     .select(
-      'r.id as runId', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel', 'r.status',
+      'r.id as runId',
+      'r.sub',
+      'r.ses',
+      'r.task',
+      'r.acq',
+      'r.run_label as runLabel',
+      'r.status',
       db.raw('(SELECT COUNT(*) FROM components c WHERE c.decomposition_id = d.id) as total'),
-      db.raw('(SELECT COUNT(*) FROM components c JOIN reference_labels rl ON rl.component_id = c.id WHERE c.decomposition_id = d.id) as referenced'),
+      db.raw(
+        '(SELECT COUNT(*) FROM components c JOIN reference_labels rl ON rl.component_id = c.id WHERE c.decomposition_id = d.id) as referenced',
+      ),
       db.raw(`(SELECT COUNT(*) FROM components c LEFT JOIN decisions x ON x.component_id = c.id
                WHERE c.decomposition_id = d.id AND (x.id IS NULL OR x.method = 'pending' OR x.label IS NULL)) as pending`),
     );
@@ -127,7 +152,10 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
     .where({ 'r.study_id': studyId, 'r.is_calibration': true })
     .orderBy('u.name')
     .select(
-      'a.run_id as runId', 'a.rater_id as raterId', 'u.name as raterName', 'a.submitted_at as submittedAt',
+      'a.run_id as runId',
+      'a.rater_id as raterId',
+      'u.name as raterName',
+      'a.submitted_at as submittedAt',
       db.raw(`(SELECT COUNT(*) FROM votes v JOIN components c ON c.id = v.component_id JOIN decompositions d ON d.id = c.decomposition_id AND d.is_current = 1
                WHERE d.run_id = a.run_id AND v.rater_id = a.rater_id) as labelled`),
     );
@@ -140,12 +168,19 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
     pending: Number(r.pending ?? 0),
     assignments: assignRows
       .filter((a) => Number(a.runId) === Number(r.runId))
-      .map((a) => ({ raterId: Number(a.raterId), raterName: String(a.raterName), labelled: Number(a.labelled ?? 0), submittedAt: a.submittedAt ?? null })),
+      .map((a) => ({
+        raterId: Number(a.raterId),
+        raterName: String(a.raterName),
+        labelled: Number(a.labelled ?? 0),
+        submittedAt: a.submittedAt ?? null,
+      })),
   }));
-  const candidates = (await db('runs')
-    .where({ study_id: studyId, is_calibration: false, status: 'ready' })
-    .orderBy('id')
-    .select('id as runId', 'sub', 'ses', 'task', 'acq', 'run_label as runLabel')).map((r) => ({ runId: Number(r.runId), runName: nameOf(r) }));
+  const candidates = (
+    await db('runs')
+      .where({ study_id: studyId, is_calibration: false, status: 'ready' })
+      .orderBy('id')
+      .select('id as runId', 'sub', 'ses', 'task', 'acq', 'run_label as runLabel')
+  ).map((r) => ({ runId: Number(r.runId), runName: nameOf(r) }));
   const members = await db('study_members as m')
     .join('users as u', 'u.id', 'm.user_id')
     .leftJoin('rater_certifications as rc', function () {
@@ -153,7 +188,16 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
     })
     .where({ 'm.study_id': studyId, 'm.study_role': 'rater' })
     .orderBy('u.name')
-    .select('u.id', 'u.name', 'u.active', 'rc.id as certId', 'rc.passed', 'rc.certified_by as certifiedBy', 'rc.certified_at as certifiedAt', 'rc.scores');
+    .select(
+      'u.id',
+      'u.name',
+      'u.active',
+      'rc.id as certId',
+      'rc.passed',
+      'rc.certified_by as certifiedBy',
+      'rc.certified_at as certifiedAt',
+      'rc.scores',
+    );
   const raters: CalibrationRater[] = [];
   const threshold = await calibrationThreshold({ studyId });
   for (const m of members) {
@@ -169,27 +213,58 @@ export async function listCalibration({ user, studyId }: { user: Caller; studyId
       history: await calibrationHistory({ studyId, userId: Number(m.id) }),
       rounds: await calibrationRounds({ studyId, userId: Number(m.id) }),
       certification: m.certId
-        ? { passed: Boolean(m.passed), certifiedBy: m.certifiedBy == null ? null : Number(m.certifiedBy), certifiedAt: m.certifiedAt ?? null, scores: parseJson<CalibrationScore>(m.scores, null) }
+        ? {
+            passed: Boolean(m.passed),
+            certifiedBy: m.certifiedBy == null ? null : Number(m.certifiedBy),
+            certifiedAt: m.certifiedAt ?? null,
+            scores: parseJson<CalibrationScore>(m.scores, null),
+          }
         : null,
     });
   }
   // two runs with the same entities read apart in the pickers: "… (run #12)"
-  const names = new Map(distinctRunNames([...runs, ...candidates].map((r) => ({ runId: r.runId, name: r.runName }))).map((r) => [r.runId, r.name]));
+  const names = new Map(
+    distinctRunNames([...runs, ...candidates].map((r) => ({ runId: r.runId, name: r.runName }))).map((r) => [r.runId, r.name]),
+  );
   const named = <T extends { runId: number; runName: string }>(r: T): T => ({ ...r, runName: names.get(r.runId) ?? r.runName });
   const { recalibrationWeeks } = await calibrationSettings({ studyId });
-  return { studyName: access.name, categories, noiseKinds, runs: runs.map(named), candidates: candidates.map(named), raters, threshold, recalibrationWeeks };
+  return {
+    studyName: access.name,
+    categories,
+    noiseKinds,
+    runs: runs.map(named),
+    candidates: candidates.map(named),
+    raters,
+    threshold,
+    recalibrationWeeks,
+  };
 }
 
 /** Marks a ready, unreleased run of the study as a calibration run (it leaves agreement and releases). */
-export async function markCalibrationRun({ user, studyId, runId, ip = null }: { user: Caller; studyId: number; runId: number; ip?: string | null }) {
+export async function markCalibrationRun({
+  user,
+  studyId,
+  runId,
+  ip = null,
+}: {
+  user: Caller;
+  studyId: number;
+  runId: number;
+  ip?: string | null;
+}) {
   await requireLead({ user, studyId });
   return db.transaction(async (trx) => {
     const run = await lockStudyRun(trx, { studyId, runId });
     if (run.isCalibration) return { runId, alreadyMarked: true };
-    if (run.status !== 'ready') throw new AppError('conflict', `${run.name} is not ready for rating yet (${run.status}); only a ready run can be a calibration run.`);
-    if (await isRunReleased({ runId }, trx)) throw new AppError('conflict', `${run.name} is already in a release, so it cannot become a calibration run.`);
+    if (run.status !== 'ready')
+      throw new AppError('conflict', `${run.name} is not ready for rating yet (${run.status}); only a ready run can be a calibration run.`);
+    if (await isRunReleased({ runId }, trx))
+      throw new AppError('conflict', `${run.name} is already in a release, so it cannot become a calibration run.`);
     await trx('runs').where({ id: runId, study_id: studyId }).update({ is_calibration: true });
-    await recordAudit({ actorId: user.id, action: 'calibration.run_marked', targetType: 'run', targetId: runId, studyId, detail: { run: run.name }, ip }, trx);
+    await recordAudit(
+      { actorId: user.id, action: 'calibration.run_marked', targetType: 'run', targetId: runId, studyId, detail: { run: run.name }, ip },
+      trx,
+    );
     return { runId, alreadyMarked: false };
   });
 }
@@ -198,7 +273,17 @@ export async function markCalibrationRun({ user, studyId, runId, ip = null }: { 
  * Copies the run's current decisions into its reference labels (replacing earlier ones). Refused
  * with a 409 while any component's decision is pending: reconcile the run first.
  */
-export async function adoptReferences({ user, studyId, runId, ip = null }: { user: Caller; studyId: number; runId: number; ip?: string | null }) {
+export async function adoptReferences({
+  user,
+  studyId,
+  runId,
+  ip = null,
+}: {
+  user: Caller;
+  studyId: number;
+  runId: number;
+  ip?: string | null;
+}) {
   await requireLead({ user, studyId });
   return db.transaction(async (trx) => {
     const run = await lockCalibrationRun(trx, { studyId, runId });
@@ -208,27 +293,67 @@ export async function adoptReferences({ user, studyId, runId, ip = null }: { use
     if (pending.length) {
       throw new AppError(
         'conflict',
-        `${pending.length} of ${comps.length} components of ${run.name} have no decision yet (component${pending.length === 1 ? '' : 's'} ${pending.slice(0, 10).map((c) => c.idx).join(', ')}${pending.length > 10 ? '…' : ''}). Reconcile them first, or set their reference labels one by one.`,
+        `${pending.length} of ${comps.length} components of ${run.name} have no decision yet (component${pending.length === 1 ? '' : 's'} ${pending
+          .slice(0, 10)
+          .map((c) => c.idx)
+          .join(', ')}${pending.length > 10 ? '…' : ''}). Reconcile them first, or set their reference labels one by one.`,
       );
     }
     await trx('reference_labels')
-      .insert(comps.map((c) => ({ component_id: c.id, label: c.decisionLabel, noise_kind: c.decisionLabel === 'noise' ? c.decisionKind : null, set_by: user.id })))
+      .insert(
+        comps.map((c) => ({
+          component_id: c.id,
+          label: c.decisionLabel,
+          noise_kind: c.decisionLabel === 'noise' ? c.decisionKind : null,
+          set_by: user.id,
+        })),
+      )
       .onConflict('component_id')
       .merge(['label', 'noise_kind', 'set_by']);
-    await recordAudit({ actorId: user.id, action: 'calibration.reference_set', targetType: 'run', targetId: runId, studyId, detail: { run: run.name, adopted: comps.length }, ip }, trx);
+    await recordAudit(
+      {
+        actorId: user.id,
+        action: 'calibration.reference_set',
+        targetType: 'run',
+        targetId: runId,
+        studyId,
+        detail: { run: run.name, adopted: comps.length },
+        ip,
+      },
+      trx,
+    );
     return { runId, referenced: comps.length };
   });
 }
 
 /** Sets one component's reference label (a key of the study's label set; a noise kind only with noise). */
-export async function setReferenceLabel({ user, studyId, runId, componentId, label, noiseKind, ip = null }: {
-  user: Caller; studyId: number; runId: number; componentId: number; label: string; noiseKind: string | null; ip?: string | null;
+export async function setReferenceLabel({
+  user,
+  studyId,
+  runId,
+  componentId,
+  label,
+  noiseKind,
+  ip = null,
+}: {
+  user: Caller;
+  studyId: number;
+  runId: number;
+  componentId: number;
+  label: string;
+  noiseKind: string | null;
+  ip?: string | null;
 }) {
   await requireLead({ user, studyId });
   const { categories, noiseKinds } = await studyLabels(db, studyId);
-  if (!categories.includes(label)) throw new AppError('validation', `"${label}" is not a label of this study.`, { label: [`choose one of ${categories.join(', ')}`] });
-  if (noiseKind && label !== 'noise') throw new AppError('validation', 'A noise kind goes only with the label noise.', { noiseKind: ['only with noise'] });
-  if (noiseKind && !noiseKinds.includes(noiseKind)) throw new AppError('validation', `"${noiseKind}" is not a noise kind of this study.`, { noiseKind: ['not a noise kind of this study'] });
+  if (!categories.includes(label))
+    throw new AppError('validation', `"${label}" is not a label of this study.`, { label: [`choose one of ${categories.join(', ')}`] });
+  if (noiseKind && label !== 'noise')
+    throw new AppError('validation', 'A noise kind goes only with the label noise.', { noiseKind: ['only with noise'] });
+  if (noiseKind && !noiseKinds.includes(noiseKind))
+    throw new AppError('validation', `"${noiseKind}" is not a noise kind of this study.`, {
+      noiseKind: ['not a noise kind of this study'],
+    });
   return db.transaction(async (trx) => {
     const run = await lockCalibrationRun(trx, { studyId, runId });
     const comp = (await runComponents(trx, runId)).find((c) => Number(c.id) === componentId);
@@ -237,7 +362,18 @@ export async function setReferenceLabel({ user, studyId, runId, componentId, lab
       .insert({ component_id: componentId, label, noise_kind: noiseKind, set_by: user.id })
       .onConflict('component_id')
       .merge(['label', 'noise_kind', 'set_by']);
-    await recordAudit({ actorId: user.id, action: 'calibration.reference_set', targetType: 'run', targetId: runId, studyId, detail: { run: run.name, component: comp.idx, label, noiseKind }, ip }, trx);
+    await recordAudit(
+      {
+        actorId: user.id,
+        action: 'calibration.reference_set',
+        targetType: 'run',
+        targetId: runId,
+        studyId,
+        detail: { run: run.name, component: comp.idx, label, noiseKind },
+        ip,
+      },
+      trx,
+    );
     return { runId, componentId, label, noiseKind };
   });
 }
@@ -246,7 +382,19 @@ export async function setReferenceLabel({ user, studyId, runId, componentId, lab
  * Gives a rater of the study an assignment on a calibration run whose every component has a
  * reference label, so they rate it in the normal desk; 409 when already assigned.
  */
-export async function assignCalibrationRater({ user, studyId, runId, raterId, ip = null }: { user: Caller; studyId: number; runId: number; raterId: number; ip?: string | null }) {
+export async function assignCalibrationRater({
+  user,
+  studyId,
+  runId,
+  raterId,
+  ip = null,
+}: {
+  user: Caller;
+  studyId: number;
+  runId: number;
+  raterId: number;
+  ip?: string | null;
+}) {
   await requireLead({ user, studyId });
   return db.transaction(async (trx) => {
     const run = await lockCalibrationRun(trx, { studyId, runId });
@@ -254,17 +402,34 @@ export async function assignCalibrationRater({ user, studyId, runId, raterId, ip
       .join('users as u', 'u.id', 'm.user_id')
       .where({ 'm.study_id': studyId, 'm.user_id': raterId, 'm.study_role': 'rater' })
       .first('u.id', 'u.name', 'u.active');
-    if (!rater) throw new AppError('validation', 'That person is not a rater of this study. Add them as a rater under Protocol and members first.', { raterId: ['not a rater of this study'] });
+    if (!rater)
+      throw new AppError('validation', 'That person is not a rater of this study. Add them as a rater under Protocol and members first.', {
+        raterId: ['not a rater of this study'],
+      });
     if (!rater.active) throw new AppError('validation', `${rater.name}'s account is deactivated.`, { raterId: ['deactivated account'] });
     const comps = await runComponents(trx, runId);
     const missing = comps.filter((c) => !c.referenceLabel).length;
     if (comps.length === 0 || missing > 0) {
-      throw new AppError('conflict', `${run.name} has ${missing || 'no'} component${missing === 1 ? '' : 's'} without a reference label. Set the reference labels before assigning raters.`);
+      throw new AppError(
+        'conflict',
+        `${run.name} has ${missing || 'no'} component${missing === 1 ? '' : 's'} without a reference label. Set the reference labels before assigning raters.`,
+      );
     }
     const existing = await trx('assignments').where({ run_id: runId, rater_id: raterId }).first('id');
     if (existing) throw new AppError('conflict', `${rater.name} is already assigned to ${run.name}.`);
     await trx('assignments').insert({ run_id: runId, rater_id: raterId, assigned_by: user.id });
-    await recordAudit({ actorId: user.id, action: 'calibration.assigned', targetType: 'run', targetId: runId, studyId, detail: { run: run.name, raterId, rater: rater.name }, ip }, trx);
+    await recordAudit(
+      {
+        actorId: user.id,
+        action: 'calibration.assigned',
+        targetType: 'run',
+        targetId: runId,
+        studyId,
+        detail: { run: run.name, raterId, rater: rater.name },
+        ip,
+      },
+      trx,
+    );
     return { runId, raterId };
   });
 }
@@ -273,7 +438,19 @@ export async function assignCalibrationRater({ user, studyId, runId, raterId, ip
  * The lead's verdict on a rater: their scores now are stored in rater_certifications with passed,
  * certified_by and certified_at. Passing needs at least one submitted calibration run.
  */
-export async function certifyRater({ user, studyId, userId, passed, ip = null }: { user: Caller; studyId: number; userId: number; passed: boolean; ip?: string | null }) {
+export async function certifyRater({
+  user,
+  studyId,
+  userId,
+  passed,
+  ip = null,
+}: {
+  user: Caller;
+  studyId: number;
+  userId: number;
+  passed: boolean;
+  ip?: string | null;
+}) {
   await requireLead({ user, studyId });
   return db.transaction(async (trx) => {
     const member = await trx('study_members as m')
@@ -291,10 +468,25 @@ export async function certifyRater({ user, studyId, userId, passed, ip = null }:
       .insert({ study_id: studyId, user_id: userId, scores: toJson(score), passed, certified_by: user.id, certified_at: now })
       .onConflict(['study_id', 'user_id'])
       .merge(['scores', 'passed', 'certified_by', 'certified_at']);
-    await recordAudit({
-      actorId: user.id, action: 'calibration.certified', targetType: 'user', targetId: userId, studyId, ip,
-      detail: { passed, rater: member.name, n: score.n, percentAgreement: score.percentAgreement.value, cohenKappa: score.cohenKappa.value, gwetAC1: score.gwetAC1.value },
-    }, trx);
+    await recordAudit(
+      {
+        actorId: user.id,
+        action: 'calibration.certified',
+        targetType: 'user',
+        targetId: userId,
+        studyId,
+        ip,
+        detail: {
+          passed,
+          rater: member.name,
+          n: score.n,
+          percentAgreement: score.percentAgreement.value,
+          cohenKappa: score.cohenKappa.value,
+          gwetAC1: score.gwetAC1.value,
+        },
+      },
+      trx,
+    );
     return { userId, passed, certifiedAt: now, score };
   });
 }
@@ -304,14 +496,24 @@ export async function myCalibration({ user, studyId }: { user: Caller; studyId: 
   const access = await findStudyAccess({ user, studyId });
   if (!access) throw notFound('The study');
   const { score, byKind, submittedRuns } = await scoreRater({ studyId, userId: user.id });
-  const cert = await db('rater_certifications').where({ study_id: studyId, user_id: user.id }).first('passed', 'certified_at as certifiedAt');
+  const cert = await db('rater_certifications')
+    .where({ study_id: studyId, user_id: user.id })
+    .first('passed', 'certified_at as certifiedAt');
   const gate = await calibrationGate({ studyId, raterId: user.id });
-  return { submittedRuns, score, byKind, gate, certification: cert ? { passed: Boolean(cert.passed), certifiedAt: cert.certifiedAt ?? null } : null };
+  return {
+    submittedRuns,
+    score,
+    byKind,
+    gate,
+    certification: cert ? { passed: Boolean(cert.passed), certifiedAt: cert.certifiedAt ?? null } : null,
+  };
 }
 
 /** A run of the study with its calibration flag and the raters assigned to it (null when not in the study). */
 export async function calibrationRunInfo({ studyId, runId }: { studyId: number; runId: number }) {
-  const r = await db('runs').where({ id: runId, study_id: studyId }).first('id', 'is_calibration as isCalibration', 'sub', 'ses', 'task', 'acq', 'run_label as runLabel');
+  const r = await db('runs')
+    .where({ id: runId, study_id: studyId })
+    .first('id', 'is_calibration as isCalibration', 'sub', 'ses', 'task', 'acq', 'run_label as runLabel');
   if (!r) return null;
   const raters = (await db('assignments').where({ run_id: runId }).select('rater_id')).map((a: { rater_id: number }) => Number(a.rater_id));
   return { runId: Number(r.id), isCalibration: Boolean(r.isCalibration), name: nameOf(r), raterIds: raters };
@@ -323,8 +525,14 @@ export async function clearCalibrationFlag({ studyId, runId }: { studyId: number
 }
 
 export type CalibrationResultRow = {
-  componentId: number; idx: number; myLabel: string | null; myKind: string | null;
-  referenceLabel: string | null; referenceKind: string | null; reason: string | null; features: Record<string, number | null>;
+  componentId: number;
+  idx: number;
+  myLabel: string | null;
+  myKind: string | null;
+  referenceLabel: string | null;
+  referenceKind: string | null;
+  reason: string | null;
+  features: Record<string, number | null>;
 };
 
 /**
@@ -351,24 +559,49 @@ export async function calibrationResult({ studyId, runId, raterId }: { studyId: 
     .leftJoin('decisions as x', 'x.component_id', 'c.id')
     .where({ 'd.run_id': runId, 'd.is_current': true })
     .orderBy('c.idx')
-    .select('c.id', 'c.idx', 'c.features', 'v.label as myLabel', 'v.noise_kind as myKind', 'rl.label as referenceLabel', 'rl.noise_kind as referenceKind', 'x.reason');
+    .select(
+      'c.id',
+      'c.idx',
+      'c.features',
+      'v.label as myLabel',
+      'v.noise_kind as myKind',
+      'rl.label as referenceLabel',
+      'rl.noise_kind as referenceKind',
+      'x.reason',
+    );
   return {
-    runId, runName: nameOf(run), submittedAt: new Date(run.submittedAt).toISOString(),
+    runId,
+    runName: nameOf(run),
+    submittedAt: new Date(run.submittedAt).toISOString(),
     components: rows.map((r): CalibrationResultRow => ({
-      componentId: Number(r.id), idx: Number(r.idx), myLabel: r.myLabel ?? null, myKind: r.myKind ?? null,
-      referenceLabel: r.referenceLabel ?? null, referenceKind: r.referenceKind ?? null, reason: r.reason ?? null,
+      componentId: Number(r.id),
+      idx: Number(r.idx),
+      myLabel: r.myLabel ?? null,
+      myKind: r.myKind ?? null,
+      referenceLabel: r.referenceLabel ?? null,
+      referenceKind: r.referenceKind ?? null,
+      reason: r.reason ?? null,
       features: parseJson<Record<string, number | null>>(r.features, {}) ?? {},
     })),
   };
 }
 
-export type CalibrationHistoryEntry = { runId: number; runName: string; submittedAt: string; stillCalibration: boolean; score: CalibrationScore };
+export type CalibrationHistoryEntry = {
+  runId: number;
+  runName: string;
+  submittedAt: string;
+  stillCalibration: boolean;
+  score: CalibrationScore;
+};
 
 /**
  * The rater's calibration history, oldest first: one score per submitted run that has reference
  * labels — runs since unmarked included (stillCalibration false), so unmarking keeps the history.
  */
-export async function calibrationHistory({ studyId, userId }: { studyId: number; userId: number }, trx: Knex | Knex.Transaction = db): Promise<CalibrationHistoryEntry[]> {
+export async function calibrationHistory(
+  { studyId, userId }: { studyId: number; userId: number },
+  trx: Knex | Knex.Transaction = db,
+): Promise<CalibrationHistoryEntry[]> {
   const { categories } = await studyLabels(trx, studyId);
   const rows = (await trx('votes as v')
     .join('components as c', 'c.id', 'v.component_id')
@@ -381,13 +614,36 @@ export async function calibrationHistory({ studyId, userId }: { studyId: number;
     .where({ 'r.study_id': studyId, 'd.is_current': true, 'v.rater_id': userId })
     .whereNotNull('a.submitted_at')
     .orderBy([{ column: 'a.submitted_at' }, { column: 'r.id' }])
-    .select('v.label as rater', 'rl.label as reference', 'r.id as runId', 'r.is_calibration as isCalibration', 'a.submitted_at as submittedAt', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel')) as Array<{
-    rater: string; reference: string; runId: number; isCalibration: unknown; submittedAt: Date; sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null;
+    .select(
+      'v.label as rater',
+      'rl.label as reference',
+      'r.id as runId',
+      'r.is_calibration as isCalibration',
+      'a.submitted_at as submittedAt',
+      'r.sub',
+      'r.ses',
+      'r.task',
+      'r.acq',
+      'r.run_label as runLabel',
+    )) as Array<{
+    rater: string;
+    reference: string;
+    runId: number;
+    isCalibration: unknown;
+    submittedAt: Date;
+    sub: string;
+    ses: string | null;
+    task: string | null;
+    acq: string | null;
+    runLabel: string | null;
   }>;
   const byRun = new Map<number, typeof rows>();
   for (const r of rows) byRun.set(Number(r.runId), [...(byRun.get(Number(r.runId)) ?? []), r]);
   return [...byRun.values()].map((rs) => ({
-    runId: Number(rs[0]!.runId), runName: nameOf(rs[0]!), submittedAt: new Date(rs[0]!.submittedAt).toISOString(),
-    stillCalibration: Boolean(rs[0]!.isCalibration), score: scoreAgainstReference(rs, categories),
+    runId: Number(rs[0]!.runId),
+    runName: nameOf(rs[0]!),
+    submittedAt: new Date(rs[0]!.submittedAt).toISOString(),
+    stillCalibration: Boolean(rs[0]!.isCalibration),
+    score: scoreAgainstReference(rs, categories),
   }));
 }

@@ -102,7 +102,9 @@ export async function findAssignedRun(
 export async function isRunReleased({ runId }: { runId: number }, trx: Knex | Knex.Transaction = db): Promise<boolean> {
   const hit = await trx('releases')
     .where('run_id', runId)
-    .orWhereExists(trx('release_decisions').whereRaw('release_decisions.release_id = releases.id').andWhere('release_decisions.run_id', runId))
+    .orWhereExists(
+      trx('release_decisions').whereRaw('release_decisions.release_id = releases.id').andWhere('release_decisions.run_id', runId),
+    )
     .first('id');
   return Boolean(hit);
 }
@@ -134,7 +136,13 @@ export async function componentsOfDecomposition({ decompositionId }: { decomposi
   }));
 }
 
-type MotionSource = { runId: number; motionKey: string | null; motionOrder: string | null; motionRotationUnits: string | null; droppedVolumes: number };
+type MotionSource = {
+  runId: number;
+  motionKey: string | null;
+  motionOrder: string | null;
+  motionRotationUnits: string | null;
+  droppedVolumes: number;
+};
 
 /**
  * The run's motion parameters over the kept volumes: framewise displacement (mm), the three
@@ -144,7 +152,12 @@ export async function readRunMotion(run: MotionSource): Promise<{ fd: number[] |
   if (!run.motionKey) return { fd: null, motion: null };
   try {
     const text = await readFile(pathFor(run.motionKey), 'utf8');
-    const order = String(run.motionOrder ?? '').trim().toLowerCase().startsWith('r') ? 'rot-first' : 'trans-first';
+    const order = String(run.motionOrder ?? '')
+      .trim()
+      .toLowerCase()
+      .startsWith('r')
+      ? 'rot-first'
+      : 'trans-first';
     const motion = parseMotionFile(text, { order, rotationUnits: run.motionRotationUnits === 'degrees' ? 'degrees' : 'radians' });
     const kept = run.droppedVolumes > 0 ? dropInitialVolumes(motion, run.droppedVolumes) : motion;
     const deg = 180 / Math.PI;
@@ -193,10 +206,31 @@ export async function loadDeskComponents({ user, runId }: { user: Caller; runId:
 }
 
 /** The storage key of one of the run's decomposition files, for the assigned rater. */
-export async function findRunFileKey({ user, runId, file }: { user: Caller; runId: number; file: 'components.nii.gz' | 'mean.nii.gz' | 'mask.nii.gz' | 'structural.nii.gz' }) {
+export async function findRunFileKey({
+  user,
+  runId,
+  file,
+}: {
+  user: Caller;
+  runId: number;
+  file: 'components.nii.gz' | 'mean.nii.gz' | 'mask.nii.gz' | 'structural.nii.gz';
+}) {
   const run = await findAssignedRun({ user, runId });
-  const key = file === 'components.nii.gz' ? run.componentsKey : file === 'mean.nii.gz' ? run.meanKey : file === 'mask.nii.gz' ? run.maskKey : run.structuralKey;
-  if (!key) throw new AppError('not_found', file === 'structural.nii.gz' ? `Run ${runId} has no structural image; a study lead can attach one.` : `Run ${runId} has no ${file} yet; its decomposition did not write it.`);
+  const key =
+    file === 'components.nii.gz'
+      ? run.componentsKey
+      : file === 'mean.nii.gz'
+        ? run.meanKey
+        : file === 'mask.nii.gz'
+          ? run.maskKey
+          : run.structuralKey;
+  if (!key)
+    throw new AppError(
+      'not_found',
+      file === 'structural.nii.gz'
+        ? `Run ${runId} has no structural image; a study lead can attach one.`
+        : `Run ${runId} has no ${file} yet; its decomposition did not write it.`,
+    );
   return { key: key as string, decompositionId: run.decompositionId as number };
 }
 
@@ -235,7 +269,8 @@ export async function submitRun({ user, runId, ip }: { user: Caller; runId: numb
       .select('c.id', 'c.idx', 'c.features');
     // components the study hides from raters (low reproducibility) need no vote: the lead decides them
     const hides = run.reproducibilityRule.policy === 'hide';
-    const isHidden = (r: { features: unknown }) => hides && isLowReproducibility(parseJson<Record<string, number | null>>(r.features, {}) ?? {}, run.reproducibilityRule.threshold);
+    const isHidden = (r: { features: unknown }) =>
+      hides && isLowReproducibility(parseJson<Record<string, number | null>>(r.features, {}) ?? {}, run.reproducibilityRule.threshold);
     const missing = unlabelled.filter((r) => !isHidden(r)).map((r) => r.idx as number);
     for (const r of unlabelled.filter(isHidden)) await recomputeDecision(trx, { componentId: r.id as number }); // a pending decision the lead sees in Reconcile
     if (missing.length) {
@@ -246,7 +281,9 @@ export async function submitRun({ user, runId, ip }: { user: Caller; runId: numb
       );
     }
     const now = new Date();
-    await trx('assignments').where({ id: run.assignmentId }).update({ submitted_at: now, first_submitted_at: trx.raw('COALESCE(first_submitted_at, ?)', [now]) });
+    await trx('assignments')
+      .where({ id: run.assignmentId })
+      .update({ submitted_at: now, first_submitted_at: trx.raw('COALESCE(first_submitted_at, ?)', [now]) });
     // the votes as first submitted: agreement reads these; a later (reopened) change never replaces them
     await trx.raw(
       `INSERT INTO submitted_votes (component_id, run_id, rater_id, label, noise_kind, confidence, note, submitted_at)
@@ -258,7 +295,15 @@ export async function submitRun({ user, runId, ip }: { user: Caller; runId: numb
     );
     await queueVotesCompleteCheck(trx); // the lead hears promptly when the last rater submits
     await recordAudit(
-      { actorId: user.id, action: 'run.submit', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { components: run.k, ...(run.firstSubmittedAt ? { resubmit: true, reopenCount: run.reopenCount } : {}) }, ip },
+      {
+        actorId: user.id,
+        action: 'run.submit',
+        targetType: 'run',
+        targetId: runId,
+        studyId: run.studyId,
+        detail: { components: run.k, ...(run.firstSubmittedAt ? { resubmit: true, reopenCount: run.reopenCount } : {}) },
+        ip,
+      },
       trx,
     );
     return { submittedAt: now.toISOString(), already: false };

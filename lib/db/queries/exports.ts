@@ -16,9 +16,15 @@ export type DenoiseJob = {
 };
 
 /** Locks the run row (serialises denoise requests for one run) and returns the payloads of its queued or running denoise jobs. */
-export async function lockActiveDenoiseJobs(trx: Knex.Transaction, { runId }: { runId: number }): Promise<{ jobId: number; payload: unknown }[]> {
+export async function lockActiveDenoiseJobs(
+  trx: Knex.Transaction,
+  { runId }: { runId: number },
+): Promise<{ jobId: number; payload: unknown }[]> {
   await trx('runs').where({ id: runId }).forUpdate().first('id');
-  const active = await trx('jobs').where({ run_id: runId, kind: 'denoise' }).whereIn('status', ['queued', 'running']).select('id', 'payload');
+  const active = await trx('jobs')
+    .where({ run_id: runId, kind: 'denoise' })
+    .whereIn('status', ['queued', 'running'])
+    .select('id', 'payload');
   return active.map((j: { id: number; payload: unknown }) => ({ jobId: Number(j.id), payload: parseJson(j.payload) }));
 }
 

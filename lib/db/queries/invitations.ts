@@ -62,8 +62,16 @@ export async function findPendingInvitation({ email, now = new Date() }: { email
 }
 
 /** The unused, unrevoked invitations to an address, locked for the caller's transaction. */
-export async function lockUnusedInvitations(trx: Knex.Transaction, { email }: { email: string }): Promise<{ id: number; role: Role | null; study_id: number | null; study_role: StudyRole | null }[]> {
-  return trx('invitations').where({ email, kind: 'invite' }).whereNull('used_at').whereNull('revoked_at').forUpdate().select('id', 'role', 'study_id', 'study_role');
+export async function lockUnusedInvitations(
+  trx: Knex.Transaction,
+  { email }: { email: string },
+): Promise<{ id: number; role: Role | null; study_id: number | null; study_role: StudyRole | null }[]> {
+  return trx('invitations')
+    .where({ email, kind: 'invite' })
+    .whereNull('used_at')
+    .whereNull('revoked_at')
+    .forUpdate()
+    .select('id', 'role', 'study_id', 'study_role');
 }
 
 /** Marks links withdrawn. */
@@ -74,7 +82,25 @@ export async function markLinksRevoked(trx: Knex.Transaction, { ids, now }: { id
 /** Writes an invitation link (the token's hash only); returns its id. */
 export async function insertInvitation(
   trx: Knex.Transaction,
-  { tokenHash, email, role, studyId, studyRole, invitedBy, expiresAt, now }: { tokenHash: string; email: string; role: Role; studyId: number | null; studyRole: StudyRole | null; invitedBy: number; expiresAt: Date; now: Date },
+  {
+    tokenHash,
+    email,
+    role,
+    studyId,
+    studyRole,
+    invitedBy,
+    expiresAt,
+    now,
+  }: {
+    tokenHash: string;
+    email: string;
+    role: Role;
+    studyId: number | null;
+    studyRole: StudyRole | null;
+    invitedBy: number;
+    expiresAt: Date;
+    now: Date;
+  },
 ): Promise<number> {
   const [inserted] = await trx('invitations').insert({
     kind: 'invite',
@@ -92,11 +118,18 @@ export async function insertInvitation(
 
 /** Withdraws a user's unused reset links. */
 export async function revokeUnusedResets(trx: Knex.Transaction, { userId, now }: { userId: number; now: Date }): Promise<void> {
-  await trx('invitations').where({ user_id: userId, kind: 'reset' }).whereNull('used_at').whereNull('revoked_at').update({ revoked_at: now });
+  await trx('invitations')
+    .where({ user_id: userId, kind: 'reset' })
+    .whereNull('used_at')
+    .whereNull('revoked_at')
+    .update({ revoked_at: now });
 }
 
 /** Writes a password-reset link (the token's hash only); returns its id. */
-export async function insertPasswordReset(trx: Knex.Transaction, { tokenHash, email, userId, expiresAt, now }: { tokenHash: string; email: string; userId: number; expiresAt: Date; now: Date }): Promise<number> {
+export async function insertPasswordReset(
+  trx: Knex.Transaction,
+  { tokenHash, email, userId, expiresAt, now }: { tokenHash: string; email: string; userId: number; expiresAt: Date; now: Date },
+): Promise<number> {
   const [inserted] = await trx('invitations').insert({
     kind: 'reset',
     token_hash: tokenHash,
@@ -109,13 +142,22 @@ export async function insertPasswordReset(trx: Knex.Transaction, { tokenHash, em
 }
 
 /** The link with a token's hash (any state), or null when no such token was issued. */
-export async function findLinkByTokenHash({ tokenHash, kind }: { tokenHash: string; kind: 'invite' | 'reset' }): Promise<LinkRecord | null> {
+export async function findLinkByTokenHash({
+  tokenHash,
+  kind,
+}: {
+  tokenHash: string;
+  kind: 'invite' | 'reset';
+}): Promise<LinkRecord | null> {
   const row = await links().where({ 'i.token_hash': tokenHash, 'i.kind': kind }).first();
   return (row as LinkRecord | undefined) ?? null;
 }
 
 /** The link with a token's hash, its row locked for the caller's transaction; null when there is none. */
-export async function lockLinkByTokenHash(trx: Knex.Transaction, { tokenHash, kind }: { tokenHash: string; kind: 'invite' | 'reset' }): Promise<LinkRecord | null> {
+export async function lockLinkByTokenHash(
+  trx: Knex.Transaction,
+  { tokenHash, kind }: { tokenHash: string; kind: 'invite' | 'reset' },
+): Promise<LinkRecord | null> {
   const locked = await trx('invitations').where({ token_hash: tokenHash, kind }).forUpdate().first('id');
   return locked ? ((await links(trx).where('i.id', locked.id).first()) as LinkRecord) : null;
 }
@@ -126,8 +168,17 @@ export async function accountWithEmailExists(trx: Knex.Transaction, { email }: {
 }
 
 /** Creates the invited account (with the invitation's role) and its study membership when the invitation names one; returns its id. */
-export async function insertInvitedAccount(trx: Knex.Transaction, { link, name, passwordHash }: { link: LinkRecord; name: string; passwordHash: string }): Promise<number> {
-  const [userId] = await trx('users').insert({ email: link.email, name, password_hash: passwordHash, role: link.role ?? 'rater', active: true });
+export async function insertInvitedAccount(
+  trx: Knex.Transaction,
+  { link, name, passwordHash }: { link: LinkRecord; name: string; passwordHash: string },
+): Promise<number> {
+  const [userId] = await trx('users').insert({
+    email: link.email,
+    name,
+    password_hash: passwordHash,
+    role: link.role ?? 'rater',
+    active: true,
+  });
   if (link.studyId && link.studyRole) {
     await trx('study_members').insert({ study_id: link.studyId, user_id: userId, study_role: link.studyRole, added_by: link.invitedBy });
   }
@@ -136,17 +187,27 @@ export async function insertInvitedAccount(trx: Knex.Transaction, { link, name, 
 
 /** Marks a link used (by the account it created or reset). */
 export async function markLinkUsed(trx: Knex.Transaction, { id, now, userId }: { id: number; now: Date; userId?: number }): Promise<void> {
-  await trx('invitations').where({ id }).update(userId === undefined ? { used_at: now } : { used_at: now, user_id: userId });
+  await trx('invitations')
+    .where({ id })
+    .update(userId === undefined ? { used_at: now } : { used_at: now, user_id: userId });
 }
 
 /** An account's id and active flag (inside the caller's transaction). */
-export async function findAccountState(trx: Knex.Transaction, { userId }: { userId: number | null }): Promise<{ id: number; active: boolean } | undefined> {
+export async function findAccountState(
+  trx: Knex.Transaction,
+  { userId }: { userId: number | null },
+): Promise<{ id: number; active: boolean } | undefined> {
   return trx('users').where({ id: userId }).first('id', 'active');
 }
 
 /** Sets a new password hash and raises the session version (every session of the account ends). */
-export async function writePasswordEndingSessions(trx: Knex.Transaction, { userId, passwordHash, now }: { userId: number; passwordHash: string; now: Date }): Promise<void> {
-  await trx('users').where({ id: userId }).update({ password_hash: passwordHash, session_version: trx.raw('session_version + 1'), updated_at: now });
+export async function writePasswordEndingSessions(
+  trx: Knex.Transaction,
+  { userId, passwordHash, now }: { userId: number; passwordHash: string; now: Date },
+): Promise<void> {
+  await trx('users')
+    .where({ id: userId })
+    .update({ password_hash: passwordHash, session_version: trx.raw('session_version + 1'), updated_at: now });
 }
 
 /** Invitations for the facility page, newest first (all, or only those one person sent). */
@@ -157,8 +218,16 @@ export async function listInvitationLinks({ invitedBy, limit = 200 }: { invitedB
 }
 
 /** An unused invitation, its row locked; undefined when there is none to withdraw. */
-export async function lockUnusedInvitation(trx: Knex.Transaction, { id }: { id: number }): Promise<{ id: number; email: string; study_id: number | null } | undefined> {
-  return trx('invitations').where({ id, kind: 'invite' }).whereNull('used_at').whereNull('revoked_at').forUpdate().first('id', 'email', 'study_id');
+export async function lockUnusedInvitation(
+  trx: Knex.Transaction,
+  { id }: { id: number },
+): Promise<{ id: number; email: string; study_id: number | null } | undefined> {
+  return trx('invitations')
+    .where({ id, kind: 'invite' })
+    .whereNull('used_at')
+    .whereNull('revoked_at')
+    .forUpdate()
+    .first('id', 'email', 'study_id');
 }
 
 /** A study's name (null when there is no such study). */

@@ -5,17 +5,53 @@ import { db as defaultDb } from '@/lib/db/knex';
 export type OutboxMail = { id: number; toEmail: string; template: string | null; status: string; sealed: string | null };
 
 /** A message about to be sent now by the caller (status 'sending'); returns its id. */
-export async function insertSendingMail({ to, subject, text, html, template }: { to: string; subject: string; text: string; html: string; template: string }): Promise<number> {
-  const [id] = await defaultDb('mail_outbox').insert({ to_email: to, subject: subject.slice(0, 255), text_body: text, html_body: html, template, status: 'sending', attempts: 1 });
+export async function insertSendingMail({
+  to,
+  subject,
+  text,
+  html,
+  template,
+}: {
+  to: string;
+  subject: string;
+  text: string;
+  html: string;
+  template: string;
+}): Promise<number> {
+  const [id] = await defaultDb('mail_outbox').insert({
+    to_email: to,
+    subject: subject.slice(0, 255),
+    text_body: text,
+    html_body: html,
+    template,
+    status: 'sending',
+    attempts: 1,
+  });
   return Number(id);
 }
 
 /** A message for the send-mail job: readable copy without secrets, the full message sealed. */
 export async function insertQueuedMail(
-  { to, subject, text, html, template, sealed }: { to: string; subject: string; text: string; html: string; template: string; sealed: string },
+  {
+    to,
+    subject,
+    text,
+    html,
+    template,
+    sealed,
+  }: { to: string; subject: string; text: string; html: string; template: string; sealed: string },
   trx: Knex = defaultDb,
 ): Promise<number> {
-  const [id] = await trx('mail_outbox').insert({ to_email: to, subject: subject.slice(0, 255), text_body: text, html_body: html, template, status: 'queued', attempts: 0, sealed });
+  const [id] = await trx('mail_outbox').insert({
+    to_email: to,
+    subject: subject.slice(0, 255),
+    text_body: text,
+    html_body: html,
+    template,
+    status: 'queued',
+    attempts: 0,
+    sealed,
+  });
   return Number(id);
 }
 
@@ -25,10 +61,19 @@ export async function findOutboxMail({ id }: { id: number }, trx: Knex = default
 }
 
 /** Sent: the sealed copy is dropped, so no live link stays behind. */
-export async function markMailSent({ id, countAttempt = false }: { id: number; countAttempt?: boolean }, trx: Knex = defaultDb): Promise<void> {
+export async function markMailSent(
+  { id, countAttempt = false }: { id: number; countAttempt?: boolean },
+  trx: Knex = defaultDb,
+): Promise<void> {
   await trx('mail_outbox')
     .where({ id })
-    .update({ status: 'sent', sent_at: trx.fn.now(3), sealed: null, last_error: null, ...(countAttempt ? { attempts: trx.raw('attempts + 1') } : {}) });
+    .update({
+      status: 'sent',
+      sent_at: trx.fn.now(3),
+      sealed: null,
+      last_error: null,
+      ...(countAttempt ? { attempts: trx.raw('attempts + 1') } : {}),
+    });
 }
 
 /** A failed attempt; `final` also drops the sealed copy (nothing will send it any more). */

@@ -24,23 +24,36 @@ export async function listMembers({ studyId }: { studyId: number }): Promise<Stu
 }
 
 /** An account by e-mail, for adding it to a study. */
-export async function findAccountForMembership({ email }: { email: string }): Promise<{ id: number; name: string; role: Role; active: boolean } | undefined> {
+export async function findAccountForMembership({
+  email,
+}: {
+  email: string;
+}): Promise<{ id: number; name: string; role: Role; active: boolean } | undefined> {
   return db('users').where({ email: email.trim().toLowerCase() }).first('id', 'name', 'role', 'active');
 }
 
 /** The member's study role, the row locked for the caller's transaction. */
-export async function lockMembership(trx: Knex.Transaction, { studyId, userId }: { studyId: number; userId: number }): Promise<{ study_role: StudyRole } | undefined> {
+export async function lockMembership(
+  trx: Knex.Transaction,
+  { studyId, userId }: { studyId: number; userId: number },
+): Promise<{ study_role: StudyRole } | undefined> {
   return trx('study_members').where({ study_id: studyId, user_id: userId }).forUpdate().first('study_role');
 }
 
 /** How many leads the study has besides `userId`. */
 export async function countOtherLeads(trx: Knex.Transaction, { studyId, userId }: { studyId: number; userId: number }): Promise<number> {
-  const others = await trx('study_members').where({ study_id: studyId, study_role: 'lead' }).whereNot({ user_id: userId }).count({ n: '*' });
+  const others = await trx('study_members')
+    .where({ study_id: studyId, study_role: 'lead' })
+    .whereNot({ user_id: userId })
+    .count({ n: '*' });
   return Number(others[0].n);
 }
 
 /** Adds a member, or changes the study role of one. */
-export async function upsertMembership(trx: Knex.Transaction, { studyId, userId, studyRole, addedBy }: { studyId: number; userId: number; studyRole: StudyRole; addedBy: number }): Promise<void> {
+export async function upsertMembership(
+  trx: Knex.Transaction,
+  { studyId, userId, studyRole, addedBy }: { studyId: number; userId: number; studyRole: StudyRole; addedBy: number },
+): Promise<void> {
   await trx('study_members')
     .insert({ study_id: studyId, user_id: userId, study_role: studyRole, added_by: addedBy })
     .onConflict(['study_id', 'user_id'])
@@ -59,7 +72,15 @@ export type AccountCandidate = { userId: number; name: string; email: string; ro
  * each already holds in the study. Only what the member picker shows: id, name, e-mail, facility
  * role — never deactivated accounts, sign-in times or anything else of the account.
  */
-export async function searchAccounts({ studyId, q, limit }: { studyId: number; q: string; limit: number }): Promise<{ accounts: AccountCandidate[]; more: boolean }> {
+export async function searchAccounts({
+  studyId,
+  q,
+  limit,
+}: {
+  studyId: number;
+  q: string;
+  limit: number;
+}): Promise<{ accounts: AccountCandidate[]; more: boolean }> {
   const like = `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
   const rows = await db('users as u')
     .leftJoin('study_members as m', function () {
@@ -71,7 +92,9 @@ export async function searchAccounts({ studyId, q, limit }: { studyId: number; q
     .limit(limit + 1)
     .select('u.id as userId', 'u.name', 'u.email', 'u.role', 'm.study_role as studyRole');
   return {
-    accounts: rows.slice(0, limit).map((r) => ({ userId: Number(r.userId), name: r.name, email: r.email, role: r.role, studyRole: r.studyRole ?? null })),
+    accounts: rows
+      .slice(0, limit)
+      .map((r) => ({ userId: Number(r.userId), name: r.name, email: r.email, role: r.role, studyRole: r.studyRole ?? null })),
     more: rows.length > limit,
   };
 }

@@ -62,13 +62,21 @@ export async function lockActiveAdmins(trx: Knex.Transaction): Promise<number[]>
 }
 
 /** A user's role, active flag and e-mail, the row locked. */
-export async function lockAccount(trx: Knex.Transaction, { userId }: { userId: number }): Promise<{ id: number; role: Role; active: boolean; email: string } | null> {
+export async function lockAccount(
+  trx: Knex.Transaction,
+  { userId }: { userId: number },
+): Promise<{ id: number; role: Role; active: boolean; email: string } | null> {
   const target = await trx('users').where({ id: userId }).forUpdate().first('id', 'role', 'active', 'email');
   return target ? { id: target.id, role: target.role as Role, active: Boolean(target.active), email: target.email } : null;
 }
 
 /** Writes a user's role and active flag; `endSessions` raises the session version (signs them out everywhere). */
-export async function writeAccess(trx: Knex.Transaction, { userId, role, active, endSessions }: { userId: number; role: Role; active: boolean; endSessions: boolean }): Promise<void> {
+export async function writeAccess(
+  trx: Knex.Transaction,
+  { userId, role, active, endSessions }: { userId: number; role: Role; active: boolean; endSessions: boolean },
+): Promise<void> {
   const bump = endSessions ? { session_version: trx.raw('session_version + 1') } : {};
-  await trx('users').where({ id: userId }).update({ role, active, ...bump, updated_at: trx.fn.now(3) });
+  await trx('users')
+    .where({ id: userId })
+    .update({ role, active, ...bump, updated_at: trx.fn.now(3) });
 }

@@ -65,6 +65,11 @@ export async function loadRunShapes({ runId }: { runId: number }) {
       hidden: 0,
     },
   };
-  const files = { 'components.nii.gz': run.componentsKey, 'mean.nii.gz': run.meanKey, 'mask.nii.gz': run.maskKey, 'structural.nii.gz': run.structuralKey } as Record<string, string | null>;
+  const files = {
+    'components.nii.gz': run.componentsKey,
+    'mean.nii.gz': run.meanKey,
+    'mask.nii.gz': run.maskKey,
+    'structural.nii.gz': run.structuralKey,
+  } as Record<string, string | null>;
   return { run: deskRun, components, files };
 }

@@ -38,8 +38,11 @@ export async function releaseReadiness(s: ReleaseScope, q: Knex | Knex.Transacti
       q.raw("SUM(CASE WHEN x.id IS NOT NULL AND (x.method = 'pending' OR x.label IS NULL) THEN 1 ELSE 0 END) as pending"),
       q.raw('SUM(CASE WHEN x.id IS NULL THEN 1 ELSE 0 END) as undecided'),
     );
-  const notReadyQ = q('runs').where({ study_id: s.studyId, is_calibration: false }).whereNot('status', 'ready').select('id as runId', 'status');
-  const notReady = s.runId ? (await notReadyQ.where('id', s.runId)) : await notReadyQ;
+  const notReadyQ = q('runs')
+    .where({ study_id: s.studyId, is_calibration: false })
+    .whereNot('status', 'ready')
+    .select('id as runId', 'status');
+  const notReady = s.runId ? await notReadyQ.where('id', s.runId) : await notReadyQ;
   const reopenedQ = q('assignments as a')
     .join('runs as r', 'r.id', 'a.run_id')
     .join('users as u', 'u.id', 'a.rater_id')
@@ -60,15 +63,43 @@ export async function releaseReadiness(s: ReleaseScope, q: Knex | Knex.Transacti
 }
 
 /** Per run of the study (non-calibration, with a current decomposition): components and how many still wait. */
-export async function runReadiness({ studyId }: { studyId: number }): Promise<{ runId: number; sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null; components: number; waiting: number }[]> {
+export async function runReadiness({ studyId }: { studyId: number }): Promise<
+  {
+    runId: number;
+    sub: string;
+    ses: string | null;
+    task: string | null;
+    acq: string | null;
+    runLabel: string | null;
+    components: number;
+    waiting: number;
+  }[]
+> {
   const rows = await scopedRuns(db, { studyId })
     .join('components as c', 'c.decomposition_id', 'd.id')
     .leftJoin('decisions as x', 'x.component_id', 'c.id')
     .groupBy('r.id', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label')
     .orderBy(['r.sub', 'r.ses', 'r.task', 'r.run_label', 'r.id'])
-    .select('r.id as runId', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel', db.raw('COUNT(c.id) as components'),
-      db.raw("SUM(CASE WHEN x.id IS NULL OR x.method = 'pending' OR x.label IS NULL THEN 1 ELSE 0 END) as waiting"));
-  return rows.map((r: Record<string, unknown>) => ({ runId: Number(r.runId), sub: String(r.sub), ses: (r.ses as string) ?? null, task: (r.task as string) ?? null, acq: (r.acq as string) ?? null, runLabel: (r.runLabel as string) ?? null, components: Number(r.components), waiting: Number(r.waiting) }));
+    .select(
+      'r.id as runId',
+      'r.sub',
+      'r.ses',
+      'r.task',
+      'r.acq',
+      'r.run_label as runLabel',
+      db.raw('COUNT(c.id) as components'),
+      db.raw("SUM(CASE WHEN x.id IS NULL OR x.method = 'pending' OR x.label IS NULL THEN 1 ELSE 0 END) as waiting"),
+    );
+  return rows.map((r: Record<string, unknown>) => ({
+    runId: Number(r.runId),
+    sub: String(r.sub),
+    ses: (r.ses as string) ?? null,
+    task: (r.task as string) ?? null,
+    acq: (r.acq as string) ?? null,
+    runLabel: (r.runLabel as string) ?? null,
+    components: Number(r.components),
+    waiting: Number(r.waiting),
+  }));
 }
 
 export type ExportRun = {
@@ -104,12 +135,30 @@ export type ExportRun = {
 };
 
 /** Everything the export files of the scope need, read in the caller's transaction (the frozen snapshot). */
-export async function loadExportRuns(s: ReleaseScope, q: Knex | Knex.Transaction = db, opts: { timecourses?: boolean } = {}): Promise<ExportRun[]> {
+export async function loadExportRuns(
+  s: ReleaseScope,
+  q: Knex | Knex.Transaction = db,
+  opts: { timecourses?: boolean } = {},
+): Promise<ExportRun[]> {
   const runs = await scopedRuns(q as Knex, s)
     .orderBy(['r.sub', 'r.ses', 'r.task', 'r.run_label', 'r.id'])
     .select(
-      'r.id as runId', 'r.sub', 'r.ses', 'r.task', 'r.acq', 'r.run_label as runLabel', 'r.tr_seconds as trSeconds', 'r.motion_key as motionKey',
-      'd.id as decompositionId', 'd.parameters', 'd.summary', 'd.components_key as componentsKey', 'd.components_sha256 as componentsSha256', 'd.components_bytes as componentsBytes', 'd.mask_key as maskKey', 'd.k',
+      'r.id as runId',
+      'r.sub',
+      'r.ses',
+      'r.task',
+      'r.acq',
+      'r.run_label as runLabel',
+      'r.tr_seconds as trSeconds',
+      'r.motion_key as motionKey',
+      'd.id as decompositionId',
+      'd.parameters',
+      'd.summary',
+      'd.components_key as componentsKey',
+      'd.components_sha256 as componentsSha256',
+      'd.components_bytes as componentsBytes',
+      'd.mask_key as maskKey',
+      'd.k',
     );
   if (!runs.length) return [];
   const decIds = runs.map((r: { decompositionId: number }) => r.decompositionId);
@@ -117,8 +166,18 @@ export async function loadExportRuns(s: ReleaseScope, q: Knex | Knex.Transaction
     .leftJoin('decisions as x', 'x.component_id', 'c.id')
     .whereIn('c.decomposition_id', decIds)
     .orderBy(['c.decomposition_id', 'c.idx'])
-    .select('c.id as componentId', 'c.decomposition_id as decompositionId', 'c.idx', 'c.variance_explained as varianceExplained', 'c.features', ...(opts.timecourses === false ? [] : ['c.timecourse']),
-      'x.label', 'x.noise_kind as noiseKind', 'x.method', 'x.reason');
+    .select(
+      'c.id as componentId',
+      'c.decomposition_id as decompositionId',
+      'c.idx',
+      'c.variance_explained as varianceExplained',
+      'c.features',
+      ...(opts.timecourses === false ? [] : ['c.timecourse']),
+      'x.label',
+      'x.noise_kind as noiseKind',
+      'x.method',
+      'x.reason',
+    );
   const votes = await q('votes as v')
     .join('components as c', 'c.id', 'v.component_id')
     .join('assignments as a', function () {
@@ -196,7 +255,15 @@ export type ReleaseManifest = {
   /** 'quorum-release/1' for releases made before the desc-decisions rename (lib/exports/format.ts). */
   format: 'quorum-release/1' | 'quorum-release/2';
   study: { id: number; name: string };
-  release: { id: number; version: number; scope: 'study' | 'run'; runId: number | null; releasedAt: string; releasedBy: { id: number; name: string }; notes: string | null };
+  release: {
+    id: number;
+    version: number;
+    scope: 'study' | 'run';
+    runId: number | null;
+    releasedAt: string;
+    releasedBy: { id: number; name: string };
+    notes: string | null;
+  };
   software: { name: 'Quorum'; version: string };
   cautions: readonly string[];
   protocol: Record<string, unknown>;
@@ -207,7 +274,17 @@ export type ReleaseManifest = {
   files: ManifestFile[];
 };
 
-const RELEASE_COLUMNS = ['rl.id', 'rl.study_id as studyId', 'rl.run_id as runId', 'rl.version', 'rl.released_by as releasedBy', 'u.name as releasedByName', 'rl.released_at as releasedAt', 'rl.notes', 'rl.manifest'];
+const RELEASE_COLUMNS = [
+  'rl.id',
+  'rl.study_id as studyId',
+  'rl.run_id as runId',
+  'rl.version',
+  'rl.released_by as releasedBy',
+  'u.name as releasedByName',
+  'rl.released_at as releasedAt',
+  'rl.notes',
+  'rl.manifest',
+];
 
 function toRelease(r: Record<string, unknown>): ReleaseRow {
   return {
@@ -225,7 +302,11 @@ function toRelease(r: Record<string, unknown>): ReleaseRow {
 
 /** Releases of a study, newest first (scope the study with findStudyAccess first). */
 export async function listReleases({ studyId }: { studyId: number }): Promise<ReleaseRow[]> {
-  const rows = await db('releases as rl').join('users as u', 'u.id', 'rl.released_by').where('rl.study_id', studyId).orderBy('rl.id', 'desc').select(RELEASE_COLUMNS);
+  const rows = await db('releases as rl')
+    .join('users as u', 'u.id', 'rl.released_by')
+    .where('rl.study_id', studyId)
+    .orderBy('rl.id', 'desc')
+    .select(RELEASE_COLUMNS);
   return rows.map(toRelease);
 }
 
@@ -237,7 +318,10 @@ export async function findRelease({ releaseId }: { releaseId: number }): Promise
 
 /** The frozen decisions of a release. */
 export async function releaseDecisions({ releaseId }: { releaseId: number }) {
-  return db('release_decisions').where({ release_id: releaseId }).orderBy(['run_id', 'idx']).select('component_id as componentId', 'run_id as runId', 'idx', 'label', 'noise_kind as noiseKind', 'method');
+  return db('release_decisions')
+    .where({ release_id: releaseId })
+    .orderBy(['run_id', 'idx'])
+    .select('component_id as componentId', 'run_id as runId', 'idx', 'label', 'noise_kind as noiseKind', 'method');
 }
 
 /** Components whose current decision differs from the latest release of the same scope (0 when none). */
@@ -253,14 +337,28 @@ export async function changedSinceRelease({ releaseId }: { releaseId: number }):
 }
 
 /** Stores the component-map checksum of a decomposition stored before checksums were kept. */
-export async function storeMapChecksum(decompositionId: number, c: { sha256: string; bytes: number }, q: Knex | Knex.Transaction = db): Promise<void> {
-  await q('decompositions').where({ id: decompositionId }).whereNull('components_sha256').update({ components_sha256: c.sha256, components_bytes: c.bytes });
+export async function storeMapChecksum(
+  decompositionId: number,
+  c: { sha256: string; bytes: number },
+  q: Knex | Knex.Transaction = db,
+): Promise<void> {
+  await q('decompositions')
+    .where({ id: decompositionId })
+    .whereNull('components_sha256')
+    .update({ components_sha256: c.sha256, components_bytes: c.bytes });
 }
 
 /** The open (queued or running) release job of a scope (of any scope when runId is undefined), if any: a second request joins it. */
 export async function openReleaseJob({ studyId, runId }: ReleaseScope, q: Knex | Knex.Transaction = db): Promise<number | null> {
-  const rows = await q('jobs').where({ kind: 'release', study_id: studyId }).whereIn('status', ['queued', 'running']).orderBy('id').select('id', 'payload');
-  const same = rows.find((r: { payload: unknown }) => runId === undefined || (parseJson<{ runId?: number | null }>(r.payload, {})?.runId ?? null) === (runId ?? null));
+  const rows = await q('jobs')
+    .where({ kind: 'release', study_id: studyId })
+    .whereIn('status', ['queued', 'running'])
+    .orderBy('id')
+    .select('id', 'payload');
+  const same = rows.find(
+    (r: { payload: unknown }) =>
+      runId === undefined || (parseJson<{ runId?: number | null }>(r.payload, {})?.runId ?? null) === (runId ?? null),
+  );
   return same ? Number(same.id) : null;
 }
 
@@ -277,7 +375,9 @@ export async function storedAgreementReport({ releaseId }: { releaseId: number }
 
 /** A release job of a study as its page follows it (null when there is no such job). */
 export async function findReleaseJob({ studyId, jobId }: { studyId: number; jobId: number }) {
-  const row = await db('jobs').where({ id: jobId, kind: 'release', study_id: studyId }).first('id', 'status', 'stage', 'percent', 'message', 'result');
+  const row = await db('jobs')
+    .where({ id: jobId, kind: 'release', study_id: studyId })
+    .first('id', 'status', 'stage', 'percent', 'message', 'result');
   if (!row) return null;
   return {
     jobId: Number(row.id),

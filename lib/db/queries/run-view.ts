@@ -18,7 +18,13 @@ export type RunViewRole = 'lead' | 'observer';
 export async function loadRunForViewing({ user, runId }: { user: Viewer; runId: number }) {
   const studyId = (await db('runs').where({ id: runId, status: 'ready' }).first('study_id'))?.study_id as number | undefined;
   const access = studyId ? await findStudyAccess({ user, studyId }) : null;
-  const role: RunViewRole | null = !access ? null : access.isAdmin || access.studyRole === 'lead' ? 'lead' : access.studyRole === 'observer' ? 'observer' : null;
+  const role: RunViewRole | null = !access
+    ? null
+    : access.isAdmin || access.studyRole === 'lead'
+      ? 'lead'
+      : access.studyRole === 'observer'
+        ? 'observer'
+        : null;
   if (!role) return null;
   const shapes = await loadRunShapes({ runId });
   return shapes ? { ...shapes, role } : null;

@@ -81,7 +81,11 @@ function scopeRuns(query: Knex.QueryBuilder, user: Scoped['user']): Knex.QueryBu
   if (user.role === 'admin') return query;
   return query.where(function () {
     this.whereExists(
-      db('study_members as m').whereRaw('m.study_id = r.study_id').andWhere('m.user_id', user.id).whereIn('m.study_role', ['lead', 'observer']).select(db.raw('1')),
+      db('study_members as m')
+        .whereRaw('m.study_id = r.study_id')
+        .andWhere('m.user_id', user.id)
+        .whereIn('m.study_role', ['lead', 'observer'])
+        .select(db.raw('1')),
     ).orWhereExists(db('assignments as a').whereRaw('a.run_id = r.id').andWhere('a.rater_id', user.id).select(db.raw('1')));
   });
 }
@@ -91,7 +95,10 @@ function scopeManaged(query: Knex.QueryBuilder, user: Scoped['user']): Knex.Quer
   if (user.role === 'admin') return query;
   if (user.role !== 'lead') return query.whereRaw('1 = 0');
   return query.whereExists(
-    db('study_members as m').whereRaw('m.study_id = r.study_id').andWhere({ 'm.user_id': user.id, 'm.study_role': 'lead' }).select(db.raw('1')),
+    db('study_members as m')
+      .whereRaw('m.study_id = r.study_id')
+      .andWhere({ 'm.user_id': user.id, 'm.study_role': 'lead' })
+      .select(db.raw('1')),
   );
 }
 
@@ -101,7 +108,10 @@ export async function findRunForUser({ user, runId }: Scoped & { runId: number }
 }
 
 /** A run the user may change, or null. */
-export async function findManagedRun({ user, runId }: Scoped & { runId: number }, trx: Knex | Knex.Transaction = db): Promise<RunRecord | null> {
+export async function findManagedRun(
+  { user, runId }: Scoped & { runId: number },
+  trx: Knex | Knex.Transaction = db,
+): Promise<RunRecord | null> {
   const q = trx('runs as r').where('r.id', runId).first(recordColumns);
   return (await scopeManaged(q, user)) ?? null;
 }
@@ -156,42 +166,42 @@ export async function listRunsForStudy({ user, studyId, runId }: Scoped & { stud
   // per-run agreement only for those who see every run (never a rater: blinding)
   const access = await findStudyAccess({ user, studyId });
   const seesAll = !!access && (access.isAdmin || access.studyRole === 'lead' || access.studyRole === 'observer');
-  const agreement = seesAll ? await runAgreements({ studyId, runIds: rows.map((r: { id: number }) => Number(r.id)) }) : new Map<number, number | null>();
-  return rows.map(
-    (r: Record<string, unknown>): RunListItem => ({
-      id: Number(r.id),
-      studyId: Number(r.studyId),
-      sub: r.sub as string,
-      ses: (r.ses as string | null) ?? null,
-      task: (r.task as string | null) ?? null,
-      acq: (r.acq as string | null) ?? null,
-      runLabel: (r.runLabel as string | null) ?? null,
-      originalName: r.originalName as string,
-      volumes: r.volumes == null ? null : Number(r.volumes),
-      trSeconds: r.trSeconds == null ? null : Number(r.trSeconds),
-      dims: parseJson<number[]>(r.dims, null),
-      status: r.status as RunStatus,
-      statusMessage: (r.statusMessage as string | null) ?? null,
-      hasMask: r.maskKey != null,
-      hasMotion: r.motionKey != null,
-      createdAt: r.createdAt as Date,
-      job:
-        r.jobId == null
-          ? null
-          : {
-              id: Number(r.jobId),
-              status: r.jobStatus as JobStatus,
-              stage: (r.jobStage as string | null) ?? null,
-              percent: r.jobPercent == null ? null : Number(r.jobPercent),
-              message: (r.jobMessage as string | null) ?? null,
-            },
-      components: r.components == null ? null : Number(r.components),
-      decompositionWarnings: decompositionWarnings(r.decompositionWarnings),
-      assigned: Number(r.assigned),
-      submitted: Number(r.submitted),
-      agreement: agreement.get(Number(r.id)) ?? null,
-    }),
-  );
+  const agreement = seesAll
+    ? await runAgreements({ studyId, runIds: rows.map((r: { id: number }) => Number(r.id)) })
+    : new Map<number, number | null>();
+  return rows.map((r: Record<string, unknown>): RunListItem => ({
+    id: Number(r.id),
+    studyId: Number(r.studyId),
+    sub: r.sub as string,
+    ses: (r.ses as string | null) ?? null,
+    task: (r.task as string | null) ?? null,
+    acq: (r.acq as string | null) ?? null,
+    runLabel: (r.runLabel as string | null) ?? null,
+    originalName: r.originalName as string,
+    volumes: r.volumes == null ? null : Number(r.volumes),
+    trSeconds: r.trSeconds == null ? null : Number(r.trSeconds),
+    dims: parseJson<number[]>(r.dims, null),
+    status: r.status as RunStatus,
+    statusMessage: (r.statusMessage as string | null) ?? null,
+    hasMask: r.maskKey != null,
+    hasMotion: r.motionKey != null,
+    createdAt: r.createdAt as Date,
+    job:
+      r.jobId == null
+        ? null
+        : {
+            id: Number(r.jobId),
+            status: r.jobStatus as JobStatus,
+            stage: (r.jobStage as string | null) ?? null,
+            percent: r.jobPercent == null ? null : Number(r.jobPercent),
+            message: (r.jobMessage as string | null) ?? null,
+          },
+    components: r.components == null ? null : Number(r.components),
+    decompositionWarnings: decompositionWarnings(r.decompositionWarnings),
+    assigned: Number(r.assigned),
+    submitted: Number(r.submitted),
+    agreement: agreement.get(Number(r.id)) ?? null,
+  }));
 }
 
 /** Progress of a study at a glance. Vote-derived counts are left out (null) for users who see only their own runs. */
@@ -207,9 +217,16 @@ export type StudyProgress = {
  * Runs by status, components of current decompositions, components with a final (non-pending)
  * decision, and open disagreements (decisions still 'pending'), over the runs the user may see.
  */
-export async function studyProgress({ user, studyId, seesAllRuns }: Scoped & { studyId: number; seesAllRuns: boolean }): Promise<StudyProgress> {
+export async function studyProgress({
+  user,
+  studyId,
+  seesAllRuns,
+}: Scoped & { studyId: number; seesAllRuns: boolean }): Promise<StudyProgress> {
   const visible = scopeRuns(db('runs as r').where('r.study_id', studyId).select('r.id'), user);
-  const statusRows = await scopeRuns(db('runs as r').where('r.study_id', studyId).groupBy('r.status').select('r.status', db.raw('COUNT(*) as n')), user);
+  const statusRows = await scopeRuns(
+    db('runs as r').where('r.study_id', studyId).groupBy('r.status').select('r.status', db.raw('COUNT(*) as n')),
+    user,
+  );
   const runsByStatus: Record<RunStatus, number> = { uploaded: 0, queued: 0, processing: 0, ready: 0, failed: 0, cancelled: 0 };
   for (const s of statusRows) runsByStatus[s.status as RunStatus] = Number(s.n);
   const [comp] = await db('components as c')
@@ -245,7 +262,15 @@ export async function studyProgress({ user, studyId, seesAllRuns }: Scoped & { s
 
 /** Another run of the study with exactly these BIDS entities (null/empty alike), or null. */
 export async function findRunWithEntities(
-  { studyId, entities, exceptRunId }: { studyId: number; entities: { sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null }; exceptRunId?: number },
+  {
+    studyId,
+    entities,
+    exceptRunId,
+  }: {
+    studyId: number;
+    entities: { sub: string; ses: string | null; task: string | null; acq: string | null; runLabel: string | null };
+    exceptRunId?: number;
+  },
   trx: Knex | Knex.Transaction = db,
 ): Promise<RunRecord | null> {
   const same = (q: Knex.QueryBuilder, column: string, value: string | null) =>
@@ -269,5 +294,7 @@ export async function lockRunEntities(trx: Knex.Transaction, { runId }: { runId:
 
 /** Writes a run's BIDS entities. */
 export async function writeRunEntities(trx: Knex.Transaction, { runId, entities }: { runId: number; entities: Entities }): Promise<void> {
-  await trx('runs').where({ id: runId }).update({ sub: entities.sub, ses: entities.ses, task: entities.task, acq: entities.acq, run_label: entities.runLabel });
+  await trx('runs')
+    .where({ id: runId })
+    .update({ sub: entities.sub, ses: entities.ses, task: entities.task, acq: entities.acq, run_label: entities.runLabel });
 }

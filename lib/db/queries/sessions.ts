@@ -30,7 +30,9 @@ export async function findSessionUser({ id, sid, sv }: { id: number; sid: string
 /** Ends one session (sign-out); forgets ids whose tokens have expired anyway. */
 export async function endSession({ sid, userId }: { sid: string; userId: number }): Promise<void> {
   await db('ended_sessions').insert({ sid, user_id: userId }).onConflict('sid').ignore();
-  await db('ended_sessions').where('ended_at', '<', db.raw(`NOW(3) - INTERVAL ${REMEMBER_ENDED_HOURS} HOUR`)).delete();
+  await db('ended_sessions')
+    .where('ended_at', '<', db.raw(`NOW(3) - INTERVAL ${REMEMBER_ENDED_HOURS} HOUR`))
+    .delete();
 }
 
 /** Ends every session of the user (raises the session version); returns the new version. */

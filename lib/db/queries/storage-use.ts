@@ -30,7 +30,15 @@ export async function storageByStudy(): Promise<StudyStorage[]> {
   const rows = await db('studies as s')
     .leftJoin(runs, 'r.study_id', 's.id')
     .leftJoin(decs, 'dc.study_id', 's.id')
-    .select('s.id as studyId', 's.name as studyName', 'r.n as runs', 'r.bytes as runBytes', 'dc.n as decompositions', 'dc.bytes as decompositionBytes', 'dc.missing as missing')
+    .select(
+      's.id as studyId',
+      's.name as studyName',
+      'r.n as runs',
+      'r.bytes as runBytes',
+      'dc.n as decompositions',
+      'dc.bytes as decompositionBytes',
+      'dc.missing as missing',
+    )
     .orderBy('s.name');
   return rows.map((r) => {
     const runBytes = Number(r.runBytes ?? 0);

@@ -44,7 +44,6 @@ export async function listStudiesForUser({ user }: { user: Pick<UserRow, 'id' | 
 
 // ——— one study: protocol, access, create and update ———
 
-
 /** A study's protocol as the app uses it (camelCase, booleans, parsed JSON). */
 export type StudyDetail = {
   id: number;
@@ -129,7 +128,13 @@ function toStudy(r: Record<string, unknown>): StudyDetail {
  * The study with the user's access to it, or null when the user may not see it (not a member and
  * not an admin). The membership condition is in the WHERE clause.
  */
-export async function findStudyForUser({ user, studyId }: { user: Pick<UserRow, 'id' | 'role'>; studyId: number }): Promise<StudyWithAccess | null> {
+export async function findStudyForUser({
+  user,
+  studyId,
+}: {
+  user: Pick<UserRow, 'id' | 'role'>;
+  studyId: number;
+}): Promise<StudyWithAccess | null> {
   const query = db('studies as s')
     .leftJoin('study_members as m', function () {
       this.on('m.study_id', 's.id').andOn('m.user_id', db.raw('?', [user.id]));
@@ -174,14 +179,20 @@ function protocolRow(v: Partial<StudyValues>): Record<string, unknown> {
 }
 
 /** Writes a study and makes its creator a lead member; returns its id. */
-export async function insertStudy(trx: Knex.Transaction, { createdBy, values }: { createdBy: number; values: StudyValues }): Promise<number> {
+export async function insertStudy(
+  trx: Knex.Transaction,
+  { createdBy, values }: { createdBy: number; values: StudyValues },
+): Promise<number> {
   const [id] = await trx('studies').insert({ ...protocolRow(values), created_by: createdBy });
   await trx('study_members').insert({ study_id: id, user_id: createdBy, study_role: 'lead', added_by: createdBy });
   return Number(id);
 }
 
 /** Writes the given protocol fields of a study; returns false when there was nothing to change. */
-export async function writeProtocol(trx: Knex.Transaction, { studyId, values }: { studyId: number; values: StudyUpdate }): Promise<boolean> {
+export async function writeProtocol(
+  trx: Knex.Transaction,
+  { studyId, values }: { studyId: number; values: StudyUpdate },
+): Promise<boolean> {
   const row = protocolRow(values);
   if (Object.keys(row).length === 0) return false;
   await trx('studies').where({ id: studyId }).update(row);

@@ -21,7 +21,13 @@ export async function findStudyAccess({ user, studyId }: { user: Pick<UserRow, '
 }
 
 /** The caller's access to the study that owns a run (with the run's id), or null when the run is not theirs to see. */
-export async function findRunAccess({ user, runId }: { user: Pick<UserRow, 'id' | 'role'>; runId: number }): Promise<(Access & { runId: number }) | null> {
+export async function findRunAccess({
+  user,
+  runId,
+}: {
+  user: Pick<UserRow, 'id' | 'role'>;
+  runId: number;
+}): Promise<(Access & { runId: number }) | null> {
   const run = await db('runs').where({ id: runId }).first('study_id');
   if (!run) return null;
   const access = await findStudyAccess({ user, studyId: Number(run.study_id) });

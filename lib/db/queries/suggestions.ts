@@ -1,7 +1,15 @@
 // No `server-only` here: the worker's suggestion jobs (lib/worker/kinds/*-suggestions.ts) use these queries outside Next.js.
 import type { Knex } from 'knex';
 import { db, parseJson, toJson } from '@/lib/db/knex';
-import type { ModelReport, RaterSuggestion, RawFeatures, StoredModel, SuggestionModelJson, TrainingRecord, TrainingSource } from '@/lib/suggestions/types';
+import type {
+  ModelReport,
+  RaterSuggestion,
+  RawFeatures,
+  StoredModel,
+  SuggestionModelJson,
+  TrainingRecord,
+  TrainingSource,
+} from '@/lib/suggestions/types';
 
 export type { StoredModel };
 export type TrainingData = {
@@ -28,7 +36,17 @@ export async function trainingData({ studyIds }: { studyIds: number[] }, trx: Kn
     .join('runs as r', 'r.id', 'rd.run_id')
     .whereIn('rl.study_id', studyIds)
     .orderBy([{ column: 'rl.id', order: 'desc' }, { column: 'rd.run_id' }, { column: 'rd.idx' }])
-    .select('rl.id as releaseId', 'rl.study_id as studyId', 'rl.run_id as releaseRunId', 'rl.version', 'rd.run_id as runId', 'rd.label', 'r.sub', 'c.features', 'c.variance_explained as varianceExplained');
+    .select(
+      'rl.id as releaseId',
+      'rl.study_id as studyId',
+      'rl.run_id as releaseRunId',
+      'rl.version',
+      'rd.run_id as runId',
+      'rd.label',
+      'r.sub',
+      'c.features',
+      'c.variance_explained as varianceExplained',
+    );
   const releaseOfRun = new Map<number, number>();
   const used = new Map<number, TrainingSource>();
   const out: TrainingData['rows'] = [];
@@ -42,7 +60,12 @@ export async function trainingData({ studyIds }: { studyIds: number[] }, trx: Kn
       skipped++;
       continue;
     }
-    used.set(releaseId, { releaseId, studyId: Number(r.studyId), runId: r.releaseRunId == null ? null : Number(r.releaseRunId), version: Number(r.version) });
+    used.set(releaseId, {
+      releaseId,
+      studyId: Number(r.studyId),
+      runId: r.releaseRunId == null ? null : Number(r.releaseRunId),
+      version: Number(r.version),
+    });
     out.push({ subject: `${r.studyId}:${r.sub}`, features: rawFeatures(r.features, r.varianceExplained), label: r.label });
   }
   return { rows: out, releases: [...used.values()].sort((a, b) => a.releaseId - b.releaseId), skipped };
@@ -56,34 +79,56 @@ export async function insertSuggestionModel(
   const last = await trx('suggestion_models').where({ study_id: m.studyId }).max({ v: 'version' }).first();
   const version = Number(last?.v ?? 0) + 1;
   const [id] = await trx('suggestion_models').insert({
-    study_id: m.studyId, version, model: toJson(m.model), report: toJson(m.report), training: toJson(m.training), created_by: m.createdBy,
+    study_id: m.studyId,
+    version,
+    model: toJson(m.model),
+    report: toJson(m.report),
+    training: toJson(m.training),
+    created_by: m.createdBy,
   });
   await trx('studies').where({ id: m.studyId }).update({ suggestion_model_id: id });
   return { id: Number(id), version };
 }
 
-
 function toStored(r: Record<string, unknown>): StoredModel {
   return {
-    id: Number(r.id), studyId: Number(r.study_id), version: Number(r.version),
-    model: parseJson<SuggestionModelJson>(r.model)!, report: parseJson<ModelReport>(r.report)!,
+    id: Number(r.id),
+    studyId: Number(r.study_id),
+    version: Number(r.version),
+    model: parseJson<SuggestionModelJson>(r.model)!,
+    report: parseJson<ModelReport>(r.report)!,
     training: parseJson<StoredModel['training']>(r.training, { studies: [], releases: [], skipped: 0 })!,
     createdAt: new Date(r.created_at as string).toISOString(),
   };
 }
 
 /** The model the study uses now (null when none is trained). */
-export async function activeSuggestionModel({ studyId }: { studyId: number }, trx: Knex | Knex.Transaction = db): Promise<StoredModel | null> {
-  const r = await trx('studies as s').join('suggestion_models as m', 'm.id', 's.suggestion_model_id').where('s.id', studyId)
+export async function activeSuggestionModel(
+  { studyId }: { studyId: number },
+  trx: Knex | Knex.Transaction = db,
+): Promise<StoredModel | null> {
+  const r = await trx('studies as s')
+    .join('suggestion_models as m', 'm.id', 's.suggestion_model_id')
+    .where('s.id', studyId)
     .first('m.id', 'm.study_id', 'm.version', 'm.model', 'm.report', 'm.training', 'm.created_at');
   return r ? toStored(r) : null;
 }
 
 /** Whether raters see suggestions (after their vote), and the model in use. */
-export async function suggestionSettings({ studyId }: { studyId: number }): Promise<{ enabled: boolean; modelId: number | null; version: number | null }> {
-  const r = await db('studies as s').leftJoin('suggestion_models as m', 'm.id', 's.suggestion_model_id').where('s.id', studyId)
+export async function suggestionSettings({
+  studyId,
+}: {
+  studyId: number;
+}): Promise<{ enabled: boolean; modelId: number | null; version: number | null }> {
+  const r = await db('studies as s')
+    .leftJoin('suggestion_models as m', 'm.id', 's.suggestion_model_id')
+    .where('s.id', studyId)
     .first('s.suggestions_enabled as enabled', 's.suggestion_model_id as modelId', 'm.version');
-  return { enabled: Boolean(r?.enabled), modelId: r?.modelId == null ? null : Number(r.modelId), version: r?.version == null ? null : Number(r.version) };
+  return {
+    enabled: Boolean(r?.enabled),
+    modelId: r?.modelId == null ? null : Number(r.modelId),
+    version: r?.version == null ? null : Number(r.version),
+  };
 }
 
 export async function setSuggestionsEnabled({ studyId, enabled }: { studyId: number; enabled: boolean }): Promise<void> {
@@ -100,23 +145,40 @@ export async function componentsToScore({ studyId, runId }: { studyId: number; r
     .select('c.id as componentId', 'r.id as runId', 'c.features', 'c.variance_explained as varianceExplained');
   if (runId) q.andWhere('r.id', runId);
   const rows = await q;
-  return rows.map((r) => ({ componentId: Number(r.componentId), runId: Number(r.runId), features: rawFeatures(r.features, r.varianceExplained) }));
+  return rows.map((r) => ({
+    componentId: Number(r.componentId),
+    runId: Number(r.runId),
+    features: rawFeatures(r.features, r.varianceExplained),
+  }));
 }
 
-export async function insertSuggestions(trx: Knex | Knex.Transaction, modelId: number, rows: { componentId: number; runId: number; pNoise: number; label: string }[]): Promise<void> {
+export async function insertSuggestions(
+  trx: Knex | Knex.Transaction,
+  modelId: number,
+  rows: { componentId: number; runId: number; pNoise: number; label: string }[],
+): Promise<void> {
   for (let i = 0; i < rows.length; i += 500) {
-    const chunk = rows.slice(i, i + 500).map((r) => ({ component_id: r.componentId, model_id: modelId, run_id: r.runId, p_noise: r.pNoise, label: r.label }));
+    const chunk = rows
+      .slice(i, i + 500)
+      .map((r) => ({ component_id: r.componentId, model_id: modelId, run_id: r.runId, p_noise: r.pNoise, label: r.label }));
     await trx('suggestions').insert(chunk).onConflict(['component_id', 'model_id']).merge(['p_noise', 'label']);
   }
 }
-
 
 /**
  * Suggestions of the model in use for the components of the run the rater has voted on — the
  * inner join on the rater's own votes is the never-anchoring rule: a component without the rater's
  * vote has no row here, so its suggestion never leaves the database.
  */
-export async function suggestionsAfterVotes({ runId, raterId, modelId }: { runId: number; raterId: number; modelId: number }): Promise<RaterSuggestion[]> {
+export async function suggestionsAfterVotes({
+  runId,
+  raterId,
+  modelId,
+}: {
+  runId: number;
+  raterId: number;
+  modelId: number;
+}): Promise<RaterSuggestion[]> {
   const rows = await db('suggestions as g')
     .join('votes as v', function () {
       this.on('v.component_id', 'g.component_id').andOn('v.rater_id', db.raw('?', [raterId]));
@@ -125,9 +187,13 @@ export async function suggestionsAfterVotes({ runId, raterId, modelId }: { runId
     .where({ 'g.run_id': runId, 'g.model_id': modelId })
     .orderBy('g.component_id')
     .select('g.component_id as componentId', 'g.label', 'g.p_noise as pNoise', 'm.version as modelVersion');
-  return rows.map((r) => ({ componentId: Number(r.componentId), label: String(r.label), pNoise: Number(r.pNoise), modelVersion: Number(r.modelVersion) }));
+  return rows.map((r) => ({
+    componentId: Number(r.componentId),
+    label: String(r.label),
+    pNoise: Number(r.pNoise),
+    modelVersion: Number(r.modelVersion),
+  }));
 }
-
 
 /** Runs `work` in one transaction (for use cases that enqueue and audit together). */
 export function inSuggestionTransaction<T>(work: (trx: Knex.Transaction) => Promise<T>): Promise<T> {
@@ -142,7 +208,17 @@ export async function activeTrainingJob(trx: Knex | Knex.Transaction, { studyId 
 
 /** The newest train job of the study (progress for the agreement page). */
 export async function latestTrainingJob({ studyId }: { studyId: number }) {
-  const r = await db('jobs').where({ kind: 'train-suggestions', study_id: studyId }).orderBy('id', 'desc')
+  const r = await db('jobs')
+    .where({ kind: 'train-suggestions', study_id: studyId })
+    .orderBy('id', 'desc')
     .first('id', 'status', 'stage', 'percent', 'message', 'error', 'created_at');
-  return r ? { jobId: Number(r.id), status: String(r.status), stage: r.stage as string | null, percent: r.percent == null ? null : Number(r.percent), message: (r.error ?? r.message ?? null) as string | null } : null;
+  return r
+    ? {
+        jobId: Number(r.id),
+        status: String(r.status),
+        stage: r.stage as string | null,
+        percent: r.percent == null ? null : Number(r.percent),
+        message: (r.error ?? r.message ?? null) as string | null,
+      }
+    : null;
 }

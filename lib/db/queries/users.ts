@@ -49,7 +49,9 @@ export async function findPasswordHash({ id }: { id: number }): Promise<string |
 }
 
 export async function recordSignIn({ id }: { id: number }): Promise<void> {
-  await db('users').where({ id }).update({ last_sign_in_at: db.fn.now(3) });
+  await db('users')
+    .where({ id })
+    .update({ last_sign_in_at: db.fn.now(3) });
 }
 
 /** Sets a new password and ends every session of the user; returns the new session version. */

@@ -6,7 +6,16 @@ import { findAssignedRun, isRunReleased } from './desk';
 
 type Caller = { id: number };
 
-type VoteRow = { id: number; componentId: number; label: string; noiseKind: string | null; confidence: number | null; note: string | null; version: number; updatedAt: Date };
+type VoteRow = {
+  id: number;
+  componentId: number;
+  label: string;
+  noiseKind: string | null;
+  confidence: number | null;
+  note: string | null;
+  version: number;
+  updatedAt: Date;
+};
 
 const voteColumns = [
   'v.id',
@@ -36,7 +45,11 @@ function toMyVote(r: VoteRow): MyVote {
  * have submitted the run themselves ('not_submitted' before); never when the study hides them
  * ('study_hides'). Null when they are shown.
  */
-export function othersHiddenReason(run: { blinding: boolean; showVotesAfterSubmit: boolean; submittedAt: unknown }): VotesPayload['status']['othersHidden'] {
+export function othersHiddenReason(run: {
+  blinding: boolean;
+  showVotesAfterSubmit: boolean;
+  submittedAt: unknown;
+}): VotesPayload['status']['othersHidden'] {
   if (run.blinding && !run.submittedAt) return 'not_submitted';
   if (!run.showVotesAfterSubmit) return 'study_hides';
   return null;
@@ -80,7 +93,10 @@ export async function listVotesForRater({ user, runId }: { user: Caller; runId: 
 }
 
 /** The component (id and index) when it belongs to the given decomposition, its row locked for the caller's transaction. */
-export async function lockDecompositionComponent(trx: Knex.Transaction, { componentId, decompositionId }: { componentId: number; decompositionId: number }): Promise<{ id: number; idx: number } | undefined> {
+export async function lockDecompositionComponent(
+  trx: Knex.Transaction,
+  { componentId, decompositionId }: { componentId: number; decompositionId: number },
+): Promise<{ id: number; idx: number } | undefined> {
   return trx('components').where({ id: componentId, decomposition_id: decompositionId }).forUpdate().first('id', 'idx');
 }
 
@@ -89,13 +105,20 @@ export async function lockDecompositionComponent(trx: Knex.Transaction, { compon
  * and the assignment's locks, which guard this row; a locking read of a missing row would take a gap
  * lock that deadlocks first votes on neighbouring components (DEVELOPERS.md, "Row locks").
  */
-export async function findRaterVote(trx: Knex.Transaction, { componentId, raterId }: { componentId: number; raterId: number }): Promise<{ id: number; vote: MyVote } | undefined> {
-  const row = (await trx('votes as v').where({ 'v.component_id': componentId, 'v.rater_id': raterId }).first(voteColumns)) as VoteRow | undefined;
+export async function findRaterVote(
+  trx: Knex.Transaction,
+  { componentId, raterId }: { componentId: number; raterId: number },
+): Promise<{ id: number; vote: MyVote } | undefined> {
+  const row = (await trx('votes as v').where({ 'v.component_id': componentId, 'v.rater_id': raterId }).first(voteColumns)) as
+    VoteRow | undefined;
   return row ? { id: row.id, vote: toMyVote(row) } : undefined;
 }
 
 /** The rater's vote on a component as stored now. */
-export async function readRaterVote(trx: Knex.Transaction, { componentId, raterId }: { componentId: number; raterId: number }): Promise<MyVote> {
+export async function readRaterVote(
+  trx: Knex.Transaction,
+  { componentId, raterId }: { componentId: number; raterId: number },
+): Promise<MyVote> {
   return toMyVote((await trx('votes as v').where({ 'v.component_id': componentId, 'v.rater_id': raterId }).first(voteColumns)) as VoteRow);
 }
 
@@ -105,13 +128,24 @@ export async function readRaterVote(trx: Knex.Transaction, { componentId, raterI
  */
 export async function writeVote(
   trx: Knex.Transaction,
-  { existingId, componentId, runId, raterId, assignmentId, fields }: { existingId: number | null; componentId: number; runId: number; raterId: number; assignmentId: number; fields: VoteFields },
+  {
+    existingId,
+    componentId,
+    runId,
+    raterId,
+    assignmentId,
+    fields,
+  }: { existingId: number | null; componentId: number; runId: number; raterId: number; assignmentId: number; fields: VoteFields },
 ): Promise<void> {
   const row = { label: fields.label, noise_kind: fields.noiseKind, confidence: fields.confidence, note: fields.note };
   if (existingId != null) {
-    await trx('votes').where({ id: existingId }).update({ ...row, version: trx.raw('version + 1') });
+    await trx('votes')
+      .where({ id: existingId })
+      .update({ ...row, version: trx.raw('version + 1') });
   } else {
     await trx('votes').insert({ component_id: componentId, run_id: runId, rater_id: raterId, ...row, version: 1 });
-    await trx('assignments').where({ id: assignmentId }).update({ started_at: trx.raw('COALESCE(started_at, CURRENT_TIMESTAMP(3))') });
+    await trx('assignments')
+      .where({ id: assignmentId })
+      .update({ started_at: trx.raw('COALESCE(started_at, CURRENT_TIMESTAMP(3))') });
   }
 }

@@ -3,7 +3,17 @@ import { escapeHtml, formatUtc, htmlLayout, textFooter, type MailContent } from 
 export type AssignedRunLine = { studyName: string; runName: string; url: string; dueAt: Date | null };
 
 /** One e-mail per rater per batch: every run newly assigned to them, with a link to its rating desk. */
-export function assignedRunsMail({ facility, name, runs, queueUrl }: { facility: string; name: string; runs: AssignedRunLine[]; queueUrl: string }): MailContent {
+export function assignedRunsMail({
+  facility,
+  name,
+  runs,
+  queueUrl,
+}: {
+  facility: string;
+  name: string;
+  runs: AssignedRunLine[];
+  queueUrl: string;
+}): MailContent {
   const n = runs.length;
   const subject = `${facility}: ${n} run${n === 1 ? '' : 's'} to rate`;
   const due = (r: AssignedRunLine) => (r.dueAt ? ` — due ${formatUtc(r.dueAt)}` : '');
@@ -20,7 +30,11 @@ ${textFooter(facility)}`;
     .join('')}</ul>`;
   const html = htmlLayout({
     facility,
-    paragraphs: [`Hello ${escapeHtml(name)},`, `${n === 1 ? 'A run has' : `${n} runs have`} been assigned to you in Quorum at ${escapeHtml(facility)}:`, list],
+    paragraphs: [
+      `Hello ${escapeHtml(name)},`,
+      `${n === 1 ? 'A run has' : `${n} runs have`} been assigned to you in Quorum at ${escapeHtml(facility)}:`,
+      list,
+    ],
     action: { label: 'Open your queue', url: queueUrl },
   });
   return { subject, text, html };

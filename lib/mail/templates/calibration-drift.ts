@@ -1,7 +1,21 @@
 import { escapeHtml, htmlLayout, textFooter, type MailContent } from './layout';
 
 /** To a study lead: a certified rater's calibration score has dropped below the study's threshold. */
-export function calibrationDriftMail({ facility, name, studyName, raterName, reason, url }: { facility: string; name: string; studyName: string; raterName: string; reason: string; url: string }): MailContent {
+export function calibrationDriftMail({
+  facility,
+  name,
+  studyName,
+  raterName,
+  reason,
+  url,
+}: {
+  facility: string;
+  name: string;
+  studyName: string;
+  raterName: string;
+  reason: string;
+  url: string;
+}): MailContent {
   const subject = `${facility}: ${raterName} is below the calibration threshold in "${studyName}"`;
   const text = `Hello ${name},
 

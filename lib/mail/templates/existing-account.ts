@@ -4,7 +4,17 @@ import { escapeHtml, htmlLayout, textFooter, type MailContent } from './layout';
  * Sent instead of an invitation when the address already has an account, so the inviter's screen
  * never tells whether an address is registered.
  */
-export function existingAccountMail({ facility, inviterName, signInUrl, forgotUrl }: { facility: string; inviterName: string; signInUrl: string; forgotUrl: string }): MailContent {
+export function existingAccountMail({
+  facility,
+  inviterName,
+  signInUrl,
+  forgotUrl,
+}: {
+  facility: string;
+  inviterName: string;
+  signInUrl: string;
+  forgotUrl: string;
+}): MailContent {
   const subject = `${facility}: you already have a Quorum account`;
   const text = `Hello,
 

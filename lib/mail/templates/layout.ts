@@ -17,7 +17,15 @@ export function formatUtc(at: Date): string {
  * Wraps paragraphs (already escaped HTML) and one call-to-action link in the message layout.
  * The link is also printed as text so it can be copied.
  */
-export function htmlLayout({ facility, paragraphs, action }: { facility: string; paragraphs: string[]; action?: { label: string; url: string } }): string {
+export function htmlLayout({
+  facility,
+  paragraphs,
+  action,
+}: {
+  facility: string;
+  paragraphs: string[];
+  action?: { label: string; url: string };
+}): string {
   const p = paragraphs.map((x) => `<p style="margin:0 0 14px">${x}</p>`).join('\n');
   const button = action
     ? `<p style="margin:20px 0"><a href="${escapeHtml(action.url)}" style="background:#7cc4b8;color:#0f1417;padding:10px 16px;border-radius:4px;text-decoration:none;font-weight:600">${escapeHtml(action.label)}</a></p>

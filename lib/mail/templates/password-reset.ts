@@ -1,7 +1,17 @@
 import { escapeHtml, formatUtc, htmlLayout, textFooter, type MailContent } from './layout';
 
 /** The password-reset e-mail: the one-time link and its expiry (one hour). */
-export function passwordResetMail({ facility, name, url, expiresAt }: { facility: string; name: string; url: string; expiresAt: Date }): MailContent {
+export function passwordResetMail({
+  facility,
+  name,
+  url,
+  expiresAt,
+}: {
+  facility: string;
+  name: string;
+  url: string;
+  expiresAt: Date;
+}): MailContent {
   const expires = formatUtc(expiresAt);
   const subject = `${facility}: reset your Quorum password`;
   const text = `Hello ${name},

@@ -1,7 +1,23 @@
 import { escapeHtml, htmlLayout, textFooter, type MailContent } from './layout';
 
 /** To a rater whose submitted run a lead reopened: which run, who, why, and the link back to it. */
-export function runReopenedMail({ facility, name, leadName, studyName, runName, reason, url }: { facility: string; name: string; leadName: string; studyName: string; runName: string; reason: string; url: string }): MailContent {
+export function runReopenedMail({
+  facility,
+  name,
+  leadName,
+  studyName,
+  runName,
+  reason,
+  url,
+}: {
+  facility: string;
+  name: string;
+  leadName: string;
+  studyName: string;
+  runName: string;
+  reason: string;
+  url: string;
+}): MailContent {
   const subject = `${facility}: ${runName} is open for you again`;
   const text = `Hello ${name},
 

@@ -39,7 +39,12 @@ export function renderBatchScript(template: string, values: ScriptValues): strin
   for (const line of template.split('\n')) {
     let drop = false;
     const filled = line.replace(/\{\{(\w+)\}\}/g, (_, name: string) => {
-      if (!(name in values)) throw new Error(`The batch script template uses {{${name}}}, which Quorum does not know; use ${Object.keys(values).map((k) => `{{${k}}}`).join(', ')}.`);
+      if (!(name in values))
+        throw new Error(
+          `The batch script template uses {{${name}}}, which Quorum does not know; use ${Object.keys(values)
+            .map((k) => `{{${k}}}`)
+            .join(', ')}.`,
+        );
       const v = values[name];
       if (v === null || v === '') drop = true;
       return v ?? '';

@@ -11,7 +11,11 @@ export async function cancelOrphanedClusterJobs(db: Knex): Promise<string[]> {
   const rows: { id: number; cluster_job_id: string; cluster_state: string | null }[] = await db('jobs')
     .where({ status: 'cancelled' })
     .whereNotNull('cluster_job_id')
-    .where((q) => q.whereNull('cluster_state').orWhereNotIn('cluster_state', ['COMPLETED', 'FAILED', 'TIMEOUT', 'OUT_OF_MEMORY', 'NODE_FAIL', 'CANCELLED', 'UNKNOWN']))
+    .where((q) =>
+      q
+        .whereNull('cluster_state')
+        .orWhereNotIn('cluster_state', ['COMPLETED', 'FAILED', 'TIMEOUT', 'OUT_OF_MEMORY', 'NODE_FAIL', 'CANCELLED', 'UNKNOWN']),
+    )
     .select('id', 'cluster_job_id', 'cluster_state')
     .limit(100);
   const cancelled: string[] = [];
@@ -21,7 +25,12 @@ export async function cancelOrphanedClusterJobs(db: Knex): Promise<string[]> {
       await scancel(r.cluster_job_id);
       cancelled.push(r.cluster_job_id);
     }
-    await db('jobs').where({ id: r.id }).update({ cluster_state: st && isTerminal(st.state) ? st.state.split(' ')[0]!.slice(0, 32) : 'CANCELLED', cluster_checked_at: db.raw('NOW(3)') });
+    await db('jobs')
+      .where({ id: r.id })
+      .update({
+        cluster_state: st && isTerminal(st.state) ? st.state.split(' ')[0]!.slice(0, 32) : 'CANCELLED',
+        cluster_checked_at: db.raw('NOW(3)'),
+      });
   }
   return cancelled;
 }

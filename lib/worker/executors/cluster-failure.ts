@@ -6,7 +6,19 @@
 import { JobError, PermanentJobError } from '@/lib/jobs/errors';
 import type { ClusterJobState } from './slurm-commands';
 
-const TERMINAL = new Set(['COMPLETED', 'FAILED', 'TIMEOUT', 'OUT_OF_MEMORY', 'NODE_FAIL', 'BOOT_FAIL', 'CANCELLED', 'DEADLINE', 'PREEMPTED', 'SPECIAL_EXIT', 'REVOKED']);
+const TERMINAL = new Set([
+  'COMPLETED',
+  'FAILED',
+  'TIMEOUT',
+  'OUT_OF_MEMORY',
+  'NODE_FAIL',
+  'BOOT_FAIL',
+  'CANCELLED',
+  'DEADLINE',
+  'PREEMPTED',
+  'SPECIAL_EXIT',
+  'REVOKED',
+]);
 
 /** true once Slurm will not run the job any more ("CANCELLED by 0" counts as CANCELLED). */
 export function isTerminal(state: string): boolean {
@@ -23,7 +35,12 @@ function exitStatus(exitCode: string | null): { status: number; signal: number }
  * The error for a cluster job that ended without COMPLETED (null for COMPLETED). `stderrTail` is
  * the last lines of the job's stderr, shown for a non-zero exit.
  */
-export function clusterFailure(jobId: string, st: ClusterJobState, stderrTail: string, settings: { time: string; mem: string }): Error | null {
+export function clusterFailure(
+  jobId: string,
+  st: ClusterJobState,
+  stderrTail: string,
+  settings: { time: string; mem: string },
+): Error | null {
   const state = st.state.split(' ')[0]!;
   const on = st.node ? ` on node ${st.node}` : '';
   const tail = stderrTail ? ` Last lines of its error output: ${stderrTail}` : '';
@@ -45,13 +62,21 @@ export function clusterFailure(jobId: string, st: ClusterJobState, stderrTail: s
     case 'PREEMPTED':
       return new JobError(`Cluster job ${jobId} was preempted by higher-priority work; it will be submitted again.`);
     case 'CANCELLED':
-      return new JobError(`Cluster job ${jobId} was cancelled on the cluster (not from Quorum), perhaps by a cluster administrator; it will be submitted again.`);
+      return new JobError(
+        `Cluster job ${jobId} was cancelled on the cluster (not from Quorum), perhaps by a cluster administrator; it will be submitted again.`,
+      );
     default: {
       const exit = exitStatus(st.exitCode);
       if (exit && exit.signal === 9 && /oom|out of memory/i.test(stderrTail)) {
-        return new PermanentJobError(`Cluster job ${jobId}${on} ran out of memory (limit ${settings.mem}). Ask the facility admin for more memory per run (QUORUM_SLURM_MEM).`);
+        return new PermanentJobError(
+          `Cluster job ${jobId}${on} ran out of memory (limit ${settings.mem}). Ask the facility admin for more memory per run (QUORUM_SLURM_MEM).`,
+        );
       }
-      const how = exit ? (exit.signal ? `was killed by signal ${exit.signal}` : `ended with exit code ${exit.status}`) : `ended ${state.toLowerCase()}`;
+      const how = exit
+        ? exit.signal
+          ? `was killed by signal ${exit.signal}`
+          : `ended with exit code ${exit.status}`
+        : `ended ${state.toLowerCase()}`;
       return new PermanentJobError(`Cluster job ${jobId}${on} ${how}.${tail}`);
     }
   }
@@ -88,6 +113,8 @@ export function pendingReason(reason: string | null): string {
 /** Seconds as "h:mm:ss" or "m:ss". */
 export function elapsedText(seconds: number | null): string {
   if (seconds === null) return '—';
-  const h = Math.floor(seconds / 3600), m = Math.floor((seconds % 3600) / 60), s = seconds % 60;
+  const h = Math.floor(seconds / 3600),
+    m = Math.floor((seconds % 3600) / 60),
+    s = seconds % 60;
   return h ? `${h}:${String(m).padStart(2, '0')}:${String(s).padStart(2, '0')}` : `${m}:${String(s).padStart(2, '0')}`;
 }

@@ -64,7 +64,9 @@ export async function decomposeOnSlurm(
       String(settings.cpus),
       ...decomposeFlags({ ...options, threads: undefined }),
       ...(run.maskKey ? ['--mask', clusterPathFor(run.maskKey, settings)] : []),
-      ...(run.motionKey ? ['--motion', clusterPathFor(run.motionKey, settings), '--motion-order', run.motionOrder, '--motion-units', run.motionUnits] : []),
+      ...(run.motionKey
+        ? ['--motion', clusterPathFor(run.motionKey, settings), '--motion-order', run.motionOrder, '--motion-units', run.motionUnits]
+        : []),
     ],
     stageOf: map.stageOf,
     percentOf: map.percentOf,
@@ -76,7 +78,8 @@ export async function decomposeOnSlurm(
   try {
     imported = await readDecompositionDir(out, await readNiftiHeaderFile(pathFor(run.fileKey)));
   } catch (err) {
-    if (err instanceof ImportError) throw new PermanentJobError(`The results of cluster job ${clusterJobId} cannot be imported: ${err.message}`, { cause: err });
+    if (err instanceof ImportError)
+      throw new PermanentJobError(`The results of cluster job ${clusterJobId} cannot be imported: ${err.message}`, { cause: err });
     throw err;
   }
   const files = await copyDecompositionFiles(out);
@@ -98,13 +101,25 @@ export async function decomposeOnSlurm(
   try {
     return await ctx.commit(
       async (trx) => {
-        const decompositionId = await storeDecomposition(trx, { runId: run.id, parameters, summary: imported.summary, files, components: imported.components });
+        const decompositionId = await storeDecomposition(trx, {
+          runId: run.id,
+          parameters,
+          summary: imported.summary,
+          files,
+          components: imported.components,
+        });
         const assignment = await assignRaters(trx, { runId: run.id });
         if (assignment.raterIds.length) await afterAssignmentsCreated(trx, { studyId: run.studyId });
         await queueScoringOfNewRun(trx, { studyId: run.studyId, runId: run.id });
         return { decompositionId, assignment, k: imported.components.length };
       },
-      (v) => ({ decompositionId: v.decompositionId, k: v.k, raters: v.assignment.raterIds, assignment: v.assignment.outcome, clusterJobId }),
+      (v) => ({
+        decompositionId: v.decompositionId,
+        k: v.k,
+        raters: v.assignment.raterIds,
+        assignment: v.assignment.outcome,
+        clusterJobId,
+      }),
     );
   } catch (err) {
     await removeKey(files.dirKey).catch(() => undefined);

@@ -34,7 +34,8 @@ export interface DenoiseForCluster {
 export function timecoursesTsv(tcs: Float32Array, k: number): string {
   const T = tcs.length / k;
   const lines = [Array.from({ length: k }, (_, c) => `component_${c + 1}`).join('\t')];
-  for (let t = 0; t < T; t++) lines.push(Array.from(tcs.subarray(t * k, (t + 1) * k), (v) => (Object.is(v, -0) ? '-0' : String(v))).join('\t'));
+  for (let t = 0; t < T; t++)
+    lines.push(Array.from(tcs.subarray(t * k, (t + 1) * k), (v) => (Object.is(v, -0) ? '-0' : String(v))).join('\t'));
   return lines.join('\n') + '\n';
 }
 
@@ -45,7 +46,11 @@ async function sha256Of(file: string): Promise<string> {
 }
 
 /** Runs the denoising on the cluster; returns the stored key, the output's checksum and size. */
-export async function denoiseOnSlurm(ctx: JobContext<unknown>, settings: SlurmSettings, input: DenoiseForCluster): Promise<{ key: string; sha256: string; bytes: number; clusterJobId: string }> {
+export async function denoiseOnSlurm(
+  ctx: JobContext<unknown>,
+  settings: SlurmSettings,
+  input: DenoiseForCluster,
+): Promise<{ key: string; sha256: string; bytes: number; clusterJobId: string }> {
   const { folders, clusterJobId } = await runOnSlurm(ctx, settings, {
     prepare: async (f) => {
       await mkdir(path.join(f.local, 'from'), { recursive: true });
@@ -63,15 +68,30 @@ export async function denoiseOnSlurm(ctx: JobContext<unknown>, settings: SlurmSe
       '--drop',
       String(input.drop),
       ...(input.maskKey ? ['--mask', clusterPathFor(input.maskKey, settings)] : ['--no-mask']),
-      ...(input.motion ? ['--motion', clusterPathFor(input.motion.key, settings), '--motion-order', input.motion.order, '--motion-units', input.motion.units] : []),
+      ...(input.motion
+        ? [
+            '--motion',
+            clusterPathFor(input.motion.key, settings),
+            '--motion-order',
+            input.motion.order,
+            '--motion-units',
+            input.motion.units,
+          ]
+        : []),
       '--out',
       path.posix.join(f.cluster, 'denoised.nii.gz'),
     ],
   });
   await ctx.progress('storing', 95, `Cluster job ${clusterJobId} finished; storing the denoised run.`);
   const out = path.join(folders.local, 'denoised.nii.gz');
-  const bytes = await stat(out).then((s) => s.size, () => null);
-  if (bytes === null) throw new PermanentJobError(`Cluster job ${clusterJobId} completed but left no denoised file in ${folders.local}; see its stderr.txt there.`);
+  const bytes = await stat(out).then(
+    (s) => s.size,
+    () => null,
+  );
+  if (bytes === null)
+    throw new PermanentJobError(
+      `Cluster job ${clusterJobId} completed but left no denoised file in ${folders.local}; see its stderr.txt there.`,
+    );
   const key = newKey('denoised', '.nii.gz');
   await copyFile(out, await ensureDirFor(key));
   await rm(out, { force: true });

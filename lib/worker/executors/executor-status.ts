@@ -33,7 +33,10 @@ export async function executorStatus(): Promise<ExecutorStatus> {
   try {
     const s = slurmSettings();
     const settings = [
-      { label: 'Batch script template', value: s.template ?? `built in (${DEFAULT_TEMPLATE.split('\n').length - 1} lines; README shows it)` },
+      {
+        label: 'Batch script template',
+        value: s.template ?? `built in (${DEFAULT_TEMPLATE.split('\n').length - 1} lines; README shows it)`,
+      },
       { label: 'Partition', value: s.partition ?? 'the cluster’s default' },
       { label: 'Account', value: s.account ?? 'none' },
       { label: 'Time limit per run', value: s.time },
@@ -43,7 +46,10 @@ export async function executorStatus(): Promise<ExecutorStatus> {
       { label: 'Storage root on the cluster', value: s.clusterStorageRoot },
       { label: 'Quorum on the cluster', value: s.clusterHome },
       { label: 'Polling interval', value: `${s.pollMs} ms` },
-      { label: 'Runs per job array', value: s.arrayMax > 1 ? `up to ${s.arrayMax}, gathered for ${s.arrayWaitMs} ms` : 'no arrays (one cluster job per run)' },
+      {
+        label: 'Runs per job array',
+        value: s.arrayMax > 1 ? `up to ${s.arrayMax}, gathered for ${s.arrayWaitMs} ms` : 'no arrays (one cluster job per run)',
+      },
       { label: 'Jobs per worker at once', value: String(workerConcurrency()) },
     ];
     return { executor, problem: null, settings, cluster: await clusterAnswers() };

@@ -44,12 +44,21 @@ interface ClusterColumns {
 
 /** Updates the job row's cluster columns while this worker still owns the job. */
 async function record(ctx: JobContext<unknown>, values: Record<string, unknown>): Promise<void> {
-  await ctx.db('jobs').where({ id: ctx.job.id, lease_owner: ctx.workerId, status: 'running' }).update({ ...values, cluster_checked_at: ctx.db.raw('NOW(3)') });
+  await ctx
+    .db('jobs')
+    .where({ id: ctx.job.id, lease_owner: ctx.workerId, status: 'running' })
+    .update({ ...values, cluster_checked_at: ctx.db.raw('NOW(3)') });
 }
 
 async function lastLines(file: string, n = 5): Promise<string> {
   const text = await readFile(file, 'utf8').catch(() => '');
-  return text.split('\n').map((l) => l.trim()).filter(Boolean).slice(-n).join(' / ').slice(-600);
+  return text
+    .split('\n')
+    .map((l) => l.trim())
+    .filter(Boolean)
+    .slice(-n)
+    .join(' / ')
+    .slice(-600);
 }
 
 function sleep(ms: number, signal: AbortSignal): Promise<void> {
@@ -88,7 +97,11 @@ export interface SlurmStep {
 }
 
 /** Submits (or re-attaches) and waits for the cluster job; returns the folders and the cluster job id. */
-export async function runOnSlurm(ctx: JobContext<unknown>, settings: SlurmSettings, step: SlurmStep): Promise<{ folders: ClusterFolders; clusterJobId: string }> {
+export async function runOnSlurm(
+  ctx: JobContext<unknown>,
+  settings: SlurmSettings,
+  step: SlurmStep,
+): Promise<{ folders: ClusterFolders; clusterJobId: string }> {
   const folders = clusterFolders(ctx.job.id, settings);
   const row = (await ctx.db('jobs').where({ id: ctx.job.id }).first('cluster_name', 'cluster_job_id')) as ClusterColumns | undefined;
   let clusterJobId = row?.cluster_job_id ?? null;
@@ -122,12 +135,19 @@ export async function runOnSlurm(ctx: JobContext<unknown>, settings: SlurmSettin
         unknown++;
         if (unknown >= 3) {
           await record(ctx, { cluster_job_id: null, cluster_name: null, cluster_state: 'UNKNOWN' });
-          throw new JobError(`The cluster no longer knows job ${clusterJobId} (purged before Quorum saw it end); it will be submitted again.`);
+          throw new JobError(
+            `The cluster no longer knows job ${clusterJobId} (purged before Quorum saw it end); it will be submitted again.`,
+          );
         }
       } else {
         unknown = 0;
         const state = st.state.split(' ')[0]!;
-        await record(ctx, { cluster_state: state.slice(0, 32), cluster_reason: st.reason?.slice(0, 255) ?? null, cluster_node: st.node?.slice(0, 255) ?? null, cluster_elapsed_s: st.elapsedSeconds });
+        await record(ctx, {
+          cluster_state: state.slice(0, 32),
+          cluster_reason: st.reason?.slice(0, 255) ?? null,
+          cluster_node: st.node?.slice(0, 255) ?? null,
+          cluster_elapsed_s: st.elapsedSeconds,
+        });
         if (isTerminal(state)) {
           const failure = clusterFailure(clusterJobId, st, await lastLines(path.join(folders.local, 'stderr.txt')), settings);
           if (!failure) return { folders, clusterJobId };
@@ -136,11 +156,19 @@ export async function runOnSlurm(ctx: JobContext<unknown>, settings: SlurmSettin
           throw failure;
         }
         if (state === 'PENDING' || state === 'CONFIGURING' || state === 'REQUEUED' || state === 'SUSPENDED') {
-          await ctx.progress('cluster pending', 1, `Pending on the cluster (job ${clusterJobId}): ${state === 'SUSPENDED' ? 'suspended' : pendingReason(st.reason)}.`);
+          await ctx.progress(
+            'cluster pending',
+            1,
+            `Pending on the cluster (job ${clusterJobId}): ${state === 'SUSPENDED' ? 'suspended' : pendingReason(st.reason)}.`,
+          );
         } else {
           const p = await nodeProgress(path.join(folders.local, 'progress.json'));
           const where = `running on ${st.node ?? 'the cluster'} for ${elapsedText(st.elapsedSeconds)} (cluster job ${clusterJobId})`;
-          await ctx.progress(p ? stageOf(p.stage) : 'cluster running', p ? percentOf(p.percent) : 3, `${where[0]!.toUpperCase()}${where.slice(1)}${p?.detail ? ` · ${p.detail}` : ''}`);
+          await ctx.progress(
+            p ? stageOf(p.stage) : 'cluster running',
+            p ? percentOf(p.percent) : 3,
+            `${where[0]!.toUpperCase()}${where.slice(1)}${p?.detail ? ` · ${p.detail}` : ''}`,
+          );
         }
       }
       await sleep(settings.pollMs, ctx.signal);
@@ -151,7 +179,10 @@ export async function runOnSlurm(ctx: JobContext<unknown>, settings: SlurmSettin
         () => ctx.logger.info(`job ${ctx.job.id}: cancelled cluster job ${clusterJobId}`),
         (e: unknown) => ctx.logger.warn(`job ${ctx.job.id}: scancel ${clusterJobId} failed: ${(e as Error).message}`),
       );
-      await ctx.db('jobs').where({ id: ctx.job.id }).update({ cluster_state: 'CANCELLED', cluster_checked_at: ctx.db.raw('NOW(3)') });
+      await ctx
+        .db('jobs')
+        .where({ id: ctx.job.id })
+        .update({ cluster_state: 'CANCELLED', cluster_checked_at: ctx.db.raw('NOW(3)') });
     }
     throw err;
   }
@@ -188,11 +219,24 @@ async function batchScript(settings: SlurmSettings, v: { name: string; stdout: s
 /** One cluster job for one Quorum job. */
 async function submitOne(ctx: JobContext<unknown>, settings: SlurmSettings, folders: ClusterFolders, command: string): Promise<string> {
   const name = `quorum-j${ctx.job.id}-${randomBytes(4).toString('hex')}`;
-  const script = await batchScript(settings, { name, stdout: path.posix.join(folders.cluster, 'stdout.txt'), stderr: path.posix.join(folders.cluster, 'stderr.txt'), command });
+  const script = await batchScript(settings, {
+    name,
+    stdout: path.posix.join(folders.cluster, 'stdout.txt'),
+    stderr: path.posix.join(folders.cluster, 'stderr.txt'),
+    command,
+  });
   const scriptPath = path.join(folders.local, 'job.sh');
   await writeFile(scriptPath, script, { mode: 0o755 });
   // the name first, so a worker that dies inside sbatch leaves a trace the next one can find
-  await record(ctx, { executor: 'slurm', cluster_name: name, cluster_job_id: null, cluster_state: 'SUBMITTING', cluster_reason: null, cluster_node: null, cluster_elapsed_s: null });
+  await record(ctx, {
+    executor: 'slurm',
+    cluster_name: name,
+    cluster_job_id: null,
+    cluster_state: 'SUBMITTING',
+    cluster_reason: null,
+    cluster_node: null,
+    cluster_elapsed_s: null,
+  });
   ctx.throwIfStopped();
   const id = await sbatch(scriptPath).catch((err: unknown) => {
     throw new JobError(`The cluster refused the job: ${(err as Error).message}`, { cause: err });
@@ -230,7 +274,9 @@ function flushArray(): void {
   clearTimeout(timer);
   const live = members.filter((m) => {
     if (!m.ctx.signal.aborted) return true;
-    m.reject(m.ctx.signal.reason instanceof Error ? m.ctx.signal.reason : new JobError('The job stopped before it was submitted to the cluster.'));
+    m.reject(
+      m.ctx.signal.reason instanceof Error ? m.ctx.signal.reason : new JobError('The job stopped before it was submitted to the cluster.'),
+    );
     return false;
   });
   if (live.length === 1) {
@@ -252,7 +298,10 @@ async function submitArray(members: ArrayMember[]): Promise<void> {
   const hex = randomBytes(4).toString('hex');
   const name = `quorum-a${hex}`;
   const rel = path.join('cluster', `array-${hex}`);
-  const dir = { local: path.join(storageRoot(), rel), cluster: path.posix.join(settings.clusterStorageRoot, rel.split(path.sep).join('/')) };
+  const dir = {
+    local: path.join(storageRoot(), rel),
+    cluster: path.posix.join(settings.clusterStorageRoot, rel.split(path.sep).join('/')),
+  };
   await mkdir(dir.local, { recursive: true });
   const list = path.posix.join(dir.cluster, 'list.txt');
   await writeFile(path.join(dir.local, 'list.txt'), members.map((m) => `${m.folders.cluster}\n`).join(''));
@@ -261,11 +310,26 @@ async function submitArray(members: ArrayMember[]): Promise<void> {
     'exec >"$dir/stdout.txt" 2>"$dir/stderr.txt"',
     '. "$dir/command.sh"',
   ].join('\n');
-  const script = await batchScript(settings, { name, stdout: path.posix.join(dir.cluster, 'task-%a.out'), stderr: path.posix.join(dir.cluster, 'task-%a.err'), command });
+  const script = await batchScript(settings, {
+    name,
+    stdout: path.posix.join(dir.cluster, 'task-%a.out'),
+    stderr: path.posix.join(dir.cluster, 'task-%a.err'),
+    command,
+  });
   const scriptPath = path.join(dir.local, 'job.sh');
   await writeFile(scriptPath, script, { mode: 0o755 });
   await Promise.all(
-    members.map((m, i) => record(m.ctx, { executor: 'slurm', cluster_name: `${name}#${i}`, cluster_job_id: null, cluster_state: 'SUBMITTING', cluster_reason: null, cluster_node: null, cluster_elapsed_s: null })),
+    members.map((m, i) =>
+      record(m.ctx, {
+        executor: 'slurm',
+        cluster_name: `${name}#${i}`,
+        cluster_job_id: null,
+        cluster_state: 'SUBMITTING',
+        cluster_reason: null,
+        cluster_node: null,
+        cluster_elapsed_s: null,
+      }),
+    ),
   );
   const id = await sbatch(scriptPath, [`--array=0-${members.length - 1}`]).catch((err: unknown) => {
     throw new JobError(`The cluster refused the job array: ${(err as Error).message}`, { cause: err });
@@ -273,7 +337,9 @@ async function submitArray(members: ArrayMember[]): Promise<void> {
   await Promise.all(
     members.map(async (m, i) => {
       await record(m.ctx, { cluster_job_id: `${id}_${i}`, cluster_state: 'PENDING' });
-      m.ctx.logger.info(`job ${m.ctx.job.id}: submitted as cluster job ${id}_${i} (task ${i} of array ${id}, ${members.length} tasks, ${name})`);
+      m.ctx.logger.info(
+        `job ${m.ctx.job.id}: submitted as cluster job ${id}_${i} (task ${i} of array ${id}, ${members.length} tasks, ${name})`,
+      );
       m.resolve(`${id}_${i}`);
     }),
   );

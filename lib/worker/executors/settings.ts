@@ -57,20 +57,28 @@ export function executorName(): ExecutorName {
 /** The Slurm settings, checked: a bad value names the variable and what it takes. */
 export function slurmSettings(): SlurmSettings {
   const cpus = Number(env('QUORUM_SLURM_CPUS') ?? 2);
-  if (!Number.isInteger(cpus) || cpus < 1 || cpus > 256) throw new ExecutorSettingsError(`QUORUM_SLURM_CPUS must be a whole number from 1 to 256; got "${env('QUORUM_SLURM_CPUS')}".`);
+  if (!Number.isInteger(cpus) || cpus < 1 || cpus > 256)
+    throw new ExecutorSettingsError(`QUORUM_SLURM_CPUS must be a whole number from 1 to 256; got "${env('QUORUM_SLURM_CPUS')}".`);
   const time = env('QUORUM_SLURM_TIME') ?? '01:00:00';
-  if (!/^(\d+-)?\d{1,2}(:\d{2}){0,2}$/.test(time)) throw new ExecutorSettingsError(`QUORUM_SLURM_TIME must be a Slurm time such as 01:00:00 or 1-00:00:00; got "${time}".`);
+  if (!/^(\d+-)?\d{1,2}(:\d{2}){0,2}$/.test(time))
+    throw new ExecutorSettingsError(`QUORUM_SLURM_TIME must be a Slurm time such as 01:00:00 or 1-00:00:00; got "${time}".`);
   const mem = env('QUORUM_SLURM_MEM') ?? '4G';
   if (!/^\d+[KMGT]?$/i.test(mem)) throw new ExecutorSettingsError(`QUORUM_SLURM_MEM must be a size such as 4000M or 4G; got "${mem}".`);
   const pollMs = Number(env('QUORUM_SLURM_POLL_MS') ?? 5000);
-  if (!Number.isInteger(pollMs) || pollMs < 50) throw new ExecutorSettingsError(`QUORUM_SLURM_POLL_MS must be a whole number ≥ 50; got "${env('QUORUM_SLURM_POLL_MS')}".`);
+  if (!Number.isInteger(pollMs) || pollMs < 50)
+    throw new ExecutorSettingsError(`QUORUM_SLURM_POLL_MS must be a whole number ≥ 50; got "${env('QUORUM_SLURM_POLL_MS')}".`);
   const arrayMax = Number(env('QUORUM_SLURM_ARRAY_MAX') ?? 50);
-  if (!Number.isInteger(arrayMax) || arrayMax < 1 || arrayMax > 1000) throw new ExecutorSettingsError(`QUORUM_SLURM_ARRAY_MAX must be a whole number from 1 to 1000; got "${env('QUORUM_SLURM_ARRAY_MAX')}".`);
+  if (!Number.isInteger(arrayMax) || arrayMax < 1 || arrayMax > 1000)
+    throw new ExecutorSettingsError(
+      `QUORUM_SLURM_ARRAY_MAX must be a whole number from 1 to 1000; got "${env('QUORUM_SLURM_ARRAY_MAX')}".`,
+    );
   const arrayWaitMs = Number(env('QUORUM_SLURM_ARRAY_WAIT_MS') ?? pollMs);
-  if (!Number.isInteger(arrayWaitMs) || arrayWaitMs < 0) throw new ExecutorSettingsError(`QUORUM_SLURM_ARRAY_WAIT_MS must be a whole number ≥ 0; got "${env('QUORUM_SLURM_ARRAY_WAIT_MS')}".`);
+  if (!Number.isInteger(arrayWaitMs) || arrayWaitMs < 0)
+    throw new ExecutorSettingsError(`QUORUM_SLURM_ARRAY_WAIT_MS must be a whole number ≥ 0; got "${env('QUORUM_SLURM_ARRAY_WAIT_MS')}".`);
   const word = (name: string) => {
     const v = env(name);
-    if (v !== null && !/^[\w.,-]+$/.test(v)) throw new ExecutorSettingsError(`${name} may hold letters, digits and . , _ - only; got "${v}".`);
+    if (v !== null && !/^[\w.,-]+$/.test(v))
+      throw new ExecutorSettingsError(`${name} may hold letters, digits and . , _ - only; got "${v}".`);
     return v;
   };
   return {
@@ -80,7 +88,10 @@ export function slurmSettings(): SlurmSettings {
     time,
     cpus,
     mem,
-    setup: (env('QUORUM_SLURM_SETUP') ?? '').split(/\n|;/).map((l) => l.trim()).filter(Boolean),
+    setup: (env('QUORUM_SLURM_SETUP') ?? '')
+      .split(/\n|;/)
+      .map((l) => l.trim())
+      .filter(Boolean),
     clusterStorageRoot: env('QUORUM_CLUSTER_STORAGE_ROOT') ?? storageRoot(),
     clusterHome: env('QUORUM_CLUSTER_HOME') ?? process.cwd(),
     pollMs,
@@ -94,6 +105,7 @@ export function workerConcurrency(): number {
   const raw = env('QUORUM_WORKER_CONCURRENCY');
   if (raw === null) return executorName() === 'slurm' ? 50 : 1;
   const n = Number(raw);
-  if (!Number.isInteger(n) || n < 1 || n > 1000) throw new ExecutorSettingsError(`QUORUM_WORKER_CONCURRENCY must be a whole number from 1 to 1000; got "${raw}".`);
+  if (!Number.isInteger(n) || n < 1 || n > 1000)
+    throw new ExecutorSettingsError(`QUORUM_WORKER_CONCURRENCY must be a whole number from 1 to 1000; got "${raw}".`);
   return n;
 }

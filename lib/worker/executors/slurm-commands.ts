@@ -6,7 +6,10 @@
 import { execFile } from 'node:child_process';
 
 export class SlurmCommandError extends Error {
-  constructor(message: string, readonly stderr: string) {
+  constructor(
+    message: string,
+    readonly stderr: string,
+  ) {
     super(message);
     this.name = 'SlurmCommandError';
   }
@@ -17,7 +20,10 @@ function run(cmd: string, args: string[], timeoutMs = 30_000): Promise<string> {
     execFile(cmd, args, { timeout: timeoutMs, maxBuffer: 4 * 1024 * 1024 }, (err, stdout, stderr) => {
       if (err) {
         const code = (err as NodeJS.ErrnoException).code;
-        const why = code === 'ENOENT' ? `${cmd} is not installed on this worker's machine (or not on PATH)` : (String(stderr).trim().split('\n')[0] || err.message);
+        const why =
+          code === 'ENOENT'
+            ? `${cmd} is not installed on this worker's machine (or not on PATH)`
+            : String(stderr).trim().split('\n')[0] || err.message;
         reject(new SlurmCommandError(`${cmd} failed: ${why}`, String(stderr)));
       } else resolve(String(stdout));
     });
@@ -43,7 +49,12 @@ export async function scancel(jobId: string): Promise<void> {
 export async function findJobByName(name: string): Promise<string | null> {
   const task = /^(.+)#(\d+)$/.exec(name);
   const out = await run('squeue', ['-h', '-t', 'all', '--name', task ? task[1]! : name, '-o', task ? '%F' : '%i']);
-  const id = out.trim().split('\n').map((l) => l.trim()).find(Boolean) ?? null;
+  const id =
+    out
+      .trim()
+      .split('\n')
+      .map((l) => l.trim())
+      .find(Boolean) ?? null;
   return id && task ? `${id}_${task[2]}` : id;
 }
 
@@ -107,20 +118,34 @@ export async function jobState(jobId: string): Promise<ClusterJobState | null> {
     const line = out.trim().split('\n')[0];
     if (!line) return null;
     const [state, reason, node, elapsed, exitCode, timeLimit] = line.split('|');
-    return { state: (state ?? '').split(' ')[0]!, reason: none(reason), node: none(node), elapsedSeconds: elapsed ? Number(elapsed) : null, exitCode: none(exitCode), timeLimit: none(timeLimit), stderrPath: null };
+    return {
+      state: (state ?? '').split(' ')[0]!,
+      reason: none(reason),
+      node: none(node),
+      elapsedSeconds: elapsed ? Number(elapsed) : null,
+      exitCode: none(exitCode),
+      timeLimit: none(timeLimit),
+      stderrPath: null,
+    };
   } catch {
     return null; // accounting off or the job unknown
   }
 }
 
 /** Does the cluster answer? sinfo's partitions and node states, or the error. */
-export async function clusterAnswers(): Promise<{ ok: true; partitions: { name: string; state: string; nodes: string }[] } | { ok: false; error: string }> {
+export async function clusterAnswers(): Promise<
+  { ok: true; partitions: { name: string; state: string; nodes: string }[] } | { ok: false; error: string }
+> {
   try {
     const out = await run('sinfo', ['-h', '-o', '%P|%a|%D %T'], 10_000);
-    const partitions = out.trim().split('\n').filter(Boolean).map((l) => {
-      const [name, state, nodes] = l.split('|');
-      return { name: name ?? '', state: state ?? '', nodes: nodes ?? '' };
-    });
+    const partitions = out
+      .trim()
+      .split('\n')
+      .filter(Boolean)
+      .map((l) => {
+        const [name, state, nodes] = l.split('|');
+        return { name: name ?? '', state: state ?? '', nodes: nodes ?? '' };
+      });
     return { ok: true, partitions };
   } catch (err) {
     return { ok: false, error: err instanceof Error ? err.message : String(err) };

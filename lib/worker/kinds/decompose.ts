@@ -13,12 +13,7 @@ import { DEFAULT_DIM_METHOD } from '@/lib/decomposition/dimensionality';
 import { readNiftiFile, type NiftiImage } from '@/lib/nifti';
 import { assignRaters, type AssignRatersResult } from '@/lib/runs/assign-raters';
 import { afterAssignmentsCreated } from '@/lib/jobs/queue-notifications';
-import {
-  componentRows,
-  decompositionSummary,
-  storeDecomposition,
-  writeDecompositionFiles,
-} from '@/lib/runs/ingest-decomposition';
+import { componentRows, decompositionSummary, storeDecomposition, writeDecompositionFiles } from '@/lib/runs/ingest-decomposition';
 import { pathFor, removeKey } from '@/lib/storage';
 import { storageFaultKind } from '@/lib/storage/faults';
 import { JobError, PermanentJobError } from '@/lib/jobs/errors';
@@ -67,12 +62,16 @@ export function decomposeOptionsFor(protocol: ProtocolRow, o: DecomposePayload['
     opts.components = o.components ?? 'auto';
     opts.dimMethod = o.varianceFraction !== undefined ? { variance: o.varianceFraction } : (o.dimMethod ?? DEFAULT_DIM_METHOD);
   } else if (protocol.dim_method === 'fixed') {
-    if (!protocol.fixed_components) throw new PermanentJobError('The study protocol asks for a fixed number of components but gives none; set it in the protocol.');
+    if (!protocol.fixed_components)
+      throw new PermanentJobError('The study protocol asks for a fixed number of components but gives none; set it in the protocol.');
     opts.components = Number(protocol.fixed_components);
     opts.dimMethod = DEFAULT_DIM_METHOD;
   } else if (protocol.dim_method === 'variance') {
     const f = Number(protocol.variance_fraction);
-    if (!(f > 0 && f < 1)) throw new PermanentJobError('The study protocol asks for a variance fraction but gives none between 0 and 1; set it in the protocol.');
+    if (!(f > 0 && f < 1))
+      throw new PermanentJobError(
+        'The study protocol asks for a variance fraction but gives none between 0 and 1; set it in the protocol.',
+      );
     opts.components = 'auto';
     opts.dimMethod = { variance: f };
   } else {
@@ -104,7 +103,10 @@ export function deterministic(err: unknown): PermanentJobError | null {
     return new PermanentJobError(err.message, { cause: err });
   }
   if (err instanceof RangeError && /allocation failed|invalid (typed )?array length/i.test(err.message)) {
-    return new PermanentJobError('The run is too large to decompose on this server (not enough memory); crop it or use fewer volumes, or ask the facility admin.', { cause: err });
+    return new PermanentJobError(
+      'The run is too large to decompose on this server (not enough memory); crop it or use fewer volumes, or ask the facility admin.',
+      { cause: err },
+    );
   }
   return null;
 }
@@ -121,7 +123,8 @@ async function readStored<T>(what: string, key: string, read: (path: string) => 
   } catch (err) {
     const code = (err as { code?: string }).code;
     if (code === 'ENOENT') throw new JobError(`The ${what} is missing from storage; upload it again.`, { cause: err });
-    if (code === 'EACCES' || code === 'EPERM') throw new JobError(`The ${what} cannot be read (permission denied on the storage).`, { cause: err });
+    if (code === 'EACCES' || code === 'EPERM')
+      throw new JobError(`The ${what} cannot be read (permission denied on the storage).`, { cause: err });
     if (err instanceof Error && err.name === 'NiftiError') throw new JobError(`The ${what} cannot be read: ${err.message}`, { cause: err });
     throw err;
   }
@@ -175,7 +178,9 @@ export const decomposeKind = defineJobKind({
         options,
         { stageOf: (s) => NEXT_STAGE[s] ?? s, percentOf: (p) => 5 + p * 0.75, overrides: payload.decompositionOptions },
       );
-      ctx.logger.info(`run ${runId}: ${stored.k} components from the cluster (decomposition ${stored.decompositionId}, ${stored.assignment.outcome})`);
+      ctx.logger.info(
+        `run ${runId}: ${stored.k} components from the cluster (decomposition ${stored.decompositionId}, ${stored.assignment.outcome})`,
+      );
       return stored;
     }
     const image: NiftiImage = await readStored("run's file", run.file_key, (p) => readNiftiFile(p));
@@ -184,7 +189,9 @@ export const decomposeKind = defineJobKind({
     if (run.mask_key) {
       const m = await readStored("run's mask", run.mask_key, (p) => readNiftiFile(p));
       if (m.voxelsPerVolume !== image.voxelsPerVolume) {
-        throw new PermanentJobError(`The mask has ${m.nx} × ${m.ny} × ${m.nz} voxels but the run has ${image.nx} × ${image.ny} × ${image.nz}; upload a mask on the run's grid.`);
+        throw new PermanentJobError(
+          `The mask has ${m.nx} × ${m.ny} × ${m.nz} voxels but the run has ${image.nx} × ${image.ny} × ${image.nz}; upload a mask on the run's grid.`,
+        );
       }
       const vol = m.readVolume(0);
       mask = new Uint8Array(vol.length);
@@ -233,7 +240,11 @@ export const decomposeKind = defineJobKind({
       ctx.logger.error(`run ${runId}: storage fault while writing the results: ${(err as Error).message}`);
       // the admin's alert on the Facility page (same row as lib/errors.ts writes; the worker has no server-only imports)
       await db('audit_log')
-        .insert({ action: 'storage.fault', target_type: 'storage', detail: JSON.stringify({ kind: fault, code: (err as { code?: string }).code, where: `decompose job ${ctx.job.id}` }) })
+        .insert({
+          action: 'storage.fault',
+          target_type: 'storage',
+          detail: JSON.stringify({ kind: fault, code: (err as { code?: string }).code, where: `decompose job ${ctx.job.id}` }),
+        })
         .catch(() => undefined);
       // people read this on the run: no file-system text (it names paths); retried, the admin is alerted
       throw new JobError(
@@ -292,4 +303,3 @@ export const decomposeKind = defineJobKind({
     }
   },
 });
-

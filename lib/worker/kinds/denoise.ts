@@ -30,13 +30,17 @@ export const denoiseKind = defineJobKind({
   payloadSchema: denoisePayloadSchema,
   async run(ctx) {
     const { db, payload } = ctx;
-    const run = await db('runs').where({ id: payload.runId }).first('id', 'study_id', 'sub', 'ses', 'task', 'acq', 'run_label', 'file_key', 'motion_key', 'motion_order', 'motion_rotation_units');
+    const run = await db('runs')
+      .where({ id: payload.runId })
+      .first('id', 'study_id', 'sub', 'ses', 'task', 'acq', 'run_label', 'file_key', 'motion_key', 'motion_order', 'motion_rotation_units');
     if (!run) throw new PermanentJobError(`Run ${payload.runId} no longer exists.`);
     let decompositionId: number;
     let noise: number[];
     if (payload.releaseId) {
       const rel = await db('releases').where({ id: payload.releaseId, study_id: run.study_id }).first('manifest');
-      const entry = parseJson<{ runs: { runId: number; decompositionId: number; noise: number[] }[] }>(rel?.manifest, null)?.runs.find((r) => r.runId === run.id);
+      const entry = parseJson<{ runs: { runId: number; decompositionId: number; noise: number[] }[] }>(rel?.manifest, null)?.runs.find(
+        (r) => r.runId === run.id,
+      );
       if (!entry) throw new PermanentJobError(`Release ${payload.releaseId} does not contain run ${run.id}.`);
       decompositionId = entry.decompositionId;
       noise = entry.noise;
@@ -45,8 +49,14 @@ export const denoiseKind = defineJobKind({
       if (!d) throw new PermanentJobError(`Run ${run.id} has no decomposition to denoise with.`);
       decompositionId = Number(d.id);
       const study = await db('studies').where({ id: run.study_id }).first('uncertain_in_export');
-      const decisions = await db('components as c').leftJoin('decisions as x', 'x.component_id', 'c.id').where('c.decomposition_id', decompositionId).select('c.idx', 'x.label');
-      noise = noiseList(decisions.map((r: { idx: number; label: string | null }) => ({ idx: Number(r.idx), label: r.label })), (study?.uncertain_in_export ?? 'keep') as UncertainPolicy);
+      const decisions = await db('components as c')
+        .leftJoin('decisions as x', 'x.component_id', 'c.id')
+        .where('c.decomposition_id', decompositionId)
+        .select('c.idx', 'x.label');
+      noise = noiseList(
+        decisions.map((r: { idx: number; label: string | null }) => ({ idx: Number(r.idx), label: r.label })),
+        (study?.uncertain_in_export ?? 'keep') as UncertainPolicy,
+      );
     }
     const dec = await db('decompositions').where({ id: decompositionId }).first('id', 'parameters', 'summary', 'mask_key', 'k');
     if (!dec) throw new PermanentJobError(`Decomposition ${decompositionId} no longer exists.`);
@@ -73,12 +83,38 @@ export const denoiseKind = defineJobKind({
       } catch (err) {
         throw new JobError(`The cluster executor is not configured correctly: ${(err as Error).message}`, { cause: err });
       }
-      const motion = payload.includeMotion ? { key: run.motion_key as string, order: motionOrderOf(run.motion_order), units: run.motion_rotation_units ?? 'radians' } : null;
-      const out = await denoiseOnSlurm(ctx, settings, { fileKey: run.file_key, maskKey: dec.mask_key ?? null, motion, timecourses: tcs, k, noise, drop, mode: payload.mode });
+      const motion = payload.includeMotion
+        ? { key: run.motion_key as string, order: motionOrderOf(run.motion_order), units: run.motion_rotation_units ?? 'radians' }
+        : null;
+      const out = await denoiseOnSlurm(ctx, settings, {
+        fileKey: run.file_key,
+        maskKey: dec.mask_key ?? null,
+        motion,
+        timecourses: tcs,
+        k,
+        noise,
+        drop,
+        mode: payload.mode,
+      });
       try {
-        const result: DenoiseResult = { key: out.key, name, sha256: out.sha256, bytes: out.bytes, mode: payload.mode, includeMotion: payload.includeMotion, noise, releaseId: payload.releaseId ?? null, volumes: T };
-        await ctx.commit(async () => result, (v) => ({ ...v, clusterJobId: out.clusterJobId }));
-        ctx.logger.info(`run ${run.id}: denoised on the cluster (job ${out.clusterJobId}, ${payload.mode}, ${noise.length} of ${k} components) → ${out.key}`);
+        const result: DenoiseResult = {
+          key: out.key,
+          name,
+          sha256: out.sha256,
+          bytes: out.bytes,
+          mode: payload.mode,
+          includeMotion: payload.includeMotion,
+          noise,
+          releaseId: payload.releaseId ?? null,
+          volumes: T,
+        };
+        await ctx.commit(
+          async () => result,
+          (v) => ({ ...v, clusterJobId: out.clusterJobId }),
+        );
+        ctx.logger.info(
+          `run ${run.id}: denoised on the cluster (job ${out.clusterJobId}, ${payload.mode}, ${noise.length} of ${k} components) → ${out.key}`,
+        );
         return result;
       } catch (err) {
         await removeKey(out.key).catch(() => undefined);
@@ -96,18 +132,43 @@ export const denoiseKind = defineJobKind({
     }
     let motion;
     if (payload.includeMotion) {
-      const full = parseMotionFile(await readFile(pathFor(run.motion_key), 'utf8'), { order: motionOrderOf(run.motion_order), rotationUnits: run.motion_rotation_units ?? 'radians', expectedRows: image.nt });
+      const full = parseMotionFile(await readFile(pathFor(run.motion_key), 'utf8'), {
+        order: motionOrderOf(run.motion_order),
+        rotationUnits: run.motion_rotation_units ?? 'radians',
+        expectedRows: image.nt,
+      });
       motion = dropInitialVolumes(full, drop);
     }
     ctx.throwIfStopped();
     const key = newKey('denoised', '.nii.gz');
     try {
       const out = await denoiseImage({
-        image, drop, timecourses: tcs, k, noise, mode: payload.mode, motion, mask, outPath: await ensureDirFor(key),
+        image,
+        drop,
+        timecourses: tcs,
+        k,
+        noise,
+        mode: payload.mode,
+        motion,
+        mask,
+        outPath: await ensureDirFor(key),
         onProgress: (pct) => ctx.progressSync(pct < 50 ? 'fitting' : 'writing', 5 + pct * 0.9),
       });
-      const result: DenoiseResult = { key, name, sha256: out.sha256, bytes: out.bytes, mode: payload.mode, includeMotion: payload.includeMotion, noise, releaseId: payload.releaseId ?? null, volumes: out.volumes };
-      await ctx.commit(async () => result, (v) => v);
+      const result: DenoiseResult = {
+        key,
+        name,
+        sha256: out.sha256,
+        bytes: out.bytes,
+        mode: payload.mode,
+        includeMotion: payload.includeMotion,
+        noise,
+        releaseId: payload.releaseId ?? null,
+        volumes: out.volumes,
+      };
+      await ctx.commit(
+        async () => result,
+        (v) => v,
+      );
       ctx.logger.info(`run ${run.id}: denoised (${payload.mode}, ${noise.length} of ${k} components${motion ? ' + motion' : ''}) → ${key}`);
       return result;
     } catch (err) {

@@ -16,7 +16,8 @@ export const notifyAssignmentsKind = defineJobKind({
     await ctx.progress('sending', 1);
     const result = await sendAssignmentNotices(ctx.db);
     ctx.logger.info(`assignment e-mails: ${result.sent.length} sent, ${result.failed.length} failed`);
-    if (result.failed.length) throw new JobError(`The assignment e-mail to ${result.failed.length} rater(s) could not be sent; it is tried again.`);
+    if (result.failed.length)
+      throw new JobError(`The assignment e-mail to ${result.failed.length} rater(s) could not be sent; it is tried again.`);
     return { sent: result.sent };
   },
 });

@@ -19,8 +19,12 @@ export const notifyVotesCompleteKind = defineJobKind({
     const result = await sendVotesCompleteNotices(ctx.db);
     const drift = await sendDriftNotices(ctx.db);
     if (drift.sent.length || drift.failed) ctx.logger.info(`calibration drift e-mails: ${drift.sent.length} sent, ${drift.failed} failed`);
-    const next = (await ratingsOpen(ctx.db)) ? await ensureNotifyJob(ctx.db, { kind: NOTIFY_VOTES_COMPLETE, delayMs: votesCompleteScanMs() }) : null;
-    ctx.logger.info(`votes-complete e-mails: ${result.sent.length} sent, ${result.failed} failed${next ? `; next check job ${next.jobId}` : ''}`);
+    const next = (await ratingsOpen(ctx.db))
+      ? await ensureNotifyJob(ctx.db, { kind: NOTIFY_VOTES_COMPLETE, delayMs: votesCompleteScanMs() })
+      : null;
+    ctx.logger.info(
+      `votes-complete e-mails: ${result.sent.length} sent, ${result.failed} failed${next ? `; next check job ${next.jobId}` : ''}`,
+    );
     return { sent: result.sent, failed: result.failed, nextJobId: next?.jobId ?? null };
   },
 });

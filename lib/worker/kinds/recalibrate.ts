@@ -14,7 +14,8 @@ export const recalibrateKind = defineJobKind({
   async run(ctx) {
     await ctx.progress('assigning', 1);
     const result = await assignDueRecalibrations(ctx.db);
-    if (ctx.payload.repeat && (await ctx.db('studies').whereNotNull('recalibration_weeks').first('id'))) await ensureRecalibrationJob(ctx.db);
+    if (ctx.payload.repeat && (await ctx.db('studies').whereNotNull('recalibration_weeks').first('id')))
+      await ensureRecalibrationJob(ctx.db);
     ctx.logger.info(`re-calibration: ${result.started.length} rater(s) got the calibration set again`);
     return { started: result.started.length };
   },

@@ -16,16 +16,20 @@ export const releaseKind = defineJobKind({
   kind: 'release',
   payloadSchema: releasePayloadSchema,
   async run(ctx) {
-    if (ctx.job.createdBy == null) throw new PermanentJobError('The release job does not say which lead asked for it; ask again from the releases page.');
+    if (ctx.job.createdBy == null)
+      throw new PermanentJobError('The release job does not say which lead asked for it; ask again from the releases page.');
     try {
       const created = await buildRelease(
         { ...ctx.payload, actorId: ctx.job.createdBy },
         {
           progress: (stage, percent) => ctx.progress(stage, percent),
-          commit: (write) => ctx.commit(write, (v): ReleaseJobResult => ({ releaseId: v.releaseId, version: v.version, files: v.manifest.files.length })),
+          commit: (write) =>
+            ctx.commit(write, (v): ReleaseJobResult => ({ releaseId: v.releaseId, version: v.version, files: v.manifest.files.length })),
         },
       );
-      ctx.logger.info(`study ${ctx.payload.studyId}: released version ${created.version} (release ${created.releaseId}, ${created.manifest.files.length} files)`);
+      ctx.logger.info(
+        `study ${ctx.payload.studyId}: released version ${created.version} (release ${created.releaseId}, ${created.manifest.files.length} files)`,
+      );
       return created;
     } catch (err) {
       if (err instanceof AppError) throw new PermanentJobError(err.message, { cause: err });

@@ -22,7 +22,10 @@ export const scoreSuggestionsKind = defineJobKind({
     const rows = await componentsToScore({ studyId: payload.studyId, runId: payload.runId }, ctx.db);
     await ctx.progress('scoring', 30);
     const scored = scoreComponents(model.model, rows);
-    await ctx.commit((trx) => insertSuggestions(trx, model.id, scored), () => ({ scored: scored.length, modelId: model.id }));
+    await ctx.commit(
+      (trx) => insertSuggestions(trx, model.id, scored),
+      () => ({ scored: scored.length, modelId: model.id }),
+    );
     ctx.logger.info(`study ${payload.studyId}: ${scored.length} components scored with suggestion model v${model.version}`);
     return { scored: scored.length, modelId: model.id };
   },

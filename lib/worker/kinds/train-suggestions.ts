@@ -19,7 +19,10 @@ export const trainSuggestionsKind = defineJobKind({
     const { payload } = ctx;
     await ctx.progress('reading', 1);
     const data = await trainingData({ studyIds: payload.sourceStudyIds }, ctx.db);
-    if (data.rows.length === 0) throw new PermanentJobError('The selected studies have no released signal or noise decisions yet; release decisions first, then train.');
+    if (data.rows.length === 0)
+      throw new PermanentJobError(
+        'The selected studies have no released signal or noise decisions yet; release decisions first, then train.',
+      );
     await ctx.progress('cross-validating', 5);
     let trained;
     try {
@@ -31,16 +34,31 @@ export const trainSuggestionsKind = defineJobKind({
     const stored = await ctx.commit(
       async (trx) => {
         const m = await insertSuggestionModel(trx, {
-          studyId: payload.studyId, model: trained.model, report: trained.report,
+          studyId: payload.studyId,
+          model: trained.model,
+          report: trained.report,
           training: { studies: payload.sourceStudyIds, releases: data.releases, skipped: data.skipped },
           createdBy: ctx.job.createdBy ?? null,
         });
-        await enqueueJob(trx, { kind: 'score-suggestions', payload: { studyId: payload.studyId }, studyId: payload.studyId, createdBy: ctx.job.createdBy ?? null });
+        await enqueueJob(trx, {
+          kind: 'score-suggestions',
+          payload: { studyId: payload.studyId },
+          studyId: payload.studyId,
+          createdBy: ctx.job.createdBy ?? null,
+        });
         return m;
       },
-      (m) => ({ modelId: m.id, version: m.version, chosen: trained.report.chosen, accuracy: trained.report.score.percentAgreement.value, n: trained.report.n }),
+      (m) => ({
+        modelId: m.id,
+        version: m.version,
+        chosen: trained.report.chosen,
+        accuracy: trained.report.score.percentAgreement.value,
+        n: trained.report.n,
+      }),
     );
-    ctx.logger.info(`study ${payload.studyId}: suggestion model v${stored.version} (${trained.report.chosen}) from ${data.rows.length} components`);
+    ctx.logger.info(
+      `study ${payload.studyId}: suggestion model v${stored.version} (${trained.report.chosen}) from ${data.rows.length} components`,
+    );
     return stored;
   },
 });

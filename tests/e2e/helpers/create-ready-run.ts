@@ -10,14 +10,27 @@ import { createReadyRun } from './ready-run';
 import type { PhantomSize } from '@/lib/phantom';
 
 async function main() {
-  const args = JSON.parse(process.argv[2] ?? '{}') as { raters?: string[]; size?: PhantomSize; seed?: number; components?: number; withMotion?: boolean; reproducibility?: number[]; restarts?: number };
+  const args = JSON.parse(process.argv[2] ?? '{}') as {
+    raters?: string[];
+    size?: PhantomSize;
+    seed?: number;
+    components?: number;
+    withMotion?: boolean;
+    reproducibility?: number[];
+    restarts?: number;
+  };
   const settings = resolveDbSettings();
   if (!/e2e|test/.test(settings.database)) throw new Error(`refusing to write test runs into ${settings.database}`);
   const db = createDb(settings);
   try {
-    const study = await db('studies').where({ slug: 'evening-light-sleep-rest' }).first('id').then((s) => s ?? db('studies').orderBy('id').first('id'));
+    const study = await db('studies')
+      .where({ slug: 'evening-light-sleep-rest' })
+      .first('id')
+      .then((s) => s ?? db('studies').orderBy('id').first('id'));
     const lead = await db('users').where({ email: 'lead@fernhollow.example' }).first('id');
-    const raters = await db('users').whereIn('email', args.raters ?? ['rater1@fernhollow.example', 'rater2@fernhollow.example']).select('id');
+    const raters = await db('users')
+      .whereIn('email', args.raters ?? ['rater1@fernhollow.example', 'rater2@fernhollow.example'])
+      .select('id');
     const run = await createReadyRun(db, {
       studyId: study.id,
       createdBy: lead.id,

@@ -7,7 +7,13 @@ import path from 'node:path';
  * release. Runs in a child process against the browser tests' database. Returns the study id.
  */
 export function createDecidedStudy(name: string, sub = 'wk01'): number {
-  const out = execFileSync('node', ['--import', 'tsx', '-e', `
+  const out = execFileSync(
+    'node',
+    [
+      '--import',
+      'tsx',
+      '-e',
+      `
     Promise.all([import('./lib/db/knex.ts'), import('./tests/e2e/helpers/ready-run.ts'), import('./tests/integration/helpers/submitted.ts')]).then(async ([{ createDb }, { createReadyRun }, { markSubmitted }]) => {
       const db = createDb();
       const ids = Object.fromEntries((await db('users').select('id', 'email')).map((u) => [u.email.split('@')[0], u.id]));
@@ -23,9 +29,16 @@ export function createDecidedStudy(name: string, sub = 'wk01'): number {
       await markSubmitted(db, { runId: run.runId }); // as the desk's submit does: agreement reads the votes as first submitted
       process.stdout.write(JSON.stringify({ studyId }));
       await db.destroy();
-    });`], {
-    env: { ...process.env, QUORUM_DB_NAME: process.env.QUORUM_DB_NAME ?? 'quorum_e2e', QUORUM_UPLOADS_DIR: process.env.QUORUM_UPLOADS_DIR ?? path.resolve('.data/e2e-uploads') },
-    encoding: 'utf8',
-  });
+    });`,
+    ],
+    {
+      env: {
+        ...process.env,
+        QUORUM_DB_NAME: process.env.QUORUM_DB_NAME ?? 'quorum_e2e',
+        QUORUM_UPLOADS_DIR: process.env.QUORUM_UPLOADS_DIR ?? path.resolve('.data/e2e-uploads'),
+      },
+      encoding: 'utf8',
+    },
+  );
   return JSON.parse(out).studyId;
 }

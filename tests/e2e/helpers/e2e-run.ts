@@ -8,7 +8,17 @@ export type E2eRun = { runId: number; decompositionId: number; componentIds: num
  * Creates a ready run in the browser tests' database (quorum_e2e) with its files under the e2e
  * server's uploads folder, assigned to the given demo raters (the way the worker leaves a run).
  */
-export function createE2eRun(opts: { raters?: string[]; size?: 'tiny' | 'small' | 'XS' | 'S'; seed?: number; components?: number; withMotion?: boolean; reproducibility?: number[]; restarts?: number } = {}): E2eRun {
+export function createE2eRun(
+  opts: {
+    raters?: string[];
+    size?: 'tiny' | 'small' | 'XS' | 'S';
+    seed?: number;
+    components?: number;
+    withMotion?: boolean;
+    reproducibility?: number[];
+    restarts?: number;
+  } = {},
+): E2eRun {
   const root = process.cwd();
   const out = execFileSync('node', ['--import', 'tsx', 'tests/e2e/helpers/create-ready-run.ts', JSON.stringify(opts)], {
     cwd: root,

@@ -50,7 +50,10 @@ export async function createReadyRun(db: Knex, opts: ReadyRunOptions): Promise<R
   const [nx, ny, nz, nt] = p.dims;
   const boldBytes = encodeNifti1(phantomToNiftiInput(p));
   const image = decodeNifti(boldBytes);
-  const result = await decomposeRun({ image }, { drop, threads: 1, components: opts.components ?? 'auto', seed: 1, ...(opts.restarts ? { restarts: opts.restarts } : {}) });
+  const result = await decomposeRun(
+    { image },
+    { drop, threads: 1, components: opts.components ?? 'auto', seed: 1, ...(opts.restarts ? { restarts: opts.restarts } : {}) },
+  );
   if (opts.reproducibility) result.reproducibility = Float64Array.from({ length: result.k }, (_, c) => opts.reproducibility![c] ?? 1);
 
   const motionFull: MotionParams = { translations: p.motion.translations, rotations: p.motion.rotations };
@@ -94,7 +97,14 @@ export async function createReadyRun(db: Knex, opts: ReadyRunOptions): Promise<R
     });
     const decompositionId = await storeDecomposition(trx, {
       runId,
-      parameters: { engine: 'quorum-decomposition', dropVolumes: drop, varianceNorm: true, dimMethodUsed: result.dimMethod, seedUsed: result.seed, contrast: result.contrast },
+      parameters: {
+        engine: 'quorum-decomposition',
+        dropVolumes: drop,
+        varianceNorm: true,
+        dimMethodUsed: result.dimMethod,
+        seedUsed: result.seed,
+        contrast: result.contrast,
+      },
       summary: decompositionSummary(result),
       files,
       components: rows,

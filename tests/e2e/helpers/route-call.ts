@@ -22,7 +22,13 @@ type RouteFn = (req: Request, ctx: { params: Promise<Record<string, string | str
 /** Calls `fn` like Next.js does and returns the status and parsed JSON. */
 export async function callRoute(
   fn: RouteFn,
-  { method = 'GET', url, params, body, headers = {} }: { method?: string; url: string; params: Record<string, string>; body?: unknown; headers?: Record<string, string> },
+  {
+    method = 'GET',
+    url,
+    params,
+    body,
+    headers = {},
+  }: { method?: string; url: string; params: Record<string, string>; body?: unknown; headers?: Record<string, string> },
   // eslint-disable-next-line @typescript-eslint/no-explicit-any -- each test reads the JSON shape its route answers with
 ): Promise<{ status: number; json: any; res: Response }> {
   const req = new Request(`http://localhost${url}`, {

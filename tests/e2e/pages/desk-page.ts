@@ -32,7 +32,10 @@ export class DeskPage {
 
   /** The label of each component in the strip ('' = not labelled). */
   async stripLabels(): Promise<string[]> {
-    return this.page.getByTestId('component-strip').locator('button').evaluateAll((els) => els.map((e) => e.getAttribute('data-label') ?? ''));
+    return this.page
+      .getByTestId('component-strip')
+      .locator('button')
+      .evaluateAll((els) => els.map((e) => e.getAttribute('data-label') ?? ''));
   }
 
   async waitSaved() {

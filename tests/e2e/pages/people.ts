@@ -33,15 +33,31 @@ export function unique(prefix: string): { email: string; ip: string } {
 }
 
 /** Creates an active account straight in the database (faster than the invitation flow). */
-export async function createAccount(db: Knex, { email, password, role = 'rater', name }: { email: string; password: string; role?: string; name?: string }): Promise<number> {
-  const [id] = await db('users').insert({ email, name: name ?? email.split('@')[0], role, active: true, password_hash: await hashPassword(password) });
+export async function createAccount(
+  db: Knex,
+  { email, password, role = 'rater', name }: { email: string; password: string; role?: string; name?: string },
+): Promise<number> {
+  const [id] = await db('users').insert({
+    email,
+    name: name ?? email.split('@')[0],
+    role,
+    active: true,
+    password_hash: await hashPassword(password),
+  });
   return Number(id);
 }
 
 /** Stores a link in a given state and returns its token (for the refusal pages). */
 export async function storeLink(
   db: Knex,
-  { kind, email, expiresAt, usedAt = null, invitedBy = null, userId = null }: { kind: 'invite' | 'reset'; email: string; expiresAt: Date; usedAt?: Date | null; invitedBy?: number | null; userId?: number | null },
+  {
+    kind,
+    email,
+    expiresAt,
+    usedAt = null,
+    invitedBy = null,
+    userId = null,
+  }: { kind: 'invite' | 'reset'; email: string; expiresAt: Date; usedAt?: Date | null; invitedBy?: number | null; userId?: number | null },
 ): Promise<string> {
   const { token } = newToken();
   await db('invitations').insert({

@@ -30,7 +30,10 @@ export class ReleasesPage {
 
   /** Clicks "Download ZIP" of a version and saves the file; returns its path. */
   async downloadZip(version: number, to: string) {
-    const [download] = await Promise.all([this.page.waitForEvent('download'), this.page.getByTestId(`download-release-${version}`).click()]);
+    const [download] = await Promise.all([
+      this.page.waitForEvent('download'),
+      this.page.getByTestId(`download-release-${version}`).click(),
+    ]);
     await download.saveAs(to);
     return { path: to, name: download.suggestedFilename() };
   }

@@ -74,7 +74,10 @@ export async function createStudy(db: Knex, opts: { createdBy: number; name?: st
   return Number(id);
 }
 
-export async function addMember(db: Knex, opts: { studyId: number; userId: number; studyRole: 'lead' | 'rater' | 'observer' }): Promise<void> {
+export async function addMember(
+  db: Knex,
+  opts: { studyId: number; userId: number; studyRole: 'lead' | 'rater' | 'observer' },
+): Promise<void> {
   await db('study_members').insert({ study_id: opts.studyId, user_id: opts.userId, study_role: opts.studyRole });
 }
 

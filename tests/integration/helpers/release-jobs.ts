@@ -15,7 +15,10 @@ export async function runReleaseJobs(db: Knex): Promise<{ jobId: number; outcome
   for (;;) {
     const job = await claimJob(db, { workerId: 'test-release-worker', kinds: ['release'], leaseMs: 60_000 });
     if (!job) return done;
-    done.push({ jobId: job.id, outcome: await runClaimedJob(db, job, { workerId: 'test-release-worker', leaseMs: 60_000, kinds: jobKinds, logger }) });
+    done.push({
+      jobId: job.id,
+      outcome: await runClaimedJob(db, job, { workerId: 'test-release-worker', leaseMs: 60_000, kinds: jobKinds, logger }),
+    });
   }
 }
 
@@ -28,5 +31,8 @@ export async function buildRequestedRelease<R extends { status: number; json: an
   if (res.status !== 202) return res;
   await runReleaseJobs(db);
   const job = await db('jobs').where({ id: res.json.jobId }).first('status', 'message', 'result');
-  return { ...res, json: { ...res.json, jobStatus: job?.status, jobMessage: job?.message, ...(parseJson<object>(job?.result, null) ?? {}) } };
+  return {
+    ...res,
+    json: { ...res.json, jobStatus: job?.status, jobMessage: job?.message, ...(parseJson<object>(job?.result, null) ?? {}) },
+  };
 }

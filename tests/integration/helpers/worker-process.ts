@@ -17,27 +17,26 @@ export interface WorkerProcess {
   exited: Promise<{ code: number | null; signal: NodeJS.Signals | null }>;
 }
 
-export function spawnWorker(opts: {
-  uploadsDir: string;
-  args?: string[];
-  workerId?: string;
-  env?: Record<string, string>;
-}): WorkerProcess {
+export function spawnWorker(opts: { uploadsDir: string; args?: string[]; workerId?: string; env?: Record<string, string> }): WorkerProcess {
   const workerId = opts.workerId ?? `test-worker-${Math.random().toString(16).slice(2, 8)}`;
-  const child = spawn(process.execPath, ['--conditions=react-server', '--import', 'tsx', 'scripts/worker.ts', ...(opts.args ?? ['--once'])], {
-    cwd: root,
-    env: {
-      ...process.env,
-      NODE_ENV: 'test',
-      QUORUM_DB_NAME: process.env.QUORUM_DB_NAME ?? 'quorum_test',
-      QUORUM_UPLOADS_DIR: opts.uploadsDir,
-      QUORUM_WORKER_ID: workerId,
-      QUORUM_JOB_POLL_MS: '100',
-      QUORUM_DECOMPOSE_THREADS: '1',
-      ...opts.env,
+  const child = spawn(
+    process.execPath,
+    ['--conditions=react-server', '--import', 'tsx', 'scripts/worker.ts', ...(opts.args ?? ['--once'])],
+    {
+      cwd: root,
+      env: {
+        ...process.env,
+        NODE_ENV: 'test',
+        QUORUM_DB_NAME: process.env.QUORUM_DB_NAME ?? 'quorum_test',
+        QUORUM_UPLOADS_DIR: opts.uploadsDir,
+        QUORUM_WORKER_ID: workerId,
+        QUORUM_JOB_POLL_MS: '100',
+        QUORUM_DECOMPOSE_THREADS: '1',
+        ...opts.env,
+      },
+      stdio: ['ignore', 'pipe', 'pipe'],
     },
-    stdio: ['ignore', 'pipe', 'pipe'],
-  });
+  );
   const lines: string[] = [];
   const collect = (buf: Buffer) => {
     for (const l of buf.toString('utf8').split('\n')) if (l.trim()) lines.push(l);
@@ -51,7 +50,10 @@ export function spawnWorker(opts: {
 }
 
 /** Polls `check` every `everyMs` until it returns a truthy value or `timeoutMs` passes. */
-export async function waitFor<T>(check: () => Promise<T | null | undefined | false>, { timeoutMs = 20_000, everyMs = 20 } = {}): Promise<T> {
+export async function waitFor<T>(
+  check: () => Promise<T | null | undefined | false>,
+  { timeoutMs = 20_000, everyMs = 20 } = {},
+): Promise<T> {
   const end = Date.now() + timeoutMs;
   for (;;) {
     const v = await check();

@@ -28,7 +28,9 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
   const [result, choices] = await Promise.all([queryAuditLog({ filter, page, pageSize }), auditFilterChoices()]);
   const pages = Math.max(1, Math.ceil(result.total / pageSize));
   const filterQuery = new URLSearchParams(
-    Object.entries(filter).filter(([, v]) => v !== undefined && v !== '').map(([k, v]) => [k, String(v)]),
+    Object.entries(filter)
+      .filter(([, v]) => v !== undefined && v !== '')
+      .map(([k, v]) => [k, String(v)]),
   );
   const pageHref = (p: number) => {
     const q = new URLSearchParams(filterQuery);
@@ -49,7 +51,11 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
       <Panel
         title="Audit log"
         actions={
-          <a href={`/api/admin/audit/export${filterQuery.size ? `?${filterQuery}` : ''}`} className="text-sm text-lumen hover:text-lumen-strong" data-testid="audit-export">
+          <a
+            href={`/api/admin/audit/export${filterQuery.size ? `?${filterQuery}` : ''}`}
+            className="text-sm text-lumen hover:text-lumen-strong"
+            data-testid="audit-export"
+          >
             Download CSV
           </a>
         }
@@ -78,7 +84,9 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
                     <td className="py-1.5 pr-3 tabular-nums text-ink-muted">{utcMinute(e.createdAt)}</td>
                     <td className="py-1.5 pr-3">{e.actorName ?? (e.actorId ? `#${e.actorId}` : 'system / anonymous')}</td>
                     <td className="py-1.5 pr-3 font-mono text-xs">{e.action}</td>
-                    <td className="py-1.5 pr-3 text-ink-muted">{e.targetType ? `${e.targetType}${e.targetId ? ` #${e.targetId}` : ''}` : '—'}</td>
+                    <td className="py-1.5 pr-3 text-ink-muted">
+                      {e.targetType ? `${e.targetType}${e.targetId ? ` #${e.targetId}` : ''}` : '—'}
+                    </td>
                     <td className="py-1.5 pr-3 text-ink-muted">{e.studyName ?? '—'}</td>
                     <td className="py-1.5 pr-3 text-xs text-ink-muted">{describe(e.detail)}</td>
                   </tr>

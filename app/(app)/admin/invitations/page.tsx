@@ -35,7 +35,8 @@ export default async function InvitationsPage() {
       <AdminTabs role={user.role} current="/admin/invitations" />
       <Panel title="Invite by e-mail">
         <p className="mb-4 text-sm text-ink-muted">
-          The person gets a link that works once and expires in {Math.round(inviteTtlMs() / 86_400_000)} days; they choose their name and password.
+          The person gets a link that works once and expires in {Math.round(inviteTtlMs() / 86_400_000)} days; they choose their name and
+          password.
         </p>
         <InviteForm roles={roles} studies={studies} studyRoles={isAdmin ? ['lead', 'rater', 'observer'] : ['rater', 'observer']} />
       </Panel>

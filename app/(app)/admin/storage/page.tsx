@@ -34,14 +34,18 @@ export default async function StoragePage() {
                 <td className="py-1.5 text-right">{bytes(s.runBytes)}</td>
                 <td className="py-1.5 text-right">
                   {bytes(s.decompositionBytes)}
-                  {s.unrecordedDecompositions ? <span className="text-ink-faint"> (+{s.unrecordedDecompositions} not measured)</span> : null}
+                  {s.unrecordedDecompositions ? (
+                    <span className="text-ink-faint"> (+{s.unrecordedDecompositions} not measured)</span>
+                  ) : null}
                 </td>
                 <td className="py-1.5 text-right">{bytes(s.totalBytes)}</td>
               </tr>
             ))}
           </tbody>
         </table>
-        <p className="mt-3 text-xs text-ink-faint">Sizes as recorded when files were stored: uploads plus each decomposition&rsquo;s maps, mean image and mask.</p>
+        <p className="mt-3 text-xs text-ink-faint">
+          Sizes as recorded when files were stored: uploads plus each decomposition&rsquo;s maps, mean image and mask.
+        </p>
       </Panel>
     </div>
   );

@@ -25,36 +25,69 @@ export default async function StudyPage({ params }: { params: Promise<{ id: stri
     <div className="flex flex-col gap-6">
       <div className="flex flex-wrap items-start justify-between gap-3">
         <div>
-          <h1 className="text-xl font-semibold" data-testid="study-name">{study.name}</h1>
+          <h1 className="text-xl font-semibold" data-testid="study-name">
+            {study.name}
+          </h1>
           {study.description ? <p className="max-w-3xl text-sm text-ink-muted">{study.description}</p> : null}
           <p className="mt-1 text-xs text-ink-faint">
-            {study.ratersPerRun} rater{study.ratersPerRun === 1 ? '' : 's'} per run · {CONSENSUS_NAMES[study.consensusRule]} · blinding {study.blinding ? 'on' : 'off'} · drop {study.dropVolumes} volumes · {DIM_METHOD_NAMES[study.dimMethod]}
-            {study.dimMethod === 'fixed' ? ` (${study.fixedComponents})` : study.dimMethod === 'variance' ? ` (${study.varianceFraction})` : ''}
+            {study.ratersPerRun} rater{study.ratersPerRun === 1 ? '' : 's'} per run · {CONSENSUS_NAMES[study.consensusRule]} · blinding{' '}
+            {study.blinding ? 'on' : 'off'} · drop {study.dropVolumes} volumes · {DIM_METHOD_NAMES[study.dimMethod]}
+            {study.dimMethod === 'fixed'
+              ? ` (${study.fixedComponents})`
+              : study.dimMethod === 'variance'
+                ? ` (${study.varianceFraction})`
+                : ''}
           </p>
         </div>
         <nav className="flex gap-2 text-sm" aria-label="Study">
           {access.canManage ? (
-            <Link href={`/studies/${id}/reconcile`} className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised" data-testid="study-reconcile-link">
+            <Link
+              href={`/studies/${id}/reconcile`}
+              className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised"
+              data-testid="study-reconcile-link"
+            >
               Reconcile{progress.openDisagreements ? ` (${progress.openDisagreements})` : ''}
             </Link>
           ) : null}
           {access.canManage ? (
-            <Link href={`/studies/${id}/calibration`} className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised" data-testid="study-calibration-link">
+            <Link
+              href={`/studies/${id}/calibration`}
+              className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised"
+              data-testid="study-calibration-link"
+            >
               Calibration
             </Link>
           ) : null}
-          {access.seesAllRuns ? <Link href={`/studies/${id}/agreement`} className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised">Agreement</Link> : null}
           {access.seesAllRuns ? (
-            <Link href={`/studies/${id}/releases`} className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised" data-testid="study-releases-link">
+            <Link href={`/studies/${id}/agreement`} className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised">
+              Agreement
+            </Link>
+          ) : null}
+          {access.seesAllRuns ? (
+            <Link
+              href={`/studies/${id}/releases`}
+              className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised"
+              data-testid="study-releases-link"
+            >
               Releases
             </Link>
           ) : null}
-          <Link href={`/studies/${id}/settings`} className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised" data-testid="study-settings-link">
+          <Link
+            href={`/studies/${id}/settings`}
+            className="rounded border border-line-strong px-3 py-1.5 hover:bg-ground-raised"
+            data-testid="study-settings-link"
+          >
             {access.canManage ? 'Protocol and members' : 'Protocol'}
           </Link>
         </nav>
       </div>
-      <StudyClient studyId={id} initial={{ runs, progress }} canManage={access.canManage} readOnlyOpen={access.seesAllRuns} maxBytes={maxUploadBytes()} />
+      <StudyClient
+        studyId={id}
+        initial={{ runs, progress }}
+        canManage={access.canManage}
+        readOnlyOpen={access.seesAllRuns}
+        maxBytes={maxUploadBytes()}
+      />
     </div>
   );
 }

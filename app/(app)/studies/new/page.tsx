@@ -10,7 +10,9 @@ export default async function NewStudyPage() {
   return (
     <div className="flex flex-col gap-6">
       <h1 className="text-xl font-semibold">New study</h1>
-      <p className="max-w-3xl text-sm text-ink-muted">You become the study&apos;s lead. Add raters and observers on the study&apos;s settings page afterwards.</p>
+      <p className="max-w-3xl text-sm text-ink-muted">
+        You become the study&apos;s lead. Add raters and observers on the study&apos;s settings page afterwards.
+      </p>
       <StudyForm initial={STUDY_DEFAULTS} />
     </div>
   );

@@ -50,7 +50,12 @@ export function AcceptInvitationForm({
   }
 
   return (
-    <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4 rounded-lg border border-line bg-ground-raised p-6" data-testid="accept-form">
+    <form
+      onSubmit={onSubmit}
+      noValidate
+      className="flex flex-col gap-4 rounded-lg border border-line bg-ground-raised p-6"
+      data-testid="accept-form"
+    >
       <div>
         <h1 className="text-lg font-semibold">Join Quorum</h1>
         <p className="mt-1 text-sm text-ink-muted">

@@ -38,7 +38,12 @@ export function ResetPasswordForm({ token, email }: { token: string; email: stri
   }
 
   return (
-    <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4 rounded-lg border border-line bg-ground-raised p-6" data-testid="reset-form">
+    <form
+      onSubmit={onSubmit}
+      noValidate
+      className="flex flex-col gap-4 rounded-lg border border-line bg-ground-raised p-6"
+      data-testid="reset-form"
+    >
       <div>
         <h1 className="text-lg font-semibold">Choose a new password</h1>
         <p className="mt-1 text-sm text-ink-muted">For {email}.</p>
@@ -56,7 +61,13 @@ export function ResetPasswordForm({ token, email }: { token: string; email: stri
         {...register('password')}
         error={formState.errors.password?.message}
       />
-      <Field label="New password again" type="password" autoComplete="new-password" {...register('confirmPassword')} error={formState.errors.confirmPassword?.message} />
+      <Field
+        label="New password again"
+        type="password"
+        autoComplete="new-password"
+        {...register('confirmPassword')}
+        error={formState.errors.confirmPassword?.message}
+      />
       <Button type="submit" disabled={formState.isSubmitting} data-testid="reset-submit">
         {formState.isSubmitting ? 'Saving…' : 'Save the new password'}
       </Button>

@@ -12,7 +12,14 @@ export const GET = nextAuth;
 export async function POST(req: Request, ctx: { params: Promise<{ nextauth: string[] }> }) {
   const { nextauth } = await ctx.params;
   if (nextauth.join('/') === 'callback/credentials') {
-    const form = Object.fromEntries((await req.clone().formData().catch(() => new FormData())).entries());
+    const form = Object.fromEntries(
+      (
+        await req
+          .clone()
+          .formData()
+          .catch(() => new FormData())
+      ).entries(),
+    );
     const parsed = signInSchema.safeParse(form);
     if (!parsed.success) return AppError.fromZod(parsed.error, 'The sign-in form').toResponse();
   }

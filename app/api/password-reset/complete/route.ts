@@ -11,7 +11,8 @@ export const POST = handler({ permission: 'public', body: resetCompleteSchema, w
   const ip = auditAddress(req);
   const key = addressKey('reset:link', req);
   const wait = key ? await lockedFor(key) : 0;
-  if (wait > 0) throw new AppError('too_many_requests', `Too many attempts with invalid links. Try again in ${Math.ceil(wait / 60000)} minutes.`);
+  if (wait > 0)
+    throw new AppError('too_many_requests', `Too many attempts with invalid links. Try again in ${Math.ceil(wait / 60000)} minutes.`);
   const passwordHash = await hashPassword(body.password);
   try {
     await completePasswordReset({ token: body.token, passwordHash, ip });

@@ -10,6 +10,14 @@ const params = z.object({ releaseId: z.coerce.number().int().positive() });
 // GET /api/releases/:releaseId – one release with its manifest (files and checksums), the denoised files made from it, and how many decisions changed since
 export const GET = handler({ permission: 'releases.read', params, what: 'The release request' }, async ({ user, params }) => {
   const { release } = await releaseFor({ user, releaseId: params.releaseId });
-  const denoised = (await releaseDenoisedFiles({ releaseId: release.id, runs: release.manifest!.runs })).map(({ key: _key, ...f }) => ({ ...f, url: `/api/releases/${release.id}/files/${encodeURIComponent(f.name)}` }));
-  return { ...release, manifest: publicManifest(release.manifest!), denoised, changedSince: await changedSinceRelease({ releaseId: release.id }) };
+  const denoised = (await releaseDenoisedFiles({ releaseId: release.id, runs: release.manifest!.runs })).map(({ key: _key, ...f }) => ({
+    ...f,
+    url: `/api/releases/${release.id}/files/${encodeURIComponent(f.name)}`,
+  }));
+  return {
+    ...release,
+    manifest: publicManifest(release.manifest!),
+    denoised,
+    changedSince: await changedSinceRelease({ releaseId: release.id }),
+  };
 });

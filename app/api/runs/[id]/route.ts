@@ -15,11 +15,15 @@ export const GET = handler({ permission: 'runs.read', params: runIdParams }, asy
 });
 
 // PATCH /api/runs/:id – correct the run's BIDS entities (refused once released, or when another run has them)
-export const PATCH = handler({ permission: 'runs.manage', params: runIdParams, body: runEntitiesSchema, what: 'The label change' }, async ({ req, user, params, body }) => ({
-  run: await editRunEntities({ user, runId: params.id, entities: body, ip: auditAddress(req) }),
-}));
+export const PATCH = handler(
+  { permission: 'runs.manage', params: runIdParams, body: runEntitiesSchema, what: 'The label change' },
+  async ({ req, user, params, body }) => ({
+    run: await editRunEntities({ user, runId: params.id, entities: body, ip: auditAddress(req) }),
+  }),
+);
 
 // DELETE /api/runs/:id[?confirmVotes=true] – delete a run; one with votes needs the second confirmation
-export const DELETE = handler({ permission: 'runs.manage', params: runIdParams, query: deleteRunQuerySchema }, async ({ user, params, query }) =>
-  deleteRun({ user, runId: params.id, confirmVotes: query.confirmVotes }),
+export const DELETE = handler(
+  { permission: 'runs.manage', params: runIdParams, query: deleteRunQuerySchema },
+  async ({ user, params, query }) => deleteRun({ user, runId: params.id, confirmVotes: query.confirmVotes }),
 );

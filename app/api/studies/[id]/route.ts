@@ -13,7 +13,15 @@ export const GET = handler({ permission: 'studies.read', params: studyIdParams }
 
 // PATCH /api/studies/:id – change the protocol (the study's leads and admins)
 export const PATCH = handler(
-  { permission: 'studies.update', params: studyIdParams, body: studyUpdateSchema, what: 'The protocol', scope: 'study', studyRule: 'lead', denied: 'changing this study: only its leads and the facility admin may' },
+  {
+    permission: 'studies.update',
+    params: studyIdParams,
+    body: studyUpdateSchema,
+    what: 'The protocol',
+    scope: 'study',
+    studyRule: 'lead',
+    denied: 'changing this study: only its leads and the facility admin may',
+  },
   async ({ user, access, body }) => {
     await updateStudy({ user, studyId: access.studyId, values: body });
     return { ok: true };

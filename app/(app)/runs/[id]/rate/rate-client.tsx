@@ -137,7 +137,10 @@ export function RateClient({
   const submit = useCallback(async () => {
     if (submitted || submitState.busy) return;
     if (labelledCount < ids.length) {
-      setSubmitState({ busy: false, message: `${ids.length - labelledCount} components are not labelled yet. Enter jumps to the next one.` });
+      setSubmitState({
+        busy: false,
+        message: `${ids.length - labelledCount} components are not labelled yet. Enter jumps to the next one.`,
+      });
       return;
     }
     if (sync.unsaved > 0) {
@@ -202,7 +205,22 @@ export function RateClient({
     };
     window.addEventListener('keydown', onKey);
     return () => window.removeEventListener('keydown', onKey);
-  }, [run.labelSet, run.noiseKinds, help, change, vote?.label, goTo, index, firstUnlabelled, submit, clearRefusal, setPrefs, order, toggleFlag, component.id]);
+  }, [
+    run.labelSet,
+    run.noiseKinds,
+    help,
+    change,
+    vote?.label,
+    goTo,
+    index,
+    firstUnlabelled,
+    submit,
+    clearRefusal,
+    setPrefs,
+    order,
+    toggleFlag,
+    component.id,
+  ]);
 
   const peak = component.features.peakZ == null ? null : Math.abs(Number(component.features.peakZ));
   const files = `/api/runs/${runId}/files`;
@@ -221,7 +239,9 @@ export function RateClient({
         {run.warnings?.length ? (
           <ul className="basis-full text-xs text-alarm" data-testid="desk-decomposition-warnings">
             {run.warnings.map((w) => (
-              <li key={w.code} data-testid={`desk-warning-${w.code}`}>{w.message}</li>
+              <li key={w.code} data-testid={`desk-warning-${w.code}`}>
+                {w.message}
+              </li>
             ))}
           </ul>
         ) : null}
@@ -238,7 +258,11 @@ export function RateClient({
           {flags.has(component.id) ? 'Flagged' : 'Flag'} (F)
         </button>
         {run.reproducibility?.hidden ? (
-          <p className="text-xs text-ink-muted" data-testid="desk-hidden-note" title="The study hides components whose reproducibility is below its threshold; the lead decides them.">
+          <p
+            className="text-xs text-ink-muted"
+            data-testid="desk-hidden-note"
+            title="The study hides components whose reproducibility is below its threshold; the lead decides them."
+          >
             {run.reproducibility.hidden} of {run.k} hidden (reproducibility below {run.reproducibility.threshold.toFixed(2)})
           </p>
         ) : null}
@@ -264,14 +288,24 @@ export function RateClient({
           data-phase={sync.phase}
           role="status"
         >
-          {sync.unsaved === 0 ? 'All votes saved' : sync.phase === 'retrying' ? `${sync.unsaved} unsaved, retrying` : `Saving ${sync.unsaved}…`}
+          {sync.unsaved === 0
+            ? 'All votes saved'
+            : sync.phase === 'retrying'
+              ? `${sync.unsaved} unsaved, retrying`
+              : `Saving ${sync.unsaved}…`}
         </p>
-        <button type="button" onClick={() => setHelp(true)} className="rounded border border-line-strong px-2 py-1 text-xs text-ink-muted hover:text-ink" data-testid="help-button">
+        <button
+          type="button"
+          onClick={() => setHelp(true)}
+          className="rounded border border-line-strong px-2 py-1 text-xs text-ink-muted hover:text-ink"
+          data-testid="help-button"
+        >
           Keys <kbd className="font-mono">?</kbd>
         </button>
         {submitted ? (
           <span className="text-xs text-ink-muted" data-testid="submitted-note">
-            Submitted {status?.submittedAt?.replace('T', ' ').slice(0, 16)} UTC · votes frozen{released ? ' (released)' : '; if a label must change, ask the study lead to reopen the run for you'}
+            Submitted {status?.submittedAt?.replace('T', ' ').slice(0, 16)} UTC · votes frozen
+            {released ? ' (released)' : '; if a label must change, ask the study lead to reopen the run for you'}
           </span>
         ) : (
           <button
@@ -302,7 +336,17 @@ export function RateClient({
         </Notice>
       ) : null}
 
-      <ComponentStrip ids={ids} current={index} votes={votes} onPick={goTo} numbers={numbers} lowIds={lowIds} flags={flags} filter={filter} onFilter={setFilter} />
+      <ComponentStrip
+        ids={ids}
+        current={index}
+        votes={votes}
+        onPick={goTo}
+        numbers={numbers}
+        lowIds={lowIds}
+        flags={flags}
+        filter={filter}
+        onFilter={setFilter}
+      />
       {goToOpen ? <GoToBox k={run.k} go={goToNumber} onClose={() => setGoToOpen(false)} /> : null}
 
       <div className="grid gap-3 lg:grid-cols-[minmax(0,1fr)_20rem]">
@@ -320,10 +364,20 @@ export function RateClient({
             onError={setViewerError}
           />
           <label className="flex items-center gap-1 text-xs text-ink-muted">
-            <input type="checkbox" checked={prefs.autoAdvance} onChange={() => setPrefs((p) => ({ ...p, autoAdvance: !p.autoAdvance }))} className="accent-lumen" />
+            <input
+              type="checkbox"
+              checked={prefs.autoAdvance}
+              onChange={() => setPrefs((p) => ({ ...p, autoAdvance: !p.autoAdvance }))}
+              className="accent-lumen"
+            />
             auto-advance (A)
           </label>
-          <ChartsPanel run={run} component={component} showMotion={prefs.showMotion} onShowMotion={(on) => setPrefs((p) => ({ ...p, showMotion: on }))} />
+          <ChartsPanel
+            run={run}
+            component={component}
+            showMotion={prefs.showMotion}
+            onShowMotion={(on) => setPrefs((p) => ({ ...p, showMotion: on }))}
+          />
         </div>
         <aside className="flex flex-col gap-3" aria-label="Vote and features">
           <VerdictPanel

@@ -24,7 +24,17 @@ const NO_VOTES = new Map();
  * The read-only run view: the rating desk's viewer, plots and features for a study's leads and
  * observers, without voting. Leads also see the votes of raters who have submitted the run.
  */
-export function ViewClient({ run, components, role, votes }: { run: DeskRun; components: DeskComponent[]; role: 'lead' | 'observer'; votes: Votes }) {
+export function ViewClient({
+  run,
+  components,
+  role,
+  votes,
+}: {
+  run: DeskRun;
+  components: DeskComponent[];
+  role: 'lead' | 'observer';
+  votes: Votes;
+}) {
   const [index, setIndex] = useState(0);
   const [prefs, setPrefs] = useDeskPrefs();
   const [help, setHelp] = useState(false);
@@ -34,7 +44,10 @@ export function ViewClient({ run, components, role, votes }: { run: DeskRun; com
   const ids = useMemo(() => components.map((c) => c.id), [components]);
   const numbers = useMemo(() => components.map((c) => c.idx), [components]);
   const order = useMemo(() => ids.map((_, i) => i), [ids]);
-  const lowIds = useMemo(() => new Set(components.filter((c) => isLowReproducibility(c.features, run.reproducibility.threshold)).map((c) => c.id)), [components, run.reproducibility.threshold]);
+  const lowIds = useMemo(
+    () => new Set(components.filter((c) => isLowReproducibility(c.features, run.reproducibility.threshold)).map((c) => c.id)),
+    [components, run.reproducibility.threshold],
+  );
   const component = components[index];
   const goTo = useCallback((i: number) => setIndex(i), []);
   const goToNumber = useCallback(
@@ -50,13 +63,18 @@ export function ViewClient({ run, components, role, votes }: { run: DeskRun; com
   useEffect(() => {
     const onKey = (e: KeyboardEvent) => {
       const target = e.target as HTMLElement | null;
-      if (target && (target.tagName === 'TEXTAREA' || target.tagName === 'INPUT' || target.tagName === 'SELECT' || target.isContentEditable)) return;
+      if (
+        target &&
+        (target.tagName === 'TEXTAREA' || target.tagName === 'INPUT' || target.tagName === 'SELECT' || target.isContentEditable)
+      )
+        return;
       const cmd = commandFor(e, []);
       if (!cmd) return;
       if (help && cmd.type !== 'help' && cmd.type !== 'close') return;
       if (cmd.type === 'help') setHelp((h) => !h);
       else if (cmd.type === 'close') setHelp(false);
-      else if (!applyViewCommand(cmd, { setPrefs, viewer: viewerApi.current, order, index, goTo, openGoTo: () => setGoToOpen(true) })) return;
+      else if (!applyViewCommand(cmd, { setPrefs, viewer: viewerApi.current, order, index, goTo, openGoTo: () => setGoToOpen(true) }))
+        return;
       e.preventDefault();
     };
     window.addEventListener('keydown', onKey);
@@ -90,7 +108,12 @@ export function ViewClient({ run, components, role, votes }: { run: DeskRun; com
             {votes.submitted} of {votes.assigned} raters submitted
           </p>
         ) : null}
-        <button type="button" onClick={() => setHelp(true)} className="ml-auto rounded border border-line-strong px-2 py-1 text-xs text-ink-muted hover:text-ink" data-testid="help-button">
+        <button
+          type="button"
+          onClick={() => setHelp(true)}
+          className="ml-auto rounded border border-line-strong px-2 py-1 text-xs text-ink-muted hover:text-ink"
+          data-testid="help-button"
+        >
           Keys <kbd className="font-mono">?</kbd>
         </button>
       </header>
@@ -121,7 +144,12 @@ export function ViewClient({ run, components, role, votes }: { run: DeskRun; com
             api={viewerApi}
             onError={setViewerError}
           />
-          <ChartsPanel run={run} component={component} showMotion={prefs.showMotion} onShowMotion={(on) => setPrefs((p) => ({ ...p, showMotion: on }))} />
+          <ChartsPanel
+            run={run}
+            component={component}
+            showMotion={prefs.showMotion}
+            onShowMotion={(on) => setPrefs((p) => ({ ...p, showMotion: on }))}
+          />
         </div>
         <aside className="flex flex-col gap-3" aria-label="Votes and features">
           {votes ? (

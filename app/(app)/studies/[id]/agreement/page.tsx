@@ -28,7 +28,9 @@ export default async function AgreementPage({ params }: { params: Promise<{ id: 
   const s = report.summary;
   const histogram = BINS.slice(0, -1).map((lo, i) => ({
     bin: i === 0 ? '< 0' : `${lo.toFixed(1)}–${Math.min(1, BINS[i + 1]).toFixed(1)}`,
-    runs: report.runs.filter((r) => r.krippendorffAlpha.value != null && r.krippendorffAlpha.value >= lo && r.krippendorffAlpha.value < BINS[i + 1]).length,
+    runs: report.runs.filter(
+      (r) => r.krippendorffAlpha.value != null && r.krippendorffAlpha.value >= lo && r.krippendorffAlpha.value < BINS[i + 1],
+    ).length,
   }));
 
   return (
@@ -45,7 +47,11 @@ export default async function AgreementPage({ params }: { params: Promise<{ id: 
           </h1>
         </div>
         <div className="flex gap-3 text-sm">
-          <a href={`/api/studies/${studyId}/agreement?format=csv`} className="rounded border border-line-strong px-3 py-1 hover:bg-ground-raised" data-testid="agreement-csv">
+          <a
+            href={`/api/studies/${studyId}/agreement?format=csv`}
+            className="rounded border border-line-strong px-3 py-1 hover:bg-ground-raised"
+            data-testid="agreement-csv"
+          >
             Numbers as CSV
           </a>
           <Link href={`/studies/${studyId}/report`} className="rounded border border-line-strong px-3 py-1 hover:bg-ground-raised">
@@ -63,7 +69,10 @@ export default async function AgreementPage({ params }: { params: Promise<{ id: 
           {report.decisions.pending && leadsStudy(access) ? (
             <>
               {' '}
-              — <Link href={`/studies/${studyId}/reconcile`} className="text-lumen hover:text-lumen-strong">reconcile them</Link>
+              —{' '}
+              <Link href={`/studies/${studyId}/reconcile`} className="text-lumen hover:text-lumen-strong">
+                reconcile them
+              </Link>
             </>
           ) : null}
           .
@@ -81,8 +90,8 @@ export default async function AgreementPage({ params }: { params: Promise<{ id: 
           <Headline stats={s.overall} />
           <p className="text-xs text-ink-faint">
             Over {s.items} components and {s.raters.length} raters; votes count once a rater has submitted the run. Intervals: percentile
-            bootstrap over components, 1000 resamples, seed 1. Bands after Landis &amp; Koch (1977), upper bounds inclusive. Signal/noise labels
-            are imbalanced, so read κ beside PABAK and AC1.
+            bootstrap over components, 1000 resamples, seed 1. Bands after Landis &amp; Koch (1977), upper bounds inclusive. Signal/noise
+            labels are imbalanced, so read κ beside PABAK and AC1.
           </p>
           <div className="grid gap-6 lg:grid-cols-2">
             <RaterPairsPanel summary={s} nameOf={nameOf} />
@@ -111,7 +120,12 @@ export default async function AgreementPage({ params }: { params: Promise<{ id: 
       <SuggestionsPanel
         studyId={studyId}
         canManage={leadsStudy(access)}
-        raters={(s?.vsDecision ?? []).map((r) => ({ name: nameOf(r.rater), kappa: r.cohenKappa, sensitivity: r.sensitivity, specificity: r.specificity }))}
+        raters={(s?.vsDecision ?? []).map((r) => ({
+          name: nameOf(r.rater),
+          kappa: r.cohenKappa,
+          sensitivity: r.sensitivity,
+          specificity: r.specificity,
+        }))}
       />
     </div>
   );

@@ -21,11 +21,16 @@ export default async function AssignmentsPage({ params }: { params: Promise<{ id
   return (
     <div className="flex flex-col gap-6">
       <div>
-        <p className="text-xs text-ink-faint"><Link href={`/studies/${id}`} className="hover:underline">{access.name}</Link></p>
+        <p className="text-xs text-ink-faint">
+          <Link href={`/studies/${id}`} className="hover:underline">
+            {access.name}
+          </Link>
+        </p>
         <h1 className="text-xl font-semibold">Assignments</h1>
         <p className="max-w-3xl text-sm text-ink-muted">
-          Raters are assigned automatically when a run is ready, balancing open work. Here you add, remove or hand over raters and set due dates.
-          Each rater gets one e-mail per batch listing the runs newly assigned to them; you get an e-mail when a run&apos;s votes are complete, and a daily summary of overdue work.
+          Raters are assigned automatically when a run is ready, balancing open work. Here you add, remove or hand over raters and set due
+          dates. Each rater gets one e-mail per batch listing the runs newly assigned to them; you get an e-mail when a run&apos;s votes are
+          complete, and a daily summary of overdue work.
         </p>
       </div>
       <Panel title="Runs and raters">

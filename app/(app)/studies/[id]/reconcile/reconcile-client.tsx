@@ -26,7 +26,15 @@ const METHOD_NAMES: Record<string, string> = {
   override: 'overridden by a lead',
 };
 
-export function ReconcileClient({ studyId, studyName, initialItems }: { studyId: number; studyName: string; initialItems: ReconcileItem[] }) {
+export function ReconcileClient({
+  studyId,
+  studyName,
+  initialItems,
+}: {
+  studyId: number;
+  studyName: string;
+  initialItems: ReconcileItem[];
+}) {
   const queryClient = useQueryClient();
   const [include, setInclude] = useState<'pending' | 'all'>('pending');
   const [prefs, setPrefs] = useDeskPrefs();
@@ -110,7 +118,11 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
         <div className="flex flex-wrap gap-2 text-sm">
           <label className="flex items-center gap-1 text-ink-muted">
             Run
-            <select className="rounded border border-line-strong bg-ground-sunken px-2 py-1 text-ink" value={runFilter ?? ''} onChange={(e) => setRunFilter(e.target.value ? Number(e.target.value) : undefined)}>
+            <select
+              className="rounded border border-line-strong bg-ground-sunken px-2 py-1 text-ink"
+              value={runFilter ?? ''}
+              onChange={(e) => setRunFilter(e.target.value ? Number(e.target.value) : undefined)}
+            >
               <option value="">all runs</option>
               {runs.map(([id, name]) => (
                 <option key={id} value={id}>
@@ -121,9 +133,16 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
           </label>
           <label className="flex items-center gap-1 text-ink-muted">
             A rater said
-            <select className="rounded border border-line-strong bg-ground-sunken px-2 py-1 text-ink" value={kindFilter ?? ''} onChange={(e) => setKindFilter(e.target.value || undefined)}>
+            <select
+              className="rounded border border-line-strong bg-ground-sunken px-2 py-1 text-ink"
+              value={kindFilter ?? ''}
+              onChange={(e) => setKindFilter(e.target.value || undefined)}
+            >
               <option value="">any noise kind</option>
-              {(kinds.length ? kinds : ['motion', 'pulsation', 'vascular', 'csf', 'white-matter', 'susceptibility', 'scanner', 'other']).map((k) => (
+              {(kinds.length
+                ? kinds
+                : ['motion', 'pulsation', 'vascular', 'csf', 'white-matter', 'susceptibility', 'scanner', 'other']
+              ).map((k) => (
                 <option key={k} value={k}>
                   {noiseKindName(k)}
                 </option>
@@ -132,7 +151,12 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
           </label>
           <label className="flex items-center gap-1 text-ink-muted">
             Order
-            <select className="rounded border border-line-strong bg-ground-sunken px-2 py-1 text-ink" value={order} onChange={(e) => setOrder(e.target.value as 'run' | 'disagreement')} data-testid="reconcile-order">
+            <select
+              className="rounded border border-line-strong bg-ground-sunken px-2 py-1 text-ink"
+              value={order}
+              onChange={(e) => setOrder(e.target.value as 'run' | 'disagreement')}
+              data-testid="reconcile-order"
+            >
               <option value="run">by run and component</option>
               <option value="disagreement" disabled={!scored}>
                 by the model’s disagreement with the votes{scored ? '' : ' (no suggestions yet)'}
@@ -150,11 +174,16 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
 
       {items.length === 0 ? (
         <Notice testId="reconcile-empty">
-          {isFetching ? 'Loading…' : 'Nothing waits for a decision. Components appear here once every assigned rater has submitted a run and their votes disagree.'}
+          {isFetching
+            ? 'Loading…'
+            : 'Nothing waits for a decision. Components appear here once every assigned rater has submitted a run and their votes disagree.'}
         </Notice>
       ) : (
         <div className="grid gap-4 lg:grid-cols-[15rem_1fr_22rem]">
-          <nav aria-label="Components waiting for a decision" className="max-h-[70vh] overflow-y-auto rounded border border-line bg-ground-raised">
+          <nav
+            aria-label="Components waiting for a decision"
+            className="max-h-[70vh] overflow-y-auto rounded border border-line bg-ground-raised"
+          >
             <ul className="divide-y divide-line text-sm" data-testid="reconcile-list">
               {items.map((i) => (
                 <li key={i.componentId}>
@@ -165,10 +194,12 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
                     className={`w-full px-3 py-2 text-left hover:bg-ground ${i.componentId === item?.componentId ? 'bg-ground text-lumen-strong' : ''}`}
                   >
                     <span className="block font-mono text-xs text-ink-muted">{bidsName(i.run)}</span>
-                    component {i.idx} of {i.k} · <span className="text-ink-muted">{i.votes.map((v) => labelName(v.label)).join(' / ')}</span>
+                    component {i.idx} of {i.k} ·{' '}
+                    <span className="text-ink-muted">{i.votes.map((v) => labelName(v.label)).join(' / ')}</span>
                     {order === 'disagreement' && i.suggestion ? (
                       <span className="block text-xs text-ink-faint" data-testid="reconcile-disagreement">
-                        model {labelName(i.suggestion.label)} (P(noise) {i.suggestion.pNoise.toFixed(2)}), disagreement {modelDisagreement(i.suggestion.pNoise, i.votes)?.toFixed(2) ?? '—'}
+                        model {labelName(i.suggestion.label)} (P(noise) {i.suggestion.pNoise.toFixed(2)}), disagreement{' '}
+                        {modelDisagreement(i.suggestion.pNoise, i.votes)?.toFixed(2) ?? '—'}
                       </span>
                     ) : null}
                   </button>
@@ -241,7 +272,12 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
                   {label === 'noise' ? (
                     <label className="flex flex-col gap-1 text-sm text-ink-muted">
                       Noise kind
-                      <select className="rounded border border-line-strong bg-ground-sunken px-2 py-1 text-ink" value={noiseKind} onChange={(e) => setNoiseKind(e.target.value)} data-testid="decide-kind">
+                      <select
+                        className="rounded border border-line-strong bg-ground-sunken px-2 py-1 text-ink"
+                        value={noiseKind}
+                        onChange={(e) => setNoiseKind(e.target.value)}
+                        data-testid="decide-kind"
+                      >
                         <option value="">not stated</option>
                         {kinds.map((k) => (
                           <option key={k} value={k}>
@@ -272,7 +308,9 @@ export function ReconcileClient({ studyId, studyName, initialItems }: { studyId:
                     {saving ? 'Saving…' : 'Record decision'}
                   </Button>
                 </form>
-                {component ? <FeaturePanel component={component} k={item.k} reproducibilityThreshold={run?.reproducibility?.threshold} /> : null}
+                {component ? (
+                  <FeaturePanel component={component} k={item.k} reproducibilityThreshold={run?.reproducibility?.threshold} />
+                ) : null}
               </>
             ) : null}
           </aside>

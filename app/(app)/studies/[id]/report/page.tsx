@@ -25,7 +25,13 @@ const RULES: Record<string, string> = {
   lead: 'any disagreement to the lead',
 };
 
-export default async function ReportPage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: Promise<{ release?: string }> }) {
+export default async function ReportPage({
+  params,
+  searchParams,
+}: {
+  params: Promise<{ id: string }>;
+  searchParams: Promise<{ release?: string }>;
+}) {
   const user = await requirePageUser('agreement.read');
   const studyId = Number((await params).id);
   const access = Number.isInteger(studyId) ? await findStudyAccess({ user, studyId }) : null;
@@ -48,7 +54,9 @@ export default async function ReportPage({ params, searchParams }: { params: Pro
     const ratings = await loadStudyRatings({ studyId, runIds });
     if (release) {
       const frozen = await releaseDecisions({ releaseId: release.id });
-      ratings.decisions = frozen.map((d: { componentId: number; runId: number; label: string; noiseKind: string | null; method: string }) => ({ ...d }));
+      ratings.decisions = frozen.map(
+        (d: { componentId: number; runId: number; label: string; noiseKind: string | null; method: string }) => ({ ...d }),
+      );
     }
     report = buildAgreementReport(ratings, BOOTSTRAP);
     runCount = ratings.runs.length;
@@ -57,10 +65,15 @@ export default async function ReportPage({ params, searchParams }: { params: Pro
   if (release) {
     const file = release.manifest!.files.find((f) => f.name.endsWith('_desc-methods_report.md'));
     const md = file ? await readFile(pathFor(file.key), 'utf8').catch(() => '') : '';
-    methods = md.split('\n').filter((l) => l && !l.startsWith('#') && !l.startsWith('- ')).join(' ');
+    methods = md
+      .split('\n')
+      .filter((l) => l && !l.startsWith('#') && !l.startsWith('- '))
+      .join(' ');
   } else {
     const runs = await loadExportRuns({ studyId }, undefined, { timecourses: false });
-    methods = runs.length ? methodsParagraph(methodsInputOf(runs, study, report, await loadRatingFacts({ studyId }))) : 'No run has a finished decomposition yet.';
+    methods = runs.length
+      ? methodsParagraph(methodsInputOf(runs, study, report, await loadRatingFacts({ studyId })))
+      : 'No run has a finished decomposition yet.';
   }
   const names = new Map(report.raters.map((r) => [String(r.id), r.name]));
   const nameOf = (id: string) => names.get(id) ?? `rater ${id}`;
@@ -73,15 +86,21 @@ export default async function ReportPage({ params, searchParams }: { params: Pro
       <header className="flex flex-wrap items-end justify-between gap-3">
         <div>
           <p className="text-sm text-ink-muted no-print">
-            <Link href={`/studies/${studyId}/agreement`} className="hover:text-ink">{access.name} · agreement</Link>
+            <Link href={`/studies/${studyId}/agreement`} className="hover:text-ink">
+              {access.name} · agreement
+            </Link>
             {' · '}
-            <Link href={`/studies/${studyId}/releases`} className="hover:text-ink" data-testid="releases-link">releases</Link>
+            <Link href={`/studies/${studyId}/releases`} className="hover:text-ink" data-testid="releases-link">
+              releases
+            </Link>
           </p>
           <h1 className="text-xl font-semibold" data-testid="report-heading">
             Agreement report — {access.name}
           </h1>
           <p className="text-sm text-ink-muted" data-testid="report-scope">
-            {release ? `Release version ${release.version} of ${release.releasedAt.toISOString().slice(0, 10)} (${release.runId ? 'one run' : 'whole study'})` : `Current state, ${new Date().toISOString().slice(0, 10)} (not a release)`}
+            {release
+              ? `Release version ${release.version} of ${release.releasedAt.toISOString().slice(0, 10)} (${release.runId ? 'one run' : 'whole study'})`
+              : `Current state, ${new Date().toISOString().slice(0, 10)} (not a release)`}
           </p>
         </div>
         <PrintButton />
@@ -107,7 +126,8 @@ export default async function ReportPage({ params, searchParams }: { params: Pro
           <dd>{study.uncertain_in_export === 'remove' ? 'removed in exports' : 'kept in exports'}</dd>
           <dt className="text-ink-muted">Decisions</dt>
           <dd data-testid="report-decisions">
-            {d.unanimous} unanimous, {d.majority} by majority, {d.reconciled} reconciled by a lead, {d.override} set by a lead, {d.pending} pending
+            {d.unanimous} unanimous, {d.majority} by majority, {d.reconciled} reconciled by a lead, {d.override} set by a lead, {d.pending}{' '}
+            pending
           </dd>
         </dl>
       </Panel>
@@ -116,7 +136,8 @@ export default async function ReportPage({ params, searchParams }: { params: Pro
         <>
           <Headline stats={s.overall} />
           <p className="text-xs text-ink-faint">
-            {s.items} components, {s.raters.length} raters. 95% percentile-bootstrap intervals over components ({BOOTSTRAP.resamples} resamples, seed {BOOTSTRAP.seed}); bands after Landis &amp; Koch (1977).
+            {s.items} components, {s.raters.length} raters. 95% percentile-bootstrap intervals over components ({BOOTSTRAP.resamples}{' '}
+            resamples, seed {BOOTSTRAP.seed}); bands after Landis &amp; Koch (1977).
           </p>
           <div className="grid gap-6 lg:grid-cols-2 print:grid-cols-2">
             <RaterPairsPanel summary={s} nameOf={nameOf} />
@@ -134,11 +155,15 @@ export default async function ReportPage({ params, searchParams }: { params: Pro
       )}
 
       <Panel title="Methods paragraph (to paste into a paper)">
-        <p className="text-sm leading-relaxed" data-testid="methods-paragraph">{methods}</p>
+        <p className="text-sm leading-relaxed" data-testid="methods-paragraph">
+          {methods}
+        </p>
       </Panel>
       <Panel title="Cautions">
         <ul className="list-disc pl-5 text-sm" data-testid="report-cautions">
-          {CAUTIONS.map((c) => <li key={c}>{c}</li>)}
+          {CAUTIONS.map((c) => (
+            <li key={c}>{c}</li>
+          ))}
         </ul>
       </Panel>
     </article>

@@ -3,10 +3,38 @@ import { auditFilterSchema } from '@/lib/audit/schema';
 import { iterateAuditLog, type AuditRow } from '@/lib/db/queries/audit-log';
 import { csvLine } from '@/lib/exports/tabular';
 
-const HEADER = ['id', 'time_utc', 'actor_id', 'actor_name', 'actor_email', 'action', 'target_type', 'target_id', 'study_id', 'study_name', 'detail', 'ip'];
+const HEADER = [
+  'id',
+  'time_utc',
+  'actor_id',
+  'actor_name',
+  'actor_email',
+  'action',
+  'target_type',
+  'target_id',
+  'study_id',
+  'study_name',
+  'detail',
+  'ip',
+];
 
 function line(r: AuditRow): string {
-  return csvLine([r.id, r.createdAt, r.actorId, r.actorName, r.actorEmail, r.action, r.targetType, r.targetId, r.studyId, r.studyName, r.detail, r.ip]) + '\r\n';
+  return (
+    csvLine([
+      r.id,
+      r.createdAt,
+      r.actorId,
+      r.actorName,
+      r.actorEmail,
+      r.action,
+      r.targetType,
+      r.targetId,
+      r.studyId,
+      r.studyName,
+      r.detail,
+      r.ip,
+    ]) + '\r\n'
+  );
 }
 
 // GET /api/admin/audit/export – the filtered audit log as CSV, streamed in batches

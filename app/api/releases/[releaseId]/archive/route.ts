@@ -15,8 +15,18 @@ export const GET = handler({ permission: 'exports.download', params, what: 'The 
   const manifest = release.manifest!;
   const missing: string[] = [];
   for (const f of manifest.files) if ((await sizeOf(f.key).catch(() => null)) == null) missing.push(f.name);
-  if (missing.length) throw new AppError('conflict', `${missing.length} file(s) of release ${release.id} are missing from storage (${missing.slice(0, 3).join(', ')}); ask the facility admin to restore them.`);
-  await recordAudit({ actorId: user.id, action: 'release.download', targetType: 'release', targetId: release.id, studyId: release.studyId });
+  if (missing.length)
+    throw new AppError(
+      'conflict',
+      `${missing.length} file(s) of release ${release.id} are missing from storage (${missing.slice(0, 3).join(', ')}); ask the facility admin to restore them.`,
+    );
+  await recordAudit({
+    actorId: user.id,
+    action: 'release.download',
+    targetType: 'release',
+    targetId: release.id,
+    studyId: release.studyId,
+  });
   const zip = releaseArchive(release, manifest);
   return new Response(Readable.toWeb(zip) as ReadableStream, {
     headers: {

@@ -6,5 +6,10 @@ import { attachMask, contentLengthOf } from '@/lib/runs/upload';
 export const PUT = handler(
   { permission: 'runs.upload', params: runIdParams, query: maskUploadQuerySchema, what: 'The mask upload' },
   async ({ req, user, params, query }) =>
-    attachMask({ user, runId: params.id, name: query.name, raw: { body: req.body, contentLength: contentLengthOf(req), signal: req.signal } }),
+    attachMask({
+      user,
+      runId: params.id,
+      name: query.name,
+      raw: { body: req.body, contentLength: contentLengthOf(req), signal: req.signal },
+    }),
 );

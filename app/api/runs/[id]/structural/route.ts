@@ -7,5 +7,10 @@ import { attachStructural } from '@/lib/runs/attach-structural';
 export const PUT = handler(
   { permission: 'runs.upload', params: runIdParams, query: maskUploadQuerySchema, what: 'The structural image upload' },
   async ({ req, user, params, query }) =>
-    attachStructural({ user, runId: params.id, name: query.name, raw: { body: req.body, contentLength: contentLengthOf(req), signal: req.signal } }),
+    attachStructural({
+      user,
+      runId: params.id,
+      name: query.name,
+      raw: { body: req.body, contentLength: contentLengthOf(req), signal: req.signal },
+    }),
 );

@@ -10,6 +10,8 @@ export const GET = handler({ permission: 'runs.manage', params: studyParamsSchem
 );
 
 // PATCH /api/studies/:id/assignments – one due date for the open assignments of many runs
-export const PATCH = handler({ permission: 'runs.manage', params: studyParamsSchema, body: bulkDueSchema, what: 'The due date' }, async ({ req, user, params, body }) =>
-  setStudyDue({ user, studyId: params.id, runIds: body.runIds, dueAt: body.dueAt, ip: auditAddress(req) }),
+export const PATCH = handler(
+  { permission: 'runs.manage', params: studyParamsSchema, body: bulkDueSchema, what: 'The due date' },
+  async ({ req, user, params, body }) =>
+    setStudyDue({ user, studyId: params.id, runIds: body.runIds, dueAt: body.dueAt, ip: auditAddress(req) }),
 );

@@ -22,7 +22,12 @@ export const GET = handler({ permission: 'runs.read', params: studyIdParams }, a
 export const POST = handler(
   { permission: 'runs.upload', params: studyIdParams, query: runUploadQuerySchema, what: 'The upload' },
   async ({ req, user, params, query }) => {
-    const run = await uploadRun({ user, studyId: params.id, query, raw: { body: req.body, contentLength: contentLengthOf(req), signal: req.signal } });
+    const run = await uploadRun({
+      user,
+      studyId: params.id,
+      query,
+      raw: { body: req.body, contentLength: contentLengthOf(req), signal: req.signal },
+    });
     return Response.json({ run }, { status: 201 });
   },
 );

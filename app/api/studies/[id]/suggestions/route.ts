@@ -4,8 +4,9 @@ import { suggestionSettingsSchema, suggestionStudyParamsSchema } from '@/lib/sug
 import { studySuggestions } from '@/lib/suggestions/study-suggestions';
 
 // GET /api/studies/:id/suggestions – whether raters see suggestions, the model in use with its cross-validated report, the last training job
-export const GET = handler({ permission: 'agreement.read', params: suggestionStudyParamsSchema, what: 'The study' }, async ({ user, params }) =>
-  studySuggestions({ user, studyId: params.id }),
+export const GET = handler(
+  { permission: 'agreement.read', params: suggestionStudyParamsSchema, what: 'The study' },
+  async ({ user, params }) => studySuggestions({ user, studyId: params.id }),
 );
 
 // PATCH /api/studies/:id/suggestions – { enabled }: a lead shows suggestions to raters (after their own vote) or hides them

@@ -11,6 +11,13 @@ export const DELETE = handler({ permission: 'users.manage', params: userIdParams
   const target = await findUserById({ id: params.id });
   if (!target) throw notFound('That person');
   await endAllSessions({ userId: target.id });
-  await recordAudit({ actorId: user.id, action: 'user.signed_out_everywhere', targetType: 'user', targetId: target.id, detail: { email: target.email }, ip: auditAddress(req) });
+  await recordAudit({
+    actorId: user.id,
+    action: 'user.signed_out_everywhere',
+    targetType: 'user',
+    targetId: target.id,
+    detail: { email: target.email },
+    ip: auditAddress(req),
+  });
   return { ok: true };
 });

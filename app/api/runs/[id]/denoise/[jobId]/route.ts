@@ -13,6 +13,15 @@ export const GET = handler({ permission: 'exports.download', params, what: 'The 
   const access = run ? await findStudyAccess({ user, studyId: run.studyId }) : null;
   const job = access ? await findDenoiseJob({ runId: params.id, jobId: params.jobId }) : null;
   if (!job) throw notFound('The denoise request');
-  if (job.status !== 'succeeded' || !job.result) throw new AppError('conflict', `The denoised file is not ready (the request is ${job.status}${job.percent != null ? `, ${Math.round(job.percent)} %` : ''}).`);
-  return storedFileResponse(job.result.key, { name: job.result.name, download: true, sha256: job.result.sha256, missing: 'The stored denoised file was not found.' });
+  if (job.status !== 'succeeded' || !job.result)
+    throw new AppError(
+      'conflict',
+      `The denoised file is not ready (the request is ${job.status}${job.percent != null ? `, ${Math.round(job.percent)} %` : ''}).`,
+    );
+  return storedFileResponse(job.result.key, {
+    name: job.result.name,
+    download: true,
+    sha256: job.result.sha256,
+    missing: 'The stored denoised file was not found.',
+  });
 });

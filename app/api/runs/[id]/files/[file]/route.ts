@@ -8,7 +8,7 @@ export const GET = handler({ permission: 'votes.write', params: fileParamsSchema
   const { key, decompositionId } = await findRunFileKey({ user, runId: params.id, file: params.file });
   return storedFileResponse(key, {
     name: params.file,
-    etag: `d${decompositionId}-${params.file}-${key.replace(/[^a-z0-9]/gi, "").slice(-12)}`, // a new structural upload is a new key
+    etag: `d${decompositionId}-${params.file}-${key.replace(/[^a-z0-9]/gi, '').slice(-12)}`, // a new structural upload is a new key
     cache: 'private-day', // the address carries the decomposition id (?d=…): a new decomposition is a new address
     missing: `The ${params.file} of run ${params.id} is missing from storage. Ask the facility admin to check the uploads folder.`,
   });

@@ -4,7 +4,15 @@ import { searchAccounts } from '@/lib/db/queries/members';
 
 // GET /api/studies/:id/members/candidates?q= – the member picker: active accounts by name or e-mail (at most 20), for those who manage the study
 export const GET = handler(
-  { permission: 'studies.update', params: studyIdParams, query: accountSearchSchema, what: 'The search', scope: 'study', studyRule: 'lead', denied: 'changing the members of this study' },
+  {
+    permission: 'studies.update',
+    params: studyIdParams,
+    query: accountSearchSchema,
+    what: 'The search',
+    scope: 'study',
+    studyRule: 'lead',
+    denied: 'changing the members of this study',
+  },
   async ({ access, query }) => {
     const found = await searchAccounts({ studyId: access.studyId, q: query.q, limit: ACCOUNT_SEARCH_LIMIT });
     return Response.json(found, { headers: { 'Cache-Control': 'private, no-store' } });

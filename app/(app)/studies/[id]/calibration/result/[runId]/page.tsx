@@ -30,8 +30,14 @@ export default async function CalibrationResultPage({ params }: { params: Promis
   const scored = result.components.filter((c) => c.myLabel && c.referenceLabel).length;
   const pct = (v: number | null | undefined) => (v == null ? '—' : `${Math.round(v * 100)} %`);
   const rows: ResultRow[] = result.components.map((c) => ({
-    componentId: c.componentId, idx: c.idx, mine: label(c.myLabel, c.myKind), reference: label(c.referenceLabel, c.referenceKind), reason: c.reason,
-    differs: Boolean(c.myLabel && c.referenceLabel && c.myLabel !== c.referenceLabel), hf: pct(c.features.highFrequencyPower), edge: pct(c.features.edgeFraction),
+    componentId: c.componentId,
+    idx: c.idx,
+    mine: label(c.myLabel, c.myKind),
+    reference: label(c.referenceLabel, c.referenceKind),
+    reason: c.reason,
+    differs: Boolean(c.myLabel && c.referenceLabel && c.myLabel !== c.referenceLabel),
+    hf: pct(c.features.highFrequencyPower),
+    edge: pct(c.features.edgeFraction),
   }));
   // the rater is assigned to the run and has submitted it (calibrationResult checked): the desk's shapes for the viewer
   const shapes = await loadRunShapes({ runId });
@@ -39,12 +45,21 @@ export default async function CalibrationResultPage({ params }: { params: Promis
     <div className="flex flex-col gap-6">
       <div>
         <p className="text-xs text-ink-faint">
-          <Link href={`/studies/${studyId}`} className="hover:underline">{access.name}</Link>
+          <Link href={`/studies/${studyId}`} className="hover:underline">
+            {access.name}
+          </Link>
         </p>
-        <h1 className="text-xl font-semibold" data-testid="calibration-result-heading">Your calibration result: {result.runName}</h1>
-        {settings.setName ? <p className="text-sm text-ink-muted" data-testid="calibration-result-set">Part of the calibration set “{settings.setName}”.</p> : null}
+        <h1 className="text-xl font-semibold" data-testid="calibration-result-heading">
+          Your calibration result: {result.runName}
+        </h1>
+        {settings.setName ? (
+          <p className="text-sm text-ink-muted" data-testid="calibration-result-set">
+            Part of the calibration set “{settings.setName}”.
+          </p>
+        ) : null}
         <p className="text-sm text-ink-muted" data-testid="calibration-result-summary">
-          You agreed with the reference on {agree} of {scored} components. Go through the ones that differ: the reference label and the lead&apos;s reason say why.
+          You agreed with the reference on {agree} of {scored} components. Go through the ones that differ: the reference label and the
+          lead&apos;s reason say why.
         </p>
       </div>
       {gate.gated ? (

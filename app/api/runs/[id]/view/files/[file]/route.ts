@@ -13,7 +13,7 @@ export const GET = handler({ permission: 'runs.read', params: fileParamsSchema, 
   if (!key) throw new AppError('not_found', `Run ${params.id} has no ${params.file}; its decomposition did not write it.`);
   return storedFileResponse(key, {
     name: params.file,
-    etag: `d${run.decompositionId}-${params.file}-${key.replace(/[^a-z0-9]/gi, "").slice(-12)}`, // a new structural upload is a new key
+    etag: `d${run.decompositionId}-${params.file}-${key.replace(/[^a-z0-9]/gi, '').slice(-12)}`, // a new structural upload is a new key
     cache: 'private-day', // the address carries the decomposition id (?d=…): a new decomposition is a new address
     missing: `The ${params.file} of run ${params.id} is missing from storage. Ask the facility admin to check the uploads folder.`,
   });

@@ -4,7 +4,13 @@ import { authenticateBearer, readOnlyResponse } from '@/lib/auth/access-tokens';
 import { releaseFor } from '@/lib/releases/access';
 import { releaseFileResponse } from '@/lib/releases/serve-file';
 
-const params = z.object({ releaseId: z.coerce.number().int().positive(), name: z.string().max(255).regex(/^[A-Za-z0-9._-]+$/, 'a file name from the manifest') });
+const params = z.object({
+  releaseId: z.coerce.number().int().positive(),
+  name: z
+    .string()
+    .max(255)
+    .regex(/^[A-Za-z0-9._-]+$/, 'a file name from the manifest'),
+});
 
 // GET /api/v1/releases/:releaseId/files/:name – (Bearer token) one file of a release the token's owner may see
 export const GET = handler({ permission: 'public', params, what: 'The pipeline file request' }, async ({ req, params }) => {

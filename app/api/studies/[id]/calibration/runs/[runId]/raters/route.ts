@@ -4,6 +4,8 @@ import { assignCalibrationSchema, calibrationRunParamsSchema } from '@/lib/calib
 import { assignCalibrationRater } from '@/lib/db/queries/calibration';
 
 // POST /api/studies/:id/calibration/runs/:runId/raters – assign a rater to a calibration run (they rate it in the normal desk)
-export const POST = handler({ permission: 'calibration.manage', params: calibrationRunParamsSchema, body: assignCalibrationSchema, what: 'The assignment' }, async ({ req, user, params, body }) =>
-  assignCalibrationRater({ user, studyId: params.id, runId: params.runId, raterId: body.raterId, ip: auditAddress(req) }),
+export const POST = handler(
+  { permission: 'calibration.manage', params: calibrationRunParamsSchema, body: assignCalibrationSchema, what: 'The assignment' },
+  async ({ req, user, params, body }) =>
+    assignCalibrationRater({ user, studyId: params.id, runId: params.runId, raterId: body.raterId, ip: auditAddress(req) }),
 );

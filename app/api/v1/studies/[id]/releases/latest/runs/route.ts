@@ -6,7 +6,11 @@ import { latestReleasedRuns } from '@/lib/releases/latest-runs';
 import { notFound } from '@/lib/errors';
 
 const params = z.object({ id: z.coerce.number().int().positive() });
-const entity = z.string().max(64).regex(/^[A-Za-z0-9]+$/, 'a BIDS label (letters and digits)').optional();
+const entity = z
+  .string()
+  .max(64)
+  .regex(/^[A-Za-z0-9]+$/, 'a BIDS label (letters and digits)')
+  .optional();
 const query = z.object({ sub: entity, ses: entity, task: entity, acq: entity, run: entity });
 
 // GET /api/v1/studies/:id/releases/latest/runs – (Bearer token) per run its latest release (study or single-run): entities, k, noise list, file addresses, denoised files
@@ -21,7 +25,15 @@ export const GET = handler({ permission: 'public', params, query, what: 'The pip
   return {
     study: m.study,
     // the newest study release (null when only single runs have been released); each run names its own release
-    release: s?.manifest ? { id: s.id, version: s.version, releasedAt: s.manifest.release.releasedAt, software: s.manifest.software, uncertainInExport: s.manifest.uncertainInExport } : null,
+    release: s?.manifest
+      ? {
+          id: s.id,
+          version: s.version,
+          releasedAt: s.manifest.release.releasedAt,
+          software: s.manifest.software,
+          uncertainInExport: s.manifest.uncertainInExport,
+        }
+      : null,
     runs: latest.runs,
     cautions: m.cautions,
   };
