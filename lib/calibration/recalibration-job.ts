@@ -6,7 +6,7 @@
 import type { Knex } from 'knex';
 import { enqueueJob } from '@/lib/jobs/queue';
 import { msUntilNextHourUtc, overdueHourUtc } from '@/lib/notifications/config';
-import { RECALIBRATE } from './payload';
+import { RECALIBRATE } from '@/lib/jobs/recalibrate-payload';
 
 export async function ensureRecalibrationJob(db: Knex, { delayMs }: { delayMs?: number } = {}): Promise<number> {
   const queued = await db('jobs').where({ kind: RECALIBRATE, status: 'queued' }).orderBy('id').first('id');

@@ -5,10 +5,10 @@
 import { z } from 'zod';
 import { denoisePayloadSchema } from '@/lib/denoise/payload';
 import { scoreSuggestionsPayloadSchema, trainSuggestionsPayloadSchema } from './suggestion-payloads';
-import { recalibratePayloadSchema } from '@/lib/calibration/payload';
+import { recalibratePayloadSchema } from '@/lib/jobs/recalibrate-payload';
 import { notifyAssignmentsPayloadSchema, notifyOverduePayloadSchema, notifyVotesCompletePayloadSchema } from '@/lib/notifications/payloads';
 import { sendMailPayloadSchema } from '@/lib/mail/payloads';
-import { releasePayloadSchema } from '@/lib/releases/payload';
+import { releasePayloadSchema } from '@/lib/jobs/release-payload';
 
 /** Overrides of the study protocol for one decomposition (all optional). */
 export const decompositionOptionsSchema = z

@@ -15,7 +15,7 @@ import { createHash } from 'node:crypto';
 import { writeFile } from 'node:fs/promises';
 import { enqueueJob, JobError } from '@/lib/jobs';
 import { checksumOfKey } from '@/lib/storage/checksum';
-import type { ReleasePayload } from './payload';
+import type { ReleasePayload } from '@/lib/jobs/release-payload';
 import type { Knex } from 'knex';
 import { db, toJson } from '@/lib/db/knex';
 import { bidsName } from '@/lib/bids';

@@ -17,7 +17,8 @@ process.env.QUORUM_UPLOADS_DIR = uploads;
 const { db, closeDb, parseJson, toJson } = await import('@/lib/db/knex');
 const { createReadyRun } = await import('../e2e/helpers/ready-run');
 const { createStudyWithRaters } = await import('./helpers/factories');
-const { loadDeskComponents, submitRun } = await import('@/lib/db/queries/desk');
+const { loadDeskComponents } = await import('@/lib/db/queries/desk');
+const { submitRun } = await import('@/lib/runs/submit-run');
 const { saveVote } = await import('@/lib/votes/save-vote');
 const { listReconcileItems } = await import('@/lib/db/queries/reconcile');
 

@@ -7,11 +7,8 @@ import { AppError } from '@/lib/errors';
 import { bidsName } from '@/lib/bids';
 import { pathFor } from '@/lib/storage';
 import { dropInitialVolumes, framewiseDisplacement, parseMotionFile } from '@/lib/decomposition/motion';
-import { recordAudit } from './audit';
-import { queueVotesCompleteCheck } from '@/lib/jobs/queue-notifications';
 import { structuralOf, type ComponentsPayload, type DeskComponent, type DeskRun } from '@/lib/desk/types';
-import { arrangeForDesk, isLowReproducibility, type ReproducibilityRule } from '@/lib/desk/reproducibility';
-import { recomputeDecision } from '@/lib/consensus/recompute';
+import { arrangeForDesk, type ReproducibilityRule } from '@/lib/desk/reproducibility';
 import type { LowReproducibilityPolicy } from '@/lib/studies/labels';
 
 type Caller = { id: number };
@@ -248,64 +245,49 @@ export async function saveDeskPosition({ user, runId, componentIdx }: { user: Ca
   return { componentIdx };
 }
 
+/** The components of a decomposition that the rater has not voted on, in order (id, index, features). */
+export async function listUnvotedComponents(
+  trx: Knex.Transaction,
+  { decompositionId, raterId }: { decompositionId: number; raterId: number },
+) {
+  const rows = await trx('components as c')
+    .leftJoin('votes as v', function () {
+      this.on('v.component_id', 'c.id').andOn('v.rater_id', trx.raw('?', [raterId]));
+    })
+    .where('c.decomposition_id', decompositionId)
+    .whereNull('v.id')
+    .orderBy('c.idx')
+    .select('c.id', 'c.idx', 'c.features');
+  return rows.map((r) => ({
+    id: Number(r.id),
+    idx: Number(r.idx),
+    features: parseJson<Record<string, number | null>>(r.features, {}) ?? {},
+  }));
+}
+
 /**
- * POST /api/runs/:id/submit — marks the rater's work on the run as done. Every component of the
- * current decomposition must carry the rater's vote. Submitting twice answers the first time.
- * From now on the rater's votes are frozen (saveVote refuses) until a lead reopens the run for
- * them; the votes as first submitted are copied to submitted_votes (a resubmission after a reopen
- * adds none over them), which agreement statistics read.
+ * Marks an assignment submitted at `at` and copies the rater's votes on the decomposition to
+ * submitted_votes; votes already copied by an earlier submission (before a reopen) stay as they were.
  */
-export async function submitRun({ user, runId, ip }: { user: Caller; runId: number; ip?: string | null }) {
-  return db.transaction(async (trx) => {
-    const run = await findAssignedRun({ user, runId, forUpdate: true }, trx);
-    if (run.submittedAt) return { submittedAt: new Date(run.submittedAt).toISOString(), already: true };
-    const unlabelled = await trx('components as c')
-      .leftJoin('votes as v', function () {
-        this.on('v.component_id', 'c.id').andOn('v.rater_id', trx.raw('?', [user.id]));
-      })
-      .where('c.decomposition_id', run.decompositionId)
-      .whereNull('v.id')
-      .orderBy('c.idx')
-      .select('c.id', 'c.idx', 'c.features');
-    // components the study hides from raters (low reproducibility) need no vote: the lead decides them
-    const hides = run.reproducibilityRule.policy === 'hide';
-    const isHidden = (r: { features: unknown }) =>
-      hides && isLowReproducibility(parseJson<Record<string, number | null>>(r.features, {}) ?? {}, run.reproducibilityRule.threshold);
-    const missing = unlabelled.filter((r) => !isHidden(r)).map((r) => r.idx as number);
-    for (const r of unlabelled.filter(isHidden)) await recomputeDecision(trx, { componentId: r.id as number }); // a pending decision the lead sees in Reconcile
-    if (missing.length) {
-      const list = missing.length > 12 ? `${missing.slice(0, 12).join(', ')} …` : missing.join(', ');
-      throw new AppError(
-        'conflict',
-        `${missing.length} of ${run.k} components are not labelled yet (${list}). Label every component before submitting.`,
-      );
-    }
-    const now = new Date();
-    await trx('assignments')
-      .where({ id: run.assignmentId })
-      .update({ submitted_at: now, first_submitted_at: trx.raw('COALESCE(first_submitted_at, ?)', [now]) });
-    // the votes as first submitted: agreement reads these; a later (reopened) change never replaces them
-    await trx.raw(
-      `INSERT INTO submitted_votes (component_id, run_id, rater_id, label, noise_kind, confidence, note, submitted_at)
-       SELECT v.component_id, v.run_id, v.rater_id, v.label, v.noise_kind, v.confidence, v.note, ?
-       FROM votes v JOIN components c ON c.id = v.component_id
-       WHERE v.run_id = ? AND v.rater_id = ? AND c.decomposition_id = ?
-       ON DUPLICATE KEY UPDATE submitted_votes.id = submitted_votes.id`,
-      [now, runId, user.id, run.decompositionId],
-    );
-    await queueVotesCompleteCheck(trx); // the lead hears promptly when the last rater submits
-    await recordAudit(
-      {
-        actorId: user.id,
-        action: 'run.submit',
-        targetType: 'run',
-        targetId: runId,
-        studyId: run.studyId,
-        detail: { components: run.k, ...(run.firstSubmittedAt ? { resubmit: true, reopenCount: run.reopenCount } : {}) },
-        ip,
-      },
-      trx,
-    );
-    return { submittedAt: now.toISOString(), already: false };
-  });
+export async function markAssignmentSubmitted(
+  trx: Knex.Transaction,
+  {
+    assignmentId,
+    runId,
+    raterId,
+    decompositionId,
+    at,
+  }: { assignmentId: number; runId: number; raterId: number; decompositionId: number; at: Date },
+): Promise<void> {
+  await trx('assignments')
+    .where({ id: assignmentId })
+    .update({ submitted_at: at, first_submitted_at: trx.raw('COALESCE(first_submitted_at, ?)', [at]) });
+  await trx.raw(
+    `INSERT INTO submitted_votes (component_id, run_id, rater_id, label, noise_kind, confidence, note, submitted_at)
+     SELECT v.component_id, v.run_id, v.rater_id, v.label, v.noise_kind, v.confidence, v.note, ?
+     FROM votes v JOIN components c ON c.id = v.component_id
+     WHERE v.run_id = ? AND v.rater_id = ? AND c.decomposition_id = ?
+     ON DUPLICATE KEY UPDATE submitted_votes.id = submitted_votes.id`,
+    [at, runId, raterId, decompositionId],
+  );
 }

@@ -4,7 +4,7 @@
  * default) it queues itself for the next day while any study has a re-calibration interval.
  */
 import { assignDueRecalibrations } from '@/lib/calibration/assign-recalibrations';
-import { RECALIBRATE, recalibratePayloadSchema } from '@/lib/calibration/payload';
+import { RECALIBRATE, recalibratePayloadSchema } from '@/lib/jobs/recalibrate-payload';
 import { ensureRecalibrationJob } from '@/lib/calibration/recalibration-job';
 import { defineJobKind } from '../types';
 

@@ -8,7 +8,7 @@
  */
 import { AppError } from '@/lib/errors';
 import { buildRelease } from '@/lib/releases/create-release';
-import { releasePayloadSchema, type ReleaseJobResult } from '@/lib/releases/payload';
+import { releasePayloadSchema, type ReleaseJobResult } from '@/lib/jobs/release-payload';
 import { PermanentJobError } from '@/lib/jobs/errors';
 import { defineJobKind } from '../types';
 

@@ -1,4 +1,4 @@
-/** Payload of the `recalibrate` job kind (zod only), registered in lib/jobs/payloads.ts. */
+/** Payload of the `recalibrate` job kind (zod only), registered in ./payloads.ts. */
 import { z } from 'zod';
 
 export const RECALIBRATE = 'recalibrate';
