@@ -71,5 +71,10 @@ export function managesStudy({ role, studyRole }: { role: Role; studyRole: Study
   return role === 'admin' || (studyRole === 'lead' && role === 'lead');
 }
 
+/** Study-level rule: the caller sees every run of this study (admins, its leads and observers); raters see only the runs assigned to them. */
+export function seesAllRuns(access: Access): boolean {
+  return access.isAdmin || access.studyRole === 'lead' || access.studyRole === 'observer';
+}
+
 /** Account roles that may vote (votes.write): the only accounts automatic or manual assignment may choose as raters. */
 export const VOTING_ROLES: readonly Role[] = (Object.keys(PERMISSIONS) as Role[]).filter((r) => can(r, 'votes.write'));

@@ -14,7 +14,7 @@ import { MotionFileError, parseMotionFile } from '@/lib/decomposition/motion';
 import { moveIntoStore, newKey, pathFor, removeKey, tempPath } from '@/lib/storage';
 import { bidsName } from '@/lib/bids';
 import { AppError, forbidden, notFound } from '@/lib/errors';
-import { findStudyForUser } from '@/lib/db/queries/studies';
+import { studyWithAccess } from '@/lib/studies/study-with-access';
 import { findManagedRun, findRunBySha, listRunsForStudy, type RunListItem, type RunRecord } from '@/lib/db/queries/runs';
 import { recordAudit } from '@/lib/db/queries/audit';
 import type { UserRow } from '@/lib/db/queries/users';
@@ -35,7 +35,7 @@ export function contentLengthOf(req: Request): number | null {
 
 /** The study when the user may upload to it; otherwise 403 (a member without the lead study role) or 404. */
 async function studyForUpload(user: Actor, studyId: number) {
-  const access = await findStudyForUser({ user, studyId });
+  const access = await studyWithAccess({ user, studyId });
   if (!access) throw notFound('The study');
   if (!access.canManage) throw forbidden('uploading to this study: only its leads and the facility admin may');
   return access.study;
@@ -46,7 +46,7 @@ export async function runForChange(user: Actor, runId: number, trx?: Knex.Transa
   const run = await findManagedRun({ user, runId }, trx);
   if (run) return run;
   const visible = await db('runs as r').where('r.id', runId).first('r.study_id as studyId');
-  if (visible && (await findStudyForUser({ user, studyId: visible.studyId }))) {
+  if (visible && (await studyWithAccess({ user, studyId: visible.studyId }))) {
     throw forbidden("changing this run: only the study's leads and the facility admin may");
   }
   throw notFound('The run');

@@ -10,7 +10,7 @@ import path from 'node:path';
 import { db } from '@/lib/db/knex';
 import { AppError } from '@/lib/errors';
 import { can } from '@/lib/auth/permissions';
-import { findStudyForUser } from '@/lib/db/queries/studies';
+import { studyWithAccess } from '@/lib/studies/study-with-access';
 import { createStudy } from '@/lib/studies/create-study';
 import { updateStudy } from '@/lib/studies/update-study';
 import { addMember } from '@/lib/members/add-member';
@@ -89,7 +89,7 @@ afterAll(async () => {
 
 describe('studies', () => {
   it('makes the creator the lead member and keeps the protocol', async () => {
-    const access = await findStudyForUser({ user: users.lead, studyId });
+    const access = await studyWithAccess({ user: users.lead, studyId });
     expect(access).toMatchObject({ studyRole: 'lead', canManage: true, seesAllRuns: true });
     expect(access!.study).toMatchObject({
       blinding: true,
@@ -98,7 +98,7 @@ describe('studies', () => {
       labelSet: ['signal', 'noise', 'uncertain'],
     });
     await updateStudy({ user: users.lead, studyId, values: { dimMethod: 'fixed', fixedComponents: 12, allowUncertain: false } });
-    const after = await findStudyForUser({ user: users.lead, studyId });
+    const after = await studyWithAccess({ user: users.lead, studyId });
     expect(after!.study).toMatchObject({ dimMethod: 'fixed', fixedComponents: 12, labelSet: ['signal', 'noise'] });
     expect(await db('audit_log').where({ study_id: studyId, action: 'study.update' }).count({ n: '*' })).toEqual([{ n: 1 }]);
   });
@@ -116,7 +116,7 @@ describe('studies', () => {
   });
 
   it('is invisible to a lead of another study', async () => {
-    expect(await findStudyForUser({ user: users.otherLead, studyId })).toBeNull();
+    expect(await studyWithAccess({ user: users.otherLead, studyId })).toBeNull();
   });
 });
 

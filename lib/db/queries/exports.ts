@@ -56,12 +56,6 @@ export async function findDenoiseJob({ runId, jobId }: { runId: number; jobId: n
   return row ? toDenoiseJob(row) : null;
 }
 
-/** The study of a run (for scoping), or null. */
-export async function runStudy({ runId }: { runId: number }): Promise<{ studyId: number; runId: number } | null> {
-  const r = await db('runs').where({ id: runId }).first('id', 'study_id');
-  return r ? { studyId: Number(r.study_id), runId: Number(r.id) } : null;
-}
-
 /** Whether the run has a motion table (needed for motion regressors). */
 export async function runHasMotion({ runId }: { runId: number }): Promise<boolean> {
   const r = await db('runs').where({ id: runId }).first('motion_key');

@@ -125,7 +125,7 @@ function latestJob(): Knex.Raw {
   return db.raw("(SELECT MAX(j2.id) FROM jobs j2 WHERE j2.run_id = r.id AND j2.kind = 'decompose')");
 }
 
-/** The runs of a study the user may see (rows for the runs table). `seesAllRuns` comes from findStudyForUser. */
+/** The runs of a study the user may see (rows for the runs table). `seesAllRuns` is the rule in lib/auth/permissions.ts. */
 export async function listRunsForStudy({ user, studyId, runId }: Scoped & { studyId: number; runId?: number }): Promise<RunListItem[]> {
   const query = db('runs as r')
     .leftJoin('jobs as j', 'j.id', latestJob())

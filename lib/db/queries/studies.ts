@@ -3,9 +3,8 @@ import { db } from '@/lib/db/knex';
 import type { UserRow } from './users';
 import type { Knex } from 'knex';
 import { parseJson, toJson } from '@/lib/db/knex';
-import type { StudyRole, ConsensusRule, DimSetting, LowReproducibilityPolicy, NoiseKindKey } from '@/lib/studies/labels';
+import type { ConsensusRule, DimSetting, LowReproducibilityPolicy, NoiseKindKey } from '@/lib/studies/labels';
 import type { StudyValues, StudyUpdate } from '@/lib/studies/schema';
-import { managesStudy } from '@/lib/auth/permissions';
 
 export type StudySummary = {
   id: number;
@@ -68,14 +67,6 @@ export type StudyDetail = {
   createdAt: Date;
 };
 
-/** What a user may do in one study: `canManage` (upload, change, run actions), `seesAllRuns` (else only assigned runs). */
-export type StudyWithAccess = {
-  study: StudyDetail;
-  studyRole: StudyRole | null;
-  canManage: boolean;
-  seesAllRuns: boolean;
-};
-
 const studyColumns = [
   's.id',
   's.name',
@@ -124,35 +115,10 @@ function toStudy(r: Record<string, unknown>): StudyDetail {
   };
 }
 
-/**
- * The study with the user's access to it, or null when the user may not see it (not a member and
- * not an admin). The membership condition is in the WHERE clause.
- */
-export async function findStudyForUser({
-  user,
-  studyId,
-}: {
-  user: Pick<UserRow, 'id' | 'role'>;
-  studyId: number;
-}): Promise<StudyWithAccess | null> {
-  const query = db('studies as s')
-    .leftJoin('study_members as m', function () {
-      this.on('m.study_id', 's.id').andOn('m.user_id', db.raw('?', [user.id]));
-    })
-    .where('s.id', studyId)
-    .andWhere('s.archived', false)
-    .first([...studyColumns, 'm.study_role as study_role_of_user']);
-  if (user.role !== 'admin') query.whereNotNull('m.user_id');
-  const row = await query;
-  if (!row) return null;
-  const studyRole = (row.study_role_of_user as StudyRole | null) ?? null;
-  const admin = user.role === 'admin';
-  return {
-    study: toStudy(row),
-    studyRole,
-    canManage: managesStudy({ role: user.role, studyRole }),
-    seesAllRuns: admin || studyRole === 'lead' || studyRole === 'observer',
-  };
+/** A study's protocol (null when there is no such study, or it is archived). Who may see it is findStudyAccess's answer. */
+export async function findStudyDetail({ studyId }: { studyId: number }): Promise<StudyDetail | null> {
+  const row = await db('studies as s').where('s.id', studyId).andWhere('s.archived', false).first(studyColumns);
+  return row ? toStudy(row) : null;
 }
 
 function protocolRow(v: Partial<StudyValues>): Record<string, unknown> {

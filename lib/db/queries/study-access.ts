@@ -4,8 +4,9 @@ import type { UserRow } from './users';
 import type { Access } from '@/lib/auth/permissions';
 
 /**
- * The caller's access to one study, or null when they may not see it: admins see every study;
- * everyone else only studies they are a member of. Use it to scope every study-level query.
+ * The caller's access to one study, or null when they may not see it: admins see every study that
+ * is not archived; everyone else only such studies they are a member of. The one answer to "may this
+ * user see this study" (the handler's scope, pages' studyPageAccess and use cases all ask it). Use it to scope every study-level query.
  */
 export async function findStudyAccess({ user, studyId }: { user: Pick<UserRow, 'id' | 'role'>; studyId: number }): Promise<Access | null> {
   const row = await db('studies as s')
@@ -13,6 +14,7 @@ export async function findStudyAccess({ user, studyId }: { user: Pick<UserRow, '
       this.on('m.study_id', 's.id').andOn('m.user_id', db.raw('?', [user.id]));
     })
     .where('s.id', studyId)
+    .andWhere('s.archived', false)
     .first('s.id as studyId', 's.name', 'm.study_role as studyRole');
   if (!row) return null;
   const isAdmin = user.role === 'admin';

@@ -2,7 +2,7 @@ import type { Metadata } from 'next';
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
-import { findStudyForUser } from '@/lib/db/queries/studies';
+import { studyWithAccess } from '@/lib/studies/study-with-access';
 import { listRunsForStudy, studyProgress } from '@/lib/db/queries/runs';
 import { maxUploadBytes } from '@/lib/runs/schema';
 import { CONSENSUS_NAMES, DIM_METHOD_NAMES } from '@/lib/studies/labels';
@@ -14,7 +14,7 @@ export default async function StudyPage({ params }: { params: Promise<{ id: stri
   const user = await requirePageUser('studies.read');
   const id = Number((await params).id);
   if (!Number.isInteger(id) || id <= 0) notFound();
-  const access = await findStudyForUser({ user, studyId: id });
+  const access = await studyWithAccess({ user, studyId: id });
   if (!access) notFound();
   const { study } = access;
   const [runs, progress] = await Promise.all([

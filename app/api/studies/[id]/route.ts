@@ -1,12 +1,12 @@
 import { handler } from '@/lib/api/handler';
 import { studyIdParams, studyUpdateSchema } from '@/lib/studies/schema';
-import { findStudyForUser } from '@/lib/db/queries/studies';
+import { studyWithAccess } from '@/lib/studies/study-with-access';
 import { updateStudy } from '@/lib/studies/update-study';
 import { notFound } from '@/lib/errors';
 
 // GET /api/studies/:id – a study's protocol and the caller's access to it
 export const GET = handler({ permission: 'studies.read', params: studyIdParams }, async ({ user, params }) => {
-  const access = await findStudyForUser({ user, studyId: params.id });
+  const access = await studyWithAccess({ user, studyId: params.id });
   if (!access) throw notFound('The study');
   return access;
 });

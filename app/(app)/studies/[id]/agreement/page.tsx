@@ -1,8 +1,6 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
-import { notFound } from 'next/navigation';
-import { requirePageUser } from '@/lib/auth/session';
-import { findStudyAccess } from '@/lib/db/queries/study-access';
+import { studyPageAccess } from '@/lib/auth/page-access';
 import { leadsStudy } from '@/lib/auth/permissions';
 import { loadStudyRatings } from '@/lib/db/queries/agreement';
 import { buildAgreementReport } from '@/lib/reports/agreement-report';
@@ -18,10 +16,8 @@ export const metadata: Metadata = { title: 'Agreement' };
 const BINS = [-1, 0, 0.2, 0.4, 0.6, 0.8, 1.0001];
 
 export default async function AgreementPage({ params }: { params: Promise<{ id: string }> }) {
-  const user = await requirePageUser('agreement.read');
-  const studyId = Number((await params).id);
-  const access = Number.isInteger(studyId) ? await findStudyAccess({ user, studyId }) : null;
-  if (!access) notFound();
+  const { access } = await studyPageAccess('agreement.read', (await params).id);
+  const studyId = access.studyId;
   const report = buildAgreementReport(await loadStudyRatings({ studyId }));
   const names = new Map(report.raters.map((r) => [String(r.id), r.name]));
   const nameOf = (id: string) => names.get(id) ?? `rater ${id}`;

@@ -1,22 +1,15 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
-import { forbidden, notFound } from 'next/navigation';
-import { requirePageUser } from '@/lib/auth/session';
+import { studyPageAccess } from '@/lib/auth/page-access';
 import { listStudyAssignments } from '@/lib/assignments/list-study-assignments';
-import { findStudyAccess } from '@/lib/db/queries/study-access';
-import { leadsStudy } from '@/lib/auth/permissions';
 import { AssignmentsTable } from '@/components/assignments/assignments-table';
 import { Panel } from '@/components/ui/panel';
 
 export const metadata: Metadata = { title: 'Assignments' };
 
 export default async function AssignmentsPage({ params }: { params: Promise<{ id: string }> }) {
-  const user = await requirePageUser('runs.manage');
-  const id = Number((await params).id);
-  if (!Number.isInteger(id) || id <= 0) notFound();
-  const access = await findStudyAccess({ user, studyId: id });
-  if (!access) notFound();
-  if (!leadsStudy(access)) forbidden();
+  const { user, access } = await studyPageAccess('runs.manage', (await params).id, { studyRule: 'lead' });
+  const id = access.studyId;
   const initial = await listStudyAssignments({ user, studyId: id });
   return (
     <div className="flex flex-col gap-6">

@@ -1,9 +1,7 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
-import { notFound } from 'next/navigation';
-import { requirePageUser } from '@/lib/auth/session';
+import { studyPageAccess } from '@/lib/auth/page-access';
 import { can } from '@/lib/auth/permissions';
-import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { leadsStudy } from '@/lib/auth/permissions';
 import { changedSinceRelease, listReleases, openReleaseJob, releaseReadiness, runReadiness } from '@/lib/db/queries/releases';
 import { bidsName, distinctRunNames } from '@/lib/bids';
@@ -17,10 +15,8 @@ export const metadata: Metadata = { title: 'Releases' };
 const kb = (n: number) => (n < 1024 * 1024 ? `${(n / 1024).toFixed(1)} kB` : `${(n / 1024 / 1024).toFixed(1)} MB`);
 
 export default async function ReleasesPage({ params }: { params: Promise<{ id: string }> }) {
-  const user = await requirePageUser('releases.read');
-  const studyId = Number((await params).id);
-  const access = Number.isInteger(studyId) ? await findStudyAccess({ user, studyId }) : null;
-  if (!access) notFound();
+  const { user, access } = await studyPageAccess('releases.read', (await params).id);
+  const studyId = access.studyId;
   const isLead = leadsStudy(access) && can(user.role, 'releases.create');
   const mayDenoise = leadsStudy(access) && can(user.role, 'denoise.request');
   const readiness = await releaseReadiness({ studyId });

@@ -1,7 +1,7 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
-import { findStudyForUser } from '@/lib/db/queries/studies';
+import { studyWithAccess } from '@/lib/studies/study-with-access';
 import { listMembers } from '@/lib/db/queries/members';
 import { StudyForm } from '@/components/studies/study-form';
 import { MembersPanel } from '@/components/studies/members-panel';
@@ -21,7 +21,7 @@ export default async function StudySettingsPage({ params }: { params: Promise<{ 
   const user = await requirePageUser('studies.read');
   const id = Number((await params).id);
   if (!Number.isInteger(id) || id <= 0) notFound();
-  const access = await findStudyForUser({ user, studyId: id });
+  const access = await studyWithAccess({ user, studyId: id });
   if (!access) notFound();
   const { study } = access;
   const members = await listMembers({ studyId: id });

@@ -2,7 +2,6 @@ import { Readable } from 'node:stream';
 import { z } from 'zod';
 import { handler } from '@/lib/api/handler';
 import { recordAudit } from '@/lib/db/queries/audit';
-import { releaseFor } from '@/lib/releases/access';
 import { archiveName, releaseArchive } from '@/lib/releases/archive';
 import { AppError } from '@/lib/errors';
 import { sizeOf } from '@/lib/storage';
@@ -10,8 +9,8 @@ import { sizeOf } from '@/lib/storage';
 const params = z.object({ releaseId: z.coerce.number().int().positive() });
 
 // GET /api/releases/:releaseId/archive – the release as one ZIP, streamed (manifest.json with every file's sha256 last)
-export const GET = handler({ permission: 'exports.download', params, what: 'The download' }, async ({ user, params }) => {
-  const { release } = await releaseFor({ user, releaseId: params.releaseId });
+export const GET = handler({ permission: 'exports.download', scope: 'release', params, what: 'The download' }, async ({ user, access }) => {
+  const release = access.release!;
   const manifest = release.manifest!;
   const missing: string[] = [];
   for (const f of manifest.files) if ((await sizeOf(f.key).catch(() => null)) == null) missing.push(f.name);

@@ -2,13 +2,13 @@ import { handler } from '@/lib/api/handler';
 import { studyIdParams } from '@/lib/studies/schema';
 import { runUploadQuerySchema } from '@/lib/runs/schema';
 import { contentLengthOf, uploadRun } from '@/lib/runs/upload';
-import { findStudyForUser } from '@/lib/db/queries/studies';
+import { studyWithAccess } from '@/lib/studies/study-with-access';
 import { listRunsForStudy, studyProgress } from '@/lib/db/queries/runs';
 import { notFound } from '@/lib/errors';
 
 // GET /api/studies/:id/runs – the runs table (raters: only their assigned runs) and the study's progress
 export const GET = handler({ permission: 'runs.read', params: studyIdParams }, async ({ user, params }) => {
-  const access = await findStudyForUser({ user, studyId: params.id });
+  const access = await studyWithAccess({ user, studyId: params.id });
   if (!access) throw notFound('The study');
   const [runs, progress] = await Promise.all([
     listRunsForStudy({ user, studyId: params.id }),

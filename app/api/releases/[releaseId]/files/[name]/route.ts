@@ -1,6 +1,5 @@
 import { z } from 'zod';
 import { handler } from '@/lib/api/handler';
-import { releaseFor } from '@/lib/releases/access';
 import { releaseFileResponse } from '@/lib/releases/serve-file';
 
 const params = z.object({
@@ -12,7 +11,7 @@ const params = z.object({
 });
 
 // GET /api/releases/:releaseId/files/:name – one file of a release (a name from its manifest)
-export const GET = handler({ permission: 'exports.download', params, what: 'The file request' }, async ({ user, params }) => {
-  const { release } = await releaseFor({ user, releaseId: params.releaseId });
-  return releaseFileResponse(release, params.name);
-});
+export const GET = handler(
+  { permission: 'exports.download', scope: 'release', params, what: 'The file request' },
+  async ({ access, params }) => releaseFileResponse(access.release!, params.name),
+);

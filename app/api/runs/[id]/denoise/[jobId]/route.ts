@@ -1,17 +1,14 @@
 import { z } from 'zod';
 import { handler } from '@/lib/api/handler';
-import { findStudyAccess } from '@/lib/db/queries/study-access';
-import { findDenoiseJob, runStudy } from '@/lib/db/queries/exports';
+import { findDenoiseJob } from '@/lib/db/queries/exports';
 import { AppError, notFound } from '@/lib/errors';
 import { storedFileResponse } from '@/lib/storage/respond';
 
 const params = z.object({ id: z.coerce.number().int().positive(), jobId: z.coerce.number().int().positive() });
 
 // GET /api/runs/:id/denoise/:jobId – the denoised NIfTI of a finished request
-export const GET = handler({ permission: 'exports.download', params, what: 'The download' }, async ({ user, params }) => {
-  const run = await runStudy({ runId: params.id });
-  const access = run ? await findStudyAccess({ user, studyId: run.studyId }) : null;
-  const job = access ? await findDenoiseJob({ runId: params.id, jobId: params.jobId }) : null;
+export const GET = handler({ permission: 'exports.download', scope: 'run', params, what: 'The download' }, async ({ params }) => {
+  const job = await findDenoiseJob({ runId: params.id, jobId: params.jobId });
   if (!job) throw notFound('The denoise request');
   if (job.status !== 'succeeded' || !job.result)
     throw new AppError(

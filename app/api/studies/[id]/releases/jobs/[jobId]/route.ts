@@ -1,6 +1,5 @@
 import { z } from 'zod';
 import { handler } from '@/lib/api/handler';
-import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { findReleaseJob } from '@/lib/db/queries/releases';
 import { notFound } from '@/lib/errors';
 
@@ -8,10 +7,11 @@ const params = z.object({ id: z.coerce.number().int().positive(), jobId: z.coerc
 
 // GET /api/studies/:id/releases/jobs/:jobId – a release being built: status, stage, percent, the
 // worker's message and, once done, { releaseId, version, files }
-export const GET = handler({ permission: 'releases.read', params, what: 'The release progress request' }, async ({ user, params }) => {
-  const access = await findStudyAccess({ user, studyId: params.id });
-  if (!access) throw notFound('The study');
-  const job = await findReleaseJob({ studyId: params.id, jobId: params.jobId });
-  if (!job) throw notFound('The release job');
-  return job;
-});
+export const GET = handler(
+  { permission: 'releases.read', scope: 'study', params, what: 'The release progress request' },
+  async ({ params }) => {
+    const job = await findReleaseJob({ studyId: params.id, jobId: params.jobId });
+    if (!job) throw notFound('The release job');
+    return job;
+  },
+);

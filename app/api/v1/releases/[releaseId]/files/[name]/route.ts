@@ -1,7 +1,6 @@
 import { z } from 'zod';
 import { handler } from '@/lib/api/handler';
-import { authenticateBearer, readOnlyResponse } from '@/lib/auth/access-tokens';
-import { releaseFor } from '@/lib/releases/access';
+import { readOnlyResponse } from '@/lib/auth/access-tokens';
 import { releaseFileResponse } from '@/lib/releases/serve-file';
 
 const params = z.object({
@@ -13,11 +12,10 @@ const params = z.object({
 });
 
 // GET /api/v1/releases/:releaseId/files/:name – (Bearer token) one file of a release the token's owner may see
-export const GET = handler({ permission: 'public', params, what: 'The pipeline file request' }, async ({ req, params }) => {
-  const user = await authenticateBearer(req);
-  const { release } = await releaseFor({ user, releaseId: params.releaseId });
-  return releaseFileResponse(release, params.name);
-});
+export const GET = handler(
+  { auth: 'token', permission: 'exports.download', scope: 'release', params, what: 'The pipeline file request' },
+  async ({ access, params }) => releaseFileResponse(access.release!, params.name),
+);
 
 const refuse = handler({ permission: 'public', what: 'The pipeline request' }, async () => readOnlyResponse());
 export { refuse as POST, refuse as PUT, refuse as PATCH, refuse as DELETE };
