@@ -8,9 +8,12 @@ export const emailSchema = z
   .toLowerCase()
   .pipe(z.email({ message: 'Enter a valid e-mail address.' }));
 
+/** The shortest password an account may have (the forms' hint says it). */
+export const MIN_PASSWORD_LENGTH = 10;
+
 export const passwordSchema = z
   .string()
-  .min(10, { message: 'Use at least 10 characters.' })
+  .min(MIN_PASSWORD_LENGTH, { message: `Use at least ${MIN_PASSWORD_LENGTH} characters.` })
   .max(200, { message: 'Use at most 200 characters.' });
 
 export const signInSchema = z.object({

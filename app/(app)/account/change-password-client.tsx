@@ -6,6 +6,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { changePasswordSchema, type ChangePasswordInput } from '@/lib/auth/schemas';
 import { Field } from '@/components/ui/field';
 import { Button } from '@/components/ui/button';
+import { NewPasswordFields } from '@/components/ui/new-password-fields';
 import { Notice } from '@/components/ui/notice';
 import { postJson } from '@/lib/api/client';
 
@@ -42,20 +43,10 @@ export function ChangePasswordForm() {
         {...register('currentPassword')}
         error={formState.errors.currentPassword?.message}
       />
-      <Field
+      <NewPasswordFields
         label="New password"
-        type="password"
-        autoComplete="new-password"
-        hint="At least 10 characters."
-        {...register('newPassword')}
-        error={formState.errors.newPassword?.message}
-      />
-      <Field
-        label="New password again"
-        type="password"
-        autoComplete="new-password"
-        {...register('confirmPassword')}
-        error={formState.errors.confirmPassword?.message}
+        password={{ field: register('newPassword'), error: formState.errors.newPassword?.message }}
+        confirm={{ field: register('confirmPassword'), error: formState.errors.confirmPassword?.message }}
       />
       <Button type="submit" disabled={formState.isSubmitting}>
         Change password

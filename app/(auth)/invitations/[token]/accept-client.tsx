@@ -8,6 +8,7 @@ import { acceptFormSchema, type AcceptFormInput } from '@/lib/invitations/schema
 import { postJson } from '@/lib/api/client';
 import { Field } from '@/components/ui/field';
 import { Button } from '@/components/ui/button';
+import { NewPasswordFields } from '@/components/ui/new-password-fields';
 import { Notice } from '@/components/ui/notice';
 
 export function AcceptInvitationForm({
@@ -78,20 +79,10 @@ export function AcceptInvitationForm({
         </Notice>
       ) : null}
       <Field label="Your name" autoComplete="name" {...register('name')} error={formState.errors.name?.message} />
-      <Field
+      <NewPasswordFields
         label="Password"
-        type="password"
-        autoComplete="new-password"
-        hint="At least 10 characters."
-        {...register('password')}
-        error={formState.errors.password?.message}
-      />
-      <Field
-        label="Password again"
-        type="password"
-        autoComplete="new-password"
-        {...register('confirmPassword')}
-        error={formState.errors.confirmPassword?.message}
+        password={{ field: register('password'), error: formState.errors.password?.message }}
+        confirm={{ field: register('confirmPassword'), error: formState.errors.confirmPassword?.message }}
       />
       <Button type="submit" disabled={formState.isSubmitting} data-testid="accept-submit">
         {formState.isSubmitting ? 'Creating your account…' : 'Create my account'}

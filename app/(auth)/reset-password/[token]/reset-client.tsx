@@ -6,8 +6,8 @@ import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { resetFormSchema, type ResetFormInput } from '@/app/api/password-reset/schema';
 import { postJson } from '@/lib/api/client';
-import { Field } from '@/components/ui/field';
 import { Button } from '@/components/ui/button';
+import { NewPasswordFields } from '@/components/ui/new-password-fields';
 import { Notice } from '@/components/ui/notice';
 
 export function ResetPasswordForm({ token, email }: { token: string; email: string }) {
@@ -53,20 +53,10 @@ export function ResetPasswordForm({ token, email }: { token: string; email: stri
           {failure}
         </Notice>
       ) : null}
-      <Field
+      <NewPasswordFields
         label="New password"
-        type="password"
-        autoComplete="new-password"
-        hint="At least 10 characters."
-        {...register('password')}
-        error={formState.errors.password?.message}
-      />
-      <Field
-        label="New password again"
-        type="password"
-        autoComplete="new-password"
-        {...register('confirmPassword')}
-        error={formState.errors.confirmPassword?.message}
+        password={{ field: register('password'), error: formState.errors.password?.message }}
+        confirm={{ field: register('confirmPassword'), error: formState.errors.confirmPassword?.message }}
       />
       <Button type="submit" disabled={formState.isSubmitting} data-testid="reset-submit">
         {formState.isSubmitting ? 'Saving…' : 'Save the new password'}
