@@ -1,6 +1,7 @@
 import 'server-only';
-import type { Knex } from 'knex';
 import { secretProblem } from '@/lib/auth/secret';
+import { probeDatabase } from '@/lib/db/queries/health';
+import type { Db } from '@/lib/db/transaction';
 
 export type Readiness = {
   ready: boolean;
@@ -13,15 +14,18 @@ export type Readiness = {
 /**
  * Whether this server can serve signed-in users: in production a real session secret
  * (lib/auth/secret.ts) and, always, a database that answers. The driver's own error is logged,
- * never returned (it names hosts and ports).
+ * never returned (it names hosts and ports). `conn`: another connection to check (default the application's).
  */
-export async function readiness({ env = process.env, conn }: { env?: Record<string, string | undefined>; conn: Knex }): Promise<Readiness> {
+export async function readiness({
+  env = process.env,
+  conn,
+}: { env?: Record<string, string | undefined>; conn?: Db } = {}): Promise<Readiness> {
   const reasons: string[] = [];
   const weak = env.NODE_ENV === 'production' && env.QUORUM_ALLOW_DEV_SECRET !== '1' ? secretProblem(env) : null;
   if (weak) reasons.push('The session secret is missing or weak: set NEXTAUTH_SECRET to a long random string and restart.');
   let database: Readiness['database'] = 'reachable';
   try {
-    await conn.raw('SELECT 1 FROM users LIMIT 1');
+    await probeDatabase(conn);
   } catch (err) {
     console.error('[health] database check failed:', err);
     database = 'unreachable';

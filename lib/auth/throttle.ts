@@ -1,6 +1,6 @@
 import 'server-only';
 import { createHash } from 'node:crypto';
-import { db } from '@/lib/db/knex';
+import { deleteThrottle, readLockedUntil, upsertFailure } from '@/lib/db/queries/sign-in-throttles';
 
 /**
  * Throttles for sign-in, invitation and reset endpoints, one row per key in sign_in_throttles.
@@ -39,31 +39,13 @@ export function pairKey(email: string, address: string): ThrottleKey {
 
 /** Milliseconds until the key may try again (0 = not locked). */
 export async function lockedFor(key: ThrottleKey): Promise<number> {
-  const row = await db('sign_in_throttles')
-    .select('locked_until')
-    .where({ key: stored(key) })
-    .first();
-  const until = row?.locked_until ? new Date(row.locked_until).getTime() : 0;
+  const until = (await readLockedUntil(stored(key)))?.getTime() ?? 0;
   return Math.max(0, until - Date.now());
 }
 
-/**
- * Counts one failure for the key and sets its wait by the policy. One atomic upsert (no
- * read-then-write), so concurrent failures neither lose counts nor deadlock. In MariaDB's
- * ON DUPLICATE KEY UPDATE the assignments run left to right and see earlier ones.
- */
+/** Counts one failure for the key and sets its wait by the policy (one atomic upsert, see upsertFailure). */
 export async function recordFailure(key: ThrottleKey, policy: ThrottlePolicy = DEFAULT_POLICY): Promise<void> {
-  const { free, baseSec, capSec, windowSec } = policy;
-  const wait = `LEAST(?, ? * POW(2, LEAST(failures - ? - 1, 30)))`;
-  await db.raw(
-    `INSERT INTO sign_in_throttles (\`key\`, failures, window_start, locked_until)
-       VALUES (?, 1, NOW(3), IF(1 > ?, NOW(3) + INTERVAL ? SECOND, NULL))
-     ON DUPLICATE KEY UPDATE
-       failures = IF(window_start < NOW(3) - INTERVAL ? SECOND, 1, failures + 1),
-       locked_until = IF(failures > ?, NOW(3) + INTERVAL ${wait} SECOND, locked_until),
-       window_start = IF(failures = 1, NOW(3), window_start)`,
-    [stored(key), free, baseSec, windowSec, free, capSec, baseSec, free],
-  );
+  await upsertFailure(stored(key), policy);
 }
 
 /** Counts one attempt against each key (invitation and reset endpoints count every attempt). */
@@ -72,9 +54,7 @@ export async function countAttempts(keys: readonly ThrottleKey[]): Promise<void>
 }
 
 export async function clearFailures(key: ThrottleKey): Promise<void> {
-  await db('sign_in_throttles')
-    .where({ key: stored(key) })
-    .delete();
+  await deleteThrottle(stored(key));
 }
 
 /** "8 seconds", "3 minutes": how long to wait, for people. */

@@ -16,8 +16,8 @@ import { writeFile } from 'node:fs/promises';
 import { enqueueJob, JobError } from '@/lib/jobs';
 import { checksumOfKey } from '@/lib/storage/checksum';
 import type { ReleasePayload } from '@/lib/jobs/release-payload';
-import type { Knex } from 'knex';
-import { db, toJson } from '@/lib/db/knex';
+import { markJobWaiting } from '@/lib/db/queries/jobs';
+import { inTransaction, type Trx } from '@/lib/db/transaction';
 import { bidsName } from '@/lib/bids';
 import { AppError, forbidden, notFound } from '@/lib/errors';
 import type { UserRow } from '@/lib/db/queries/users';
@@ -26,11 +26,19 @@ import { leadsStudy } from '@/lib/auth/permissions';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { loadRatingFacts, loadStudyRatings, type RatingFacts } from '@/lib/db/queries/agreement';
 import {
+  findReleaser,
+  insertRelease,
+  insertReleaseDecisions,
+  lastReleaseVersion,
   loadExportRuns,
   lockStudy,
+  lockStudyRow,
   openReleaseJob,
+  raterNames,
   releaseReadiness,
+  runInStudy,
   storeMapChecksum,
+  storeReleaseManifest,
   type ExportRun,
   type ManifestFile,
   type ManifestRun,
@@ -173,10 +181,9 @@ export async function requestRelease({
   if (!access) throw notFound('The study');
   if (!leadsStudy(access)) throw forbidden('releasing this study (only its leads may)');
   if (runId != null) {
-    const run = await db('runs').where({ id: runId, study_id: studyId }).first('id');
-    if (!run) throw notFound('The run');
+    if (!(await runInStudy({ studyId, runId }))) throw notFound('The run');
   }
-  return db.transaction(async (trx) => {
+  return inTransaction(async (trx) => {
     if (!(await lockStudy(trx, studyId))) throw notFound('The study');
     const open = await openReleaseJob({ studyId, runId }, trx);
     if (open) return { jobId: open, existing: true };
@@ -185,7 +192,7 @@ export async function requestRelease({
     const clash = nameClash(await loadExportRuns({ studyId, runId }, trx, { timecourses: false }));
     if (clash) throw new AppError('conflict', clash);
     const jobId = await enqueueJob(trx, { kind: 'release', payload: { studyId, runId, notes, ip }, studyId, createdBy: user.id });
-    await trx('jobs').where({ id: jobId }).update({ stage: 'queued', percent: 0, message: 'Waiting for a worker' });
+    await markJobWaiting(trx, jobId);
     return { jobId, existing: false };
   });
 }
@@ -207,20 +214,20 @@ function nameClash(runs: Pick<ExportRun, 'runId' | 'sub' | 'ses' | 'task' | 'acq
 export interface ReleaseJobHooks {
   progress(stage: string, percent: number): Promise<void>;
   /** Runs `write` in the transaction that completes the job. */
-  commit(write: (trx: Knex.Transaction) => Promise<CreatedRelease>): Promise<CreatedRelease>;
+  commit(write: (trx: Trx) => Promise<CreatedRelease>): Promise<CreatedRelease>;
 }
 
 /** The worker's part: builds the release a request queued. Throws AppError (conflict) when the scope can no longer be released. */
 export async function buildRelease(p: ReleasePayload & { actorId: number }, job: ReleaseJobHooks): Promise<CreatedRelease> {
   const { studyId, runId, notes, ip } = p;
-  const user = await db('users').where({ id: p.actorId }).first('id', 'name');
+  const user = await findReleaser({ userId: p.actorId });
   if (!user) throw new AppError('conflict', 'The lead who asked for this release no longer has an account; ask again.');
   await job.progress('checking', 2);
   const refusal = refusalOf(await releaseReadiness({ studyId, runId }), studyId);
   if (refusal) throw new AppError('conflict', refusal);
 
   // the heavy part, outside any transaction: map checksums and the agreement report's bootstrap
-  const planned = await loadExportRuns({ studyId, runId }, db, { timecourses: false });
+  const planned = await loadExportRuns({ studyId, runId }, undefined, { timecourses: false });
   const maps = new Map<number, MapChecksum>();
   for (const [i, r] of planned.entries()) {
     if (r.componentsKey) maps.set(r.runId, await mapChecksum(r));
@@ -235,7 +242,7 @@ export async function buildRelease(p: ReleasePayload & { actorId: number }, job:
   const dirKey = newKey('releases');
   try {
     return await job.commit(async (trx) => {
-      const study = await trx('studies').where({ id: studyId }).forUpdate().first();
+      const study = await lockStudyRow(trx, studyId);
       if (!study) throw new AppError('conflict', 'The study no longer exists.');
       const readiness = await releaseReadiness({ studyId, runId }, trx);
       const again = refusalOf(readiness, studyId);
@@ -248,14 +255,8 @@ export async function buildRelease(p: ReleasePayload & { actorId: number }, job:
         throw new JobError(
           'The study changed while its release was being built (a run was added, removed or decomposed again); building it again.',
         );
-      const last = await trx('releases')
-        .where({ study_id: studyId, run_key: runId ?? 0 })
-        .max('version as v')
-        .first();
-      const version = Number(last?.v ?? 0) + 1;
-      const [id] = await trx('releases').insert({ study_id: studyId, run_id: runId, version, released_by: user.id, notes });
-      const releaseId = Number(id);
-      const released = await trx('releases').where({ id: releaseId }).first('released_at');
+      const version = (await lastReleaseVersion(trx, { studyId, runId })) + 1;
+      const { releaseId, releasedAt } = await insertRelease(trx, { studyId, runId, version, releasedBy: user.id, notes });
       const clash = nameClash(runs);
       if (clash) throw new AppError('conflict', clash);
       const rows = runs.flatMap((r) =>
@@ -269,7 +270,7 @@ export async function buildRelease(p: ReleasePayload & { actorId: number }, job:
           method: c.method as never,
         })),
       );
-      for (let i = 0; i < rows.length; i += 200) await trx('release_decisions').insert(rows.slice(i, i + 200));
+      await insertReleaseDecisions(trx, rows);
       const manifest = await writeReleaseFiles(trx, {
         dirKey,
         study,
@@ -279,15 +280,13 @@ export async function buildRelease(p: ReleasePayload & { actorId: number }, job:
         facts,
         releaseId,
         version,
-        releasedAt: (released.released_at as Date).toISOString(),
+        releasedAt: releasedAt.toISOString(),
         user,
         runId,
         notes,
         excluded: runId ? [] : readiness.notReady,
       });
-      await trx('releases')
-        .where({ id: releaseId })
-        .update({ manifest: toJson(manifest), agreement_report: toJson(report) });
+      await storeReleaseManifest(trx, { releaseId, manifest, report });
       await recordAudit(
         {
           actorId: user.id,
@@ -316,7 +315,7 @@ export async function buildRelease(p: ReleasePayload & { actorId: number }, job:
 }
 
 async function writeReleaseFiles(
-  trx: Knex.Transaction,
+  trx: Trx,
   o: {
     dirKey: string;
     study: Record<string, unknown>;
@@ -338,9 +337,7 @@ async function writeReleaseFiles(
   const policy = (o.study.uncertain_in_export as UncertainPolicy) ?? 'keep';
   const stamp = { studyId, releaseId: o.releaseId, version: o.version, releasedAt: o.releasedAt, software: SOFTWARE_VERSION };
   const raterIds = [...new Set(o.runs.flatMap((r) => r.components.flatMap((c) => c.votes.map((v) => v.raterId))))].sort((a, b) => a - b);
-  const names = new Map<number, string>(
-    (await trx('users').whereIn('id', raterIds).select('id', 'name')).map((u: { id: number; name: string }) => [Number(u.id), u.name]),
-  );
+  const names = await raterNames(trx, raterIds);
   const codeOf = new Map(raterIds.map((id, i) => [id, `R${i + 1}`]));
   const files: ManifestFile[] = [];
 

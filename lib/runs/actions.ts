@@ -4,26 +4,36 @@ import 'server-only';
  * other settings), retry a failed or cancelled run, cancel a queued or processing one, delete.
  * Each checks the caller may change the run (WHERE-scoped), locks the run row and is audited.
  */
-import type { Knex } from 'knex';
-import { db, parseJson } from '@/lib/db/knex';
 import { bidsName } from '@/lib/bids';
 import { AppError } from '@/lib/errors';
 import { recordAudit } from '@/lib/db/queries/audit';
+import {
+  cancelOpenDecomposeJobs,
+  countReleasedDecisions,
+  countRunVotes,
+  deleteRunRow,
+  lastDecomposePayload,
+  latestDecomposeJob,
+  listDecompositionKeys,
+  lockRunStatus,
+  markRunCancelled,
+} from '@/lib/db/queries/run-changes';
 import { findRunForUser, listRunsForStudy, type RunListItem, type RunStatus } from '@/lib/db/queries/runs';
+import { inTransaction, type Trx } from '@/lib/db/transaction';
 import type { UserRow } from '@/lib/db/queries/users';
 import { removeKey } from '@/lib/storage';
 import { notFound } from '@/lib/errors';
-import { cancelJob, type DecompositionOptionsInput } from '@/lib/jobs';
+import type { DecompositionOptionsInput } from '@/lib/jobs';
 import { decompositionOptionsFor, queueDecomposition } from './queue-job';
 import { runForChange } from './upload';
 import type { DecomposeSettings } from './schema';
 
 type Actor = Pick<UserRow, 'id' | 'role'>;
 
-async function lockedStatus(trx: Knex.Transaction, runId: number): Promise<RunStatus> {
-  const row = await trx('runs').where({ id: runId }).forUpdate().first('status');
-  if (!row) throw notFound('The run');
-  return row.status as RunStatus;
+async function lockedStatus(trx: Trx, runId: number): Promise<RunStatus> {
+  const status = await lockRunStatus(trx, { runId });
+  if (!status) throw notFound('The run');
+  return status;
 }
 
 async function rowFor(user: Actor, studyId: number, runId: number): Promise<RunListItem> {
@@ -45,7 +55,7 @@ export async function queueRun({
   settings?: DecomposeSettings;
 }): Promise<RunListItem> {
   const run = await runForChange(user, runId);
-  await db.transaction(async (trx) => {
+  await inTransaction(async (trx) => {
     const status = await lockedStatus(trx, runId);
     if (status === 'queued' || status === 'processing') {
       throw new AppError('conflict', `The run is already ${status}. Wait for it to finish or cancel it first.`);
@@ -69,13 +79,12 @@ export async function queueRun({
 /** Queues a failed or cancelled run again with the settings of its last job. */
 export async function retryRun({ user, runId }: { user: Actor; runId: number }): Promise<RunListItem> {
   const run = await runForChange(user, runId);
-  await db.transaction(async (trx) => {
+  await inTransaction(async (trx) => {
     const status = await lockedStatus(trx, runId);
     if (status !== 'failed' && status !== 'cancelled') {
       throw new AppError('conflict', `Only a failed or cancelled run can be retried; this one is ${status}.`);
     }
-    const last = await trx('jobs').where({ run_id: runId, kind: 'decompose' }).orderBy('id', 'desc').first('payload');
-    const payload = last ? (parseJson<{ decompositionOptions?: DecompositionOptionsInput }>(last.payload, {}) ?? {}) : {};
+    const payload = (await lastDecomposePayload(trx, { runId })) as { decompositionOptions?: DecompositionOptionsInput };
     await queueDecomposition(trx, { runId, createdBy: user.id, options: payload.decompositionOptions });
     await recordAudit(
       { actorId: user.id, action: 'run.retry', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { from: status } },
@@ -92,19 +101,15 @@ export async function cancelRun({ user, runId }: { user: Actor; runId: number })
   if (status !== 'queued' && status !== 'processing') {
     throw new AppError('conflict', `Only a queued or processing run can be cancelled; this one is ${status}.`);
   }
-  const open = await db('jobs').where({ run_id: runId, kind: 'decompose' }).whereIn('status', ['queued', 'running']).select('id');
-  for (const job of open) await cancelJob(db, Number(job.id), { message: 'Cancelled by a study lead.' });
-  await db('runs')
-    .where({ id: runId })
-    .whereIn('status', ['queued', 'processing'])
-    .update({ status: 'cancelled', status_message: 'Cancelled by a study lead.' });
+  const jobs = await cancelOpenDecomposeJobs({ runId, message: 'Cancelled by a study lead.' });
+  await markRunCancelled({ runId, message: 'Cancelled by a study lead.' });
   await recordAudit({
     actorId: user.id,
     action: 'run.cancel',
     targetType: 'run',
     targetId: runId,
     studyId: run.studyId,
-    detail: { from: status, jobs: open.map((j) => Number(j.id)) },
+    detail: { from: status, jobs },
   });
   return rowFor(user, run.studyId, runId);
 }
@@ -125,22 +130,18 @@ export async function deleteRun({
 }): Promise<{ deleted: number }> {
   const run = await runForChange(user, runId);
   const keys: (string | null)[] = [run.fileKey, run.maskKey, run.motionKey];
-  await db.transaction(async (trx) => {
+  await inTransaction(async (trx) => {
     await lockedStatus(trx, runId);
-    const [released] = await trx('release_decisions').where({ run_id: runId }).count({ n: '*' });
-    if (Number(released.n) > 0) {
+    if ((await countReleasedDecisions(trx, { runId })) > 0) {
       throw new AppError('conflict', 'This run is part of a release and cannot be deleted: releases are frozen records.');
     }
-    const [votes] = await trx('votes')
-      .where({ run_id: runId })
-      .select(db.raw('COUNT(*) as n'), db.raw('COUNT(DISTINCT rater_id) as raters'));
-    const voteCount = Number(votes.n);
+    const votes = await countRunVotes(trx, { runId });
+    const voteCount = votes.votes;
     if (voteCount > 0 && !confirmVotes) {
       const message = `This run already has ${voteCount} vote${voteCount === 1 ? '' : 's'} from ${Number(votes.raters)} rater${Number(votes.raters) === 1 ? '' : 's'}. Deleting it removes them for good. Confirm a second time to delete.`;
       throw new AppError('conflict', message, { confirmVotes: [message] });
     }
-    const decompositions = await trx('decompositions').where({ run_id: runId }).select('components_key', 'mean_key', 'mask_key');
-    for (const d of decompositions) keys.push(d.components_key, d.mean_key, d.mask_key);
+    keys.push(...(await listDecompositionKeys(trx, { runId })));
     await recordAudit(
       {
         actorId: user.id,
@@ -152,7 +153,7 @@ export async function deleteRun({
       },
       trx,
     );
-    await trx('runs').where({ id: runId }).delete();
+    await deleteRunRow(trx, { runId });
   });
   for (const key of keys) {
     await removeKey(key).catch((err) => console.error(`[run.delete] could not remove ${key}:`, err));
@@ -164,9 +165,5 @@ export async function deleteRun({
 export async function runProgress({ user, runId }: { user: Actor; runId: number }) {
   const run = await findRunForUser({ user, runId });
   if (!run) throw notFound('The run');
-  const job = await db('jobs')
-    .where({ run_id: runId, kind: 'decompose' })
-    .orderBy('id', 'desc')
-    .first('id', 'status', 'stage', 'percent', 'message', 'attempts', 'updated_at as updatedAt');
-  return { runId, status: run.status, job: job ?? null };
+  return { runId, status: run.status, job: await latestDecomposeJob({ runId }) };
 }

@@ -6,12 +6,14 @@ import 'server-only';
  * decomposition and its components are stored, the run becomes ready and raters are assigned.
  * The folder is checked before anything is registered, so a refused folder leaves nothing behind.
  */
-import { db } from '@/lib/db/knex';
 import { AppError } from '@/lib/errors';
 import { parseBidsName } from '@/lib/bids';
 import { readNiftiHeaderFile } from '@/lib/nifti';
 import { removeKey } from '@/lib/storage';
 import { recordAudit } from '@/lib/db/queries/audit';
+import { findRunStudyId } from '@/lib/db/queries/run-changes';
+import { findActiveUserByEmail } from '@/lib/db/queries/users';
+import { inTransaction } from '@/lib/db/transaction';
 import { afterAssignmentsCreated } from '@/lib/jobs/queue-notifications';
 import { assignRaters } from './assign-raters';
 import { storeDecomposition } from './ingest-decomposition';
@@ -30,9 +32,8 @@ export async function importDecomposition(opts: {
   dir: string;
   motion?: { name: string; open: () => RawBody; order: 'trans-first' | 'rot-first'; units: 'radians' | 'degrees' };
 }) {
-  const actor = await db('users').where({ email: opts.email.trim().toLowerCase(), active: true }).first('id', 'role');
-  if (!actor) throw new AppError('not_found', `No active account ${opts.email}; give the e-mail of a lead of the study.`);
-  const user = { id: Number(actor.id), role: actor.role };
+  const user = await findActiveUserByEmail({ email: opts.email });
+  if (!user) throw new AppError('not_found', `No active account ${opts.email}; give the e-mail of a lead of the study.`);
   const fromName = parseBidsName(opts.name);
   const e = { ...fromName, ...Object.fromEntries(Object.entries(opts.entities).filter(([, v]) => v)) } as Entities & {
     runLabel?: string | null;
@@ -62,10 +63,10 @@ export async function importDecomposition(opts: {
       query: { name: opts.motion.name, order: opts.motion.order, units: opts.motion.units },
       raw: opts.motion.open(),
     });
-  const stored = await db('runs').where({ id: run.id }).first('study_id as studyId');
+  const studyId = Number(await findRunStudyId({ runId: run.id }));
   const files = await copyDecompositionFiles(opts.dir);
   try {
-    const result = await db.transaction(async (trx) => {
+    const result = await inTransaction(async (trx) => {
       const decompositionId = await storeDecomposition(trx, {
         runId: run.id,
         parameters: imported.parameters,
@@ -74,14 +75,14 @@ export async function importDecomposition(opts: {
         components: imported.components,
       });
       const assignment = await assignRaters(trx, { runId: run.id, assignedBy: user.id });
-      if (assignment.raterIds.length) await afterAssignmentsCreated(trx, { studyId: Number(stored.studyId) });
+      if (assignment.raterIds.length) await afterAssignmentsCreated(trx, { studyId: studyId });
       await recordAudit(
         {
           actorId: user.id,
           action: 'run.imported',
           targetType: 'run',
           targetId: run.id,
-          studyId: Number(stored.studyId),
+          studyId: studyId,
           detail: { decompositionId, components: imported.components.length, from: 'decompose output folder' },
         },
         trx,

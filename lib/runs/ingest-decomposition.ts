@@ -2,8 +2,8 @@
  * Storing a finished decomposition of a run: the NIfTI outputs in a fresh storage directory, then
  * the decomposition row and its component rows in the caller's transaction.
  */
-import type { Knex } from 'knex';
-import { float32ToBlob, toJson } from '@/lib/db/knex';
+import { insertCurrentDecomposition } from '@/lib/db/queries/decompositions';
+import type { Trx } from '@/lib/db/transaction';
 import type { ComponentFeatures } from '@/lib/decomposition/features';
 import { componentFeatures, componentSpectra, componentTimecourse } from '@/lib/decomposition/component-outputs';
 import type { MotionParams } from '@/lib/decomposition/motion';
@@ -117,7 +117,7 @@ export { decompositionSummary } from '@/lib/decomposition/component-outputs';
  * component rows, and sets the run ready. Returns the decomposition id.
  */
 export async function storeDecomposition(
-  trx: Knex.Transaction,
+  trx: Trx,
   d: {
     runId: number;
     parameters: Record<string, unknown>;
@@ -127,30 +127,15 @@ export async function storeDecomposition(
   },
 ): Promise<number> {
   const maps = await checksumOfKey(d.files.componentsKey);
-  await trx('decompositions').where({ run_id: d.runId, is_current: true }).update({ is_current: false });
-  const [id] = await trx('decompositions').insert({
-    run_id: d.runId,
-    parameters: toJson(d.parameters),
-    summary: toJson(d.summary),
-    components_key: d.files.componentsKey,
-    components_sha256: maps.sha256,
-    components_bytes: maps.bytes,
-    mean_key: d.files.meanKey,
-    mask_key: d.files.maskKey,
-    k: d.components.length,
-    is_current: true,
+  return insertCurrentDecomposition(trx, {
+    runId: d.runId,
+    parameters: d.parameters,
+    summary: d.summary,
+    componentsKey: d.files.componentsKey,
+    componentsSha256: maps.sha256,
+    componentsBytes: maps.bytes,
+    meanKey: d.files.meanKey,
+    maskKey: d.files.maskKey,
+    components: d.components,
   });
-  const decompositionId = Number(id);
-  const rows = d.components.map((c) => ({
-    decomposition_id: decompositionId,
-    idx: c.idx,
-    variance_explained: c.varianceExplained,
-    features: toJson(c.features),
-    timecourse: float32ToBlob(c.timecourse),
-    spectrum: float32ToBlob(c.spectrum),
-    frequencies: float32ToBlob(c.frequencies),
-  }));
-  for (let i = 0; i < rows.length; i += 50) await trx('components').insert(rows.slice(i, i + 50));
-  await trx('runs').where({ id: d.runId }).update({ status: 'ready', status_message: null });
-  return decompositionId;
 }

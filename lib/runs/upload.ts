@@ -7,16 +7,17 @@ import 'server-only';
  */
 import { createWriteStream } from 'node:fs';
 import { rm } from 'node:fs/promises';
-import type { Knex } from 'knex';
-import { db, toJson } from '@/lib/db/knex';
 import { assertFourD, assertSameGrid, readNiftiHeaderFile, type NiftiHeader } from '@/lib/nifti';
 import { MotionFileError, parseMotionFile } from '@/lib/decomposition/motion';
 import { moveIntoStore, newKey, pathFor, removeKey, tempPath } from '@/lib/storage';
 import { bidsName } from '@/lib/bids';
 import { AppError, forbidden, notFound } from '@/lib/errors';
 import { studyWithAccess } from '@/lib/studies/study-with-access';
+import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { findManagedRun, findRunBySha, listRunsForStudy, type RunListItem, type RunRecord } from '@/lib/db/queries/runs';
 import { recordAudit } from '@/lib/db/queries/audit';
+import { findRunStudyId, insertRun, setRunMask, setRunMotion } from '@/lib/db/queries/run-changes';
+import { inTransaction, type Trx } from '@/lib/db/transaction';
 import type { UserRow } from '@/lib/db/queries/users';
 import { asRefusal, interrupted, receiveNifti, tooLarge } from './receive';
 import { queueDecomposition } from './queue-job';
@@ -42,11 +43,11 @@ async function studyForUpload(user: Actor, studyId: number) {
 }
 
 /** A run the user may change; otherwise 403 (they can see it) or 404. */
-export async function runForChange(user: Actor, runId: number, trx?: Knex.Transaction): Promise<RunRecord> {
+export async function runForChange(user: Actor, runId: number, trx?: Trx): Promise<RunRecord> {
   const run = await findManagedRun({ user, runId }, trx);
   if (run) return run;
-  const visible = await db('runs as r').where('r.id', runId).first('r.study_id as studyId');
-  if (visible && (await studyWithAccess({ user, studyId: visible.studyId }))) {
+  const studyId = await findRunStudyId({ runId });
+  if (studyId !== null && (await findStudyAccess({ user, studyId }))) {
     throw forbidden("changing this run: only the study's leads and the facility admin may");
   }
   throw notFound('The run');
@@ -102,25 +103,24 @@ export async function uploadRun({
     if (existing) refuseDuplicate(existing);
     if (raw.signal?.aborted) throw interrupted();
     const h = received.header;
-    const runId = await db.transaction(async (trx) => {
-      const [id] = await trx('runs').insert({
-        study_id: studyId,
+    const runId = await inTransaction(async (trx) => {
+      const id = await insertRun(trx, {
+        studyId,
         sub: query.sub,
         ses: query.ses || null,
         task: query.task || null,
         acq: query.acq || null,
-        run_label: query.run || null,
-        original_name: query.name,
-        file_key: key,
+        runLabel: query.run || null,
+        originalName: query.name,
+        fileKey: key,
         sha256: received.sha256,
-        size_bytes: received.sizeBytes,
-        dims: toJson(h.dims.slice(0, 4)),
-        voxel_size: toJson(h.pixdim.slice(1, 4).map((v) => Math.abs(v))),
-        tr_seconds: h.trSeconds,
+        sizeBytes: received.sizeBytes,
+        dims: h.dims.slice(0, 4),
+        voxelSize: h.pixdim.slice(1, 4).map((v) => Math.abs(v)),
+        trSeconds: h.trSeconds,
         volumes: h.dims[3],
         datatype: h.datatype,
-        status: 'uploaded',
-        created_by: user.id,
+        createdBy: user.id,
       });
       await recordAudit(
         {
@@ -133,12 +133,12 @@ export async function uploadRun({
         },
         trx,
       );
-      if (query.queue) await queueDecomposition(trx, { runId: Number(id), createdBy: user.id });
+      if (query.queue) await queueDecomposition(trx, { runId: id, createdBy: user.id });
       // the file goes into storage only once its row is written, inside the same transaction: a
       // failed move rolls the row back, a failed commit removes the file (catch below)
       await moveIntoStore(received.tempFile, key);
       moved = true;
-      return Number(id);
+      return id;
     });
     const [row] = await listRunsForStudy({ user, studyId, runId });
     return row;
@@ -198,8 +198,8 @@ export async function attachMask({
   const key = newKey('masks', received.gzip ? '.nii.gz' : '.nii');
   try {
     await moveIntoStore(received.tempFile, key);
-    await db.transaction(async (trx) => {
-      await trx('runs').where({ id: runId }).update({ mask_key: key });
+    await inTransaction(async (trx) => {
+      await setRunMask(trx, { runId, maskKey: key });
       await recordAudit(
         { actorId: user.id, action: 'run.mask', targetType: 'run', targetId: runId, studyId: run.studyId, detail: { name } },
         trx,
@@ -282,10 +282,8 @@ export async function attachMotion({
       w.end(text, () => resolve());
     });
     await moveIntoStore(temp, key);
-    await db.transaction(async (trx) => {
-      await trx('runs')
-        .where({ id: runId })
-        .update({ motion_key: key, motion_order: MOTION_ORDER_COLUMNS[query.order], motion_rotation_units: query.units });
+    await inTransaction(async (trx) => {
+      await setRunMotion(trx, { runId, motionKey: key, order: MOTION_ORDER_COLUMNS[query.order], units: query.units });
       await recordAudit(
         {
           actorId: user.id,

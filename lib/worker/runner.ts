@@ -4,8 +4,8 @@
  * outcome — succeeded, retried or failed with a readable message, or stopped quietly when the job
  * was cancelled or the lease lost.
  */
-import type { Knex } from 'knex';
-import { toJson } from '@/lib/db/knex';
+import { markJobSucceeded } from '@/lib/db/queries/jobs';
+import { inTransaction, type Db } from '@/lib/db/transaction';
 import { JobCancelled, LeaseLost, PermanentJobError, isStopSignal } from '@/lib/jobs/errors';
 import { describePayloadIssues } from '@/lib/jobs/payloads';
 import { clip, completeJob, failJob, getJob, lockOwnedJob, renewLease, reportProgress, type Job } from '@/lib/jobs/queue';
@@ -40,7 +40,7 @@ function detail(err: unknown): string {
   return String(err);
 }
 
-export async function runClaimedJob(db: Knex, job: Job, opts: RunJobOptions): Promise<RunOutcome> {
+export async function runClaimedJob(db: Db, job: Job, opts: RunJobOptions): Promise<RunOutcome> {
   const { workerId, leaseMs, logger } = opts;
   const kind = opts.kinds[job.kind];
   if (!kind) {
@@ -50,7 +50,7 @@ export async function runClaimedJob(db: Knex, job: Job, opts: RunJobOptions): Pr
   if (!parsed.success) {
     return failJob(db, job.id, workerId, {
       message: `The job's payload is not valid for kind ${job.kind}: ${describePayloadIssues(parsed.error)}.`,
-      error: toJson(job.payload),
+      error: job.payload === undefined || job.payload === null ? null : JSON.stringify(job.payload),
       permanent: true,
     });
   }
@@ -111,26 +111,14 @@ export async function runClaimedJob(db: Knex, job: Job, opts: RunJobOptions): Pr
   let committed = false;
   const commit: JobContext<unknown>['commit'] = async (write, result) => {
     throwIfStopped();
-    const value = await db.transaction(async (trx) => {
+    const value = await inTransaction(async (trx) => {
       const state = await lockOwnedJob(trx, job.id, workerId);
       if (state === 'cancelled') throw new JobCancelled(job.id);
       if (state === 'lost') throw new LeaseLost(job.id, workerId);
       const v = await write(trx);
-      await trx('jobs')
-        .where({ id: job.id })
-        .update({
-          status: 'succeeded',
-          stage: 'done',
-          percent: 100,
-          message: null,
-          error: null,
-          result: toJson(result ? result(v) : null),
-          lease_owner: null,
-          lease_expires_at: null,
-          finished_at: trx.raw('NOW(3)'),
-        });
+      await markJobSucceeded(trx, job.id, result ? result(v) : null);
       return v;
-    });
+    }, db);
     committed = true;
     return value;
   };

@@ -1,6 +1,6 @@
 import 'server-only';
 import type { Knex } from 'knex';
-import { blobToFloat32, db, parseJson } from '@/lib/db/knex';
+import { blobToFloat32, db, parseJson, toJson } from '@/lib/db/knex';
 
 export type ReleaseScope = { studyId: number; runId?: number | null };
 
@@ -387,4 +387,77 @@ export async function findReleaseJob({ studyId, jobId }: { studyId: number; jobI
     message: (row.message as string | null) ?? null,
     release: row.status === 'succeeded' ? parseJson<{ releaseId: number; version: number; files: number }>(row.result, null) : null,
   };
+}
+
+/** Whether the run belongs to the study. */
+export async function runInStudy({ studyId, runId }: { studyId: number; runId: number }): Promise<boolean> {
+  return Boolean(await db('runs').where({ id: runId, study_id: studyId }).first('id'));
+}
+
+/** The study row (every column), locked FOR UPDATE in the caller's transaction; undefined when it is gone. */
+export async function lockStudyRow(trx: Knex.Transaction, studyId: number): Promise<Record<string, unknown> | undefined> {
+  return trx('studies').where({ id: studyId }).forUpdate().first();
+}
+
+/** The highest release version of the scope (0: none yet). */
+export async function lastReleaseVersion(trx: Knex.Transaction, { studyId, runId }: ReleaseScope): Promise<number> {
+  const last = await trx('releases')
+    .where({ study_id: studyId, run_key: runId ?? 0 })
+    .max('version as v')
+    .first();
+  return Number(last?.v ?? 0);
+}
+
+/** Inserts a release row; returns its id and released_at (the database's clock). */
+export async function insertRelease(
+  trx: Knex.Transaction,
+  r: { studyId: number; runId: number | null; version: number; releasedBy: number; notes: string | null },
+): Promise<{ releaseId: number; releasedAt: Date }> {
+  const [id] = await trx('releases').insert({
+    study_id: r.studyId,
+    run_id: r.runId,
+    version: r.version,
+    released_by: r.releasedBy,
+    notes: r.notes,
+  });
+  const releaseId = Number(id);
+  const released = await trx('releases').where({ id: releaseId }).first('released_at');
+  return { releaseId, releasedAt: released.released_at as Date };
+}
+
+/** Freezes decisions into release_decisions (200 rows per insert). */
+export async function insertReleaseDecisions(
+  trx: Knex.Transaction,
+  rows: Array<{
+    release_id: number;
+    component_id: number;
+    run_id: number;
+    idx: number;
+    label: string;
+    noise_kind: string | null;
+    method: string;
+  }>,
+): Promise<void> {
+  for (let i = 0; i < rows.length; i += 200) await trx('release_decisions').insert(rows.slice(i, i + 200));
+}
+
+export async function storeReleaseManifest(
+  trx: Knex.Transaction,
+  { releaseId, manifest, report }: { releaseId: number; manifest: unknown; report: unknown },
+): Promise<void> {
+  await trx('releases')
+    .where({ id: releaseId })
+    .update({ manifest: toJson(manifest), agreement_report: toJson(report) });
+}
+
+/** The id and name of the lead who asked for a release (undefined: no such account). */
+export async function findReleaser({ userId }: { userId: number }): Promise<{ id: number; name: string } | undefined> {
+  return db('users').where({ id: userId }).first('id', 'name');
+}
+
+/** The raters' names by id. */
+export async function raterNames(trx: Knex.Transaction, raterIds: number[]): Promise<Map<number, string>> {
+  return new Map<number, string>(
+    (await trx('users').whereIn('id', raterIds).select('id', 'name')).map((u: { id: number; name: string }) => [Number(u.id), u.name]),
+  );
 }

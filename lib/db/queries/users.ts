@@ -67,3 +67,9 @@ export async function listUsers(): Promise<UserRow[]> {
   const rows = await db('users').select(publicColumns).orderBy('name');
   return rows.map((r) => normalise(r) as UserRow);
 }
+
+/** The id and account role of the active account with this e-mail (trimmed, lower-cased), or null. */
+export async function findActiveUserByEmail({ email }: { email: string }): Promise<{ id: number; role: Role } | null> {
+  const row = await db('users').where({ email: email.trim().toLowerCase(), active: true }).first('id', 'role');
+  return row ? { id: Number(row.id), role: row.role as Role } : null;
+}

@@ -9,8 +9,16 @@
  * worker stores its output the same way.
  */
 import { readFile } from 'node:fs/promises';
-import { blobToFloat32, parseJson } from '@/lib/db/knex';
 import { bidsName } from '@/lib/bids';
+import {
+  currentDecompositionId,
+  findDecompositionSettings,
+  findRunForDenoise,
+  listComponentLabels,
+  listComponentTimecourses,
+  releasedRunEntry,
+  studyUncertainInExport,
+} from '@/lib/db/queries/denoise';
 import { dropInitialVolumes, parseMotionFile } from '@/lib/decomposition/motion';
 import { denoiseImage } from '@/lib/denoise/denoise-image';
 import { denoisePayloadSchema, type DenoiseResult } from '@/lib/denoise/payload';
@@ -30,42 +38,28 @@ export const denoiseKind = defineJobKind({
   payloadSchema: denoisePayloadSchema,
   async run(ctx) {
     const { db, payload } = ctx;
-    const run = await db('runs')
-      .where({ id: payload.runId })
-      .first('id', 'study_id', 'sub', 'ses', 'task', 'acq', 'run_label', 'file_key', 'motion_key', 'motion_order', 'motion_rotation_units');
+    const run = await findRunForDenoise(db, { runId: payload.runId });
     if (!run) throw new PermanentJobError(`Run ${payload.runId} no longer exists.`);
     let decompositionId: number;
     let noise: number[];
     if (payload.releaseId) {
-      const rel = await db('releases').where({ id: payload.releaseId, study_id: run.study_id }).first('manifest');
-      const entry = parseJson<{ runs: { runId: number; decompositionId: number; noise: number[] }[] }>(rel?.manifest, null)?.runs.find(
-        (r) => r.runId === run.id,
-      );
+      const entry = await releasedRunEntry(db, { releaseId: payload.releaseId, studyId: run.study_id, runId: run.id });
       if (!entry) throw new PermanentJobError(`Release ${payload.releaseId} does not contain run ${run.id}.`);
       decompositionId = entry.decompositionId;
       noise = entry.noise;
     } else {
-      const d = await db('decompositions').where({ run_id: run.id, is_current: true }).first('id');
-      if (!d) throw new PermanentJobError(`Run ${run.id} has no decomposition to denoise with.`);
-      decompositionId = Number(d.id);
-      const study = await db('studies').where({ id: run.study_id }).first('uncertain_in_export');
-      const decisions = await db('components as c')
-        .leftJoin('decisions as x', 'x.component_id', 'c.id')
-        .where('c.decomposition_id', decompositionId)
-        .select('c.idx', 'x.label');
-      noise = noiseList(
-        decisions.map((r: { idx: number; label: string | null }) => ({ idx: Number(r.idx), label: r.label })),
-        (study?.uncertain_in_export ?? 'keep') as UncertainPolicy,
-      );
+      const current = await currentDecompositionId(db, { runId: run.id });
+      if (current === null) throw new PermanentJobError(`Run ${run.id} has no decomposition to denoise with.`);
+      decompositionId = current;
+      const uncertain = await studyUncertainInExport(db, { studyId: run.study_id });
+      noise = noiseList(await listComponentLabels(db, { decompositionId }), (uncertain ?? 'keep') as UncertainPolicy);
     }
-    const dec = await db('decompositions').where({ id: decompositionId }).first('id', 'parameters', 'summary', 'mask_key', 'k');
+    const dec = await findDecompositionSettings(db, { decompositionId });
     if (!dec) throw new PermanentJobError(`Decomposition ${decompositionId} no longer exists.`);
-    const summary = parseJson<Record<string, unknown>>(dec.summary, {}) ?? {};
-    const parameters = parseJson<Record<string, unknown>>(dec.parameters, {}) ?? {};
+    const { summary, parameters } = dec;
     const drop = Number(summary.droppedVolumes ?? parameters.dropVolumes ?? parameters.drop ?? 0);
-    const comps = await db('components').where({ decomposition_id: decompositionId }).orderBy('idx').select('idx', 'timecourse');
-    const k = comps.length;
-    const courses = comps.map((c: { timecourse: Buffer | null }) => blobToFloat32(c.timecourse));
+    const courses = await listComponentTimecourses(db, { decompositionId });
+    const k = courses.length;
     if (courses.some((c) => !c)) throw new PermanentJobError('A component has no stored time course; decompose the run again.');
     const T = courses[0]!.length;
     const tcs = new Float32Array(T * k);
@@ -88,7 +82,7 @@ export const denoiseKind = defineJobKind({
         : null;
       const out = await denoiseOnSlurm(ctx, settings, {
         fileKey: run.file_key,
-        maskKey: dec.mask_key ?? null,
+        maskKey: dec.maskKey ?? null,
         motion,
         timecourses: tcs,
         k,
@@ -125,14 +119,14 @@ export const denoiseKind = defineJobKind({
     await ctx.progress('reading', 2);
     const image = await readNiftiFile(pathFor(run.file_key));
     let mask: Uint8Array | undefined;
-    if (dec.mask_key) {
-      const m = (await readNiftiFile(pathFor(dec.mask_key))).readVolume(0);
+    if (dec.maskKey) {
+      const m = (await readNiftiFile(pathFor(dec.maskKey))).readVolume(0);
       mask = new Uint8Array(m.length);
       for (let i = 0; i < m.length; i++) mask[i] = m[i]! > 0 ? 1 : 0;
     }
     let motion;
     if (payload.includeMotion) {
-      const full = parseMotionFile(await readFile(pathFor(run.motion_key), 'utf8'), {
+      const full = parseMotionFile(await readFile(pathFor(run.motion_key as string), 'utf8'), {
         order: motionOrderOf(run.motion_order),
         rotationUnits: run.motion_rotation_units ?? 'radians',
         expectedRows: image.nt,

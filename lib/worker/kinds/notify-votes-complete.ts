@@ -7,7 +7,8 @@
 import { votesCompleteScanMs } from '@/lib/notifications/config';
 import { notifyVotesCompletePayloadSchema, NOTIFY_VOTES_COMPLETE } from '@/lib/notifications/payloads';
 import { ensureNotifyJob } from '@/lib/jobs/queue-notifications';
-import { ratingsOpen, sendVotesCompleteNotices } from '@/lib/notifications/votes-complete';
+import { ratingsOpen } from '@/lib/db/queries/votes-complete';
+import { sendVotesCompleteNotices } from '@/lib/notifications/votes-complete';
 import { sendDriftNotices } from '@/lib/notifications/calibration-drift';
 import { defineJobKind } from '../types';
 
