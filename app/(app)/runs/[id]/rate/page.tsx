@@ -2,7 +2,7 @@ import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
 import { AppError } from '@/lib/errors';
-import { loadDeskComponents } from '@/lib/db/queries/desk';
+import { loadDeskComponents } from '@/lib/runs/load-desk-components';
 import { listVotesForRater } from '@/lib/db/queries/votes';
 import { RateClient } from './rate-client';
 

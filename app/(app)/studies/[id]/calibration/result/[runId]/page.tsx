@@ -7,7 +7,7 @@ import { calibrationGate, calibrationSettings } from '@/lib/db/queries/calibrati
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { labelName, noiseKindName } from '@/lib/studies/labels';
 import { Panel } from '@/components/ui/panel';
-import { loadRunShapes } from '@/lib/db/queries/reconcile-run';
+import { loadRunShapes } from '@/lib/consensus/load-run-shapes';
 import { CalibrationResultViewer, type ResultRow } from '@/components/calibration/result-viewer';
 
 export const metadata: Metadata = { title: 'Calibration result' };
