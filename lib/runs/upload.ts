@@ -15,7 +15,8 @@ import { moveIntoStore, newKey, pathFor, removeKey, tempPath } from '@/lib/stora
 import { bidsName } from '@/lib/bids';
 import { AppError, forbidden, notFound } from '@/lib/errors';
 import { findStudyForUser } from '@/lib/db/queries/studies';
-import { findManagedRun, findRunBySha, listRunsForStudy, type RunListItem, type RunRecord } from '@/lib/db/queries/runs';
+import { findManagedRun, findRunBySha, type RunListItem, type RunRecord } from '@/lib/db/queries/runs';
+import { listRunsForStudy } from './list-study-runs';
 import { recordAudit } from '@/lib/db/queries/audit';
 import type { UserRow } from '@/lib/db/queries/users';
 import { asRefusal, interrupted, receiveNifti, tooLarge } from './receive';
