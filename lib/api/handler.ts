@@ -1,7 +1,8 @@
 import 'server-only';
 import type { z } from 'zod';
 import { requireUser } from '@/lib/auth/session';
-import { leadsStudy, type Access, type Action } from '@/lib/auth/permissions';
+import { leadsStudy, type Action } from '@/lib/auth/permissions';
+import type { Access } from '@/lib/vocabulary/roles';
 import { findRunAccess, findStudyAccess } from '@/lib/db/queries/study-access';
 import type { UserRow } from '@/lib/db/queries/users';
 import { AppError, forbidden, notFound } from '@/lib/errors';

@@ -4,7 +4,8 @@
  */
 import 'server-only';
 import { recordAudit } from '@/lib/db/queries/audit';
-import { findStudyRater, hasAssignment, insertAssignment, runComponents } from '@/lib/db/queries/calibration';
+import { insertAssignment, isAssigned } from '@/lib/db/queries/assignments';
+import { findStudyRater, runComponents } from '@/lib/db/queries/calibration';
 import { inTransaction } from '@/lib/db/transaction';
 import { AppError } from '@/lib/errors';
 import { lockCalibrationRun, requireCalibrationLead, type Caller } from './lead-only';
@@ -39,8 +40,8 @@ export async function assignCalibrationRater({
         `${run.name} has ${missing || 'no'} component${missing === 1 ? '' : 's'} without a reference label. Set the reference labels before assigning raters.`,
       );
     }
-    if (await hasAssignment(trx, { runId, raterId })) throw new AppError('conflict', `${rater.name} is already assigned to ${run.name}.`);
-    await insertAssignment(trx, { runId, raterId, assignedBy: user.id });
+    if (await isAssigned(trx, { runId, raterId })) throw new AppError('conflict', `${rater.name} is already assigned to ${run.name}.`);
+    await insertAssignment(trx, { runId, raterId, assignedBy: user.id, dueAt: null });
     await recordAudit(
       {
         actorId: user.id,

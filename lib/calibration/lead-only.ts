@@ -5,7 +5,7 @@
  */
 import 'server-only';
 import { leadsStudy } from '@/lib/auth/permissions';
-import type { Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/vocabulary/roles';
 import { lockStudyRun } from '@/lib/db/queries/calibration';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import type { Trx } from '@/lib/db/transaction';

@@ -6,7 +6,7 @@
  */
 import 'server-only';
 import { leadsStudy } from '@/lib/auth/permissions';
-import type { Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/vocabulary/roles';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { calibrationRunInfo, setCalibrationFlag } from '@/lib/db/queries/calibration';
 import { scoreRater } from '@/lib/db/queries/calibration-gate';

@@ -14,7 +14,7 @@ import { MotionFileError, parseMotionFile } from '@/lib/decomposition/motion';
 import { moveIntoStore, newKey, pathFor, removeKey, tempPath } from '@/lib/storage';
 import { bidsName } from '@/lib/bids';
 import { AppError, forbidden, notFound } from '@/lib/errors';
-import { findStudyForUser } from '@/lib/db/queries/studies';
+import { findStudyForUser } from '@/lib/studies/find-study-for-user';
 import { findManagedRun, findRunBySha, type RunListItem, type RunRecord } from '@/lib/db/queries/runs';
 import { listRunsForStudy } from './list-study-runs';
 import { recordAudit } from '@/lib/db/queries/audit';

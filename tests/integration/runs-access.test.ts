@@ -10,7 +10,7 @@ import path from 'node:path';
 import { db } from '@/lib/db/knex';
 import { AppError } from '@/lib/errors';
 import { can } from '@/lib/auth/permissions';
-import { findStudyForUser } from '@/lib/db/queries/studies';
+import { findStudyForUser } from '@/lib/studies/find-study-for-user';
 import { createStudy } from '@/lib/studies/create-study';
 import { updateStudy } from '@/lib/studies/update-study';
 import { addMember } from '@/lib/members/add-member';

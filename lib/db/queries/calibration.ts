@@ -193,19 +193,6 @@ export async function findStudyRater(
   return row ? { id: Number(row.id), name: String(row.name), active: Boolean(row.active) } : null;
 }
 
-/** Whether the rater has an assignment on the run. */
-export async function hasAssignment(trx: Knex | Knex.Transaction, { runId, raterId }: { runId: number; raterId: number }) {
-  return Boolean(await trx('assignments').where({ run_id: runId, rater_id: raterId }).first('id'));
-}
-
-/** Adds an assignment of a rater to a run. */
-export async function insertAssignment(
-  trx: Knex.Transaction,
-  { runId, raterId, assignedBy }: { runId: number; raterId: number; assignedBy: number },
-): Promise<void> {
-  await trx('assignments').insert({ run_id: runId, rater_id: raterId, assigned_by: assignedBy });
-}
-
 /** Stores a lead's verdict on a rater (replacing an earlier one). */
 export async function upsertCertification(
   trx: Knex.Transaction,

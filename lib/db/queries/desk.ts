@@ -2,7 +2,7 @@ import 'server-only';
 import type { Knex } from 'knex';
 import { blobToFloat32, db, parseJson } from '@/lib/db/knex';
 import type { DeskComponent } from '@/lib/desk/types';
-import type { LowReproducibilityPolicy } from '@/lib/studies/labels';
+import type { LowReproducibilityPolicy } from '@/lib/vocabulary/protocol';
 
 type Caller = { id: number };
 

@@ -3,9 +3,8 @@ import { db } from '@/lib/db/knex';
 import type { UserRow } from './users';
 import type { Knex } from 'knex';
 import { parseJson, toJson } from '@/lib/db/knex';
-import type { StudyRole, ConsensusRule, DimSetting, LowReproducibilityPolicy, NoiseKindKey } from '@/lib/studies/labels';
-import type { StudyValues, StudyUpdate } from '@/lib/studies/schema';
-import { managesStudy } from '@/lib/auth/permissions';
+import type { ConsensusRule, DimSetting, LowReproducibilityPolicy, NoiseKindKey, ProtocolValues } from '@/lib/vocabulary/protocol';
+import type { StudyRole } from '@/lib/vocabulary/roles';
 
 export type StudySummary = {
   id: number;
@@ -69,11 +68,10 @@ export type StudyDetail = {
 };
 
 /** What a user may do in one study: `canManage` (upload, change, run actions), `seesAllRuns` (else only assigned runs). */
-export type StudyWithAccess = {
+/** A study with the caller's study role in it (lib/studies/find-study-for-user.ts adds what that role may do). */
+export type StudyWithRole = {
   study: StudyDetail;
   studyRole: StudyRole | null;
-  canManage: boolean;
-  seesAllRuns: boolean;
 };
 
 const studyColumns = [
@@ -125,16 +123,16 @@ function toStudy(r: Record<string, unknown>): StudyDetail {
 }
 
 /**
- * The study with the user's access to it, or null when the user may not see it (not a member and
- * not an admin). The membership condition is in the WHERE clause.
+ * The study with the user's role in it, or null when the user may not see it (not a member and
+ * not an admin, or archived). The membership condition is in the WHERE clause.
  */
-export async function findStudyForUser({
+export async function findStudyWithRole({
   user,
   studyId,
 }: {
   user: Pick<UserRow, 'id' | 'role'>;
   studyId: number;
-}): Promise<StudyWithAccess | null> {
+}): Promise<StudyWithRole | null> {
   const query = db('studies as s')
     .leftJoin('study_members as m', function () {
       this.on('m.study_id', 's.id').andOn('m.user_id', db.raw('?', [user.id]));
@@ -145,17 +143,10 @@ export async function findStudyForUser({
   if (user.role !== 'admin') query.whereNotNull('m.user_id');
   const row = await query;
   if (!row) return null;
-  const studyRole = (row.study_role_of_user as StudyRole | null) ?? null;
-  const admin = user.role === 'admin';
-  return {
-    study: toStudy(row),
-    studyRole,
-    canManage: managesStudy({ role: user.role, studyRole }),
-    seesAllRuns: admin || studyRole === 'lead' || studyRole === 'observer',
-  };
+  return { study: toStudy(row), studyRole: (row.study_role_of_user as StudyRole | null) ?? null };
 }
 
-function protocolRow(v: Partial<StudyValues>): Record<string, unknown> {
+function protocolRow(v: Partial<ProtocolValues>): Record<string, unknown> {
   const row: Record<string, unknown> = {};
   if (v.name !== undefined) row.name = v.name;
   if (v.description !== undefined) row.description = v.description || null;
@@ -181,7 +172,7 @@ function protocolRow(v: Partial<StudyValues>): Record<string, unknown> {
 /** Writes a study and makes its creator a lead member; returns its id. */
 export async function insertStudy(
   trx: Knex.Transaction,
-  { createdBy, values }: { createdBy: number; values: StudyValues },
+  { createdBy, values }: { createdBy: number; values: ProtocolValues },
 ): Promise<number> {
   const [id] = await trx('studies').insert({ ...protocolRow(values), created_by: createdBy });
   await trx('study_members').insert({ study_id: id, user_id: createdBy, study_role: 'lead', added_by: createdBy });
@@ -191,7 +182,7 @@ export async function insertStudy(
 /** Writes the given protocol fields of a study; returns false when there was nothing to change. */
 export async function writeProtocol(
   trx: Knex.Transaction,
-  { studyId, values }: { studyId: number; values: StudyUpdate },
+  { studyId, values }: { studyId: number; values: Partial<ProtocolValues> },
 ): Promise<boolean> {
   const row = protocolRow(values);
   if (Object.keys(row).length === 0) return false;
@@ -200,7 +191,7 @@ export async function writeProtocol(
 }
 
 /** Whether an update carries any protocol field. */
-export function changesProtocol(values: StudyUpdate): boolean {
+export function changesProtocol(values: Partial<ProtocolValues>): boolean {
   return Object.keys(protocolRow(values)).length > 0;
 }
 

@@ -1,6 +1,6 @@
 import { handler } from '@/lib/api/handler';
 import { studyIdParams, studyUpdateSchema } from '@/lib/studies/schema';
-import { findStudyForUser } from '@/lib/db/queries/studies';
+import { findStudyForUser } from '@/lib/studies/find-study-for-user';
 import { updateStudy } from '@/lib/studies/update-study';
 import { notFound } from '@/lib/errors';
 

@@ -1,7 +1,7 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
-import { findStudyForUser } from '@/lib/db/queries/studies';
+import { findStudyForUser } from '@/lib/studies/find-study-for-user';
 import { listMembers } from '@/lib/db/queries/members';
 import { StudyForm } from '@/components/studies/study-form';
 import { MembersPanel } from '@/components/studies/members-panel';
@@ -13,7 +13,7 @@ import {
   LABEL_NAMES,
   type LabelKey,
   LOW_REPRODUCIBILITY_NAMES,
-} from '@/lib/studies/labels';
+} from '@/lib/vocabulary/protocol';
 
 export const metadata: Metadata = { title: 'Study protocol' };
 

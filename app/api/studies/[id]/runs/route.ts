@@ -2,7 +2,7 @@ import { handler } from '@/lib/api/handler';
 import { studyIdParams } from '@/lib/studies/schema';
 import { runUploadQuerySchema } from '@/lib/runs/schema';
 import { contentLengthOf, uploadRun } from '@/lib/runs/upload';
-import { findStudyForUser } from '@/lib/db/queries/studies';
+import { findStudyForUser } from '@/lib/studies/find-study-for-user';
 import { studyProgress } from '@/lib/db/queries/runs';
 import { listRunsForStudy } from '@/lib/runs/list-study-runs';
 import { notFound } from '@/lib/errors';
