@@ -85,6 +85,9 @@ export async function findAssignedRun(
   };
 }
 
+/** A rater's assignment on a ready run as findAssignedRun returns it. */
+export type AssignedRun = NonNullable<Awaited<ReturnType<typeof findAssignedRun>>>;
+
 /** True once a release (of the run, or of the study with this run in it) exists. */
 export async function isRunReleased({ runId }: { runId: number }, trx: Knex | Knex.Transaction = db): Promise<boolean> {
   const hit = await trx('releases')
