@@ -26,10 +26,18 @@ module.exports = {
           '^lib/db/',
           '^lib/(nifti|decomposition|agreement|phantom)/',
           '^lib/[^/]+/(schema|types|labels|roles|keys|status)\\.ts$',
-          '^lib/auth/(roles|permissions)\\.ts$',
+          '^lib/vocabulary/',
           '^lib/bids\\.ts$',
         ],
       },
+    },
+    {
+      name: 'vocabulary-is-a-leaf',
+      severity: 'error',
+      comment:
+        'lib/vocabulary holds the words (roles, protocol keys, stored record shapes) that queries and domains share; it imports nothing from app, components or other lib domains, so importing it never makes a cycle.',
+      from: { path: '^lib/vocabulary/' },
+      to: { path: '^(lib|app|components)/', pathNot: '^lib/vocabulary/' },
     },
     {
       name: 'knex-only-in-db',

@@ -1,6 +1,6 @@
 import Link from 'next/link';
 import { can, type Action } from '@/lib/auth/permissions';
-import type { Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/vocabulary/roles';
 
 const TABS: { href: string; label: string; needs: Action }[] = [
   { href: '/admin', label: 'People', needs: 'users.manage' },

@@ -6,7 +6,7 @@ import { useForm, useWatch } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { inviteSchema, type InviteInput } from '@/lib/invitations/schema';
 import { postJson } from '@/lib/api/client';
-import { ROLE_LABELS, type Role } from '@/lib/auth/roles';
+import { ROLE_LABELS, type Role } from '@/lib/vocabulary/roles';
 import { Field } from '@/components/ui/field';
 import { Button } from '@/components/ui/button';
 import { Notice } from '@/components/ui/notice';

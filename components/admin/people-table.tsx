@@ -12,7 +12,7 @@ import {
   type ColumnFiltersState,
   type SortingState,
 } from '@tanstack/react-table';
-import { ROLES, ROLE_LABELS, type Role } from '@/lib/auth/roles';
+import { ROLES, ROLE_LABELS, type Role } from '@/lib/vocabulary/roles';
 import { endSessions, patchAccess } from './access-client';
 import { utcMinute } from './format';
 import { Button } from '@/components/ui/button';

@@ -1,7 +1,7 @@
 'use client';
 import { useEffect, useRef } from 'react';
 import { helpRows } from '@/lib/desk/keys';
-import { labelName, noiseKindName } from '@/lib/studies/labels';
+import { labelName, noiseKindName } from '@/lib/vocabulary/protocol';
 
 /** The keyboard help (?), a modal dialog generated from the desk's key map. */
 export function HelpOverlay({

@@ -1,4 +1,4 @@
-import { labelName, noiseKindName } from '@/lib/studies/labels';
+import { labelName, noiseKindName } from '@/lib/vocabulary/protocol';
 import type { OtherVote } from '@/lib/desk/types';
 
 /** How the other raters voted on this component — only ever rendered after submission. */

@@ -1,7 +1,7 @@
 'use client';
 import { forwardRef, useEffect, useState } from 'react';
 import { labelKeys } from '@/lib/desk/keys';
-import { labelName, noiseKindName } from '@/lib/studies/labels';
+import { labelName, noiseKindName } from '@/lib/vocabulary/protocol';
 import type { VoteFields } from '@/lib/desk/types';
 import type { ShownVote } from '@/lib/desk/use-vote';
 

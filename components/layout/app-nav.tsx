@@ -1,7 +1,7 @@
 import Link from 'next/link';
 import type { UserRow } from '@/lib/db/queries/users';
 import { can, type Action } from '@/lib/auth/permissions';
-import { ROLE_LABELS } from '@/lib/auth/roles';
+import { ROLE_LABELS } from '@/lib/vocabulary/roles';
 import { SignOutButton } from './sign-out-button';
 import { devMailboxEnabled } from '@/lib/mail/config';
 

@@ -1,5 +1,5 @@
 import type { ReconcileVote } from '@/lib/db/queries/reconcile';
-import { labelName, noiseKindName } from '@/lib/studies/labels';
+import { labelName, noiseKindName } from '@/lib/vocabulary/protocol';
 
 const TONE: Record<string, string> = { signal: 'text-verdict-signal', noise: 'text-verdict-noise', uncertain: 'text-verdict-uncertain' };
 

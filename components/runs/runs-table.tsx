@@ -15,7 +15,7 @@ import {
 import { useQueryClient } from '@tanstack/react-query';
 import type { RunListItem, RunStatus } from '@/lib/db/queries/runs';
 import { bidsName } from '@/lib/bids';
-import { DIM_METHOD_NAMES, DIM_METHODS, type DimSetting } from '@/lib/studies/labels';
+import { DIM_METHOD_NAMES, DIM_METHODS, type DimSetting } from '@/lib/vocabulary/protocol';
 import { WARNING_SHORT } from '@/lib/decomposition/warnings';
 import { decomposeSettingsSchema } from '@/lib/runs/schema';
 import { deleteJson, postJson } from '@/lib/api/client';

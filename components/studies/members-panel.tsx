@@ -5,8 +5,8 @@ import { useForm, useWatch } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { memberSchema, type MemberInput } from '@/lib/studies/schema';
-import { STUDY_ROLE_NAMES, STUDY_ROLES, type StudyRole } from '@/lib/studies/labels';
-import { ROLE_LABELS, mayHoldStudyRole, studyRoleRefusal, type Role } from '@/lib/auth/roles';
+import { STUDY_ROLE_NAMES } from '@/lib/vocabulary/protocol';
+import { ROLE_LABELS, STUDY_ROLES, mayHoldStudyRole, studyRoleRefusal, type Role, type StudyRole } from '@/lib/vocabulary/roles';
 import { deleteJson, getJson, postJson } from '@/lib/api/client';
 import { Field } from '@/components/ui/field';
 import { Button } from '@/components/ui/button';
@@ -18,7 +18,7 @@ type Candidate = { userId: number; name: string; email: string; role: Role; stud
 /**
  * Finds the facility's active accounts by name or e-mail (GET …/members/candidates, at most 20)
  * and hands the chosen one's e-mail to the add form. Each result says whether its account role can
- * hold the study role chosen in the form (the membership rule of lib/auth/roles.ts).
+ * hold the study role chosen in the form (the membership rule of lib/vocabulary/roles.ts).
  */
 function AccountPicker({ studyId, studyRole, onPick }: { studyId: number; studyRole: StudyRole; onPick: (c: Candidate) => void }) {
   const [q, setQ] = useState('');

@@ -14,7 +14,7 @@ import {
   LOW_REPRODUCIBILITY_POLICIES,
   NOISE_KIND_KEYS,
   NOISE_KIND_NAMES,
-} from '@/lib/studies/labels';
+} from '@/lib/vocabulary/protocol';
 import { patchJson, postJson } from '@/lib/api/client';
 import { Field } from '@/components/ui/field';
 import { Button } from '@/components/ui/button';

@@ -1,7 +1,7 @@
 'use client';
 import { useQuery } from '@tanstack/react-query';
 import { getJson } from '@/lib/api/client';
-import { labelName } from '@/lib/studies/labels';
+import { labelName } from '@/lib/vocabulary/protocol';
 import type { RaterSuggestionsPayload } from '@/lib/suggestions/types';
 
 /**

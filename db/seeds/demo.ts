@@ -9,7 +9,7 @@
  */
 import type { Knex } from 'knex';
 import { hashPassword } from '@/lib/auth/password';
-import { LABEL_KEYS, NOISE_KIND_KEYS } from '@/lib/studies/labels';
+import { LABEL_KEYS, NOISE_KIND_KEYS } from '@/lib/vocabulary/protocol';
 
 export const DEMO_PASSWORD = 'quorum-demo';
 export const DEMO_STUDY_SLUG = 'evening-light-sleep-rest';
@@ -28,7 +28,7 @@ export const DEMO_USERS: ReadonlyArray<{ email: string; name: string; role: Role
   { email: 'observer@fernhollow.example', name: 'Rafael Oyelaran', role: 'observer', studyRole: 'observer' },
 ];
 
-/** Keys stored in studies.noise_kinds and label_set (lib/studies/labels.ts names them). */
+/** Keys stored in studies.noise_kinds and label_set (lib/vocabulary/protocol.ts names them). */
 export const DEMO_NOISE_KINDS = NOISE_KIND_KEYS;
 export const DEMO_LABEL_SET = LABEL_KEYS;
 

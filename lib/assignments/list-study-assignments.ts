@@ -1,4 +1,5 @@
 import 'server-only';
+import { VOTING_ROLES } from '@/lib/auth/permissions';
 import { listAssignmentsOfStudy, type AssignmentRun, type StudyRater } from '@/lib/db/queries/assignments';
 import { requireLedStudy, type Caller } from './lead-rules';
 
@@ -11,5 +12,5 @@ export async function listStudyAssignments({
   studyId: number;
 }): Promise<{ runs: AssignmentRun[]; raters: StudyRater[] }> {
   await requireLedStudy({ user, studyId });
-  return listAssignmentsOfStudy({ studyId });
+  return listAssignmentsOfStudy({ studyId, votingRoles: VOTING_ROLES });
 }

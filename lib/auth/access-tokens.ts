@@ -8,7 +8,7 @@ import 'server-only';
  */
 import { createHash } from 'node:crypto';
 import { can } from './permissions';
-import type { Role } from './roles';
+import type { Role } from '@/lib/vocabulary/roles';
 import { findTokenByHash, touchAccessToken } from '@/lib/db/queries/access-tokens';
 import { AppError } from '@/lib/errors';
 

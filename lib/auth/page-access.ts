@@ -1,6 +1,7 @@
 import 'server-only';
 import { forbidden, notFound } from 'next/navigation';
-import { leadsStudy, type Access, type Action } from './permissions';
+import { leadsStudy, type Action } from './permissions';
+import type { Access } from '@/lib/vocabulary/roles';
 import { requirePageUser } from './session';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import type { UserRow } from '@/lib/db/queries/users';

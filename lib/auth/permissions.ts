@@ -1,4 +1,4 @@
-import type { Role, StudyRole } from './roles';
+import type { Access, Role, StudyRole } from '@/lib/vocabulary/roles';
 
 /**
  * The one permission matrix. Every route handler and server action names one of these actions;
@@ -54,12 +54,6 @@ export const PERMISSIONS: Record<Role, ReadonlySet<Action>> = {
 export function can(role: Role, action: Action): boolean {
   return PERMISSIONS[role]?.has(action) ?? false;
 }
-
-/**
- * The caller's access to one study (lib/db/queries/study-access.ts#findStudyAccess): null when
- * they may not see it. Admins see every study; everyone else only studies they are a member of.
- */
-export type Access = { studyId: number; name: string; studyRole: StudyRole | null; isAdmin: boolean };
 
 /** Study-level rule: the caller leads this study (or is an admin), so may change it, reconcile, run its calibration set and release. */
 export function leadsStudy(access: Access | null): boolean {

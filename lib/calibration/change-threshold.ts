@@ -1,7 +1,7 @@
 /** A lead sets (or clears) the study's calibration threshold that gates live runs, the calibration set's name and the re-calibration interval. Audited. */
 import 'server-only';
 import { leadsStudy } from '@/lib/auth/permissions';
-import type { Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/vocabulary/roles';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { calibrationSettings, setCalibrationThreshold, type CalibrationSettings } from '@/lib/db/queries/calibration-gate';
 import { findStudyAccess } from '@/lib/db/queries/study-access';

@@ -6,9 +6,10 @@
  */
 import 'server-only';
 import { leadsStudy } from '@/lib/auth/permissions';
-import type { Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/vocabulary/roles';
 import { recordAudit } from '@/lib/db/queries/audit';
-import { calibrationRunInfo, clearCalibrationFlag, scoreRater } from '@/lib/db/queries/calibration';
+import { calibrationRunInfo, setCalibrationFlag } from '@/lib/db/queries/calibration';
+import { scoreRater } from '@/lib/db/queries/calibration-gate';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { AppError, forbidden, notFound } from '@/lib/errors';
 
@@ -40,7 +41,7 @@ export async function unmarkCalibrationRun({
       noiseSensitivity: score.noise.sensitivity.value,
     });
   }
-  await clearCalibrationFlag({ studyId, runId });
+  await setCalibrationFlag({ studyId, runId, isCalibration: false });
   await recordAudit({
     actorId: user.id,
     action: 'calibration.run_unmarked',

@@ -1,4 +1,4 @@
-import { labelName, noiseKindName } from '@/lib/studies/labels';
+import { labelName, noiseKindName } from '@/lib/vocabulary/protocol';
 import type { DecisionConflict } from './schema';
 
 /** What a lead is told when another lead (or a changed vote) decided the component first. */

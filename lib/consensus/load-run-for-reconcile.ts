@@ -1,6 +1,6 @@
 import 'server-only';
 import { leadsStudy } from '@/lib/auth/permissions';
-import { loadRunShapes } from '@/lib/db/queries/reconcile-run';
+import { loadRunShapes } from './load-run-shapes';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import type { UserRow } from '@/lib/db/queries/users';
 import { AppError } from '@/lib/errors';

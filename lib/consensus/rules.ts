@@ -8,7 +8,7 @@
  * "Uncertain" is a label like any other here; whether an uncertain component is kept or removed is
  * an export question (kept by default — common practice, no source).
  */
-import type { ConsensusRule } from '@/lib/studies/labels';
+import type { ConsensusRule } from '@/lib/vocabulary/protocol';
 export type { ConsensusRule };
 export type VoteForConsensus = { label: string; noiseKind: string | null };
 export type AutomaticDecision =

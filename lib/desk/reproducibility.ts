@@ -4,7 +4,7 @@
  * study's threshold: flag them, put them last, or hide them from raters. Pure, shared by the desk
  * query, the submit check and the feature panel.
  */
-import type { LowReproducibilityPolicy } from '@/lib/studies/labels';
+import type { LowReproducibilityPolicy } from '@/lib/vocabulary/protocol';
 
 export type ReproducibilityRule = { threshold: number; policy: LowReproducibilityPolicy };
 

@@ -1,10 +1,9 @@
 import 'server-only';
 import { inviteTtlMs, newToken } from '@/lib/auth/tokens';
-import type { Role } from '@/lib/auth/roles';
+import type { Role, StudyRole } from '@/lib/vocabulary/roles';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { insertInvitation, lockUnusedInvitations, markLinksRevoked } from '@/lib/db/queries/invitations';
 import { inTransaction } from '@/lib/db/transaction';
-import type { StudyRole } from '@/lib/studies/labels';
 
 /**
  * Writes a new invitation and withdraws earlier unused ones to the same address, each withdrawal

@@ -1,7 +1,6 @@
 import { z } from 'zod';
 import { emailSchema, passwordSchema } from '@/lib/auth/schemas';
-import { ROLES, mayHoldStudyRole, studyRoleRefusal } from '@/lib/auth/roles';
-import { STUDY_ROLES } from '@/lib/studies/labels';
+import { ROLES, STUDY_ROLES, mayHoldStudyRole, studyRoleRefusal } from '@/lib/vocabulary/roles';
 
 /** An invitation: address, facility role, and optionally a study with the role in it. */
 export const inviteSchema = z

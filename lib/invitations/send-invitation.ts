@@ -1,6 +1,6 @@
 import 'server-only';
 import { leadsStudy } from '@/lib/auth/permissions';
-import { ROLE_LABELS, mayHoldStudyRole, studyRoleRefusal, type Role } from '@/lib/auth/roles';
+import { ROLE_LABELS, mayHoldStudyRole, studyRoleRefusal, type Role, type StudyRole } from '@/lib/vocabulary/roles';
 import { countAttempts, lockedFor } from '@/lib/auth/throttle';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { findPendingInvitation, findStudyName, type LinkRecord } from '@/lib/db/queries/invitations';
@@ -13,7 +13,6 @@ import { inTransaction } from '@/lib/db/transaction';
 import { queueMail } from '@/lib/jobs/queue-mail';
 import { existingAccountMail } from '@/lib/mail/templates/existing-account';
 import { invitationMail } from '@/lib/mail/templates/invitation';
-import type { StudyRole } from '@/lib/studies/labels';
 
 export type InvitationRequest = { email: string; role: Role; studyId?: number; studyRole?: StudyRole; replace?: boolean };
 

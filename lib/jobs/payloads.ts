@@ -3,7 +3,7 @@
  * without loading the worker's code). The worker validates again when it claims a job.
  */
 import { z } from 'zod';
-import { denoisePayloadSchema } from '@/lib/denoise/payload';
+import { denoisePayloadSchema } from '@/lib/denoise/schema';
 import { scoreSuggestionsPayloadSchema, trainSuggestionsPayloadSchema } from './suggestion-payloads';
 import { recalibratePayloadSchema } from '@/lib/jobs/recalibrate-payload';
 import { notifyAssignmentsPayloadSchema, notifyOverduePayloadSchema, notifyVotesCompletePayloadSchema } from '@/lib/notifications/payloads';

@@ -2,7 +2,7 @@ import 'server-only';
 import { lockActiveDenoiseJobs } from '@/lib/db/queries/exports';
 import { inTransaction } from '@/lib/db/transaction';
 import { enqueueJob } from './queue';
-import { denoisePayloadSchema, type DenoisePayload } from '@/lib/denoise/payload';
+import { denoisePayloadSchema, type DenoisePayload } from '@/lib/denoise/schema';
 
 /**
  * Queues a denoise job for a run (an identical queued or running request returns that job).

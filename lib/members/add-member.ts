@@ -1,11 +1,10 @@
 import 'server-only';
-import { mayHoldStudyRole } from '@/lib/auth/roles';
+import { mayHoldStudyRole, type StudyRole } from '@/lib/vocabulary/roles';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { findAccountForMembership, listMembers, lockMembership, upsertMembership, type StudyMember } from '@/lib/db/queries/members';
 import type { UserRow } from '@/lib/db/queries/users';
 import { inTransaction } from '@/lib/db/transaction';
 import { AppError, notFound } from '@/lib/errors';
-import type { StudyRole } from '@/lib/studies/labels';
 import { assertAnotherLead } from './only-lead';
 
 /**

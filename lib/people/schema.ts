@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { ROLES } from '@/lib/auth/roles';
+import { ROLES } from '@/lib/vocabulary/roles';
 
 /** A change of a person's access: a new facility role and/or active flag. */
 export const accessChangeSchema = z

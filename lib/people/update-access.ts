@@ -1,5 +1,5 @@
 import 'server-only';
-import type { Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/vocabulary/roles';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { lockAccount, lockActiveAdmins, writeAccess } from '@/lib/db/queries/people';
 import { inTransaction } from '@/lib/db/transaction';

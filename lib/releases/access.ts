@@ -2,7 +2,7 @@ import 'server-only';
 /** Scoping for releases: a release is visible only to those who may see its study. */
 import { findRelease, type ReleaseRow } from '@/lib/db/queries/releases';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
-import type { Access } from '@/lib/auth/permissions';
+import type { Access } from '@/lib/vocabulary/roles';
 import type { UserRow } from '@/lib/db/queries/users';
 import { notFound } from '@/lib/errors';
 

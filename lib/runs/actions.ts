@@ -18,7 +18,8 @@ import {
   lockRunStatus,
   markRunCancelled,
 } from '@/lib/db/queries/run-changes';
-import { findRunForUser, listRunsForStudy, type RunListItem, type RunStatus } from '@/lib/db/queries/runs';
+import { findRunForUser, type RunListItem, type RunStatus } from '@/lib/db/queries/runs';
+import { listRunsForStudy } from './list-study-runs';
 import { inTransaction, type Trx } from '@/lib/db/transaction';
 import type { UserRow } from '@/lib/db/queries/users';
 import { removeKey } from '@/lib/storage';

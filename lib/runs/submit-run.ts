@@ -1,10 +1,11 @@
 import 'server-only';
 import { recomputeDecision } from '@/lib/consensus/recompute';
 import { recordAudit } from '@/lib/db/queries/audit';
-import { findAssignedRun, listUnvotedComponents, markAssignmentSubmitted } from '@/lib/db/queries/desk';
+import { listUnvotedComponents, markAssignmentSubmitted } from '@/lib/db/queries/desk';
 import { inTransaction } from '@/lib/db/transaction';
 import { isLowReproducibility } from '@/lib/desk/reproducibility';
 import { AppError } from '@/lib/errors';
+import { requireAssignedRun } from './assigned-run';
 import { queueVotesCompleteCheck } from '@/lib/jobs/queue-notifications';
 
 type Caller = { id: number };
@@ -18,7 +19,7 @@ type Caller = { id: number };
  */
 export async function submitRun({ user, runId, ip }: { user: Caller; runId: number; ip?: string | null }) {
   return inTransaction(async (trx) => {
-    const run = await findAssignedRun({ user, runId, forUpdate: true }, trx);
+    const run = await requireAssignedRun({ user, runId, forUpdate: true }, trx);
     if (run.submittedAt) return { submittedAt: new Date(run.submittedAt).toISOString(), already: true };
     const unlabelled = await listUnvotedComponents(trx, { decompositionId: run.decompositionId, raterId: user.id });
     // components the study hides from raters (low reproducibility) need no vote: the lead decides them

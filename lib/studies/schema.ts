@@ -4,7 +4,8 @@
  */
 import { z } from 'zod';
 import { emailSchema } from '@/lib/auth/schemas';
-import { CONSENSUS_RULES, DIM_METHODS, LOW_REPRODUCIBILITY_POLICIES, NOISE_KIND_KEYS, STUDY_ROLES } from './labels';
+import { CONSENSUS_RULES, DIM_METHODS, LOW_REPRODUCIBILITY_POLICIES, NOISE_KIND_KEYS } from '@/lib/vocabulary/protocol';
+import { STUDY_ROLES } from '@/lib/vocabulary/roles';
 
 const int = (what: string) =>
   z.number({ message: `Enter ${what} as a whole number.` }).int({ message: `Enter ${what} as a whole number.` });

@@ -1,6 +1,6 @@
 import 'server-only';
 import { managesStudy, seesAllRuns } from '@/lib/auth/permissions';
-import type { StudyRole } from '@/lib/studies/labels';
+import type { StudyRole } from '@/lib/vocabulary/roles';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { findStudyDetail, type StudyDetail } from '@/lib/db/queries/studies';
 import type { UserRow } from '@/lib/db/queries/users';

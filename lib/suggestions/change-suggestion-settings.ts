@@ -1,7 +1,7 @@
 /** A lead turns suggestions on or off for a study's raters (shown only after each rater's own vote). */
 import 'server-only';
 import { leadsStudy } from '@/lib/auth/permissions';
-import type { Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/vocabulary/roles';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { setSuggestionsEnabled } from '@/lib/db/queries/suggestions';

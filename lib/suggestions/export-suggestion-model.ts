@@ -4,7 +4,7 @@
  * The same document goes into the release ZIP (suggestion-model.json).
  */
 import 'server-only';
-import type { Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/vocabulary/roles';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { activeSuggestionModel } from '@/lib/db/queries/suggestions';
 import { suggestionModelDocument } from './model-document';

@@ -1,7 +1,8 @@
 /** The exported suggestion model document (download and release ZIP): version, training releases, report and the model JSON. */
-import type { StoredModel } from './types';
+import type { StoredModelRow } from '@/lib/db/queries/suggestions';
+import type { SuggestionModelJson } from './model';
 
-export function suggestionModelDocument(m: StoredModel) {
+export function suggestionModelDocument(m: StoredModelRow) {
   return {
     Description:
       'The suggestion model in use when this was written: P(noise) of a component from its features. Suggestions are shown to a rater only after their own vote.',
@@ -10,6 +11,6 @@ export function suggestionModelDocument(m: StoredModel) {
     createdAt: m.createdAt,
     training: m.training,
     report: m.report,
-    ...m.model,
+    ...(m.model as SuggestionModelJson), // the document insertSuggestionModel stored
   };
 }

@@ -5,7 +5,7 @@
  */
 import 'server-only';
 import { leadsStudy } from '@/lib/auth/permissions';
-import type { Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/vocabulary/roles';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { activeTrainingJob, inSuggestionTransaction } from '@/lib/db/queries/suggestions';

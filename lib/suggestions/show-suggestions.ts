@@ -5,12 +5,12 @@
  * version of the model that made it.
  */
 import 'server-only';
-import { findAssignedRun } from '@/lib/db/queries/desk';
+import { requireAssignedRun } from '@/lib/runs/assigned-run';
 import { suggestionSettings, suggestionsAfterVotes } from '@/lib/db/queries/suggestions';
 import type { RaterSuggestionsPayload } from './types';
 
 export async function showSuggestions({ user, runId }: { user: { id: number }; runId: number }): Promise<RaterSuggestionsPayload> {
-  const run = await findAssignedRun({ user, runId });
+  const run = await requireAssignedRun({ user, runId });
   const settings = await suggestionSettings({ studyId: Number(run.studyId) });
   if (!settings.enabled || settings.modelId === null) return { enabled: settings.enabled, modelVersion: settings.version, suggestions: [] };
   return {

@@ -1,8 +1,9 @@
 /** The suggestion settings, model in use (report, training releases) and last training job of a study, for its leads and observers. */
 import 'server-only';
-import type { Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/vocabulary/roles';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
-import { activeSuggestionModel, latestTrainingJob, suggestionSettings } from '@/lib/db/queries/suggestions';
+import { latestTrainingJob, suggestionSettings } from '@/lib/db/queries/suggestions';
+import { findActiveModel } from './active-model';
 import { notFound } from '@/lib/errors';
 
 export async function studySuggestions({ user, studyId }: { user: { id: number; role: Role }; studyId: number }) {
@@ -10,7 +11,7 @@ export async function studySuggestions({ user, studyId }: { user: { id: number; 
   if (!access) throw notFound('The study');
   const [settings, model, job] = await Promise.all([
     suggestionSettings({ studyId }),
-    activeSuggestionModel({ studyId }),
+    findActiveModel({ studyId }),
     latestTrainingJob({ studyId }),
   ]);
   return {

@@ -1,29 +1,11 @@
-/** Shapes shared by the suggestion queries, routes and pages (types only). */
+/** Shapes shared by the suggestion use cases, routes and pages (types only); stored records' shapes are in lib/vocabulary/suggestions.ts. */
+import type { StoredModelRow } from '@/lib/db/queries/suggestions';
+import type { RaterSuggestion, TrainingRecord } from '@/lib/vocabulary/suggestions';
 import type { ModelReport } from './cross-validate';
-import type { RawFeatures } from './feature-vector';
 import type { SuggestionModelJson } from './model';
 
-export type { RawFeatures, ModelReport, SuggestionModelJson };
-
-/** A release whose decisions trained a model. */
-export type TrainingSource = { releaseId: number; studyId: number; runId: number | null; version: number };
-
-/** What a model was trained on (stored with it). */
-export type TrainingRecord = { studies: number[]; releases: TrainingSource[]; skipped: number };
-
-/** One stored model of a study. */
-export type StoredModel = {
-  id: number;
-  studyId: number;
-  version: number;
-  model: SuggestionModelJson;
-  report: ModelReport;
-  training: TrainingRecord;
-  createdAt: string;
-};
-
-/** One suggestion a rater may see (after their own vote). */
-export type RaterSuggestion = { componentId: number; label: string; pNoise: number; modelVersion: number };
+/** One stored model of a study, its JSON documents typed (they are what lib/suggestions wrote). */
+export type StoredModel = Omit<StoredModelRow, 'model' | 'report'> & { model: SuggestionModelJson; report: ModelReport };
 
 export type RaterSuggestionsPayload = { enabled: boolean; modelVersion: number | null; suggestions: RaterSuggestion[] };
 

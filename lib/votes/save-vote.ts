@@ -1,7 +1,8 @@
 import 'server-only';
 import { recomputeDecision } from '@/lib/consensus/recompute';
 import { recordAudit } from '@/lib/db/queries/audit';
-import { findAssignedRun, isRunReleased } from '@/lib/db/queries/desk';
+import { isRunReleased } from '@/lib/db/queries/desk';
+import { requireAssignedRun } from '@/lib/runs/assigned-run';
 import { findRaterVote, lockDecompositionComponent, readRaterVote, writeVote } from '@/lib/db/queries/votes';
 import { inTransaction } from '@/lib/db/transaction';
 import type { VoteChange } from '@/lib/desk/schemas';
@@ -41,7 +42,7 @@ export async function saveVote({
 }): Promise<SaveVoteResult> {
   return inTransaction(async (trx) => {
     // Locking the assignment serialises every vote write of this rater on this run.
-    const run = await findAssignedRun({ user, runId, forUpdate: true }, trx);
+    const run = await requireAssignedRun({ user, runId, forUpdate: true }, trx);
     // Locking the component serialises the votes on it: its decision is recomputed from all of them.
     // Every read before this one is a locking read, so this transaction's snapshot (taken at its first
     // plain read, below) already holds the votes committed by the raters who held the lock before.

@@ -120,7 +120,7 @@ describe('calibration threshold', () => {
   });
 
   it('the lead’s overview shows each rater’s gate and noise sensitivity per reference kind', async () => {
-    const { listCalibration } = await import('@/lib/db/queries/calibration');
+    const { listCalibration } = await import('@/lib/calibration/list-calibration');
     const o = await listCalibration({ user: { id: s.leadId, role: 'lead' } as never, studyId: s.studyId });
     expect(o.threshold).toEqual({ minAc1: 0.8, minSensitivity: 0.85, setName: null });
     expect(o.recalibrationWeeks).toBeNull();
@@ -187,7 +187,7 @@ describe('calibration threshold', () => {
     const detail = parseJson<{ scoresBefore: { raterId: number; gwetAC1: number | null }[] }>(audit.detail)!;
     expect(detail.scoresBefore.find((x) => x.raterId === s.raterIds[0])!.gwetAC1).toBe(1);
     // the run no longer counts: rater A has no calibration score left, so the gate (still 0.8 / 0.85) now refuses them
-    const { calibrationGate } = await import('@/lib/db/queries/calibration');
+    const { calibrationGate } = await import('@/lib/db/queries/calibration-gate');
     expect((await calibrationGate({ studyId: s.studyId, raterId: s.raterIds[0]! })).reason).toMatch(/has not submitted/);
   });
 

@@ -14,7 +14,7 @@ import { closeDb, db, parseJson } from '@/lib/db/knex';
 import { cancelJob, getJob } from '@/lib/jobs';
 import { queueDecomposition } from '@/lib/runs/queue-job';
 import { enqueueDenoise } from '@/lib/jobs/queue-denoise';
-import type { DenoiseResult } from '@/lib/denoise/payload';
+import type { DenoiseResult } from '@/lib/denoise/schema';
 import { pathFor } from '@/lib/storage';
 import { createPhantomRun, useTempUploads } from './helpers/factories';
 import { spawnWorker, waitFor, type WorkerProcess } from './helpers/worker-process';

@@ -12,7 +12,7 @@ import { listReconcileItems } from '@/lib/db/queries/reconcile';
 import { recordLeadDecision } from '@/lib/consensus/record-lead-decision';
 import { loadStudyRatings } from '@/lib/db/queries/agreement';
 import { buildAgreementReport } from '@/lib/reports/agreement-report';
-import { listRunsForStudy } from '@/lib/db/queries/runs';
+import { listRunsForStudy } from '@/lib/runs/list-study-runs';
 import { createRun, createStudyWithRaters } from './helpers/factories';
 import { markSubmitted } from './helpers/submitted';
 

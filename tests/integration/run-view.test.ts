@@ -6,7 +6,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { randomBytes } from 'node:crypto';
 import { db, closeDb, toJson } from '@/lib/db/knex';
-import { loadRunForViewing, submittedVotesOfRun } from '@/lib/db/queries/run-view';
+import { submittedVotesOfRun } from '@/lib/db/queries/run-view';
+import { loadRunForViewing } from '@/lib/runs/load-run-for-viewing';
 import { addMember, createRun, createStudyWithRaters, createUser } from './helpers/factories';
 
 let studyId: number;

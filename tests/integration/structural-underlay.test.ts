@@ -19,7 +19,8 @@ import { decodeNifti, encodeNifti1 } from '@/lib/nifti';
 import { pathFor } from '@/lib/storage';
 import { attachStructural } from '@/lib/runs/attach-structural';
 import type { RawBody } from '@/lib/runs/upload';
-import { findRunFileKey, loadDeskComponents } from '@/lib/db/queries/desk';
+import { findRunFileKey } from '@/lib/runs/find-run-file';
+import { loadDeskComponents } from '@/lib/runs/load-desk-components';
 import { createReadyRun } from '../e2e/helpers/ready-run';
 import { createStudyWithRaters, useTempUploads } from './helpers/factories';
 

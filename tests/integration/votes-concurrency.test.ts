@@ -1,7 +1,7 @@
 /**
  * Issue 13, load: votes of different raters of one study go side by side. A vote locks its rater's
  * assignment row and its component row exclusively, and the run, study and decomposition rows only
- * in share mode (lib/db/queries/desk.ts findAssignedRun, lib/db/queries/votes.ts saveVote). Before,
+ * in share mode (lib/db/queries/desk.ts findAssignedRun via lib/runs/assigned-run.ts, lib/db/queries/votes.ts saveVote). Before,
  * the run's join was read FOR UPDATE, which locked the study row: every vote of the study waited for
  * the one in flight, and latency grew with the number of raters.
  *

@@ -2,8 +2,9 @@
 // study-level rules every route and page uses. The matrix is the product's own rule (DESIGN.md),
 // no outside source.
 import { describe, expect, it } from 'vitest';
-import { ACTIONS, can, leadsStudy, managesStudy, PERMISSIONS, type Access } from '@/lib/auth/permissions';
-import { ROLES } from '@/lib/auth/roles';
+import { ACTIONS, can, leadsStudy, managesStudy, PERMISSIONS } from '@/lib/auth/permissions';
+import type { Access } from '@/lib/vocabulary/roles';
+import { ROLES } from '@/lib/vocabulary/roles';
 
 const access = (over: Partial<Access>): Access => ({ studyId: 1, name: 'Study', studyRole: null, isAdmin: false, ...over });
 

@@ -1,6 +1,6 @@
 import type { Metadata } from 'next';
 import { requirePageUser } from '@/lib/auth/session';
-import { ROLE_LABELS } from '@/lib/auth/roles';
+import { ROLE_LABELS } from '@/lib/vocabulary/roles';
 import { Panel } from '@/components/ui/panel';
 import { ChangePasswordForm } from './change-password-client';
 import { can } from '@/lib/auth/permissions';

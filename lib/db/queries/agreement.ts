@@ -1,6 +1,5 @@
 import 'server-only';
 import { db, parseJson } from '@/lib/db/knex';
-import { buildAgreementReport } from '@/lib/reports/agreement-report';
 
 export type VoteRecord = {
   componentId: number;
@@ -67,19 +66,6 @@ export async function loadStudyRatings({ studyId, runIds }: { studyId: number; r
     decisions,
     runs,
   };
-}
-
-/**
- * Krippendorff's α of each run from its submitted votes (no bootstrap), for the runs table.
- * Only for callers who see every run of the study: a rater must not learn a tally of a run
- * before submitting it.
- */
-export async function runAgreements({ studyId, runIds }: { studyId: number; runIds: number[] }): Promise<Map<number, number | null>> {
-  const out = new Map<number, number | null>();
-  if (!runIds.length) return out;
-  const report = buildAgreementReport(await loadStudyRatings({ studyId, runIds }), { resamples: 0 });
-  for (const r of report.runs) out.set(r.runId, r.krippendorffAlpha.value);
-  return out;
 }
 
 /** What the methods paragraph must state about how the ratings were made (issue 13 item 2, issue 15 item 8). */

@@ -2,9 +2,7 @@ import 'server-only';
 import type { Knex } from 'knex';
 import { bidsName } from '@/lib/bids';
 import { db } from '@/lib/db/knex';
-import { VOTING_ROLES } from '@/lib/auth/permissions';
-import type { Role } from '@/lib/auth/roles';
-import type { StudyRole } from '@/lib/studies/labels';
+import type { Role, StudyRole } from '@/lib/vocabulary/roles';
 
 export type RunAssignment = {
   raterId: number;
@@ -97,7 +95,14 @@ export async function findStudyRaterMember(
 }
 
 /** Runs × assigned raters of a study with each rater's progress, and the study's raters (for choosing). No access check: callers scope. */
-export async function listAssignmentsOfStudy({ studyId }: { studyId: number }): Promise<{ runs: AssignmentRun[]; raters: StudyRater[] }> {
+export async function listAssignmentsOfStudy({
+  studyId,
+  votingRoles,
+}: {
+  studyId: number;
+  /** Account roles that may vote (the permission matrix's VOTING_ROLES): only they are offered as raters. */
+  votingRoles: readonly string[];
+}): Promise<{ runs: AssignmentRun[]; raters: StudyRater[] }> {
   const runs = await db('runs as r')
     .leftJoin('decompositions as d', function () {
       this.on('d.run_id', 'r.id').andOn('d.is_current', db.raw('1'));
@@ -153,7 +158,7 @@ export async function listAssignmentsOfStudy({ studyId }: { studyId: number }): 
   const raters = await db('study_members as m')
     .join('users as u', 'u.id', 'm.user_id')
     .where({ 'm.study_id': studyId, 'm.study_role': 'rater', 'u.active': true })
-    .whereIn('u.role', VOTING_ROLES)
+    .whereIn('u.role', votingRoles)
     .select('u.id', 'u.name', db.raw('(SELECT COUNT(*) FROM assignments a WHERE a.rater_id = u.id AND a.submitted_at IS NULL) as open'))
     .orderBy('u.name');
   return {

@@ -1,25 +1,15 @@
 import 'server-only';
-import { decompositionWarnings } from '@/lib/decomposition/warnings';
 import type { Knex } from 'knex';
-import { readFile } from 'node:fs/promises';
 import { blobToFloat32, db, parseJson } from '@/lib/db/knex';
-import { AppError } from '@/lib/errors';
-import { bidsName } from '@/lib/bids';
-import { pathFor } from '@/lib/storage';
-import { dropInitialVolumes, framewiseDisplacement, parseMotionFile } from '@/lib/decomposition/motion';
-import { structuralOf, type ComponentsPayload, type DeskComponent, type DeskRun } from '@/lib/desk/types';
-import { arrangeForDesk, type ReproducibilityRule } from '@/lib/desk/reproducibility';
-import type { LowReproducibilityPolicy } from '@/lib/studies/labels';
+import type { DeskComponent } from '@/lib/desk/types';
+import type { LowReproducibilityPolicy } from '@/lib/vocabulary/protocol';
 
 type Caller = { id: number };
 
-/** The same refusal for "no such run" and "not yours", so a rater cannot probe other runs. */
-export const notAssigned = (runId: number) =>
-  new AppError('not_found', `Run ${runId} is not among the runs assigned to you. Open it from your queue on the home page.`);
-
 /**
- * The caller's assignment on a ready run with its study's protocol, or a 404. Every desk query
- * starts here: the rater reaches a run only through an assignment row with their id.
+ * The caller's assignment on a ready run with its study's protocol, or null (no such run, or not
+ * theirs). Every desk use case starts here (lib/runs/assigned-run.ts turns null into the 404): the
+ * rater reaches a run only through an assignment row with their id.
  */
 export async function findAssignedRun(
   { user, runId, forUpdate = false }: { user: Caller; runId: number; forUpdate?: boolean },
@@ -73,11 +63,11 @@ export async function findAssignedRun(
     // the run, study and decomposition under shared locks: raters of one study vote side by side,
     // while a release (which locks the study row exclusively) waits for votes in flight and they for it.
     const own = await trx('assignments').where({ run_id: runId, rater_id: user.id }).forUpdate().first('id');
-    if (!own) throw notAssigned(runId);
+    if (!own) return null;
     q.forShare();
   }
   const row = await q;
-  if (!row) throw notAssigned(runId);
+  if (!row) return null;
   const dropped = droppedVolumesOf(row);
   return {
     ...row,
@@ -91,9 +81,12 @@ export async function findAssignedRun(
     reproducibilityRule: {
       threshold: row.reproducibilityThreshold == null ? 0.8 : Number(row.reproducibilityThreshold),
       policy: (row.lowReproducibility ?? 'flag') as LowReproducibilityPolicy,
-    } satisfies ReproducibilityRule,
+    },
   };
 }
+
+/** A rater's assignment on a ready run as findAssignedRun returns it. */
+export type AssignedRun = NonNullable<Awaited<ReturnType<typeof findAssignedRun>>>;
 
 /** True once a release (of the run, or of the study with this run in it) exists. */
 export async function isRunReleased({ runId }: { runId: number }, trx: Knex | Knex.Transaction = db): Promise<boolean> {
@@ -133,116 +126,11 @@ export async function componentsOfDecomposition({ decompositionId }: { decomposi
   }));
 }
 
-type MotionSource = {
-  runId: number;
-  motionKey: string | null;
-  motionOrder: string | null;
-  motionRotationUnits: string | null;
-  droppedVolumes: number;
-};
-
-/**
- * The run's motion parameters over the kept volumes: framewise displacement (mm), the three
- * translations (mm) and the three rotations (degrees, for reading), or nulls without a motion file.
- */
-export async function readRunMotion(run: MotionSource): Promise<{ fd: number[] | null; motion: DeskRun['motion'] }> {
-  if (!run.motionKey) return { fd: null, motion: null };
-  try {
-    const text = await readFile(pathFor(run.motionKey), 'utf8');
-    const order = String(run.motionOrder ?? '')
-      .trim()
-      .toLowerCase()
-      .startsWith('r')
-      ? 'rot-first'
-      : 'trans-first';
-    const motion = parseMotionFile(text, { order, rotationUnits: run.motionRotationUnits === 'degrees' ? 'degrees' : 'radians' });
-    const kept = run.droppedVolumes > 0 ? dropInitialVolumes(motion, run.droppedVolumes) : motion;
-    const deg = 180 / Math.PI;
-    return {
-      fd: Array.from(framewiseDisplacement(kept), round),
-      motion: {
-        translations: kept.translations.map((c) => Array.from(c, round)),
-        rotationsDeg: kept.rotations.map((c) => Array.from(c, (v) => round(v * deg))),
-      },
-    };
-  } catch (err) {
-    console.error(`[desk] motion parameters of run ${run.runId} unreadable:`, (err as Error).message);
-    return { fd: null, motion: null };
-  }
-}
-
-/**
- * GET /api/runs/:id/components — the run and its current decomposition's components, for the
- * assigned rater. Carries no votes, tallies or decisions of anyone.
- */
-export async function loadDeskComponents({ user, runId }: { user: Caller; runId: number }): Promise<ComponentsPayload> {
-  const run = await findAssignedRun({ user, runId });
-  const all = await componentsOfDecomposition({ decompositionId: run.decompositionId });
-  // the study's rule for low reproducibility: flag (as they are), last, or hidden from raters
-  const { components, hidden } = arrangeForDesk(all, run.reproducibilityRule);
-  return {
-    run: {
-      runId: run.runId,
-      decompositionId: run.decompositionId,
-      name: bidsName(run),
-      studyId: run.studyId,
-      studyName: run.studyName,
-      trSeconds: Number(run.trSeconds),
-      droppedVolumes: run.droppedVolumes,
-      k: all.length,
-      warnings: decompositionWarnings(run.summary),
-      labelSet: run.labelSet,
-      noiseKinds: run.noiseKinds,
-      ...(await readRunMotion(run).then((m) => ({ framewiseDisplacement: m.fd, motion: m.motion }))),
-      structural: structuralOf(run.structuralKey, run.structuralName),
-      lastComponentIdx: run.lastComponentIdx == null ? null : Number(run.lastComponentIdx),
-      reproducibility: { ...run.reproducibilityRule, hidden },
-    },
-    components,
-  };
-}
-
-/** The storage key of one of the run's decomposition files, for the assigned rater. */
-export async function findRunFileKey({
-  user,
-  runId,
-  file,
-}: {
-  user: Caller;
-  runId: number;
-  file: 'components.nii.gz' | 'mean.nii.gz' | 'mask.nii.gz' | 'structural.nii.gz';
-}) {
-  const run = await findAssignedRun({ user, runId });
-  const key =
-    file === 'components.nii.gz'
-      ? run.componentsKey
-      : file === 'mean.nii.gz'
-        ? run.meanKey
-        : file === 'mask.nii.gz'
-          ? run.maskKey
-          : run.structuralKey;
-  if (!key)
-    throw new AppError(
-      'not_found',
-      file === 'structural.nii.gz'
-        ? `Run ${runId} has no structural image; a study lead can attach one.`
-        : `Run ${runId} has no ${file} yet; its decomposition did not write it.`,
-    );
-  return { key: key as string, decompositionId: run.decompositionId as number };
-}
-
-/** PUT /api/runs/:id/desk — remembers where the rater is (reopens there next time). */
-export async function saveDeskPosition({ user, runId, componentIdx }: { user: Caller; runId: number; componentIdx: number }) {
-  const run = await findAssignedRun({ user, runId });
-  if (componentIdx > run.k) {
-    throw new AppError('validation', `Run ${runId} has ${run.k} components; component ${componentIdx} does not exist.`, {
-      componentIdx: [`must be between 1 and ${run.k}`],
-    });
-  }
+/** Remembers where the rater is on the run (reopens there next time); the rater's first visit starts the clock. */
+export async function updateDeskPosition({ assignmentId, componentIdx }: { assignmentId: number; componentIdx: number }): Promise<void> {
   await db('assignments')
-    .where({ id: run.assignmentId })
+    .where({ id: assignmentId })
     .update({ last_component_idx: componentIdx, started_at: db.raw('COALESCE(started_at, CURRENT_TIMESTAMP(3))') });
-  return { componentIdx };
 }
 
 /** The components of a decomposition that the rater has not voted on, in order (id, index, features). */

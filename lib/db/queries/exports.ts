@@ -1,7 +1,7 @@
 import 'server-only';
 import { db, parseJson } from '@/lib/db/knex';
 import type { Knex } from 'knex';
-import type { DenoisePayload, DenoiseResult } from '@/lib/denoise/payload';
+import type { DenoisePayload, DenoiseResult } from '@/lib/denoise/schema';
 
 export type DenoiseJob = {
   jobId: number;

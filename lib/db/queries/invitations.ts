@@ -1,8 +1,7 @@
 import 'server-only';
 import type { Knex } from 'knex';
 import { db } from '@/lib/db/knex';
-import type { Role } from '@/lib/auth/roles';
-import type { StudyRole } from '@/lib/studies/labels';
+import type { Role, StudyRole } from '@/lib/vocabulary/roles';
 
 /** A stored link as the pages and handlers need it (never the hash). */
 export type LinkRecord = {

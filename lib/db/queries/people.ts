@@ -1,7 +1,7 @@
 import 'server-only';
 import { db } from '@/lib/db/knex';
 import type { Knex } from 'knex';
-import type { Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/vocabulary/roles';
 
 export type Membership = { userId: number; studyId: number; studyName: string; studyRole: 'lead' | 'rater' | 'observer' };
 

@@ -1,12 +1,8 @@
 import 'server-only';
-import { decompositionWarnings } from '@/lib/decomposition/warnings';
 import { db, parseJson } from '@/lib/db/knex';
-import { componentsOfDecomposition, droppedVolumesOf, readRunMotion } from './desk';
-import { bidsName } from '@/lib/bids';
-import { structuralOf, type DeskRun } from '@/lib/desk/types';
 
-/** A run's current decomposition in the desk's shapes, with its files' storage keys; null without one. No access check: callers scope. */
-export async function loadRunShapes({ runId }: { runId: number }) {
+/** A run with its study's protocol and its current decomposition's row; null without one. No access check: callers scope. */
+export async function findRunWithCurrentDecomposition({ runId }: { runId: number }) {
   const run = await db('runs as r')
     .join('studies as s', 's.id', 'r.study_id')
     .join('decompositions as d', function () {
@@ -40,36 +36,9 @@ export async function loadRunShapes({ runId }: { runId: number }) {
       'd.mask_key as maskKey',
     );
   if (!run) return null;
-  const { fd, motion } = await readRunMotion({ ...run, droppedVolumes: droppedVolumesOf(run) });
-  const components = await componentsOfDecomposition({ decompositionId: run.decompositionId });
-  const deskRun: DeskRun = {
-    runId: run.runId,
-    decompositionId: run.decompositionId,
-    name: bidsName(run),
-    studyId: run.studyId,
-    studyName: run.studyName,
-    trSeconds: Number(run.trSeconds),
-    droppedVolumes: droppedVolumesOf(run),
-    k: components.length,
-    warnings: decompositionWarnings(run.summary),
+  return {
+    ...run,
     labelSet: parseJson<string[]>(run.labelSet, []) ?? [],
     noiseKinds: parseJson<string[]>(run.noiseKinds, []) ?? [],
-    framewiseDisplacement: fd,
-    motion,
-    structural: structuralOf(run.structuralKey, run.structuralName),
-    lastComponentIdx: null,
-    // the lead sees every component; the rule is carried so the feature panel can flag low ones
-    reproducibility: {
-      threshold: run.reproducibilityThreshold == null ? 0.8 : Number(run.reproducibilityThreshold),
-      policy: run.lowReproducibility ?? 'flag',
-      hidden: 0,
-    },
   };
-  const files = {
-    'components.nii.gz': run.componentsKey,
-    'mean.nii.gz': run.meanKey,
-    'mask.nii.gz': run.maskKey,
-    'structural.nii.gz': run.structuralKey,
-  } as Record<string, string | null>;
-  return { run: deskRun, components, files };
 }

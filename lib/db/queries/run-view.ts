@@ -1,33 +1,11 @@
 import 'server-only';
 import { db } from '@/lib/db/knex';
 import type { OtherVote } from '@/lib/desk/types';
-import type { UserRow } from './users';
-import { findStudyAccess } from './study-access';
-import { loadRunShapes } from './reconcile-run';
 
-type Viewer = Pick<UserRow, 'id' | 'role'>;
-
-/** Who opens a run read-only: the study's leads and observers, and facility admins. */
-export type RunViewRole = 'lead' | 'observer';
-
-/**
- * A run's current decomposition for the read-only run view: the same shapes the rating desk draws,
- * reached through the study (lead, observer or admin) instead of an assignment. Null when the
- * caller may not see the run or it has no decomposition (callers answer 404 either way).
- */
-export async function loadRunForViewing({ user, runId }: { user: Viewer; runId: number }) {
-  const studyId = (await db('runs').where({ id: runId, status: 'ready' }).first('study_id'))?.study_id as number | undefined;
-  const access = studyId ? await findStudyAccess({ user, studyId }) : null;
-  const role: RunViewRole | null = !access
-    ? null
-    : access.isAdmin || access.studyRole === 'lead'
-      ? 'lead'
-      : access.studyRole === 'observer'
-        ? 'observer'
-        : null;
-  if (!role) return null;
-  const shapes = await loadRunShapes({ runId });
-  return shapes ? { ...shapes, role } : null;
+/** The study of a ready run, or null (no such run, or not ready yet). */
+export async function findReadyRunStudyId({ runId }: { runId: number }): Promise<number | null> {
+  const row = await db('runs').where({ id: runId, status: 'ready' }).first('study_id');
+  return row ? Number(row.study_id) : null;
 }
 
 /**

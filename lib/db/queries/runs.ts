@@ -3,8 +3,6 @@ import type { Knex } from 'knex';
 import { db, parseJson } from '@/lib/db/knex';
 import { decompositionWarnings, type DecompositionWarning } from '@/lib/decomposition/warnings';
 import type { UserRow } from './users';
-import { runAgreements } from './agreement';
-import { findStudyAccess } from './study-access';
 import type { JobStatus } from '@/lib/db/job-status';
 
 export type RunStatus = 'uploaded' | 'queued' | 'processing' | 'ready' | 'failed' | 'cancelled';
@@ -125,8 +123,11 @@ function latestJob(): Knex.Raw {
   return db.raw("(SELECT MAX(j2.id) FROM jobs j2 WHERE j2.run_id = r.id AND j2.kind = 'decompose')");
 }
 
-/** The runs of a study the user may see (rows for the runs table). `seesAllRuns` is the rule in lib/auth/permissions.ts. */
-export async function listRunsForStudy({ user, studyId, runId }: Scoped & { studyId: number; runId?: number }): Promise<RunListItem[]> {
+/**
+ * The runs of a study the user may see (rows for the runs table), without agreement (null): the
+ * use case lib/runs/list-study-runs.ts adds it for those who see every run.
+ */
+export async function listRunRows({ user, studyId, runId }: Scoped & { studyId: number; runId?: number }): Promise<RunListItem[]> {
   const query = db('runs as r')
     .leftJoin('jobs as j', 'j.id', latestJob())
     .leftJoin('decompositions as d', function () {
@@ -163,12 +164,6 @@ export async function listRunsForStudy({ user, studyId, runId }: Scoped & { stud
     .orderBy([{ column: 'r.sub' }, { column: 'r.ses' }, { column: 'r.task' }, { column: 'r.run_label' }, { column: 'r.id' }]);
   if (runId !== undefined) query.andWhere('r.id', runId);
   const rows = await scopeRuns(query, user);
-  // per-run agreement only for those who see every run (never a rater: blinding)
-  const access = await findStudyAccess({ user, studyId });
-  const seesAll = !!access && (access.isAdmin || access.studyRole === 'lead' || access.studyRole === 'observer');
-  const agreement = seesAll
-    ? await runAgreements({ studyId, runIds: rows.map((r: { id: number }) => Number(r.id)) })
-    : new Map<number, number | null>();
   return rows.map((r: Record<string, unknown>): RunListItem => ({
     id: Number(r.id),
     studyId: Number(r.studyId),
@@ -200,7 +195,7 @@ export async function listRunsForStudy({ user, studyId, runId }: Scoped & { stud
     decompositionWarnings: decompositionWarnings(r.decompositionWarnings),
     assigned: Number(r.assigned),
     submitted: Number(r.submitted),
-    agreement: agreement.get(Number(r.id)) ?? null,
+    agreement: null,
   }));
 }
 

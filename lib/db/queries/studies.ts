@@ -3,8 +3,7 @@ import { db } from '@/lib/db/knex';
 import type { UserRow } from './users';
 import type { Knex } from 'knex';
 import { parseJson, toJson } from '@/lib/db/knex';
-import type { ConsensusRule, DimSetting, LowReproducibilityPolicy, NoiseKindKey } from '@/lib/studies/labels';
-import type { StudyValues, StudyUpdate } from '@/lib/studies/schema';
+import type { ConsensusRule, DimSetting, LowReproducibilityPolicy, NoiseKindKey, ProtocolValues } from '@/lib/vocabulary/protocol';
 
 export type StudySummary = {
   id: number;
@@ -121,7 +120,7 @@ export async function findStudyDetail({ studyId }: { studyId: number }): Promise
   return row ? toStudy(row) : null;
 }
 
-function protocolRow(v: Partial<StudyValues>): Record<string, unknown> {
+function protocolRow(v: Partial<ProtocolValues>): Record<string, unknown> {
   const row: Record<string, unknown> = {};
   if (v.name !== undefined) row.name = v.name;
   if (v.description !== undefined) row.description = v.description || null;
@@ -147,7 +146,7 @@ function protocolRow(v: Partial<StudyValues>): Record<string, unknown> {
 /** Writes a study and makes its creator a lead member; returns its id. */
 export async function insertStudy(
   trx: Knex.Transaction,
-  { createdBy, values }: { createdBy: number; values: StudyValues },
+  { createdBy, values }: { createdBy: number; values: ProtocolValues },
 ): Promise<number> {
   const [id] = await trx('studies').insert({ ...protocolRow(values), created_by: createdBy });
   await trx('study_members').insert({ study_id: id, user_id: createdBy, study_role: 'lead', added_by: createdBy });
@@ -157,7 +156,7 @@ export async function insertStudy(
 /** Writes the given protocol fields of a study; returns false when there was nothing to change. */
 export async function writeProtocol(
   trx: Knex.Transaction,
-  { studyId, values }: { studyId: number; values: StudyUpdate },
+  { studyId, values }: { studyId: number; values: Partial<ProtocolValues> },
 ): Promise<boolean> {
   const row = protocolRow(values);
   if (Object.keys(row).length === 0) return false;
@@ -166,7 +165,7 @@ export async function writeProtocol(
 }
 
 /** Whether an update carries any protocol field. */
-export function changesProtocol(values: StudyUpdate): boolean {
+export function changesProtocol(values: Partial<ProtocolValues>): boolean {
   return Object.keys(protocolRow(values)).length > 0;
 }
 

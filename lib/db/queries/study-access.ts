@@ -1,7 +1,7 @@
 import 'server-only';
 import { db } from '@/lib/db/knex';
 import type { UserRow } from './users';
-import type { Access } from '@/lib/auth/permissions';
+import type { Access } from '@/lib/vocabulary/roles';
 
 /**
  * The caller's access to one study, or null when they may not see it: admins see every study that

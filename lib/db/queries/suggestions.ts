@@ -1,25 +1,30 @@
 // No `server-only` here: the worker's suggestion jobs (lib/worker/kinds/*-suggestions.ts) use these queries outside Next.js.
 import type { Knex } from 'knex';
 import { db, parseJson, toJson } from '@/lib/db/knex';
-import type {
-  ModelReport,
-  RaterSuggestion,
-  RawFeatures,
-  StoredModel,
-  SuggestionModelJson,
-  TrainingRecord,
-  TrainingSource,
-} from '@/lib/suggestions/types';
+import type { RaterSuggestion, TrainingRecord, TrainingSource } from '@/lib/vocabulary/suggestions';
 
-export type { StoredModel };
+/** A component's stored features plus its variance explained, by feature key (null: undefined for it). */
+type FeatureValues = Record<string, number | null>;
+
+/** One stored model of a study; `model` and `report` are the JSON documents lib/suggestions wrote (typed there: StoredModel). */
+export type StoredModelRow = {
+  id: number;
+  studyId: number;
+  version: number;
+  model: unknown;
+  report: unknown;
+  training: TrainingRecord;
+  createdAt: string;
+};
+
 export type TrainingData = {
-  rows: { subject: string; features: RawFeatures; label: 'signal' | 'noise' }[];
+  rows: { subject: string; features: FeatureValues; label: 'signal' | 'noise' }[];
   releases: TrainingSource[];
   /** Released decisions left out because their label is neither signal nor noise (e.g. uncertain). */
   skipped: number;
 };
 
-function rawFeatures(json: unknown, varianceExplained: unknown): RawFeatures {
+function rawFeatures(json: unknown, varianceExplained: unknown): FeatureValues {
   const f = parseJson<Record<string, number | null>>(json, {}) ?? {};
   return { ...f, varianceExplained: varianceExplained == null ? null : Number(varianceExplained) };
 }
@@ -74,7 +79,7 @@ export async function trainingData({ studyIds }: { studyIds: number[] }, trx: Kn
 /** Stores a trained model as the study's next version and makes it the one in use. */
 export async function insertSuggestionModel(
   trx: Knex | Knex.Transaction,
-  m: { studyId: number; model: SuggestionModelJson; report: ModelReport; training: TrainingRecord; createdBy: number | null },
+  m: { studyId: number; model: unknown; report: unknown; training: TrainingRecord; createdBy: number | null },
 ): Promise<{ id: number; version: number }> {
   const last = await trx('suggestion_models').where({ study_id: m.studyId }).max({ v: 'version' }).first();
   const version = Number(last?.v ?? 0) + 1;
@@ -90,14 +95,14 @@ export async function insertSuggestionModel(
   return { id: Number(id), version };
 }
 
-function toStored(r: Record<string, unknown>): StoredModel {
+function toStored(r: Record<string, unknown>): StoredModelRow {
   return {
     id: Number(r.id),
     studyId: Number(r.study_id),
     version: Number(r.version),
-    model: parseJson<SuggestionModelJson>(r.model)!,
-    report: parseJson<ModelReport>(r.report)!,
-    training: parseJson<StoredModel['training']>(r.training, { studies: [], releases: [], skipped: 0 })!,
+    model: parseJson(r.model),
+    report: parseJson(r.report),
+    training: parseJson<TrainingRecord>(r.training, { studies: [], releases: [], skipped: 0 })!,
     createdAt: new Date(r.created_at as string).toISOString(),
   };
 }
@@ -106,7 +111,7 @@ function toStored(r: Record<string, unknown>): StoredModel {
 export async function activeSuggestionModel(
   { studyId }: { studyId: number },
   trx: Knex | Knex.Transaction = db,
-): Promise<StoredModel | null> {
+): Promise<StoredModelRow | null> {
   const r = await trx('studies as s')
     .join('suggestion_models as m', 'm.id', 's.suggestion_model_id')
     .where('s.id', studyId)

@@ -1,6 +1,6 @@
 import 'server-only';
 import { db } from '@/lib/db/knex';
-import type { Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/vocabulary/roles';
 
 export type UserRow = {
   id: number;

@@ -2,7 +2,7 @@ import 'server-only';
 import type { Knex } from 'knex';
 import { db } from '@/lib/db/knex';
 import type { MyVote, OtherVote, VoteFields, VotesPayload } from '@/lib/desk/types';
-import { findAssignedRun, isRunReleased } from './desk';
+import { isRunReleased, type AssignedRun } from './desk';
 
 type Caller = { id: number };
 
@@ -56,13 +56,13 @@ export function othersHiddenReason(run: {
 }
 
 /**
- * GET /api/runs/:id/votes — the caller's own votes on the run, the assignment's status, and the
+ * GET /api/runs/:id/votes (lib/votes/list-votes-for-rater.ts) — the caller's own votes on the run, the assignment's status, and the
  * other raters' votes only when othersHiddenReason allows it — and then only the votes of raters
  * who have submitted the run themselves (work in progress, or a run a lead reopened for its rater,
  * is never shown). While they are hidden the query for other raters' votes is never run.
  */
-export async function listVotesForRater({ user, runId }: { user: Caller; runId: number }): Promise<VotesPayload> {
-  const run = await findAssignedRun({ user, runId });
+export async function votesPayloadOf({ user, run }: { user: Caller; run: AssignedRun }): Promise<VotesPayload> {
+  const runId = Number(run.runId);
   const mine = await db('votes as v')
     .join('components as c', 'c.id', 'v.component_id')
     .where({ 'v.run_id': runId, 'v.rater_id': user.id, 'c.decomposition_id': run.decompositionId })

@@ -1,4 +1,4 @@
-import { ROLE_LABELS, type Role } from '../../auth/roles';
+import { ROLE_LABELS, type Role } from '../../vocabulary/roles';
 import { escapeHtml, formatUtc, htmlLayout, textFooter, type MailContent } from './layout';
 
 /** The invitation e-mail: who invited, which role (and study), the one-time link and its expiry. */

@@ -21,7 +21,7 @@ import {
 } from '@/lib/db/queries/denoise';
 import { dropInitialVolumes, parseMotionFile } from '@/lib/decomposition/motion';
 import { denoiseImage } from '@/lib/denoise/denoise-image';
-import { denoisePayloadSchema, type DenoiseResult } from '@/lib/denoise/payload';
+import { denoisePayloadSchema, type DenoiseResult } from '@/lib/denoise/schema';
 import { noiseList, type UncertainPolicy } from '@/lib/exports/noise-list';
 import { readNiftiFile } from '@/lib/nifti';
 import { ensureDirFor, newKey, pathFor, removeKey } from '@/lib/storage';

@@ -5,7 +5,8 @@
  * Nothing to do (no model) is a success with scored = 0. Progress stages: reading, scoring.
  */
 import type { Knex } from 'knex';
-import { activeSuggestionModel, componentsToScore, insertSuggestions } from '@/lib/db/queries/suggestions';
+import { componentsToScore, insertSuggestions } from '@/lib/db/queries/suggestions';
+import { findActiveModel } from '@/lib/suggestions/active-model';
 import { scoreComponents } from '@/lib/suggestions/score-components';
 import { scoreSuggestionsPayloadSchema } from '@/lib/jobs/suggestion-payloads';
 import { enqueueJob } from '@/lib/jobs/queue';
@@ -17,7 +18,7 @@ export const scoreSuggestionsKind = defineJobKind({
   async run(ctx) {
     const { payload } = ctx;
     await ctx.progress('reading', 1);
-    const model = await activeSuggestionModel({ studyId: payload.studyId }, ctx.db);
+    const model = await findActiveModel({ studyId: payload.studyId }, ctx.db);
     if (!model) return { scored: 0, modelId: null };
     const rows = await componentsToScore({ studyId: payload.studyId, runId: payload.runId }, ctx.db);
     await ctx.progress('scoring', 30);

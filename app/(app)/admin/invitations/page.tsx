@@ -2,7 +2,7 @@ import type { Metadata } from 'next';
 import { requirePageUser } from '@/lib/auth/session';
 import { listInvitations } from '@/lib/invitations/list-invitations';
 import { invitableStudies } from '@/lib/db/queries/people';
-import { ROLES, type Role } from '@/lib/auth/roles';
+import { ROLES, type Role } from '@/lib/vocabulary/roles';
 import { inviteTtlMs } from '@/lib/auth/tokens';
 import { Panel } from '@/components/ui/panel';
 import { AdminTabs } from '@/components/admin/admin-tabs';

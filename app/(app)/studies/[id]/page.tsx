@@ -3,9 +3,10 @@ import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
 import { studyWithAccess } from '@/lib/studies/study-with-access';
-import { listRunsForStudy, studyProgress } from '@/lib/db/queries/runs';
+import { studyProgress } from '@/lib/db/queries/runs';
+import { listRunsForStudy } from '@/lib/runs/list-study-runs';
 import { maxUploadBytes } from '@/lib/runs/schema';
-import { CONSENSUS_NAMES, DIM_METHOD_NAMES } from '@/lib/studies/labels';
+import { CONSENSUS_NAMES, DIM_METHOD_NAMES } from '@/lib/vocabulary/protocol';
 import { StudyClient } from './study-client';
 
 export const metadata: Metadata = { title: 'Study' };

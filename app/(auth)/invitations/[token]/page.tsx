@@ -1,7 +1,7 @@
 import type { Metadata } from 'next';
 import { describeLink, findLinkByToken } from '@/lib/invitations/find-link';
 import { looksLikeToken } from '@/lib/auth/tokens';
-import { ROLE_LABELS } from '@/lib/auth/roles';
+import { ROLE_LABELS } from '@/lib/vocabulary/roles';
 import { LinkRefused } from '@/components/admin/link-refused';
 import { AcceptInvitationForm } from './accept-client';
 

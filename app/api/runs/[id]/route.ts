@@ -2,7 +2,8 @@ import { handler } from '@/lib/api/handler';
 import { deleteRunQuerySchema, runEntitiesSchema, runIdParams } from '@/lib/runs/schema';
 import { deleteRun } from '@/lib/runs/actions';
 import { editRunEntities } from '@/lib/runs/edit-run-entities';
-import { findRunForUser, listRunsForStudy } from '@/lib/db/queries/runs';
+import { findRunForUser } from '@/lib/db/queries/runs';
+import { listRunsForStudy } from '@/lib/runs/list-study-runs';
 import { auditAddress } from '@/lib/auth/client-address';
 import { notFound } from '@/lib/errors';
 

@@ -2,8 +2,8 @@ import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
 import { AppError } from '@/lib/errors';
-import { loadDeskComponents } from '@/lib/db/queries/desk';
-import { listVotesForRater } from '@/lib/db/queries/votes';
+import { loadDeskComponents } from '@/lib/runs/load-desk-components';
+import { listVotesForRater } from '@/lib/votes/list-votes-for-rater';
 import { RateClient } from './rate-client';
 
 export const metadata: Metadata = { title: 'Rating desk' };

@@ -1,7 +1,8 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
-import { loadRunForViewing, submittedVotesOfRun } from '@/lib/db/queries/run-view';
+import { submittedVotesOfRun } from '@/lib/db/queries/run-view';
+import { loadRunForViewing } from '@/lib/runs/load-run-for-viewing';
 import { ViewClient } from './view-client';
 
 export const metadata: Metadata = { title: 'Run (read-only)' };

@@ -2,7 +2,7 @@ import type { Metadata } from 'next';
 import Link from 'next/link';
 import { forbidden, notFound } from 'next/navigation';
 import { requirePageUser } from '@/lib/auth/session';
-import { listCalibration } from '@/lib/db/queries/calibration';
+import { listCalibration } from '@/lib/calibration/list-calibration';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { leadsStudy } from '@/lib/auth/permissions';
 import { CalibrationClient } from '@/components/calibration/calibration-client';

@@ -4,7 +4,7 @@ import { useMemo, useRef, useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { postJson } from '@/lib/api/client';
 import { bidsName } from '@/lib/bids';
-import { labelName, noiseKindName } from '@/lib/studies/labels';
+import { labelName, noiseKindName } from '@/lib/vocabulary/protocol';
 import type { ReconcileItem } from '@/lib/db/queries/reconcile';
 import type { ViewerApi } from '@/components/viewer';
 import { MapPanel } from '@/components/desk/map-panel';

@@ -2,10 +2,12 @@ import type { Metadata } from 'next';
 import { readFile } from 'node:fs/promises';
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
+import { after } from 'next/server';
 import { requirePageUser } from '@/lib/auth/session';
 import { findStudyRow } from '@/lib/db/queries/studies';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { loadRatingFacts, loadStudyRatings } from '@/lib/db/queries/agreement';
+import { readCurrentAgreementReport, refreshCurrentAgreementReport } from '@/lib/releases/current-agreement-report';
 import { findRelease, loadExportRuns, releaseDecisions, storedAgreementReport } from '@/lib/db/queries/releases';
 import { buildAgreementReport, type AgreementReport } from '@/lib/reports/agreement-report';
 import { methodsParagraph } from '@/lib/reports/methods-paragraph';
@@ -16,6 +18,7 @@ import { Panel } from '@/components/ui/panel';
 import { Headline } from '@/components/agreement/headline';
 import { RaterPairsPanel, RatersVsDecisionsPanel, RunsTable, WeeklyPanel } from '@/components/agreement/agreement-panels';
 import { PrintButton } from '@/components/releases/print-button';
+import { RefreshWhileComputing } from '@/components/agreement/refresh-while-computing';
 
 export const metadata: Metadata = { title: 'Agreement report' };
 
@@ -42,12 +45,33 @@ export default async function ReportPage({
 
   const study = (await findStudyRow({ studyId }))!;
   const runIds = release ? release.manifest!.runs.map((r) => r.runId) : undefined;
-  // a release's statistics were computed once by its release job; releases made before that was
-  // stored, and the current state, are computed here
+  // a release's statistics were computed once by its release job (releases made before that was
+  // stored are computed here); the current state's are stored once per change of the ratings
+  // (lib/releases/current-agreement-report.ts): stale figures are shown with their time while the
+  // new ones are computed after this response, and the page reloads itself until they are current
   const stored = release ? ((await storedAgreementReport({ releaseId: release.id })) as AgreementReport | null) : null;
   let report: AgreementReport;
   let runCount: number;
-  if (stored) {
+  let computedAt: Date | null = null;
+  let computing = false;
+  if (!release) {
+    let current = await readCurrentAgreementReport({ studyId });
+    if (!current.stored) {
+      // never computed for this study: compute once now, so the first view has figures
+      await refreshCurrentAgreementReport({ studyId });
+      current = await readCurrentAgreementReport({ studyId });
+    } else if (!current.fresh) {
+      computing = true;
+      after(() =>
+        refreshCurrentAgreementReport({ studyId }).catch((err) =>
+          console.error(`[report] agreement of study ${studyId} not computed:`, (err as Error).message),
+        ),
+      );
+    }
+    report = current.stored!.report;
+    runCount = current.stored!.runCount;
+    computedAt = current.stored!.computedAt;
+  } else if (stored) {
     report = stored;
     runCount = release!.manifest!.runs.length;
   } else {
@@ -100,8 +124,14 @@ export default async function ReportPage({
           <p className="text-sm text-ink-muted" data-testid="report-scope">
             {release
               ? `Release version ${release.version} of ${release.releasedAt.toISOString().slice(0, 10)} (${release.runId ? 'one run' : 'whole study'})`
-              : `Current state, ${new Date().toISOString().slice(0, 10)} (not a release)`}
+              : `Current state, figures of ${computedAt ? `${computedAt.toISOString().slice(0, 16).replace('T', ' ')} UTC` : '—'} (not a release)`}
           </p>
+          {computing ? (
+            <p className="text-sm text-ink-muted no-print" data-testid="report-computing" role="status">
+              Votes or decisions changed since these figures: computing… (the page updates by itself)
+              <RefreshWhileComputing />
+            </p>
+          ) : null}
         </div>
         <PrintButton />
       </header>

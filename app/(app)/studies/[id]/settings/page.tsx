@@ -13,7 +13,7 @@ import {
   LABEL_NAMES,
   type LabelKey,
   LOW_REPRODUCIBILITY_NAMES,
-} from '@/lib/studies/labels';
+} from '@/lib/vocabulary/protocol';
 
 export const metadata: Metadata = { title: 'Study protocol' };
 

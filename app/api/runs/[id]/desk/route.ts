@@ -1,6 +1,6 @@
 import { handler } from '@/lib/api/handler';
 import { deskPositionSchema, runParamsSchema } from '@/lib/desk/schemas';
-import { saveDeskPosition } from '@/lib/db/queries/desk';
+import { saveDeskPosition } from '@/lib/runs/save-desk-position';
 
 // PUT /api/runs/:id/desk – remember which component the rater is looking at
 export const PUT = handler(

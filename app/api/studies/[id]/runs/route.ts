@@ -3,7 +3,8 @@ import { studyIdParams } from '@/lib/studies/schema';
 import { runUploadQuerySchema } from '@/lib/runs/schema';
 import { contentLengthOf, uploadRun } from '@/lib/runs/upload';
 import { studyWithAccess } from '@/lib/studies/study-with-access';
-import { listRunsForStudy, studyProgress } from '@/lib/db/queries/runs';
+import { studyProgress } from '@/lib/db/queries/runs';
+import { listRunsForStudy } from '@/lib/runs/list-study-runs';
 import { notFound } from '@/lib/errors';
 
 // GET /api/studies/:id/runs – the runs table (raters: only their assigned runs) and the study's progress

@@ -1,6 +1,6 @@
 import { handler } from '@/lib/api/handler';
 import { fileParamsSchema } from '@/lib/desk/schemas';
-import { findRunFileKey } from '@/lib/db/queries/desk';
+import { findRunFileKey } from '@/lib/runs/find-run-file';
 import { storedFileResponse } from '@/lib/storage/respond';
 
 // GET /api/runs/:id/files/:file – stream the run's component maps, mean image or mask (assigned rater only)

@@ -1,7 +1,7 @@
 import { handler } from '@/lib/api/handler';
 import { auditAddress } from '@/lib/auth/client-address';
 import { markRunSchema, studyParamsSchema } from '@/lib/calibration/schema';
-import { markCalibrationRun } from '@/lib/db/queries/calibration';
+import { markCalibrationRun } from '@/lib/calibration/mark-calibration-run';
 
 // POST /api/studies/:id/calibration/runs – mark a ready run of the study as a calibration run
 export const POST = handler(

@@ -5,9 +5,9 @@ import { requirePageUser } from '@/lib/auth/session';
 import { calibrationResult } from '@/lib/db/queries/calibration';
 import { calibrationGate, calibrationSettings } from '@/lib/db/queries/calibration-gate';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
-import { labelName, noiseKindName } from '@/lib/studies/labels';
+import { labelName, noiseKindName } from '@/lib/vocabulary/protocol';
 import { Panel } from '@/components/ui/panel';
-import { loadRunShapes } from '@/lib/db/queries/reconcile-run';
+import { loadRunShapes } from '@/lib/consensus/load-run-shapes';
 import { CalibrationResultViewer, type ResultRow } from '@/components/calibration/result-viewer';
 
 export const metadata: Metadata = { title: 'Calibration result' };

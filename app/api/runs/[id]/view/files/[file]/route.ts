@@ -1,6 +1,6 @@
 import { handler } from '@/lib/api/handler';
 import { fileParamsSchema } from '@/lib/desk/schemas';
-import { loadRunForViewing } from '@/lib/db/queries/run-view';
+import { loadRunForViewing } from '@/lib/runs/load-run-for-viewing';
 import { storedFileResponse } from '@/lib/storage/respond';
 import { AppError } from '@/lib/errors';
 

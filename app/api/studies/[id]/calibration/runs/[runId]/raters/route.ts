@@ -1,7 +1,7 @@
 import { handler } from '@/lib/api/handler';
 import { auditAddress } from '@/lib/auth/client-address';
 import { assignCalibrationSchema, calibrationRunParamsSchema } from '@/lib/calibration/schema';
-import { assignCalibrationRater } from '@/lib/db/queries/calibration';
+import { assignCalibrationRater } from '@/lib/calibration/assign-calibration-rater';
 
 // POST /api/studies/:id/calibration/runs/:runId/raters – assign a rater to a calibration run (they rate it in the normal desk)
 export const POST = handler(

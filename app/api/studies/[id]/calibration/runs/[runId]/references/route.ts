@@ -1,7 +1,8 @@
 import { handler } from '@/lib/api/handler';
 import { auditAddress } from '@/lib/auth/client-address';
 import { calibrationRunParamsSchema, referenceSchema } from '@/lib/calibration/schema';
-import { adoptReferences, setReferenceLabel } from '@/lib/db/queries/calibration';
+import { adoptReferences } from '@/lib/calibration/adopt-references';
+import { setReferenceLabel } from '@/lib/calibration/set-reference-label';
 
 // POST /api/studies/:id/calibration/runs/:runId/references – adopt the run's decisions as reference ({ adopt: true }) or set one component's reference label
 export const POST = handler(

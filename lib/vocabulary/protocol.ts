@@ -1,4 +1,4 @@
-/** The product's protocol vocabulary: keys stored in the database and the plain labels people see. */
+/** The product's protocol vocabulary (a leaf: imports only ./roles): keys stored in the database and the plain labels people see. */
 
 export const LABEL_KEYS = ['signal', 'noise', 'uncertain'] as const;
 export type LabelKey = (typeof LABEL_KEYS)[number];
@@ -51,9 +51,8 @@ export const DIM_METHOD_NAMES: Record<DimSetting, string> = {
   variance: 'Fraction of variance explained',
 };
 
-// the role vocabulary (facility and study roles) is defined once, in lib/auth/roles.ts
-import { STUDY_ROLES, type StudyRole } from '@/lib/auth/roles';
-export { STUDY_ROLES, type StudyRole };
+// the role vocabulary (facility and study roles) is defined once, in lib/vocabulary/roles.ts
+import type { StudyRole } from './roles';
 
 export const STUDY_ROLE_NAMES: Record<StudyRole, string> = {
   lead: 'Lead',
@@ -69,4 +68,27 @@ export const LOW_REPRODUCIBILITY_NAMES: Record<LowReproducibilityPolicy, string>
   flag: 'Flag them on the desk (shown in order, marked)',
   last: 'Flag them and put them last in the rater’s list',
   hide: 'Hide them from raters (the lead decides them in Reconcile)',
+};
+
+/**
+ * The protocol fields a study stores (lib/db/queries/studies.ts writes them). The study form's
+ * schema (lib/studies/schema.ts) validates them: its output must be assignable to this.
+ */
+export type ProtocolValues = {
+  name: string;
+  description: string;
+  ratersPerRun: number;
+  consensusRule: ConsensusRule;
+  allowUncertain: boolean;
+  noiseKinds: NoiseKindKey[];
+  blinding: boolean;
+  showVotesAfterSubmit: boolean;
+  dropVolumes: number;
+  dimMethod: DimSetting;
+  fixedComponents?: number | null;
+  varianceFraction?: number | null;
+  varianceNorm: boolean;
+  detrend: boolean;
+  reproducibilityThreshold?: number;
+  lowReproducibility?: LowReproducibilityPolicy;
 };

@@ -1,3 +1,4 @@
+/** The role vocabulary: facility (account) roles, study roles, and what a caller is in one study. A leaf: imports nothing. */
 export const ROLES = ['admin', 'lead', 'rater', 'observer'] as const;
 export type Role = (typeof ROLES)[number];
 
@@ -33,3 +34,9 @@ export function studyRoleRefusal(role: Role, studyRole: StudyRole): string {
   const name = ROLE_LABELS[role].toLowerCase();
   return `${/^[aeiou]/.test(name) ? 'An' : 'A'} ${name} account cannot be a study ${studyRole}${studyRole === 'rater' ? ' (it cannot vote)' : ''}: choose the facility role ${allowed}, or another role in the study.`;
 }
+
+/**
+ * The caller's access to one study (lib/db/queries/study-access.ts#findStudyAccess): null when
+ * they may not see it. Admins see every study; everyone else only studies they are a member of.
+ */
+export type Access = { studyId: number; name: string; studyRole: StudyRole | null; isAdmin: boolean };
