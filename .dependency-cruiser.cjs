@@ -34,8 +34,18 @@ module.exports = {
     {
       name: 'knex-only-in-db',
       severity: 'error',
-      comment: 'Only lib/db (knex.ts, queries) and db/ (migrations, seeds) talk to knex; everything else calls a query function.',
-      from: { path: '^(app|components|lib)/', pathNot: '^lib/db/' },
+      comment:
+        "Only lib/db (knex.ts, queries) and db/ (migrations, seeds) talk to knex, its types included (`import type { Knex } from 'knex'` counts: tsPreCompilationDeps); everything else calls a query function and types connections with Db / Trx from lib/db/transaction.ts.",
+      from: {
+        path: '^(app|components|lib)/',
+        pathNot: [
+          '^lib/db/',
+          // TEMPORARY: these two still take knex's types and are being changed on another branch
+          // (h-sqlonly); switch them to Db/Trx from lib/db/transaction.ts and delete these two lines.
+          '^lib/calibration/assign-recalibrations\\.ts$',
+          '^lib/worker/kinds/score-suggestions\\.ts$',
+        ],
+      },
       to: { path: ['^node_modules/knex/', '^lib/db/knex\\.ts$'] },
     },
     {
@@ -55,7 +65,9 @@ module.exports = {
   ],
   options: {
     doNotFollow: { path: 'node_modules' },
-    exclude: { path: '^(node_modules|\\.next|\\.data|uploads)/' },
+    // node_modules is not followed but must not be excluded: an excluded module drops the
+    // dependencies on it, and knex-only-in-db would never see an import of knex.
+    exclude: { path: '^(\\.next|\\.data|uploads)/' },
     tsPreCompilationDeps: true,
     tsConfig: { fileName: 'tsconfig.json' },
     enhancedResolveOptions: {
