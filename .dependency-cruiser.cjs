@@ -42,8 +42,12 @@ module.exports = {
     {
       name: 'knex-only-in-db',
       severity: 'error',
-      comment: 'Only lib/db (knex.ts, queries) and db/ (migrations, seeds) talk to knex; everything else calls a query function.',
-      from: { path: '^(app|components|lib)/', pathNot: '^lib/db/' },
+      comment:
+        "Only lib/db (knex.ts, queries) and db/ (migrations, seeds) talk to knex, its types included (`import type { Knex } from 'knex'` counts: tsPreCompilationDeps); everything else calls a query function and types connections with Db / Trx from lib/db/transaction.ts.",
+      from: {
+        path: '^(app|components|lib)/',
+        pathNot: '^lib/db/',
+      },
       to: { path: ['^node_modules/knex/', '^lib/db/knex\\.ts$'] },
     },
     {
@@ -63,7 +67,9 @@ module.exports = {
   ],
   options: {
     doNotFollow: { path: 'node_modules' },
-    exclude: { path: '^(node_modules|\\.next|\\.data|uploads)/' },
+    // node_modules is not followed but must not be excluded: an excluded module drops the
+    // dependencies on it, and knex-only-in-db would never see an import of knex.
+    exclude: { path: '^(\\.next|\\.data|uploads)/' },
     tsPreCompilationDeps: true,
     tsConfig: { fileName: 'tsconfig.json' },
     enhancedResolveOptions: {

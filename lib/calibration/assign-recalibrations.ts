@@ -7,18 +7,18 @@
  * not due, and the due check is repeated under a lock, so a second run (or a second worker)
  * assigns nothing. Audited as calibration.recalibration_assigned. Run by the `recalibrate` job.
  */
-import type { Knex } from 'knex';
+import { inTransaction, type Db } from '@/lib/db/transaction';
 import { recordAudit } from '@/lib/db/queries/audit';
 import { dueRecalibrations, startRecalibrationRound } from '@/lib/db/queries/calibration-rounds';
 import { afterAssignmentsCreated } from '@/lib/jobs/queue-notifications';
 
 const DUE_DAYS = 14;
 
-export async function assignDueRecalibrations(db: Knex, { now = new Date() }: { now?: Date } = {}) {
+export async function assignDueRecalibrations(db: Db, { now = new Date() }: { now?: Date } = {}) {
   const started: Array<{ studyId: number; raterId: number; round: number; runIds: number[] }> = [];
   for (const d of await dueRecalibrations({ now }, db)) {
     const dueAt = new Date(now.getTime() + DUE_DAYS * 24 * 3600 * 1000);
-    const r = await db.transaction(async (trx) => {
+    const r = await inTransaction(async (trx) => {
       const res = await startRecalibrationRound(trx, { studyId: d.studyId, raterId: d.raterId, now, dueAt });
       if (res) {
         await recordAudit(
@@ -40,7 +40,7 @@ export async function assignDueRecalibrations(db: Knex, { now = new Date() }: { 
         );
       }
       return res;
-    });
+    }, db);
     if (r) started.push({ studyId: d.studyId, raterId: d.raterId, round: r.round + 1, runIds: r.runIds });
   }
   if (started.length) await afterAssignmentsCreated(db);

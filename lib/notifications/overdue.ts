@@ -4,8 +4,9 @@
  * job (notify-overdue) sends each active lead of a study with overdue work one summary covering
  * all their studies.
  */
-import type { Knex } from 'knex';
+import { listActiveLeads } from '@/lib/db/queries/notifications';
 import { listOverdue } from '@/lib/db/queries/overdue';
+import type { Db } from '@/lib/db/transaction';
 import { facilityName, publicBaseUrl } from '@/lib/mail/config';
 import { deliverMail } from '@/lib/mail/deliver';
 import { overdueSummaryMail, type OverdueStudy } from '@/lib/mail/templates/overdue-summary';
@@ -13,15 +14,11 @@ import { overdueSummaryMail, type OverdueStudy } from '@/lib/mail/templates/over
 export type OverdueSummaryResult = { sent: Array<{ leadId: number; assignments: number }>; failed: number };
 
 /** One summary e-mail per active lead of every study with overdue work. */
-export async function sendOverdueSummaries(db: Knex): Promise<OverdueSummaryResult> {
+export async function sendOverdueSummaries(db: Db): Promise<OverdueSummaryResult> {
   const overdue = await listOverdue({}, db);
   const result: OverdueSummaryResult = { sent: [], failed: 0 };
   if (!overdue.length) return result;
-  const leads = await db('study_members as m')
-    .join('users as u', 'u.id', 'm.user_id')
-    .whereIn('m.study_id', [...new Set(overdue.map((o) => o.studyId))])
-    .where({ 'm.study_role': 'lead', 'u.active': true })
-    .select('m.study_id as studyId', 'u.id', 'u.email', 'u.name');
+  const leads = await listActiveLeads(db, { studyIds: [...new Set(overdue.map((o) => o.studyId))] });
   const facility = facilityName();
   const base = publicBaseUrl();
   const byLead = new Map<number, { email: string; name: string; studyIds: number[] }>();

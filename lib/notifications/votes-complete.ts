@@ -6,14 +6,8 @@
  * once per completion: key is the run id and its latest submission, so a rater added later who
  * submits makes a new completion. A named lock keeps two overlapping checks from both sending.
  */
-import {
-  findCompleteRuns,
-  getNamedLock,
-  insertNotification,
-  listActiveLeads,
-  recentNotificationKeys,
-  releaseNamedLock,
-} from '@/lib/db/queries/votes-complete';
+import { insertNotification, listActiveLeads, recentNotificationKeys } from '@/lib/db/queries/notifications';
+import { findCompleteRuns, getNamedLock, releaseNamedLock } from '@/lib/db/queries/votes-complete';
 import { inTransaction, type Db } from '@/lib/db/transaction';
 import { facilityName, publicBaseUrl } from '@/lib/mail/config';
 import { deliverMail } from '@/lib/mail/deliver';

@@ -3,7 +3,9 @@
  * tests and scripts (load, bench) use. No `server-only` here: the bench script runs without the
  * react-server condition.
  */
-import type { Knex } from 'knex';
+import { findOpenDecomposeJob, lockRunForQueue, markRunQueued } from '@/lib/db/queries/decompose-run';
+import { markJobWaiting } from '@/lib/db/queries/jobs';
+import { inTransaction, type Db } from '@/lib/db/transaction';
 import { enqueueJob, PermanentJobError, type DecompositionOptionsInput } from '@/lib/jobs';
 import type { DecomposeSettings } from './schema';
 
@@ -23,7 +25,7 @@ export function decompositionOptionsFor(settings?: DecomposeSettings): Decomposi
  * re-decomposition.
  */
 export async function queueDecomposition(
-  db: Knex,
+  db: Db,
   {
     runId,
     createdBy = null,
@@ -32,26 +34,22 @@ export async function queueDecomposition(
     maxAttempts,
   }: { runId: number; createdBy?: number | null; options?: DecompositionOptionsInput; priority?: number; maxAttempts?: number },
 ): Promise<{ jobId: number; existing: boolean }> {
-  return db.transaction(async (trx) => {
-    const run = await trx('runs').select('id', 'study_id').where({ id: runId }).forUpdate().first();
+  return inTransaction(async (trx) => {
+    const run = await lockRunForQueue(trx, { runId });
     if (!run) throw new PermanentJobError(`Run ${runId} does not exist.`);
-    const active = await trx('jobs')
-      .select('id')
-      .where({ run_id: runId, kind: 'decompose' })
-      .whereIn('status', ['queued', 'running'])
-      .first();
-    if (active) return { jobId: Number(active.id), existing: true };
+    const active = await findOpenDecomposeJob(trx, { runId });
+    if (active !== null) return { jobId: active, existing: true };
     const jobId = await enqueueJob(trx, {
       kind: 'decompose',
       payload: { runId, ...(options ? { decompositionOptions: options } : {}) },
       runId,
-      studyId: Number(run.study_id),
+      studyId: run.studyId,
       createdBy,
       priority,
       maxAttempts,
     });
-    await trx('jobs').where({ id: jobId }).update({ stage: 'queued', percent: 0, message: 'Waiting for a worker' });
-    await trx('runs').where({ id: runId }).update({ status: 'queued', status_message: null });
+    await markJobWaiting(trx, jobId);
+    await markRunQueued(trx, { runId });
     return { jobId, existing: false };
-  });
+  }, db);
 }

@@ -1,5 +1,5 @@
 // What a job kind is and what it gets when it runs.
-import type { Knex } from 'knex';
+import type { Db, Trx } from '@/lib/db/transaction';
 import type { z } from 'zod';
 import type { Job } from '@/lib/jobs/queue';
 
@@ -10,7 +10,7 @@ export interface JobLogger {
 }
 
 export interface JobContext<P> {
-  db: Knex;
+  db: Db;
   /** The payload, already validated by the kind's schema. */
   payload: P;
   job: Job;
@@ -35,7 +35,7 @@ export interface JobContext<P> {
    * owns it, and then marks the job succeeded with `result`; so results are written exactly once
    * even when a lease expired and another worker took the job. Throws JobCancelled / LeaseLost.
    */
-  commit<T>(write: (trx: Knex.Transaction) => Promise<T>, result?: (value: T) => unknown): Promise<T>;
+  commit<T>(write: (trx: Trx) => Promise<T>, result?: (value: T) => unknown): Promise<T>;
 }
 
 export interface JobKind<S extends z.ZodType = z.ZodType> {

@@ -5,13 +5,14 @@
  */
 import { hostname } from 'node:os';
 import { randomBytes } from 'node:crypto';
-import type { Knex } from 'knex';
+import { countOpenJobsOfKinds } from '@/lib/db/queries/jobs';
+import type { Db } from '@/lib/db/transaction';
 import { claimJob, releaseJob, requeueExpiredLeases, type Job } from '@/lib/jobs/queue';
 import { readableMessage, runClaimedJob, type RunOutcome } from './runner';
 import type { JobKind, JobLogger } from './types';
 
 export interface WorkerOptions {
-  db: Knex;
+  db: Db;
   kinds: Readonly<Record<string, JobKind>>;
   workerId?: string;
   /** Lease length (ms); renewed every lease/3. Default 30 000. */
@@ -99,10 +100,7 @@ export function startWorker(opts: WorkerOptions): WorkerHandle {
     }
   };
 
-  const pending = async (): Promise<number> => {
-    const row = await db('jobs').whereIn('status', ['queued', 'running']).whereIn('kind', kindNames).count({ n: '*' }).first();
-    return Number(row?.n ?? 0);
-  };
+  const pending = (): Promise<number> => countOpenJobsOfKinds(db, { kinds: kindNames });
 
   const words: Record<RunOutcome | 'error', string> = {
     succeeded: 'succeeded',

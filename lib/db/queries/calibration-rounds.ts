@@ -213,3 +213,8 @@ export async function calibrationRounds(
   }
   return out;
 }
+
+/** True while some study has a re-calibration interval (recalibration_weeks set). */
+export async function anyStudyRecalibrates(trx: Knex | Knex.Transaction = db): Promise<boolean> {
+  return Boolean(await trx('studies').whereNotNull('recalibration_weeks').first('id'));
+}

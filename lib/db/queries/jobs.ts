@@ -437,6 +437,25 @@ export async function requeueExpiredLeases(db: Knex): Promise<{ requeued: number
   });
 }
 
+/** The oldest queued job of the kind (null: none queued). */
+export async function findQueuedJobOfKind(db: Knex, { kind }: { kind: string }): Promise<number | null> {
+  const queued = await db('jobs').where({ kind, status: 'queued' }).orderBy('id').first('id');
+  return queued ? Number(queued.id) : null;
+}
+
+/** A queued job due later than now + delayMs is brought forward to then (run_after never moves later). */
+export async function bringQueuedJobForward(db: Knex, { id, delayMs }: { id: number; delayMs: number }): Promise<void> {
+  await db('jobs')
+    .where({ id, status: 'queued' })
+    .update({ run_after: db.raw('LEAST(run_after, DATE_ADD(NOW(3), INTERVAL ? MICROSECOND))', [Math.max(0, delayMs) * 1000]) });
+}
+
+/** How many jobs of the kinds are queued or running. */
+export async function countOpenJobsOfKinds(db: Knex, { kinds }: { kinds: readonly string[] }): Promise<number> {
+  const row = await db('jobs').whereIn('status', ['queued', 'running']).whereIn('kind', kinds).count({ n: '*' }).first();
+  return Number(row?.n ?? 0);
+}
+
 /** A job just queued says so: stage queued, 0 %, "Waiting for a worker". */
 export async function markJobWaiting(db: Knex, id: number): Promise<void> {
   await db('jobs').where({ id }).update({ stage: 'queued', percent: 0, message: 'Waiting for a worker' });

@@ -119,6 +119,12 @@ export async function activeSuggestionModel(
   return r ? toStored(r) : null;
 }
 
+/** Whether the study has a model in use (read inside the caller's transaction). */
+export async function studyHasSuggestionModel({ studyId }: { studyId: number }, trx: Knex | Knex.Transaction = db): Promise<boolean> {
+  const s = await trx('studies').where({ id: studyId }).first('suggestion_model_id');
+  return s?.suggestion_model_id != null;
+}
+
 /** Whether raters see suggestions (after their vote), and the model in use. */
 export async function suggestionSettings({
   studyId,

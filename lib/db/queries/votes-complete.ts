@@ -1,8 +1,8 @@
 // The lead's "votes complete" e-mail (lib/notifications/votes-complete.ts): which runs are complete,
-// who leads them, which completions were already announced. No `server-only`: the worker reads it.
+// and the check's named lock. No `server-only`: the worker reads it. The leads and the notifications
+// already sent are in ./notifications.ts.
 import type { Knex } from 'knex';
 import { bidsName } from '@/lib/bids';
-import { parseJson, toJson } from '@/lib/db/knex';
 
 export type CompleteRun = {
   runId: number;
@@ -63,38 +63,6 @@ export async function getNamedLock(trx: Knex.Transaction, name: string): Promise
 
 export async function releaseNamedLock(trx: Knex.Transaction, name: string): Promise<void> {
   await trx.raw('SELECT RELEASE_LOCK(?)', [name]);
-}
-
-/** The active leads of the studies. */
-export async function listActiveLeads(
-  db: Knex,
-  { studyIds }: { studyIds: number[] },
-): Promise<Array<{ studyId: number; id: number; email: string; name: string }>> {
-  return db('study_members as m')
-    .join('users as u', 'u.id', 'm.user_id')
-    .whereIn('m.study_id', studyIds)
-    .where({ 'm.study_role': 'lead', 'u.active': true })
-    .select('m.study_id as studyId', 'u.id', 'u.email', 'u.name');
-}
-
-/** "userId|key" of the notifications of a kind sent to the users in the last `days` days. */
-export async function recentNotificationKeys(
-  db: Knex,
-  { kind, userIds, days }: { kind: string; userIds: number[]; days: number },
-): Promise<Set<string>> {
-  const done = await db('notifications')
-    .where({ kind })
-    .whereIn('user_id', userIds.concat(0))
-    .where('created_at', '>=', db.raw('NOW(3) - INTERVAL ? DAY', [days]))
-    .select('user_id', 'payload');
-  return new Set(done.map((d) => `${d.user_id}|${parseJson<{ key?: string }>(d.payload, {})?.key ?? ''}`));
-}
-
-export async function insertNotification(
-  db: Knex,
-  { userId, kind, payload }: { userId: number; kind: string; payload: unknown },
-): Promise<void> {
-  await db('notifications').insert({ user_id: userId, kind, payload: toJson(payload) });
 }
 
 /** True while some ready run still has an assignment not submitted. */

@@ -11,6 +11,7 @@
 import { randomBytes } from 'node:crypto';
 import { mkdir, readFile, rm, writeFile } from 'node:fs/promises';
 import path from 'node:path';
+import { findClusterColumns, recordClusterColumns, setClusterState } from '@/lib/db/queries/cluster-jobs';
 import { storageRoot } from '@/lib/storage';
 import { JobCancelled, JobError, isStopSignal } from '@/lib/jobs/errors';
 import type { JobContext } from '../types';
@@ -37,17 +38,9 @@ export function clusterPathFor(key: string, settings: SlurmSettings): string {
   return path.posix.join(settings.clusterStorageRoot, key);
 }
 
-interface ClusterColumns {
-  cluster_name: string | null;
-  cluster_job_id: string | null;
-}
-
 /** Updates the job row's cluster columns while this worker still owns the job. */
 async function record(ctx: JobContext<unknown>, values: Record<string, unknown>): Promise<void> {
-  await ctx
-    .db('jobs')
-    .where({ id: ctx.job.id, lease_owner: ctx.workerId, status: 'running' })
-    .update({ ...values, cluster_checked_at: ctx.db.raw('NOW(3)') });
+  await recordClusterColumns(ctx.db, { jobId: ctx.job.id, workerId: ctx.workerId, values });
 }
 
 async function lastLines(file: string, n = 5): Promise<string> {
@@ -103,7 +96,7 @@ export async function runOnSlurm(
   step: SlurmStep,
 ): Promise<{ folders: ClusterFolders; clusterJobId: string }> {
   const folders = clusterFolders(ctx.job.id, settings);
-  const row = (await ctx.db('jobs').where({ id: ctx.job.id }).first('cluster_name', 'cluster_job_id')) as ClusterColumns | undefined;
+  const row = await findClusterColumns(ctx.db, { jobId: ctx.job.id });
   let clusterJobId = row?.cluster_job_id ?? null;
   if (!clusterJobId && row?.cluster_name) {
     // a worker died between sbatch and storing the id: find its submission by the unique name
@@ -179,10 +172,7 @@ export async function runOnSlurm(
         () => ctx.logger.info(`job ${ctx.job.id}: cancelled cluster job ${clusterJobId}`),
         (e: unknown) => ctx.logger.warn(`job ${ctx.job.id}: scancel ${clusterJobId} failed: ${(e as Error).message}`),
       );
-      await ctx
-        .db('jobs')
-        .where({ id: ctx.job.id })
-        .update({ cluster_state: 'CANCELLED', cluster_checked_at: ctx.db.raw('NOW(3)') });
+      await setClusterState(ctx.db, { jobId: ctx.job.id, state: 'CANCELLED' });
     }
     throw err;
   }

@@ -14,6 +14,13 @@ import { readNiftiFile, type NiftiImage } from '@/lib/nifti';
 import { assignRaters, type AssignRatersResult } from '@/lib/runs/assign-raters';
 import { afterAssignmentsCreated } from '@/lib/jobs/queue-notifications';
 import { componentRows, decompositionSummary, storeDecomposition, writeDecompositionFiles } from '@/lib/runs/ingest-decomposition';
+import {
+  findDecompositionProtocol,
+  findRunToDecompose,
+  markRunProcessingWhileOwned,
+  type ProtocolRow,
+} from '@/lib/db/queries/decompose-run';
+import { recordStorageFault } from '@/lib/db/queries/storage-faults';
 import { pathFor, removeKey } from '@/lib/storage';
 import { storageFaultKind } from '@/lib/storage/faults';
 import { JobError, PermanentJobError } from '@/lib/jobs/errors';
@@ -36,15 +43,6 @@ const NEXT_STAGE: Record<string, string> = {
   ica: 'ica',
   orient: 'features',
 };
-
-interface ProtocolRow {
-  drop_volumes: number;
-  dim_method: 'iid-mdl' | 'iid-aic' | 'laplace' | 'aic' | 'mdl' | 'fixed' | 'variance';
-  fixed_components: number | null;
-  variance_fraction: number | null;
-  variance_norm: boolean;
-  detrend: boolean;
-}
 
 /** The engine's options from the study protocol with the payload's overrides on top. */
 export function decomposeOptionsFor(protocol: ProtocolRow, o: DecomposePayload['decompositionOptions'] = {}): DecomposeOptions {
@@ -136,24 +134,15 @@ export const decomposeKind = defineJobKind({
   async run(ctx) {
     const { db, payload } = ctx;
     const runId = payload.runId;
-    const run = await db('runs')
-      .select('id', 'study_id', 'file_key', 'mask_key', 'motion_key', 'motion_order', 'motion_rotation_units', 'status')
-      .where({ id: runId })
-      .first();
+    const run = await findRunToDecompose(db, { runId });
     if (!run) throw new PermanentJobError(`Run ${runId} no longer exists.`);
-    const protocol = (await db('studies')
-      .select('drop_volumes', 'dim_method', 'fixed_components', 'variance_fraction', 'variance_norm', 'detrend')
-      .where({ id: run.study_id })
-      .first()) as ProtocolRow | undefined;
+    const protocol = await findDecompositionProtocol(db, { studyId: run.study_id });
     if (!protocol) throw new PermanentJobError(`The study of run ${runId} no longer exists.`);
     const options = decomposeOptionsFor(protocol, payload.decompositionOptions);
 
     await ctx.progress('reading', 1);
     // only while this worker still holds the job: a worker that is stopping may have released it
-    await db('runs')
-      .where({ id: runId })
-      .whereExists(db('jobs').where({ id: ctx.job.id, status: 'running', lease_owner: ctx.workerId }).select(db.raw('1')))
-      .update({ status: 'processing', status_message: null });
+    await markRunProcessingWhileOwned(db, { runId, jobId: ctx.job.id, workerId: ctx.workerId });
     if (executorName() === 'slurm') {
       // the cluster reads the run from shared storage: the worker only submits, waits and imports
       let settings;
@@ -239,13 +228,11 @@ export const decomposeKind = defineJobKind({
       if (!fault) throw err;
       ctx.logger.error(`run ${runId}: storage fault while writing the results: ${(err as Error).message}`);
       // the admin's alert on the Facility page (same row as lib/errors.ts writes; the worker has no server-only imports)
-      await db('audit_log')
-        .insert({
-          action: 'storage.fault',
-          target_type: 'storage',
-          detail: JSON.stringify({ kind: fault, code: (err as { code?: string }).code, where: `decompose job ${ctx.job.id}` }),
-        })
-        .catch(() => undefined);
+      await recordStorageFault(db, {
+        kind: fault,
+        code: (err as { code?: string }).code,
+        where: `decompose job ${ctx.job.id}`,
+      }).catch(() => undefined);
       // people read this on the run: no file-system text (it names paths); retried, the admin is alerted
       throw new JobError(
         fault === 'full'

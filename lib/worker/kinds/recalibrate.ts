@@ -6,6 +6,7 @@
 import { assignDueRecalibrations } from '@/lib/calibration/assign-recalibrations';
 import { RECALIBRATE, recalibratePayloadSchema } from '@/lib/jobs/recalibrate-payload';
 import { ensureRecalibrationJob } from '@/lib/calibration/recalibration-job';
+import { anyStudyRecalibrates } from '@/lib/db/queries/calibration-rounds';
 import { defineJobKind } from '../types';
 
 export const recalibrateKind = defineJobKind({
@@ -14,8 +15,7 @@ export const recalibrateKind = defineJobKind({
   async run(ctx) {
     await ctx.progress('assigning', 1);
     const result = await assignDueRecalibrations(ctx.db);
-    if (ctx.payload.repeat && (await ctx.db('studies').whereNotNull('recalibration_weeks').first('id')))
-      await ensureRecalibrationJob(ctx.db);
+    if (ctx.payload.repeat && (await anyStudyRecalibrates(ctx.db))) await ensureRecalibrationJob(ctx.db);
     ctx.logger.info(`re-calibration: ${result.started.length} rater(s) got the calibration set again`);
     return { started: result.started.length };
   },

@@ -4,8 +4,8 @@
  * model (suggestions table). Queued after training and when a decomposition becomes ready.
  * Nothing to do (no model) is a success with scored = 0. Progress stages: reading, scoring.
  */
-import type { Knex } from 'knex';
-import { componentsToScore, insertSuggestions } from '@/lib/db/queries/suggestions';
+import type { Trx } from '@/lib/db/transaction';
+import { componentsToScore, insertSuggestions, studyHasSuggestionModel } from '@/lib/db/queries/suggestions';
 import { findActiveModel } from '@/lib/suggestions/active-model';
 import { scoreComponents } from '@/lib/suggestions/score-components';
 import { scoreSuggestionsPayloadSchema } from '@/lib/jobs/suggestion-payloads';
@@ -33,8 +33,7 @@ export const scoreSuggestionsKind = defineJobKind({
 });
 
 /** In the decompose job's commit: a new decomposition of a study with a model in use is scored. */
-export async function queueScoringOfNewRun(trx: Knex.Transaction, { studyId, runId }: { studyId: number; runId: number }): Promise<void> {
-  const s = await trx('studies').where({ id: studyId }).first('suggestion_model_id');
-  if (s?.suggestion_model_id == null) return;
+export async function queueScoringOfNewRun(trx: Trx, { studyId, runId }: { studyId: number; runId: number }): Promise<void> {
+  if (!(await studyHasSuggestionModel({ studyId }, trx))) return;
   await enqueueJob(trx, { kind: 'score-suggestions', payload: { studyId, runId }, studyId });
 }
