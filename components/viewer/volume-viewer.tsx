@@ -2,6 +2,7 @@
 import { useEffect, useLayoutEffect, useRef, useState } from 'react';
 import { DRAG_MODE, NVImage, Niivue, SHOW_RENDER, SLICE_TYPE, type NiiVueLocation } from '@niivue/niivue';
 import { DUSK, EMBER, NONE } from './colormaps';
+import { blendMapsOnCpu } from './cpu-blend';
 import { findClusters, maxAbs, type Cluster, type Sign } from '@/lib/desk/clusters';
 import { mosaicSpec, planMosaic } from '@/lib/desk/mosaic';
 
@@ -73,14 +74,16 @@ type Vol = Niivue['volumes'][number];
  * Blends the map layer again (another frame, threshold, scale, sign or opacity) and draws once.
  * Only the map layer: Niivue's own setFrame4D / updateGLVolume / setOpacity refresh every layer,
  * and the underlay's layer (with the gradients for 3D rendering, which the desk never shows) cost
- * most of a switch in software WebGL. Niivue allocates a new map texture on each blend without
- * freeing the old one, so the old one is freed here (a rater switches thousands of times).
+ * most of a switch in software WebGL. The desk's maps are blended on the CPU into the texture
+ * Niivue already made (cpu-blend.ts, the same colours); anything else goes through Niivue's GPU
+ * blend, which allocates a new map texture without freeing the old one, so it is freed here.
  */
 function blendMaps(nv: Niivue) {
-  const maps = nv.volumes[1];
-  const old = nv.overlayTexture;
-  nv.refreshLayers(maps, 1);
-  if (old && old !== nv.overlayTexture) nv.gl.deleteTexture(old);
+  if (!blendMapsOnCpu(nv)) {
+    const old = nv.overlayTexture;
+    nv.refreshLayers(nv.volumes[1], 1);
+    if (old && old !== nv.overlayTexture) nv.gl.deleteTexture(old);
+  }
   nv.drawScene();
 }
 
