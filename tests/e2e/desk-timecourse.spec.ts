@@ -37,6 +37,7 @@ test.beforeAll(() => {
 async function plotBox(page: Page) {
   const over = page.getByTestId('timecourse-chart').locator('.u-over');
   await expect(over).toBeVisible();
+  await over.scrollIntoViewIfNeeded(); // the mouse reaches only what is in the viewport
   const box = await over.boundingBox();
   expect(box, 'the time course has a plot area').not.toBeNull();
   return box!;
