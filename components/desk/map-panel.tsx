@@ -157,19 +157,22 @@ export const MapPanel = memo(function MapPanel({
           {SIGN_TEXT[overlay.sign]} (V)
         </button>
         {structuralUrl ? (
-          <div role="group" aria-label="Underlay" className="flex overflow-hidden rounded border border-line-strong">
-            {(['mean', 'structural'] as const).map((u) => (
-              <button
-                key={u}
-                type="button"
-                aria-pressed={prefs.underlay === u}
-                onClick={() => setPrefs((p) => ({ ...p, underlay: u }))}
-                data-testid={`underlay-${u}`}
-                className={`px-2 py-0.5 ${prefs.underlay === u ? 'bg-ground-raised text-ink' : 'text-ink-muted'}`}
-              >
-                {u === 'mean' ? 'mean image' : 'structural'}
-              </button>
-            ))}
+          <div className="flex items-center gap-1">
+            underlay (B)
+            <div role="group" aria-label="Underlay" className="flex overflow-hidden rounded border border-line-strong">
+              {(['mean', 'structural'] as const).map((u) => (
+                <button
+                  key={u}
+                  type="button"
+                  aria-pressed={prefs.underlay === u}
+                  onClick={() => setPrefs((p) => ({ ...p, underlay: u }))}
+                  data-testid={`underlay-${u}`}
+                  className={`px-2 py-0.5 ${prefs.underlay === u ? 'bg-ground-raised text-ink' : 'text-ink-muted'}`}
+                >
+                  {u === 'mean' ? 'mean image' : 'structural'}
+                </button>
+              ))}
+            </div>
           </div>
         ) : null}
         <button

@@ -4,7 +4,7 @@ import { nextPlane, nextSign, stepOpacity, type DeskPrefs } from '@/lib/desk/pre
 
 /**
  * The desk's keys that change only what is shown (the same on the desk and the read-only run
- * view): moving between components, the map's threshold, layout, plane, zoom, pan, overlay.
+ * view): moving between components, the map's threshold, layout, plane, zoom, pan, overlay, underlay.
  * Returns false for commands that are not about viewing (labels, notes, submit…).
  */
 export function applyViewCommand(
@@ -17,6 +17,8 @@ export function applyViewCommand(
     index: number;
     goTo: (i: number) => void;
     openGoTo: () => void;
+    /** The run has a structural underlay (else the underlay key does nothing). */
+    hasStructural?: boolean;
   },
 ): boolean {
   const { setPrefs, viewer, order, index, goTo } = ctx;
@@ -51,6 +53,9 @@ export function applyViewCommand(
       return true;
     case 'overlay':
       setPrefs((p) => ({ ...p, overlay: { ...p.overlay, visible: !p.overlay.visible } }));
+      return true;
+    case 'underlay':
+      if (ctx.hasStructural) setPrefs((p) => ({ ...p, underlay: p.underlay === 'structural' ? 'mean' : 'structural' }));
       return true;
     case 'sign':
       setPrefs((p) => ({ ...p, overlay: { ...p.overlay, sign: nextSign(p.overlay.sign) } }));

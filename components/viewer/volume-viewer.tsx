@@ -2,6 +2,7 @@
 import { useEffect, useLayoutEffect, useRef, useState } from 'react';
 import { DRAG_MODE, NVImage, Niivue, SHOW_RENDER, SLICE_TYPE, type NiiVueLocation } from '@niivue/niivue';
 import { DUSK, EMBER, NONE } from './colormaps';
+import { blendMapsOnCpu } from './cpu-blend';
 import { findClusters, maxAbs, type Cluster, type Sign } from '@/lib/desk/clusters';
 import { mosaicSpec, planMosaic } from '@/lib/desk/mosaic';
 
@@ -70,17 +71,20 @@ function afterPaint(fn: () => void) {
 type Vol = Niivue['volumes'][number];
 
 /**
- * Shows another frame of the component maps. Only the map layer is blended again: Niivue's own
- * setFrame4D refreshes every layer, and the mean image's layer (with the gradients for 3D
- * rendering, which the desk never shows) cost most of a switch in software WebGL.
+ * Blends the map layer again (another frame, threshold, scale, sign or opacity) and draws once.
+ * Only the map layer: Niivue's own setFrame4D / updateGLVolume / setOpacity refresh every layer,
+ * and the underlay's layer (with the gradients for 3D rendering, which the desk never shows) cost
+ * most of a switch in software WebGL. The desk's maps are blended on the CPU into the texture
+ * Niivue already made (cpu-blend.ts, the same colours); anything else goes through Niivue's GPU
+ * blend, which allocates a new map texture without freeing the old one, so it is freed here.
  */
-function showFrame(nv: Niivue, frame: number) {
-  const maps = nv.volumes[1];
-  if (maps.frame4D === frame) return nv.drawScene();
-  maps.frame4D = frame;
-  nv.refreshLayers(maps, 1);
+function blendMaps(nv: Niivue) {
+  if (!blendMapsOnCpu(nv)) {
+    const old = nv.overlayTexture;
+    nv.refreshLayers(nv.volumes[1], 1);
+    if (old && old !== nv.overlayTexture) nv.gl.deleteTexture(old);
+  }
   nv.drawScene();
-  nv.createOnLocationChange();
 }
 
 /** One frame of a 4D image as a voxel reader in native order (scaled to z). */
@@ -136,8 +140,9 @@ function goToCluster(nv: Niivue, frame: number, i: number, draw: boolean, cluste
     peakZ: cl.peakZ,
     peakMm: mm,
   });
+  if (!draw) return; // the caller draws (and reports the location) once, after the new frame is blended
   nv.createOnLocationChange();
-  if (draw) nv.drawScene();
+  nv.drawScene();
 }
 
 /**
@@ -289,40 +294,43 @@ export default function VolumeViewer(props: VolumeViewerProps) {
     return () => ro.disconnect();
   }, [props.layout, plane, ready]);
 
-  // threshold and scale
-  useEffect(() => {
-    const nv = nvRef.current;
-    if (!nv || !ready || nv.volumes.length < 2) return;
-    const v = nv.volumes[1];
-    v.cal_min = props.threshold;
-    v.cal_max = Math.max(props.maxZ, props.threshold + 0.5);
-    clustersRef.current.frame = -1; // clusters depend on the threshold
-    clustersOf(nv, latest.current.frame, clustersRef, latest);
-    nv.updateGLVolume();
-  }, [props.threshold, props.maxZ, ready]);
-
-  // overlay: on/off, opacity, which sign
+  // the map layer: the component's frame, the threshold and scale, sign and opacity. A switch
+  // usually changes the frame and the scale (it follows the component's peak) together: one blend,
+  // one draw, one paint.
   const overlay = props.overlay ?? DEFAULT_OVERLAY;
-  useEffect(() => {
-    const nv = nvRef.current;
-    if (!nv || !ready || nv.volumes.length < 2) return;
-    const v = nv.volumes[1];
-    v.colormap = overlay.sign === 'negative' ? 'quorum-none' : 'quorum-ember';
-    v.colormapNegative = overlay.sign === 'positive' ? '' : 'quorum-dusk';
-    clustersRef.current.frame = -1;
-    clustersOf(nv, latest.current.frame, clustersRef, latest);
-    nv.setOpacity(1, overlay.visible ? overlay.opacity : 0);
-  }, [overlay.visible, overlay.opacity, overlay.sign, ready]);
-
-  // component frame: the only thing that changes between components
   const followPeak = props.followPeak ?? true;
   const firstPainted = useRef(false);
+  const shown = useRef<{ frame: number; key: string; clusterKey: string } | null>(null);
+  const maxZ = Math.max(props.maxZ, props.threshold + 0.5);
   useEffect(() => {
     const nv = nvRef.current;
     if (!nv || !ready || nv.volumes.length < 2) return;
     const frame = props.frame;
+    const v = nv.volumes[1];
+    const clusterKey = `${props.threshold}|${overlay.sign}`;
+    const key = `${clusterKey}|${maxZ}|${overlay.visible}|${overlay.opacity}`;
+    const before = shown.current;
+    if (before?.key !== key) {
+      v.cal_min = props.threshold;
+      v.cal_max = maxZ;
+      v.colormap = overlay.sign === 'negative' ? 'quorum-none' : 'quorum-ember';
+      v.colormapNegative = overlay.sign === 'positive' ? '' : 'quorum-dusk';
+      v.opacity = overlay.visible ? overlay.opacity : 0;
+    }
+    // clusters depend on the threshold and sign (not on the scale's top)
+    if (before && before.clusterKey !== clusterKey) clustersRef.current.frame = -1;
+    const frameChanged = before?.frame !== frame;
+    shown.current = { frame, key, clusterKey };
+    if (!frameChanged) {
+      clustersOf(nv, frame, clustersRef, latest);
+      blendMaps(nv);
+      return;
+    }
+    v.frame4D = frame;
     if (followPeak) goToCluster(nv, frame, 0, false, clustersRef, latest);
-    showFrame(nv, frame);
+    else clustersOf(nv, frame, clustersRef, latest);
+    blendMaps(nv);
+    nv.createOnLocationChange();
     latest.current.onDrawn?.(frame, 'issued');
     afterPaint(() => {
       if (!firstPainted.current) {
@@ -333,7 +341,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
       }
       latest.current.onDrawn?.(frame, 'painted');
     });
-  }, [props.frame, ready, followPeak]);
+  }, [props.frame, props.threshold, maxZ, overlay.sign, overlay.visible, overlay.opacity, ready, followPeak]);
 
   // the desk's keys; the zoom is written on the canvas (data-zoom) for people's tools and the browser tests
   useEffect(() => {

@@ -22,6 +22,7 @@ export type DeskCommand =
   | { type: 'goTo' }
   | { type: 'nextCluster' }
   | { type: 'overlay' }
+  | { type: 'underlay' }
   | { type: 'sign' }
   | { type: 'opacityDown' }
   | { type: 'opacityUp' }
@@ -36,7 +37,7 @@ export type DeskCommand =
 
 /** The key that sets each known label; other labels get their first free letter. */
 const LABEL_KEYS: Record<string, string> = { signal: 's', noise: 'n', uncertain: 'u' };
-const RESERVED = new Set(['j', 'k', 'e', 'l', 'a', 'p', 'o', 'v', 'm', 'g', 'f']);
+const RESERVED = new Set(['j', 'k', 'e', 'l', 'a', 'p', 'o', 'v', 'm', 'g', 'f', 'b']);
 
 export function labelKeys(labelSet: string[]): Record<string, string> {
   const used = new Set<string>();
@@ -77,6 +78,8 @@ export function commandFor(
       return { type: 'nextCluster' };
     case 'o':
       return { type: 'overlay' };
+    case 'b':
+      return { type: 'underlay' };
     case 'v':
       return { type: 'sign' };
     case '{':
@@ -171,6 +174,7 @@ export function helpRows(
         { keys: ['+', '−', '0'], does: 'Zoom in / out / reset' },
         { keys: ['Shift', 'arrows'], does: 'Pan (or drag with the right button)' },
         { keys: ['O'], does: 'Map on / off' },
+        { keys: ['B'], does: 'Underlay: mean image ↔ structural (when attached)' },
         { keys: ['{', '}'], does: 'Map opacity down / up' },
         { keys: ['V'], does: 'Both signs → positive → negative' },
         { keys: ['L'], does: 'Three planes ↔ mosaic' },

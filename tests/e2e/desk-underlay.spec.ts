@@ -76,6 +76,16 @@ test('a lead attaches a structural image on the run grid; the rater switches the
   await expect(page.getByTestId('viewer-error')).toHaveCount(0);
   await page.getByTestId('underlay-mean').click();
   await expect(page.getByTestId('viewer-ready')).toHaveAttribute('data-underlay', 'mean');
+  // the B key does the same (listed in the help overlay)
+  await desk.press('b');
+  await expect(page.getByTestId('underlay-structural')).toHaveAttribute('aria-pressed', 'true');
+  await expect(page.getByTestId('viewer-ready')).toHaveAttribute('data-underlay', 'structural');
+  await desk.press('b');
+  await expect(page.getByTestId('viewer-ready')).toHaveAttribute('data-underlay', 'mean');
+  await desk.press('?');
+  await expect(page.getByTestId('help-overlay')).toContainText('Underlay: mean image ↔ structural');
+  await desk.press('Escape');
+  await expect(page.getByTestId('help-overlay')).toHaveCount(0);
   expect(mapRequests.length, 'switching the underlay does not fetch the maps again').toBe(before);
   // the map still follows the components
   await desk.press('j');

@@ -55,6 +55,26 @@ test('a lead reconciles a disagreement with a reason, and the agreement page sho
   await expect(page.getByTestId('reconcile-votes')).toContainText('Signal');
   await expect(page.getByTestId('timecourse-chart')).toBeVisible();
 
+  // the desk's map panel offers the run's structural underlay here too (issue 14); the structural
+  // image is the run's own mean image, attached the way the upload leaves it (key and name on the run)
+  await expect(page.getByTestId('viewer-ready')).toHaveAttribute('data-underlay', 'mean');
+  await expect(page.getByTestId('underlay-structural')).toHaveCount(0);
+  sql(
+    `UPDATE runs r JOIN decompositions d ON d.run_id = r.id AND d.is_current = 1
+        SET r.structural_key = d.mean_key, r.structural_name = 'sub-01_T1w_on-bold.nii.gz' WHERE r.id = ${run.runId}`,
+  );
+  await page.reload();
+  await page
+    .getByTestId('reconcile-list')
+    .getByRole('button', { name: new RegExp(`sub-${sub}_.*component 1 of ${run.k}`) })
+    .click();
+  await expect(page.getByTestId('viewer-ready')).toBeAttached({ timeout: 30_000 });
+  await page.getByTestId('underlay-structural').click();
+  await expect(page.getByTestId('underlay-structural')).toHaveAttribute('aria-pressed', 'true');
+  await expect(page.getByTestId('viewer-ready')).toHaveAttribute('data-underlay', 'structural');
+  await page.getByTestId('underlay-mean').click();
+  await expect(page.getByTestId('viewer-ready')).toHaveAttribute('data-underlay', 'mean');
+
   // the reason is required
   await page.getByTestId('decide-noise').click();
   await page.getByTestId('decide-submit').click();

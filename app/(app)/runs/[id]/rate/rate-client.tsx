@@ -161,7 +161,18 @@ export function RateClient({
       if (!cmd) return;
       if (help && cmd.type !== 'help' && cmd.type !== 'close') return;
       e.preventDefault();
-      if (applyViewCommand(cmd, { setPrefs, viewer: viewerApi.current, order, index, goTo, openGoTo: () => setGoToOpen(true) })) return;
+      if (
+        applyViewCommand(cmd, {
+          setPrefs,
+          viewer: viewerApi.current,
+          order,
+          index,
+          goTo,
+          openGoTo: () => setGoToOpen(true),
+          hasStructural: Boolean(run.structural),
+        })
+      )
+        return;
       switch (cmd.type) {
         case 'label':
           change(cmd.label === 'noise' ? { label: cmd.label } : { label: cmd.label, noiseKind: null }, cmd.label !== 'noise');
@@ -207,6 +218,7 @@ export function RateClient({
     return () => window.removeEventListener('keydown', onKey);
   }, [
     run.labelSet,
+    run.structural,
     run.noiseKinds,
     help,
     change,

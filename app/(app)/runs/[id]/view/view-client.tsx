@@ -73,13 +73,23 @@ export function ViewClient({
       if (help && cmd.type !== 'help' && cmd.type !== 'close') return;
       if (cmd.type === 'help') setHelp((h) => !h);
       else if (cmd.type === 'close') setHelp(false);
-      else if (!applyViewCommand(cmd, { setPrefs, viewer: viewerApi.current, order, index, goTo, openGoTo: () => setGoToOpen(true) }))
+      else if (
+        !applyViewCommand(cmd, {
+          setPrefs,
+          viewer: viewerApi.current,
+          order,
+          index,
+          goTo,
+          openGoTo: () => setGoToOpen(true),
+          hasStructural: Boolean(run.structural),
+        })
+      )
         return;
       e.preventDefault();
     };
     window.addEventListener('keydown', onKey);
     return () => window.removeEventListener('keydown', onKey);
-  }, [help, setPrefs, order, index, goTo]);
+  }, [help, setPrefs, order, index, goTo, run.structural]);
 
   if (!component) return <Notice kind="info">This run has no components.</Notice>;
   const files = `/api/runs/${run.runId}/view/files`;

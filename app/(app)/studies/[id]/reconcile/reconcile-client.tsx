@@ -215,6 +215,9 @@ export function ReconcileClient({
                 <MapPanel
                   meanUrl={`/api/reconcile/runs/${run.runId}/files/mean.nii.gz?d=${run.decompositionId}`}
                   componentsUrl={`/api/reconcile/runs/${run.runId}/files/components.nii.gz?d=${run.decompositionId}`}
+                  structuralUrl={
+                    run.structural ? `/api/reconcile/runs/${run.runId}/files/structural.nii.gz?s=${run.structural.version}` : null
+                  }
                   frame={component.idx - 1}
                   peakZ={component.features.peakZ == null ? null : Math.abs(Number(component.features.peakZ))}
                   prefs={prefs}
