@@ -4,6 +4,7 @@ import { DRAG_MODE, NVImage, Niivue, SHOW_RENDER, SLICE_TYPE, type NiiVueLocatio
 import { DUSK, EMBER, NONE } from './colormaps';
 import { findClusters, maxAbs, type Cluster, type Sign } from '@/lib/desk/clusters';
 import { mosaicSpec, planMosaic } from '@/lib/desk/mosaic';
+import type { MapFrames } from '@/lib/desk/use-desk-maps';
 
 export type ViewerLayout = 'multiplanar' | 'mosaic';
 export type ViewerPlane = 'axial' | 'coronal' | 'sagittal';
@@ -33,7 +34,12 @@ export type VolumeViewerProps = {
   meanUrl: string;
   /** Another image on the same grid to show under the map instead of the mean image (a structural image); swapped in place. */
   underlayUrl?: string | null;
-  componentsUrl: string;
+  /** The 4D component maps as one NIfTI file (Reconcile, calibration); or give `maps`. */
+  componentsUrl?: string;
+  /** The maps as the desk loads them, component by component (lib/desk/use-desk-maps.ts); the viewer waits for it. */
+  maps?: MapFrames | null;
+  /** With `maps`: whether the shown frame's map has arrived (until then no map is drawn and no readouts are given). */
+  frameReady?: boolean;
   /** 0-based component frame to show. */
   frame: number;
   /** |z| below this is transparent. */
@@ -69,14 +75,34 @@ function afterPaint(fn: () => void) {
 
 type Vol = Niivue['volumes'][number];
 
+/** Frames of a `maps` source already written into the viewer's 4D volume. */
+const filledFrames = new WeakMap<Niivue, Set<number>>();
+
+/**
+ * With a `maps` source: writes the frame's map into the 4D volume (once) when it has arrived.
+ * False while it has not (the frame stays all zero: no map is drawn, never another one's).
+ */
+function ensureFrame(nv: Niivue, frame: number, latest: LatestRef): boolean {
+  const maps = latest.current.maps;
+  if (!maps) return true;
+  let filled = filledFrames.get(nv);
+  if (!filled) filledFrames.set(nv, (filled = new Set()));
+  if (filled.has(frame)) return true;
+  const data = maps.frame(frame);
+  if (!data) return false;
+  (nv.volumes[1].img as Float32Array).set(data, frame * data.length);
+  filled.add(frame);
+  return true;
+}
+
 /**
  * Shows another frame of the component maps. Only the map layer is blended again: Niivue's own
  * setFrame4D refreshes every layer, and the mean image's layer (with the gradients for 3D
  * rendering, which the desk never shows) cost most of a switch in software WebGL.
  */
-function showFrame(nv: Niivue, frame: number) {
+function showFrame(nv: Niivue, frame: number, force = false) {
   const maps = nv.volumes[1];
-  if (maps.frame4D === frame) return nv.drawScene();
+  if (maps.frame4D === frame && !force) return nv.drawScene();
   maps.frame4D = frame;
   nv.refreshLayers(maps, 1);
   nv.drawScene();
@@ -107,6 +133,7 @@ type LatestRef = React.RefObject<VolumeViewerProps>;
 function clustersOf(nv: Niivue, frame: number, clustersRef: ClustersRef, latest: LatestRef) {
   const c = clustersRef.current;
   if (c.frame === frame) return c;
+  if (!ensureFrame(nv, frame, latest)) return { frame: -1, list: [], at: -1, maxAbsZ: null };
   const vol = nv.volumes[1];
   const { dims, at } = frameReader(vol, frame);
   const p = latest.current;
@@ -165,8 +192,9 @@ export default function VolumeViewer(props: VolumeViewerProps) {
 
   useEffect(() => {
     const canvas = canvasRef.current;
-    if (!canvas) return;
+    if (!canvas || (!props.componentsUrl && !props.maps)) return; // the desk's maps are on their way
     let cancelled = false;
+    clustersRef.current.frame = -1;
     const nv = new Niivue({
       backColor: [0.039, 0.047, 0.063, 1],
       crosshairColor: [0.31, 0.72, 0.69, 0.75],
@@ -191,11 +219,11 @@ export default function VolumeViewer(props: VolumeViewerProps) {
       const p = latest.current;
       const under = p.underlayUrl || p.meanUrl;
       underlayShown.current = under;
+      const maps = p.maps ? { url: 'components.nii', name: 'components.nii', buffer: p.maps.emptyVolume() } : null;
       await nv.loadVolumes([
         { url: under, name: 'underlay.nii.gz', colormap: 'gray' },
         {
-          url: p.componentsUrl,
-          name: 'components.nii.gz',
+          ...(maps ?? { url: p.componentsUrl ?? '', name: 'components.nii.gz' }),
           colormap: 'quorum-ember',
           colormapNegative: 'quorum-dusk',
           cal_min: p.threshold,
@@ -228,7 +256,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
         /* already gone */
       }
     };
-  }, [props.meanUrl, props.componentsUrl]);
+  }, [props.meanUrl, props.componentsUrl, props.maps]);
 
   // underlay: the mean image or a structural image on the same grid, swapped without reloading the maps
   const underlayUrl = props.underlayUrl || props.meanUrl;
@@ -317,12 +345,19 @@ export default function VolumeViewer(props: VolumeViewerProps) {
   // component frame: the only thing that changes between components
   const followPeak = props.followPeak ?? true;
   const firstPainted = useRef(false);
+  const shownEmpty = useRef(-1); // a frame drawn before its map arrived (redrawn once it has)
   useEffect(() => {
     const nv = nvRef.current;
     if (!nv || !ready || nv.volumes.length < 2) return;
     const frame = props.frame;
+    if (!ensureFrame(nv, frame, latest)) {
+      showFrame(nv, frame);
+      shownEmpty.current = frame;
+      return;
+    }
     if (followPeak) goToCluster(nv, frame, 0, false, clustersRef, latest);
-    showFrame(nv, frame);
+    showFrame(nv, frame, shownEmpty.current === frame);
+    shownEmpty.current = -1;
     latest.current.onDrawn?.(frame, 'issued');
     afterPaint(() => {
       if (!firstPainted.current) {
@@ -333,7 +368,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
       }
       latest.current.onDrawn?.(frame, 'painted');
     });
-  }, [props.frame, ready, followPeak]);
+  }, [props.frame, ready, followPeak, props.frameReady]);
 
   // the desk's keys; the zoom is written on the canvas (data-zoom) for people's tools and the browser tests
   useEffect(() => {

@@ -17,6 +17,7 @@ import { cancelJob, type DecompositionOptionsInput } from '@/lib/jobs';
 import { decompositionOptionsFor, queueDecomposition } from './queue-job';
 import { runForChange } from './upload';
 import type { DecomposeSettings } from './schema';
+import { deskMapsKey } from '@/lib/desk/map-store';
 
 type Actor = Pick<UserRow, 'id' | 'role'>;
 
@@ -140,7 +141,7 @@ export async function deleteRun({
       throw new AppError('conflict', message, { confirmVotes: [message] });
     }
     const decompositions = await trx('decompositions').where({ run_id: runId }).select('components_key', 'mean_key', 'mask_key');
-    for (const d of decompositions) keys.push(d.components_key, d.mean_key, d.mask_key);
+    for (const d of decompositions) keys.push(d.components_key, d.components_key && deskMapsKey(d.components_key), d.mean_key, d.mask_key);
     await recordAudit(
       {
         actorId: user.id,
