@@ -75,24 +75,25 @@ function afterPaint(fn: () => void) {
 
 type Vol = Niivue['volumes'][number];
 
-/** Frames of a `maps` source already written into the viewer's 4D volume. */
-const filledFrames = new WeakMap<Niivue, Set<number>>();
+/** With a `maps` source: which component's map the one-frame map volume holds (-1: none, all zero). */
+const heldFrame = new WeakMap<Niivue, number>();
+/** Which component's map is on the GPU (the 4D file: its frame; `maps`: the held map). */
+const shownFrame = new WeakMap<Niivue, number>();
 
 /**
- * With a `maps` source: writes the frame's map into the 4D volume (once) when it has arrived.
- * False while it has not (the frame stays all zero: no map is drawn, never another one's).
+ * With a `maps` source: writes the frame's map into the one-frame map volume when it has arrived;
+ * false while it has not (the volume is then all zero: no map is drawn, never another one's).
  */
 function ensureFrame(nv: Niivue, frame: number, latest: LatestRef): boolean {
   const maps = latest.current.maps;
   if (!maps) return true;
-  let filled = filledFrames.get(nv);
-  if (!filled) filledFrames.set(nv, (filled = new Set()));
-  if (filled.has(frame)) return true;
+  if (heldFrame.get(nv) === frame) return true;
   const data = maps.frame(frame);
-  if (!data) return false;
-  (nv.volumes[1].img as Float32Array).set(data, frame * data.length);
-  filled.add(frame);
-  return true;
+  const img = nv.volumes[1].img as Float32Array;
+  if (data) img.set(data);
+  else if (heldFrame.get(nv) !== -1) img.fill(0);
+  heldFrame.set(nv, data ? frame : -1);
+  return Boolean(data);
 }
 
 /**
@@ -100,10 +101,11 @@ function ensureFrame(nv: Niivue, frame: number, latest: LatestRef): boolean {
  * setFrame4D refreshes every layer, and the mean image's layer (with the gradients for 3D
  * rendering, which the desk never shows) cost most of a switch in software WebGL.
  */
-function showFrame(nv: Niivue, frame: number, force = false) {
+function showFrame(nv: Niivue, frame: number) {
   const maps = nv.volumes[1];
-  if (maps.frame4D === frame && !force) return nv.drawScene();
-  maps.frame4D = frame;
+  if (shownFrame.get(nv) === frame) return nv.drawScene();
+  shownFrame.set(nv, frame);
+  maps.frame4D = (maps.nFrame4D ?? 1) > 1 ? frame : 0; // the desk's map volume holds one frame
   nv.refreshLayers(maps, 1);
   nv.drawScene();
   nv.createOnLocationChange();
@@ -116,7 +118,7 @@ function frameReader(vol: Vol, frame: number) {
   const img = vol.img as ArrayLike<number>;
   const slope = hdr.scl_slope || 1;
   const inter = hdr.scl_inter || 0;
-  const off = frame * nx * ny * nz;
+  const off = img.length > nx * ny * nz ? frame * nx * ny * nz : 0; // the 4D file, or the desk's one-frame volume
   return { dims: [nx, ny, nz] as [number, number, number], at: (i: number) => img[off + i] * slope + inter };
 }
 
@@ -211,26 +213,36 @@ export default function VolumeViewer(props: VolumeViewerProps) {
       loadingText: '', // the component's own "Loading the run's maps…" says it once
     });
     nvRef.current = nv;
+    // the desk's underlay is fetched while the canvas is set up
+    const start = latest.current;
+    const underFirst = start.maps
+      ? NVImage.loadFromUrl({ url: start.underlayUrl || start.meanUrl, name: 'underlay.nii.gz', colormap: 'gray' })
+      : null;
+    underFirst?.catch(() => undefined); // reported below, once awaited
     (async () => {
       await nv.attachToCanvas(canvas);
       nv.addColormap('quorum-ember', EMBER);
       nv.addColormap('quorum-dusk', DUSK);
       nv.addColormap('quorum-none', NONE);
       const p = latest.current;
-      const under = p.underlayUrl || p.meanUrl;
+      const under = p.underlayUrl || p.meanUrl; // the same as underFirst's
       underlayShown.current = under;
-      const maps = p.maps ? { url: 'components.nii', name: 'components.nii', buffer: p.maps.emptyVolume() } : null;
-      await nv.loadVolumes([
-        { url: under, name: 'underlay.nii.gz', colormap: 'gray' },
-        {
-          ...(maps ?? { url: p.componentsUrl ?? '', name: 'components.nii.gz' }),
-          colormap: 'quorum-ember',
-          colormapNegative: 'quorum-dusk',
-          cal_min: p.threshold,
-          cal_max: p.maxZ,
-          frame4D: p.frame,
-        },
-      ]);
+      const look = { colormap: 'quorum-ember', colormapNegative: 'quorum-dusk', cal_min: p.threshold, cal_max: p.maxZ, frame4D: p.frame };
+      if (p.maps) {
+        // the desk's maps: a one-frame volume made here, holding the shown map (ensureFrame)
+        const [underImg, img] = await Promise.all([
+          underFirst!,
+          NVImage.loadFromUrl({ url: 'components.nii', name: 'components.nii', buffer: p.maps.emptyVolume(), ...look, frame4D: 0 }),
+        ]);
+        if (cancelled) return;
+        nv.addVolume(underImg);
+        nv.addVolume(img);
+      } else {
+        await nv.loadVolumes([
+          { url: under, name: 'underlay.nii.gz', colormap: 'gray' },
+          { url: p.componentsUrl ?? '', name: 'components.nii.gz', ...look },
+        ]);
+      }
       if (cancelled) return;
       nv.onLocationChange = (raw: unknown) => {
         const loc = raw as NiiVueLocation;
@@ -345,19 +357,16 @@ export default function VolumeViewer(props: VolumeViewerProps) {
   // component frame: the only thing that changes between components
   const followPeak = props.followPeak ?? true;
   const firstPainted = useRef(false);
-  const shownEmpty = useRef(-1); // a frame drawn before its map arrived (redrawn once it has)
   useEffect(() => {
     const nv = nvRef.current;
     if (!nv || !ready || nv.volumes.length < 2) return;
     const frame = props.frame;
     if (!ensureFrame(nv, frame, latest)) {
-      showFrame(nv, frame);
-      shownEmpty.current = frame;
+      showFrame(nv, -1); // no map until it arrives
       return;
     }
     if (followPeak) goToCluster(nv, frame, 0, false, clustersRef, latest);
-    showFrame(nv, frame, shownEmpty.current === frame);
-    shownEmpty.current = -1;
+    showFrame(nv, frame);
     latest.current.onDrawn?.(frame, 'issued');
     afterPaint(() => {
       if (!firstPainted.current) {

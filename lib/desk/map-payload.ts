@@ -4,7 +4,7 @@
  * the same bytes).
  *
  * Layout (once per decomposition): the grid, the voxels that carry a map value, and a NIfTI-1
- * header template the browser turns into the viewer's 4D volume.
+ * header template the browser turns into the viewer's map volume.
  *   "QDL1" · u32 k · u32 nx · u32 ny · u32 nz · u32 nIn · u32 headerBytes · header · mask bits
  *   (bit i of byte i>>3 set = voxel i, x fastest, carries a value; LSB first)
  *
@@ -167,19 +167,13 @@ export function expandMap(layout: MapLayout, maps: QuantisedMaps, c: number, out
 }
 
 /**
- * The viewer's 4D volume as a single-file NIfTI-1: the layout's header with dim[0] = 4 and
- * dim[4] = k, followed by k zeroed float32 frames (the maps are written in as they arrive).
+ * The viewer's map volume as a single-file NIfTI-1: the layout's header (one float32 volume on the
+ * grid) and zeroed voxels; the viewer writes the shown map into it.
  */
-export function emptyMapsNifti(layout: MapLayout): ArrayBuffer {
+export function emptyMapVolume(layout: MapLayout): ArrayBuffer {
   const [nx, ny, nz] = layout.dims;
   const hdr = layout.niftiHeader;
-  const buf = new ArrayBuffer(hdr.byteLength + nx * ny * nz * layout.k * 4);
-  const bytes = new Uint8Array(buf);
-  bytes.set(hdr);
-  const view = new DataView(buf);
-  // nifti1.h: dim[] (short[8]) at byte 40, vox_offset (float) at 108 — see lib/nifti/header-layout.ts
-  view.setInt16(40, 4, true);
-  view.setInt16(48, layout.k, true);
-  view.setFloat32(108, hdr.byteLength, true);
+  const buf = new ArrayBuffer(hdr.byteLength + nx * ny * nz * 4);
+  new Uint8Array(buf).set(hdr);
   return buf;
 }

@@ -5,13 +5,13 @@
  * the background. A component the rater jumps to before it arrived is fetched ahead of the queue.
  */
 import { useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react';
-import { decodeLayout, decodeMaps, emptyMapsNifti, expandMap, type MapLayout, type QuantisedMaps } from './map-payload';
+import { decodeLayout, decodeMaps, emptyMapVolume, expandMap, type MapLayout, type QuantisedMaps } from './map-payload';
 
 /** What the viewer needs from the loaded maps. */
 export type MapFrames = {
   /** Number of maps. */
   k: number;
-  /** The viewer's 4D volume (NIfTI-1, float32), zero until maps are written into it. */
+  /** The viewer's map volume (NIfTI-1, one float32 frame on the grid, zero); the viewer writes the shown map into it. */
   emptyVolume: () => ArrayBuffer;
   /** Frame `i`'s z-map on the whole grid (0-based), or null while it has not arrived. */
   frame: (i: number) => Float32Array | null;
@@ -83,9 +83,12 @@ export function useDeskMaps(base: string | null, version: number, frame: number)
     const nextChunk = (): [number, number] | null => {
       const first = fetchOrder(s!.layout.k, want.current).find((i) => !s!.got[i] && !pending.has(i));
       if (first === undefined) return null;
-      let to = first;
-      while (to + 1 < s!.layout.k && to - first + 1 < CHUNK && !s!.got[to + 1] && !pending.has(to + 1)) to++;
-      return [first, to];
+      const missing = (i: number) => i >= 0 && i < s!.layout.k && !s!.got[i] && !pending.has(i);
+      // grow the chunk away from the shown frame
+      let [from, to] = [first, first];
+      if (first < want.current) while (first - from + 1 < CHUNK && missing(from - 1)) from--;
+      else while (to - first + 1 < CHUNK && missing(to + 1)) to++;
+      return [from, to];
     };
     const pump = () => {
       if (!s || abort.signal.aborted) return;
@@ -126,7 +129,7 @@ export function useDeskMaps(base: string | null, version: number, frame: number)
     if (!store) return null;
     return {
       k: store.layout.k,
-      emptyVolume: () => emptyMapsNifti(store.layout),
+      emptyVolume: () => emptyMapVolume(store.layout),
       frame: (i) => {
         const g = store.got[i];
         return g ? expandMap(store.layout, g.maps, g.c) : null;

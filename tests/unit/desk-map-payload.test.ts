@@ -3,10 +3,10 @@
 // Checks: values come back within the quantisation bound max|z| / 65534 (rounding to the nearest of
 // 65535 evenly spaced levels: half a step, common practice, no source); each map's largest |z| comes
 // back exact (it is stored as ±32767); voxels land on the same grid indices and everything outside
-// the mask is exactly 0; the 4D NIfTI the viewer loads has the components' grid, read with the
+// the mask is exactly 0; the NIfTI volume the viewer loads has the components' grid, read with the
 // project's own NIfTI reader (checked against nibabel in nifti-reader.test.ts).
 import { describe, expect, it } from 'vitest';
-import { decodeLayout, decodeMaps, emptyMapsNifti, encodeLayout, encodeMaps, expandMap, quantiseMap } from '@/lib/desk/map-payload';
+import { decodeLayout, decodeMaps, emptyMapVolume, encodeLayout, encodeMaps, expandMap, quantiseMap } from '@/lib/desk/map-payload';
 import { encodeDeskMaps } from '@/lib/desk/map-store';
 import { decodeNifti, diagonalAffine, parseNiftiHeader, affineMaxDiff } from '@/lib/nifti';
 import { createRng } from '@/lib/random';
@@ -109,18 +109,19 @@ describe('desk map payload', () => {
     expect(() => decodeLayout(bytes)).toThrow(/not a desk map layout/);
   });
 
-  it("the viewer's 4D volume is a valid NIfTI-1 on the components' grid with k zero frames", () => {
+  it("the viewer's map volume is a valid NIfTI-1 on the components' grid, one zero frame", () => {
     const { mask, maps } = phantomMaps(3, 5);
     const file = encodeDeskMaps({ dims, k: 3, grid, mask, readMap: (c) => maps.subarray(c * nVox, (c + 1) * nVox) });
     const layout = decodeLayout(splitFile(file).layout);
-    const buf = new Uint8Array(emptyMapsNifti(layout));
+    const buf = new Uint8Array(emptyMapVolume(layout));
     const h = parseNiftiHeader(buf);
-    expect(h.dims).toEqual([7, 6, 5, 3]);
+    expect(h.dims).toEqual([7, 6, 5]);
     expect(h.datatype).toBe('float32');
     expect(h.voxOffset).toBe(352);
     expect(affineMaxDiff(h.affine, grid.affine)).toBeLessThan(1e-5);
     const img = decodeNifti(buf);
-    expect(img.readVolume(2).every((v) => v === 0)).toBe(true);
+    expect(img.nt).toBe(1);
+    expect(img.readVolume(0).every((v) => v === 0)).toBe(true);
     expect(encodeLayout(layout)).toEqual(splitFile(file).layout);
   });
 });
