@@ -1,4 +1,3 @@
-import 'server-only';
 /**
  * The desk's map payload on disk (see map-payload.ts): one file beside the decomposition's
  * components file (`<components key>.deskmaps`), written when the decomposition is stored, or on
