@@ -32,7 +32,10 @@ export async function deskMapsResponse(
   };
   const file = await openDeskMaps(opts.componentsKey, opts.maskKey).catch((err: NodeJS.ErrnoException) => {
     if (err.code === 'ENOENT')
-      throw new AppError('not_found', `The component maps of run ${runId} are missing from storage. Ask the facility admin to check the uploads folder.`);
+      throw new AppError(
+        'not_found',
+        `The component maps of run ${runId} are missing from storage. Ask the facility admin to check the uploads folder.`,
+      );
     throw err;
   });
   if (range && range[1] > file.k) {

@@ -99,12 +99,23 @@ const building = new Map<string, Promise<void>>();
 /** Makes the desk maps from the stored NIfTI files when they are missing (one build per key at a time). */
 async function ensureDeskMaps(componentsKey: string, maskKey: string | null): Promise<void> {
   const key = deskMapsKey(componentsKey);
-  if (await stat(pathFor(key)).then(() => true, () => false)) return;
+  if (
+    await stat(pathFor(key)).then(
+      () => true,
+      () => false,
+    )
+  )
+    return;
   let job = building.get(key);
   if (!job) {
     job = (async () => {
       const image = await readNiftiFile(pathFor(componentsKey));
-      const mask = maskKey ? await readNiftiFile(pathFor(maskKey)).then((m) => m.readVolume(0), () => null) : null;
+      const mask = maskKey
+        ? await readNiftiFile(pathFor(maskKey)).then(
+            (m) => m.readVolume(0),
+            () => null,
+          )
+        : null;
       const frame = new Float32Array(image.voxelsPerVolume);
       await storeDeskMaps(componentsKey, {
         dims: [image.nx, image.ny, image.nz],

@@ -53,7 +53,10 @@ test('a component whose map has not arrived says so, then shows its own map', as
   await expect(page.getByTestId('colour-bar-max')).toHaveText('—');
   await expect(page.getByTestId('cluster-readout')).toHaveText('');
   await expect(page.getByTestId('crosshair-readout')).toHaveText(/z —$|click the map/);
-  expect(held.some((u) => new RegExp(`/maps/\\d+-${run.k}\\?`).test(u)), `the last map was asked for: ${held.join(', ')}`).toBe(true);
+  expect(
+    held.some((u) => new RegExp(`/maps/\\d+-${run.k}\\?`).test(u)),
+    `the last map was asked for: ${held.join(', ')}`,
+  ).toBe(true);
 
   // released: the component's own map, whose largest |z| is the component's peak |z| feature
   release();

@@ -42,7 +42,11 @@ const LEAD = () => users['lead@fernhollow.example'];
 const OBSERVER = () => users['observer@fernhollow.example'];
 
 const get = (route: typeof deskRoute, part: string, headers: Record<string, string> = {}) =>
-  callRoute(route.GET, { url: `/api/runs/${run.runId}/maps/${part}?d=${run.decompositionId}`, params: { id: String(run.runId), part }, headers });
+  callRoute(route.GET, {
+    url: `/api/runs/${run.runId}/maps/${part}?d=${run.decompositionId}`,
+    params: { id: String(run.runId), part },
+    headers,
+  });
 const bytesOf = async (res: Response) => new Uint8Array(await res.arrayBuffer());
 
 beforeAll(async () => {

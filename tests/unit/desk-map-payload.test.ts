@@ -101,7 +101,13 @@ describe('desk map payload', () => {
 
   it('a range message carries exactly the maps asked for', () => {
     const nIn = 3;
-    const bytes = encodeMaps({ from: 5, count: 2, nIn, scales: Float32Array.from([0.5, 0.25]), q: Int16Array.from([1, -2, 3, 4, 5, -32767]) });
+    const bytes = encodeMaps({
+      from: 5,
+      count: 2,
+      nIn,
+      scales: Float32Array.from([0.5, 0.25]),
+      q: Int16Array.from([1, -2, 3, 4, 5, -32767]),
+    });
     const m = decodeMaps(bytes);
     expect([m.from, m.count, m.nIn]).toEqual([5, 2, 3]);
     expect(Array.from(m.q)).toEqual([1, -2, 3, 4, 5, -32767]);
