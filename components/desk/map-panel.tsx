@@ -1,8 +1,9 @@
 'use client';
-import { memo, useCallback, useState } from 'react';
+import { memo, useCallback, useEffect, useState } from 'react';
 import { VolumeViewer, type FrameInfo, type ViewerApi, type ViewerLocation } from '@/components/viewer';
 import { ColourBar } from '@/components/viewer/colour-bar';
 import { nextSign, type DeskPrefs } from '@/lib/desk/prefs';
+import { useDeskMaps } from '@/lib/desk/use-desk-maps';
 
 const SIGN_TEXT = { both: '± both', positive: '+ only', negative: '− only' } as const;
 
@@ -14,6 +15,8 @@ const SIGN_TEXT = { both: '± both', positive: '+ only', negative: '− only' } 
 export const MapPanel = memo(function MapPanel({
   meanUrl,
   componentsUrl,
+  mapsUrl = null,
+  mapsVersion = 0,
   structuralUrl = null,
   frame,
   peakZ,
@@ -24,7 +27,12 @@ export const MapPanel = memo(function MapPanel({
   onError,
 }: {
   meanUrl: string;
-  componentsUrl: string;
+  /** The maps as one 4D NIfTI file; or give `mapsUrl`. */
+  componentsUrl?: string;
+  /** The desk's map payload (e.g. /api/runs/5/maps): the shown map first, the rest in the background. */
+  mapsUrl?: string | null;
+  /** With `mapsUrl`: the decomposition id (a new decomposition is a new address). */
+  mapsVersion?: number;
   /** The run's structural underlay, when a lead attached one: offered instead of the mean image. */
   structuralUrl?: string | null;
   frame: number;
@@ -44,6 +52,11 @@ export const MapPanel = memo(function MapPanel({
   );
   const [location, setLocation] = useState<ViewerLocation | null>(null);
   const [info, setInfo] = useState<FrameInfo | null>(null);
+  const desk = useDeskMaps(mapsUrl, mapsVersion, frame);
+  const waiting = Boolean(mapsUrl) && !desk.frameReady; // the shown component's map has not arrived yet
+  useEffect(() => {
+    if (desk.error) onError?.(desk.error);
+  }, [desk.error, onError]);
   const top = Math.max(prefs.threshold + 2, Math.min(peakZ || 8, 15));
   const shownInfo = info?.frame === frame ? info : null;
   const overlay = prefs.overlay;
@@ -53,7 +66,9 @@ export const MapPanel = memo(function MapPanel({
       <div className="relative h-[26rem] overflow-hidden rounded border border-line bg-ground-sunken">
         <VolumeViewer
           meanUrl={meanUrl}
-          componentsUrl={componentsUrl}
+          componentsUrl={mapsUrl ? undefined : componentsUrl}
+          maps={mapsUrl ? desk.maps : undefined}
+          frameReady={mapsUrl ? desk.frameReady : undefined}
           underlayUrl={structuralUrl && prefs.underlay === 'structural' ? structuralUrl : meanUrl}
           frame={frame}
           threshold={prefs.threshold}
@@ -67,6 +82,16 @@ export const MapPanel = memo(function MapPanel({
           onDrawn={onDrawn}
           onError={onError}
         />
+        {waiting && desk.maps && !desk.error ? (
+          <p
+            className="pointer-events-none absolute left-2 top-2 rounded bg-ground/80 px-2 py-1 text-xs text-ink-muted"
+            role="status"
+            data-testid="map-loading"
+            data-frame={frame}
+          >
+            Loading this component&apos;s map…
+          </p>
+        ) : null}
       </div>
       <div className="flex flex-wrap items-center gap-x-4 gap-y-1 text-xs text-ink-muted">
         <label className="flex items-center gap-2">
@@ -199,7 +224,7 @@ export const MapPanel = memo(function MapPanel({
         </span>
         <span className="ml-auto font-mono" data-testid="crosshair-readout">
           {location
-            ? `${location.mm.map((v) => v.toFixed(0)).join(', ')} mm · z ${location.z == null ? '—' : location.z.toFixed(2)}`
+            ? `${location.mm.map((v) => v.toFixed(0)).join(', ')} mm · z ${location.z == null || waiting ? '—' : location.z.toFixed(2)}`
             : 'click the map to read z'}
         </span>
       </div>

@@ -5,6 +5,7 @@ import { DUSK, EMBER, NONE } from './colormaps';
 import { blendMapsOnCpu } from './cpu-blend';
 import { findClusters, maxAbs, type Cluster, type Sign } from '@/lib/desk/clusters';
 import { mosaicSpec, planMosaic } from '@/lib/desk/mosaic';
+import type { MapFrames } from '@/lib/desk/use-desk-maps';
 
 export type ViewerLayout = 'multiplanar' | 'mosaic';
 export type ViewerPlane = 'axial' | 'coronal' | 'sagittal';
@@ -34,7 +35,12 @@ export type VolumeViewerProps = {
   meanUrl: string;
   /** Another image on the same grid to show under the map instead of the mean image (a structural image); swapped in place. */
   underlayUrl?: string | null;
-  componentsUrl: string;
+  /** The 4D component maps as one NIfTI file (Reconcile, calibration); or give `maps`. */
+  componentsUrl?: string;
+  /** The maps as the desk loads them, component by component (lib/desk/use-desk-maps.ts); the viewer waits for it. */
+  maps?: MapFrames | null;
+  /** With `maps`: whether the shown frame's map has arrived (until then no map is drawn and no readouts are given). */
+  frameReady?: boolean;
   /** 0-based component frame to show. */
   frame: number;
   /** |z| below this is transparent. */
@@ -70,6 +76,25 @@ function afterPaint(fn: () => void) {
 
 type Vol = Niivue['volumes'][number];
 
+/** With a `maps` source: which component's map the one-frame map volume holds (-1: none, all zero). */
+const heldFrame = new WeakMap<Niivue, number>();
+
+/**
+ * With a `maps` source: writes the frame's map into the one-frame map volume when it has arrived;
+ * false while it has not (the volume is then all zero: no map is drawn, never another one's).
+ */
+function ensureFrame(nv: Niivue, frame: number, latest: LatestRef): boolean {
+  const maps = latest.current.maps;
+  if (!maps) return true;
+  if (heldFrame.get(nv) === frame) return true;
+  const data = maps.frame(frame);
+  const img = nv.volumes[1].img as Float32Array;
+  if (data) img.set(data);
+  else if (heldFrame.get(nv) !== -1) img.fill(0);
+  heldFrame.set(nv, data ? frame : -1);
+  return Boolean(data);
+}
+
 /**
  * Blends the map layer again (another frame, threshold, scale, sign or opacity) and draws once.
  * Only the map layer: Niivue's own setFrame4D / updateGLVolume / setOpacity refresh every layer,
@@ -94,7 +119,7 @@ function frameReader(vol: Vol, frame: number) {
   const img = vol.img as ArrayLike<number>;
   const slope = hdr.scl_slope || 1;
   const inter = hdr.scl_inter || 0;
-  const off = frame * nx * ny * nz;
+  const off = img.length > nx * ny * nz ? frame * nx * ny * nz : 0; // the 4D file, or the desk's one-frame volume
   return { dims: [nx, ny, nz] as [number, number, number], at: (i: number) => img[off + i] * slope + inter };
 }
 
@@ -111,6 +136,7 @@ type LatestRef = React.RefObject<VolumeViewerProps>;
 function clustersOf(nv: Niivue, frame: number, clustersRef: ClustersRef, latest: LatestRef) {
   const c = clustersRef.current;
   if (c.frame === frame) return c;
+  if (!ensureFrame(nv, frame, latest)) return { frame: -1, list: [], at: -1, maxAbsZ: null };
   const vol = nv.volumes[1];
   const { dims, at } = frameReader(vol, frame);
   const p = latest.current;
@@ -170,8 +196,9 @@ export default function VolumeViewer(props: VolumeViewerProps) {
 
   useEffect(() => {
     const canvas = canvasRef.current;
-    if (!canvas) return;
+    if (!canvas || (!props.componentsUrl && !props.maps)) return; // the desk's maps are on their way
     let cancelled = false;
+    clustersRef.current.frame = -1;
     const nv = new Niivue({
       backColor: [0.039, 0.047, 0.063, 1],
       crosshairColor: [0.31, 0.72, 0.69, 0.75],
@@ -188,26 +215,36 @@ export default function VolumeViewer(props: VolumeViewerProps) {
       loadingText: '', // the component's own "Loading the run's maps…" says it once
     });
     nvRef.current = nv;
+    // the desk's underlay is fetched while the canvas is set up
+    const start = latest.current;
+    const underFirst = start.maps
+      ? NVImage.loadFromUrl({ url: start.underlayUrl || start.meanUrl, name: 'underlay.nii.gz', colormap: 'gray' })
+      : null;
+    underFirst?.catch(() => undefined); // reported below, once awaited
     (async () => {
       await nv.attachToCanvas(canvas);
       nv.addColormap('quorum-ember', EMBER);
       nv.addColormap('quorum-dusk', DUSK);
       nv.addColormap('quorum-none', NONE);
       const p = latest.current;
-      const under = p.underlayUrl || p.meanUrl;
+      const under = p.underlayUrl || p.meanUrl; // the same as underFirst's
       underlayShown.current = under;
-      await nv.loadVolumes([
-        { url: under, name: 'underlay.nii.gz', colormap: 'gray' },
-        {
-          url: p.componentsUrl,
-          name: 'components.nii.gz',
-          colormap: 'quorum-ember',
-          colormapNegative: 'quorum-dusk',
-          cal_min: p.threshold,
-          cal_max: p.maxZ,
-          frame4D: p.frame,
-        },
-      ]);
+      const look = { colormap: 'quorum-ember', colormapNegative: 'quorum-dusk', cal_min: p.threshold, cal_max: p.maxZ, frame4D: p.frame };
+      if (p.maps) {
+        // the desk's maps: a one-frame volume made here, holding the shown map (ensureFrame)
+        const [underImg, img] = await Promise.all([
+          underFirst!,
+          NVImage.loadFromUrl({ url: 'components.nii', name: 'components.nii', buffer: p.maps.emptyVolume(), ...look, frame4D: 0 }),
+        ]);
+        if (cancelled) return;
+        nv.addVolume(underImg);
+        nv.addVolume(img);
+      } else {
+        await nv.loadVolumes([
+          { url: under, name: 'underlay.nii.gz', colormap: 'gray' },
+          { url: p.componentsUrl ?? '', name: 'components.nii.gz', ...look },
+        ]);
+      }
       if (cancelled) return;
       nv.onLocationChange = (raw: unknown) => {
         const loc = raw as NiiVueLocation;
@@ -233,7 +270,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
         /* already gone */
       }
     };
-  }, [props.meanUrl, props.componentsUrl]);
+  }, [props.meanUrl, props.componentsUrl, props.maps]);
 
   // underlay: the mean image or a structural image on the same grid, swapped without reloading the maps
   const underlayUrl = props.underlayUrl || props.meanUrl;
@@ -319,14 +356,20 @@ export default function VolumeViewer(props: VolumeViewerProps) {
     }
     // clusters depend on the threshold and sign (not on the scale's top)
     if (before && before.clusterKey !== clusterKey) clustersRef.current.frame = -1;
-    const frameChanged = before?.frame !== frame;
-    shown.current = { frame, key, clusterKey };
+    // with the desk's maps, the held map (-1 until the shown component's map has arrived: no map, no readouts)
+    const held = ensureFrame(nv, frame, latest) ? frame : -1;
+    const frameChanged = before?.frame !== held;
+    shown.current = { frame: held, key, clusterKey };
+    if (held === -1) {
+      if (frameChanged || before?.key !== key) blendMaps(nv);
+      return;
+    }
     if (!frameChanged) {
       clustersOf(nv, frame, clustersRef, latest);
       blendMaps(nv);
       return;
     }
-    v.frame4D = frame;
+    v.frame4D = (v.nFrame4D ?? 1) > 1 ? frame : 0; // the desk's map volume holds one frame
     if (followPeak) goToCluster(nv, frame, 0, false, clustersRef, latest);
     else clustersOf(nv, frame, clustersRef, latest);
     blendMaps(nv);
@@ -341,7 +384,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
       }
       latest.current.onDrawn?.(frame, 'painted');
     });
-  }, [props.frame, props.threshold, maxZ, overlay.sign, overlay.visible, overlay.opacity, ready, followPeak]);
+  }, [props.frame, props.threshold, maxZ, overlay.sign, overlay.visible, overlay.opacity, ready, followPeak, props.frameReady]);
 
   // the desk's keys; the zoom is written on the canvas (data-zoom) for people's tools and the browser tests
   useEffect(() => {

@@ -43,3 +43,11 @@ export const RUN_FILES = ['components.nii.gz', 'mean.nii.gz', 'mask.nii.gz', 'st
 export const fileParamsSchema = runParamsSchema.extend({
   file: z.enum(RUN_FILES, { message: `must be one of ${RUN_FILES.join(', ')}` }),
 });
+
+/** GET /api/runs/:id/maps/:part — the desk's map payload: `layout`, or maps `<from>-<to>` (1-based, inclusive). */
+export const mapsParamsSchema = runParamsSchema.extend({
+  part: z
+    .string()
+    .max(16)
+    .regex(/^(layout|[1-9][0-9]{0,4}-[1-9][0-9]{0,4})$/, { message: 'must be "layout" or a component range such as 1-8' }),
+});

@@ -28,6 +28,7 @@ import type { DecompositionOptionsInput } from '@/lib/jobs';
 import { decompositionOptionsFor, queueDecomposition } from './queue-job';
 import { runForChange } from './upload';
 import type { DecomposeSettings } from './schema';
+import { deskMapsKey } from '@/lib/desk/map-store';
 
 type Actor = Pick<UserRow, 'id' | 'role'>;
 
@@ -142,7 +143,9 @@ export async function deleteRun({
       const message = `This run already has ${voteCount} vote${voteCount === 1 ? '' : 's'} from ${Number(votes.raters)} rater${Number(votes.raters) === 1 ? '' : 's'}. Deleting it removes them for good. Confirm a second time to delete.`;
       throw new AppError('conflict', message, { confirmVotes: [message] });
     }
-    keys.push(...(await listDecompositionKeys(trx, { runId })));
+    for (const d of await listDecompositionKeys(trx, { runId })) {
+      keys.push(d.componentsKey, d.componentsKey && deskMapsKey(d.componentsKey), d.meanKey, d.maskKey);
+    }
     await recordAudit(
       {
         actorId: user.id,

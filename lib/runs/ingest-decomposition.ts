@@ -12,6 +12,7 @@ import type { DecompositionResult } from '@/lib/decomposition/pipeline';
 import { writeNiftiFile, type NiftiHeader } from '@/lib/nifti';
 import { childKey, ensureDirFor, newKey, pathFor, removeKey } from '@/lib/storage';
 import { checksumOfKey } from '@/lib/storage/checksum';
+import { storeDeskMaps } from '@/lib/desk/map-store';
 
 export interface ComponentRow {
   /** 1..k by variance explained. */
@@ -100,6 +101,14 @@ export async function writeDecompositionFiles(
       datatype: 'uint8',
       data: result.mask,
       description: 'Quorum decomposition mask',
+    });
+    // the desk's map payload, made once here rather than on the first request
+    await storeDeskMaps(files.componentsKey, {
+      dims: [nx, ny, nz],
+      k: result.k,
+      grid: header,
+      readMap: (c) => maps.subarray(c * nVox, (c + 1) * nVox),
+      mask: result.mask,
     });
   } catch (err) {
     await removeKey(dirKey).catch(() => undefined);

@@ -64,12 +64,13 @@ test('a lead attaches a structural image on the run grid; the rater switches the
   await signIn(page, DEMO.rater);
   const mapRequests: string[] = [];
   page.on('request', (r) => {
-    if (r.url().includes('/components.nii.gz')) mapRequests.push(r.url());
+    if (/\/maps\/layout/.test(r.url())) mapRequests.push(r.url()); // the desk's map payload (issue 14)
   });
   const desk = new DeskPage(page);
   await desk.open(run.runId);
   await expect(page.getByTestId('viewer-ready')).toHaveAttribute('data-underlay', 'mean');
   const before = mapRequests.length;
+  expect(before, 'the desk loaded its map payload').toBeGreaterThan(0);
   await page.getByTestId('underlay-structural').click();
   await expect(page.getByTestId('underlay-structural')).toHaveAttribute('aria-pressed', 'true');
   await expect(page.getByTestId('viewer-ready')).toHaveAttribute('data-underlay', 'structural');

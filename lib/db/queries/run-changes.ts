@@ -52,9 +52,12 @@ export async function countRunVotes(trx: Knex.Transaction, { runId }: { runId: n
 }
 
 /** The storage keys of the run's decompositions (components, mean, mask). */
-export async function listDecompositionKeys(trx: Knex.Transaction, { runId }: { runId: number }): Promise<Array<string | null>> {
+export async function listDecompositionKeys(
+  trx: Knex.Transaction,
+  { runId }: { runId: number },
+): Promise<Array<{ componentsKey: string | null; meanKey: string | null; maskKey: string | null }>> {
   const decompositions = await trx('decompositions').where({ run_id: runId }).select('components_key', 'mean_key', 'mask_key');
-  return decompositions.flatMap((d) => [d.components_key, d.mean_key, d.mask_key]);
+  return decompositions.map((d) => ({ componentsKey: d.components_key, meanKey: d.mean_key, maskKey: d.mask_key }));
 }
 
 /** Deletes the run row (the schema's foreign keys take what hangs on it). */

@@ -365,7 +365,8 @@ export function RateClient({
         <div className="flex min-w-0 flex-col gap-2">
           <MapPanel
             meanUrl={`${files}/mean.nii.gz?d=${run.decompositionId}`}
-            componentsUrl={`${files}/components.nii.gz?d=${run.decompositionId}`}
+            mapsUrl={`/api/runs/${runId}/maps`}
+            mapsVersion={run.decompositionId}
             structuralUrl={run.structural ? `${files}/structural.nii.gz?s=${run.structural.version}` : null}
             frame={component.idx - 1}
             peakZ={peak}
