@@ -106,10 +106,17 @@ export function useDeskMaps(base: string | null, version: number, frame: number)
     kick.current = pump;
 
     (async () => {
-      const layout = decodeLayout(await fetchBytes(url('layout'), abort.signal));
+      // the layout and the shown map together (the page asked for both ahead: the rating page's preloads)
+      const w = want.current;
+      const [layoutBytes, first] = await Promise.all([
+        fetchBytes(url('layout'), abort.signal),
+        fetchBytes(url(`${w + 1}-${w + 1}`), abort.signal),
+      ]);
+      const layout = decodeLayout(layoutBytes);
       s = { layout, got: new Array(layout.k) };
-      const w = Math.min(want.current, layout.k - 1);
-      await fetchRange(w, w); // the shown map first, alone
+      const maps = decodeMaps(first);
+      if (maps.from !== w + 1 || maps.count !== 1) throw new Error('the server sent other maps than asked for');
+      s.got[w] = { maps, c: 0 };
       setStore(s);
       pump();
     })().catch(fail);

@@ -24,6 +24,7 @@ import { VerdictPanel } from '@/components/desk/verdict-panel';
 import { OthersVotes } from '@/components/desk/others-votes';
 import { Notice } from '@/components/ui/notice';
 import { markSwitch, measureSwitch } from '@/lib/desk/switch-timing';
+import { deskStartIndex } from '@/lib/desk/start-index';
 
 export function RateClient({
   runId,
@@ -57,13 +58,7 @@ export function RateClient({
     },
     [ids, votes],
   );
-  const [index, setIndex] = useState(() => {
-    const last = run.lastComponentIdx;
-    if (last && last >= 1 && last <= components.length) return last - 1;
-    const labelled = new Set(initialVotes.mine.map((v) => v.componentId));
-    const i = components.findIndex((c) => !labelled.has(c.id));
-    return i < 0 ? 0 : i;
-  });
+  const [index, setIndex] = useState(() => deskStartIndex(run.lastComponentIdx, components, initialVotes.mine));
   const [prefs, setPrefs] = useDeskPrefs();
   const { flags, toggle: toggleFlag } = useFlags(runId, userId);
   const [filter, setFilter] = useState<StripFilter>('all');
