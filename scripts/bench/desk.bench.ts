@@ -12,8 +12,8 @@
 // not running). Its database (BENCH_DESK_DB, default quorum_e2e_bench) and files (.data/bench-uploads)
 // are kept between runs so the 80-component decomposition is made once; BENCH_DESK_FRESH=1 remakes it.
 // Settings: BENCH_DESK_PORT (3590), BENCH_DESK_SWITCHES (40), BENCH_DESK_K (80), BENCH_DESK_SIZE (S),
-// BENCH_DESK_PROFILE=1 (also prints where the page's main thread spends its time during the load and
-// the switches), BENCH_DESK_SCREENSHOT=<file.png> (a picture of the loaded desk).
+// BENCH_DESK_PROFILE=1 (also prints the warm load's requests and marks in time order, and where the
+// page's main thread spends its time during the load and the switches), BENCH_DESK_SCREENSHOT=<file.png> (a picture of the loaded desk).
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import { existsSync } from 'node:fs';
@@ -132,6 +132,13 @@ async function loadDesk(page: Page, runId: number) {
       htmlBytes: nav.transferSize,
       mapsEnd: maps?.responseEnd ?? NaN,
       mapsBytes: maps?.encodedBodySize ?? NaN,
+      timeline: [
+        ...(performance.getEntriesByType('resource') as PerformanceResourceTiming[]).map(
+          (r) =>
+            `${r.startTime.toFixed(0).padStart(6)} → ${r.responseEnd.toFixed(0).padStart(6)}  ${r.name.replace(/^https?:\/\/[^/]+/, '').slice(0, 70)}`,
+        ),
+        ...performance.getEntriesByType('mark').map((m) => `${m.startTime.toFixed(0).padStart(6)}           mark ${m.name}`),
+      ].sort(),
     };
   });
 }
@@ -205,6 +212,8 @@ export async function main(): Promise<void> {
     const loadProfile = loadCdp ? ((await loadCdp.send('Profiler.stop')) as { profile: Profile }).profile : null;
     await loadCdp?.detach();
     const warm = await loadDesk(page, run.runId);
+    if (process.env.BENCH_DESK_PROFILE === '1')
+      console.log(['warm load, ms from navigation (requests: start → end):', ...warm.timeline].join('\n'));
     if (process.env.BENCH_DESK_SCREENSHOT) await page.screenshot({ path: process.env.BENCH_DESK_SCREENSHOT, fullPage: true });
     await page.keyboard.press('Home');
     await page
