@@ -323,13 +323,15 @@ export default function VolumeViewer(props: VolumeViewerProps) {
           zMin: min[2],
           zMax: max[2],
         });
-        nv.setSliceMosaicString(mosaicSpec(plan));
+        nv.sliceMosaicString = mosaicSpec(plan);
       } else {
-        nv.setSliceMosaicString('');
+        nv.sliceMosaicString = '';
         nv.opts.heroImageFraction = 0.55;
         nv.opts.heroSliceType = PLANE_TYPE[plane];
-        nv.setSliceType(nv.sliceTypeMultiplanar);
+        nv.opts.sliceType = nv.sliceTypeMultiplanar;
       }
+      // set as fields and drawn once: Niivue's setSliceMosaicString re-blends every layer (with the
+      // underlay's gradient pass) and setSliceType draws, neither needed for a change of layout
       nv.drawScene();
     };
     apply();
