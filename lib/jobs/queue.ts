@@ -2,8 +2,8 @@
  * The job queue in MariaDB (table `jobs`, DESIGN.md §3): its entry for the web app, the worker, the
  * CLI and tests. enqueueJob checks the payload against the kind's schema and inserts the row; the
  * SQL of the queue's life (claim, lease, progress, complete, fail with back-off, cancel, expired
- * leases) is in lib/db/queries/jobs.ts, re-exported here. Every function takes the Knex (or the
- * transaction) to use.
+ * leases) is in lib/db/queries/jobs.ts, re-exported here. Every function takes the connection (a
+ * `Db` or `Trx` from lib/db/transaction.ts) to use.
  */
 import type { Db } from '@/lib/db/transaction';
 import { insertJob } from '@/lib/db/queries/jobs';
