@@ -84,7 +84,8 @@ export function CalibrationResultViewer({ run, components, rows }: { run: DeskRu
           ) : null}
           <MapPanel
             meanUrl={`${files}/mean.nii.gz?d=${run.decompositionId}`}
-            componentsUrl={`${files}/components.nii.gz?d=${run.decompositionId}`}
+            mapsUrl={`/api/runs/${run.runId}/maps`}
+            mapsVersion={run.decompositionId}
             frame={component.idx - 1}
             peakZ={peak}
             prefs={prefs}

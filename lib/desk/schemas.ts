@@ -45,9 +45,8 @@ export const fileParamsSchema = runParamsSchema.extend({
 });
 
 /** GET /api/runs/:id/maps/:part — the desk's map payload: `layout`, or maps `<from>-<to>` (1-based, inclusive). */
-export const mapsParamsSchema = runParamsSchema.extend({
-  part: z
-    .string()
-    .max(16)
-    .regex(/^(layout|[1-9][0-9]{0,4}-[1-9][0-9]{0,4})$/, { message: 'must be "layout" or a component range such as 1-8' }),
-});
+export const mapPartSchema = z
+  .string()
+  .max(16)
+  .regex(/^(layout|[1-9][0-9]{0,4}-[1-9][0-9]{0,4})$/, { message: 'must be "layout" or a component range such as 1-8' });
+export const mapsParamsSchema = runParamsSchema.extend({ part: mapPartSchema });

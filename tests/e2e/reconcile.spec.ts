@@ -44,6 +44,11 @@ test('a lead reconciles a disagreement with a reason, and the agreement page sho
   await signIn.open();
   await signIn.signIn(DEMO.lead);
   await expect(page.getByTestId('home-heading')).toBeVisible();
+  // Reconcile loads the desk's map payload, not the whole 4D maps file (issue 14)
+  const mapRequests: string[] = [];
+  page.on('request', (r) => {
+    if (/\/api\/reconcile\/runs\/\d+\/(maps\/|files\/components\.nii\.gz)/.test(r.url())) mapRequests.push(new URL(r.url()).pathname);
+  });
   await page.goto(`/studies/${studyId}/reconcile`);
   await expect(page.getByTestId('reconcile-heading')).toBeVisible();
   // this test's run by its subject label: other tests' runs in the demo study may wait in Reconcile too
@@ -58,6 +63,8 @@ test('a lead reconciles a disagreement with a reason, and the agreement page sho
   // the desk's map panel offers the run's structural underlay here too (issue 14); the structural
   // image is the run's own mean image, attached the way the upload leaves it (key and name on the run)
   await expect(page.getByTestId('viewer-ready')).toHaveAttribute('data-underlay', 'mean');
+  expect(mapRequests).toContain(`/api/reconcile/runs/${run.runId}/maps/layout`);
+  expect(mapRequests.filter((u) => u.endsWith('components.nii.gz'))).toEqual([]);
   await expect(page.getByTestId('underlay-structural')).toHaveCount(0);
   sql(
     `UPDATE runs r JOIN decompositions d ON d.run_id = r.id AND d.is_current = 1

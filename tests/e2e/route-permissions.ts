@@ -88,6 +88,12 @@ export const ROUTES: RouteCase[] = [
     url: '/api/reconcile/runs/999999/files/mean.nii.gz',
     allowed: ['admin', 'lead'],
   },
+  {
+    file: 'reconcile/runs/[runId]/maps/[part]/route.ts',
+    method: 'GET',
+    url: '/api/reconcile/runs/999999/maps/layout',
+    allowed: ['admin', 'lead'],
+  },
   // studies, members, runs and uploads (mutations use study/run 999999 so the walk changes nothing)
   { file: 'studies/route.ts', method: 'GET', url: '/api/studies', allowed: ALL },
   { file: 'studies/route.ts', method: 'POST', url: '/api/studies', allowed: ['admin', 'lead'] },

@@ -1,7 +1,7 @@
 /**
  * The desk's map payload routes against the real MariaDB and real NIfTI files (issue 14):
  * GET /api/runs/:id/maps/:part for the assigned rater, GET /api/runs/:id/view/maps/:part for the
- * study's leads and observers. Checks who may read them, the headers (binary, not compressed on the
+ * study's leads and observers, GET /api/reconcile/runs/:runId/maps/:part for its leads (Reconcile). Checks who may read them, the headers (binary, not compressed on the
  * fly, private cache, ETag and 304), the bounds of a range, and that the maps decode to the stored
  * components.nii.gz (read with the project's NIfTI reader, checked against nibabel in
  * nifti-reader.test.ts) within the 16-bit quantisation bound max|z| / 65534 (half a step of 65535
@@ -32,6 +32,7 @@ const { deskMapsKey } = await import('@/lib/desk/map-store');
 const { decodeLayout, decodeMaps, expandMap } = await import('@/lib/desk/map-payload');
 const deskRoute = await import('@/app/api/runs/[id]/maps/[part]/route');
 const viewRoute = await import('@/app/api/runs/[id]/view/maps/[part]/route');
+const reconcileRoute = await import('@/app/api/reconcile/runs/[runId]/maps/[part]/route');
 
 let users: Record<string, number>;
 let run: Awaited<ReturnType<typeof createReadyRun>>;
@@ -119,18 +120,29 @@ describe('desk map payload routes', () => {
     expect(beyond.json.error.message).toContain(`has ${run.k} components`);
   });
 
-  it('keeps the access rules: the assigned rater on the desk route; leads and observers on the view route', async () => {
-    for (const [who, desk, view] of [
-      [RATER(), 200, 404],
-      [OTHER_RATER(), 404, 404],
-      [LEAD(), 403, 200],
-      [OBSERVER(), 403, 200],
-      [null, 401, 401],
+  it('keeps the access rules: the assigned rater on the desk route; leads and observers on the view route; leads on Reconcile', async () => {
+    const reconcile = (part: string) =>
+      callRoute(reconcileRoute.GET, {
+        url: `/api/reconcile/runs/${run.runId}/maps/${part}?d=${run.decompositionId}`,
+        params: { runId: String(run.runId), part },
+      });
+    for (const [who, desk, view, rec] of [
+      [RATER(), 200, 404, 403],
+      [OTHER_RATER(), 404, 404, 403],
+      [LEAD(), 403, 200, 200],
+      [OBSERVER(), 403, 200, 403],
+      [null, 401, 401, 401],
     ] as const) {
       actAs(who);
       expect((await get(deskRoute, 'layout')).status, `desk route as ${who}`).toBe(desk);
       expect((await get(viewRoute, '1-1')).status, `view route as ${who}`).toBe(view);
+      expect((await reconcile('1-1')).status, `reconcile route as ${who}`).toBe(rec);
     }
+    // the lead's Reconcile payload is the rater's: same bytes for the same part
+    actAs(RATER());
+    const fromDesk = await bytesOf((await get(deskRoute, '1-2')).res);
+    actAs(LEAD());
+    expect(await bytesOf((await reconcile('1-2')).res)).toEqual(fromDesk);
   });
 
   it('remakes a missing payload file from the stored NIfTI maps, byte for byte', async () => {

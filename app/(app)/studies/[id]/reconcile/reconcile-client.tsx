@@ -214,7 +214,8 @@ export function ReconcileClient({
                 {/* the desk's map panel with the desk's view settings: same layout, mosaic arrangement, threshold and colour bar */}
                 <MapPanel
                   meanUrl={`/api/reconcile/runs/${run.runId}/files/mean.nii.gz?d=${run.decompositionId}`}
-                  componentsUrl={`/api/reconcile/runs/${run.runId}/files/components.nii.gz?d=${run.decompositionId}`}
+                  mapsUrl={`/api/reconcile/runs/${run.runId}/maps`}
+                  mapsVersion={run.decompositionId}
                   structuralUrl={
                     run.structural ? `/api/reconcile/runs/${run.runId}/files/structural.nii.gz?s=${run.structural.version}` : null
                   }
