@@ -9,6 +9,7 @@ import { recalibratePayloadSchema } from '@/lib/jobs/recalibrate-payload';
 import { notifyAssignmentsPayloadSchema, notifyOverduePayloadSchema, notifyVotesCompletePayloadSchema } from '@/lib/notifications/payloads';
 import { sendMailPayloadSchema } from '@/lib/mail/payloads';
 import { releasePayloadSchema } from '@/lib/jobs/release-payload';
+import { agreementReportPayloadSchema } from '@/lib/jobs/agreement-report-payload';
 
 /** Overrides of the study protocol for one decomposition (all optional). */
 export const decompositionOptionsSchema = z
@@ -57,6 +58,7 @@ export const jobPayloadSchemas = {
   'train-suggestions': trainSuggestionsPayloadSchema,
   'score-suggestions': scoreSuggestionsPayloadSchema,
   recalibrate: recalibratePayloadSchema,
+  'agreement-report': agreementReportPayloadSchema,
 } as const;
 
 export type JobKindName = keyof typeof jobPayloadSchemas;

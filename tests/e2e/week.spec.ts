@@ -14,6 +14,7 @@ import { DEMO, SignInPage } from './pages/sign-in-page';
 import { StudyPage } from './pages/study-page';
 import { ReleasesPage } from './pages/releases-page';
 import { createDecidedStudy } from './helpers/decided-study';
+import { sql } from './helpers/e2e-db';
 
 async function signInAs(page: Page, email: string) {
   const signIn = new SignInPage(page);
@@ -132,6 +133,27 @@ function pgmStats(file: string): { mean: number; dark: number } {
   }
   return { mean: sum / pixels.length, dark: dark / pixels.length };
 }
+
+test('stale report figures are shown with their time while the worker brings them up to date', async ({ page }) => {
+  const studyId = createDecidedStudy('Stale report walk', 'sr01');
+  await signInAs(page, DEMO.lead);
+  await page.goto(`/studies/${studyId}/report`);
+  await expect(page.getByTestId('report-heading')).toBeVisible();
+  await expect(page.getByTestId('report-computing')).toHaveCount(0); // the first view computes and stores them
+  // anything the report depends on changes (here the study's protocol row): the stored figures are stale
+  sql(`UPDATE studies SET description = 'changed after the first report', updated_at = NOW(3) WHERE id = ${studyId}`);
+  await page.reload();
+  await expect(page.getByTestId('report-heading')).toBeVisible();
+  await expect(page.getByTestId('report-computing')).toBeVisible();
+  expect(
+    sql<{ n: number }>(`SELECT COUNT(*) AS n FROM jobs WHERE kind = 'agreement-report' AND study_id = ${studyId}`)[0]!.n,
+  ).toBeGreaterThan(0);
+  // the worker's agreement-report job stores the new figures; the page refreshes itself until they are current
+  await expect(page.getByTestId('report-computing')).toHaveCount(0, { timeout: 60_000 });
+  expect(
+    sql<{ status: string }>(`SELECT status FROM jobs WHERE kind = 'agreement-report' AND study_id = ${studyId}`).map((j) => j.status),
+  ).toContain('succeeded');
+});
 
 test('the printed report is dark ink on white paper, with background graphics printed and nothing hidden', async ({ page }) => {
   const studyId = createDecidedStudy('Print walk', 'pr01');

@@ -30,6 +30,10 @@ const { agreementChangeKey } = await import('@/lib/db/queries/current-agreement'
 const { buildAgreementReport } = await import('@/lib/reports/agreement-report');
 const { BOOTSTRAP } = await import('@/lib/releases/create-release');
 const { readCurrentAgreementReport, refreshCurrentAgreementReport } = await import('@/lib/releases/current-agreement-report');
+const { queueAgreementReport } = await import('@/lib/releases/queue-agreement-report');
+const { claimJob } = await import('@/lib/jobs/queue');
+const { runClaimedJob } = await import('@/lib/worker/runner');
+const { jobKinds } = await import('@/lib/worker/kinds');
 const voteRoute = await import('@/app/api/runs/[id]/votes/[componentId]/route');
 const submitRoute = await import('@/app/api/runs/[id]/submit/route');
 
@@ -121,5 +125,21 @@ describe('stored current-state agreement', () => {
     const current = await readCurrentAgreementReport({ studyId });
     expect(current.fresh).toBe(true);
     expect(current.stored!.report.raters.map((r) => r.name)).toContain('Renamed Rater');
+  });
+
+  it('stale figures are brought up to date by the worker: one queued job per study, run by the agreement-report kind', async () => {
+    await db('users').where({ id: raterIds[1] }).update({ name: 'Renamed Again' }); // the key changes
+    expect((await readCurrentAgreementReport({ studyId })).fresh).toBe(false);
+    const jobId = await queueAgreementReport({ studyId });
+    expect(await queueAgreementReport({ studyId })).toBe(jobId); // a second stale view queues nothing new
+    const job = await claimJob(db, { workerId: 'test-agreement', kinds: ['agreement-report'], leaseMs: 60_000 });
+    expect(job?.id).toBe(jobId);
+    const logger = { info: () => {}, warn: () => {}, error: (m: string) => console.error(m) };
+    const outcome = await runClaimedJob(db, job!, { workerId: 'test-agreement', leaseMs: 60_000, kinds: jobKinds, logger });
+    expect(outcome).toBe('succeeded');
+    const current = await readCurrentAgreementReport({ studyId });
+    expect(current.fresh).toBe(true);
+    expect(current.stored!.report).toEqual(await computedNow());
+    expect(await db('jobs').where({ id: jobId }).first('status')).toEqual({ status: 'succeeded' });
   });
 });

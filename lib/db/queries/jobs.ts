@@ -438,8 +438,10 @@ export async function requeueExpiredLeases(db: Knex): Promise<{ requeued: number
 }
 
 /** The oldest queued job of the kind (null: none queued). */
-export async function findQueuedJobOfKind(db: Knex, { kind }: { kind: string }): Promise<number | null> {
-  const queued = await db('jobs').where({ kind, status: 'queued' }).orderBy('id').first('id');
+export async function findQueuedJobOfKind(db: Knex, { kind, studyId }: { kind: string; studyId?: number }): Promise<number | null> {
+  const query = db('jobs').where({ kind, status: 'queued' });
+  if (studyId !== undefined) query.andWhere({ study_id: studyId });
+  const queued = await query.orderBy('id').first('id');
   return queued ? Number(queued.id) : null;
 }
 

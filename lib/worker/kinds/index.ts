@@ -10,6 +10,7 @@ import { sendMailKind } from './send-mail';
 import { scoreSuggestionsKind } from './score-suggestions';
 import { trainSuggestionsKind } from './train-suggestions';
 import { recalibrateKind } from './recalibrate';
+import { agreementReportKind } from './agreement-report';
 
 export const jobKinds: Readonly<Record<string, JobKind>> = {
   [decomposeKind.kind]: decomposeKind as unknown as JobKind,
@@ -22,4 +23,5 @@ export const jobKinds: Readonly<Record<string, JobKind>> = {
   [trainSuggestionsKind.kind]: trainSuggestionsKind as unknown as JobKind,
   [scoreSuggestionsKind.kind]: scoreSuggestionsKind as unknown as JobKind,
   [recalibrateKind.kind]: recalibrateKind as unknown as JobKind,
+  [agreementReportKind.kind]: agreementReportKind as unknown as JobKind,
 };

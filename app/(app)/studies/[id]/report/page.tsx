@@ -2,12 +2,12 @@ import type { Metadata } from 'next';
 import { readFile } from 'node:fs/promises';
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
-import { after } from 'next/server';
 import { requirePageUser } from '@/lib/auth/session';
 import { findStudyRow } from '@/lib/db/queries/studies';
 import { findStudyAccess } from '@/lib/db/queries/study-access';
 import { loadRatingFacts, loadStudyRatings } from '@/lib/db/queries/agreement';
 import { readCurrentAgreementReport, refreshCurrentAgreementReport } from '@/lib/releases/current-agreement-report';
+import { queueAgreementReport } from '@/lib/releases/queue-agreement-report';
 import { findRelease, loadExportRuns, releaseDecisions, storedAgreementReport } from '@/lib/db/queries/releases';
 import { buildAgreementReport, type AgreementReport } from '@/lib/reports/agreement-report';
 import { methodsParagraph } from '@/lib/reports/methods-paragraph';
@@ -48,7 +48,7 @@ export default async function ReportPage({
   // a release's statistics were computed once by its release job (releases made before that was
   // stored are computed here); the current state's are stored once per change of the ratings
   // (lib/releases/current-agreement-report.ts): stale figures are shown with their time while the
-  // new ones are computed after this response, and the page reloads itself until they are current
+  // worker computes the new ones, and the page reloads itself until they are current
   const stored = release ? ((await storedAgreementReport({ releaseId: release.id })) as AgreementReport | null) : null;
   let report: AgreementReport;
   let runCount: number;
@@ -62,11 +62,7 @@ export default async function ReportPage({
       current = await readCurrentAgreementReport({ studyId });
     } else if (!current.fresh) {
       computing = true;
-      after(() =>
-        refreshCurrentAgreementReport({ studyId }).catch((err) =>
-          console.error(`[report] agreement of study ${studyId} not computed:`, (err as Error).message),
-        ),
-      );
+      await queueAgreementReport({ studyId }); // the worker computes them (job kind agreement-report)
     }
     report = current.stored!.report;
     runCount = current.stored!.runCount;
