@@ -250,21 +250,24 @@ export async function lockOwnedJob(trx: Knex.Transaction, id: number, workerId: 
   return 'owned';
 }
 
+/** The columns of a job that ended successfully with `result` (JSON; null when none). */
+function succeededColumns(db: Knex, result: unknown) {
+  return {
+    status: 'succeeded',
+    stage: 'done',
+    percent: 100,
+    message: null,
+    error: null,
+    result: toJson(result ?? null),
+    lease_owner: null,
+    lease_expires_at: null,
+    finished_at: db.raw('NOW(3)'),
+  };
+}
+
 /** Marks an owned running job succeeded (with an optional JSON result); false if not owned. */
 export async function completeJob(db: Knex, id: number, workerId: string, result?: unknown): Promise<boolean> {
-  const n = await db('jobs')
-    .where({ id, lease_owner: workerId, status: 'running' })
-    .update({
-      status: 'succeeded',
-      stage: 'done',
-      percent: 100,
-      message: null,
-      error: null,
-      result: toJson(result ?? null),
-      lease_owner: null,
-      lease_expires_at: null,
-      finished_at: db.raw('NOW(3)'),
-    });
+  const n = await db('jobs').where({ id, lease_owner: workerId, status: 'running' }).update(succeededColumns(db, result));
   return n === 1;
 }
 
@@ -468,17 +471,5 @@ export async function markJobWaiting(db: Knex, id: number): Promise<void> {
  * its results, so the results and the completion commit together.
  */
 export async function markJobSucceeded(trx: Knex.Transaction, id: number, result: unknown): Promise<void> {
-  await trx('jobs')
-    .where({ id })
-    .update({
-      status: 'succeeded',
-      stage: 'done',
-      percent: 100,
-      message: null,
-      error: null,
-      result: toJson(result),
-      lease_owner: null,
-      lease_expires_at: null,
-      finished_at: trx.raw('NOW(3)'),
-    });
+  await trx('jobs').where({ id }).update(succeededColumns(trx, result));
 }
