@@ -118,9 +118,20 @@ function blendMaps(nv: Niivue) {
  * addVolume / removeVolume re-blend every layer on each call, and the underlay's blend carries its
  * gradient pass for 3D rendering, which the desk never shows (≈ 0.3–0.6 s each in software WebGL).
  */
-function setLayers(nv: Niivue, volumes: Vol[]) {
+function setLayers(nv: Niivue, volumes: Vol[], { draw }: { draw: boolean }) {
   nv.volumes = volumes;
-  nv.setVolume(volumes[0], 0); // sets the underlay and overlays, then one updateGLVolume
+  if (draw) {
+    nv.setVolume(volumes[0], 0); // sets the underlay and overlays, then one updateGLVolume (which draws)
+    return;
+  }
+  // the caller draws once, after the map is in: at load, one frame to wait for instead of two
+  const drawScene = nv.drawScene;
+  nv.drawScene = () => undefined;
+  try {
+    nv.setVolume(volumes[0], 0);
+  } finally {
+    nv.drawScene = drawScene;
+  }
 }
 
 /** One frame of a 4D image as a voxel reader in native order (scaled to z). */
@@ -182,6 +193,99 @@ function goToCluster(nv: Niivue, frame: number, i: number, draw: boolean, cluste
   nv.drawScene();
 }
 
+type MapShown = { frame: number; key: string; clusterKey: string };
+
+/**
+ * Sets the layout's fields (three planes with one large, or a mosaic that fills the canvas) without
+ * drawing; true when they changed. Niivue's setSliceMosaicString re-blends every layer (with the
+ * underlay's gradient pass) and setSliceType draws, neither needed for a change of layout.
+ */
+function applyLayout(nv: Niivue, canvas: HTMLCanvasElement, p: VolumeViewerProps, shownRef: React.RefObject<string | null>): boolean {
+  const plane = p.plane ?? 'axial';
+  let key: string;
+  if (p.layout === 'mosaic') {
+    const v = nv.volumes[0];
+    const min = v.extentsMinOrtho ?? [-90, -110, -60];
+    const max = v.extentsMaxOrtho ?? [90, 90, 80];
+    const plan = planMosaic({
+      viewW: canvas.clientWidth,
+      viewH: canvas.clientHeight,
+      sliceW: max[0] - min[0],
+      sliceH: max[1] - min[1],
+      zMin: min[2],
+      zMax: max[2],
+    });
+    key = `mosaic|${mosaicSpec(plan)}`;
+    if (key === shownRef.current) return false;
+    nv.sliceMosaicString = mosaicSpec(plan);
+  } else {
+    key = `planes|${plane}`;
+    if (key === shownRef.current) return false;
+    nv.sliceMosaicString = '';
+    nv.opts.heroImageFraction = 0.55;
+    nv.opts.heroSliceType = PLANE_TYPE[plane];
+    nv.opts.sliceType = nv.sliceTypeMultiplanar;
+  }
+  shownRef.current = key;
+  return true;
+}
+
+/**
+ * Puts the map layer in the state the props ask for (the component's frame, the threshold and
+ * scale, sign and opacity) and draws once, if anything changed. A switch usually changes the frame
+ * and the scale (it follows the component's peak) together: one blend, one draw, one paint.
+ */
+function showMap(
+  nv: Niivue,
+  latest: LatestRef,
+  shownRef: React.RefObject<MapShown | null>,
+  clustersRef: ClustersRef,
+  firstPainted: React.RefObject<boolean>,
+) {
+  const p = latest.current;
+  const overlay = p.overlay ?? DEFAULT_OVERLAY;
+  const maxZ = Math.max(p.maxZ, p.threshold + 0.5);
+  const frame = p.frame;
+  const v = nv.volumes[1];
+  const clusterKey = `${p.threshold}|${overlay.sign}`;
+  const key = `${clusterKey}|${maxZ}|${overlay.visible}|${overlay.opacity}`;
+  const before = shownRef.current;
+  if (before?.key !== key) {
+    v.cal_min = p.threshold;
+    v.cal_max = maxZ;
+    v.colormap = overlay.sign === 'negative' ? 'quorum-none' : 'quorum-ember';
+    v.colormapNegative = overlay.sign === 'positive' ? '' : 'quorum-dusk';
+    v.opacity = overlay.visible ? overlay.opacity : 0;
+  }
+  // clusters depend on the threshold and sign (not on the scale's top)
+  if (before && before.clusterKey !== clusterKey) clustersRef.current.frame = -1;
+  // with the desk's maps, the held map (-1 until the shown component's map has arrived: no map, no readouts)
+  const held = ensureFrame(nv, frame, latest) ? frame : -1;
+  const frameChanged = before?.frame !== held;
+  shownRef.current = { frame: held, key, clusterKey };
+  if (!frameChanged && before?.key === key) return; // as shown
+  if (held === -1 || !frameChanged) {
+    if (held !== -1) clustersOf(nv, frame, clustersRef, latest);
+    blendMaps(nv);
+    return;
+  }
+  v.frame4D = (v.nFrame4D ?? 1) > 1 ? frame : 0; // the desk's map volume holds one frame
+  if (p.followPeak ?? true) goToCluster(nv, frame, 0, false, clustersRef, latest);
+  else clustersOf(nv, frame, clustersRef, latest);
+  blendMaps(nv);
+  nv.createOnLocationChange();
+  p.onDrawn?.(frame, 'issued');
+  afterPaint(() => {
+    if (!firstPainted.current) {
+      // one User Timing mark per page: navigation start → the first map on screen (read by `npm run bench -- desk`)
+      firstPainted.current = true;
+      performance.clearMarks('viewer:painted');
+      performance.mark('viewer:painted');
+    }
+    latest.current.onDrawn?.(frame, 'painted');
+  });
+}
+
 /**
  * The desk's volume viewer (WebGL2): the run's mean image in grey with the current component's
  * z-map over it (positive "ember", negative "dusk"), three planes (one large) or a mosaic. Both
@@ -201,6 +305,9 @@ export default function VolumeViewer(props: VolumeViewerProps) {
     at: -1,
     maxAbsZ: null,
   });
+  const layoutShown = useRef<string | null>(null);
+  const mapShown = useRef<MapShown | null>(null);
+  const firstPainted = useRef(false);
   useLayoutEffect(() => {
     latest.current = props;
   });
@@ -249,7 +356,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
           NVImage.loadFromUrl({ url: 'components.nii', name: 'components.nii', buffer: p.maps.emptyVolume(), ...look, frame4D: 0 }),
         ]);
         if (cancelled) return;
-        setLayers(nv, [underImg, img]);
+        setLayers(nv, [underImg, img], { draw: false }); // drawn below with the map, in the same frame
       } else {
         await nv.loadVolumes([
           { url: under, name: 'underlay.nii.gz', colormap: 'gray' },
@@ -266,6 +373,10 @@ export default function VolumeViewer(props: VolumeViewerProps) {
           z: typeof value === 'number' && Number.isFinite(value) ? value : null,
         });
       };
+      // the layout and the shown map now, drawn once: the first frame the browser paints is the
+      // finished picture (the effects below then find nothing to change)
+      applyLayout(nv, canvas, latest.current, layoutShown);
+      showMap(nv, latest, mapShown, clustersRef, firstPainted);
       setReady(true);
       setUnderlayReady(under);
     })().catch((err: Error) => {
@@ -293,7 +404,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
     (async () => {
       const img = await NVImage.loadFromUrl({ url: underlayUrl, name: 'underlay.nii.gz', colormap: 'gray' });
       if (cancelled || nvRef.current !== nv) return;
-      setLayers(nv, [img, ...nv.volumes.slice(1)]);
+      setLayers(nv, [img, ...nv.volumes.slice(1)], { draw: true });
       underlayShown.current = underlayUrl;
       setUnderlayReady(underlayUrl);
     })().catch((err: Error) => {
@@ -304,97 +415,28 @@ export default function VolumeViewer(props: VolumeViewerProps) {
     };
   }, [underlayUrl, ready]);
 
-  const plane = props.plane ?? 'axial';
   // layout: three planes with one large, or a mosaic that fills the viewer
   useEffect(() => {
     const nv = nvRef.current;
     const canvas = canvasRef.current;
     if (!nv || !ready || !canvas) return;
     const apply = () => {
-      if (props.layout === 'mosaic') {
-        const v = nv.volumes[0];
-        const min = v.extentsMinOrtho ?? [-90, -110, -60];
-        const max = v.extentsMaxOrtho ?? [90, 90, 80];
-        const plan = planMosaic({
-          viewW: canvas.clientWidth,
-          viewH: canvas.clientHeight,
-          sliceW: max[0] - min[0],
-          sliceH: max[1] - min[1],
-          zMin: min[2],
-          zMax: max[2],
-        });
-        nv.sliceMosaicString = mosaicSpec(plan);
-      } else {
-        nv.sliceMosaicString = '';
-        nv.opts.heroImageFraction = 0.55;
-        nv.opts.heroSliceType = PLANE_TYPE[plane];
-        nv.opts.sliceType = nv.sliceTypeMultiplanar;
-      }
-      // set as fields and drawn once: Niivue's setSliceMosaicString re-blends every layer (with the
-      // underlay's gradient pass) and setSliceType draws, neither needed for a change of layout
-      nv.drawScene();
+      if (applyLayout(nv, canvas, latest.current, layoutShown)) nv.drawScene();
     };
     apply();
     if (props.layout !== 'mosaic') return;
     const ro = new ResizeObserver(() => apply());
     ro.observe(canvas);
     return () => ro.disconnect();
-  }, [props.layout, plane, ready]);
+  }, [props.layout, props.plane, ready]);
 
-  // the map layer: the component's frame, the threshold and scale, sign and opacity. A switch
-  // usually changes the frame and the scale (it follows the component's peak) together: one blend,
-  // one draw, one paint.
+  // the map layer: the component's frame, the threshold and scale, sign and opacity
   const overlay = props.overlay ?? DEFAULT_OVERLAY;
-  const followPeak = props.followPeak ?? true;
-  const firstPainted = useRef(false);
-  const shown = useRef<{ frame: number; key: string; clusterKey: string } | null>(null);
-  const maxZ = Math.max(props.maxZ, props.threshold + 0.5);
   useEffect(() => {
     const nv = nvRef.current;
     if (!nv || !ready || nv.volumes.length < 2) return;
-    const frame = props.frame;
-    const v = nv.volumes[1];
-    const clusterKey = `${props.threshold}|${overlay.sign}`;
-    const key = `${clusterKey}|${maxZ}|${overlay.visible}|${overlay.opacity}`;
-    const before = shown.current;
-    if (before?.key !== key) {
-      v.cal_min = props.threshold;
-      v.cal_max = maxZ;
-      v.colormap = overlay.sign === 'negative' ? 'quorum-none' : 'quorum-ember';
-      v.colormapNegative = overlay.sign === 'positive' ? '' : 'quorum-dusk';
-      v.opacity = overlay.visible ? overlay.opacity : 0;
-    }
-    // clusters depend on the threshold and sign (not on the scale's top)
-    if (before && before.clusterKey !== clusterKey) clustersRef.current.frame = -1;
-    // with the desk's maps, the held map (-1 until the shown component's map has arrived: no map, no readouts)
-    const held = ensureFrame(nv, frame, latest) ? frame : -1;
-    const frameChanged = before?.frame !== held;
-    shown.current = { frame: held, key, clusterKey };
-    if (held === -1) {
-      if (frameChanged || before?.key !== key) blendMaps(nv);
-      return;
-    }
-    if (!frameChanged) {
-      clustersOf(nv, frame, clustersRef, latest);
-      blendMaps(nv);
-      return;
-    }
-    v.frame4D = (v.nFrame4D ?? 1) > 1 ? frame : 0; // the desk's map volume holds one frame
-    if (followPeak) goToCluster(nv, frame, 0, false, clustersRef, latest);
-    else clustersOf(nv, frame, clustersRef, latest);
-    blendMaps(nv);
-    nv.createOnLocationChange();
-    latest.current.onDrawn?.(frame, 'issued');
-    afterPaint(() => {
-      if (!firstPainted.current) {
-        // one User Timing mark per page: navigation start → the first map on screen (read by `npm run bench -- desk`)
-        firstPainted.current = true;
-        performance.clearMarks('viewer:painted');
-        performance.mark('viewer:painted');
-      }
-      latest.current.onDrawn?.(frame, 'painted');
-    });
-  }, [props.frame, props.threshold, maxZ, overlay.sign, overlay.visible, overlay.opacity, ready, followPeak, props.frameReady]);
+    showMap(nv, latest, mapShown, clustersRef, firstPainted);
+  }, [props.frame, props.threshold, props.maxZ, overlay.sign, overlay.visible, overlay.opacity, ready, props.followPeak, props.frameReady]);
 
   // the desk's keys; the zoom is written on the canvas (data-zoom) for people's tools and the browser tests
   useEffect(() => {
