@@ -95,7 +95,7 @@ export function CalibrationResultViewer({ run, components, rows }: { run: DeskRu
           />
           <ChartsPanel
             run={run}
-            component={component}
+            series={component}
             showMotion={prefs.showMotion}
             onShowMotion={(on) => setPrefs((p) => ({ ...p, showMotion: on }))}
           />

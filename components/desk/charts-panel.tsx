@@ -4,20 +4,21 @@ import { TimecourseChart, type TimeRange } from '@/components/charts/timecourse-
 import { SpectrumChart } from '@/components/charts/spectrum-chart';
 import { MotionChart } from '@/components/charts/motion-chart';
 import { MotionTraces } from '@/components/charts/motion-traces';
-import type { DeskComponent, DeskRun } from '@/lib/desk/types';
+import type { ComponentSeries, DeskRun } from '@/lib/desk/types';
 
 /**
  * The component's time course (drag to zoom; the framewise displacement and, on request, the six
- * motion parameters under it on the same axis) and its power spectrum.
+ * motion parameters under it on the same axis) and its power spectrum. `series` is null while the
+ * desk's series payload is on its way: the charts' places are kept, saying so.
  */
 export function ChartsPanel({
   run,
-  component,
+  series,
   showMotion,
   onShowMotion,
 }: {
   run: DeskRun;
-  component: DeskComponent;
+  series: ComponentSeries | null;
   showMotion: boolean;
   onShowMotion: (on: boolean) => void;
 }) {
@@ -52,21 +53,34 @@ export function ChartsPanel({
             </label>
           ) : null}
         </figcaption>
-        <TimecourseChart values={component.timecourse} {...common} onRange={setRange} />
+        {series ? <TimecourseChart values={series.timecourse} {...common} onRange={setRange} /> : <Waiting what="time course" />}
         {run.framewiseDisplacement ? (
           <>
             <p className="text-[11px] uppercase tracking-wider text-ink-muted">Framewise displacement · mm</p>
             <MotionChart fd={run.framewiseDisplacement} {...common} />
           </>
         ) : null}
-        {run.motion && showMotion ? <MotionTraces motion={run.motion} timecourse={component.timecourse} {...common} /> : null}
+        {run.motion && showMotion && series ? <MotionTraces motion={run.motion} timecourse={series.timecourse} {...common} /> : null}
       </figure>
       <figure className="rounded border border-line bg-ground-raised px-2 pt-1">
         <figcaption className="text-[11px] uppercase tracking-wider text-ink-muted">
           Power spectrum · Hz (to {(1 / (2 * run.trSeconds)).toFixed(2)} Hz; line at 0.1 Hz)
         </figcaption>
-        <SpectrumChart frequencies={component.frequencies} power={component.spectrum} trSeconds={run.trSeconds} />
+        {series ? (
+          <SpectrumChart frequencies={series.frequencies} power={series.spectrum} trSeconds={run.trSeconds} />
+        ) : (
+          <Waiting what="power spectrum" />
+        )}
       </figure>
     </div>
+  );
+}
+
+/** A chart's place (the charts' height) while its data is on its way. */
+function Waiting({ what }: { what: string }) {
+  return (
+    <p className="flex h-[150px] items-center justify-center text-xs text-ink-muted" data-testid="series-loading">
+      Loading the {what}…
+    </p>
   );
 }

@@ -1,6 +1,6 @@
 import { featureHints, NOT_AVAILABLE } from '@/lib/decomposition/feature-hints';
 import { isLowReproducibility } from '@/lib/desk/reproducibility';
-import type { DeskComponent } from '@/lib/desk/types';
+import type { ListedComponent } from '@/lib/desk/types';
 
 /**
  * The component's features with their plain-language hints (a prompt, never a verdict). An
@@ -12,7 +12,7 @@ export function FeaturePanel({
   k,
   reproducibilityThreshold,
 }: {
-  component: DeskComponent;
+  component: ListedComponent;
   k: number;
   reproducibilityThreshold?: number;
 }) {

@@ -5,14 +5,8 @@
  * server fills only after submission (and only when the study shows them).
  */
 
-/** One component as the desk draws it. Arrays are plain numbers (float32 precision). */
-export type DeskComponent = {
-  id: number;
-  /** 1..k by variance explained. */
-  idx: number;
-  /** Fraction 0..1 of the run's variance. */
-  varianceExplained: number;
-  features: Record<string, number | null>;
+/** A component's time course and power spectrum, as the charts draw them. Plain numbers (float32 precision). */
+export type ComponentSeries = {
   /** One value per kept volume (after the dropped initial volumes). */
   timecourse: number[];
   /** Power per frequency bin. */
@@ -20,6 +14,19 @@ export type DeskComponent = {
   /** Hz, same length as spectrum. */
   frequencies: number[];
 };
+
+/** One component as the desk lists it: what the strip, the features and the verdict need. */
+export type ListedComponent = {
+  id: number;
+  /** 1..k by variance explained. */
+  idx: number;
+  /** Fraction 0..1 of the run's variance. */
+  varianceExplained: number;
+  features: Record<string, number | null>;
+};
+
+/** One component with its series (the components API, Reconcile and the read-only run view). */
+export type DeskComponent = ListedComponent & ComponentSeries;
 
 /** The run as the desk needs it; static for one decomposition (cached for the whole session). */
 export type DeskRun = {
@@ -56,6 +63,12 @@ export function structuralOf(key: string | null | undefined, name: string | null
 }
 
 export type ComponentsPayload = { run: DeskRun; components: DeskComponent[] };
+
+/**
+ * What the rating desk's page carries: the components without their series but for the shown one;
+ * the desk fetches the others' in one binary payload (series-payload.ts) while the page starts.
+ */
+export type DeskPagePayload = { run: DeskRun; components: ListedComponent[]; shown: ({ id: number } & ComponentSeries) | null };
 
 /** The fields a rater sets on a vote. */
 export type VoteFields = {

@@ -179,6 +179,7 @@ export const ROUTES: RouteCase[] = [
   { file: 'runs/[id]/files/[file]/route.ts', method: 'GET', url: '/api/runs/999999/files/components.nii.gz', allowed: ['admin', 'rater'] },
   { file: 'runs/[id]/view/files/[file]/route.ts', method: 'GET', url: '/api/runs/999999/view/files/components.nii.gz', allowed: ALL },
   { file: 'runs/[id]/maps/[part]/route.ts', method: 'GET', url: '/api/runs/999999/maps/layout', allowed: ['admin', 'rater'] },
+  { file: 'runs/[id]/series/route.ts', method: 'GET', url: '/api/runs/999999/series', allowed: ['admin', 'rater'] },
   { file: 'runs/[id]/view/maps/[part]/route.ts', method: 'GET', url: '/api/runs/999999/view/maps/1-8', allowed: ALL },
   // releases and exports (addresses of rows that do not exist: allowed roles get 404, never a write)
   { file: 'studies/[id]/releases/route.ts', method: 'GET', url: '/api/studies/999999/releases', allowed: ['admin', 'lead', 'observer'] },

@@ -6,6 +6,8 @@ import { AppError } from '@/lib/errors';
 import { loadDeskComponents } from '@/lib/runs/load-desk-components';
 import { listVotesForRater } from '@/lib/votes/list-votes-for-rater';
 import { deskStartIndex } from '@/lib/desk/start-index';
+import { deskPagePayload } from '@/lib/desk/page-payload';
+import { deskSeriesUrl } from '@/lib/desk/series-payload';
 import { RateClient } from './rate-client';
 
 export const metadata: Metadata = { title: 'Rating desk' };
@@ -22,10 +24,13 @@ export default async function RatePage({ params }: { params: Promise<{ id: strin
   // the first map and the underlay are asked for with the page, not after its scripts have run: the
   // same addresses and fetch mode as lib/desk/use-desk-maps.ts and the viewer use, so the browser reuses them
   const { run } = components;
-  const shown = components.components[deskStartIndex(run.lastComponentIdx, components.components, votes.mine)];
+  const start = deskStartIndex(run.lastComponentIdx, components.components, votes.mine);
+  const shown = components.components[start];
   const fetched = { as: 'fetch', crossOrigin: 'anonymous' } as const;
   preload(`/api/runs/${runId}/maps/layout?d=${run.decompositionId}`, fetched);
   if (shown) preload(`/api/runs/${runId}/maps/${shown.idx}-${shown.idx}?d=${run.decompositionId}`, fetched);
   if (!run.structural) preload(`/api/runs/${runId}/files/mean.nii.gz?d=${run.decompositionId}`, fetched);
-  return <RateClient runId={runId} userId={user.id} initialComponents={components} initialVotes={votes} />;
+  preload(deskSeriesUrl(runId, run.decompositionId), fetched);
+  // the page carries the shown component's series; the others' come in one binary payload (lib/desk/use-desk-series.ts)
+  return <RateClient runId={runId} userId={user.id} initialComponents={deskPagePayload(components, start)} initialVotes={votes} />;
 }

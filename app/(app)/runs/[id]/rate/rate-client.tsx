@@ -4,10 +4,10 @@ import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState } fr
 import { useQueryClient } from '@tanstack/react-query';
 import { postJson } from '@/lib/api/client';
 import { commandFor } from '@/lib/desk/keys';
-import { useRunComponents } from '@/lib/desk/use-run-components';
+import { useDeskSeries } from '@/lib/desk/use-desk-series';
 import { useVotes, votesKey } from '@/lib/desk/use-vote';
 import { useDeskPosition } from '@/lib/desk/use-desk-position';
-import type { ComponentsPayload, VoteFields, VotesPayload } from '@/lib/desk/types';
+import type { DeskPagePayload, VoteFields, VotesPayload } from '@/lib/desk/types';
 import type { ViewerApi } from '@/components/viewer';
 import { useDeskPrefs } from '@/lib/desk/prefs';
 import { useFlags } from '@/lib/desk/use-flags';
@@ -34,12 +34,12 @@ export function RateClient({
 }: {
   runId: number;
   userId: number;
-  initialComponents: ComponentsPayload;
+  initialComponents: DeskPagePayload;
   initialVotes: VotesPayload;
 }) {
   const queryClient = useQueryClient();
-  const { data: payload } = useRunComponents(runId, initialComponents);
-  const { run, components } = payload ?? initialComponents;
+  const { run, components, shown } = initialComponents;
+  const { seriesOf, error: seriesError } = useDeskSeries(runId, run.decompositionId, shown);
   const { votes, status, others, setVote, sync, clearRefusal } = useVotes({ runId, userId, initialData: initialVotes });
 
   const ids = useMemo(() => components.map((c) => c.id), [components]);
@@ -342,6 +342,11 @@ export function RateClient({
           {viewerError}
         </Notice>
       ) : null}
+      {seriesError ? (
+        <Notice kind="error" testId="series-error">
+          {seriesError}
+        </Notice>
+      ) : null}
 
       <ComponentStrip
         ids={ids}
@@ -382,7 +387,7 @@ export function RateClient({
           </label>
           <ChartsPanel
             run={run}
-            component={component}
+            series={seriesOf(component.id)}
             showMotion={prefs.showMotion}
             onShowMotion={(on) => setPrefs((p) => ({ ...p, showMotion: on }))}
           />

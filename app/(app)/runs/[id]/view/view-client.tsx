@@ -157,7 +157,7 @@ export function ViewClient({
           />
           <ChartsPanel
             run={run}
-            component={component}
+            series={component}
             showMotion={prefs.showMotion}
             onShowMotion={(on) => setPrefs((p) => ({ ...p, showMotion: on }))}
           />
