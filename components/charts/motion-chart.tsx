@@ -1,11 +1,12 @@
 'use client';
 import { memo, useMemo } from 'react';
-import { Area, AreaChart, ResponsiveContainer, XAxis, YAxis } from 'recharts';
+import type uPlot from 'uplot';
 import { CHART } from './theme';
-import { niceTicks, tickFormatter } from './ticks';
+import { niceTicks } from './ticks';
 import type { TimeRange } from './timecourse-chart';
+import { UplotChart, niceAxis, timesOf } from './uplot-chart';
 
-/** Framewise displacement (mm) of the run on the same time axis as the time course. */
+/** Framewise displacement (mm) of the run on the same time axis as the time course (a canvas chart, uPlot). */
 export const MotionChart = memo(function MotionChart({
   fd,
   trSeconds,
@@ -19,28 +20,34 @@ export const MotionChart = memo(function MotionChart({
   range?: TimeRange;
   height?: number;
 }) {
-  const data = useMemo(() => fd.map((v, t) => ({ s: (droppedVolumes + t) * trSeconds, v })), [fd, trSeconds, droppedVolumes]);
+  const times = useMemo(() => timesOf(fd.length, trSeconds, droppedVolumes), [fd.length, trSeconds, droppedVolumes]);
+  const data = useMemo<uPlot.AlignedData>(() => [times, fd], [times, fd]);
   const end = (droppedVolumes + Math.max(fd.length - 1, 0)) * trSeconds;
-  const domain: [number, number] = range ?? [0, end];
-  const shown = useMemo(() => (range ? data.filter((d) => d.s >= range[0] && d.s <= range[1]) : data), [data, range]);
-  // two or three ticks from 0 with labels that never repeat (a fixed one decimal read "0.0 0.0" on a still run)
-  const yTicks = useMemo(() => niceTicks(0, Math.max(0, ...shown.map((d) => d.v)), 2), [shown]);
+  const from = range ? range[0] : 0;
+  const to = range ? range[1] : end;
+  const options = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
+    () => ({
+      legend: { show: false },
+      cursor: { show: false },
+      padding: [2, 8, 0, 0],
+      scales: {
+        x: { time: false, auto: false, range: [from, Math.max(to, from + trSeconds)] },
+        // from 0, two or three ticks with labels that never repeat (a fixed one decimal read "0.0 0.0" on a still run)
+        y: {
+          range: (_u, _min, max) => {
+            const t = niceTicks(0, Math.max(0, Number.isFinite(max) ? max : 0), 2);
+            return [t[0] ?? 0, t.at(-1) ?? 1];
+          },
+        },
+      },
+      axes: [{ show: false }, niceAxis({ count: 2, size: 44 })],
+      series: [{}, { stroke: CHART.fd, fill: `${CHART.fd}40`, width: 1, points: { show: false } }],
+    }),
+    [from, to, trSeconds],
+  );
   return (
-    <div style={{ height }} data-testid="motion-chart" aria-label="Framewise displacement" role="img">
-      <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 600, height }}>
-        <AreaChart data={shown} margin={{ top: 2, right: 8, bottom: 0, left: -18 }}>
-          <XAxis dataKey="s" type="number" domain={domain} allowDataOverflow hide />
-          <YAxis
-            domain={[yTicks[0] ?? 0, yTicks.at(-1) ?? 1]}
-            ticks={yTicks}
-            tick={CHART.tick}
-            stroke={CHART.axis}
-            width={44}
-            tickFormatter={tickFormatter(yTicks)}
-          />
-          <Area dataKey="v" stroke={CHART.fd} fill={CHART.fd} fillOpacity={0.25} strokeWidth={1} isAnimationActive={false} />
-        </AreaChart>
-      </ResponsiveContainer>
+    <div data-testid="motion-chart" aria-label="Framewise displacement" role="img">
+      <UplotChart options={options} data={data} height={height} />
     </div>
   );
 });

@@ -1,10 +1,9 @@
 'use client';
 import { memo, useMemo } from 'react';
-import { Line, LineChart, ResponsiveContainer, XAxis, YAxis } from 'recharts';
+import type uPlot from 'uplot';
 import { pearson } from '@/lib/decomposition/features';
-import { CHART } from './theme';
-import { niceTicks, tickFormatter } from './ticks';
 import type { TimeRange } from './timecourse-chart';
+import { UplotChart, niceAxis, niceRange, timesOf } from './uplot-chart';
 
 const AXES = ['x', 'y', 'z'] as const;
 const COLOURS = ['#e59a7a', '#8fc79a', '#8fb3e5'];
@@ -29,16 +28,22 @@ function Traces({
   testId: string;
 }) {
   const n = series[0]?.length ?? 0;
-  const data = useMemo(
-    () => Array.from({ length: n }, (_, t) => ({ s: (droppedVolumes + t) * trSeconds, a: series[0][t], b: series[1][t], c: series[2][t] })),
-    [series, n, trSeconds, droppedVolumes],
+  const times = useMemo(() => timesOf(n, trSeconds, droppedVolumes), [n, trSeconds, droppedVolumes]);
+  const data = useMemo<uPlot.AlignedData>(() => [times, ...series.slice(0, 3)], [times, series]);
+  const end = (droppedVolumes + Math.max(n - 1, 0)) * trSeconds;
+  const from = range ? range[0] : 0;
+  const to = range ? range[1] : end;
+  const options = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
+    () => ({
+      legend: { show: false },
+      cursor: { show: false },
+      padding: [2, 8, 0, 0],
+      scales: { x: { time: false, auto: false, range: [from, Math.max(to, from + trSeconds)] }, y: { range: niceRange(3) } },
+      axes: [{ show: false }, niceAxis({ count: 3, size: 44 })],
+      series: [{}, ...AXES.map((_, i) => ({ stroke: COLOURS[i], width: 1, points: { show: false } }))],
+    }),
+    [from, to, trSeconds],
   );
-  const domain: [number, number] = range ?? [0, (droppedVolumes + Math.max(n - 1, 0)) * trSeconds];
-  const shown = useMemo(() => (range ? data.filter((d) => d.s >= range[0] && d.s <= range[1]) : data), [data, range]);
-  const yTicks = useMemo(() => {
-    const all = shown.flatMap((d) => [d.a, d.b, d.c]);
-    return all.length ? niceTicks(Math.min(...all), Math.max(...all), 3) : [0, 1];
-  }, [shown]);
   // correlation of each parameter with the component's time course (same kept volumes)
   const r = useMemo(() => series.map((s) => (s.length === timecourse.length ? pearson(s, timecourse) : null)), [series, timecourse]);
   return (
@@ -53,23 +58,8 @@ function Traces({
           </span>
         ))}
       </p>
-      <div style={{ height: 56 }} role="img" aria-label={`${title} (${unit}) with their correlation to the time course`}>
-        <ResponsiveContainer width="100%" height="100%" initialDimension={{ width: 600, height: 56 }}>
-          <LineChart data={shown} margin={{ top: 2, right: 8, bottom: 0, left: -18 }}>
-            <XAxis dataKey="s" type="number" domain={domain} allowDataOverflow hide />
-            <YAxis
-              domain={[yTicks[0] ?? 0, yTicks.at(-1) ?? 1]}
-              ticks={yTicks}
-              tick={CHART.tick}
-              stroke={CHART.axis}
-              width={44}
-              tickFormatter={tickFormatter(yTicks)}
-            />
-            {(['a', 'b', 'c'] as const).map((k, i) => (
-              <Line key={k} dataKey={k} stroke={COLOURS[i]} strokeWidth={1} dot={false} isAnimationActive={false} />
-            ))}
-          </LineChart>
-        </ResponsiveContainer>
+      <div role="img" aria-label={`${title} (${unit}) with their correlation to the time course`}>
+        <UplotChart options={options} data={data} height={56} />
       </div>
     </div>
   );
@@ -78,7 +68,7 @@ function Traces({
 /**
  * The run's six motion parameters on the time course's axis: translations x, y, z (mm) and
  * rotations about x, y, z (degrees), each with its Pearson correlation r to the component's time
- * course over the kept volumes ("—" when a parameter does not vary).
+ * course over the kept volumes ("—" when a parameter does not vary). Canvas charts (uPlot).
  */
 export const MotionTraces = memo(function MotionTraces({
   motion,

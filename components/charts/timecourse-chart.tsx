@@ -2,15 +2,10 @@
 import { memo, useLayoutEffect, useMemo, useRef, useState } from 'react';
 import type uPlot from 'uplot';
 import { CHART } from './theme';
-import { UplotChart, niceAxis, niceRange } from './uplot-chart';
+import { UplotChart, niceAxis, niceRange, timesOf } from './uplot-chart';
 
 /** A time range in seconds of acquisition time (null: the whole run). */
 export type TimeRange = [number, number] | null;
-
-/** Acquisition times (s) of the kept volumes: (dropped + t) · TR. */
-function timesOf(n: number, trSeconds: number, droppedVolumes: number): number[] {
-  return Array.from({ length: n }, (_, t) => (droppedVolumes + t) * trSeconds);
-}
 
 /**
  * A component's time course against acquisition time: x = (dropped volumes + t) · TR seconds.

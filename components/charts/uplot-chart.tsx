@@ -7,6 +7,11 @@ import { niceTicks, tickFormatter } from './ticks';
 
 export const FONT = '10px ui-monospace, SFMono-Regular, Menlo, monospace';
 
+/** Acquisition times (s) of the kept volumes: (dropped + t) · TR. */
+export function timesOf(n: number, trSeconds: number, droppedVolumes: number): number[] {
+  return Array.from({ length: n }, (_, t) => (droppedVolumes + t) * trSeconds);
+}
+
 /** An axis in the product's style whose ticks are `niceTicks` and whose labels never repeat (ticks.ts). */
 export function niceAxis(opts: { count: number; size?: number; label?: string; show?: boolean }): uPlot.Axis {
   let labels: (v: number) => string = String;

@@ -199,3 +199,18 @@ export function helpRows(
     { group: 'Help', rows: [{ keys: ['?'], does: 'This help (Esc closes)' }] },
   ];
 }
+
+/** Input types whose keys the desk leaves alone only for their own keys (Space toggles them): the desk's keys work there. */
+const KEYLESS_INPUTS = new Set(['checkbox', 'radio', 'button', 'submit', 'reset']);
+
+/**
+ * True when a key pressed on `target` belongs to it: text fields, lists, sliders (arrow keys move
+ * them) and editable text. The desk's keys then do nothing, so a rater typing a note or moving the
+ * threshold never switches components; on a ticked box or a button they work as anywhere else.
+ */
+export function keyBelongsTo(target: EventTarget | null): boolean {
+  if (!target || typeof (target as HTMLElement).tagName !== 'string') return false;
+  const el = target as HTMLElement;
+  if (el.isContentEditable || el.tagName === 'TEXTAREA' || el.tagName === 'SELECT') return true;
+  return el.tagName === 'INPUT' && !KEYLESS_INPUTS.has((el as HTMLInputElement).type);
+}

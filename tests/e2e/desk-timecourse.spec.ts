@@ -4,8 +4,10 @@
  * Checked against the run as stored: a kept volume t (0-based, after the dropped initial volumes)
  * is acquired at (dropped + t) · TR seconds (the NIfTI/BIDS convention that volume i starts at
  * i · RepetitionTime, BIDS specification "RepetitionTime"), so the first kept volume is number
- * `dropped` and the last is `dropped + n − 1`. Nothing here waits for a duration: each step waits
- * for the state it asserts.
+ * `dropped` and the last is `dropped + n − 1`. The motion parameters' correlation with the time
+ * course is Pearson's r (the sample correlation coefficient, computed here from its definition on
+ * the run's stored series). Nothing here waits for a duration: each step waits for the state it
+ * asserts.
  */
 import { expect, test, type Page } from '@playwright/test';
 import { DEMO, SignInPage } from './pages/sign-in-page';
@@ -105,4 +107,69 @@ test('the time course shows the volume and its time on hover and zooms to a drag
   await page.getByTestId('timecourse-reset').click();
   await expect(chart).toHaveAttribute('data-range', '');
   await expect(page.getByTestId('timecourse-reset')).toHaveCount(0);
+});
+
+/** Pearson's r of two equally long series (its definition: covariance over the product of standard deviations); null when one does not vary. */
+function pearsonR(a: number[], b: number[]): number | null {
+  const mean = (v: number[]) => v.reduce((x, y) => x + y, 0) / v.length;
+  const ma = mean(a);
+  const mb = mean(b);
+  let ab = 0;
+  let aa = 0;
+  let bb = 0;
+  for (let i = 0; i < a.length; i++) {
+    ab += (a[i]! - ma) * (b[i]! - mb);
+    aa += (a[i]! - ma) ** 2;
+    bb += (b[i]! - mb) ** 2;
+  }
+  return aa > 0 && bb > 0 ? ab / Math.sqrt(aa * bb) : null;
+}
+
+test('the framewise displacement is drawn; the six motion parameters show their r with each component’s time course', async ({ page }) => {
+  const signIn = new SignInPage(page);
+  await signIn.open();
+  await signIn.signIn(DEMO.rater);
+  await expect(page.getByTestId('home-heading')).toBeVisible();
+  const desk = new DeskPage(page);
+  await desk.open(run.runId);
+  await desk.press('Home'); // the desk reopens where the rater was (the test above moved on)
+  await expect(desk.position()).toHaveText(/^Component 1 of /);
+  await expect(page.getByTestId('motion-chart').locator('canvas')).toBeVisible();
+  // the run as the components API gives it: motion per kept volume and each component's time course
+  const res = await page.request.get(`/api/runs/${run.runId}/components`);
+  expect(res.ok()).toBe(true);
+  const payload = (await res.json()) as {
+    run: { motion: { translations: number[][]; rotationsDeg: number[][] } | null };
+    components: Array<{ timecourse: number[] }>;
+  };
+  const motion = payload.run.motion;
+  expect(motion, 'the e2e run has a motion table').not.toBeNull();
+  await expect(page.getByTestId('motion-traces')).toHaveCount(0);
+  await page.getByTestId('motion-toggle').check();
+  await expect(page.getByTestId('motion-traces').locator('canvas')).toHaveCount(2);
+  for (const c of [0, 1]) {
+    if (c === 1) {
+      await desk.press('j');
+      await expect(desk.position()).toHaveText(/^Component 2 of /);
+    }
+    const tc = payload.components[c]!.timecourse;
+    for (const [group, series] of [
+      ['motion-translations', motion!.translations],
+      ['motion-rotations', motion!.rotationsDeg],
+    ] as const) {
+      for (const [i, ax] of (['x', 'y', 'z'] as const).entries()) {
+        const r = pearsonR(series[i]!, tc);
+        const shown = page.getByTestId(`${group}-r-${ax}`);
+        if (r == null) {
+          await expect(shown).toHaveText(`${ax} r —`);
+          continue;
+        }
+        await expect(shown).toHaveText(new RegExp(`^${ax} r -?\\d\\.\\d{2}$`));
+        // shown to two decimals; the desk reads the time course at float32, the API as JSON: half a unit of the last decimal, and a little
+        await expect.poll(async () => Math.abs(Number((await shown.textContent())!.split(' r ')[1]) - r)).toBeLessThanOrEqual(0.0051);
+      }
+    }
+  }
+  await page.getByTestId('motion-toggle').uncheck();
+  await expect(page.getByTestId('motion-traces')).toHaveCount(0);
 });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { commandFor, helpRows, labelKeys } from '@/lib/desk/keys';
+import { commandFor, helpRows, keyBelongsTo, labelKeys } from '@/lib/desk/keys';
 
 const press = (key: string, extra: Partial<KeyboardEvent> = {}) =>
   commandFor(
@@ -46,5 +46,24 @@ describe('desk keys', () => {
     const ro = helpRows([], [], { label: (l) => l, kind: (k) => k }, true);
     expect(ro.map((g) => g.group)).not.toContain('Label');
     expect(ro.flatMap((g) => g.rows).some((r) => /Flag|Submit/.test(r.does))).toBe(false);
+  });
+});
+
+describe('keys that belong to the focused element (common practice, no source: text fields, lists and sliders keep their keys)', () => {
+  const el = (tagName: string, extra: Record<string, unknown> = {}) =>
+    ({ tagName, isContentEditable: false, ...extra }) as unknown as EventTarget;
+  it('text fields, lists, sliders and editable text keep their keys', () => {
+    expect(keyBelongsTo(el('TEXTAREA'))).toBe(true);
+    expect(keyBelongsTo(el('SELECT'))).toBe(true);
+    expect(keyBelongsTo(el('INPUT', { type: 'text' }))).toBe(true);
+    expect(keyBelongsTo(el('INPUT', { type: 'range' }))).toBe(true);
+    expect(keyBelongsTo(el('DIV', { isContentEditable: true }))).toBe(true);
+  });
+  it('on a tick box, a button or the page the desk’s keys work', () => {
+    expect(keyBelongsTo(el('INPUT', { type: 'checkbox' }))).toBe(false);
+    expect(keyBelongsTo(el('INPUT', { type: 'radio' }))).toBe(false);
+    expect(keyBelongsTo(el('BUTTON'))).toBe(false);
+    expect(keyBelongsTo(el('BODY'))).toBe(false);
+    expect(keyBelongsTo(null)).toBe(false);
   });
 });

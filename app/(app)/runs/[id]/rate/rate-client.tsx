@@ -3,7 +3,7 @@ import Link from 'next/link';
 import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { postJson } from '@/lib/api/client';
-import { commandFor } from '@/lib/desk/keys';
+import { commandFor, keyBelongsTo } from '@/lib/desk/keys';
 import { useDeskSeries } from '@/lib/desk/use-desk-series';
 import { useVotes, votesKey } from '@/lib/desk/use-vote';
 import { useDeskPosition } from '@/lib/desk/use-desk-position';
@@ -150,8 +150,7 @@ export function RateClient({
 
   useEffect(() => {
     const onKey = (e: KeyboardEvent) => {
-      const target = e.target as HTMLElement | null;
-      if (target && (target.tagName === 'TEXTAREA' || target.tagName === 'INPUT' || target.isContentEditable)) return;
+      if (keyBelongsTo(e.target)) return;
       const cmd = commandFor(e, run.labelSet);
       if (!cmd) return;
       if (help && cmd.type !== 'help' && cmd.type !== 'close') return;

@@ -1,7 +1,7 @@
 'use client';
 import Link from 'next/link';
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
-import { commandFor } from '@/lib/desk/keys';
+import { commandFor, keyBelongsTo } from '@/lib/desk/keys';
 import { useDeskPrefs } from '@/lib/desk/prefs';
 import type { DeskComponent, DeskRun, OtherVote } from '@/lib/desk/types';
 import type { ViewerApi } from '@/components/viewer';
@@ -62,12 +62,7 @@ export function ViewClient({
 
   useEffect(() => {
     const onKey = (e: KeyboardEvent) => {
-      const target = e.target as HTMLElement | null;
-      if (
-        target &&
-        (target.tagName === 'TEXTAREA' || target.tagName === 'INPUT' || target.tagName === 'SELECT' || target.isContentEditable)
-      )
-        return;
+      if (keyBelongsTo(e.target)) return;
       const cmd = commandFor(e, []);
       if (!cmd) return;
       if (help && cmd.type !== 'help' && cmd.type !== 'close') return;
