@@ -11,6 +11,7 @@
 // Needs a production build (`npm run build`, or QUORUM_NEXT_DIST) and the local MariaDB (started if
 // not running). Its database (BENCH_DESK_DB, default quorum_e2e_bench) and files (.data/bench-uploads)
 // are kept between runs so the 80-component decomposition is made once; BENCH_DESK_FRESH=1 remakes it.
+// The warm first load is the median of BENCH_DESK_WARM_LOADS (7) reloads of the desk from itself.
 // Settings: BENCH_DESK_PORT (3590), BENCH_DESK_SWITCHES (40), BENCH_DESK_K (80), BENCH_DESK_SIZE (S),
 // BENCH_DESK_PROFILE=1 (also prints the warm load's requests and marks in time order, and where the
 // page's main thread spends its time during the load and the switches), BENCH_DESK_SCREENSHOT=<file.png> (a picture of the loaded desk).
@@ -31,6 +32,7 @@ const UPLOADS = path.join(root, '.data/bench-uploads');
 const DIST = process.env.QUORUM_NEXT_DIST || '.next';
 const RATER = 'rater1@fernhollow.example';
 const TARGETS = { app: 30, painted: 150, load: 1500 };
+const WARM_LOADS = Math.max(1, Number(process.env.BENCH_DESK_WARM_LOADS ?? 7));
 
 const env = { ...process.env, QUORUM_DB_NAME: DB_NAME, QUORUM_UPLOADS_DIR: UPLOADS };
 const tsx = (args: string[], extra: Record<string, string> = {}) =>
@@ -211,9 +213,13 @@ export async function main(): Promise<void> {
     const cold = await loadDesk(page, run.runId);
     const loadProfile = loadCdp ? ((await loadCdp.send('Profiler.stop')) as { profile: Profile }).profile : null;
     await loadCdp?.detach();
-    const warm = await loadDesk(page, run.runId);
+    // the warm load (the browser has the page's scripts; the desk reloaded from itself): the median of WARM_LOADS
+    const warmLoads: Array<Awaited<ReturnType<typeof loadDesk>>> = [];
+    for (let i = 0; i < WARM_LOADS; i++) warmLoads.push(await loadDesk(page, run.runId));
+    const warmTimes = warmLoads.map((w) => w.painted);
+    const warm = warmLoads.at(-1)!;
     if (process.env.BENCH_DESK_PROFILE === '1')
-      console.log(['warm load, ms from navigation (requests: start → end):', ...warm.timeline].join('\n'));
+      console.log(['last warm load, ms from navigation (requests: start → end):', ...warm.timeline].join('\n'));
     if (process.env.BENCH_DESK_SCREENSHOT) await page.screenshot({ path: process.env.BENCH_DESK_SCREENSHOT, fullPage: true });
     await page.keyboard.press('Home');
     await page
@@ -251,7 +257,7 @@ export async function main(): Promise<void> {
 
     console.log(`run: ${run.k} components, phantom ${SIZE}; headless Chromium, software WebGL (SwiftShader); viewport 1440 × 900`);
     console.log(
-      `first load (navigation → map painted), cold cache ${fmt(cold.painted)}   warm ${fmt(warm.painted)}   target ≤ ${TARGETS.load} ms`,
+      `first load (navigation → map painted), cold cache ${fmt(cold.painted)}   warm ${fmt(median(warmTimes))} (median of ${WARM_LOADS}; ${Math.min(...warmTimes).toFixed(0)}–${Math.max(...warmTimes).toFixed(0)} ms)   target ≤ ${TARGETS.load} ms`,
     );
     console.log(
       `  page HTML received after ${fmt(cold.html)} (${(cold.htmlBytes / 1024).toFixed(0)} KB over the wire); shown component's map received after ${fmt(cold.mapsEnd)} (${(cold.mapsBytes / 1024).toFixed(0)} KB)`,
