@@ -4,7 +4,7 @@ import type uPlot from 'uplot';
 import { CHART } from './theme';
 import { niceTicks } from './ticks';
 import type { TimeRange } from './timecourse-chart';
-import { UplotChart, niceAxis, timesOf } from './uplot-chart';
+import { UplotChart, niceAxis, timesOf, timeWindow } from './uplot-chart';
 
 /** Framewise displacement (mm) of the run on the same time axis as the time course (a canvas chart, uPlot). */
 export const MotionChart = memo(function MotionChart({
@@ -22,16 +22,14 @@ export const MotionChart = memo(function MotionChart({
 }) {
   const times = useMemo(() => timesOf(fd.length, trSeconds, droppedVolumes), [fd.length, trSeconds, droppedVolumes]);
   const data = useMemo<uPlot.AlignedData>(() => [times, fd], [times, fd]);
-  const end = (droppedVolumes + Math.max(fd.length - 1, 0)) * trSeconds;
-  const from = range ? range[0] : 0;
-  const to = range ? range[1] : end;
+  const [from, to] = timeWindow(range, fd.length, trSeconds, droppedVolumes);
   const options = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
     () => ({
       legend: { show: false },
       cursor: { show: false },
       padding: [2, 8, 0, 0],
       scales: {
-        x: { time: false, auto: false, range: [from, Math.max(to, from + trSeconds)] },
+        x: { time: false, auto: false, range: [from, to] },
         // from 0, two or three ticks with labels that never repeat (a fixed one decimal read "0.0 0.0" on a still run)
         y: {
           range: (_u, _min, max) => {
@@ -43,7 +41,7 @@ export const MotionChart = memo(function MotionChart({
       axes: [{ show: false }, niceAxis({ count: 2, size: 44 })],
       series: [{}, { stroke: CHART.fd, fill: `${CHART.fd}40`, width: 1, points: { show: false } }],
     }),
-    [from, to, trSeconds],
+    [from, to],
   );
   return (
     <div data-testid="motion-chart" aria-label="Framewise displacement" role="img">

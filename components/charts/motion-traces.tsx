@@ -3,7 +3,7 @@ import { memo, useMemo } from 'react';
 import type uPlot from 'uplot';
 import { pearson } from '@/lib/decomposition/features';
 import type { TimeRange } from './timecourse-chart';
-import { UplotChart, niceAxis, niceRange, timesOf } from './uplot-chart';
+import { UplotChart, niceAxis, niceRange, timesOf, timeWindow } from './uplot-chart';
 
 const AXES = ['x', 'y', 'z'] as const;
 const COLOURS = ['#e59a7a', '#8fc79a', '#8fb3e5'];
@@ -30,19 +30,17 @@ function Traces({
   const n = series[0]?.length ?? 0;
   const times = useMemo(() => timesOf(n, trSeconds, droppedVolumes), [n, trSeconds, droppedVolumes]);
   const data = useMemo<uPlot.AlignedData>(() => [times, ...series.slice(0, 3)], [times, series]);
-  const end = (droppedVolumes + Math.max(n - 1, 0)) * trSeconds;
-  const from = range ? range[0] : 0;
-  const to = range ? range[1] : end;
+  const [from, to] = timeWindow(range, n, trSeconds, droppedVolumes);
   const options = useMemo<Omit<uPlot.Options, 'width' | 'height'>>(
     () => ({
       legend: { show: false },
       cursor: { show: false },
       padding: [2, 8, 0, 0],
-      scales: { x: { time: false, auto: false, range: [from, Math.max(to, from + trSeconds)] }, y: { range: niceRange(3) } },
+      scales: { x: { time: false, auto: false, range: [from, to] }, y: { range: niceRange(3) } },
       axes: [{ show: false }, niceAxis({ count: 3, size: 44 })],
       series: [{}, ...AXES.map((_, i) => ({ stroke: COLOURS[i], width: 1, points: { show: false } }))],
     }),
-    [from, to, trSeconds],
+    [from, to],
   );
   // correlation of each parameter with the component's time course (same kept volumes)
   const r = useMemo(() => series.map((s) => (s.length === timecourse.length ? pearson(s, timecourse) : null)), [series, timecourse]);

@@ -2,7 +2,7 @@
 import { memo, useLayoutEffect, useMemo, useRef, useState } from 'react';
 import type uPlot from 'uplot';
 import { CHART } from './theme';
-import { UplotChart, niceAxis, niceRange, timesOf } from './uplot-chart';
+import { UplotChart, niceAxis, niceRange, timesOf, timeWindow } from './uplot-chart';
 
 /** A time range in seconds of acquisition time (null: the whole run). */
 export type TimeRange = [number, number] | null;
@@ -30,9 +30,7 @@ export const TimecourseChart = memo(function TimecourseChart({
   height?: number;
 }) {
   const n = values.length;
-  const end = (droppedVolumes + Math.max(n - 1, 0)) * trSeconds;
-  const from = range ? range[0] : 0;
-  const to = range ? range[1] : end;
+  const [from, to] = timeWindow(range, n, trSeconds, droppedVolumes);
   const times = useMemo(() => timesOf(n, trSeconds, droppedVolumes), [n, trSeconds, droppedVolumes]);
   const data = useMemo<uPlot.AlignedData>(() => [times, values as number[]], [times, values]);
   const [hover, setHover] = useState<number | null>(null);
@@ -51,7 +49,7 @@ export const TimecourseChart = memo(function TimecourseChart({
         drag: { x: true, y: false, setScale: false },
       },
       select: { show: true, left: 0, top: 0, width: 0, height: 0 },
-      scales: { x: { time: false, auto: false, range: [from, Math.max(to, from + trSeconds)] }, y: { range: niceRange(4) } },
+      scales: { x: { time: false, auto: false, range: [from, to] }, y: { range: niceRange(4) } },
       axes: [niceAxis({ count: 6, size: 26 }), niceAxis({ count: 4, size: 44 })],
       series: [{}, { stroke: CHART.trace, width: 1.25, points: { show: false } }],
       hooks: {

@@ -12,6 +12,16 @@ export function timesOf(n: number, trSeconds: number, droppedVolumes: number): n
   return Array.from({ length: n }, (_, t) => (droppedVolumes + t) * trSeconds);
 }
 
+/**
+ * The time axis's window in seconds: the rater's range, or from 0 s (the dropped volumes' band
+ * included) to the last kept volume; never narrower than one TR.
+ */
+export function timeWindow(range: [number, number] | null, n: number, trSeconds: number, droppedVolumes: number): [number, number] {
+  const from = range ? range[0] : 0;
+  const to = range ? range[1] : (droppedVolumes + Math.max(n - 1, 0)) * trSeconds;
+  return [from, Math.max(to, from + trSeconds)];
+}
+
 /** An axis in the product's style whose ticks are `niceTicks` and whose labels never repeat (ticks.ts). */
 export function niceAxis(opts: { count: number; size?: number; label?: string; show?: boolean }): uPlot.Axis {
   let labels: (v: number) => string = String;
