@@ -193,6 +193,19 @@ function goToCluster(nv: Niivue, frame: number, i: number, draw: boolean, cluste
   nv.drawScene();
 }
 
+const sourceIds = new WeakMap<object, number>();
+let nextSourceId = 1;
+
+/** Names what the viewer shows (the underlay and the maps): a new source is a new viewer on a new canvas. */
+function sourceKey(p: VolumeViewerProps): string {
+  let id = 0;
+  if (p.maps) {
+    id = sourceIds.get(p.maps) ?? nextSourceId++;
+    sourceIds.set(p.maps, id);
+  }
+  return `${p.meanUrl}|${p.componentsUrl ?? ''}|${id}`;
+}
+
 type MapShown = { frame: number; key: string; clusterKey: string };
 
 /**
@@ -227,6 +240,7 @@ function applyLayout(nv: Niivue, canvas: HTMLCanvasElement, p: VolumeViewerProps
     nv.opts.sliceType = nv.sliceTypeMultiplanar;
   }
   shownRef.current = key;
+  canvas.setAttribute('data-layout', key); // for people's tools and the browser tests, like data-zoom
   return true;
 }
 
@@ -264,6 +278,7 @@ function showMap(
   const frameChanged = before?.frame !== held;
   shownRef.current = { frame: held, key, clusterKey };
   if (!frameChanged && before?.key === key) return; // as shown
+  nv.canvas?.setAttribute('data-map', held === -1 ? 'none' : String(held)); // the 0-based component whose map is drawn
   if (held === -1 || !frameChanged) {
     if (held !== -1) clustersOf(nv, frame, clustersRef, latest);
     blendMaps(nv);
@@ -295,7 +310,10 @@ function showMap(
 export default function VolumeViewer(props: VolumeViewerProps) {
   const canvasRef = useRef<HTMLCanvasElement>(null);
   const nvRef = useRef<Niivue | null>(null);
-  const [ready, setReady] = useState(false);
+  // the viewer whose layers are in place: a new source makes a new viewer, and the effects below run
+  // again once it is ready (on its own canvas: a canvas whose WebGL context was released gets no other)
+  const [readyNv, setReadyNv] = useState<Niivue | null>(null);
+  const ready = readyNv !== null;
   const underlayShown = useRef<string | null>(null);
   const [underlayReady, setUnderlayReady] = useState<string | null>(null);
   const latest = useRef(props);
@@ -316,7 +334,12 @@ export default function VolumeViewer(props: VolumeViewerProps) {
     const canvas = canvasRef.current;
     if (!canvas || (!props.componentsUrl && !props.maps)) return; // the desk's maps are on their way
     let cancelled = false;
+    // a new viewer: nothing of the previous one's layout, map or clusters is on it
     clustersRef.current.frame = -1;
+    layoutShown.current = null;
+    mapShown.current = null;
+    canvas.removeAttribute('data-layout');
+    canvas.removeAttribute('data-map');
     const nv = new Niivue({
       backColor: [0.039, 0.047, 0.063, 1],
       crosshairColor: [0.31, 0.72, 0.69, 0.75],
@@ -377,7 +400,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
       // finished picture (the effects below then find nothing to change)
       applyLayout(nv, canvas, latest.current, layoutShown);
       showMap(nv, latest, mapShown, clustersRef, firstPainted);
-      setReady(true);
+      setReadyNv(nv);
       setUnderlayReady(under);
     })().catch((err: Error) => {
       if (!cancelled) latest.current.onError?.(`The maps could not be loaded: ${err.message}`);
@@ -398,7 +421,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
   const underlayUrl = props.underlayUrl || props.meanUrl;
   useEffect(() => {
     const nv = nvRef.current;
-    if (!nv || !ready || nv.volumes.length < 2) return;
+    if (!nv || !readyNv || nv.volumes.length < 2) return;
     if (underlayShown.current === underlayUrl) return;
     let cancelled = false;
     (async () => {
@@ -413,13 +436,13 @@ export default function VolumeViewer(props: VolumeViewerProps) {
     return () => {
       cancelled = true;
     };
-  }, [underlayUrl, ready]);
+  }, [underlayUrl, readyNv]);
 
   // layout: three planes with one large, or a mosaic that fills the viewer
   useEffect(() => {
     const nv = nvRef.current;
     const canvas = canvasRef.current;
-    if (!nv || !ready || !canvas) return;
+    if (!nv || !readyNv || !canvas || nv.volumes.length === 0) return; // a new viewer sets its layout when its layers are in
     const apply = () => {
       if (applyLayout(nv, canvas, latest.current, layoutShown)) nv.drawScene();
     };
@@ -428,15 +451,25 @@ export default function VolumeViewer(props: VolumeViewerProps) {
     const ro = new ResizeObserver(() => apply());
     ro.observe(canvas);
     return () => ro.disconnect();
-  }, [props.layout, props.plane, ready]);
+  }, [props.layout, props.plane, readyNv]);
 
   // the map layer: the component's frame, the threshold and scale, sign and opacity
   const overlay = props.overlay ?? DEFAULT_OVERLAY;
   useEffect(() => {
     const nv = nvRef.current;
-    if (!nv || !ready || nv.volumes.length < 2) return;
+    if (!nv || !readyNv || nv.volumes.length < 2) return;
     showMap(nv, latest, mapShown, clustersRef, firstPainted);
-  }, [props.frame, props.threshold, props.maxZ, overlay.sign, overlay.visible, overlay.opacity, ready, props.followPeak, props.frameReady]);
+  }, [
+    props.frame,
+    props.threshold,
+    props.maxZ,
+    overlay.sign,
+    overlay.visible,
+    overlay.opacity,
+    readyNv,
+    props.followPeak,
+    props.frameReady,
+  ]);
 
   // the desk's keys; the zoom is written on the canvas (data-zoom) for people's tools and the browser tests
   useEffect(() => {
@@ -490,6 +523,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
   return (
     <div className="relative h-full w-full">
       <canvas
+        key={sourceKey(props)}
         ref={canvasRef}
         data-testid="viewer-canvas"
         data-zoom="1"

@@ -12,29 +12,33 @@ import { sql } from './helpers/e2e-db';
 const A = 'rater3@fernhollow.example';
 const B = 'rater4@fernhollow.example';
 let run: E2eRun;
+let run2: E2eRun;
 let studyId: number;
 
-async function rateAndSubmit(ctx: APIRequestContext, labelFor: (i: number) => string) {
-  for (const [i, id] of run.componentIds.entries()) {
+async function rateAndSubmit(ctx: APIRequestContext, labelFor: (i: number) => string, of: E2eRun) {
+  for (const [i, id] of of.componentIds.entries()) {
     const label = labelFor(i);
-    const res = await ctx.put(`/api/runs/${run.runId}/votes/${id}`, {
+    const res = await ctx.put(`/api/runs/${of.runId}/votes/${id}`, {
       data: { label, noiseKind: label === 'noise' ? 'motion' : null, baseVersion: 0 },
     });
     expect(res.status(), await res.text()).toBe(200);
   }
-  expect((await ctx.post(`/api/runs/${run.runId}/submit`, { data: {} })).status()).toBe(200);
+  expect((await ctx.post(`/api/runs/${of.runId}/submit`, { data: {} })).status()).toBe(200);
 }
 
 test.beforeAll(async ({ baseURL }) => {
   run = createE2eRun({ raters: [A, B], size: 'tiny', seed: 33 });
+  run2 = createE2eRun({ raters: [A, B], size: 'tiny', seed: 34 });
   studyId = Number(sql<{ s: number }>(`SELECT study_id AS s FROM runs WHERE id = ${run.runId}`)[0].s);
   const a = await pwRequest.newContext({ baseURL });
   const b = await pwRequest.newContext({ baseURL });
   await apiSignIn(a, A);
   await apiSignIn(b, B);
   // they agree on every component but the first, where one says noise and the other signal
-  await rateAndSubmit(a, (i) => (i === 0 ? 'noise' : 'signal'));
-  await rateAndSubmit(b, () => 'signal');
+  for (const r of [run, run2]) {
+    await rateAndSubmit(a, (i) => (i === 0 ? 'noise' : 'signal'), r);
+    await rateAndSubmit(b, () => 'signal', r);
+  }
   await a.dispose();
   await b.dispose();
 });
@@ -59,6 +63,21 @@ test('a lead reconciles a disagreement with a reason, and the agreement page sho
   await expect(page.getByTestId('reconcile-votes')).toContainText('Noise');
   await expect(page.getByTestId('reconcile-votes')).toContainText('Signal');
   await expect(page.getByTestId('timecourse-chart')).toBeVisible();
+  // the viewer draws the layout and the component's map (data-layout, data-map: the 0-based component)
+  const canvas = page.getByTestId('viewer-canvas');
+  await expect(canvas).toHaveAttribute('data-layout', /^(planes|mosaic)\|/);
+  await expect(canvas).toHaveAttribute('data-map', '0');
+  // another run: the viewer starts again and draws that run's layout and map, not the first run's state
+  const sub2 = sql<{ sub: string }>(`SELECT sub FROM runs WHERE id = ${run2.runId}`)[0]!.sub;
+  await page
+    .getByTestId('reconcile-list')
+    .getByRole('button', { name: new RegExp(`sub-${sub2}_.*component 1 of ${run2.k}`) })
+    .click();
+  await expect(canvas).toHaveAttribute('data-layout', /^(planes|mosaic)\|/);
+  await expect(canvas).toHaveAttribute('data-map', '0');
+  await expect(page.getByTestId('reconcile-votes')).toContainText('Noise');
+  await entry.click();
+  await expect(canvas).toHaveAttribute('data-map', '0');
 
   // the desk's map panel offers the run's structural underlay here too (issue 14); the structural
   // image is the run's own mean image, attached the way the upload leaves it (key and name on the run)
