@@ -9,17 +9,23 @@ import { encodeSeries } from '@/lib/desk/series-payload';
 import { requireAssignedRun } from './assigned-run';
 
 /**
- * The payload's version: the components of a decomposition never change, and which of them the
- * desk lists follows the study's reproducibility rule, so the two name its content.
+ * The payload and its version. The components of a decomposition never change, and which of them
+ * the desk lists follows the study's reproducibility rule, so the two name its content; `bytes` is
+ * null when the caller already holds that version (`unless`), and the components are then not read.
  */
-export async function deskSeriesVersion({ user, runId }: { user: { id: number }; runId: number }): Promise<string> {
+export async function loadDeskSeries({
+  user,
+  runId,
+  unless,
+}: {
+  user: { id: number };
+  runId: number;
+  unless?: string | null;
+}): Promise<{ version: string; bytes: Uint8Array | null }> {
   const run = await requireAssignedRun({ user, runId });
   const rule = run.reproducibilityRule;
-  return `d${run.decompositionId}-series-${rule.policy}-${rule.policy === 'flag' ? '' : rule.threshold}`;
-}
-
-export async function loadDeskSeries({ user, runId }: { user: { id: number }; runId: number }): Promise<Uint8Array> {
-  const run = await requireAssignedRun({ user, runId });
-  const { components } = arrangeForDesk(await componentsOfDecomposition({ decompositionId: run.decompositionId }), run.reproducibilityRule);
-  return encodeSeries(components);
+  const version = `d${run.decompositionId}-series-${rule.policy}-${rule.policy === 'flag' ? '' : rule.threshold}`;
+  if (unless === version) return { version, bytes: null };
+  const { components } = arrangeForDesk(await componentsOfDecomposition({ decompositionId: run.decompositionId }), rule);
+  return { version, bytes: encodeSeries(components) };
 }

@@ -56,13 +56,19 @@ async function hoverAt(page: Page, x: number, y: number) {
   return { volume: Number(m![1]), seconds: Number(m![2]) };
 }
 
-test('the time course shows the volume and its time on hover and zooms to a dragged range', async ({ page }) => {
+/** Signs in as the rater and opens the run's desk. */
+async function openDesk(page: Page) {
   const signIn = new SignInPage(page);
   await signIn.open();
   await signIn.signIn(DEMO.rater);
   await expect(page.getByTestId('home-heading')).toBeVisible();
   const desk = new DeskPage(page);
   await desk.open(run.runId);
+  return desk;
+}
+
+test('the time course shows the volume and its time on hover and zooms to a dragged range', async ({ page }) => {
+  const desk = await openDesk(page);
   await expect(page.getByTestId('timecourse-chart')).toHaveAttribute('data-range', '');
 
   const box = await plotBox(page);
@@ -126,12 +132,7 @@ function pearsonR(a: number[], b: number[]): number | null {
 }
 
 test('the framewise displacement is drawn; the six motion parameters show their r with each component’s time course', async ({ page }) => {
-  const signIn = new SignInPage(page);
-  await signIn.open();
-  await signIn.signIn(DEMO.rater);
-  await expect(page.getByTestId('home-heading')).toBeVisible();
-  const desk = new DeskPage(page);
-  await desk.open(run.runId);
+  const desk = await openDesk(page);
   await desk.press('Home'); // the desk reopens where the rater was (the test above moved on)
   await expect(desk.position()).toHaveText(/^Component 1 of /);
   await expect(page.getByTestId('motion-chart').locator('canvas')).toBeVisible();
