@@ -70,7 +70,10 @@ export function blendMapsOnCpu(nv: Niivue): boolean {
   const opacity = maps.opacity;
   const out = new Uint8Array(nVox * 4);
   const c = new Float32Array(4);
-  // colour of one value, memoised per frame is not worth it: most voxels are below the threshold
+  // every value at or below the positive range's start (outside the negative range) reads the
+  // table's first entry, as the GPU's clamped sampling does: most voxels, computed once
+  sampleLut(posLut, 0, c);
+  const below = [...c.slice(0, 3), c[3] < 0.00001 ? 0 : opacity].map((v) => Math.round(v * 255));
   let o = 0;
   for (let z = 0; z < nz; z++) {
     const zi = start[2] + z * step[2];
@@ -78,9 +81,17 @@ export function blendMapsOnCpu(nv: Niivue): boolean {
       const yi = start[1] + y * step[1];
       for (let x = 0; x < nx; x++, o += 4) {
         const f = slope * img[off + start[0] + x * step[0] + yi + zi] + inter;
+        const negative = mnNeg < mxNeg && f < mxNeg;
+        if (f <= mnPos && !negative) {
+          out[o] = below[0];
+          out[o + 1] = below[1];
+          out[o + 2] = below[2];
+          out[o + 3] = below[3];
+          continue;
+        }
         let txl = (f - mnPos) / rPos;
         if (f > mnPos) txl = Math.max(txl, 2 / 256);
-        if (mnNeg < mxNeg && f < mxNeg) {
+        if (negative) {
           txl = Math.max(1 - (f - mnNeg) / rNeg, 2 / 256);
           sampleLut(negLut, txl, c);
         } else sampleLut(posLut, txl, c);

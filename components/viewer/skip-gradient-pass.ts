@@ -1,4 +1,5 @@
 import type { Niivue } from '@niivue/niivue';
+import { idleWhileBound } from './gl-gate';
 
 // Off-screen: every vertex lies outside the clip volume, so no fragment is ever shaded.
 const VERT = `#version 300 es
@@ -14,7 +15,8 @@ void main() { color = vec4(0.0); }`;
  * blended: two shader passes over every slice, used only to shade 3D renderings, which the desk and
  * the run view never show (three planes or a mosaic of slices). In software WebGL that costs
  * ≈ 0.3–0.7 s at each load and underlay swap. This swaps the four shaders of that pass for one that
- * draws nothing, so the pass leaves an empty gradient texture and costs almost nothing. Tied to the
+ * draws nothing, and while that one is bound the context drops the pass's per-slice attach, check
+ * and draw (gl-gate.ts): the pass leaves an empty gradient texture and costs almost nothing. Tied to the
  * library's internals at its pinned version (the shaders are fields named blurShader,
  * gradientPrePassShader, sobelFirstOrderShader and sobelSecondOrderShader, each used through `use(gl)`
  * and `uniforms`); if the fields are not there, nothing is changed. Call after attachToCanvas.
@@ -28,6 +30,7 @@ export function skipGradientPass(nv: Niivue): boolean {
   if (!program) return false;
   // uniforms: none; the library's uniform calls then get a null location, which WebGL ignores
   const nothing = { program, uniforms: {}, use: (g: WebGL2RenderingContext) => g.useProgram(program) };
+  idleWhileBound(gl, program);
   for (const f of fields) target[f] = nothing;
   return true;
 }

@@ -3,6 +3,7 @@ import { useEffect, useLayoutEffect, useRef, useState } from 'react';
 import { DRAG_MODE, NVImage, Niivue, SHOW_RENDER, SLICE_TYPE, type NiiVueLocation } from '@niivue/niivue';
 import { DUSK, EMBER, NONE } from './colormaps';
 import { blendMapsOnCpu } from './cpu-blend';
+import { withoutPasses } from './gl-gate';
 import { skipGradientPass } from './skip-gradient-pass';
 import { findClusters, maxAbs, type Cluster, type Sign } from '@/lib/desk/clusters';
 import { mosaicSpec, planMosaic } from '@/lib/desk/mosaic';
@@ -124,13 +125,20 @@ function setLayers(nv: Niivue, volumes: Vol[], { draw }: { draw: boolean }) {
     nv.setVolume(volumes[0], 0); // sets the underlay and overlays, then one updateGLVolume (which draws)
     return;
   }
-  // the caller draws once, after the map is in: at load, one frame to wait for instead of two
+  // the caller blends the map and draws once, after the map is in: at load, one frame to wait for
+  // instead of two; the map layer's GPU blend here would be overwritten by that blend (the texture it
+  // allocates is kept), so its passes are dropped
   const drawScene = nv.drawScene;
+  const refreshLayers = nv.refreshLayers;
+  const gl = nv.gl as WebGL2RenderingContext;
   nv.drawScene = () => undefined;
+  nv.refreshLayers = (vol: Vol, layer: number) =>
+    layer === 1 ? withoutPasses(gl, () => refreshLayers.call(nv, vol, layer)) : refreshLayers.call(nv, vol, layer);
   try {
     nv.setVolume(volumes[0], 0);
   } finally {
     nv.drawScene = drawScene;
+    nv.refreshLayers = refreshLayers;
   }
 }
 

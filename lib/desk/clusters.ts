@@ -20,7 +20,8 @@ export type Sign = 'both' | 'positive' | 'negative';
 
 /**
  * Clusters with |z| ≥ threshold (of the requested sign), largest first (ties: larger |peak| first),
- * at most `limit` of them. Single-pass flood fill with an explicit stack; O(voxels).
+ * at most `limit` of them. One pass marks the voxels that pass, then a flood fill with an explicit
+ * stack; O(voxels).
  */
 export function findClusters(
   at: (i: number) => number,
@@ -29,23 +30,27 @@ export function findClusters(
   { sign = 'both', limit = 50 }: { sign?: Sign; limit?: number } = {},
 ): Cluster[] {
   const [nx, ny, nz] = dims;
-  const n = nx * ny * nz;
-  const seen = new Uint8Array(n);
+  const nxy = nx * ny;
+  const n = nxy * nz;
+  // one pass over the frame: 1 for a positive voxel that passes, -1 for a negative one, 0 otherwise
+  const group = new Int8Array(n);
+  for (let i = 0; i < n; i++) {
+    const v = at(i);
+    if (!Number.isFinite(v)) continue;
+    const passes = sign === 'positive' ? v >= threshold : sign === 'negative' ? v <= -threshold : Math.abs(v) >= threshold;
+    if (passes) group[i] = v > 0 ? 1 : -1;
+  }
   const stack = new Int32Array(n);
-  const passes = (v: number) =>
-    Number.isFinite(v) && (sign === 'positive' ? v >= threshold : sign === 'negative' ? v <= -threshold : Math.abs(v) >= threshold);
   const out: Cluster[] = [];
   for (let start = 0; start < n; start++) {
-    if (seen[start]) continue;
-    const v0 = at(start);
-    if (!passes(v0)) continue;
-    const positive = v0 > 0;
-    seen[start] = 1;
+    const g = group[start];
+    if (g === 0) continue;
+    group[start] = 0; // taken
     let top = 0;
     stack[top++] = start;
     let size = 0;
     let peakIdx = start;
-    let peakAbs = Math.abs(v0);
+    let peakAbs = Math.abs(at(start));
     while (top > 0) {
       const i = stack[--top];
       size++;
@@ -54,23 +59,22 @@ export function findClusters(
         peakAbs = a;
         peakIdx = i;
       }
-      const x = i % nx;
-      const y = Math.floor(i / nx) % ny;
-      const z = Math.floor(i / (nx * ny));
+      const z = Math.floor(i / nxy);
+      const y = Math.floor((i - z * nxy) / nx);
+      const x = i - z * nxy - y * nx;
       for (let dz = -1; dz <= 1; dz++) {
         const zz = z + dz;
         if (zz < 0 || zz >= nz) continue;
         for (let dy = -1; dy <= 1; dy++) {
           const yy = y + dy;
           if (yy < 0 || yy >= ny) continue;
+          const row = nx * (yy + ny * zz);
           for (let dx = -1; dx <= 1; dx++) {
             const xx = x + dx;
             if (xx < 0 || xx >= nx) continue;
-            const j = xx + nx * (yy + ny * zz);
-            if (seen[j]) continue;
-            const v = at(j);
-            if (!passes(v) || v > 0 !== positive) continue;
-            seen[j] = 1;
+            const j = xx + row;
+            if (group[j] !== g) continue;
+            group[j] = 0;
             stack[top++] = j;
           }
         }
