@@ -4,6 +4,7 @@ import { DRAG_MODE, NVImage, Niivue, SHOW_RENDER, SLICE_TYPE, type NiiVueLocatio
 import { DUSK, EMBER, NONE } from './colormaps';
 import { blendMapsOnCpu } from './cpu-blend';
 import { withoutPasses } from './gl-gate';
+import { deferProgramsOn } from './lazy-programs';
 import { skipGradientPass } from './skip-gradient-pass';
 import { findClusters, maxAbs, type Cluster, type Sign } from '@/lib/desk/clusters';
 import { mosaicSpec, planMosaic } from '@/lib/desk/mosaic';
@@ -370,6 +371,7 @@ export default function VolumeViewer(props: VolumeViewerProps) {
       ? NVImage.loadFromUrl({ url: start.underlayUrl || start.meanUrl, name: 'underlay.nii.gz', colormap: 'gray' })
       : null;
     underFirst?.catch(() => undefined); // reported below, once awaited
+    deferProgramsOn(canvas); // the library's ≈ 37 programs: each compiled when first drawn with
     (async () => {
       await nv.attachToCanvas(canvas);
       skipGradientPass(nv); // no 3D rendering here: the underlay's gradient pass is not needed

@@ -8,7 +8,7 @@
 import { expect, test, type Page } from '@playwright/test';
 import { DEMO, SignInPage } from './pages/sign-in-page';
 import { DeskPage } from './pages/desk-page';
-import { createE2eRun, distinctColours, findKey, type E2eRun } from './helpers/e2e-run';
+import { createE2eRun, distinctColours, findKey, mapColourShare, type E2eRun } from './helpers/e2e-run';
 import { sql } from './helpers/e2e-db';
 
 let run: E2eRun;
@@ -59,6 +59,15 @@ test('a rater labels a whole run by keyboard, reloads, submits; the next rater s
   const colours = await distinctColours(page, '[data-testid="viewer-canvas"]');
   console.log(`viewer canvas: ${colours} distinct colours`);
   expect(colours, 'the viewer draws the mean image and the map').toBeGreaterThan(64);
+  // the map's own colours are there, and go with the map layer (O turns it off and on)
+  const canvas = '[data-testid="viewer-canvas"]';
+  const shown = await mapColourShare(page, canvas);
+  console.log(`viewer canvas: ${(shown * 100).toFixed(2)} % of pixels in the map's colours`);
+  expect(shown, 'the map is drawn in its colours').toBeGreaterThan(0.001);
+  await desk.press('o');
+  await expect.poll(() => mapColourShare(page, canvas), { message: 'the map layer off: none of its colours' }).toBe(0);
+  await desk.press('o');
+  await expect.poll(() => mapColourShare(page, canvas), { message: 'the map layer on again' }).toBeGreaterThan(0.001);
 
   // click the map: the crosshair moves and the voxel's mm coordinates and z are read out
   const box = (await page.getByTestId('viewer-canvas').boundingBox())!;

@@ -51,6 +51,30 @@ export async function distinctColours(page: Page, selector: string): Promise<num
   }, png.toString('base64'));
 }
 
+/**
+ * Share of an element's screenshot in the map's colours: saturated pixels (max − min channel > 60 of
+ * 255) that are not the teal crosshair (green and blue both above red). The grey underlay, the white
+ * letters and the dark background are not counted. (Our own colour tables: components/viewer/colormaps.ts.)
+ */
+export async function mapColourShare(page: Page, selector: string): Promise<number> {
+  const png = await page.locator(selector).screenshot();
+  return page.evaluate(async (b64) => {
+    const bmp = await createImageBitmap(await (await fetch(`data:image/png;base64,${b64}`)).blob());
+    const c = document.createElement('canvas');
+    c.width = bmp.width;
+    c.height = bmp.height;
+    const ctx = c.getContext('2d')!;
+    ctx.drawImage(bmp, 0, 0);
+    const d = ctx.getImageData(0, 0, c.width, c.height).data;
+    let map = 0;
+    for (let i = 0; i < d.length; i += 4) {
+      const [r, g, b] = [d[i], d[i + 1], d[i + 2]];
+      if (Math.max(r, g, b) - Math.min(r, g, b) > 60 && !(g > r && b > r)) map++;
+    }
+    return map / (d.length / 4);
+  }, png.toString('base64'));
+}
+
 /** Every JSON value anywhere inside `value` whose key is `key`. */
 export function findKey(value: unknown, key: string, out: unknown[] = []): unknown[] {
   if (Array.isArray(value)) value.forEach((v) => findKey(v, key, out));
