@@ -6,8 +6,8 @@
  * for every one of them. The desk draws with about six. With this layer the desk's first load in
  * software WebGL went from 2.78 to 2.19 s in a fresh browser and from 1.44 to 1.34 s warm (medians of
  * 5 and 10 alternated loads on the bench run, 2026-12-03). This layer, put on one context before the
- * library uses it, lets the library make its programs as before but holds back the compile and link
- * until the first draw with the program bound (or a question only a linked program can answer).
+ * library uses it, lets the library make its programs as before but holds back the shader sources,
+ * the compile and the link until the first draw with the program bound (or a question only a linked program can answer).
  *
  * Until then it answers as a program that linked: getProgramParameter(LINK_STATUS) and
  * getShaderParameter(COMPILE_STATUS) are true, getUniformLocation gives a stand-in location, and
@@ -71,6 +71,7 @@ export function deferProgramsOn(canvas: HTMLCanvasElement) {
 
 export function deferPrograms(gl: WebGL2RenderingContext) {
   const real = {
+    shaderSource: gl.shaderSource.bind(gl),
     compileShader: gl.compileShader.bind(gl),
     linkProgram: gl.linkProgram.bind(gl),
     attachShader: gl.attachShader.bind(gl),
@@ -94,7 +95,13 @@ export function deferPrograms(gl: WebGL2RenderingContext) {
     real.useProgram(program);
   };
 
+  const sources = new Map<WebGLShader, string>(); // sent with the compile: most are never compiled
   const compile = (shader: WebGLShader) => {
+    const source = sources.get(shader);
+    if (source !== undefined) {
+      sources.delete(shader);
+      real.shaderSource(shader, source);
+    }
     if (!uncompiled.delete(shader)) return;
     real.compileShader(shader);
   };
@@ -130,8 +137,16 @@ export function deferPrograms(gl: WebGL2RenderingContext) {
     bindReal(realise(current) ? current : null); // a program that failed to link: nothing is drawn
   };
 
+  const getShaderSource = gl.getShaderSource.bind(gl);
   const ctx = gl as unknown as Record<string, unknown>;
   Object.assign(ctx, {
+    shaderSource(shader: WebGLShader, source: string) {
+      sources.set(shader, source);
+    },
+    getShaderSource(shader: WebGLShader) {
+      compile(shader);
+      return getShaderSource(shader);
+    },
     compileShader(shader: WebGLShader) {
       uncompiled.add(shader);
     },

@@ -365,6 +365,8 @@ export default function VolumeViewer(props: VolumeViewerProps) {
       loadingText: '', // the component's own "Loading the run's maps…" says it once
     });
     nvRef.current = nv;
+    // no meshes here: the library's lighting image for them is neither decoded nor uploaded
+    (nv as unknown as { loadDefaultMatCap: () => Promise<void> }).loadDefaultMatCap = async () => undefined;
     // the desk's underlay is fetched while the canvas is set up
     const start = latest.current;
     const underFirst = start.maps

@@ -18,6 +18,12 @@ class Recorder {
   calls: string[] = [];
   broken = new Set<string>();
   linked = new Set<string>();
+  shaderSource(s: Obj, src: string) {
+    this.calls.push(`source ${s.name} ${src}`);
+  }
+  getShaderSource() {
+    return 'sent';
+  }
   compileShader(s: Obj) {
     this.calls.push(`compile ${s.name}`);
   }
@@ -85,6 +91,8 @@ function setUp() {
     const p = { name } as unknown as WebGLProgram;
     const vs = { name: `${name}.vs` } as unknown as WebGLShader;
     const fs = { name: `${name}.fs` } as unknown as WebGLShader;
+    gl.shaderSource(vs, 'v');
+    gl.shaderSource(fs, 'f');
     gl.compileShader(vs);
     gl.compileShader(fs);
     gl.attachShader(p, vs);
@@ -104,7 +112,7 @@ describe('programs compiled when first drawn with', () => {
     const { ok, vs } = make('slice');
     expect(ok).toBe(true);
     expect(gl.getShaderParameter(vs, gl.COMPILE_STATUS)).toBe(true);
-    expect(rec.calls).toEqual(['attach slice slice.vs', 'attach slice slice.fs']);
+    expect(rec.calls).toEqual(['attach slice slice.vs', 'attach slice slice.fs']); // no source sent, nothing compiled
   });
 
   it('links at the first draw and replays the uniforms set meanwhile, in order, on real locations', () => {
@@ -121,7 +129,9 @@ describe('programs compiled when first drawn with', () => {
     rec.calls = [];
     gl.drawArrays(gl.TRIANGLE_STRIP, 0, 4);
     expect(rec.calls).toEqual([
+      'source slice.vs v', // the sources too are sent only now
       'compile slice.vs',
+      'source slice.fs f',
       'compile slice.fs',
       'link slice',
       'status slice',
@@ -172,7 +182,7 @@ describe('programs compiled when first drawn with', () => {
     const b = make('b');
     rec.calls = [];
     gl.deleteShader(b.vs);
-    expect(rec.calls).toEqual(['compile b.vs', 'delete b.vs']);
+    expect(rec.calls).toEqual(['source b.vs v', 'compile b.vs', 'delete b.vs']);
     gl.useProgram(b.p);
     gl.drawElements(gl.TRIANGLES, 6, gl.UNSIGNED_INT, 0);
     expect(rec.calls.filter((c) => c.startsWith('compile'))).toEqual(['compile b.vs', 'compile b.fs']); // b.vs once
@@ -204,7 +214,9 @@ describe('programs compiled when first drawn with', () => {
     rec.calls = [];
     gl.getAttribLocation(b, 'pos'); // links b and replays its uniform, then gives the binding back to a
     expect(rec.calls).toEqual([
+      'source b.vs v',
       'compile b.vs',
+      'source b.fs f',
       'compile b.fs',
       'link b',
       'status b',
