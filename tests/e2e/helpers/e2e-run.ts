@@ -33,30 +33,14 @@ export function createE2eRun(
   return JSON.parse(out.trim().split('\n').pop()!) as E2eRun;
 }
 
-/** Distinct colours in a screenshot of an element (decoded in the page: no image package needed). */
-export async function distinctColours(page: Page, selector: string): Promise<number> {
-  const png = await page.locator(selector).screenshot();
-  return page.evaluate(async (b64) => {
-    const blob = await (await fetch(`data:image/png;base64,${b64}`)).blob();
-    const bmp = await createImageBitmap(blob);
-    const c = document.createElement('canvas');
-    c.width = bmp.width;
-    c.height = bmp.height;
-    const ctx = c.getContext('2d')!;
-    ctx.drawImage(bmp, 0, 0);
-    const d = ctx.getImageData(0, 0, c.width, c.height).data;
-    const seen = new Set<number>();
-    for (let i = 0; i < d.length; i += 4) seen.add((d[i] << 16) | (d[i + 1] << 8) | d[i + 2]);
-    return seen.size;
-  }, png.toString('base64'));
-}
-
 /**
- * Share of an element's screenshot in the map's colours: saturated pixels (max − min channel > 60 of
- * 255) that are not the teal crosshair (green and blue both above red). The grey underlay, the white
- * letters and the dark background are not counted. (Our own colour tables: components/viewer/colormaps.ts.)
+ * Colour statistics of a screenshot of an element, decoded in the page (no image package needed):
+ * the number of distinct colours, and the share of pixels in the map's colours — saturated (max − min
+ * channel > 60 of 255) and not the teal crosshair (green and blue both above red). The grey underlay,
+ * the white letters and the dark background are not in that share. (Our own colour tables:
+ * components/viewer/colormaps.ts.)
  */
-export async function mapColourShare(page: Page, selector: string): Promise<number> {
+async function screenshotColours(page: Page, selector: string): Promise<{ distinct: number; mapShare: number }> {
   const png = await page.locator(selector).screenshot();
   return page.evaluate(async (b64) => {
     const bmp = await createImageBitmap(await (await fetch(`data:image/png;base64,${b64}`)).blob());
@@ -66,13 +50,25 @@ export async function mapColourShare(page: Page, selector: string): Promise<numb
     const ctx = c.getContext('2d')!;
     ctx.drawImage(bmp, 0, 0);
     const d = ctx.getImageData(0, 0, c.width, c.height).data;
+    const seen = new Set<number>();
     let map = 0;
     for (let i = 0; i < d.length; i += 4) {
       const [r, g, b] = [d[i], d[i + 1], d[i + 2]];
+      seen.add((r << 16) | (g << 8) | b);
       if (Math.max(r, g, b) - Math.min(r, g, b) > 60 && !(g > r && b > r)) map++;
     }
-    return map / (d.length / 4);
+    return { distinct: seen.size, mapShare: map / (d.length / 4) };
   }, png.toString('base64'));
+}
+
+/** Distinct colours in a screenshot of an element. */
+export async function distinctColours(page: Page, selector: string): Promise<number> {
+  return (await screenshotColours(page, selector)).distinct;
+}
+
+/** Share of an element's screenshot in the map's colours (see screenshotColours). */
+export async function mapColourShare(page: Page, selector: string): Promise<number> {
+  return (await screenshotColours(page, selector)).mapShare;
 }
 
 /** Every JSON value anywhere inside `value` whose key is `key`. */
