@@ -24,5 +24,5 @@ export function proxy(request: NextRequest) {
 
 export const config = {
   // Pages only: API routes answer 401 themselves and get their policy from next.config.mjs; static files stay open.
-  matcher: ['/((?!api|_next/static|_next/image|favicon.ico|fonts).*)'],
+  matcher: ['/((?!api|_next/static|_next/image|favicon.ico|icon.svg|fonts).*)'],
 };

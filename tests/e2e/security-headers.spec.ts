@@ -126,3 +126,12 @@ test('an invitation to an address that already has an account says so (issue 15 
   });
   expect(await fresh.json()).toMatchObject({ outcome: 'sent', message: `An invitation (Rater) is on its way to ${freshEmail}.` });
 });
+
+test('the site icon is linked from the pages and served to a visitor without a session', async ({ page, request }) => {
+  await page.goto('/sign-in');
+  const href = await page.locator('link[rel="icon"]').first().getAttribute('href');
+  expect(href, 'the page links its icon (no browser guess at /favicon.ico, which is not there)').toMatch(/^\/icon\.svg/);
+  const res = await request.get(href!, { maxRedirects: 0 });
+  expect(res.status(), 'not sent to sign-in').toBe(200);
+  expect(res.headers()['content-type']).toContain('image/svg+xml');
+});
