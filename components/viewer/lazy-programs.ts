@@ -10,9 +10,9 @@
  * the compile and the link until the first draw with the program bound (or a question only a linked program can answer).
  *
  * Until then it answers as a program that linked: getProgramParameter(LINK_STATUS) and
- * getShaderParameter(COMPILE_STATUS) are true, getUniformLocation gives a stand-in location, and
- * useProgram and uniform calls on the held program are recorded and replayed, in order, once it is
- * linked. A program that then fails to link is reported on the console, as the library does, and
+ * getShaderParameter(COMPILE_STATUS) are true, getUniformLocation gives a stand-in location, the
+ * held program counts as bound after useProgram, and uniform calls on it are recorded and replayed,
+ * in order, once it is linked. A program that then fails to link is reported on the console, as the library does, and
  * draws nothing. Stand-in locations are always truthy (a real one is null for a uniform the compiler
  * dropped); a uniform call with one that resolves to null does nothing, as WebGL specifies.
  *
@@ -22,7 +22,7 @@
 type Held = {
   shaders: WebGLShader[];
   /** uniform calls made while held, replayed in order after the link */
-  queue: Array<[name: string, location: Stand, args: unknown[]]>;
+  queue: Array<[setter: (...a: unknown[]) => unknown, location: Stand, args: unknown[]]>;
   locations: Map<string, Stand>;
 };
 
@@ -82,6 +82,8 @@ export function deferPrograms(gl: WebGL2RenderingContext) {
     getShaderParameter: gl.getShaderParameter.bind(gl),
     getUniformLocation: gl.getUniformLocation.bind(gl),
     getUniform: gl.getUniform.bind(gl),
+    getShaderSource: gl.getShaderSource.bind(gl),
+    getShaderInfoLog: gl.getShaderInfoLog.bind(gl),
   };
   const held = new Map<WebGLProgram, Held>();
   const uncompiled = new Set<WebGLShader>();
@@ -123,13 +125,11 @@ export function deferPrograms(gl: WebGL2RenderingContext) {
     if (!ok) console.error('A viewer shader failed to link:', gl.getProgramInfoLog(program));
     if (ok && h.queue.length) {
       bindReal(program);
-      for (const [name, stand, args] of h.queue) call(name, locationOf(stand), args);
+      for (const [setter, stand, args] of h.queue) setter(locationOf(stand), ...args);
       if (current !== null && !held.has(current)) bindReal(current); // as the page left it
     }
     return ok;
   };
-  const uniformCalls = new Map<string, (...a: unknown[]) => unknown>();
-  const call = (name: string, location: WebGLUniformLocation | null, args: unknown[]) => uniformCalls.get(name)!(location, ...args);
   /** Binds the program the page asked for, linking it first if it was held. */
   const bindCurrent = () => {
     if (!boundHeld || current === null) return;
@@ -137,7 +137,6 @@ export function deferPrograms(gl: WebGL2RenderingContext) {
     bindReal(realise(current) ? current : null); // a program that failed to link: nothing is drawn
   };
 
-  const getShaderSource = gl.getShaderSource.bind(gl);
   const ctx = gl as unknown as Record<string, unknown>;
   Object.assign(ctx, {
     shaderSource(shader: WebGLShader, source: string) {
@@ -145,7 +144,7 @@ export function deferPrograms(gl: WebGL2RenderingContext) {
     },
     getShaderSource(shader: WebGLShader) {
       compile(shader);
-      return getShaderSource(shader);
+      return real.getShaderSource(shader);
     },
     compileShader(shader: WebGLShader) {
       uncompiled.add(shader);
@@ -188,10 +187,10 @@ export function deferPrograms(gl: WebGL2RenderingContext) {
       compile(shader);
       return real.getShaderParameter(shader, pname);
     },
-    getShaderInfoLog: ((orig) => (shader: WebGLShader) => {
+    getShaderInfoLog(shader: WebGLShader) {
       compile(shader);
-      return orig(shader);
-    })(gl.getShaderInfoLog.bind(gl)),
+      return real.getShaderInfoLog(shader);
+    },
     getUniformLocation(program: WebGLProgram, name: string) {
       const h = held.get(program);
       if (!h) return real.getUniformLocation(program, name);
@@ -227,14 +226,13 @@ export function deferPrograms(gl: WebGL2RenderingContext) {
   for (const name of Object.getOwnPropertyNames(Object.getPrototypeOf(gl) as object)) {
     if (!/^uniform(\d|Matrix)/.test(name)) continue;
     const orig = (gl[name as keyof WebGL2RenderingContext] as (...a: unknown[]) => unknown).bind(gl);
-    uniformCalls.set(name, orig);
     ctx[name] = (location: unknown, ...args: unknown[]) => {
       if (!(location instanceof Stand)) return orig(location, ...args);
       const h = held.get(location.program);
       if (h) {
         // the program is bound but not linked yet: kept (arrays copied: callers reuse theirs)
         h.queue.push([
-          name,
+          orig,
           location,
           args.map((a) => (ArrayBuffer.isView(a) ? (a as Float32Array).slice() : Array.isArray(a) ? [...a] : a)),
         ]);
