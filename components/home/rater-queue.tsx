@@ -4,6 +4,7 @@ import type { RaterGateNotice } from '@/lib/db/queries/calibration-gate';
 import { Notice } from '@/components/ui/notice';
 import { Panel } from '@/components/ui/panel';
 import { bidsName } from '@/lib/bids';
+import { ViewerWarmUp } from '@/components/viewer/warm-up';
 
 function RunRow({ item }: { item: QueueItem }) {
   const pct = item.total ? Math.round((100 * item.labelled) / item.total) : 0;
@@ -47,6 +48,8 @@ export function RaterQueue({ items, held = [] }: { items: QueueItem[]; held?: Ra
           threshold). Rate the calibration runs in your queue; your result after each one shows where you differ from the reference.
         </Notice>
       ))}
+      {/* the desk is usually opened from here next: its viewer code is fetched while the browser is idle */}
+      {items.length ? <ViewerWarmUp /> : null}
       <Panel title="My queue">
         {open.length === 0 ? (
           <p className="text-sm text-ink-muted" data-testid="queue-empty">
