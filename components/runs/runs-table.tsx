@@ -2,6 +2,7 @@
 
 import { useMemo, useState } from 'react';
 import Link from 'next/link';
+import { ViewerWarmUp } from '@/components/viewer/warm-up';
 import {
   createColumnHelper,
   flexRender,
@@ -158,6 +159,8 @@ export function RunsTable({
 
   return (
     <div className="flex flex-col gap-3">
+      {/* a decomposed run is opened from here (the desk, the run view) or from Reconcile next: the viewer's code is fetched while the browser is idle */}
+      {runs.some((r) => r.status === 'ready') ? <ViewerWarmUp /> : null}
       <div className="flex flex-wrap items-end gap-3 text-sm">
         <label className="flex flex-col gap-1">
           <span className="text-xs text-ink-faint">Filter</span>

@@ -6,9 +6,9 @@ export const VIEWER_CODE_MARK = 'viewer:code-loaded';
 
 /**
  * Fetches and runs the viewer's code (≈ 0.9 MB, the WebGL library) while the browser is idle, on a
- * page from which the viewer is usually opened next (the rater's queue). The desk then finds it in
- * the browser's cache, already compiled once, instead of asking for it while the page hydrates: a
- * rater's first visit in a fresh browser waited ≈ 0.2–0.3 s for it. Renders nothing; a failure is
+ * page from which the viewer is usually opened next (the rater's queue; a study's runs table, for the
+ * run view and Reconcile). The desk then finds it loaded, instead of asking for it while the page
+ * hydrates: a rater's first visit in a fresh browser waited ≈ 0.3 s for it. Renders nothing; a failure is
  * ignored here (the desk asks again and reports it).
  */
 export function ViewerWarmUp() {

@@ -1,12 +1,14 @@
 /**
- * The rater's queue fetches the viewer's code while the browser is idle (components/viewer/warm-up.tsx),
- * so the desk opened from it does not ask for that code again: the first visit waits for neither its
- * download nor its first run (the desk's first-load figures: `npm run bench -- desk`, README).
+ * The rater's queue and a study's runs table fetch the viewer's code while the browser is idle
+ * (components/viewer/warm-up.tsx), so the desk or the run view opened from them does not ask for that
+ * code again: the first visit waits for neither its download nor its first run (the desk's
+ * first-load figures: `npm run bench -- desk`, README).
  */
-import { expect, test } from '@playwright/test';
+import { expect, test, type Page } from '@playwright/test';
 import { DEMO, SignInPage } from './pages/sign-in-page';
 import { DeskPage } from './pages/desk-page';
 import { createE2eRun, type E2eRun } from './helpers/e2e-run';
+import { sql } from './helpers/e2e-db';
 
 let run: E2eRun;
 
@@ -14,8 +16,8 @@ test.beforeAll(() => {
   run = createE2eRun({ raters: [DEMO.rater], size: 'small', seed: 23 });
 });
 
-test("the queue fetches the viewer's code ahead; the desk opened from it does not fetch it again", async ({ page }) => {
-  // every script chunk the page asks for, in order, and its size once received
+/** Every script chunk the page asks for, in order; `large` tells the viewer's code (the WebGL library, far larger than any other chunk of these pages) once received. */
+function recordChunks(page: Page) {
   const chunks: string[] = [];
   const sizes = new Map<string, number>();
   page.on('request', (req) => {
@@ -26,20 +28,26 @@ test("the queue fetches the viewer's code ahead; the desk opened from it does no
     const body = await res.body().catch(() => null);
     if (body) sizes.set(new URL(res.url()).pathname, body.byteLength);
   });
-  // the viewer's code is the WebGL library: far larger than any other chunk of these pages
-  const large = (c: string) => (sizes.get(c) ?? 0) > 400_000;
+  return { chunks, large: (c: string) => (sizes.get(c) ?? 0) > 400_000 };
+}
+
+/** Waits for the warm-up's own mark (set once the code has been fetched and run); returns the chunks asked for so far. */
+async function warmedUp(page: Page, { chunks, large }: ReturnType<typeof recordChunks>) {
+  await page.waitForFunction(() => performance.getEntriesByName('viewer:code-loaded').length > 0);
+  const ahead = [...chunks];
+  await expect.poll(() => ahead.filter(large).length, { message: "the viewer's code was fetched once, ahead" }).toBe(1);
+  return ahead;
+}
+
+test("the queue fetches the viewer's code ahead; the desk opened from it does not fetch it again", async ({ page }) => {
+  const seen = recordChunks(page);
   const signIn = new SignInPage(page);
   await signIn.open();
   await signIn.signIn(DEMO.rater);
   await expect(page.getByTestId('home-heading')).toBeVisible();
-  // the warm-up's own mark, set once the code has been fetched and run
-  await page.waitForFunction(() => performance.getEntriesByName('viewer:code-loaded').length > 0);
-  const fetchedAhead = [...chunks];
-  await expect
-    .poll(() => fetchedAhead.filter(large).length, { message: "the sign-in page and the queue fetched the viewer's code once" })
-    .toBe(1);
+  const ahead = await warmedUp(page, seen);
 
-  const afterQueue = chunks.length;
+  const afterQueue = seen.chunks.length;
   await page
     .getByTestId('queue-item')
     .filter({ has: page.locator(`a[href="/runs/${run.runId}/rate"]`) })
@@ -48,9 +56,31 @@ test("the queue fetches the viewer's code ahead; the desk opened from it does no
   const desk = new DeskPage(page);
   await desk.ready();
   await expect(desk.position()).toHaveText(`Component 1 of ${run.k}`);
-  const onDesk = chunks.slice(afterQueue);
+  const onDesk = seen.chunks.slice(afterQueue);
   expect(
-    onDesk.filter((c) => fetchedAhead.includes(c) || large(c)),
+    onDesk.filter((c) => ahead.includes(c) || seen.large(c)),
     'the desk reuses the code the queue fetched',
+  ).toEqual([]);
+});
+
+test("a study's runs table fetches the viewer's code ahead for the lead's run view", async ({ page }) => {
+  const studyId = Number(sql<{ s: number }>(`SELECT study_id AS s FROM runs WHERE id = ${run.runId}`)[0]!.s);
+  const seen = recordChunks(page);
+  const signIn = new SignInPage(page);
+  await signIn.open();
+  await signIn.signIn(DEMO.lead);
+  await expect(page.getByTestId('home-heading')).toBeVisible();
+  await page.goto(`/studies/${studyId}`);
+  await expect(page.getByTestId('runs-table')).toBeVisible();
+  const ahead = await warmedUp(page, seen);
+
+  const afterTable = seen.chunks.length;
+  await page.locator(`a[href="/runs/${run.runId}/view"]`).click();
+  await expect(page.getByTestId('run-view')).toBeVisible();
+  await expect(page.getByTestId('viewer-ready')).toBeAttached();
+  const onView = seen.chunks.slice(afterTable);
+  expect(
+    onView.filter((c) => ahead.includes(c) || seen.large(c)),
+    'the run view reuses the code the table fetched',
   ).toEqual([]);
 });
