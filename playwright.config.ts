@@ -1,4 +1,5 @@
 import { defineConfig } from '@playwright/test';
+import { CHROMIUM_ARGS, CHROMIUM_PATH } from './tests/e2e/helpers/chromium';
 
 const port = Number(process.env.QUORUM_E2E_PORT ?? 3100);
 
@@ -19,20 +20,7 @@ export default defineConfig({
     baseURL: `http://localhost:${port}`,
     trace: 'retain-on-failure',
     screenshot: 'only-on-failure',
-    launchOptions: {
-      executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
-      args: [
-        '--headless',
-        '--no-sandbox',
-        '--disable-gpu',
-        '--disable-quic',
-        '--no-first-run',
-        '--disable-background-networking',
-        '--disable-component-update',
-        '--disable-sync',
-        '--enable-unsafe-swiftshader',
-      ],
-    },
+    launchOptions: { executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS },
   },
   webServer: {
     command: `bash scripts/e2e-server.sh ${port}`,

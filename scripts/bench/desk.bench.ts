@@ -30,6 +30,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { chromium, type Page } from '@playwright/test';
 import { VIEWER_CODE_MARK } from '@/components/viewer/warm-up';
+import { CHROMIUM_ARGS, CHROMIUM_PATH } from '../../tests/e2e/helpers/chromium';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 const PORT = Number(process.env.BENCH_DESK_PORT ?? 3590);
@@ -194,9 +195,8 @@ export async function main(): Promise<void> {
     console.log(`skipped: no production build in ${DIST}/ (run \`npm run build\` first)`);
     return;
   }
-  const chromiumPath = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
-  if (!existsSync(chromiumPath)) {
-    console.log(`skipped: no Chromium at ${chromiumPath} (apt-get install -y --no-install-recommends chromium, or set CHROMIUM_PATH)`);
+  if (!existsSync(CHROMIUM_PATH)) {
+    console.log(`skipped: no Chromium at ${CHROMIUM_PATH} (apt-get install -y --no-install-recommends chromium, or set CHROMIUM_PATH)`);
     return;
   }
   const dbWasUp = (() => {
@@ -209,21 +209,7 @@ export async function main(): Promise<void> {
   })();
   if (!dbWasUp) execFileSync('bash', ['scripts/db.sh', 'start'], { cwd: root, stdio: 'ignore' });
   let server: ChildProcess | null = null;
-  const launch = () =>
-    chromium.launch({
-      executablePath: chromiumPath,
-      args: [
-        '--headless',
-        '--no-sandbox',
-        '--disable-gpu',
-        '--disable-quic',
-        '--no-first-run',
-        '--disable-background-networking',
-        '--disable-component-update',
-        '--disable-sync',
-        '--enable-unsafe-swiftshader',
-      ],
-    });
+  const launch = () => chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
   const browser = await launch();
   try {
     const run = benchRun();
