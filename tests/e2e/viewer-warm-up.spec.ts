@@ -31,6 +31,13 @@ function recordChunks(page: Page) {
   return { chunks, large: (c: string) => (sizes.get(c) ?? 0) > 400_000 };
 }
 
+async function signIn(page: Page, email: string) {
+  const form = new SignInPage(page);
+  await form.open();
+  await form.signIn(email);
+  await expect(page.getByTestId('home-heading')).toBeVisible();
+}
+
 /** Waits for the warm-up's own mark (set once the code has been fetched and run); returns the chunks asked for so far. */
 async function warmedUp(page: Page, { chunks, large }: ReturnType<typeof recordChunks>) {
   await page.waitForFunction(() => performance.getEntriesByName('viewer:code-loaded').length > 0);
@@ -41,10 +48,7 @@ async function warmedUp(page: Page, { chunks, large }: ReturnType<typeof recordC
 
 test("the queue fetches the viewer's code ahead; the desk opened from it does not fetch it again", async ({ page }) => {
   const seen = recordChunks(page);
-  const signIn = new SignInPage(page);
-  await signIn.open();
-  await signIn.signIn(DEMO.rater);
-  await expect(page.getByTestId('home-heading')).toBeVisible();
+  await signIn(page, DEMO.rater);
   const ahead = await warmedUp(page, seen);
 
   const afterQueue = seen.chunks.length;
@@ -66,10 +70,7 @@ test("the queue fetches the viewer's code ahead; the desk opened from it does no
 test("a study's runs table fetches the viewer's code ahead for the lead's run view", async ({ page }) => {
   const studyId = Number(sql<{ s: number }>(`SELECT study_id AS s FROM runs WHERE id = ${run.runId}`)[0]!.s);
   const seen = recordChunks(page);
-  const signIn = new SignInPage(page);
-  await signIn.open();
-  await signIn.signIn(DEMO.lead);
-  await expect(page.getByTestId('home-heading')).toBeVisible();
+  await signIn(page, DEMO.lead);
   await page.goto(`/studies/${studyId}`);
   await expect(page.getByTestId('runs-table')).toBeVisible();
   const ahead = await warmedUp(page, seen);
@@ -77,7 +78,7 @@ test("a study's runs table fetches the viewer's code ahead for the lead's run vi
   const afterTable = seen.chunks.length;
   await page.locator(`a[href="/runs/${run.runId}/view"]`).click();
   await expect(page.getByTestId('run-view')).toBeVisible();
-  await expect(page.getByTestId('viewer-ready')).toBeAttached();
+  await expect(page.getByTestId('viewer-ready')).toBeAttached({ timeout: 120_000 });
   const onView = seen.chunks.slice(afterTable);
   expect(
     onView.filter((c) => ahead.includes(c) || seen.large(c)),
