@@ -21,8 +21,10 @@ export default async function RatePage({ params }: { params: Promise<{ id: strin
     if (err instanceof AppError && err.code === 'not_found') notFound();
     throw err;
   });
-  // the first map and the underlay are asked for with the page, not after its scripts have run: the
-  // same addresses and fetch mode as lib/desk/use-desk-maps.ts and the viewer use, so the browser reuses them
+  // the first map, the underlay and the series are asked for with the page's data: Next sends these
+  // hints with the flight data (not in the HTML head), so the browser starts them at hydration, before
+  // the desk's effects would. The same addresses and fetch mode as lib/desk/use-desk-maps.ts and the
+  // viewer use, so the browser reuses them. (<link rel="preload"> in the head: warm loads slower, README.)
   const { run } = components;
   const start = deskStartIndex(run.lastComponentIdx, components.components, votes.mine);
   const shown = components.components[start];
